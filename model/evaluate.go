@@ -1,0 +1,292 @@
+package model
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"sync"
+)
+
+// Options tune an Evaluator. The zero value gives the defaults.
+type Options struct {
+	Grid Grid // frequency grid; zero value means DefaultGrid
+
+	// Tolerance is the relative change of every equivalent damping below
+	// which the linearisation's fixed point counts as reached; 0 = 1e-8.
+	Tolerance float64
+	// MaxIterations bounds the fixed-point iterations; 0 = 200.
+	MaxIterations int
+	// WarnThreshold is the lift-off and bump-stop contact probability
+	// above which a case is flagged; 0 = 0.01 (1 %).
+	WarnThreshold float64
+	// General forces the full 7-DOF path even for a symmetric car.
+	General bool
+}
+
+func (o Options) withDefaults() Options {
+	if o.Grid == (Grid{}) {
+		o.Grid = DefaultGrid
+	}
+	if o.Tolerance == 0 {
+		o.Tolerance = 1e-8
+	}
+	if o.MaxIterations == 0 {
+		o.MaxIterations = 200
+	}
+	if o.WarnThreshold == 0 {
+		o.WarnThreshold = 0.01
+	}
+	return o
+}
+
+// Evaluator computes ride metrics of setups for one vehicle on a set of
+// road cases. It is safe for concurrent use; Evaluate allocates nothing
+// when dst has room for the cases.
+type Evaluator struct {
+	v     Vehicle
+	opt   Options
+	f     []float64    // grid frequencies (Hz)
+	omega []float64    // 2πf
+	wts   []float64    // Simpson weights in f
+	bands [4][]float64 // band weights for the tails
+	cases []caseData
+	pool  sync.Pool
+}
+
+// caseData is one road case prepared on the grid.
+type caseData struct {
+	rc     RoadCase
+	sym    bool
+	base   *system // undamped suspension (tyre damping only)
+	kinv   [nDOF][nDOF]float64
+	grid   *caseGrid
+	geo    outputGeometry
+	static [4]float64
+}
+
+type workspace struct {
+	chs [2]channel
+}
+
+// NewEvaluator validates its inputs and prepares the road cases on the grid.
+func NewEvaluator(v Vehicle, cases []RoadCase, opt Options) (*Evaluator, error) {
+	opt = opt.withDefaults()
+	var p problems
+	p.merge("vehicle.", v.Validate())
+	if len(cases) == 0 {
+		p.add("road_cases", "needs at least one road case")
+	}
+	for i := range cases {
+		p.merge(fmt.Sprintf("road_cases[%d].", i), cases[i].Validate())
+	}
+	p.merge("grid.", opt.Grid.Validate())
+	if opt.Tolerance < 0 || opt.Tolerance > 1e-2 {
+		p.add("tolerance", "must be in (0, 0.01], got %g", opt.Tolerance)
+	}
+	if opt.MaxIterations < 0 {
+		p.add("max_iterations", "must be >= 0, got %d", opt.MaxIterations)
+	}
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	e := &Evaluator{v: v, opt: opt}
+	e.f = opt.Grid.Frequencies()
+	e.wts = opt.Grid.weights(e.f)
+	e.bands, _ = opt.Grid.bandWeights(e.f)
+	e.omega = make([]float64, len(e.f))
+	for k, f := range e.f {
+		e.omega[k] = 2 * math.Pi * f
+	}
+	vsym := v.symmetric() && !opt.General
+	for i := range cases {
+		rc := cases[i]
+		sym := vsym && (rc.Measured == nil || rc.Measured.Right == nil)
+		cd := caseData{rc: rc, sym: sym, base: newSystem(&e.v, rc.Speed)}
+		if err := cd.base.checkStable(rc.Name); err != nil {
+			return nil, &ValidationError{Problems: []FieldError{{Field: fmt.Sprintf("road_cases[%d].speed_m_per_s", i), Reason: err.Error()}}}
+		}
+		for a := 0; a < nDOF; a++ {
+			var unit [nDOF]float64
+			unit[a] = 1
+			col, err := cd.base.staticSolve(unit)
+			if err != nil {
+				return nil, err
+			}
+			for b := 0; b < nDOF; b++ {
+				cd.kinv[b][a] = col[b]
+			}
+		}
+		cd.grid = newCaseGrid(&e.v, &cd.rc, e.f, sym)
+		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear}
+		for c := 0; c < 4; c++ {
+			cd.geo.kt[c] = v.Corners[c].TyreRate
+			cd.geo.ct[c] = v.Corners[c].TyreDamping
+		}
+		cd.static = v.StaticTyreLoads(rc.Speed)
+		e.cases = append(e.cases, cd)
+	}
+	e.pool.New = func() any { return new(workspace) }
+	return e, nil
+}
+
+// Vehicle returns the evaluator's vehicle.
+func (e *Evaluator) Vehicle() *Vehicle { return &e.v }
+
+// Cases returns the number of road cases.
+func (e *Evaluator) Cases() int { return len(e.cases) }
+
+// Case returns road case i.
+func (e *Evaluator) Case(i int) *RoadCase { return &e.cases[i].rc }
+
+// Frequencies returns the grid frequencies (Hz); do not modify.
+func (e *Evaluator) Frequencies() []float64 { return e.f }
+
+// WarnThreshold returns the probability above which a case is flagged.
+func (e *Evaluator) WarnThreshold() float64 { return e.opt.WarnThreshold }
+
+// Evaluate computes the metrics of a setup on every road case into dst
+// (dst.Cases is reused when it has room).
+func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
+	if err := s.Validate(); err != nil {
+		return err
+	}
+	dst.Setup = s
+	if cap(dst.Cases) < len(e.cases) {
+		dst.Cases = make([]CaseMetrics, len(e.cases))
+	}
+	dst.Cases = dst.Cases[:len(e.cases)]
+	ws := e.pool.Get().(*workspace)
+	defer e.pool.Put(ws)
+	dampers := e.v.wheelDampers(&s)
+	for i := range e.cases {
+		if err := e.evaluateCase(i, &dampers, ws, &dst.Cases[i], nil); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// evaluateCase runs the linearisation to its fixed point on case ci and
+// fills m; psd, when not nil, receives the output spectra of the final pass.
+func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace, m *CaseMetrics, psd []float64) error {
+	cd := &e.cases[ci]
+	linear := true
+	var c [4]float64
+	for i, d := range dampers {
+		c[i] = (d.cb + d.cr) / 2
+		if (d.vb > 0 && d.rb != 1) || (d.vr > 0 && d.rr != 1) {
+			linear = false
+		}
+	}
+	var acc [nOut]float64
+	var edge [4][nOut]float64
+	iter := 0
+	if !linear {
+		converged := false
+		for iter < e.opt.MaxIterations {
+			iter++
+			sys := cd.base.withDamping(c)
+			n := channels(&ws.chs, &sys, cd.sym)
+			if !responseSpectra(ws.chs[:n], cd.grid, &cd.geo, e.omega, e.wts, &e.bands, true, &acc, &edge, nil) {
+				return fmt.Errorf("%w: road case %q: singular dynamic stiffness", ErrUnstable, cd.rc.Name)
+			}
+			v, err := variances(&acc, &edge, e.f, true)
+			if err != nil {
+				return fmt.Errorf("road case %q: %w", cd.rc.Name, err)
+			}
+			worst := 0.0
+			for i := range c {
+				cn, _ := dampers[i].Equivalent(math.Sqrt(v[outWheelVel+i]))
+				worst = math.Max(worst, math.Abs(cn-c[i])/c[i])
+				c[i] = cn
+			}
+			if worst <= e.opt.Tolerance {
+				converged = true
+				break
+			}
+		}
+		if !converged {
+			return fmt.Errorf("%w: road case %q after %d iterations", ErrNoConvergence, cd.rc.Name, iter)
+		}
+	}
+	sys := cd.base.withDamping(c)
+	n := channels(&ws.chs, &sys, cd.sym)
+	if !responseSpectra(ws.chs[:n], cd.grid, &cd.geo, e.omega, e.wts, &e.bands, false, &acc, &edge, psd) {
+		return fmt.Errorf("%w: road case %q: singular dynamic stiffness", ErrUnstable, cd.rc.Name)
+	}
+	v, err := variances(&acc, &edge, e.f, false)
+	if err != nil {
+		return fmt.Errorf("road case %q: %w", cd.rc.Name, err)
+	}
+	e.fillMetrics(cd, dampers, &v, m)
+	m.Iterations = iter
+	return nil
+}
+
+// fillMetrics turns variances into metrics and solves the jacking.
+func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]float64, m *CaseMetrics) {
+	*m = CaseMetrics{Case: cd.rc.Name, StaticTyreLoad: cd.static}
+	var fbar [4]float64
+	for i := 0; i < 4; i++ {
+		mr := e.v.Corners[i].DamperMotionRatio
+		sv := math.Sqrt(v[outWheelVel+i])
+		ceq, mean := dampers[i].Equivalent(sv)
+		fbar[i] = mean
+		m.EquivalentDamping[i] = ceq
+		m.MeanDamperForce[i] = mean / mr
+		m.DamperVelocitySD[i] = mr * sv
+		m.TyreLoadSD[i] = math.Sqrt(v[outTyre+i])
+		m.TyreLoadSDRel[i] = m.TyreLoadSD[i] / cd.static[i]
+		m.TravelSD[i] = math.Sqrt(v[outTravel+i])
+	}
+	// Jacking: K x̄ = -Dᵀ F̄ (the mean damper force pushes body up, wheel down).
+	var f, xbar [nDOF]float64
+	for a := 0; a < nDOF; a++ {
+		for i := 0; i < 4; i++ {
+			f[a] -= cd.base.d[i][a] * fbar[i]
+		}
+	}
+	for a := 0; a < nDOF; a++ {
+		for b := 0; b < nDOF; b++ {
+			xbar[a] += cd.kinv[a][b] * f[b]
+		}
+	}
+	m.RideHeightShift = [2]float64{xbar[0] + e.v.CGToFrontAxle*xbar[1], xbar[0] - e.v.CGToRearAxle*xbar[1]}
+	m.PitchShift = xbar[1]
+	for i := 0; i < 4; i++ {
+		s := 0.0
+		for a := 0; a < nDOF; a++ {
+			s += cd.base.d[i][a] * xbar[a]
+		}
+		m.TravelShift[i] = s
+		load := cd.static[i] - e.v.Corners[i].TyreRate*xbar[dofWheel+i]
+		m.LiftOffProbability[i] = tailProb(load, m.TyreLoadSD[i])
+		if gap := e.v.Corners[i].BumpStopGap; gap > 0 {
+			m.BumpStopProbability[i] = tailProb(gap-s, m.TravelSD[i])
+		}
+		if m.LiftOffProbability[i] > e.opt.WarnThreshold {
+			m.Warnings |= WarnLiftOff
+		}
+		if m.BumpStopProbability[i] > e.opt.WarnThreshold {
+			m.Warnings |= WarnBumpStop
+		}
+	}
+	m.RideHeightSD = [2]float64{math.Sqrt(v[outRide]), math.Sqrt(v[outRide+1])}
+	m.PitchSD = math.Sqrt(v[outPitch])
+	m.RollSD = math.Sqrt(v[outRoll])
+	m.HeaveAccelSD = math.Sqrt(v[outHeaveAcc])
+}
+
+// tailProb is P(X > margin) for X ~ N(0, sd²).
+func tailProb(margin, sd float64) float64 {
+	if sd <= 0 {
+		if margin < 0 {
+			return 1
+		}
+		return 0
+	}
+	return normQ(margin / sd)
+}
+
+// IsConvergence reports whether err is a linearisation failure.
+func IsConvergence(err error) bool { return errors.Is(err, ErrNoConvergence) }

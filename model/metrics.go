@@ -1,0 +1,69 @@
+package model
+
+import "fmt"
+
+// CaseMetrics are the ride metrics of one setup on one road case. Standard
+// deviations are of the dynamic part about the mean; shifts are the mean
+// changes from static caused by asymmetric dampers ("jacking").
+type CaseMetrics struct {
+	Case string // road case name
+
+	TyreLoadSD         [4]float64 // dynamic tyre load standard deviation (N)
+	StaticTyreLoad     [4]float64 // static tyre load incl. unsprung weight and downforce (N)
+	TyreLoadSDRel      [4]float64 // TyreLoadSD / StaticTyreLoad (-)
+	LiftOffProbability [4]float64 // P(dynamic load < -static load), Gaussian (-)
+
+	RideHeightSD [2]float64 // ride height relative to the road, front, rear (m)
+	PitchSD      float64    // pitch relative to the road (rad)
+	RollSD       float64    // roll relative to the road (rad)
+	HeaveAccelSD float64    // heave acceleration of the sprung CG (m/s²)
+
+	TravelSD            [4]float64 // suspension travel at the wheel (m)
+	BumpStopProbability [4]float64 // P(travel > bump-stop gap), Gaussian, incl. mean shift; 0 when no gap given (-)
+
+	DamperVelocitySD  [4]float64 // damper velocity at the damper (m/s)
+	EquivalentDamping [4]float64 // c_eq at the wheel at the fixed point (N s/m)
+	MeanDamperForce   [4]float64 // mean damper force at the damper, + pushes apart (N)
+
+	RideHeightShift [2]float64 // mean ride-height change, front, rear, + up (m)
+	PitchShift      float64    // mean pitch change, + nose up (rad)
+	TravelShift     [4]float64 // mean travel change, + bump (m)
+
+	Iterations int      // fixed-point iterations of the linearisation
+	Warnings   Warnings // validity flags
+}
+
+// Warnings flags where the linear model's assumptions are stretched.
+type Warnings uint32
+
+const (
+	// WarnLiftOff: some tyre's lift-off probability exceeds the threshold.
+	WarnLiftOff Warnings = 1 << iota
+	// WarnBumpStop: some corner's bump-stop contact probability exceeds
+	// the threshold.
+	WarnBumpStop
+)
+
+// Strings returns readable warnings for a case's flags.
+func (m *CaseMetrics) WarningStrings(threshold float64) []string {
+	var out []string
+	for i := 0; i < 4; i++ {
+		if m.Warnings&WarnLiftOff != 0 && m.LiftOffProbability[i] > threshold {
+			out = append(out, fmt.Sprintf("%s: %s tyre lift-off probability %.1f%% exceeds %.1f%%: the linear model does not hold; run the time-domain check",
+				m.Case, CornerNames[i], 100*m.LiftOffProbability[i], 100*threshold))
+		}
+	}
+	for i := 0; i < 4; i++ {
+		if m.Warnings&WarnBumpStop != 0 && m.BumpStopProbability[i] > threshold {
+			out = append(out, fmt.Sprintf("%s: %s bump-stop contact probability %.1f%% exceeds %.1f%%: the linear model does not hold; run the time-domain check",
+				m.Case, CornerNames[i], 100*m.BumpStopProbability[i], 100*threshold))
+		}
+	}
+	return out
+}
+
+// Result is the evaluation of one setup over all road cases.
+type Result struct {
+	Setup Setup
+	Cases []CaseMetrics
+}

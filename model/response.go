@@ -1,0 +1,317 @@
+package model
+
+import (
+	"fmt"
+	"math"
+)
+
+// Outputs computed from the response, indices into an output vector.
+const (
+	outTyre      = 0  // dynamic tyre load, corners 0..3 (N)
+	outTravel    = 4  // suspension travel at the wheel, corners 0..3 (m)
+	outWheelVel  = 8  // suspension velocity at the wheel, corners 0..3 (m/s)
+	outRide      = 12 // ride height relative to the road, front, rear (m)
+	outPitch     = 14 // pitch relative to the road (rad)
+	outRoll      = 15 // roll relative to the road (rad)
+	outHeaveAcc  = 16 // heave acceleration of the sprung CG (m/s²)
+	nOut         = 17
+	nVelocityOut = 4
+)
+
+// channel is an independent part of the response: a reduced system in
+// coordinates y with x = P y (the whole system with P = I for an asymmetric
+// car; the in-phase and anti-phase halves for a symmetric one), driven by
+// uncorrelated unit-PSD sources whose input vectors the case gives.
+type channel struct {
+	n    int                 // reduced size
+	p    [nDOF][nDOF]float64 // x = P y, columns 0..n-1 used
+	m    [nDOF]float64       // reduced mass matrix (diagonal in both bases used)
+	k    [nDOF][nDOF]float64 // Pᵀ K P
+	c    [nDOF][nDOF]float64 // Pᵀ C P
+	bk   [nDOF][nIn]float64  // Pᵀ Bk
+	bc   [nDOF][nIn]float64  // Pᵀ Bc
+	kind int                 // sourceInPhase, sourceAntiPhase or sourceGeneral
+}
+
+const (
+	sourceInPhase = iota
+	sourceAntiPhase
+	sourceGeneral
+)
+
+// project builds the channel Pᵀ(·)P of a full system for the basis p.
+func project(s *system, n int, p *[nDOF][nDOF]float64, kind int) channel {
+	ch := channel{n: n, p: *p, kind: kind}
+	for a := 0; a < n; a++ {
+		for b := 0; b < n; b++ {
+			var kk, cc, mm float64
+			for i := 0; i < nDOF; i++ {
+				if p[i][a] == 0 {
+					continue
+				}
+				mm += p[i][a] * s.m[i] * p[i][b]
+				for j := 0; j < nDOF; j++ {
+					kk += p[i][a] * s.k[i][j] * p[j][b]
+					cc += p[i][a] * s.c[i][j] * p[j][b]
+				}
+			}
+			ch.k[a][b], ch.c[a][b] = kk, cc
+			if a == b {
+				ch.m[a] = mm
+			}
+		}
+		for q := 0; q < nIn; q++ {
+			var bk, bc float64
+			for i := 0; i < nDOF; i++ {
+				bk += p[i][a] * s.bk[i][q]
+				bc += p[i][a] * s.bc[i][q]
+			}
+			ch.bk[a][q], ch.bc[a][q] = bk, bc
+		}
+	}
+	return ch
+}
+
+// Bases of the symmetric split: in-phase y = [z, θ, u_f, u_r] with
+// zu_FL = zu_FR = u_f, zu_RL = zu_RR = u_r; anti-phase y = [φ, a_f, a_r]
+// with zu_FL = -zu_FR = a_f, zu_RL = -zu_RR = a_r. Both bases are
+// M-orthogonal, so the projected mass matrices stay diagonal.
+var (
+	basisInPhase = [nDOF][nDOF]float64{
+		{1, 0, 0, 0}, {0, 1, 0, 0}, {0, 0, 0, 0},
+		{0, 0, 1, 0}, {0, 0, 1, 0}, {0, 0, 0, 1}, {0, 0, 0, 1},
+	}
+	basisAntiPhase = [nDOF][nDOF]float64{
+		{0, 0, 0}, {0, 0, 0}, {1, 0, 0},
+		{0, 1, 0}, {0, -1, 0}, {0, 0, 1}, {0, 0, -1},
+	}
+	basisFull = func() (p [nDOF][nDOF]float64) {
+		for i := range p {
+			p[i][i] = 1
+		}
+		return
+	}()
+)
+
+// channels fills dst with the independent channels of a damped system
+// and returns how many there are.
+func channels(dst *[2]channel, s *system, symmetric bool) int {
+	if symmetric {
+		dst[0] = project(s, 4, &basisInPhase, sourceInPhase)
+		dst[1] = project(s, 3, &basisAntiPhase, sourceAntiPhase)
+		return 2
+	}
+	dst[0] = project(s, nDOF, &basisFull, sourceGeneral)
+	return 1
+}
+
+// caseGrid is what a road case contributes at each grid frequency.
+type caseGrid struct {
+	// Filter of the front and rear tyres' enveloping times the wheelbase
+	// delay for the rear: gf = G_f, gr = G_r·exp(-iωτ).
+	gf, gr []complex128
+	// Symmetric car: amplitudes sqrt(S_pf), sqrt(S_qf) of the in-phase
+	// (w_L+w_R)/2 and anti-phase (w_L-w_R)/2 front inputs (m/sqrt(Hz)).
+	ampIn, ampAnti []float64
+	// General car: Cholesky factor of the left/right spectral matrix,
+	// [[l11, 0], [l21, l22]] (m/sqrt(Hz)).
+	l11, l21, l22 []float64
+}
+
+// sourceInputs writes the input vectors w (4 tyres) of a channel's sources
+// at grid point k and returns how many there are.
+func (cg *caseGrid) sourceInputs(kind, k int, w *[maxRHS][nIn]complex128) int {
+	gf, gr := cg.gf[k], cg.gr[k]
+	switch kind {
+	case sourceInPhase:
+		a := complex(cg.ampIn[k], 0)
+		w[0] = [nIn]complex128{gf * a, gf * a, gr * a, gr * a}
+		return 1
+	case sourceAntiPhase:
+		a := complex(cg.ampAnti[k], 0)
+		w[0] = [nIn]complex128{gf * a, -gf * a, gr * a, -gr * a}
+		return 1
+	default:
+		l11, l21, l22 := complex(cg.l11[k], 0), complex(cg.l21[k], 0), complex(cg.l22[k], 0)
+		w[0] = [nIn]complex128{gf * l11, gf * l21, gr * l11, gr * l21}
+		w[1] = [nIn]complex128{0, gf * l22, 0, gr * l22}
+		return 2
+	}
+}
+
+// outputGeometry holds what turns (x, w) into outputs.
+type outputGeometry struct {
+	d            [nIn][nDOF]float64 // travel rows
+	kt, ct       [4]float64
+	a, b, tf, tr float64
+}
+
+// responseSpectra computes, for every grid point, the output PSDs summed
+// over channels and sources, and accumulates the weighted integrals into
+// acc (grid part only) and the band integrals into band (see
+// Grid.bandWeights). With velOnly only the wheel-velocity outputs are computed. psd,
+// when not nil, receives the PSD of every output at every point
+// (len(psd) = nOut·points). It allocates nothing.
+func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wts []float64, bw *[4][]float64,
+	velOnly bool, acc *[nOut]float64, band *[4][nOut]float64, psd []float64) bool {
+	*acc = [nOut]float64{}
+	*band = [4][nOut]float64{}
+	var a [nDOF][nDOF]complex128
+	var rhs [nDOF][maxRHS]complex128
+	var w [maxRHS][nIn]complex128
+	var out [nOut]float64
+	for k, om := range omega {
+		out = [nOut]float64{}
+		jw := complex(0, om)
+		for ci := range chs {
+			ch := &chs[ci]
+			n := ch.n
+			for r := 0; r < n; r++ {
+				for c := 0; c < n; c++ {
+					a[r][c] = complex(ch.k[r][c], om*ch.c[r][c])
+				}
+				a[r][r] -= complex(om*om*ch.m[r], 0)
+			}
+			ns := cg.sourceInputs(ch.kind, k, &w)
+			for r := 0; r < n; r++ {
+				for j := 0; j < ns; j++ {
+					var s complex128
+					for q := 0; q < nIn; q++ {
+						if w[j][q] != 0 {
+							s += complex(ch.bk[r][q], om*ch.bc[r][q]) * w[j][q]
+						}
+					}
+					rhs[r][j] = s
+				}
+			}
+			if !solveComplex(n, ns, &a, &rhs) {
+				return false
+			}
+			for j := 0; j < ns; j++ {
+				var x [nDOF]complex128
+				for i := 0; i < nDOF; i++ {
+					var s complex128
+					for r := 0; r < n; r++ {
+						if ch.p[i][r] != 0 {
+							s += complex(ch.p[i][r], 0) * rhs[r][j]
+						}
+					}
+					x[i] = s
+				}
+				geo.accumulate(&out, &x, &w[j], jw, om, velOnly)
+			}
+		}
+		wk := wts[k]
+		for o := range out {
+			acc[o] += wk * out[o]
+		}
+		for b := range bw {
+			if wb := bw[b][k]; wb != 0 {
+				for o := range out {
+					band[b][o] += wb * out[o]
+				}
+			}
+		}
+		if psd != nil {
+			copy(psd[k*nOut:(k+1)*nOut], out[:])
+		}
+	}
+	return true
+}
+
+// accumulate adds one source's output PSD contributions |y|² at one
+// frequency (jw = iω).
+func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *[nIn]complex128, jw complex128, om float64, velOnly bool) {
+	for i := 0; i < 4; i++ {
+		d := &g.d[i]
+		s := x[dofWheel+i] + complex(d[0], 0)*x[0] + complex(d[1], 0)*x[1] + complex(d[2], 0)*x[2]
+		out[outWheelVel+i] += om * om * abs2(s)
+		if velOnly {
+			continue
+		}
+		out[outTravel+i] += abs2(s)
+		defl := w[i] - x[dofWheel+i]
+		out[outTyre+i] += abs2(complex(g.kt[i], om*g.ct[i]) * defl)
+	}
+	if velOnly {
+		return
+	}
+	wf := (w[0] + w[1]) / 2
+	wr := (w[2] + w[3]) / 2
+	out[outRide] += abs2(x[0] + complex(g.a, 0)*x[1] - wf)
+	out[outRide+1] += abs2(x[0] - complex(g.b, 0)*x[1] - wr)
+	out[outPitch] += abs2(x[1] - (wf-wr)/complex(g.a+g.b, 0))
+	out[outRoll] += abs2(x[2] - ((w[0]-w[1])/complex(g.tf, 0)+(w[2]-w[3])/complex(g.tr, 0))/2)
+	out[outHeaveAcc] += om * om * om * om * abs2(x[0])
+	_ = jw
+}
+
+// variances completes the grid integrals with the analytic tails.
+func variances(acc *[nOut]float64, band *[4][nOut]float64, f []float64, velOnly bool) ([nOut]float64, error) {
+	var v [nOut]float64
+	for o := 0; o < nOut; o++ {
+		if velOnly && (o < outWheelVel || o >= outWheelVel+nVelocityOut) {
+			continue
+		}
+		lo, okLo := tail(band[0][o], band[1][o])
+		hi, okHi := tail(band[3][o], band[2][o])
+		if !okLo {
+			return v, fmt.Errorf("the spectrum of %s does not fall off below %g Hz: its variance is not finite (lower grid.min_hz)", outputNames[o], f[0])
+		}
+		if !okHi {
+			return v, fmt.Errorf("the spectrum of %s does not fall off above %g Hz: its variance is not finite (raise grid.max_hz, or set a tyre envelope length)", outputNames[o], f[len(f)-1])
+		}
+		v[o] = acc[o] + lo + hi
+	}
+	return v, nil
+}
+
+// outputNames label the outputs in error messages.
+var outputNames = [nOut]string{
+	"FL tyre load", "FR tyre load", "RL tyre load", "RR tyre load",
+	"FL travel", "FR travel", "RL travel", "RR travel",
+	"FL wheel velocity", "FR wheel velocity", "RL wheel velocity", "RR wheel velocity",
+	"front ride height", "rear ride height", "pitch", "roll", "heave acceleration",
+}
+
+// newCaseGrid tabulates a road case on the grid for a vehicle.
+func newCaseGrid(v *Vehicle, rc *RoadCase, f []float64, symmetric bool) *caseGrid {
+	n := len(f)
+	cg := &caseGrid{gf: make([]complex128, n), gr: make([]complex128, n)}
+	if symmetric {
+		cg.ampIn, cg.ampAnti = make([]float64, n), make([]float64, n)
+	} else {
+		cg.l11, cg.l21, cg.l22 = make([]float64, n), make([]float64, n), make([]float64, n)
+	}
+	tau := v.Wheelbase() / rc.Speed
+	track := (v.TrackFront + v.TrackRear) / 2
+	lf, lr := v.Corners[FL].TyreEnvelopeLength, v.Corners[RL].TyreEnvelopeLength
+	for k, fk := range f {
+		nk := fk / rc.Speed
+		om := 2 * math.Pi * fk
+		cg.gf[k] = envelope(nk, lf)
+		cg.gr[k] = envelope(nk, lr) * complex(math.Cos(om*tau), -math.Sin(om*tau))
+		sl, sr := rc.SpatialPSD(nk)
+		sl, sr = sl/rc.Speed, sr/rc.Speed
+		gam := rc.CoherenceAt(nk, track)
+		slr := gam * math.Sqrt(sl*sr)
+		if symmetric {
+			cg.ampIn[k] = math.Sqrt(math.Max(0, (sl+sr+2*slr)/4))
+			cg.ampAnti[k] = math.Sqrt(math.Max(0, (sl+sr-2*slr)/4))
+		} else {
+			l11 := math.Sqrt(sl)
+			l21 := slr / l11
+			cg.l11[k], cg.l21[k] = l11, l21
+			cg.l22[k] = math.Sqrt(math.Max(0, sr-l21*l21))
+		}
+	}
+	return cg
+}
+
+// envelope is the tyre enveloping filter G(n) = 1/(1 + i n ℓ) (ℓ = 0: 1).
+func envelope(n, l float64) complex128 {
+	if l == 0 {
+		return 1
+	}
+	return 1 / complex(1, n*l)
+}

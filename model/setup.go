@@ -1,0 +1,104 @@
+package model
+
+import "fmt"
+
+// AxleDamping is the damper setting of one axle (both sides alike).
+//
+// The force-velocity law at the damper is piecewise linear in the damper
+// velocity v (bump positive): slope c below the knee velocity, slope
+// factor·c above it, separately in bump and rebound. The low-speed slopes
+// follow from the damping ratios at the wheel (see the package doc):
+// c_wheel = ζ·c_crit and c_damper = c_wheel/MR².
+type AxleDamping struct {
+	BumpRatio    float64 // ζ_bump: bump low-speed slope over critical (-)
+	ReboundRatio float64 // ζ_rebound: rebound low-speed slope over critical (-)
+
+	// KneeBump and KneeRebound are the knee velocities at the damper
+	// (m/s); 0 means no knee: the low-speed slope holds at every velocity.
+	KneeBump    float64
+	KneeRebound float64
+
+	// HighSpeedBump and HighSpeedRebound are the high-speed slope over the
+	// low-speed slope (-), used above the knee; 1 is a linear damper, < 1
+	// digressive. 0 means 1.
+	HighSpeedBump    float64
+	HighSpeedRebound float64
+}
+
+// Setup is the damper setting of the car.
+type Setup struct {
+	Axles [2]AxleDamping // front, rear
+}
+
+func factorOr1(r float64) float64 {
+	if r == 0 {
+		return 1
+	}
+	return r
+}
+
+// Validate checks the setup and names every bad field.
+func (s *Setup) Validate() error {
+	var p problems
+	for ax, a := range s.Axles {
+		f := AxleNames[ax] + "."
+		p.positive(f+"bump_ratio", a.BumpRatio)
+		p.positive(f+"rebound_ratio", a.ReboundRatio)
+		p.nonNegative(f+"knee_bump_m_per_s", a.KneeBump)
+		p.nonNegative(f+"knee_rebound_m_per_s", a.KneeRebound)
+		p.nonNegative(f+"high_speed_bump", a.HighSpeedBump)
+		p.nonNegative(f+"high_speed_rebound", a.HighSpeedRebound)
+		for _, r := range []struct {
+			name string
+			v    float64
+		}{{"high_speed_bump", a.HighSpeedBump}, {"high_speed_rebound", a.HighSpeedRebound}} {
+			if r.v > 10 {
+				p.add(f+r.name, "must be at most 10 (a high-speed slope 10x the low-speed one), got %g", r.v)
+			}
+		}
+	}
+	return p.err()
+}
+
+// wheelDamper is one corner's damper referred to the wheel.
+type wheelDamper struct {
+	cb, cr float64 // low-speed slopes at the wheel (N s/m)
+	vb, vr float64 // knee velocities at the wheel (m/s), 0 = none
+	rb, rr float64 // high-speed factors
+}
+
+// wheelDampers converts the setup to per-corner dampers at the wheel.
+func (v *Vehicle) wheelDampers(s *Setup) [4]wheelDamper {
+	cc := v.CriticalDamping()
+	var out [4]wheelDamper
+	for i := range out {
+		a := s.Axles[i/2]
+		mr := v.Corners[i].DamperMotionRatio
+		out[i] = wheelDamper{
+			cb: a.BumpRatio * cc[i], cr: a.ReboundRatio * cc[i],
+			vb: a.KneeBump / mr, vr: a.KneeRebound / mr,
+			rb: factorOr1(a.HighSpeedBump), rr: factorOr1(a.HighSpeedRebound),
+		}
+	}
+	return out
+}
+
+// force is the damper force at the wheel for wheel velocity v (bump > 0).
+func (d wheelDamper) force(v float64) float64 {
+	if v >= 0 {
+		return pieceForce(v, d.cb, d.vb, d.rb)
+	}
+	return -pieceForce(-v, d.cr, d.vr, d.rr)
+}
+
+// pieceForce is c·v below the knee vk and c·(vk + r(v - vk)) above it.
+func pieceForce(v, c, vk, r float64) float64 {
+	if vk <= 0 || v <= vk {
+		return c * v
+	}
+	return c * (vk + r*(v-vk))
+}
+
+func (a AxleDamping) String() string {
+	return fmt.Sprintf("bump %.3f rebound %.3f", a.BumpRatio, a.ReboundRatio)
+}

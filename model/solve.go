@@ -1,0 +1,62 @@
+package model
+
+import (
+	"math"
+)
+
+// maxRHS is the most right-hand sides solveComplex takes at once.
+const maxRHS = 2
+
+// solveComplex solves the n×n complex system a·x = b in place by Gaussian
+// elimination with partial pivoting (Golub & Van Loan, "Matrix
+// Computations", 4th ed., alg. 3.4.1), for nr right-hand sides; b holds the
+// solutions on return and a is destroyed. It allocates nothing. It reports
+// false when a pivot is zero (a singular dynamic stiffness, which a damped
+// stable system never has).
+func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex128) bool {
+	for col := 0; col < n; col++ {
+		p, best := col, cabs1(a[col][col])
+		for r := col + 1; r < n; r++ {
+			if v := cabs1(a[r][col]); v > best {
+				p, best = r, v
+			}
+		}
+		if best == 0 {
+			return false
+		}
+		if p != col {
+			a[p], a[col] = a[col], a[p]
+			b[p], b[col] = b[col], b[p]
+		}
+		inv := 1 / a[col][col]
+		for r := col + 1; r < n; r++ {
+			f := a[r][col] * inv
+			if f == 0 {
+				continue
+			}
+			for c := col + 1; c < n; c++ {
+				a[r][c] -= f * a[col][c]
+			}
+			for j := 0; j < nr; j++ {
+				b[r][j] -= f * b[col][j]
+			}
+		}
+	}
+	for col := n - 1; col >= 0; col-- {
+		inv := 1 / a[col][col]
+		for j := 0; j < nr; j++ {
+			s := b[col][j]
+			for c := col + 1; c < n; c++ {
+				s -= a[col][c] * b[c][j]
+			}
+			b[col][j] = s * inv
+		}
+	}
+	return true
+}
+
+// cabs1 is |re| + |im|, a cheap pivot size.
+func cabs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) }
+
+// abs2 is |z|².
+func abs2(z complex128) float64 { return real(z)*real(z) + imag(z)*imag(z) }

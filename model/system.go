@@ -1,0 +1,153 @@
+package model
+
+import (
+	"fmt"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Degrees of freedom and their indices in the state vector.
+const (
+	dofHeave = 0
+	dofPitch = 1
+	dofRoll  = 2
+	dofWheel = 3 // wheel i is dofWheel+i
+	nDOF     = 7
+	nIn      = 4
+)
+
+// system holds the real matrices of M ẍ + C ẋ + K x = Bk w + Bc ẇ.
+//
+// With s = D x the suspension travel (D_i = [-1, -x_i, -y_i, e_i]) and
+// E x the wheel displacements:
+//
+//	K  = Dᵀ Ks D + Eᵀ Kt E - Σ_axles k_aero Tᵀ T
+//	C  = Dᵀ Cs D + Eᵀ Ct E
+//	Bk = Eᵀ Kt - Σ_axles k_aero Tᵀ [½ ½] (on that axle's inputs)
+//	Bc = Eᵀ Ct
+//
+// where Ks is diagonal in the wheel rates plus each axle's bar coupling
+// (k_bar/2)[[1,-1],[-1,1]], Cs = diag(c_i) the dampers at the wheel, Kt
+// and Ct the tyres, and T = [1, x_axle, 0] the body point of an axle. The
+// aero term is the force k_aero·h on the body at the axle, h its ride
+// height above the road (downforce grows as h falls).
+type system struct {
+	m      [nDOF]float64 // diagonal mass matrix
+	k, c   [nDOF][nDOF]float64
+	bk, bc [nDOF][nIn]float64
+	// d holds the rows D_i (travel of corner i from the state).
+	d [nIn][nDOF]float64
+}
+
+// newSystem builds the system at the given speed with no suspension
+// damping; setDamping adds it.
+func newSystem(v *Vehicle, speed float64) *system {
+	s := &system{}
+	s.m[dofHeave] = v.SprungMass
+	s.m[dofPitch] = v.PitchInertia
+	s.m[dofRoll] = v.RollInertia
+	for i := 0; i < 4; i++ {
+		s.m[dofWheel+i] = v.Corners[i].UnsprungMass
+		x, y := v.cornerPosition(i)
+		s.d[i] = [nDOF]float64{-1, -x, -y}
+		s.d[i][dofWheel+i] = 1
+	}
+	// Suspension stiffness matrix in travel coordinates.
+	var ks [4][4]float64
+	for i := 0; i < 4; i++ {
+		ks[i][i] = v.Corners[i].WheelRateOf()
+	}
+	for ax := 0; ax < 2; ax++ {
+		kb := v.AntiRoll[ax].WheelRateOf() / 2
+		l, r := 2*ax, 2*ax+1
+		ks[l][l] += kb
+		ks[r][r] += kb
+		ks[l][r] -= kb
+		ks[r][l] -= kb
+	}
+	for a := 0; a < nDOF; a++ {
+		for b := 0; b < nDOF; b++ {
+			sum := 0.0
+			for i := 0; i < 4; i++ {
+				for j := 0; j < 4; j++ {
+					sum += s.d[i][a] * ks[i][j] * s.d[j][b]
+				}
+			}
+			s.k[a][b] = sum
+		}
+	}
+	for i := 0; i < 4; i++ {
+		kt, ct := v.Corners[i].TyreRate, v.Corners[i].TyreDamping
+		s.k[dofWheel+i][dofWheel+i] += kt
+		s.c[dofWheel+i][dofWheel+i] += ct
+		s.bk[dofWheel+i][i] = kt
+		s.bc[dofWheel+i][i] = ct
+	}
+	_, ka := v.AeroAt(speed)
+	xAxle := [2]float64{v.CGToFrontAxle, -v.CGToRearAxle}
+	for ax := 0; ax < 2; ax++ {
+		t := [3]float64{1, xAxle[ax], 0}
+		for a := 0; a < 3; a++ {
+			for b := 0; b < 3; b++ {
+				s.k[a][b] -= ka[ax] * t[a] * t[b]
+			}
+			s.bk[a][2*ax] -= ka[ax] * t[a] / 2
+			s.bk[a][2*ax+1] -= ka[ax] * t[a] / 2
+		}
+	}
+	return s
+}
+
+// withDamping returns a copy of s with suspension dampers c (N s/m at the
+// wheel, per corner) added to the tyre damping: C = Dᵀ diag(c) D + Eᵀ Ct E.
+func (s *system) withDamping(c [4]float64) system {
+	out := *s
+	for a := 0; a < nDOF; a++ {
+		for b := a; b < nDOF; b++ {
+			sum := 0.0
+			for i := 0; i < 4; i++ {
+				sum += s.d[i][a] * c[i] * s.d[i][b]
+			}
+			out.c[a][b] += sum
+			if b != a {
+				out.c[b][a] += sum
+			}
+		}
+	}
+	return out
+}
+
+// checkStable returns an error wrapping ErrUnstable when K is not positive
+// definite (an aero stiffness larger than the suspension can hold).
+func (s *system) checkStable(caseName string) error {
+	k := mat.NewSymDense(nDOF, nil)
+	for a := 0; a < nDOF; a++ {
+		for b := a; b < nDOF; b++ {
+			k.SetSym(a, b, s.k[a][b])
+		}
+	}
+	var ch mat.Cholesky
+	if !ch.Factorize(k) {
+		return fmt.Errorf("%w: road case %q: the stiffness matrix is not positive definite (aero stiffness too large for the springs at this speed)", ErrUnstable, caseName)
+	}
+	return nil
+}
+
+// staticSolve solves K x = f for the mean displacement under mean forces.
+func (s *system) staticSolve(f [nDOF]float64) ([nDOF]float64, error) {
+	k := mat.NewDense(nDOF, nDOF, nil)
+	for a := 0; a < nDOF; a++ {
+		for b := 0; b < nDOF; b++ {
+			k.Set(a, b, s.k[a][b])
+		}
+	}
+	var x mat.VecDense
+	if err := x.SolveVec(k, mat.NewVecDense(nDOF, f[:])); err != nil {
+		return [nDOF]float64{}, fmt.Errorf("%w: static solve: %v", ErrUnstable, err)
+	}
+	var out [nDOF]float64
+	for a := range out {
+		out[a] = x.AtVec(a)
+	}
+	return out, nil
+}

@@ -1,0 +1,284 @@
+package model
+
+import (
+	"fmt"
+	"math"
+)
+
+// Gravity is standard gravity (m/s²), ISO 80000-3.
+const Gravity = 9.80665
+
+// Corner indices.
+const (
+	FL = iota // front left
+	FR        // front right
+	RL        // rear left
+	RR        // rear right
+)
+
+// Axle indices.
+const (
+	Front = 0
+	Rear  = 1
+)
+
+// CornerNames are short labels of the corners, in index order.
+var CornerNames = [4]string{"FL", "FR", "RL", "RR"}
+
+// AxleNames are labels of the axles, in index order.
+var AxleNames = [2]string{"front", "rear"}
+
+// Vehicle is the linear four-post description of a car. All fields are SI.
+type Vehicle struct {
+	Name string
+
+	SprungMass   float64 // sprung mass (kg)
+	PitchInertia float64 // sprung pitch inertia about the sprung CG (kg m²)
+	RollInertia  float64 // sprung roll inertia about the sprung CG (kg m²)
+
+	CGToFrontAxle float64 // a: sprung CG to front axle, horizontal (m)
+	CGToRearAxle  float64 // b: sprung CG to rear axle, horizontal (m)
+	CGLateral     float64 // lateral offset of the sprung CG from the centre line, left positive (m)
+
+	TrackFront float64 // front track (m)
+	TrackRear  float64 // rear track (m)
+
+	Corners  [4]Corner      // FL, FR, RL, RR
+	AntiRoll [2]AntiRollBar // front, rear
+	Aero     Aero           // optional linear aero
+}
+
+// Corner is one wheel station.
+type Corner struct {
+	// SpringRate is the spring's rate at the spring (N/m); with
+	// SpringMotionRatio it gives the wheel rate k·MR². Leave 0 and set
+	// WheelRate to give the wheel rate directly.
+	SpringRate        float64
+	SpringMotionRatio float64 // spring travel per wheel travel (-), in (0, 2]
+	WheelRate         float64 // wheel rate (N/m), used when SpringRate is 0
+
+	DamperMotionRatio float64 // damper travel per wheel travel (-), in (0, 2]
+
+	UnsprungMass float64 // unsprung mass (kg)
+	TyreRate     float64 // tyre vertical stiffness (N/m)
+	TyreDamping  float64 // tyre vertical damping (N s/m), small; needs TyreEnvelopeLength > 0
+
+	// TyreEnvelopeLength (m) sets a first-order low-pass on the road the
+	// tyre follows, G(n) = 1/(1 + i n ℓ) with n in cycles/m: the contact
+	// patch does not follow wavelengths much shorter than ℓ. 0 turns it
+	// off. It keeps the tyre-force variance finite when TyreDamping > 0 (on
+	// an ISO 8608 road with waviness 2 the term ct·ẇ has a white spectrum).
+	TyreEnvelopeLength float64
+
+	// BumpStopGap is the wheel travel in bump from static ride height to
+	// bump-stop contact (m); 0 means not given, and no contact probability
+	// is reported for the corner.
+	BumpStopGap float64
+
+	// SprungLoad optionally gives the static sprung load on this corner (N)
+	// for a car whose corner weights do not follow from the CG position; 0
+	// derives it from the CG. Give all four or none.
+	SprungLoad float64
+}
+
+// AntiRollBar is one axle's bar. Its wheel rate k_bar is what each wheel of
+// the axle sees in addition to its own wheel rate when the two wheels move
+// in opposite directions (pure roll); in parallel travel the bar does
+// nothing. The energy stored is ½ (k_bar/2)(s_L - s_R)².
+type AntiRollBar struct {
+	WheelRate float64 // bar wheel rate (N/m); used when BarRate is 0
+	// BarRate is the bar's rate at its link (N/m) and MotionRatio the link
+	// travel per wheel travel, giving k_bar = BarRate·MotionRatio².
+	BarRate     float64
+	MotionRatio float64
+}
+
+// Aero is linear aerodynamics per axle, given at a reference speed and
+// scaled by (V/V_ref)² to each road case's speed.
+type Aero struct {
+	ReferenceSpeed float64    // speed at which the figures hold (m/s); 0 = no aero
+	Downforce      [2]float64 // downforce per axle at the reference speed (N), front, rear
+	// Stiffness is the increase of an axle's downforce per metre of drop
+	// of that axle's ride height (N/m) at the reference speed; positive for
+	// a car that gains downforce nearer the ground. It acts as a negative
+	// spring on the body.
+	Stiffness [2]float64
+}
+
+// WheelRateOf returns the corner's wheel rate (N/m).
+func (c Corner) WheelRateOf() float64 {
+	if c.SpringRate != 0 {
+		return c.SpringRate * c.SpringMotionRatio * c.SpringMotionRatio
+	}
+	return c.WheelRate
+}
+
+// WheelRateOf returns the bar's wheel rate (N/m).
+func (b AntiRollBar) WheelRateOf() float64 {
+	if b.BarRate != 0 {
+		return b.BarRate * b.MotionRatio * b.MotionRatio
+	}
+	return b.WheelRate
+}
+
+// Wheelbase is a + b (m).
+func (v *Vehicle) Wheelbase() float64 { return v.CGToFrontAxle + v.CGToRearAxle }
+
+// cornerPosition returns (x_i, y_i) of corner i relative to the sprung CG (m).
+func (v *Vehicle) cornerPosition(i int) (x, y float64) {
+	switch i {
+	case FL:
+		return v.CGToFrontAxle, v.TrackFront/2 - v.CGLateral
+	case FR:
+		return v.CGToFrontAxle, -v.TrackFront/2 - v.CGLateral
+	case RL:
+		return -v.CGToRearAxle, v.TrackRear/2 - v.CGLateral
+	default:
+		return -v.CGToRearAxle, -v.TrackRear/2 - v.CGLateral
+	}
+}
+
+// SprungCornerLoads returns the static sprung load per corner (N): given
+// per corner, or from the CG by statics (lever rule along and across).
+func (v *Vehicle) SprungCornerLoads() [4]float64 {
+	var out [4]float64
+	if v.Corners[0].SprungLoad != 0 {
+		for i := range out {
+			out[i] = v.Corners[i].SprungLoad
+		}
+		return out
+	}
+	w := v.SprungMass * Gravity
+	l := v.Wheelbase()
+	axle := [2]float64{w * v.CGToRearAxle / l, w * v.CGToFrontAxle / l}
+	track := [2]float64{v.TrackFront, v.TrackRear}
+	for ax := 0; ax < 2; ax++ {
+		left := (track[ax]/2 + v.CGLateral) / track[ax]
+		out[2*ax] = axle[ax] * left
+		out[2*ax+1] = axle[ax] * (1 - left)
+	}
+	return out
+}
+
+// AeroAt returns downforce and aero stiffness per axle at speed (N, N/m).
+func (v *Vehicle) AeroAt(speed float64) (downforce, stiffness [2]float64) {
+	if v.Aero.ReferenceSpeed <= 0 {
+		return
+	}
+	s := (speed / v.Aero.ReferenceSpeed) * (speed / v.Aero.ReferenceSpeed)
+	for ax := 0; ax < 2; ax++ {
+		downforce[ax] = v.Aero.Downforce[ax] * s
+		stiffness[ax] = v.Aero.Stiffness[ax] * s
+	}
+	return
+}
+
+// StaticTyreLoads returns the static vertical load on each tyre at speed
+// (N): sprung corner load, unsprung weight and half the axle's downforce.
+func (v *Vehicle) StaticTyreLoads(speed float64) [4]float64 {
+	out := v.SprungCornerLoads()
+	df, _ := v.AeroAt(speed)
+	for i := range out {
+		out[i] += v.Corners[i].UnsprungMass*Gravity + df[i/2]/2
+	}
+	return out
+}
+
+// CriticalDamping returns c_crit = 2 sqrt(k_w m_s) at the wheel per corner
+// (N s/m), m_s the sprung corner mass; the tyre is ignored (common
+// practice, no single source).
+func (v *Vehicle) CriticalDamping() [4]float64 {
+	loads := v.SprungCornerLoads()
+	var out [4]float64
+	for i := range out {
+		out[i] = 2 * math.Sqrt(v.Corners[i].WheelRateOf()*loads[i]/Gravity)
+	}
+	return out
+}
+
+// symmetric reports whether the car is left-right symmetric, so that the
+// in-phase and anti-phase subsystems decouple.
+func (v *Vehicle) symmetric() bool {
+	if v.CGLateral != 0 {
+		return false
+	}
+	loads := v.SprungCornerLoads()
+	for ax := 0; ax < 2; ax++ {
+		l, r := v.Corners[2*ax], v.Corners[2*ax+1]
+		if l.WheelRateOf() != r.WheelRateOf() || l.DamperMotionRatio != r.DamperMotionRatio ||
+			l.UnsprungMass != r.UnsprungMass || l.TyreRate != r.TyreRate ||
+			l.TyreDamping != r.TyreDamping || l.TyreEnvelopeLength != r.TyreEnvelopeLength ||
+			loads[2*ax] != loads[2*ax+1] {
+			return false
+		}
+	}
+	return true
+}
+
+// Validate checks the vehicle and returns a *ValidationError naming every
+// bad field, or nil.
+func (v *Vehicle) Validate() error {
+	var p problems
+	p.positive("sprung_mass_kg", v.SprungMass)
+	p.positive("pitch_inertia_kg_m2", v.PitchInertia)
+	p.positive("roll_inertia_kg_m2", v.RollInertia)
+	p.positive("cg_to_front_axle_m", v.CGToFrontAxle)
+	p.positive("cg_to_rear_axle_m", v.CGToRearAxle)
+	p.positive("track_front_m", v.TrackFront)
+	p.positive("track_rear_m", v.TrackRear)
+	if p.finite("cg_lateral_m", v.CGLateral) {
+		minTrack := math.Min(v.TrackFront, v.TrackRear)
+		if minTrack > 0 && math.Abs(v.CGLateral) >= minTrack/2 {
+			p.add("cg_lateral_m", "must lie between the wheels (|offset| < %g m), got %g", minTrack/2, v.CGLateral)
+		}
+	}
+	given := 0
+	for i, c := range v.Corners {
+		f := fmt.Sprintf("corners[%d].", i)
+		if c.SpringRate != 0 || c.WheelRate == 0 {
+			p.positive(f+"spring_rate_n_per_m", c.SpringRate)
+			p.within(f+"spring_motion_ratio", c.SpringMotionRatio, 0, 2)
+		} else {
+			p.positive(f+"wheel_rate_n_per_m", c.WheelRate)
+		}
+		p.within(f+"damper_motion_ratio", c.DamperMotionRatio, 0, 2)
+		p.positive(f+"unsprung_mass_kg", c.UnsprungMass)
+		p.positive(f+"tyre_rate_n_per_m", c.TyreRate)
+		p.nonNegative(f+"tyre_damping_n_s_per_m", c.TyreDamping)
+		p.nonNegative(f+"tyre_envelope_length_m", c.TyreEnvelopeLength)
+		if c.TyreDamping > 0 && c.TyreEnvelopeLength == 0 {
+			p.add(f+"tyre_envelope_length_m", "must be > 0 when tyre damping is set: without it the tyre-force variance on an ISO 8608 road is infinite")
+		}
+		p.nonNegative(f+"bump_stop_gap_m", c.BumpStopGap)
+		p.nonNegative(f+"sprung_load_n", c.SprungLoad)
+		if c.SprungLoad > 0 {
+			given++
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		if v.Corners[2*ax].TyreEnvelopeLength != v.Corners[2*ax+1].TyreEnvelopeLength {
+			p.add(fmt.Sprintf("corners[%d].tyre_envelope_length_m", 2*ax+1), "must equal the left tyre's on the same axle (%g m)", v.Corners[2*ax].TyreEnvelopeLength)
+		}
+	}
+	if given != 0 && given != 4 {
+		p.add("corners.sprung_load_n", "give the sprung load of all four corners or of none, got %d of 4", given)
+	}
+	for ax, b := range v.AntiRoll {
+		f := fmt.Sprintf("anti_roll[%d].", ax)
+		if b.BarRate != 0 {
+			p.positive(f+"bar_rate_n_per_m", b.BarRate)
+			p.within(f+"motion_ratio", b.MotionRatio, 0, 2)
+		} else {
+			p.nonNegative(f+"wheel_rate_n_per_m", b.WheelRate)
+		}
+	}
+	p.nonNegative("aero.reference_speed_m_per_s", v.Aero.ReferenceSpeed)
+	for ax := 0; ax < 2; ax++ {
+		p.nonNegative(fmt.Sprintf("aero.downforce_n[%d]", ax), v.Aero.Downforce[ax])
+		p.finite(fmt.Sprintf("aero.stiffness_n_per_m[%d]", ax), v.Aero.Stiffness[ax])
+		if v.Aero.ReferenceSpeed == 0 && (v.Aero.Downforce[ax] != 0 || v.Aero.Stiffness[ax] != 0) {
+			p.add("aero.reference_speed_m_per_s", "must be > 0 when downforce or aero stiffness is given")
+		}
+	}
+	return p.err()
+}
