@@ -1,0 +1,196 @@
+package jobs
+
+import (
+	"context"
+	"time"
+)
+
+// Store is the engine's storage of specs, progress, checkpoints and fronts,
+// in tables of the project's own (prefix dampfront_) beside River's. Its
+// methods follow River's driver style: (ctx, *XxxParams) (..., error),
+// nouns first. Two implementations exist, SQLite and PostgreSQL; both pass
+// the one conformance suite (store_conformance_test.go).
+//
+// Errors: a bad parameter gives an *InvalidArgumentError naming the field,
+// an unknown job ID a *NotFoundError, and a transition that the job's state
+// forbids a *PreconditionError.
+type Store interface {
+	// JobInsert stores a new job in state queued.
+	JobInsert(ctx context.Context, params *JobInsertParams) (*Job, error)
+	// JobGetByID returns a job with its progress.
+	JobGetByID(ctx context.Context, params *JobGetByIDParams) (*Job, error)
+	// JobList pages through jobs, newest first, filtered by state and labels.
+	JobList(ctx context.Context, params *JobListParams) (*JobListResult, error)
+	// JobCancelRequest flags a job for cancellation. A queued job that no
+	// slice has started is cancelled at once; a running one is finished by
+	// its slice. A terminal job gives a *PreconditionError.
+	JobCancelRequest(ctx context.Context, params *JobCancelRequestParams) (*Job, error)
+	// JobStart hands a job to a slice run: it must be queued or running and
+	// not terminal; the run's lease replaces any earlier one, the state
+	// becomes running and the slice count goes up by one.
+	JobStart(ctx context.Context, params *JobStartParams) (*Job, error)
+	// JobFinish moves a job held by the given lease to a terminal state.
+	JobFinish(ctx context.Context, params *JobFinishParams) (*Job, error)
+
+	// CheckpointSave stores the optimiser state and its progress in one
+	// transaction, if the lease still holds the job.
+	CheckpointSave(ctx context.Context, params *CheckpointSaveParams) error
+	// CheckpointGet returns the last checkpoint; a job without one gives a
+	// *NotFoundError with Resource "checkpoint".
+	CheckpointGet(ctx context.Context, params *CheckpointGetParams) (*Checkpoint, error)
+
+	// ProgressPut stores progress between checkpoints, if the lease holds.
+	ProgressPut(ctx context.Context, params *ProgressPutParams) error
+	// ProgressGet returns a job's progress.
+	ProgressGet(ctx context.Context, params *ProgressGetParams) (*Progress, error)
+
+	// FrontPut replaces a job's stored front, if the lease holds.
+	FrontPut(ctx context.Context, params *FrontPutParams) error
+	// FrontGet pages through a job's stored front by index.
+	FrontGet(ctx context.Context, params *FrontGetParams) (*FrontGetResult, error)
+
+	// Tx runs fn with a Store bound to one transaction, committed when fn
+	// returns nil. Inside fn, use only the Store passed to it.
+	Tx(ctx context.Context, fn func(ctx context.Context, tx Store) error) error
+}
+
+// Job is one stored job.
+type Job struct {
+	ID     string
+	State  State
+	Labels map[string]string
+	Seed   int64  // the optimiser's seed, stored with the result
+	Spec   []byte // opaque; the API layer's serialised job spec
+
+	CreatedAt  time.Time
+	StartedAt  time.Time // zero until the first slice runs
+	FinishedAt time.Time // zero until terminal
+
+	Error           string // why the job failed; empty otherwise
+	Partial         bool   // the stored front is not that of a finished run (cancelled or failed)
+	CancelRequested bool
+	Slices          int // slice runs started so far, retries and resumes included
+
+	Progress Progress
+
+	lease string
+}
+
+// JobInsertParams are the inputs of Store.JobInsert.
+type JobInsertParams struct {
+	ID     string // required; unique
+	Spec   []byte // required
+	Labels map[string]string
+	Seed   int64
+	Now    time.Time // required; creation time
+}
+
+// JobGetByIDParams are the inputs of Store.JobGetByID.
+type JobGetByIDParams struct {
+	ID string
+}
+
+// JobListParams are the inputs of Store.JobList.
+type JobListParams struct {
+	// PageSize is the maximum number of jobs returned: 0 means
+	// DefaultPageSize, larger than MaxPageSize means MaxPageSize (AIP-158).
+	PageSize int
+	// PageToken is NextPageToken from the previous page, which must have
+	// been listed with the same filter.
+	PageToken string
+	// States keeps jobs in any of these states; empty keeps all.
+	States []State
+	// Labels keeps jobs carrying every one of these key=value pairs.
+	Labels map[string]string
+}
+
+// Page sizes of JobList and FrontGet.
+const (
+	DefaultPageSize = 50
+	MaxPageSize     = 1000
+)
+
+// JobListResult is one page of jobs.
+type JobListResult struct {
+	Jobs          []*Job
+	NextPageToken string // empty on the last page
+}
+
+// JobCancelRequestParams are the inputs of Store.JobCancelRequest.
+type JobCancelRequestParams struct {
+	ID  string
+	Now time.Time
+}
+
+// JobStartParams are the inputs of Store.JobStart.
+type JobStartParams struct {
+	ID    string
+	Lease string // identifies this slice run; required
+	Now   time.Time
+}
+
+// JobFinishParams are the inputs of Store.JobFinish.
+type JobFinishParams struct {
+	ID      string
+	Lease   string
+	State   State // succeeded, failed or cancelled
+	Error   string
+	Partial bool
+	Now     time.Time
+}
+
+// CheckpointSaveParams are the inputs of Store.CheckpointSave.
+type CheckpointSaveParams struct {
+	JobID    string
+	Lease    string
+	Data     []byte
+	Progress Progress
+	Now      time.Time
+}
+
+// Checkpoint is the stored optimiser state of a job.
+type Checkpoint struct {
+	JobID      string
+	Data       []byte
+	Generation int
+	SavedAt    time.Time
+}
+
+// CheckpointGetParams are the inputs of Store.CheckpointGet.
+type CheckpointGetParams struct {
+	JobID string
+}
+
+// ProgressPutParams are the inputs of Store.ProgressPut.
+type ProgressPutParams struct {
+	JobID    string
+	Lease    string
+	Progress Progress
+	Now      time.Time
+}
+
+// ProgressGetParams are the inputs of Store.ProgressGet.
+type ProgressGetParams struct {
+	JobID string
+}
+
+// FrontPutParams are the inputs of Store.FrontPut.
+type FrontPutParams struct {
+	JobID     string
+	Lease     string
+	Solutions []Solution // Index must be 0, 1, 2, ... in order
+}
+
+// FrontGetParams are the inputs of Store.FrontGet.
+type FrontGetParams struct {
+	JobID     string
+	PageSize  int // as JobListParams.PageSize
+	PageToken string
+}
+
+// FrontGetResult is one page of a front.
+type FrontGetResult struct {
+	Solutions     []Solution
+	Total         int // size of the whole stored front
+	NextPageToken string
+}

@@ -1,0 +1,66 @@
+package jobs
+
+import (
+	"context"
+	"time"
+)
+
+// Study is one resumable optimisation run, as the engine drives it. The
+// optimiser package provides the real one; the engine knows only this.
+//
+// A Study is used by one goroutine at a time.
+type Study interface {
+	// Step runs at most maxGenerations generations and reports whether the
+	// study has reached its end. When ctx is done before that, Step returns
+	// early, with ctx's error or nil, and the study is left at the boundary
+	// of its last completed generation: a generation in progress is
+	// discarded, never half applied, so Checkpoint stays exact.
+	Step(ctx context.Context, maxGenerations int) (done bool, err error)
+
+	// Checkpoint returns the full state. Opening the same spec with it must
+	// give a study that continues bit for bit as this one would, and equal
+	// states must give equal bytes.
+	Checkpoint() ([]byte, error)
+
+	// Progress returns the figures the watch stream shows.
+	Progress() Progress
+
+	// Front returns the current non-dominated set.
+	Front() ([]Solution, error)
+}
+
+// StudyOpener builds a Study from a stored spec and a checkpoint, which is
+// nil for a job that has not run yet. An error from Open is final: the job
+// fails with its message.
+type StudyOpener interface {
+	Open(spec []byte, checkpoint []byte) (Study, error)
+}
+
+// SpecValidator may be implemented by a StudyOpener; Submit then rejects a
+// spec that it refuses. The error should be an *InvalidArgumentError naming
+// the spec's fields.
+type SpecValidator interface {
+	ValidateSpec(spec []byte) error
+}
+
+// Progress is how far a job has got.
+type Progress struct {
+	Generation  int       // generations completed
+	Generations int       // generations planned in total
+	Evaluations int64     // objective evaluations so far
+	Hypervolume float64   // of the current front against the job's reference point (dimensionless, objective units multiplied)
+	Best        []float64 // best value reached per objective, in the objectives' own units
+	UpdatedAt   time.Time // when the engine stored it (zero if never)
+}
+
+// Solution is one member of a stored front. The engine keeps the floats
+// bit for bit; Detail is opaque (metrics, damper curves) and is serialised
+// by the API layer.
+type Solution struct {
+	Index      int       // position in the front, from 0
+	Genes      []float64 // decision variables, in the spec's order
+	Objectives []float64 // minimised objective values
+	Violations []float64 // constraint violations, 0 where satisfied
+	Feasible   bool
+	Detail     []byte
+}
