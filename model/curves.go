@@ -1,0 +1,94 @@
+package model
+
+import "fmt"
+
+// Adjustment is the adjuster range a damper must cover, as damping ratios
+// at the wheel (-): the softest and stiffest clicks in bump and rebound.
+// A zero range leaves that band out.
+type Adjustment struct {
+	BumpSoftest, BumpStiffest       float64
+	ReboundSoftest, ReboundStiffest float64
+}
+
+// DamperCurve is the force-velocity table of one corner's damper at the
+// component (damper velocity and force, not wheel), velocity positive in
+// bump, force positive resisting bump (rebound forces are negative).
+type DamperCurve struct {
+	Corner   int       // FL, FR, RL, RR
+	Velocity []float64 // damper velocity (m/s), from -vmax to +vmax
+	Force    []float64 // baseline force (N)
+	Softest  []float64 // force at the softest setting (N); nil without an adjustment
+	Stiffest []float64 // force at the stiffest setting (N); nil without an adjustment
+
+	BumpSlope, ReboundSlope float64 // low-speed slopes at the damper (N s/m)
+	KneeBump, KneeRebound   float64 // knee velocities at the damper (m/s), 0 = none
+	HighSpeedBump           float64 // high-speed factor in bump (-)
+	HighSpeedRebound        float64 // high-speed factor in rebound (-)
+}
+
+// DamperCurves returns the curves at the component of every corner for a
+// setup: low-speed slopes c_damper = ζ c_crit / MR² (c_crit at the wheel,
+// tyre ignored), knees and high-speed factors as set, tabulated at
+// points velocities from -vmax to vmax (m/s, damper). The adjustment
+// band, when given, scales the low-speed slopes to its damping ratios and
+// keeps the knees and factors.
+func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int) ([]DamperCurve, error) {
+	var p problems
+	p.merge("vehicle.", v.Validate())
+	p.merge("setup.", s.Validate())
+	p.positive("max_velocity_m_per_s", vmax)
+	if points < 3 || points > 10001 {
+		p.add("points", "must be in [3, 10001], got %d", points)
+	}
+	for name, r := range map[string]float64{"bump_softest": adj.BumpSoftest, "bump_stiffest": adj.BumpStiffest,
+		"rebound_softest": adj.ReboundSoftest, "rebound_stiffest": adj.ReboundStiffest} {
+		p.nonNegative("adjustment."+name, r)
+	}
+	if adj.BumpStiffest < adj.BumpSoftest {
+		p.add("adjustment.bump_stiffest", "must be >= bump_softest (%g), got %g", adj.BumpSoftest, adj.BumpStiffest)
+	}
+	if adj.ReboundStiffest < adj.ReboundSoftest {
+		p.add("adjustment.rebound_stiffest", "must be >= rebound_softest (%g), got %g", adj.ReboundSoftest, adj.ReboundStiffest)
+	}
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	band := adj.BumpStiffest > 0 && adj.ReboundStiffest > 0
+	cc := v.CriticalDamping()
+	out := make([]DamperCurve, 4)
+	for i := range out {
+		a := s.Axles[i/2]
+		mr2 := v.Corners[i].DamperMotionRatio * v.Corners[i].DamperMotionRatio
+		dc := DamperCurve{
+			Corner:    i,
+			BumpSlope: a.BumpRatio * cc[i] / mr2, ReboundSlope: a.ReboundRatio * cc[i] / mr2,
+			KneeBump: a.KneeBump, KneeRebound: a.KneeRebound,
+			HighSpeedBump: factorOr1(a.HighSpeedBump), HighSpeedRebound: factorOr1(a.HighSpeedRebound),
+			Velocity: make([]float64, points), Force: make([]float64, points),
+		}
+		law := func(zb, zr, vel float64) float64 {
+			d := wheelDamper{cb: zb * cc[i] / mr2, cr: zr * cc[i] / mr2, vb: dc.KneeBump, vr: dc.KneeRebound,
+				rb: dc.HighSpeedBump, rr: dc.HighSpeedRebound}
+			return d.force(vel)
+		}
+		if band {
+			dc.Softest, dc.Stiffest = make([]float64, points), make([]float64, points)
+		}
+		for k := range dc.Velocity {
+			vel := -vmax + 2*vmax*float64(k)/float64(points-1)
+			dc.Velocity[k] = vel
+			dc.Force[k] = law(a.BumpRatio, a.ReboundRatio, vel)
+			if band {
+				dc.Softest[k] = law(adj.BumpSoftest, adj.ReboundSoftest, vel)
+				dc.Stiffest[k] = law(adj.BumpStiffest, adj.ReboundStiffest, vel)
+			}
+		}
+		out[i] = dc
+	}
+	return out, nil
+}
+
+// String names the corner of a curve.
+func (c *DamperCurve) String() string {
+	return fmt.Sprintf("%s damper: bump %.0f N s/m, rebound %.0f N s/m", CornerNames[c.Corner], c.BumpSlope, c.ReboundSlope)
+}

@@ -1,0 +1,139 @@
+package model
+
+import "fmt"
+
+// Range is a closed interval [Min, Max].
+type Range struct{ Min, Max float64 }
+
+// Gene describes one searched variable.
+type Gene struct {
+	Name string  // e.g. "front_bump_ratio"
+	Min  float64 // lower bound (SI)
+	Max  float64 // upper bound (SI)
+}
+
+// DesignSpace maps the searched genes to a Setup. The four damping ratios
+// are always searched (two when Symmetric); knee velocities and
+// high-speed factors are genes only where a range is given, and otherwise
+// come from Base.
+type DesignSpace struct {
+	// Ratios bounds the damping ratios: front bump, front rebound, rear
+	// bump, rear rebound (-).
+	Ratios [4]Range
+	// Symmetric makes bump = rebound per axle: two ratio genes, bounded by
+	// the bump ranges.
+	Symmetric bool
+	// Knee, per axle, searches one knee velocity at the damper for both
+	// directions (m/s); nil keeps Base's.
+	Knee [2]*Range
+	// HighSpeed, per axle, searches one high-speed factor for both
+	// directions (-); nil keeps Base's.
+	HighSpeed [2]*Range
+	// Base gives every value that is not a gene.
+	Base Setup
+}
+
+// Validate checks the bounds and names every bad field.
+func (d *DesignSpace) Validate() error {
+	var p problems
+	names := [4]string{"front_bump", "front_rebound", "rear_bump", "rear_rebound"}
+	for i, r := range d.Ratios {
+		if d.Symmetric && i%2 == 1 {
+			continue
+		}
+		f := "ratios." + names[i]
+		p.positive(f+".min", r.Min)
+		p.positive(f+".max", r.Max)
+		if r.Max < r.Min {
+			p.add(f+".max", "must be >= min (%g), got %g", r.Min, r.Max)
+		}
+		if r.Max > 5 {
+			p.add(f+".max", "must be at most 5 times critical, got %g", r.Max)
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		if k := d.Knee[ax]; k != nil {
+			f := fmt.Sprintf("knee_m_per_s[%d]", ax)
+			p.positive(f+".min", k.Min)
+			if k.Max < k.Min {
+				p.add(f+".max", "must be >= min (%g), got %g", k.Min, k.Max)
+			}
+		}
+		if h := d.HighSpeed[ax]; h != nil {
+			f := fmt.Sprintf("high_speed[%d]", ax)
+			p.positive(f+".min", h.Min)
+			if h.Max < h.Min || h.Max > 10 {
+				p.add(f+".max", "must be in [min, 10], got %g", h.Max)
+			}
+		}
+	}
+	return p.err()
+}
+
+// Genes lists the searched variables in gene order.
+func (d *DesignSpace) Genes() []Gene {
+	var g []Gene
+	if d.Symmetric {
+		g = append(g, Gene{"front_ratio", d.Ratios[0].Min, d.Ratios[0].Max}, Gene{"rear_ratio", d.Ratios[2].Min, d.Ratios[2].Max})
+	} else {
+		g = append(g,
+			Gene{"front_bump_ratio", d.Ratios[0].Min, d.Ratios[0].Max},
+			Gene{"front_rebound_ratio", d.Ratios[1].Min, d.Ratios[1].Max},
+			Gene{"rear_bump_ratio", d.Ratios[2].Min, d.Ratios[2].Max},
+			Gene{"rear_rebound_ratio", d.Ratios[3].Min, d.Ratios[3].Max})
+	}
+	for ax := 0; ax < 2; ax++ {
+		if k := d.Knee[ax]; k != nil {
+			g = append(g, Gene{AxleNames[ax] + "_knee_m_per_s", k.Min, k.Max})
+		}
+		if h := d.HighSpeed[ax]; h != nil {
+			g = append(g, Gene{AxleNames[ax] + "_high_speed", h.Min, h.Max})
+		}
+	}
+	return g
+}
+
+// Decode turns genes (in Genes order) into a setup.
+func (d *DesignSpace) Decode(x []float64) Setup {
+	s := d.Base
+	i := 0
+	if d.Symmetric {
+		s.Axles[Front].BumpRatio, s.Axles[Front].ReboundRatio = x[0], x[0]
+		s.Axles[Rear].BumpRatio, s.Axles[Rear].ReboundRatio = x[1], x[1]
+		i = 2
+	} else {
+		s.Axles[Front].BumpRatio, s.Axles[Front].ReboundRatio = x[0], x[1]
+		s.Axles[Rear].BumpRatio, s.Axles[Rear].ReboundRatio = x[2], x[3]
+		i = 4
+	}
+	for ax := 0; ax < 2; ax++ {
+		if d.Knee[ax] != nil {
+			s.Axles[ax].KneeBump, s.Axles[ax].KneeRebound = x[i], x[i]
+			i++
+		}
+		if d.HighSpeed[ax] != nil {
+			s.Axles[ax].HighSpeedBump, s.Axles[ax].HighSpeedRebound = x[i], x[i]
+			i++
+		}
+	}
+	return s
+}
+
+// Encode is the inverse of Decode for the genes a setup determines.
+func (d *DesignSpace) Encode(s Setup) []float64 {
+	var x []float64
+	if d.Symmetric {
+		x = append(x, s.Axles[Front].BumpRatio, s.Axles[Rear].BumpRatio)
+	} else {
+		x = append(x, s.Axles[Front].BumpRatio, s.Axles[Front].ReboundRatio, s.Axles[Rear].BumpRatio, s.Axles[Rear].ReboundRatio)
+	}
+	for ax := 0; ax < 2; ax++ {
+		if d.Knee[ax] != nil {
+			x = append(x, s.Axles[ax].KneeBump)
+		}
+		if d.HighSpeed[ax] != nil {
+			x = append(x, s.Axles[ax].HighSpeedBump)
+		}
+	}
+	return x
+}

@@ -1,0 +1,290 @@
+package model
+
+import (
+	"fmt"
+	"math"
+	"sync"
+)
+
+// ObjectiveKind names a per-case ride metric to minimise.
+type ObjectiveKind int
+
+const (
+	// ObjectiveGrip is the RMS over the four corners of the normalised
+	// tyre-load standard deviation, sqrt(mean_i (σ_Fi/F_static,i)²) (-).
+	ObjectiveGrip ObjectiveKind = iota + 1
+	// ObjectivePlatform is what the aero sees, both axles together:
+	// sqrt(½ Σ_axles (σ_h² + (shift - target)²)) (m). The static offset
+	// is needed: under statistical linearisation with equal knees and
+	// high-speed factors every RMS metric depends on bump and rebound only
+	// through c_eq, and only the mean shift tells the split apart.
+	ObjectivePlatform
+	// ObjectiveFrontPlatform is sqrt(σ_h² + (shift - target)²) at the front (m).
+	ObjectiveFrontPlatform
+	// ObjectiveRearPlatform is the same at the rear (m).
+	ObjectiveRearPlatform
+	// ObjectivePitch is the pitch standard deviation relative to the road (rad).
+	ObjectivePitch
+	// ObjectiveRoll is the roll standard deviation relative to the road (rad).
+	ObjectiveRoll
+	// ObjectiveHeaveAccel is the heave acceleration standard deviation (m/s²).
+	ObjectiveHeaveAccel
+)
+
+var objectiveNames = map[ObjectiveKind]string{
+	ObjectiveGrip: "grip", ObjectivePlatform: "platform", ObjectiveFrontPlatform: "front_platform",
+	ObjectiveRearPlatform: "rear_platform", ObjectivePitch: "pitch", ObjectiveRoll: "roll",
+	ObjectiveHeaveAccel: "heave_accel",
+}
+
+func (k ObjectiveKind) String() string {
+	if n, ok := objectiveNames[k]; ok {
+		return n
+	}
+	return fmt.Sprintf("objective(%d)", int(k))
+}
+
+// Unit returns the SI unit of the objective's value.
+func (k ObjectiveKind) Unit() string {
+	switch k {
+	case ObjectiveGrip:
+		return "-"
+	case ObjectivePitch, ObjectiveRoll:
+		return "rad"
+	case ObjectiveHeaveAccel:
+		return "m/s^2"
+	default:
+		return "m"
+	}
+}
+
+// Aggregation combines a metric over road cases with their weights w_c.
+type Aggregation int
+
+const (
+	// AggregateMeanSquare is sqrt(Σ w_c g_c² / Σ w_c).
+	AggregateMeanSquare Aggregation = iota
+	// AggregateWorst is max_c g_c.
+	AggregateWorst
+)
+
+// Objective is one minimised quantity.
+type Objective struct {
+	Kind        ObjectiveKind
+	Aggregation Aggregation
+	// TargetShift is the wanted mean ride-height change per axle (m) for
+	// the platform objectives; zero by default.
+	TargetShift [2]float64
+}
+
+// ConstraintKind names a limit on the metrics.
+type ConstraintKind int
+
+const (
+	// ConstraintLiftOff limits every tyre's lift-off probability (-).
+	ConstraintLiftOff ConstraintKind = iota + 1
+	// ConstraintBumpStop limits every corner's bump-stop contact probability (-).
+	ConstraintBumpStop
+	// ConstraintTravel limits every corner's travel standard deviation (m).
+	ConstraintTravel
+	// ConstraintJacking limits |mean ride-height shift| at each axle (m).
+	ConstraintJacking
+)
+
+var constraintNames = map[ConstraintKind]string{
+	ConstraintLiftOff: "lift_off", ConstraintBumpStop: "bump_stop", ConstraintTravel: "travel", ConstraintJacking: "jacking",
+}
+
+func (k ConstraintKind) String() string {
+	if n, ok := constraintNames[k]; ok {
+		return n
+	}
+	return fmt.Sprintf("constraint(%d)", int(k))
+}
+
+// Constraint is an upper limit on a metric, over every case and corner.
+type Constraint struct {
+	Kind  ConstraintKind
+	Limit float64 // > 0, SI
+}
+
+// caseObjective is the per-case value of an objective.
+func caseObjective(o *Objective, m *CaseMetrics) float64 {
+	plat := func(ax int) float64 {
+		d := m.RideHeightShift[ax] - o.TargetShift[ax]
+		return m.RideHeightSD[ax]*m.RideHeightSD[ax] + d*d
+	}
+	switch o.Kind {
+	case ObjectiveGrip:
+		s := 0.0
+		for _, r := range m.TyreLoadSDRel {
+			s += r * r
+		}
+		return math.Sqrt(s / 4)
+	case ObjectivePlatform:
+		return math.Sqrt((plat(Front) + plat(Rear)) / 2)
+	case ObjectiveFrontPlatform:
+		return math.Sqrt(plat(Front))
+	case ObjectiveRearPlatform:
+		return math.Sqrt(plat(Rear))
+	case ObjectivePitch:
+		return m.PitchSD
+	case ObjectiveRoll:
+		return m.RollSD
+	case ObjectiveHeaveAccel:
+		return m.HeaveAccelSD
+	}
+	return math.NaN()
+}
+
+// caseConstraint is the per-case value a constraint limits.
+func caseConstraint(c *Constraint, m *CaseMetrics) float64 {
+	worst := 0.0
+	for i := 0; i < 4; i++ {
+		switch c.Kind {
+		case ConstraintLiftOff:
+			worst = math.Max(worst, m.LiftOffProbability[i])
+		case ConstraintBumpStop:
+			worst = math.Max(worst, m.BumpStopProbability[i])
+		case ConstraintTravel:
+			worst = math.Max(worst, m.TravelSD[i])
+		case ConstraintJacking:
+			if i < 2 {
+				worst = math.Max(worst, math.Abs(m.RideHeightShift[i]))
+			}
+		}
+	}
+	return worst
+}
+
+// Study is the search problem: genes to setup, setup to objectives and
+// constraint violations. It is safe for concurrent use and allocates
+// nothing per evaluation once warm.
+type Study struct {
+	eval        *Evaluator
+	design      DesignSpace
+	genes       []Gene
+	objectives  []Objective
+	constraints []Constraint
+	pool        sync.Pool
+}
+
+// NewStudy checks the design space, objectives and constraints.
+func NewStudy(e *Evaluator, d DesignSpace, objectives []Objective, constraints []Constraint) (*Study, error) {
+	var p problems
+	p.merge("design.", d.Validate())
+	if len(objectives) < 1 || len(objectives) > 3 {
+		p.add("objectives", "needs 1 to 3 objectives, got %d", len(objectives))
+	}
+	seen := map[ObjectiveKind]bool{}
+	for i, o := range objectives {
+		f := fmt.Sprintf("objectives[%d]", i)
+		if _, ok := objectiveNames[o.Kind]; !ok {
+			p.add(f+".kind", "unknown objective %d", int(o.Kind))
+		}
+		if seen[o.Kind] {
+			p.add(f+".kind", "objective %s given twice", o.Kind)
+		}
+		seen[o.Kind] = true
+		if o.Aggregation != AggregateMeanSquare && o.Aggregation != AggregateWorst {
+			p.add(f+".aggregation", "unknown aggregation %d", int(o.Aggregation))
+		}
+		p.finite(f+".target_shift_m[0]", o.TargetShift[0])
+		p.finite(f+".target_shift_m[1]", o.TargetShift[1])
+	}
+	for i, c := range constraints {
+		f := fmt.Sprintf("constraints[%d]", i)
+		if _, ok := constraintNames[c.Kind]; !ok {
+			p.add(f+".kind", "unknown constraint %d", int(c.Kind))
+		}
+		p.positive(f+".limit", c.Limit)
+	}
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	s := &Study{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
+	s.pool.New = func() any { return &Result{Cases: make([]CaseMetrics, e.Cases())} }
+	return s, nil
+}
+
+// Genes lists the searched variables.
+func (s *Study) Genes() []Gene { return s.genes }
+
+// Design returns the design space.
+func (s *Study) Design() *DesignSpace { return &s.design }
+
+// Evaluator returns the study's evaluator.
+func (s *Study) Evaluator() *Evaluator { return s.eval }
+
+// Objectives returns the objectives.
+func (s *Study) Objectives() []Objective { return s.objectives }
+
+// Constraints returns the constraints.
+func (s *Study) Constraints() []Constraint { return s.constraints }
+
+// NumObjectives is len(Objectives()).
+func (s *Study) NumObjectives() int { return len(s.objectives) }
+
+// NumConstraints is len(Constraints()).
+func (s *Study) NumConstraints() int { return len(s.constraints) }
+
+// EvaluateGenes evaluates the setup decoded from x and writes the
+// objective values to obj and the constraint violations to viol
+// (max(0, value/limit - 1), 0 when satisfied).
+func (s *Study) EvaluateGenes(x, obj, viol []float64) error {
+	r := s.pool.Get().(*Result)
+	defer s.pool.Put(r)
+	if err := s.eval.Evaluate(s.design.Decode(x), r); err != nil {
+		return err
+	}
+	s.Score(r, obj, viol)
+	return nil
+}
+
+// Score computes objectives and violations of an evaluated result.
+func (s *Study) Score(r *Result, obj, viol []float64) {
+	for j := range s.objectives {
+		obj[j] = Aggregate(s.eval, s.objectives[j].Aggregation, r, func(m *CaseMetrics) float64 {
+			return caseObjective(&s.objectives[j], m)
+		})
+	}
+	for j := range s.constraints {
+		c := &s.constraints[j]
+		worst := 0.0
+		for i := range r.Cases {
+			worst = math.Max(worst, caseConstraint(c, &r.Cases[i]))
+		}
+		viol[j] = math.Max(0, worst/c.Limit-1)
+	}
+}
+
+// Aggregate combines a per-case value over the evaluator's road cases.
+func Aggregate(e *Evaluator, a Aggregation, r *Result, g func(*CaseMetrics) float64) float64 {
+	if a == AggregateWorst {
+		worst := math.Inf(-1)
+		for i := range r.Cases {
+			worst = math.Max(worst, g(&r.Cases[i]))
+		}
+		return worst
+	}
+	var sum, wsum float64
+	for i := range r.Cases {
+		w := e.cases[i].rc.weight()
+		v := g(&r.Cases[i])
+		sum += w * v * v
+		wsum += w
+	}
+	return math.Sqrt(sum / wsum)
+}
+
+// ObjectiveValue returns one objective's value for an evaluated result.
+func (s *Study) ObjectiveValue(j int, r *Result) float64 {
+	return Aggregate(s.eval, s.objectives[j].Aggregation, r, func(m *CaseMetrics) float64 {
+		return caseObjective(&s.objectives[j], m)
+	})
+}
+
+// DefaultObjectives are grip and platform, mean square over the cases.
+func DefaultObjectives() []Objective {
+	return []Objective{{Kind: ObjectiveGrip}, {Kind: ObjectivePlatform}}
+}
