@@ -147,8 +147,10 @@ func (e *Evaluator) WarnThreshold() float64 { return e.opt.WarnThreshold }
 // Evaluate computes the metrics of a setup on every road case into dst
 // (dst.Cases is reused when it has room).
 func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
-	if err := s.Validate(); err != nil {
-		return err
+	if !s.ok() {
+		if err := s.Validate(); err != nil {
+			return err
+		}
 	}
 	dst.Setup = s
 	if cap(dst.Cases) < len(e.cases) {

@@ -48,13 +48,11 @@ func (s *Setup) Validate() error {
 		p.nonNegative(f+"knee_rebound_m_per_s", a.KneeRebound)
 		p.nonNegative(f+"high_speed_bump", a.HighSpeedBump)
 		p.nonNegative(f+"high_speed_rebound", a.HighSpeedRebound)
-		for _, r := range []struct {
-			name string
-			v    float64
-		}{{"high_speed_bump", a.HighSpeedBump}, {"high_speed_rebound", a.HighSpeedRebound}} {
-			if r.v > 10 {
-				p.add(f+r.name, "must be at most 10 (a high-speed slope 10x the low-speed one), got %g", r.v)
-			}
+		if a.HighSpeedBump > 10 {
+			p.add(f+"high_speed_bump", "must be at most 10 (a high-speed slope 10x the low-speed one), got %g", a.HighSpeedBump)
+		}
+		if a.HighSpeedRebound > 10 {
+			p.add(f+"high_speed_rebound", "must be at most 10 (a high-speed slope 10x the low-speed one), got %g", a.HighSpeedRebound)
 		}
 	}
 	return p.err()
@@ -101,4 +99,24 @@ func pieceForce(v, c, vk, r float64) float64 {
 
 func (a AxleDamping) String() string {
 	return fmt.Sprintf("bump %.3f rebound %.3f", a.BumpRatio, a.ReboundRatio)
+}
+
+// ok is a cheap allocation-free form of Validate for the hot path.
+func (s *Setup) ok() bool {
+	for _, a := range s.Axles {
+		for _, v := range [...]float64{a.BumpRatio, a.ReboundRatio} {
+			if !(v > 0) || v > 1e300 {
+				return false
+			}
+		}
+		for _, v := range [...]float64{a.KneeBump, a.KneeRebound, a.HighSpeedBump, a.HighSpeedRebound} {
+			if !(v >= 0) || v > 1e300 {
+				return false
+			}
+		}
+		if a.HighSpeedBump > 10 || a.HighSpeedRebound > 10 {
+			return false
+		}
+	}
+	return true
 }
