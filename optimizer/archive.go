@@ -1,0 +1,81 @@
+package optimizer
+
+import (
+	"math"
+	"slices"
+)
+
+// archive holds every feasible point seen that no other feasible point seen
+// dominates, one per objective vector: of points with equal objectives it
+// keeps the one with the lexicographically smallest genes, so that the
+// archive does not fill with copies that differ only in genes no objective
+// depends on. Its content depends only on the set of points offered, not
+// on their order, and it is kept sorted by (objectives, genes)
+// lexicographically.
+//
+// Solutions in the archive share their slices with immutable genomes or
+// own them; they are never modified.
+type archive struct {
+	sols []Solution
+}
+
+// solutionOrder sorts by objectives, then genes.
+func solutionOrder(a, b Solution) int {
+	if c := lexicographic(a.Objectives, b.Objectives); c != 0 {
+		return c
+	}
+	return lexicographic(a.Genes, b.Genes)
+}
+
+// add offers s to the archive and reports whether it entered. Infeasible
+// solutions never enter. Cost O(|archive| M).
+func (a *archive) add(s Solution) bool {
+	if !s.Feasible {
+		return false
+	}
+	for i, t := range a.sols {
+		if Dominates(t.Objectives, s.Objectives) {
+			return false
+		}
+		if slices.Equal(t.Objectives, s.Objectives) {
+			if lexicographic(s.Genes, t.Genes) >= 0 {
+				return false
+			}
+			// Same objectives, smaller genes: s takes t's place, and as t
+			// dominated nothing in the archive neither does s.
+			a.sols[i] = s
+			return true
+		}
+	}
+	a.sols = slices.DeleteFunc(a.sols, func(t Solution) bool { return Dominates(s.Objectives, t.Objectives) })
+	i, _ := slices.BinarySearchFunc(a.sols, s, solutionOrder)
+	a.sols = slices.Insert(a.sols, i, s)
+	return true
+}
+
+// points returns the objective vectors of the archive (shared slices).
+func (a *archive) points() [][]float64 {
+	pts := make([][]float64, len(a.sols))
+	for i, s := range a.sols {
+		pts[i] = s.Objectives
+	}
+	return pts
+}
+
+// best returns the lowest value of each of the m objectives in the
+// archive, nil when it is empty.
+func (a *archive) best(m int) []float64 {
+	if len(a.sols) == 0 {
+		return nil
+	}
+	b := make([]float64, m)
+	for j := range b {
+		b[j] = math.Inf(1)
+	}
+	for _, s := range a.sols {
+		for j, f := range s.Objectives {
+			b[j] = min(b[j], f)
+		}
+	}
+	return b
+}
