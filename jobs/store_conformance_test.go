@@ -62,13 +62,16 @@ func runStoreConformance(t *testing.T, newStore func(t testing.TB) Store) {
 		t.Parallel()
 		s := newStore(t)
 		calls := map[string]func() error{
-			"JobGetByID":       func() error { _, err := s.JobGetByID(ctx, &JobGetByIDParams{ID: "nope"}); return err },
-			"JobCancelRequest": func() error { _, err := s.JobCancelRequest(ctx, &JobCancelRequestParams{ID: "nope", Now: t0}); return err },
-			"JobStart":         func() error { _, err := s.JobStart(ctx, &JobStartParams{ID: "nope", Lease: "l", Now: t0}); return err },
-			"CheckpointGet":    func() error { _, err := s.CheckpointGet(ctx, &CheckpointGetParams{JobID: "nope"}); return err },
-			"ProgressGet":      func() error { _, err := s.ProgressGet(ctx, &ProgressGetParams{JobID: "nope"}); return err },
-			"FrontGet":         func() error { _, err := s.FrontGet(ctx, &FrontGetParams{JobID: "nope"}); return err },
-			"FrontPut":         func() error { return s.FrontPut(ctx, &FrontPutParams{JobID: "nope", Lease: "l"}) },
+			"JobGetByID": func() error { _, err := s.JobGetByID(ctx, &JobGetByIDParams{ID: "nope"}); return err },
+			"JobCancelRequest": func() error {
+				_, err := s.JobCancelRequest(ctx, &JobCancelRequestParams{ID: "nope", Now: t0})
+				return err
+			},
+			"JobStart":      func() error { _, err := s.JobStart(ctx, &JobStartParams{ID: "nope", Lease: "l", Now: t0}); return err },
+			"CheckpointGet": func() error { _, err := s.CheckpointGet(ctx, &CheckpointGetParams{JobID: "nope"}); return err },
+			"ProgressGet":   func() error { _, err := s.ProgressGet(ctx, &ProgressGetParams{JobID: "nope"}); return err },
+			"FrontGet":      func() error { _, err := s.FrontGet(ctx, &FrontGetParams{JobID: "nope"}); return err },
+			"FrontPut":      func() error { return s.FrontPut(ctx, &FrontPutParams{JobID: "nope", Lease: "l"}) },
 		}
 		for name, call := range calls {
 			err := call()

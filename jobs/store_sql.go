@@ -34,12 +34,12 @@ const (
 
 func scanJob(r rowScanner) (*Job, error) {
 	var (
-		j                                             Job
-		state, labels                                 string
-		created, started, finished, updated           int64
-		partial, cancelRequested, slices              int64
-		generation, generations, evaluations          int64
-		best                                          []byte
+		j                                    Job
+		state, labels                        string
+		created, started, finished, updated  int64
+		partial, cancelRequested, slices     int64
+		generation, generations, evaluations int64
+		best                                 []byte
 	)
 	if err := r.Scan(&j.ID, &state, &labels, &j.Seed, &j.Spec, &created, &started, &finished, &updated,
 		&j.Error, &partial, &cancelRequested, &j.lease, &slices,

@@ -1,0 +1,212 @@
+package jobs
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"sync"
+
+	"github.com/jackc/pgx/v5"
+)
+
+// Engine runs jobs: it stores them, queues their slices on River and, when
+// Config.Workers > 0, works them. All methods are safe for concurrent use.
+type Engine struct {
+	cfg    Config
+	opener StudyOpener
+	store  *sqlStore
+	q      queue
+
+	stopping chan struct{} // closed when Stop begins
+	stopOnce sync.Once
+}
+
+// queue is the River side of the engine, generic over the driver's
+// transaction type and hidden behind this interface.
+type queue interface {
+	backend() string
+	clientID() string
+	// insert stores a job and queues its first slice in one transaction.
+	insert(ctx context.Context, p *JobInsertParams) (*Job, error)
+	start(ctx context.Context) error
+	stop(ctx context.Context) error
+	// releaseOrphans makes slices that dead processes of this node left
+	// running available again and returns how many.
+	releaseOrphans(ctx context.Context) (int, error)
+	// interrupt cancels this process's running slice of job id, if any.
+	interrupt(id string, cause error)
+	close() error
+}
+
+// Open connects to cfg.DatabaseURL, migrates its tables (River's and the
+// project's) and returns an engine that is not yet working; Start begins
+// that. opener builds studies from stored specs and checkpoints.
+func Open(ctx context.Context, cfg Config, opener StudyOpener) (*Engine, error) {
+	cfg, err := cfg.withDefaults()
+	if err != nil {
+		return nil, err
+	}
+	if opener == nil {
+		return nil, &InvalidArgumentError{Violations: []FieldError{{Field: "opener", Reason: "is required"}}}
+	}
+	backend, target, err := parseDatabaseURL(cfg.DatabaseURL)
+	if err != nil {
+		return nil, err
+	}
+	e := &Engine{cfg: cfg, opener: opener, stopping: make(chan struct{})}
+	switch backend {
+	case backendSQLite:
+		db, err := openSQLite(ctx, target)
+		if err != nil {
+			return nil, err
+		}
+		e.store = db.store
+		e.q, err = newRiverQueue[*sql.Tx](e, db)
+		if err != nil {
+			_ = db.close()
+			return nil, err
+		}
+	case backendPostgres:
+		db, err := openPostgres(ctx, target)
+		if err != nil {
+			return nil, err
+		}
+		e.store = db.store
+		e.q, err = newRiverQueue[pgx.Tx](e, db)
+		if err != nil {
+			_ = db.close()
+			return nil, err
+		}
+	}
+	return e, nil
+}
+
+// Store returns the engine's store, for the API layer's read paths and
+// for tests.
+func (e *Engine) Store() Store { return e.store }
+
+// Backend returns "sqlite" or "postgres".
+func (e *Engine) Backend() string { return e.q.backend() }
+
+// Start releases slices that dead processes of this node left running
+// (so that a restarted single-process server resumes its jobs at once,
+// without waiting for River's rescuer) and, with Workers > 0, starts
+// working. It returns how many slices it released.
+func (e *Engine) Start(ctx context.Context) (released int, err error) {
+	released, err = e.q.releaseOrphans(ctx)
+	if err != nil {
+		return 0, fmt.Errorf("jobs: release slices of dead processes: %w", err)
+	}
+	if released > 0 {
+		e.cfg.Logger.InfoContext(ctx, "jobs: released slices left running by dead processes of this node",
+			"count", released, "node", e.cfg.NodeID)
+	}
+	if e.cfg.Workers == 0 {
+		return released, nil
+	}
+	return released, e.q.start(ctx)
+}
+
+// Stop stops taking work; each running slice stops after its current
+// generation, checkpoints, queues its next slice and releases the job,
+// all within Config.StopTimeout, after which slice contexts are
+// cancelled. Stop does not close the database; Close does.
+func (e *Engine) Stop(ctx context.Context) error {
+	e.stopOnce.Do(func() { close(e.stopping) })
+	if e.cfg.Workers == 0 {
+		return nil
+	}
+	return e.q.stop(ctx)
+}
+
+// Close closes the database. Call Stop first when the engine was started.
+func (e *Engine) Close() error { return e.q.close() }
+
+// SubmitParams are the inputs of Engine.Submit.
+type SubmitParams struct {
+	Spec   []byte            // required; opaque to the engine
+	Labels map[string]string // keys: 1-63 of a-z 0-9 . _ - /
+	Seed   int64             // stored with the job and its result
+}
+
+// Submit stores a job and queues it; it returns at once.
+func (e *Engine) Submit(ctx context.Context, p *SubmitParams) (*Job, error) {
+	var v violations
+	switch {
+	case len(p.Spec) == 0:
+		v.add("spec", "is required")
+	case len(p.Spec) > e.cfg.MaxSpecBytes:
+		v.add("spec", "is %d bytes, at most %d allowed", len(p.Spec), e.cfg.MaxSpecBytes)
+	}
+	checkLabels(&v, "labels", p.Labels)
+	if err := v.err(); err != nil {
+		return nil, err
+	}
+	if sv, ok := e.opener.(SpecValidator); ok {
+		if err := sv.ValidateSpec(p.Spec); err != nil {
+			return nil, err
+		}
+	}
+	return e.q.insert(ctx, &JobInsertParams{ID: e.cfg.NewID(), Spec: p.Spec, Labels: p.Labels, Seed: p.Seed, Now: e.cfg.Now()})
+}
+
+// Get returns a job with its progress.
+func (e *Engine) Get(ctx context.Context, id string) (*Job, error) {
+	return e.store.JobGetByID(ctx, &JobGetByIDParams{ID: id})
+}
+
+// List pages through jobs, newest first.
+func (e *Engine) List(ctx context.Context, p *JobListParams) (*JobListResult, error) {
+	return e.store.JobList(ctx, p)
+}
+
+// Cancel requests cancellation. A queued job is cancelled at once; a
+// running one within about Config.CancelPollInterval, wherever its slice
+// runs, keeping its front so far (marked partial). A finished job gives a
+// *PreconditionError.
+func (e *Engine) Cancel(ctx context.Context, id string) (*Job, error) {
+	j, err := e.store.JobCancelRequest(ctx, &JobCancelRequestParams{ID: id, Now: e.cfg.Now()})
+	if err != nil {
+		return nil, err
+	}
+	e.q.interrupt(id, errCancelRequested)
+	return j, nil
+}
+
+// FrontPage is one page of a job's front.
+type FrontPage struct {
+	Job           *Job
+	Partial       bool // the job was cancelled or failed: the front is the best so far, not a finished run's
+	Solutions     []Solution
+	Total         int
+	NextPageToken string
+}
+
+// Front returns a page of the stored front of a finished job (succeeded,
+// cancelled or failed, the last two marked partial); a queued or running
+// job gives a *PreconditionError.
+func (e *Engine) Front(ctx context.Context, p *FrontGetParams) (*FrontPage, error) {
+	if p.JobID == "" {
+		return nil, &InvalidArgumentError{Violations: []FieldError{{Field: "job_id", Reason: "is required"}}}
+	}
+	j, err := e.Get(ctx, p.JobID)
+	if err != nil {
+		return nil, err
+	}
+	if !j.State.Terminal() {
+		return nil, &PreconditionError{ID: j.ID, State: j.State, Reason: "the front is available once the job has finished or been cancelled; watch the job until then"}
+	}
+	res, err := e.store.FrontGet(ctx, p)
+	if err != nil {
+		return nil, err
+	}
+	return &FrontPage{Job: j, Partial: j.Partial, Solutions: res.Solutions, Total: res.Total, NextPageToken: res.NextPageToken}, nil
+}
+
+// errors that end a slice's context, told apart with context.Cause.
+var (
+	errSliceOver       = errors.New("jobs: slice time is up")
+	errCancelRequested = errors.New("jobs: cancel requested")
+	errStopping        = errors.New("jobs: engine stopping")
+)

@@ -1,0 +1,241 @@
+package jobs
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"time"
+
+	"github.com/riverqueue/river"
+	"github.com/riverqueue/river/riverdriver"
+)
+
+// sliceWorker is River's worker for slices.
+type sliceWorker[TTx any] struct {
+	river.WorkerDefaults[sliceArgs]
+	rq *riverQueue[TTx]
+}
+
+// Timeout is the finite per-kind timeout: SliceDuration + SliceGrace.
+func (w *sliceWorker[TTx]) Timeout(*river.Job[sliceArgs]) time.Duration {
+	return w.rq.e.cfg.sliceTimeout()
+}
+
+// NextRetry retries a slice after Config.RetryDelay, not River's
+// exponential back-off: a failed slice attempt is a database hiccup, and
+// the job's progress waits for it.
+func (w *sliceWorker[TTx]) NextRetry(*river.Job[sliceArgs]) time.Time { return w.rq.retryAt() }
+
+func (w *sliceWorker[TTx]) Work(ctx context.Context, rj *river.Job[sliceArgs]) error {
+	err := w.rq.runSlice(ctx, rj)
+	if err != nil && rj.Attempt >= rj.MaxAttempts {
+		// River discards the slice after this attempt; fail the job with
+		// it rather than leave it running forever.
+		w.rq.failJob(ctx, rj, fmt.Errorf("slice %d failed %d times, last: %w", rj.Args.Slice, rj.Attempt, err))
+	}
+	return err
+}
+
+// runSlice is one slice of a job:
+//
+//  1. take the job (JobStart with a lease naming this attempt);
+//  2. open the study from the spec and the last checkpoint;
+//  3. step until the study is done, the slice time is up, a cancel is
+//     requested, or the engine stops; checkpoint every
+//     CheckpointInterval and write progress every ProgressInterval;
+//  4. in one transaction: the checkpoint and progress, the front, and
+//     then either the job's final state or the next slice, and the
+//     completion of this slice's River job.
+//
+// A returned error makes River retry the slice, which resumes from the
+// last checkpoint; nothing a study does is retried.
+func (rq *riverQueue[TTx]) runSlice(ctx context.Context, rj *river.Job[sliceArgs]) error {
+	e, st, id := rq.e, rq.db.store, rj.Args.JobID
+	job, err := st.jobGet(ctx, id)
+	switch {
+	case errors.Is(err, ErrNotFound):
+		return river.JobCancel(fmt.Errorf("slice of unknown job %q: %w", id, err))
+	case err != nil:
+		return err
+	case job.State.Terminal():
+		return nil // cancelled while queued, or a stale duplicate
+	}
+	select {
+	case <-e.stopping:
+		// Fetched while the engine stops: hand the job straight on.
+		return rq.handOver(ctx, rj, "", nil)
+	default:
+	}
+	lease := fmt.Sprintf("%s/%d/%d", rq.id, rj.ID, rj.Attempt)
+	job, err = st.JobStart(ctx, &JobStartParams{ID: id, Lease: lease, Now: e.cfg.Now()})
+	if errors.Is(err, ErrFailedPrecondition) {
+		return nil // finished meanwhile
+	}
+	if err != nil {
+		return err
+	}
+	if job.CancelRequested {
+		return rq.finish(ctx, rj, lease, StateCancelled, "", nil)
+	}
+	var checkpoint []byte
+	c, err := st.CheckpointGet(ctx, &CheckpointGetParams{JobID: id})
+	switch {
+	case err == nil:
+		checkpoint = c.Data
+	case !errors.Is(err, ErrNotFound):
+		return err
+	}
+	study, err := e.opener.Open(job.Spec, checkpoint)
+	if err != nil {
+		return rq.finish(ctx, rj, lease, StateFailed, "open study: "+err.Error(), nil)
+	}
+	return rq.drive(ctx, rj, lease, study)
+}
+
+// drive steps the study for one slice and ends it.
+func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Study) error {
+	cfg, st, id := rq.e.cfg, rq.db.store, rj.Args.JobID
+	sliceCtx, cancel := context.WithCancelCause(ctx)
+	defer cancel(nil)
+	timer := time.AfterFunc(cfg.SliceDuration, func() { cancel(errSliceOver) })
+	defer timer.Stop()
+	defer rq.track(id, cancel)()
+	go rq.pollCancel(sliceCtx, cancel, id)
+
+	lastCheckpoint, lastProgress := time.Now(), time.Now()
+	for {
+		done, err := study.Step(sliceCtx, cfg.StepGenerations)
+		if err != nil && sliceCtx.Err() == nil {
+			return rq.finish(ctx, rj, lease, StateFailed, "step: "+err.Error(), nil)
+		}
+		if done {
+			return rq.finish(ctx, rj, lease, StateSucceeded, "", study)
+		}
+		if sliceCtx.Err() != nil {
+			break
+		}
+		now := time.Now()
+		switch {
+		case cfg.CheckpointInterval > 0 && now.Sub(lastCheckpoint) >= cfg.CheckpointInterval:
+			if err := rq.db.withTx(ctx, func(_ TTx, tx *sqlStore) error { return rq.saveState(ctx, tx, id, lease, study) }); err != nil {
+				return err
+			}
+			lastCheckpoint, lastProgress = now, now
+		case now.Sub(lastProgress) >= cfg.ProgressInterval:
+			if err := st.ProgressPut(ctx, &ProgressPutParams{JobID: id, Lease: lease, Progress: study.Progress(), Now: cfg.Now()}); err != nil {
+				return err
+			}
+			lastProgress = now
+		}
+	}
+	if errors.Is(context.Cause(sliceCtx), errCancelRequested) {
+		return rq.finish(ctx, rj, lease, StateCancelled, "", study)
+	}
+	// Slice time up, engine stopping, or River's timeout: hand over.
+	return rq.handOver(ctx, rj, lease, study)
+}
+
+// pollCancel ends the slice when its job's cancel flag is set, which is
+// how a Cancel made in another process reaches it.
+func (rq *riverQueue[TTx]) pollCancel(ctx context.Context, cancel context.CancelCauseFunc, id string) {
+	t := time.NewTicker(rq.e.cfg.CancelPollInterval)
+	defer t.Stop()
+	for {
+		select {
+		case <-ctx.Done():
+			return
+		case <-t.C:
+			j, err := rq.db.store.jobGet(ctx, id)
+			if err == nil && (j.CancelRequested || j.State.Terminal()) {
+				cancel(errCancelRequested)
+				return
+			}
+		}
+	}
+}
+
+// saveState writes the study's checkpoint, progress and front.
+func (rq *riverQueue[TTx]) saveState(ctx context.Context, tx *sqlStore, id, lease string, study Study) error {
+	data, err := study.Checkpoint()
+	if err != nil {
+		return fmt.Errorf("study checkpoint: %w", err)
+	}
+	front, err := study.Front()
+	if err != nil {
+		return fmt.Errorf("study front: %w", err)
+	}
+	for i := range front {
+		front[i].Index = i
+	}
+	if err := tx.CheckpointSave(ctx, &CheckpointSaveParams{JobID: id, Lease: lease, Data: data, Progress: study.Progress(), Now: rq.e.cfg.Now()}); err != nil {
+		return err
+	}
+	return tx.FrontPut(ctx, &FrontPutParams{JobID: id, Lease: lease, Solutions: front})
+}
+
+// finalContext is for the writes that end a slice: they must happen even
+// when River has cancelled the work context (timeout, hard stop), within
+// FinalizeTimeout. The River client stays in the context's values.
+func (rq *riverQueue[TTx]) finalContext(ctx context.Context) (context.Context, context.CancelFunc) {
+	return context.WithTimeout(context.WithoutCancel(ctx), rq.e.cfg.FinalizeTimeout)
+}
+
+// handOver checkpoints (when study is not nil), queues the job's next
+// slice and completes this one, in one transaction.
+func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Study) error {
+	ctx, cancel := rq.finalContext(ctx)
+	defer cancel()
+	return rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
+		if study != nil {
+			if err := rq.saveState(ctx, st, rj.Args.JobID, lease, study); err != nil {
+				return err
+			}
+		}
+		next := sliceArgs{JobID: rj.Args.JobID, Slice: rj.Args.Slice + 1}
+		if study == nil {
+			next.Slice = rj.Args.Slice
+		}
+		if _, err := rq.client.InsertTx(ctx, tx, next, rq.insertOpts()); err != nil {
+			return err
+		}
+		_, err := river.JobCompleteTx[riverdriver.Driver[TTx]](ctx, tx, rj)
+		return err
+	})
+}
+
+// finish moves the job to a terminal state, saving the study's final
+// state and front first when study is not nil (otherwise the front of the
+// last checkpoint stays), and completes this slice, in one transaction.
+func (rq *riverQueue[TTx]) finish(ctx context.Context, rj *river.Job[sliceArgs], lease string, state State, msg string, study Study) error {
+	ctx, cancel := rq.finalContext(ctx)
+	defer cancel()
+	return rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
+		if study != nil {
+			if err := rq.saveState(ctx, st, rj.Args.JobID, lease, study); err != nil {
+				return err
+			}
+		}
+		if _, err := st.JobFinish(ctx, &JobFinishParams{ID: rj.Args.JobID, Lease: lease, State: state,
+			Error: msg, Partial: state != StateSucceeded, Now: rq.e.cfg.Now()}); err != nil {
+			return err
+		}
+		_, err := river.JobCompleteTx[riverdriver.Driver[TTx]](ctx, tx, rj)
+		return err
+	})
+}
+
+// failJob fails a job whose slice River is about to discard.
+func (rq *riverQueue[TTx]) failJob(ctx context.Context, rj *river.Job[sliceArgs], cause error) {
+	ctx, cancel := rq.finalContext(ctx)
+	defer cancel()
+	st := rq.db.store
+	lease := fmt.Sprintf("%s/%d/%d/final", rq.id, rj.ID, rj.Attempt)
+	if _, err := st.JobStart(ctx, &JobStartParams{ID: rj.Args.JobID, Lease: lease, Now: rq.e.cfg.Now()}); err != nil {
+		return
+	}
+	if _, err := st.JobFinish(ctx, &JobFinishParams{ID: rj.Args.JobID, Lease: lease, State: StateFailed,
+		Error: cause.Error(), Partial: true, Now: rq.e.cfg.Now()}); err != nil {
+		rq.e.cfg.Logger.ErrorContext(ctx, "jobs: could not fail job after its last slice attempt",
+			"job", rj.Args.JobID, "error", err)
+	}
+}
