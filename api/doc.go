@@ -1,0 +1,30 @@
+// Package api is the gRPC face of dampfront: the protobuf definitions of
+// package dampfront.v1 (proto/, generated Go code in gen/dampfront/v1),
+// the conversion between those messages and the model's Go types, the
+// study adapter the job engine runs, and the DampfrontService handlers.
+//
+// # Layout
+//
+//	proto/dampfront/v1/*.proto   the API (buf lint clean, STANDARD rules)
+//	gen/dampfront/v1/            generated code, committed; ./generate.sh
+//	convert*.go                  protobuf <-> model, field paths of errors
+//	study*.go                    JobSpec -> model.Study + optimizer study
+//	server*.go                   the service over a jobs engine
+//
+// # Units
+//
+// Messages carry SI values, the unit in every physical field's name
+// (sprung_mass_kg, tyre_rate_n_per_m); nothing in this package converts to
+// trade units. Damping ratios and factors are dimensionless.
+//
+// # Errors
+//
+// Every handler returns a status with a canonical code and an ErrorInfo of
+// domain "dampfront" (AIP-193). Input problems are InvalidArgument with a
+// BadRequest holding one field violation per bad field; its path is the
+// field's path in the request, such as
+// "spec.vehicle.corners[2].tyre_rate_n_per_m", whichever layer (this
+// package, the model, the optimiser or the job engine) found the problem.
+package api
+
+//go:generate ./generate.sh
