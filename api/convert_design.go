@@ -1,0 +1,170 @@
+package api
+
+import (
+	"fmt"
+	"math"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
+)
+
+// setupFromProto converts a setup; a missing axle is recorded under path.
+func setupFromProto(s *pb.Setup, path string, p *problems) model.Setup {
+	if s == nil {
+		p.add(path, "is required")
+		return model.Setup{}
+	}
+	var out model.Setup
+	for ax, a := range [2]*pb.AxleDamping{s.GetFront(), s.GetRear()} {
+		if a == nil {
+			p.add(joinPath(path+".", model.AxleNames[ax]), "is required")
+			continue
+		}
+		out.Axles[ax] = axleFromProto(a)
+	}
+	return out
+}
+
+func axleFromProto(a *pb.AxleDamping) model.AxleDamping {
+	return model.AxleDamping{
+		BumpRatio: a.GetBumpRatio(), ReboundRatio: a.GetReboundRatio(),
+		KneeBump: a.GetKneeBumpMPerS(), KneeRebound: a.GetKneeReboundMPerS(),
+		HighSpeedBump: a.GetHighSpeedBumpFactor(), HighSpeedRebound: a.GetHighSpeedReboundFactor(),
+	}
+}
+
+func setupToProto(s model.Setup) *pb.Setup {
+	ax := func(a model.AxleDamping) *pb.AxleDamping {
+		return &pb.AxleDamping{
+			BumpRatio: a.BumpRatio, ReboundRatio: a.ReboundRatio,
+			KneeBumpMPerS: a.KneeBump, KneeReboundMPerS: a.KneeRebound,
+			HighSpeedBumpFactor: a.HighSpeedBump, HighSpeedReboundFactor: a.HighSpeedRebound,
+		}
+	}
+	return &pb.Setup{Front: ax(s.Axles[model.Front]), Rear: ax(s.Axles[model.Rear])}
+}
+
+// designFromProto converts a design space whose defaults are filled in
+// (see withDefaults); path is "spec.design_space".
+func designFromProto(d *pb.DesignSpace, path string, p *problems) model.DesignSpace {
+	r := d.GetRatios()
+	out := model.DesignSpace{
+		Ratios:    [4]model.Range{rangeFromProto(r.GetFrontBump()), rangeFromProto(r.GetFrontRebound()), rangeFromProto(r.GetRearBump()), rangeFromProto(r.GetRearRebound())},
+		Symmetric: d.GetSymmetric(),
+		Knee:      [2]*model.Range{rangeOrNil(d.GetFrontKneeMPerS()), rangeOrNil(d.GetRearKneeMPerS())},
+		HighSpeed: [2]*model.Range{rangeOrNil(d.GetFrontHighSpeedFactor()), rangeOrNil(d.GetRearHighSpeedFactor())},
+	}
+	if b := d.GetBase(); b != nil {
+		// The base's ratios are genes and never used; a missing axle
+		// means no knee and a linear damper there.
+		for ax, a := range [2]*pb.AxleDamping{b.GetFront(), b.GetRear()} {
+			if a != nil {
+				out.Base.Axles[ax] = axleFromProto(a)
+			}
+		}
+	}
+	return out
+}
+
+func rangeFromProto(r *pb.Range) model.Range { return model.Range{Min: r.GetMin(), Max: r.GetMax()} }
+
+func rangeOrNil(r *pb.Range) *model.Range {
+	if r == nil {
+		return nil
+	}
+	out := rangeFromProto(r)
+	return &out
+}
+
+// objectiveKinds and constraintKinds pair the enums with the model's.
+var (
+	objectiveKinds = map[pb.ObjectiveKind]model.ObjectiveKind{
+		pb.ObjectiveKind_OBJECTIVE_KIND_GRIP:           model.ObjectiveGrip,
+		pb.ObjectiveKind_OBJECTIVE_KIND_PLATFORM:       model.ObjectivePlatform,
+		pb.ObjectiveKind_OBJECTIVE_KIND_FRONT_PLATFORM: model.ObjectiveFrontPlatform,
+		pb.ObjectiveKind_OBJECTIVE_KIND_REAR_PLATFORM:  model.ObjectiveRearPlatform,
+		pb.ObjectiveKind_OBJECTIVE_KIND_PITCH:          model.ObjectivePitch,
+		pb.ObjectiveKind_OBJECTIVE_KIND_ROLL:           model.ObjectiveRoll,
+		pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:    model.ObjectiveHeaveAccel,
+	}
+	aggregations = map[pb.Aggregation]model.Aggregation{
+		pb.Aggregation_AGGREGATION_UNSPECIFIED: model.AggregateMeanSquare,
+		pb.Aggregation_AGGREGATION_MEAN_SQUARE: model.AggregateMeanSquare,
+		pb.Aggregation_AGGREGATION_WORST:       model.AggregateWorst,
+	}
+	constraintKinds = map[pb.ConstraintKind]model.ConstraintKind{
+		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:  model.ConstraintLiftOff,
+		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP: model.ConstraintBumpStop,
+		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:    model.ConstraintTravel,
+		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:   model.ConstraintJacking,
+	}
+)
+
+// objectivesFromProto converts the objectives under path
+// ("spec.objectives"). The count, the kinds and repeats are checked here
+// so that they are reported together with every other problem of a spec;
+// model.NewStudy checks the same again.
+func objectivesFromProto(objs []*pb.Objective, path string, p *problems) []model.Objective {
+	if len(objs) < 1 || len(objs) > 3 {
+		p.add(path, "needs 1 to 3 objectives, got %d", len(objs))
+	}
+	out := make([]model.Objective, len(objs))
+	seen := map[pb.ObjectiveKind]bool{}
+	for i, o := range objs {
+		f := fmt.Sprintf("%s[%d]", path, i)
+		kind, ok := objectiveKinds[o.GetKind()]
+		switch {
+		case !ok:
+			p.add(f+".kind", "must be one of the OBJECTIVE_KIND_ values other than UNSPECIFIED, got %v", o.GetKind())
+		case seen[o.GetKind()]:
+			p.add(f+".kind", "objective %v is given twice", o.GetKind())
+		}
+		seen[o.GetKind()] = true
+		agg, ok := aggregations[o.GetAggregation()]
+		if !ok {
+			p.add(f+".aggregation", "unknown aggregation %d", int32(o.GetAggregation()))
+		}
+		out[i] = model.Objective{Kind: kind, Aggregation: agg, TargetShift: [2]float64{o.GetFrontTargetShiftM(), o.GetRearTargetShiftM()}}
+	}
+	return out
+}
+
+func objectiveToProto(o model.Objective) *pb.Objective {
+	out := &pb.Objective{FrontTargetShiftM: o.TargetShift[0], RearTargetShiftM: o.TargetShift[1]}
+	for k, v := range objectiveKinds {
+		if v == o.Kind {
+			out.Kind = k
+		}
+	}
+	out.Aggregation = pb.Aggregation_AGGREGATION_MEAN_SQUARE
+	if o.Aggregation == model.AggregateWorst {
+		out.Aggregation = pb.Aggregation_AGGREGATION_WORST
+	}
+	return out
+}
+
+// constraintsFromProto converts the constraints under path
+// ("spec.constraints"); as with objectives, model.NewStudy checks the
+// limits again.
+func constraintsFromProto(cons []*pb.Constraint, path string, p *problems) []model.Constraint {
+	out := make([]model.Constraint, len(cons))
+	for i, c := range cons {
+		f := fmt.Sprintf("%s[%d]", path, i)
+		kind, ok := constraintKinds[c.GetKind()]
+		if !ok {
+			p.add(f+".kind", "must be one of the CONSTRAINT_KIND_ values other than UNSPECIFIED, got %v", c.GetKind())
+		}
+		if l := c.GetLimit(); !(l > 0) || math.IsInf(l, 1) {
+			p.add(f+".limit", "must be a finite number > 0, got %g", l)
+		}
+		out[i] = model.Constraint{Kind: kind, Limit: c.GetLimit()}
+	}
+	return out
+}
+
+func adjustmentFromProto(a *pb.Adjustment) model.Adjustment {
+	return model.Adjustment{
+		BumpSoftest: a.GetBumpSoftestRatio(), BumpStiffest: a.GetBumpStiffestRatio(),
+		ReboundSoftest: a.GetReboundSoftestRatio(), ReboundStiffest: a.GetReboundStiffestRatio(),
+	}
+}

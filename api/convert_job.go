@@ -1,0 +1,106 @@
+package api
+
+import (
+	"fmt"
+	"strings"
+	"time"
+
+	"google.golang.org/protobuf/proto"
+	"google.golang.org/protobuf/types/known/timestamppb"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
+)
+
+// jobStates pairs the engine's states with the enum.
+var jobStates = map[jobs.State]pb.JobState{
+	jobs.StateQueued:    pb.JobState_JOB_STATE_QUEUED,
+	jobs.StateRunning:   pb.JobState_JOB_STATE_RUNNING,
+	jobs.StateSucceeded: pb.JobState_JOB_STATE_SUCCEEDED,
+	jobs.StateFailed:    pb.JobState_JOB_STATE_FAILED,
+	jobs.StateCancelled: pb.JobState_JOB_STATE_CANCELLED,
+}
+
+type protoState pb.JobState
+
+func stateToProto(s jobs.State) protoState { return protoState(jobStates[s]) }
+
+// display is the state in lower case without its prefix ("running").
+func (s protoState) display() string {
+	return strings.ToLower(strings.TrimPrefix(pb.JobState(s).String(), "JOB_STATE_"))
+}
+
+// stateFromProto returns the engine's state of an enum value.
+func stateFromProto(s pb.JobState) (jobs.State, bool) {
+	for k, v := range jobStates {
+		if v == s {
+			return k, true
+		}
+	}
+	return "", false
+}
+
+// jobNamePrefix starts every job's resource name.
+const jobNamePrefix = "jobs/"
+
+// jobName is the resource name of a job ID.
+func jobName(id string) string { return jobNamePrefix + id }
+
+// parseJobName accepts "jobs/{job_id}" or a bare job ID and records a
+// problem at field otherwise.
+func parseJobName(name, field string, p *problems) string {
+	id := strings.TrimPrefix(name, jobNamePrefix)
+	switch {
+	case name == "":
+		p.add(field, "is required: a job name \"jobs/{job_id}\" or a job ID")
+	case id == "" || strings.ContainsAny(id, "/ \t\n"):
+		p.add(field, "must be \"jobs/{job_id}\" or a job ID, got %q", name)
+	}
+	return id
+}
+
+// jobToProto converts a stored job; full includes the spec.
+func jobToProto(j *jobs.Job, full bool) (*pb.Job, error) {
+	spec := &pb.JobSpec{}
+	if err := proto.Unmarshal(j.Spec, spec); err != nil {
+		return nil, fmt.Errorf("stored spec of job %q does not decode: %w", j.ID, err)
+	}
+	out := &pb.Job{
+		Name:            jobName(j.ID),
+		JobId:           j.ID,
+		DisplayName:     spec.GetDisplayName(),
+		State:           jobStates[j.State],
+		Labels:          j.Labels,
+		Seed:            uint64(j.Seed),
+		CreateTime:      timestamp(j.CreatedAt),
+		StartTime:       timestamp(j.StartedAt),
+		FinishTime:      timestamp(j.FinishedAt),
+		Progress:        progressToProto(&j.Progress),
+		ErrorMessage:    j.Error,
+		Partial:         j.Partial,
+		CancelRequested: j.CancelRequested,
+	}
+	if full {
+		out.Spec = spec
+	}
+	return out, nil
+}
+
+func progressToProto(p *jobs.Progress) *pb.Progress {
+	return &pb.Progress{
+		Generation:     int32(p.Generation),
+		Generations:    int32(p.Generations),
+		Evaluations:    p.Evaluations,
+		Hypervolume:    p.Hypervolume,
+		BestObjectives: p.Best,
+		UpdateTime:     timestamp(p.UpdatedAt),
+	}
+}
+
+// timestamp converts a time; the zero time is "not set".
+func timestamp(t time.Time) *timestamppb.Timestamp {
+	if t.IsZero() {
+		return nil
+	}
+	return timestamppb.New(t)
+}

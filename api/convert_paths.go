@@ -1,0 +1,88 @@
+package api
+
+import (
+	"regexp"
+	"strings"
+	"unicode"
+)
+
+// The model names the fields of its validation errors in the API's
+// lower_snake_case, but its structs are not shaped quite like the
+// messages: per-axle pairs are arrays there ("anti_roll[0]") and named
+// fields here ("front_anti_roll_bar"), the power-law spectrum is a
+// sub-message here, and a few names carry a unit suffix only here. These
+// rules translate one into the other; they are the only place that knows
+// both shapes. Each matches at the start of a path or after a dot, so the
+// same rules serve a whole spec ("vehicle.anti_roll[1].motion_ratio") and
+// one part validated alone ("anti_roll[1].motion_ratio").
+var pathRules = []struct {
+	re   *regexp.Regexp
+	repl string
+}{
+	// Vehicle: per-axle anti-roll bars and aero figures.
+	{regexp.MustCompile(`(^|\.)anti_roll\[0\]`), "${1}front_anti_roll_bar"},
+	{regexp.MustCompile(`(^|\.)anti_roll\[1\]`), "${1}rear_anti_roll_bar"},
+	{regexp.MustCompile(`(^|\.)downforce_n\[0\]`), "${1}front_downforce_n"},
+	{regexp.MustCompile(`(^|\.)downforce_n\[1\]`), "${1}rear_downforce_n"},
+	{regexp.MustCompile(`(^|\.)stiffness_n_per_m\[0\]`), "${1}front_stiffness_n_per_m"},
+	{regexp.MustCompile(`(^|\.)stiffness_n_per_m\[1\]`), "${1}rear_stiffness_n_per_m"},
+	// "give all four sprung loads or none" concerns the corner list.
+	{regexp.MustCompile(`(^|\.)corners\.sprung_load_n$`), "${1}corners"},
+	// Road case: the power law is a sub-message of the spectrum oneof.
+	{regexp.MustCompile(`(^|\.)gd0_m3$`), "${1}power_law.gd0_m3"},
+	{regexp.MustCompile(`(^|\.)waviness$`), "${1}power_law.waviness"},
+	// Design space: per-axle ranges.
+	{regexp.MustCompile(`(^|\.)design\.`), "${1}design_space."},
+	{regexp.MustCompile(`(^|\.)knee_m_per_s\[0\]`), "${1}front_knee_m_per_s"},
+	{regexp.MustCompile(`(^|\.)knee_m_per_s\[1\]`), "${1}rear_knee_m_per_s"},
+	{regexp.MustCompile(`(^|\.)high_speed\[0\]`), "${1}front_high_speed_factor"},
+	{regexp.MustCompile(`(^|\.)high_speed\[1\]`), "${1}rear_high_speed_factor"},
+	// Objectives: per-axle target shifts.
+	{regexp.MustCompile(`(^|\.)target_shift_m\[0\]`), "${1}front_target_shift_m"},
+	{regexp.MustCompile(`(^|\.)target_shift_m\[1\]`), "${1}rear_target_shift_m"},
+	// Setup: high-speed factors carry "_factor".
+	{regexp.MustCompile(`(^|\.)high_speed_(bump|rebound)$`), "${1}high_speed_${2}_factor"},
+	// Adjustment: the clicks are damping ratios.
+	{regexp.MustCompile(`(^|\.)(bump|rebound)_(softest|stiffest)$`), "${1}${2}_${3}_ratio"},
+}
+
+// protoPath translates a model field path to the path of the same field
+// in the API's messages, relative to the same parent.
+func protoPath(modelPath string) string {
+	p := modelPath
+	for _, r := range pathRules {
+		p = r.re.ReplaceAllString(p, r.repl)
+	}
+	return p
+}
+
+// optimizerPath translates an optimizer *FieldError path, which names Go
+// fields ("Settings.PopulationSize", "Settings.ReferencePoint[1]",
+// "Problem.Bounds[2]"), to the JobSpec's: search settings live in
+// "search", the gene bounds come from "design_space".
+func optimizerPath(p string) string {
+	switch {
+	case strings.HasPrefix(p, "Settings."):
+		return "search." + snake(strings.TrimPrefix(p, "Settings."))
+	case strings.HasPrefix(p, "Problem"):
+		return "design_space"
+	}
+	return snake(p)
+}
+
+// snake turns Go's CamelCase names into lower_snake_case, leaving index
+// suffixes alone: "ReferencePoint[1]" -> "reference_point[1]".
+func snake(s string) string {
+	var b strings.Builder
+	for i, r := range s {
+		if unicode.IsUpper(r) {
+			if i > 0 && s[i-1] != '.' && s[i-1] != '[' {
+				b.WriteByte('_')
+			}
+			b.WriteRune(unicode.ToLower(r))
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}

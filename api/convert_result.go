@@ -1,0 +1,77 @@
+package api
+
+import (
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
+)
+
+// cornerPositions are the enum values of the model's corner indices.
+var cornerPositions = [4]pb.CornerPosition{
+	model.FL: pb.CornerPosition_CORNER_POSITION_FRONT_LEFT,
+	model.FR: pb.CornerPosition_CORNER_POSITION_FRONT_RIGHT,
+	model.RL: pb.CornerPosition_CORNER_POSITION_REAR_LEFT,
+	model.RR: pb.CornerPosition_CORNER_POSITION_REAR_RIGHT,
+}
+
+// caseMetricsToProto converts one road case's metrics, with the modes at
+// its speed and its warnings above the evaluator's threshold.
+func caseMetricsToProto(m *model.CaseMetrics, modes []model.Mode, threshold float64) *pb.CaseMetrics {
+	out := &pb.CaseMetrics{
+		RoadCase:           m.Case,
+		Front:              &pb.AxleMetrics{RideHeightSdM: m.RideHeightSD[model.Front], RideHeightShiftM: m.RideHeightShift[model.Front]},
+		Rear:               &pb.AxleMetrics{RideHeightSdM: m.RideHeightSD[model.Rear], RideHeightShiftM: m.RideHeightShift[model.Rear]},
+		PitchSdRad:         m.PitchSD,
+		RollSdRad:          m.RollSD,
+		HeaveAccelSdMPerS2: m.HeaveAccelSD,
+		PitchShiftRad:      m.PitchShift,
+		Iterations:         int32(m.Iterations),
+		Warnings:           m.WarningStrings(threshold),
+		Modes:              modesToProto(modes),
+	}
+	for i := 0; i < 4; i++ {
+		out.Corners = append(out.Corners, &pb.CornerMetrics{
+			Corner:                    cornerPositions[i],
+			TyreLoadSdN:               m.TyreLoadSD[i],
+			StaticTyreLoadN:           m.StaticTyreLoad[i],
+			RelativeTyreLoadSd:        m.TyreLoadSDRel[i],
+			LiftOffProbability:        m.LiftOffProbability[i],
+			TravelSdM:                 m.TravelSD[i],
+			BumpStopProbability:       m.BumpStopProbability[i],
+			DamperVelocitySdMPerS:     m.DamperVelocitySD[i],
+			EquivalentDampingNSPerM:   m.EquivalentDamping[i],
+			MeanDamperForceN:          m.MeanDamperForce[i],
+			TravelShiftM:              m.TravelShift[i],
+		})
+	}
+	return out
+}
+
+func modesToProto(modes []model.Mode) []*pb.Mode {
+	out := make([]*pb.Mode, len(modes))
+	for i, m := range modes {
+		out[i] = &pb.Mode{Name: m.Name, FrequencyHz: m.FrequencyHz, DampedFrequencyHz: m.DampedFrequencyHz,
+			DampingRatio: m.DampingRatio, Overdamped: m.Overdamped}
+	}
+	return out
+}
+
+func damperCurvesToProto(curves []model.DamperCurve) []*pb.DamperCurve {
+	out := make([]*pb.DamperCurve, len(curves))
+	for i := range curves {
+		c := &curves[i]
+		out[i] = &pb.DamperCurve{
+			Corner:                 cornerPositions[c.Corner],
+			VelocityMPerS:          c.Velocity,
+			ForceN:                 c.Force,
+			SoftestForceN:          c.Softest,
+			StiffestForceN:         c.Stiffest,
+			BumpSlopeNSPerM:        c.BumpSlope,
+			ReboundSlopeNSPerM:     c.ReboundSlope,
+			KneeBumpMPerS:          c.KneeBump,
+			KneeReboundMPerS:       c.KneeRebound,
+			HighSpeedBumpFactor:    c.HighSpeedBump,
+			HighSpeedReboundFactor: c.HighSpeedRebound,
+		}
+	}
+	return out
+}
