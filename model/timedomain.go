@@ -1,0 +1,458 @@
+package model
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// BumpStop is a bump rubber of one axle (both sides alike), referred to
+// the wheel: a force that pushes body and wheel apart once the travel in
+// bump exceeds the gap.
+type BumpStop struct {
+	// Gap is the wheel travel in bump from static ride height to contact
+	// (m); 0 means each corner's Corner.BumpStopGap.
+	Gap float64
+	// Deflection (m, increasing, the first > 0) and Force (N, >= 0,
+	// non-decreasing) tabulate the force at the wheel against the
+	// compression δ = travel - gap, from F(0) = 0; linear between points
+	// and beyond the last point with the last segment's slope.
+	Deflection, Force []float64
+}
+
+// force is the bump-stop force at compression delta (m), 0 for delta <= 0.
+func (b *BumpStop) force(delta float64) float64 {
+	if delta <= 0 {
+		return 0
+	}
+	x0, f0 := 0.0, 0.0
+	for k, x1 := range b.Deflection {
+		f1 := b.Force[k]
+		if delta <= x1 || k == len(b.Deflection)-1 {
+			return f0 + (f1-f0)*(delta-x0)/(x1-x0)
+		}
+		x0, f0 = x1, f1
+	}
+	return 0
+}
+
+// maxSlope is the largest slope of the force curve (N/m).
+func (b *BumpStop) maxSlope() float64 {
+	x0, f0, s := 0.0, 0.0, 0.0
+	for k, x1 := range b.Deflection {
+		s = math.Max(s, (b.Force[k]-f0)/(x1-x0))
+		x0, f0 = x1, b.Force[k]
+	}
+	return s
+}
+
+func (b *BumpStop) validate(p *problems, prefix string) {
+	p.nonNegative(prefix+"gap_m", b.Gap)
+	if len(b.Deflection) == 0 || len(b.Deflection) != len(b.Force) {
+		p.add(prefix+"deflection_m", "needs at least one point and as many as force_n, got %d and %d", len(b.Deflection), len(b.Force))
+		return
+	}
+	x0, f0 := 0.0, 0.0
+	for k, x := range b.Deflection {
+		if !(x > x0) || math.IsInf(x, 0) {
+			p.add(fmt.Sprintf("%sdeflection_m[%d]", prefix, k), "must be finite, > 0 and increasing, got %g", x)
+			return
+		}
+		if f := b.Force[k]; !(f >= f0) || math.IsInf(f, 0) {
+			p.add(fmt.Sprintf("%sforce_n[%d]", prefix, k), "must be finite, >= 0 and non-decreasing, got %g", f)
+			return
+		}
+		x0, f0 = x, b.Force[k]
+	}
+}
+
+// TimeOptions tune the time-domain check. The zero value gives the
+// defaults.
+type TimeOptions struct {
+	// Duration is the recorded time (s), after settling; it is also the
+	// period of the synthesised road. 0 means 120 s.
+	Duration float64
+	// Step is the fixed RK4 step (s); 0 chooses it (see SimulateCase).
+	Step float64
+	// Settle is the time integrated before recording starts (s); 0
+	// chooses it from the slowest mode (see SimulateCase).
+	Settle float64
+	// BumpStops are the bump rubbers of the front and rear axle; nil
+	// means none (the travel beyond the gap is then only counted).
+	BumpStops [2]*BumpStop
+	// WarnThreshold is the lift-off or bump-stop time fraction above
+	// which the metrics are flagged; 0 means 0.01.
+	WarnThreshold float64
+}
+
+// DefaultDuration is the recorded time of the time-domain check (s) when
+// none is given.
+const DefaultDuration = 120.0
+
+// Step rule constants (see SimulateCase).
+const (
+	stepStability = 0.5  // ρ·h, ρ the largest |eigenvalue|
+	stepMax       = 1e-3 // s
+	settleDecay   = 9.21 // ln(1e4): transients decay to 1e-4 of their start
+	settleMin     = 1.0  // s
+	settleMax     = 30.0 // s
+	warnDefault   = 0.01 // time fraction
+	maxSteps      = 5e7  // steps per case, a bound on memory and time
+	stepLimit     = 2.5  // ρ·h above which a caller's step is refused (RK4 is stable below 2.78)
+)
+
+func (o TimeOptions) validate(v *Vehicle) error {
+	var p problems
+	p.nonNegative("duration_s", o.Duration)
+	p.nonNegative("step_s", o.Step)
+	p.nonNegative("settle_s", o.Settle)
+	p.nonNegative("warn_threshold", o.WarnThreshold)
+	for ax, b := range o.BumpStops {
+		if b == nil {
+			continue
+		}
+		prefix := fmt.Sprintf("bump_stops[%d].", ax)
+		b.validate(&p, prefix)
+		if b.Gap == 0 {
+			for i := 2 * ax; i < 2*ax+2; i++ {
+				if v.Corners[i].BumpStopGap == 0 {
+					p.add(prefix+"gap_m", "must be > 0: corner %s has no bump_stop_gap_m either", CornerNames[i])
+				}
+			}
+		}
+	}
+	return p.err()
+}
+
+// timeModel is the nonlinear 7-DOF car: the linear system of newSystem
+// (springs, bars, tyres, aero, tyre damping: the same matrices as the
+// frequency-domain model) plus the piecewise dampers, the bump stops and
+// a tyre that cannot pull.
+type timeModel struct {
+	sys    *system
+	minv   [nDOF]float64
+	damp   [4]wheelDamper
+	stop   [4]*BumpStop
+	gap    [4]float64 // bump-stop gap per corner (m), 0 = none
+	static [4]float64 // static tyre load (N)
+	kt, ct [4]float64
+	mr     [4]float64
+	a, b   float64
+	tf, tr float64
+}
+
+func newTimeModel(v *Vehicle, s *Setup, speed float64, stops [2]*BumpStop) *timeModel {
+	m := &timeModel{sys: newSystem(v, speed), damp: v.wheelDampers(s), static: v.StaticTyreLoads(speed),
+		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear}
+	for i := range m.minv {
+		m.minv[i] = 1 / m.sys.m[i]
+	}
+	for i := 0; i < 4; i++ {
+		m.kt[i], m.ct[i] = v.Corners[i].TyreRate, v.Corners[i].TyreDamping
+		m.mr[i] = v.Corners[i].DamperMotionRatio
+		m.gap[i] = v.Corners[i].BumpStopGap
+		if b := stops[i/2]; b != nil {
+			m.stop[i] = b
+			if b.Gap > 0 {
+				m.gap[i] = b.Gap
+			}
+		}
+	}
+	return m
+}
+
+// timeSample is what one evaluation of the equations of motion yields
+// besides the accelerations.
+type timeSample struct {
+	out      [nOut]float64 // outputs in the frequency-domain order (outTyre...)
+	force    [4]float64    // damper force at the wheel (N), + pushes apart
+	stopF    [4]float64    // bump-stop force at the wheel (N)
+	airborne [4]bool       // tyre carries no load
+}
+
+// accel evaluates M ẍ = -K x - C ẋ + Bk w + Bc ẇ - Σ_i D_iᵀ (F_i + B_i) + Σ_i e_i Δ_i
+// at the state (x, ẋ) with the tyre inputs in = [w_0..w_3, ẇ_0..ẇ_3]:
+// K, C, Bk, Bc are newSystem's (C holds the tyre damping only), F_i is
+// the damper force wheelDamper.force(D_i ẋ), B_i the bump-stop force at
+// compression D_i x - gap_i, and Δ_i = max(0, -(P_i + T_i)) puts back the
+// part of the linear tyre force T_i = kt(w_i - zu_i) + ct(ẇ_i - żu_i)
+// that would pull the tyre down (P_i its static load): the tyre force
+// P_i + T_i is clipped at zero. When o is not nil it also receives the
+// outputs, the heave acceleration included.
+func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64, o *timeSample) {
+	s := m.sys
+	in = in[:8]
+	var f [nDOF]float64
+	for a := 0; a < nDOF; a++ {
+		sum := 0.0
+		for b := 0; b < nDOF; b++ {
+			sum -= s.k[a][b]*x[b] + s.c[a][b]*xd[b]
+		}
+		for q := 0; q < nIn; q++ {
+			sum += s.bk[a][q]*in[q] + s.bc[a][q]*in[4+q]
+		}
+		f[a] = sum
+	}
+	for i := 0; i < 4; i++ {
+		d := &s.d[i]
+		zu, zud := x[dofWheel+i], xd[dofWheel+i]
+		travel := zu + d[0]*x[0] + d[1]*x[1] + d[2]*x[2]
+		vel := zud + d[0]*xd[0] + d[1]*xd[1] + d[2]*xd[2]
+		fd := m.damp[i].force(vel)
+		fs := 0.0
+		if st := m.stop[i]; st != nil {
+			fs = st.force(travel - m.gap[i])
+		}
+		g := fd + fs
+		f[0] += g // -D_iᵀ g with D_i = [-1, -x_i, -y_i, e_i]
+		f[1] -= d[1] * g
+		f[2] -= d[2] * g
+		f[dofWheel+i] -= g
+		tyre := m.kt[i]*(in[i]-zu) + m.ct[i]*(in[4+i]-zud)
+		air := m.static[i]+tyre < 0
+		if air {
+			f[dofWheel+i] -= m.static[i] + tyre
+			tyre = -m.static[i]
+		}
+		if o != nil {
+			o.out[outTyre+i] = tyre
+			o.out[outTravel+i] = travel
+			o.out[outWheelVel+i] = vel
+			o.force[i] = fd
+			o.stopF[i] = fs
+			o.airborne[i] = air
+		}
+	}
+	for a := 0; a < nDOF; a++ {
+		acc[a] = f[a] * m.minv[a]
+	}
+	if o != nil {
+		wf := (in[0] + in[1]) / 2
+		wr := (in[2] + in[3]) / 2
+		o.out[outRide] = x[0] + m.a*x[1] - wf
+		o.out[outRide+1] = x[0] - m.b*x[1] - wr
+		o.out[outPitch] = x[1] - (wf-wr)/(m.a+m.b)
+		o.out[outRoll] = x[2] - ((in[0]-in[1])/m.tf+(in[2]-in[3])/m.tr)/2
+		o.out[outHeaveAcc] = acc[0]
+	}
+}
+
+// integrate runs RK4 at step h over the periodic input (2·steps half-step
+// samples of 8 values, one period = steps·h) from -settleSteps·h to
+// steps·h and hands the state at each recorded step t_n = n·h, n in
+// [0, steps), to rec. It allocates nothing.
+func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x0 [nDOF]float64, rec *timeStats) {
+	period := 2 * steps
+	x, xd := x0, [nDOF]float64{}
+	var k1x, k1v, k2x, k2v, k3x, k3v, k4x, k4v, xs, vs [nDOF]float64
+	var smp timeSample
+	idx := ((-2*settleSteps)%period + period) % period
+	for n := -settleSteps; n < steps; n++ {
+		i1 := idx + 1
+		i2 := idx + 2
+		if i2 >= period {
+			i2 -= period
+		}
+		var o *timeSample
+		if n >= 0 {
+			o = &smp
+		}
+		// k1 at t_n
+		m.accel(&x, &xd, in[8*idx:8*idx+8], &k1v, o)
+		k1x = xd
+		if o != nil {
+			rec.add(o)
+		}
+		for a := range xs {
+			xs[a] = x[a] + 0.5*h*k1x[a]
+			vs[a] = xd[a] + 0.5*h*k1v[a]
+		}
+		m.accel(&xs, &vs, in[8*i1:8*i1+8], &k2v, nil)
+		k2x = vs
+		for a := range xs {
+			xs[a] = x[a] + 0.5*h*k2x[a]
+			vs[a] = xd[a] + 0.5*h*k2v[a]
+		}
+		m.accel(&xs, &vs, in[8*i1:8*i1+8], &k3v, nil)
+		k3x = vs
+		for a := range xs {
+			xs[a] = x[a] + h*k3x[a]
+			vs[a] = xd[a] + h*k3v[a]
+		}
+		m.accel(&xs, &vs, in[8*i2:8*i2+8], &k4v, nil)
+		k4x = vs
+		for a := range x {
+			x[a] += h / 6 * (k1x[a] + 2*k2x[a] + 2*k3x[a] + k4x[a])
+			xd[a] += h / 6 * (k1v[a] + 2*k2v[a] + 2*k3v[a] + k4v[a])
+		}
+		idx = i2
+	}
+}
+
+// stateMatrixEigen returns the eigenvalues of the linear state matrix
+// [[0, I], [-M⁻¹(K + Dᵀ diag(kx) D), -M⁻¹(C + Dᵀ diag(c) D)]] (gonum
+// mat.Eigen).
+func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
+	sys := s.withDamping(c)
+	const n = 2 * nDOF
+	a := mat.NewDense(n, n, nil)
+	for i := 0; i < nDOF; i++ {
+		a.Set(i, nDOF+i, 1)
+		for j := 0; j < nDOF; j++ {
+			k := sys.k[i][j]
+			for q := 0; q < 4; q++ {
+				k += s.d[q][i] * kx[q] * s.d[q][j]
+			}
+			a.Set(nDOF+i, j, -k/s.m[i])
+			a.Set(nDOF+i, nDOF+j, -sys.c[i][j]/s.m[i])
+		}
+	}
+	var eig mat.Eigen
+	if !eig.Factorize(a, mat.EigenNone) {
+		return nil, fmt.Errorf("model: eigen decomposition of the state matrix failed")
+	}
+	return eig.Values(nil), nil
+}
+
+// timing chooses the step and the settling time (s) for the model (see
+// SimulateCase).
+func (m *timeModel) timing() (h, settle, rho float64, err error) {
+	var cmax, cmin, kx [4]float64
+	for i, d := range m.damp {
+		cmax[i] = math.Max(math.Max(d.cb, d.cb*d.rb), math.Max(d.cr, d.cr*d.rr))
+		cmin[i] = math.Min(math.Min(d.cb, d.cb*d.rb), math.Min(d.cr, d.cr*d.rr))
+		if m.stop[i] != nil {
+			kx[i] = m.stop[i].maxSlope()
+		}
+	}
+	fast, err := stateMatrixEigen(m.sys, cmax, kx)
+	if err != nil {
+		return 0, 0, 0, err
+	}
+	for _, l := range fast {
+		rho = math.Max(rho, cmplx.Abs(l))
+	}
+	h = math.Min(stepStability/rho, stepMax)
+	slow, err := stateMatrixEigen(m.sys, cmin, [4]float64{})
+	if err != nil {
+		return 0, 0, 0, err
+	}
+	alpha := math.Inf(1)
+	for _, l := range slow {
+		alpha = math.Min(alpha, -real(l))
+	}
+	if !(alpha > 0) {
+		return 0, 0, 0, fmt.Errorf("%w: the state matrix has an eigenvalue with real part %g >= 0", ErrUnstable, -alpha)
+	}
+	settle = math.Max(settleMin, math.Min(settleMax, settleDecay/alpha))
+	return h, settle, rho, nil
+}
+
+// SimulateCase is the time-domain check of one setup on one road case.
+// It synthesises a road realisation for the four tyres with the case's
+// PSD, coherence and wheelbase delay (see SynthesiseProfile; the tyres
+// follow it through their envelope filters exactly as in the frequency
+// domain), integrates the nonlinear 7-DOF model (see timeModel.accel)
+// with the classical fourth-order Runge-Kutta method at a fixed step, and
+// returns the metrics of the recorded time history (see TimeMetrics).
+//
+// The road is periodic with the recorded duration T, so the settling run
+// before t = 0 uses the end of the same road, and a linear car's response
+// over [0, T) is exactly periodic once settled: its sample variance is the
+// sum over the synthesised bins, free of the phase-to-phase scatter of a
+// finite record except for the cross terms of the two random sources.
+//
+// Step rule. h = min(0.5/ρ, 1 ms), ρ the largest |λ| of the linear state
+// matrix with every damper at its steepest slope and every bump stop at
+// its stiffest, rounded down so that T/h is a whole number with prime
+// factors 2, 3, 5 only (for the FFT). ρ is at least the wheel-hop angular
+// frequency and, with heavy damping, the wheel's damper pole c/m_u; ρh =
+// 0.5 lies well inside RK4's stability interval (|λh| < 2.78 on the
+// negative real axis, < 2.83 on the imaginary axis), puts at least 12.6
+// steps in a wheel-hop period, and keeps RK4's amplitude error per step
+// below (ρh)⁶/144 ≈ 1e-4 (the series of e^z - R(z), R the RK4 stability
+// polynomial). The 1 ms cap keeps the road synthesised up to 1/h = 1 kHz
+// in time, past the tyres' envelope cut-off V/ℓ for track speeds.
+//
+// Settling. The start is the quasi-static state K x = Bk w(t_0); the
+// settling time is ln(10⁴)/α, α the slowest decay rate -Re λ with every
+// damper at its softest slope, within [1 s, 30 s].
+func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand.Rand) (*TimeMetrics, error) {
+	var p problems
+	p.merge("vehicle.", v.Validate())
+	p.merge("road_case.", rc.Validate())
+	p.merge("setup.", s.Validate())
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	if err := opt.validate(v); err != nil {
+		return nil, err
+	}
+	if rnd == nil {
+		return nil, &ValidationError{Problems: []FieldError{{Field: "seed", Reason: "a seeded random source is needed"}}}
+	}
+	m := newTimeModel(v, s, rc.Speed, opt.BumpStops)
+	if err := m.sys.checkStable(rc.Name); err != nil {
+		return nil, err
+	}
+	hRule, settle, rho, err := m.timing()
+	if err != nil {
+		return nil, fmt.Errorf("road case %q: %w", rc.Name, err)
+	}
+	if opt.Settle > 0 {
+		settle = opt.Settle
+	}
+	dur := opt.Duration
+	if dur == 0 {
+		dur = DefaultDuration
+	}
+	stepsRule := smoothAbove(int(math.Ceil(dur/hRule*(1-1e-12))), 16)
+	steps := stepsRule
+	if opt.Step > 0 {
+		if opt.Step*rho > stepLimit {
+			return nil, &ValidationError{Problems: []FieldError{{Field: "time.step_s", Reason: fmt.Sprintf(
+				"%.3g s is beyond RK4's stability for this car (|λ|max·h = %.2f > %g): use at most %.3g s, or 0 to choose", opt.Step, opt.Step*rho, stepLimit, stepLimit/rho)}}}
+		}
+		steps = smoothAbove(int(math.Ceil(dur/opt.Step*(1-1e-12))), 16)
+	}
+	h := dur / float64(steps)
+	settleSteps := int(math.Ceil(settle / h))
+	if float64(steps+settleSteps) > maxSteps {
+		return nil, &ValidationError{Problems: []FieldError{{Field: "time.duration_s", Reason: fmt.Sprintf(
+			"needs %d steps of %.3g s, more than %g: shorten the record", steps+settleSteps, h, float64(maxSteps))}}}
+	}
+	// The road's band is set by the step rule, not by a step the caller
+	// gives, so that a finer step integrates the same road.
+	length := rc.Speed * dur
+	track := (v.TrackFront + v.TrackRear) / 2
+	rcf := newRoadCoefficients(rc, track, length, min(steps, stepsRule)-1, rnd)
+	in := rcf.tyreInputs(v, rc.Speed, 2*steps)
+
+	// Quasi-static start under the road at t_0 = -settle.
+	start := ((-2*settleSteps)%(2*steps) + 2*steps) % (2 * steps)
+	var f0 [nDOF]float64
+	for a := 0; a < nDOF; a++ {
+		for q := 0; q < nIn; q++ {
+			f0[a] += m.sys.bk[a][q] * in[8*start+q]
+		}
+	}
+	x0, err := m.sys.staticSolve(f0)
+	if err != nil {
+		return nil, err
+	}
+	stats := newTimeStats(m.gap)
+	m.integrate(in, steps, settleSteps, h, x0, stats)
+	if !stats.finite() {
+		return nil, fmt.Errorf("%w: road case %q: the time integration diverged at a step of %.3g s", ErrUnstable, rc.Name, h)
+	}
+	warn := opt.WarnThreshold
+	if warn == 0 {
+		warn = warnDefault
+	}
+	tm := stats.metrics(m, rc.Name, warn)
+	tm.Step, tm.Settle, tm.Duration = h, settle, dur
+	return tm, nil
+}

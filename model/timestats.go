@@ -1,0 +1,170 @@
+package model
+
+import "math"
+
+// TimeMetrics are the metrics of a time-domain run. The embedded
+// CaseMetrics carry the same fields as the frequency-domain model,
+// estimated from the recorded history (sample means and standard
+// deviations over the record), with these readings:
+//
+//	TyreLoadSD            of the actual tyre load, clipped at zero (N)
+//	LiftOffProbability    fraction of the time a tyre carries no load
+//	BumpStopProbability   fraction of the time the travel exceeds the gap
+//	                      (counted even when no bump stop is modelled)
+//	EquivalentDamping     E[F v]/E[v²] at the wheel, the least-squares
+//	                      slope (the statistical linearisation's c_eq)
+//	MeanDamperForce       mean damper force at the damper (N)
+//	RideHeightShift, PitchShift, TravelShift
+//	                      means over the record (the road's mean is zero)
+//
+// Iterations is 0.
+type TimeMetrics struct {
+	CaseMetrics
+
+	Step     float64 // RK4 step (s)
+	Settle   float64 // time integrated before recording (s)
+	Duration float64 // recorded time (s)
+	Samples  int     // recorded samples (one per step)
+
+	// VelocityAbsRatio is E|v|/σ of each wheel's suspension velocity;
+	// sqrt(2/π) = 0.798 for a Gaussian. The jacking of a bilinear damper
+	// is ½(c_b - c_r)E|v|, so this ratio shows how far the linearisation's
+	// Gaussian assumption holds.
+	VelocityAbsRatio [4]float64
+
+	Peaks Peaks
+}
+
+// Peaks are extreme values over the record.
+type Peaks struct {
+	TyreLoadMin       [4]float64 // lowest tyre load (N); 0 when it lifted
+	TyreLoadMax       [4]float64 // highest tyre load (N)
+	TravelMax         [4]float64 // most travel in bump from static (m)
+	TravelMin         [4]float64 // most travel in rebound from static, negative (m)
+	DamperVelocityMax [4]float64 // highest bump velocity at the damper (m/s)
+	DamperVelocityMin [4]float64 // highest rebound velocity at the damper, negative (m/s)
+	BumpStopForceMax  [4]float64 // highest bump-stop force at the wheel (N)
+	RideHeightMin     [2]float64 // lowest ride-height change relative to the road, front, rear (m)
+	RideHeightMax     [2]float64 // highest ride-height change relative to the road (m)
+	HeaveAccelMax     float64    // largest |heave acceleration| (m/s²)
+}
+
+// timeStats accumulates a run's statistics one sample at a time.
+type timeStats struct {
+	gap        [4]float64
+	n          int
+	sum, sq    [nOut]float64
+	fsum, fv   [4]float64
+	vabs       [4]float64
+	air, above [4]int
+	peaks      Peaks
+}
+
+func newTimeStats(gap [4]float64) *timeStats {
+	s := &timeStats{gap: gap}
+	inf := math.Inf(1)
+	for i := 0; i < 4; i++ {
+		s.peaks.TyreLoadMin[i], s.peaks.TyreLoadMax[i] = inf, -inf
+		s.peaks.TravelMax[i], s.peaks.TravelMin[i] = -inf, inf
+		s.peaks.DamperVelocityMax[i], s.peaks.DamperVelocityMin[i] = -inf, inf
+	}
+	for ax := 0; ax < 2; ax++ {
+		s.peaks.RideHeightMin[ax], s.peaks.RideHeightMax[ax] = inf, -inf
+	}
+	return s
+}
+
+func (s *timeStats) add(o *timeSample) {
+	s.n++
+	for k, y := range o.out {
+		s.sum[k] += y
+		s.sq[k] += y * y
+	}
+	p := &s.peaks
+	for i := 0; i < 4; i++ {
+		v := o.out[outWheelVel+i]
+		s.fsum[i] += o.force[i]
+		s.fv[i] += o.force[i] * v
+		s.vabs[i] += math.Abs(v)
+		if o.airborne[i] {
+			s.air[i]++
+		}
+		tr := o.out[outTravel+i]
+		if s.gap[i] > 0 && tr > s.gap[i] {
+			s.above[i]++
+		}
+		t := o.out[outTyre+i]
+		p.TyreLoadMin[i] = math.Min(p.TyreLoadMin[i], t)
+		p.TyreLoadMax[i] = math.Max(p.TyreLoadMax[i], t)
+		p.TravelMax[i] = math.Max(p.TravelMax[i], tr)
+		p.TravelMin[i] = math.Min(p.TravelMin[i], tr)
+		p.DamperVelocityMax[i] = math.Max(p.DamperVelocityMax[i], v)
+		p.DamperVelocityMin[i] = math.Min(p.DamperVelocityMin[i], v)
+		p.BumpStopForceMax[i] = math.Max(p.BumpStopForceMax[i], o.stopF[i])
+	}
+	for ax := 0; ax < 2; ax++ {
+		r := o.out[outRide+ax]
+		p.RideHeightMin[ax] = math.Min(p.RideHeightMin[ax], r)
+		p.RideHeightMax[ax] = math.Max(p.RideHeightMax[ax], r)
+	}
+	p.HeaveAccelMax = math.Max(p.HeaveAccelMax, math.Abs(o.out[outHeaveAcc]))
+}
+
+// finite reports whether every sum is finite (the run did not diverge).
+func (s *timeStats) finite() bool {
+	for k := range s.sq {
+		if math.IsNaN(s.sq[k]) || math.IsInf(s.sq[k], 0) {
+			return false
+		}
+	}
+	return true
+}
+
+// metrics turns the sums into metrics.
+func (s *timeStats) metrics(m *timeModel, name string, warn float64) *TimeMetrics {
+	n := float64(s.n)
+	var mean, sd [nOut]float64
+	for k := range mean {
+		mean[k] = s.sum[k] / n
+		sd[k] = math.Sqrt(math.Max(0, s.sq[k]/n-mean[k]*mean[k]))
+	}
+	tm := &TimeMetrics{Samples: s.n, Peaks: s.peaks}
+	c := &tm.CaseMetrics
+	c.Case = name
+	c.StaticTyreLoad = m.static
+	for i := 0; i < 4; i++ {
+		c.TyreLoadSD[i] = sd[outTyre+i]
+		c.TyreLoadSDRel[i] = sd[outTyre+i] / m.static[i]
+		c.LiftOffProbability[i] = float64(s.air[i]) / n
+		c.TravelSD[i] = sd[outTravel+i]
+		c.TravelShift[i] = mean[outTravel+i]
+		c.BumpStopProbability[i] = float64(s.above[i]) / n
+		c.DamperVelocitySD[i] = m.mr[i] * sd[outWheelVel+i]
+		if vv := s.sq[outWheelVel+i]; vv > 0 {
+			c.EquivalentDamping[i] = s.fv[i] / vv
+		}
+		c.MeanDamperForce[i] = s.fsum[i] / n / m.mr[i]
+		if sd[outWheelVel+i] > 0 {
+			tm.VelocityAbsRatio[i] = s.vabs[i] / n / sd[outWheelVel+i]
+		}
+		tm.Peaks.TyreLoadMin[i] += m.static[i]
+		tm.Peaks.TyreLoadMax[i] += m.static[i]
+		tm.Peaks.DamperVelocityMax[i] *= m.mr[i]
+		tm.Peaks.DamperVelocityMin[i] *= m.mr[i]
+		if c.LiftOffProbability[i] > warn {
+			c.Warnings |= WarnLiftOff
+		}
+		if c.BumpStopProbability[i] > warn {
+			c.Warnings |= WarnBumpStop
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		c.RideHeightSD[ax] = sd[outRide+ax]
+		c.RideHeightShift[ax] = mean[outRide+ax]
+	}
+	c.PitchSD = sd[outPitch]
+	c.PitchShift = mean[outPitch]
+	c.RollSD = sd[outRoll]
+	c.HeaveAccelSD = sd[outHeaveAcc]
+	return tm
+}

@@ -1,0 +1,204 @@
+package model
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+)
+
+// VerifyOptions tune Verify. The zero value gives the defaults.
+type VerifyOptions struct {
+	Time  TimeOptions // the time-domain runs (duration, step, bump stops)
+	Model Options     // the frequency-domain evaluator
+	// Seed seeds the road realisations: case i draws its phases from
+	// rand.New(rand.NewPCG(Seed, i)). It is stored in the report.
+	Seed uint64
+}
+
+// VerifyReport compares the frequency-domain model with the time-domain
+// check for one setup.
+type VerifyReport struct {
+	Setup Setup
+	Seed  uint64
+	Cases []VerifyCase
+}
+
+// VerifyCase is the comparison on one road case.
+type VerifyCase struct {
+	Case      string
+	Frequency CaseMetrics // the statistically linearised frequency-domain metrics
+	Time      TimeMetrics // the nonlinear time-domain metrics, peaks included
+	Rows      []VerifyRow // the two side by side
+}
+
+// VerifyRow is one metric in both models. Units are SI and named in the
+// metric (for example "tyre_load_sd_n[FL]").
+type VerifyRow struct {
+	Metric    string
+	Frequency float64 // frequency-domain value
+	Time      float64 // time-domain value
+	Diff      float64 // Time - Frequency
+	RelDiff   float64 // Diff/|Frequency|; 0 when Frequency is 0
+	// StatError is the standard deviation the time-domain value would
+	// have from the record length alone if the response were the Gaussian
+	// process of the frequency-domain spectrum (see Verify); 0 when not
+	// estimated. A |Diff| of a few StatError is within sampling error;
+	// beyond that it is the nonlinearity (or lift-off, bump stops).
+	StatError float64
+}
+
+// Verify runs the frequency-domain model (Evaluator, with statistical
+// linearisation) and the time-domain check (SimulateCase) for a setup on
+// every road case and tabulates their metrics side by side.
+//
+// Statistical error. For a zero-mean Gaussian process y of one-sided PSD
+// G(f) and variance σ² = ∫G df, the sample variance over a record of
+// length T ≫ the correlation time has
+//
+//	Var[σ̂²] = (2/T) ∫_(-∞)^(∞) R(τ)² dτ = (1/T) ∫_0^∞ G(f)² df
+//
+// (Isserlis' theorem for E[y²(t) y²(t+τ)] and Parseval; Bendat & Piersol,
+// "Random Data: Analysis and Measurement Procedures", 4th ed., Wiley 2010,
+// ch. 8, from memory, write it as ε = 1/sqrt(B_e T) with the statistical
+// bandwidth B_e = (∫G)²/∫G²). The relative error of σ̂ is half that of
+// σ̂², so StatError = σ/(2 sqrt(B_e T)), with G the frequency-domain
+// output spectrum (integrated on its grid). For a mean shift the error of
+// the sample mean is sqrt(G(0)/(2T)) with G(0) read at the grid's lowest
+// frequency; for a time fraction p it is sqrt(p(1-p)/(B_e T)), B_e of
+// tyre load or travel (a rough figure). Because the synthesised road has
+// deterministic amplitudes (see SynthesiseProfile), the time-domain scatter
+// of a linear car is below these figures: they are upper bounds.
+func Verify(v Vehicle, cases []RoadCase, s Setup, opt VerifyOptions) (*VerifyReport, error) {
+	e, err := NewEvaluator(v, cases, opt.Model)
+	if err != nil {
+		return nil, err
+	}
+	var p problems
+	p.merge("setup.", s.Validate())
+	p.merge("time.", opt.Time.validate(&v))
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	rep := &VerifyReport{Setup: s, Seed: opt.Seed}
+	dampers := e.v.wheelDampers(&s)
+	ws := e.pool.Get().(*workspace)
+	defer e.pool.Put(ws)
+	psd := make([]float64, nOut*len(e.f))
+	for i := range e.cases {
+		vc := VerifyCase{Case: e.cases[i].rc.Name}
+		if err := e.evaluateCase(i, &dampers, ws, &vc.Frequency, psd); err != nil {
+			return nil, err
+		}
+		rnd := rand.New(rand.NewPCG(opt.Seed, uint64(i)))
+		tm, err := SimulateCase(&e.v, &e.cases[i].rc, &s, opt.Time, rnd)
+		if err != nil {
+			return nil, err
+		}
+		vc.Time = *tm
+		vc.Rows = verifyRows(&vc.Frequency, tm, &v, e.wts, psd, tm.Duration)
+		rep.Cases = append(rep.Cases, vc)
+	}
+	return rep, nil
+}
+
+// spectrumStats gives the statistical errors of one output from its PSD.
+type spectrumStats struct {
+	wts []float64
+	psd []float64
+	T   float64
+}
+
+// bandwidth is B_e = σ⁴/∫G² df (Hz) of output o with variance sigma².
+func (ss *spectrumStats) bandwidth(o int, sigma float64) float64 {
+	g2 := 0.0
+	for k, w := range ss.wts {
+		g := ss.psd[k*nOut+o]
+		g2 += w * g * g
+	}
+	if g2 <= 0 {
+		return math.Inf(1)
+	}
+	return sigma * sigma * sigma * sigma / g2
+}
+
+// sdError is σ/(2 sqrt(B_e T)).
+func (ss *spectrumStats) sdError(o int, sigma float64) float64 {
+	return sigma / (2 * math.Sqrt(ss.bandwidth(o, sigma)*ss.T))
+}
+
+// meanError is sqrt(G(f_min)/(2T)).
+func (ss *spectrumStats) meanError(o int) float64 {
+	return math.Sqrt(ss.psd[o] / (2 * ss.T))
+}
+
+// fractionError is sqrt(p(1-p)/(B_e T)) for output o's bandwidth.
+func (ss *spectrumStats) fractionError(p float64, o int, sigma float64) float64 {
+	return math.Sqrt(p * (1 - p) / (ss.bandwidth(o, sigma) * ss.T))
+}
+
+// verifyRows lays the two sets of metrics side by side.
+func verifyRows(f *CaseMetrics, tm *TimeMetrics, v *Vehicle, wts, psd []float64, T float64) []VerifyRow {
+	t := &tm.CaseMetrics
+	ss := &spectrumStats{wts: wts, psd: psd, T: T}
+	var rows []VerifyRow
+	add := func(name string, fv, tv, se float64) {
+		r := VerifyRow{Metric: name, Frequency: fv, Time: tv, Diff: tv - fv, StatError: se}
+		if fv != 0 {
+			r.RelDiff = r.Diff / math.Abs(fv)
+		}
+		rows = append(rows, r)
+	}
+	corner := func(name string, i int) string { return fmt.Sprintf("%s[%s]", name, CornerNames[i]) }
+	axle := func(name string, ax int) string { return fmt.Sprintf("%s[%s]", name, AxleNames[ax]) }
+	for i := 0; i < 4; i++ {
+		add(corner("tyre_load_sd_n", i), f.TyreLoadSD[i], t.TyreLoadSD[i], ss.sdError(outTyre+i, f.TyreLoadSD[i]))
+	}
+	for i := 0; i < 4; i++ {
+		add(corner("lift_off_fraction", i), f.LiftOffProbability[i], t.LiftOffProbability[i],
+			ss.fractionError(f.LiftOffProbability[i], outTyre+i, f.TyreLoadSD[i]))
+	}
+	for ax := 0; ax < 2; ax++ {
+		add(axle("ride_height_sd_m", ax), f.RideHeightSD[ax], t.RideHeightSD[ax], ss.sdError(outRide+ax, f.RideHeightSD[ax]))
+	}
+	add("pitch_sd_rad", f.PitchSD, t.PitchSD, ss.sdError(outPitch, f.PitchSD))
+	add("roll_sd_rad", f.RollSD, t.RollSD, ss.sdError(outRoll, f.RollSD))
+	add("heave_accel_sd_m_per_s2", f.HeaveAccelSD, t.HeaveAccelSD, ss.sdError(outHeaveAcc, f.HeaveAccelSD))
+	for i := 0; i < 4; i++ {
+		add(corner("travel_sd_m", i), f.TravelSD[i], t.TravelSD[i], ss.sdError(outTravel+i, f.TravelSD[i]))
+	}
+	for i := 0; i < 4; i++ {
+		if v.Corners[i].BumpStopGap > 0 || tm.Peaks.BumpStopForceMax[i] > 0 {
+			add(corner("bump_stop_fraction", i), f.BumpStopProbability[i], t.BumpStopProbability[i],
+				ss.fractionError(f.BumpStopProbability[i], outTravel+i, f.TravelSD[i]))
+		}
+	}
+	for i := 0; i < 4; i++ {
+		mr := v.Corners[i].DamperMotionRatio
+		add(corner("damper_velocity_sd_m_per_s", i), f.DamperVelocitySD[i], t.DamperVelocitySD[i],
+			mr*ss.sdError(outWheelVel+i, f.DamperVelocitySD[i]/mr))
+	}
+	for i := 0; i < 4; i++ {
+		add(corner("equivalent_damping_n_s_per_m", i), f.EquivalentDamping[i], t.EquivalentDamping[i], 0)
+	}
+	for i := 0; i < 4; i++ {
+		add(corner("mean_damper_force_n", i), f.MeanDamperForce[i], t.MeanDamperForce[i], 0)
+	}
+	for ax := 0; ax < 2; ax++ {
+		add(axle("ride_height_shift_m", ax), f.RideHeightShift[ax], t.RideHeightShift[ax], ss.meanError(outRide+ax))
+	}
+	add("pitch_shift_rad", f.PitchShift, t.PitchShift, ss.meanError(outPitch))
+	for i := 0; i < 4; i++ {
+		add(corner("travel_shift_m", i), f.TravelShift[i], t.TravelShift[i], ss.meanError(outTravel+i))
+	}
+	return rows
+}
+
+// Row returns the row of a metric by name, or false.
+func (c *VerifyCase) Row(metric string) (VerifyRow, bool) {
+	for _, r := range c.Rows {
+		if r.Metric == metric {
+			return r, true
+		}
+	}
+	return VerifyRow{}, false
+}
