@@ -12,8 +12,13 @@ import (
 )
 
 // testTimeout bounds every wait in these tests; the jobs they run take
-// well under a second of compute.
-const testTimeout = 30 * time.Second
+// well under a second of compute. The race detector slows the pure-Go
+// SQLite driver some tenfold, hence the longer bound then.
+var testTimeout = map[bool]time.Duration{false: 30 * time.Second, true: 120 * time.Second}[raceDetector]
+
+// pollInterval is how often the tests read a job while waiting; it shares
+// the database (one connection, for SQLite) with the engine under test.
+const pollInterval = 25 * time.Millisecond
 
 // testConfig has short slices and polls so a job of a few hundred
 // generations crosses many slices in well under a second.
@@ -21,13 +26,13 @@ func testConfig(url string) Config {
 	return Config{
 		DatabaseURL:        url,
 		Workers:            2,
-		SliceDuration:      40 * time.Millisecond,
+		SliceDuration:      80 * time.Millisecond,
 		SliceGrace:         5 * time.Second,
 		RescueMargin:       time.Second,
-		CheckpointInterval: 15 * time.Millisecond,
-		ProgressInterval:   5 * time.Millisecond,
+		CheckpointInterval: 50 * time.Millisecond,
+		ProgressInterval:   25 * time.Millisecond,
 		CancelPollInterval: 20 * time.Millisecond,
-		WatchInterval:      10 * time.Millisecond,
+		WatchInterval:      25 * time.Millisecond,
 		FetchPollInterval:  20 * time.Millisecond,
 		RetryDelay:         50 * time.Millisecond,
 		StopTimeout:        5 * time.Second,
@@ -104,7 +109,7 @@ func waitFor(t *testing.T, e *Engine, id string, what string, cond func(*Job) bo
 		if time.Now().After(deadline) {
 			t.Fatalf("job %s not %s within %v: %+v", id, what, testTimeout, j)
 		}
-		time.Sleep(5 * time.Millisecond)
+		time.Sleep(pollInterval)
 	}
 }
 
@@ -157,16 +162,16 @@ func TestJobSlicesMatchOneGo(t *testing.T) {
 	for _, be := range backends {
 		t.Run(be.name, func(t *testing.T) {
 			t.Parallel()
-			spec := toySpec{Generations: 300, Size: 13, Seed: 7, StepDelay: time.Millisecond}
+			spec := toySpec{Generations: 200, Size: 13, Seed: 7, StepDelay: 2 * time.Millisecond}
 			want := toyFrontAt(spec, spec.Generations)
 			tests := []struct {
 				name      string
 				slice     time.Duration
 				minSlices int
 			}{
-				// 300 generations of at least 1 ms: a 40 ms slice cannot
-				// hold more than 40, so at least 8 slices.
-				{"many slices", 40 * time.Millisecond, 8},
+				// 200 generations of at least 2 ms: an 80 ms slice cannot
+				// hold more than 40, so at least 5 slices.
+				{"many slices", 80 * time.Millisecond, 5},
 				{"one go", time.Minute, 1},
 			}
 			for _, tt := range tests {
@@ -251,7 +256,7 @@ func TestStopHandsOver(t *testing.T) {
 		t.Run(be.name, func(t *testing.T) {
 			t.Parallel()
 			url := be.url(t)
-			spec := toySpec{Generations: 400, Size: 9, Seed: 11, StepDelay: time.Millisecond}
+			spec := toySpec{Generations: 250, Size: 9, Seed: 11, StepDelay: time.Millisecond}
 			cfg := testConfig(url)
 			cfg.SliceDuration = time.Minute // the hand-over comes from Stop, not the slice clock
 			cfg.CheckpointInterval = -1     // and the only checkpoint is Stop's

@@ -1,0 +1,137 @@
+package jobs
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"os"
+	"os/exec"
+	"testing"
+	"time"
+)
+
+// crashChildEnv, when set to a database path, turns TestCrashWorkerProcess
+// into the worker process that TestCrashResume kills.
+const crashChildEnv = "DAMPFRONT_JOBS_CRASH_CHILD_DB"
+
+// TestCrashWorkerProcess is not a test of its own: run by TestCrashResume
+// as a child process, it works the database named by crashChildEnv until
+// it is killed (or, bounded, until testTimeout passes).
+func TestCrashWorkerProcess(t *testing.T) {
+	path := os.Getenv(crashChildEnv)
+	if path == "" {
+		t.Skip("helper process for TestCrashResume")
+	}
+	cfg := testConfig(path)
+	cfg.Workers = 1
+	cfg.SliceDuration = time.Minute // one long slice, so the kill lands inside it
+	cfg.CheckpointInterval = 50 * time.Millisecond
+	e, err := Open(context.Background(), cfg, &toyOpener{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := e.Start(context.Background()); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(testTimeout)
+}
+
+// TestCrashResume kills a worker process with SIGKILL in the middle of a
+// slice, after a checkpoint and with work done since, then starts a new
+// engine on the same SQLite file. Start must release the dead process's
+// slice; the job must resume from the last checkpoint (exactly the
+// remaining generations run again, the lost ones included) and end with
+// the front of an uninterrupted run, bit for bit.
+func TestCrashResume(t *testing.T) {
+	t.Parallel()
+	ctx := context.Background()
+	path := testSQLitePath(t)
+	spec := toySpec{Generations: 300, Size: 11, Seed: 5, StepDelay: time.Millisecond}
+
+	client, err := Open(ctx, testConfig(path), &toyOpener{}) // submits and reads; no workers started
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer client.Close()
+	j, err := client.Submit(ctx, &SubmitParams{Spec: spec.bytes(), Seed: spec.Seed})
+	if err != nil {
+		t.Fatal(err)
+	}
+
+	var out bytes.Buffer
+	child := exec.Command(os.Args[0], "-test.run=^TestCrashWorkerProcess$", "-test.count=1")
+	child.Env = append(os.Environ(), crashChildEnv+"="+path)
+	child.Stdout, child.Stderr = &out, &out
+	if err := child.Start(); err != nil {
+		t.Fatal(err)
+	}
+	killed := false
+	defer func() {
+		if !killed {
+			_ = child.Process.Kill()
+			_ = child.Wait()
+		}
+	}()
+	checkpointGen := func() int {
+		c, err := client.Store().CheckpointGet(ctx, &CheckpointGetParams{JobID: j.ID})
+		if errors.Is(err, ErrNotFound) {
+			return 0
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		return c.Generation
+	}
+	waitFor(t, client, j.ID, "checkpointed at least once and past its checkpoint", func(j *Job) bool {
+		c := checkpointGen()
+		return c >= 50 && j.Progress.Generation > c
+	})
+	if err := child.Process.Kill(); err != nil {
+		t.Fatal(err)
+	}
+	_ = child.Wait() // reaped, so its PID is gone
+	killed = true
+
+	atKill, err := client.Get(ctx, j.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	resumeFrom := checkpointGen()
+	if atKill.State != StateRunning || atKill.Progress.Generation <= resumeFrom {
+		t.Fatalf("at the kill: %+v with checkpoint at generation %d; want running past its checkpoint (child output: %s)", atKill, resumeFrom, out.String())
+	}
+
+	cfg := testConfig(path)
+	opener := &toyOpener{}
+	reopen := time.Now()
+	e, err := Open(ctx, cfg, opener)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer func() {
+		sctx, cancel := context.WithTimeout(ctx, testTimeout)
+		defer cancel()
+		_ = e.Stop(sctx)
+		_ = e.Close()
+	}()
+	restart := time.Now()
+	released, err := e.Start(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if released != 1 {
+		t.Errorf("Start released %d slices, want the dead process's 1", released)
+	}
+	waitFor(t, e, j.ID, "resumed", func(j *Job) bool { return j.Slices > atKill.Slices })
+	resumeDelay, sinceOpen := time.Since(restart), time.Since(reopen)
+	done := waitTerminal(t, e, j.ID)
+	if done.State != StateSucceeded {
+		t.Fatalf("job ended %+v", done)
+	}
+	if got, want := opener.executed.Load(), int64(spec.Generations-resumeFrom); got != want {
+		t.Errorf("after the restart %d generations ran, want %d: resumed from generation %d", got, want, resumeFrom)
+	}
+	sameFront(t, frontOf(t, e, j.ID).Solutions, toyFrontAt(spec, spec.Generations))
+	t.Logf("killed at generation %d, checkpoint at %d (%d generations lost); slice resumed %v after the new engine's Start, %v after its Open",
+		atKill.Progress.Generation, resumeFrom, atKill.Progress.Generation-resumeFrom, resumeDelay, sinceOpen)
+}
