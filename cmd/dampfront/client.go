@@ -1,0 +1,139 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"strings"
+	"time"
+
+	"google.golang.org/genproto/googleapis/rpc/errdetails"
+	"google.golang.org/grpc"
+	"google.golang.org/grpc/codes"
+	"google.golang.org/grpc/credentials/insecure"
+	"google.golang.org/grpc/status"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+// defaultAddr is where serve listens and clients connect unless told.
+const defaultAddr = "127.0.0.1:7403"
+
+// clientFlags are the flags every client subcommand shares.
+type clientFlags struct {
+	addr    string
+	timeout time.Duration
+}
+
+func addClientFlags(fs *flagSet, e *env) *clientFlags {
+	c := &clientFlags{}
+	fs.StringVar(&c.addr, "addr", envOr(e, "DAMPFRONT_ADDR", defaultAddr), "server address host:port ($DAMPFRONT_ADDR)")
+	fs.DurationVar(&c.timeout, "timeout", 60*time.Second, "time limit of each call to the server")
+	return c
+}
+
+// client is a connection to a dampfront server.
+type client struct {
+	conn    *grpc.ClientConn
+	svc     pb.DampfrontServiceClient
+	timeout time.Duration
+}
+
+// dial connects to addr without TLS: the server is meant for a trusted
+// network or a loopback address (TLS termination is the deployment's).
+func dial(addr string, timeout time.Duration) (*client, error) {
+	conn, err := grpc.NewClient(addr, grpc.WithTransportCredentials(insecure.NewCredentials()))
+	if err != nil {
+		return nil, fmt.Errorf("connect to %s: %w", addr, err)
+	}
+	return &client{conn: conn, svc: pb.NewDampfrontServiceClient(conn), timeout: timeout}, nil
+}
+
+func (c *clientFlags) dial() (*client, error) { return dial(c.addr, c.timeout) }
+
+func (c *client) Close() error { return c.conn.Close() }
+
+// call bounds one unary call by the client's timeout.
+func (c *client) call(ctx context.Context) (context.Context, context.CancelFunc) {
+	if c.timeout <= 0 {
+		return context.WithCancel(ctx)
+	}
+	return context.WithTimeout(ctx, c.timeout)
+}
+
+// jobName turns a bare job ID into the resource name "jobs/{id}".
+func jobName(id string) string {
+	if strings.HasPrefix(id, "jobs/") {
+		return id
+	}
+	return "jobs/" + id
+}
+
+// jobID is the inverse of jobName.
+func jobID(name string) string { return strings.TrimPrefix(name, "jobs/") }
+
+// describeError renders an error for the terminal; a gRPC status shows its
+// code, message and every field violation of a BadRequest detail, one a
+// line.
+func describeError(err error) string {
+	st, ok := status.FromError(err)
+	if !ok {
+		return err.Error()
+	}
+	var b strings.Builder
+	switch st.Code() {
+	case codes.Unavailable:
+		fmt.Fprintf(&b, "server unavailable: %s", st.Message())
+	default:
+		fmt.Fprintf(&b, "%s: %s", codeName(st.Code()), st.Message())
+	}
+	for _, d := range st.Details() {
+		switch d := d.(type) {
+		case *errdetails.BadRequest:
+			for _, v := range d.GetFieldViolations() {
+				fmt.Fprintf(&b, "\n  %s: %s", v.GetField(), v.GetDescription())
+			}
+		case *errdetails.PreconditionFailure:
+			for _, v := range d.GetViolations() {
+				fmt.Fprintf(&b, "\n  %s %s: %s", v.GetType(), v.GetSubject(), v.GetDescription())
+			}
+		}
+	}
+	return b.String()
+}
+
+// codeName spells a code in words: InvalidArgument -> "invalid argument".
+func codeName(c codes.Code) string {
+	var b strings.Builder
+	for i, r := range c.String() {
+		if r >= 'A' && r <= 'Z' {
+			if i > 0 {
+				b.WriteByte(' ')
+			}
+			r += 'a' - 'A'
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// isCode reports whether err is a gRPC status with code c.
+func isCode(err error, c codes.Code) bool {
+	var se interface{ GRPCStatus() *status.Status }
+	if !errors.As(err, &se) {
+		return false
+	}
+	return se.GRPCStatus().Code() == c
+}
+
+// inputError reports whether err says the request itself was wrong (bad
+// input, unknown job, job in the wrong state): exit code 2 where a
+// subcommand tells input errors from failures.
+func inputError(err error) bool {
+	for _, c := range []codes.Code{codes.InvalidArgument, codes.NotFound, codes.FailedPrecondition, codes.OutOfRange} {
+		if isCode(err, c) {
+			return true
+		}
+	}
+	return false
+}

@@ -1,0 +1,160 @@
+package main
+
+import (
+	"context"
+	_ "embed"
+	"fmt"
+	"net"
+	"os"
+	"path/filepath"
+	"time"
+
+	"dampfront/api"
+	"dampfront/jobs"
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+// demoJob is testdata/demo-job.yaml, embedded so that the binary runs the
+// demo from any directory; a test keeps the two files equal.
+//
+//go:embed demodata/demo-job.yaml
+var demoJob []byte
+
+// demoRows is how many solutions of the front the demo prints.
+const demoRows = 15
+
+var demoCommand = &command{
+	name:    "demo",
+	summary: "run the demo job on an embedded server and print its front and damper curves",
+	run:     runDemo,
+}
+
+func runDemo(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "demo", "[flags]", `
+Starts a server with an embedded worker on a temporary SQLite file and a
+free port of 127.0.0.1, submits the demo job (testdata/demo-job.yaml: the
+invented Quillon GT on three invented road cases), watches it with a
+progress bar, prints the Pareto front and the damper curves of its
+balanced point, stops the server and removes the temporary files.`)
+	keep := fs.Bool("keep", false, "keep the temporary directory with the database and print how to serve it")
+	specPath := fs.String("spec", "", "run this job spec `file` instead of the demo's")
+	workers := fs.Int("eval-workers", 0, "evaluations run at once; 0 means one per CPU")
+	verbose := fs.Bool("verbose", false, "log the server's and the engine's messages on standard error")
+	quiet := fs.Bool("quiet", false, "no progress bar")
+	if _, err := fs.parse(args, 0, 0); err != nil {
+		return err
+	}
+	if *workers < 0 {
+		return usagef("demo", "--eval-workers must not be negative")
+	}
+	start := time.Now()
+	spec := &pb.JobSpec{}
+	if *specPath != "" {
+		if err := readMessage(e, *specPath, spec); err != nil {
+			return err
+		}
+	} else if err := decodeMessage("testdata/demo-job.yaml", demoJob, spec); err != nil {
+		return err
+	}
+
+	dir, err := os.MkdirTemp("", "dampfront-demo-")
+	if err != nil {
+		return err
+	}
+	db := filepath.Join(dir, "demo.db")
+	defer func() {
+		if *keep {
+			fmt.Fprintf(e.stdout, "\nKept %s; serve it with: dampfront serve --database %s\n", dir, db)
+			return
+		}
+		_ = os.RemoveAll(dir)
+	}()
+
+	ef := &engineFlags{logLevel: "warn", logFormat: "text"}
+	if *verbose {
+		ef.logLevel = "info"
+	}
+	log := ef.logger(e.stderr)
+	cfg := jobs.Config{
+		DatabaseURL: db,
+		Workers:     1,
+		// The demo's job is short: poll the queue often so that it starts
+		// and its progress shows at once.
+		FetchPollInterval: 50 * time.Millisecond,
+		ProgressInterval:  100 * time.Millisecond,
+		WatchInterval:     100 * time.Millisecond,
+		StopTimeout:       10 * time.Second,
+		NodeID:            fmt.Sprintf("demo-%d", os.Getpid()),
+		Logger:            log,
+	}
+	eng, err := openEngine(ctx, cfg, *workers)
+	if err != nil {
+		return err
+	}
+	lis, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		_ = eng.Close()
+		return err
+	}
+	svc, err := startService(ctx, eng, lis, api.Options{Logger: log}, cfg.StopTimeout, log)
+	if err != nil {
+		_ = lis.Close()
+		_ = eng.Close()
+		return err
+	}
+	runErr := demo(ctx, e, lis.Addr().String(), spec, *quiet, start)
+	if err := svc.shutdown(); err != nil && runErr == nil {
+		runErr = err
+	}
+	return runErr
+}
+
+// demo is the client side of the demo, over the loopback port.
+func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool, start time.Time) error {
+	c, err := dial(addr, time.Minute)
+	if err != nil {
+		return err
+	}
+	defer c.Close()
+	fmt.Fprintf(e.stdout, "dampfront demo: server on %s; submitting %q\n", addr, spec.GetDisplayName())
+	cctx, cancel := c.call(ctx)
+	resp, err := c.svc.SubmitJob(cctx, &pb.SubmitJobRequest{Spec: spec})
+	cancel()
+	if err != nil {
+		return err
+	}
+	name := resp.GetJob().GetName()
+	if _, err := watchJob(ctx, e, c, name, &watchModes{quiet: quiet, reconnect: 5 * time.Second}); err != nil {
+		return err
+	}
+	fd, err := fetchFront(ctx, c, name, pb.SolutionView_SOLUTION_VIEW_FULL)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintln(e.stdout)
+	if err := writeFrontTable(e.stdout, fd, demoRows, "run with --keep, serve the kept database and use dampfront front to see all"); err != nil {
+		return err
+	}
+	bal := balancedIndex(fd.front.GetSolutions())
+	if bal < 0 {
+		printCaution(e.stdout)
+		return &exitError{code: exitFailure, msg: "the front is empty"}
+	}
+	idx := fd.front.GetSolutions()[bal].GetIndex()
+	cctx, cancel = c.call(ctx)
+	cr, err := c.svc.GetDamperCurves(cctx, &pb.GetDamperCurvesRequest{Job: name,
+		Target: &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: idx}})
+	cancel()
+	if err != nil {
+		return err
+	}
+	sol := fd.front.GetSolutions()[bal]
+	fmt.Fprintf(e.stdout, "\nDamper curves of the balanced point, solution %d: %s\n", idx, setupText(cr.GetSetup()))
+	fmt.Fprintf(e.stdout, "Its objectives: %s.\n", objectivesText(sol.GetObjectives(), fd.front.GetObjectives()))
+	if err := writeCurvesTable(e.stdout, cr.GetCurves()); err != nil {
+		return err
+	}
+	fmt.Fprintf(e.stdout, "\nDemo done in %.1f s. Next: dampfront curves, eval and check against a server of your own (dampfront serve).\n", time.Since(start).Seconds())
+	printCaution(e.stdout)
+	return nil
+}

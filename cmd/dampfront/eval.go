@@ -1,0 +1,167 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"strings"
+
+	"google.golang.org/protobuf/encoding/protojson"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+var evalCommand = &command{
+	name:    "eval",
+	summary: "evaluate setups on the road cases of a spec or a job",
+	run:     runEval,
+}
+
+func runEval(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "eval", "[flags] --setup FILE [--setup FILE...] (--spec FILE | --job JOB)", `
+Evaluates one or more damper setups (dampfront.v1 Setup messages in YAML or
+JSON, see testdata/candidate-setup.yaml) on the car, road cases, objectives
+and constraints of a job spec file or of a stored job, synchronously. The
+table shows per setup its objectives and constraints and per road case the
+ride metrics in trade units; --format json prints the EvaluateSetups
+response as protojson (SI, units in the field names).`)
+	cf := addClientFlags(fs, e)
+	sf := addSpecFlags(fs)
+	specPath := fs.String("spec", "", "job spec `file` giving the car, road cases, objectives and constraints")
+	job := fs.String("job", "", "a stored `job` whose spec to use instead of --spec")
+	var setupPaths stringList
+	fs.Var(&setupPaths, "setup", "setup `file` to evaluate (repeatable)")
+	format := newFormat("table", "table", "json")
+	fs.Var(format, "format", "output `format`: table or json")
+	if _, err := fs.parse(args, 0, 0); err != nil {
+		return err
+	}
+	if len(setupPaths) == 0 {
+		return usagef("eval", "--setup is required")
+	}
+	fromSpec := *specPath != "" || sf.vehicle != "" || sf.roads != ""
+	if fromSpec == (*job != "") {
+		return usagef("eval", "give either --spec (optionally with --vehicle, --roads) or --job")
+	}
+	setups, err := readSetups(e, setupPaths)
+	if err != nil {
+		return err
+	}
+	req := &pb.EvaluateSetupsRequest{Setups: setups, View: pb.SolutionView_SOLUTION_VIEW_FULL}
+	if fromSpec {
+		spec, err := sf.load(e, *specPath)
+		if err != nil {
+			return err
+		}
+		req.Source = &pb.EvaluateSetupsRequest_Spec{Spec: spec}
+	} else {
+		req.Source = &pb.EvaluateSetupsRequest_Job{Job: jobName(*job)}
+	}
+	c, err := cf.dial()
+	if err != nil {
+		return err
+	}
+	defer c.Close()
+	cctx, cancel := c.call(ctx)
+	resp, err := c.svc.EvaluateSetups(cctx, req)
+	cancel()
+	if err != nil {
+		return err
+	}
+	if format.value == "json" {
+		b, err := protojson.MarshalOptions{Multiline: true}.Marshal(resp)
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(e.stdout, "%s\n", b)
+		return nil
+	}
+	for i, s := range resp.GetEvaluations() {
+		if i > 0 {
+			fmt.Fprintln(e.stdout)
+		}
+		if err := writeEvaluation(e.stdout, setupPaths[i], s, resp.GetObjectives(), resp.GetConstraints()); err != nil {
+			return err
+		}
+	}
+	printCaution(e.stdout)
+	return nil
+}
+
+// setupText is a one-line description of a setup's ratios.
+func setupText(s *pb.Setup) string {
+	f, r := s.GetFront(), s.GetRear()
+	return fmt.Sprintf("front bump %.3f rebound %.3f, rear bump %.3f rebound %.3f (ratios at the wheel)",
+		f.GetBumpRatio(), f.GetReboundRatio(), r.GetBumpRatio(), r.GetReboundRatio())
+}
+
+// objectivesText is "grip 6.10 % static, platform 1.234 mm".
+func objectivesText(values []float64, objectives []*pb.Objective) string {
+	var parts []string
+	for i, v := range values {
+		if i < len(objectives) {
+			q := objectiveQuantity(objectives[i].GetKind())
+			parts = append(parts, fmt.Sprintf("%s %s %s", q.label, tradeNum(q, v), q.unit))
+		}
+	}
+	return strings.Join(parts, ", ")
+}
+
+// writeEvaluation prints one evaluated setup: objectives, constraints,
+// warnings and a metrics table with one row per road case.
+func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb.Objective, constraints []*pb.Constraint) error {
+	fmt.Fprintf(w, "Setup %s: %s\n", title, setupText(s.GetSetup()))
+	fmt.Fprintf(w, "  objectives: %s\n", objectivesText(s.GetObjectives(), objectives))
+	if s.GetFeasible() {
+		fmt.Fprintln(w, "  constraints: all met")
+	} else {
+		fmt.Fprintf(w, "  constraints: NOT met: %s\n", s.GetInfeasibleReason())
+	}
+	for k, c := range constraints {
+		if k < len(s.GetViolations()) && s.GetViolations()[k] > 0 {
+			q := constraintQuantity(c.GetKind())
+			fmt.Fprintf(w, "    %s over its limit %s %s by %.1f %%\n", q.label, tradeNum(q, c.GetLimit()), q.unit, pct(s.GetViolations()[k]))
+		}
+	}
+	for _, wn := range s.GetWarnings() {
+		fmt.Fprintf(w, "  warning: %s\n", wn)
+	}
+	if len(s.GetCaseMetrics()) == 0 {
+		return nil
+	}
+	fmt.Fprintln(w)
+	t := newTable(w, false)
+	t.row("road case", qLoadSDRel.header()+" FL/FR/RL/RR", qRideSD.header()+" F/R", qRideShift.header()+" F/R",
+		qPitchSD.header(), qHeaveSD.header(), qTravelSD.header()+" F/R", qDamperVelSD.header()+" F/R",
+		"lift-off % max", "bump-stop % max")
+	for _, m := range s.GetCaseMetrics() {
+		cm := m.GetCorners()
+		per := func(q quantity, get func(*pb.CornerMetrics) float64, idx ...int) string {
+			parts := make([]string, 0, len(idx))
+			for _, i := range idx {
+				if i < len(cm) {
+					parts = append(parts, tradeNum(q, get(cm[i])))
+				}
+			}
+			return strings.Join(parts, "/")
+		}
+		maxOf := func(get func(*pb.CornerMetrics) float64) float64 {
+			v := 0.0
+			for _, c := range cm {
+				v = max(v, get(c))
+			}
+			return v
+		}
+		t.row(m.GetRoadCase(),
+			per(qLoadSDRel, (*pb.CornerMetrics).GetRelativeTyreLoadSd, 0, 1, 2, 3),
+			tradeNum(qRideSD, m.GetFront().GetRideHeightSdM())+"/"+tradeNum(qRideSD, m.GetRear().GetRideHeightSdM()),
+			tradeNum(qRideShift, m.GetFront().GetRideHeightShiftM())+"/"+tradeNum(qRideShift, m.GetRear().GetRideHeightShiftM()),
+			tradeNum(qPitchSD, m.GetPitchSdRad()),
+			tradeNum(qHeaveSD, m.GetHeaveAccelSdMPerS2()),
+			per(qTravelSD, (*pb.CornerMetrics).GetTravelSdM, 0, 2),
+			per(qDamperVelSD, (*pb.CornerMetrics).GetDamperVelocitySdMPerS, 0, 2),
+			tradeNum(qProbability, maxOf((*pb.CornerMetrics).GetLiftOffProbability)),
+			tradeNum(qProbability, maxOf((*pb.CornerMetrics).GetBumpStopProbability)))
+	}
+	return t.flush()
+}

@@ -1,0 +1,349 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"strings"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+var frontCommand = &command{
+	name:    "front",
+	summary: "print a finished job's Pareto front (table in trade units, CSV or JSON in SI)",
+	run:     runFront,
+}
+
+func runFront(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "front", "[flags] JOB", `
+Prints the Pareto front of a finished job, sorted by the first objective.
+The table is in trade units: damping ratios at the wheel, grip as tyre
+load standard deviation in % of static load, platform in mm, low-speed
+damper slopes in N s/mm at the component; the balanced point (nearest the
+middle of the front with each objective normalised over it) is marked *.
+CSV and JSON are SI, with the unit in each column's name, one row per
+solution, floats written so that they read back bit for bit.`)
+	cf := addClientFlags(fs, e)
+	format := newFormat("table", "table", "csv", "json")
+	fs.Var(format, "format", "output `format`: table, csv or json")
+	rows := fs.Int("rows", 0, "table only: show about this many `rows`, evenly spread along the front and the balanced point among them; 0 shows all")
+	pos, err := fs.parse(args, 1, 1)
+	if err != nil {
+		return err
+	}
+	c, err := cf.dial()
+	if err != nil {
+		return err
+	}
+	defer c.Close()
+	fd, err := fetchFront(ctx, c, jobName(pos[0]), pb.SolutionView_SOLUTION_VIEW_FULL)
+	if err != nil {
+		return err
+	}
+	switch format.value {
+	case "csv":
+		return writeFrontCSV(e.stdout, fd)
+	case "json":
+		return writeFrontJSON(e.stdout, fd)
+	}
+	if *rows < 0 {
+		return usagef("front", "--rows must not be negative")
+	}
+	if err := writeFrontTable(e.stdout, fd, *rows, "--rows 0 shows all"); err != nil {
+		return err
+	}
+	printCaution(e.stdout)
+	return nil
+}
+
+// slopes returns the low-speed bump and rebound slopes at the damper
+// (N s/m) of the front-left and rear-left corners, and whether the
+// solution carries its curves.
+func slopes(s *pb.Solution) (v [4]float64, ok bool) {
+	dc := s.GetDamperCurves()
+	if len(dc) < 3 {
+		return v, false
+	}
+	return [4]float64{dc[0].GetBumpSlopeNSPerM(), dc[0].GetReboundSlopeNSPerM(), dc[2].GetBumpSlopeNSPerM(), dc[2].GetReboundSlopeNSPerM()}, true
+}
+
+// extraGenes lists the indices of genes other than damping ratios (knees,
+// high-speed factors), which the table shows besides the four ratios.
+func extraGenes(names []string) []int {
+	var out []int
+	for i, n := range names {
+		if !strings.HasSuffix(n, "_ratio") {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+func ratios(s *pb.Solution) [4]float64 {
+	f, r := s.GetSetup().GetFront(), s.GetSetup().GetRear()
+	return [4]float64{f.GetBumpRatio(), f.GetReboundRatio(), r.GetBumpRatio(), r.GetReboundRatio()}
+}
+
+var ratioHeaders = [4]string{"F bump", "F rebound", "R bump", "R rebound"}
+
+// shownRows picks about rows of n solutions, evenly spaced by position
+// along the sorted front, always with the first, the last and the
+// balanced one; rows <= 0 or >= n keeps all.
+func shownRows(n, rows, balanced int) []bool {
+	show := make([]bool, n)
+	if rows <= 0 || rows >= n {
+		for i := range show {
+			show[i] = true
+		}
+		return show
+	}
+	for k := 0; k < rows; k++ {
+		show[k*(n-1)/max(rows-1, 1)] = true
+	}
+	if balanced >= 0 {
+		show[balanced] = true
+	}
+	return show
+}
+
+// writeFrontTable prints the heading and the front in trade units, about
+// rows of its solutions (0: all); more tells how to see the rest.
+func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
+	f, j := fd.front, fd.job
+	fmt.Fprintf(w, "Pareto front of %s %q: %d solutions", j.GetName(), j.GetDisplayName(), f.GetTotalSize())
+	if f.GetPartial() {
+		fmt.Fprintf(w, " (partial: the job %s before its end)", stateName(j.GetState()))
+	}
+	fmt.Fprintln(w)
+	spec := j.GetSpec()
+	var cases []string
+	for _, rc := range spec.GetRoadCases() {
+		cases = append(cases, rc.GetName())
+	}
+	fmt.Fprintf(w, "Car: %s. Road cases: %s. Seed %d.\n", spec.GetVehicle().GetName(), strings.Join(cases, "; "), j.GetSeed())
+	fmt.Fprintln(w, "Ratios are low-speed slope over critical damping at the wheel; slopes are at the damper.")
+	sols := f.GetSolutions()
+	if len(sols) == 0 {
+		fmt.Fprintln(w, "\nThe front is empty: no feasible setup was found. Loosen the constraints or widen the bounds.")
+		return nil
+	}
+	bal := balancedIndex(sols)
+	extra := extraGenes(f.GetGeneNames())
+	_, withSlopes := slopes(sols[0])
+	objQ := make([]quantity, len(f.GetObjectives()))
+	for i, o := range f.GetObjectives() {
+		objQ[i] = objectiveQuantity(o.GetKind())
+	}
+
+	fmt.Fprintln(w)
+	t := newTable(w, true)
+	h1, h2 := []string{"", "#"}, []string{"", ""}
+	for _, h := range ratioHeaders {
+		h1, h2 = append(h1, h), append(h2, "ratio")
+	}
+	for _, g := range extra {
+		q := geneQuantity(f.GetGeneNames()[g])
+		h1, h2 = append(h1, q.label), append(h2, q.unit)
+	}
+	for _, q := range objQ {
+		h1, h2 = append(h1, q.label), append(h2, q.unit)
+	}
+	if withSlopes {
+		for _, h := range ratioHeaders {
+			h1, h2 = append(h1, h), append(h2, qSlope.unit)
+		}
+	}
+	t.row(h1...)
+	t.row(h2...)
+	warned, shown := 0, 0
+	show := shownRows(len(sols), rows, bal)
+	for i, s := range sols {
+		if len(s.GetWarnings()) > 0 {
+			warned++
+		}
+		if !show[i] {
+			continue
+		}
+		shown++
+		mark := ""
+		if i == bal {
+			mark = "*"
+		}
+		row := []string{mark, fmt.Sprint(s.GetIndex())}
+		for _, r := range ratios(s) {
+			row = append(row, num(r, 3))
+		}
+		for _, g := range extra {
+			q := geneQuantity(f.GetGeneNames()[g])
+			row = append(row, tradeNum(q, s.GetGenes()[g]))
+		}
+		for k, q := range objQ {
+			row = append(row, tradeNum(q, s.GetObjectives()[k]))
+		}
+		if sl, ok := slopes(s); ok {
+			for _, v := range sl {
+				row = append(row, tradeNum(qSlope, v))
+			}
+		}
+		t.row(row...)
+	}
+	if err := t.flush(); err != nil {
+		return err
+	}
+	if shown < len(sols) {
+		fmt.Fprintf(w, "\nShowing %d of %d solutions, spread along the front; %s.\n", shown, len(sols), more)
+	}
+	fmt.Fprintf(w, "\n* balanced point: solution %d, nearest the middle of the front with each objective normalised over it.\n", sols[bal].GetIndex())
+	if warned > 0 {
+		fmt.Fprintf(w, "%d solutions carry validity warnings (lift-off or bump-stop contact); see --format json.\n", warned)
+	}
+	return nil
+}
+
+// frontColumns are the SI columns of one solution, shared by CSV and JSON.
+func frontColumns(f *pb.Front) []string {
+	cols := []string{"index"}
+	cols = append(cols, f.GetGeneNames()...)
+	for _, o := range f.GetObjectives() {
+		cols = append(cols, objectiveQuantity(o.GetKind()).column)
+	}
+	for _, h := range []string{"front_bump", "front_rebound", "rear_bump", "rear_rebound"} {
+		cols = append(cols, h+"_slope_n_s_per_m")
+	}
+	for _, c := range f.GetConstraints() {
+		cols = append(cols, constraintQuantity(c.GetKind()).column+"_violation")
+	}
+	return append(cols, "feasible", "balanced")
+}
+
+// frontRow is one solution's values in the order of frontColumns.
+func frontRow(f *pb.Front, s *pb.Solution, balanced bool) []any {
+	row := []any{int(s.GetIndex())}
+	for _, g := range s.GetGenes() {
+		row = append(row, g)
+	}
+	for _, o := range s.GetObjectives() {
+		row = append(row, o)
+	}
+	sl, _ := slopes(s)
+	for _, v := range sl {
+		row = append(row, v)
+	}
+	for k := range f.GetConstraints() {
+		v := 0.0
+		if k < len(s.GetViolations()) {
+			v = s.GetViolations()[k]
+		}
+		row = append(row, v)
+	}
+	return append(row, s.GetFeasible(), balanced)
+}
+
+func writeFrontCSV(w io.Writer, fd *frontData) error {
+	f := fd.front
+	cw := csv.NewWriter(w)
+	if err := cw.Write(frontColumns(f)); err != nil {
+		return err
+	}
+	bal := balancedIndex(f.GetSolutions())
+	for i, s := range f.GetSolutions() {
+		row := frontRow(f, s, i == bal)
+		cells := make([]string, len(row))
+		for k, v := range row {
+			switch v := v.(type) {
+			case float64:
+				cells[k] = siNum(v)
+			default:
+				cells[k] = fmt.Sprint(v)
+			}
+		}
+		if err := cw.Write(cells); err != nil {
+			return err
+		}
+	}
+	cw.Flush()
+	return cw.Error()
+}
+
+// record is a JSON object whose keys keep their order.
+type record struct {
+	keys   []string
+	values []any
+}
+
+func (r record) MarshalJSON() ([]byte, error) {
+	var b bytes.Buffer
+	b.WriteByte('{')
+	for i, k := range r.keys {
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		kb, _ := json.Marshal(k)
+		vb, err := json.Marshal(r.values[i])
+		if err != nil {
+			return nil, fmt.Errorf("field %s: %w", k, err)
+		}
+		b.Write(kb)
+		b.WriteByte(':')
+		b.Write(vb)
+	}
+	b.WriteByte('}')
+	return b.Bytes(), nil
+}
+
+func writeFrontJSON(w io.Writer, fd *frontData) error {
+	f, j := fd.front, fd.job
+	cols := frontColumns(f)
+	bal := balancedIndex(f.GetSolutions())
+	rows := make([]record, len(f.GetSolutions()))
+	for i, s := range f.GetSolutions() {
+		r := record{keys: cols, values: frontRow(f, s, i == bal)}
+		if ws := s.GetWarnings(); len(ws) > 0 {
+			r.keys = append(append([]string(nil), cols...), "warnings")
+			r.values = append(r.values, ws)
+		}
+		rows[i] = r
+	}
+	var objs, cons []record
+	for _, o := range f.GetObjectives() {
+		q := objectiveQuantity(o.GetKind())
+		objs = append(objs, record{keys: []string{"column", "kind", "aggregation"},
+			values: []any{q.column, o.GetKind().String(), o.GetAggregation().String()}})
+	}
+	for _, c := range f.GetConstraints() {
+		cons = append(cons, record{keys: []string{"kind", "limit"}, values: []any{c.GetKind().String(), c.GetLimit()}})
+	}
+	balIndex := -1
+	if bal >= 0 {
+		balIndex = int(f.GetSolutions()[bal].GetIndex())
+	}
+	out := record{
+		keys: []string{"job", "display_name", "state", "seed", "partial", "total_size", "gene_names", "objectives", "constraints", "balanced_index", "solutions"},
+		values: []any{f.GetJob(), j.GetDisplayName(), stateName(j.GetState()), j.GetSeed(), f.GetPartial(), int(f.GetTotalSize()),
+			nonNil(f.GetGeneNames()), nonNilRecords(objs), nonNilRecords(cons), balIndex, nonNilRecords(rows)},
+	}
+	b, err := json.MarshalIndent(out, "", "  ")
+	if err != nil {
+		return err
+	}
+	_, err = fmt.Fprintf(w, "%s\n", b)
+	return err
+}
+
+func nonNil(s []string) []string {
+	if s == nil {
+		return []string{}
+	}
+	return s
+}
+
+func nonNilRecords(r []record) []record {
+	if r == nil {
+		return []record{}
+	}
+	return r
+}

@@ -1,0 +1,47 @@
+package main
+
+import (
+	"context"
+	"fmt"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+// frontData is a whole front with the job it belongs to.
+type frontData struct {
+	job   *pb.Job   // with its spec
+	front *pb.Front // every page joined
+}
+
+// fetchFront reads the job and all pages of its front.
+func fetchFront(ctx context.Context, c *client, name string, view pb.SolutionView) (*frontData, error) {
+	cctx, cancel := c.call(ctx)
+	jr, err := c.svc.GetJob(cctx, &pb.GetJobRequest{Name: name, View: pb.JobView_JOB_VIEW_FULL})
+	cancel()
+	if err != nil {
+		return nil, err
+	}
+	req := &pb.GetFrontRequest{Job: name, PageSize: 1000, View: view}
+	var front *pb.Front
+	for {
+		cctx, cancel := c.call(ctx)
+		resp, err := c.svc.GetFront(cctx, req)
+		cancel()
+		if err != nil {
+			return nil, err
+		}
+		if front == nil {
+			front = resp.GetFront()
+		} else {
+			front.Solutions = append(front.Solutions, resp.GetFront().GetSolutions()...)
+		}
+		if resp.GetNextPageToken() == "" {
+			break
+		}
+		req.PageToken = resp.GetNextPageToken()
+	}
+	if front == nil {
+		return nil, fmt.Errorf("the server returned no front for %s", name)
+	}
+	return &frontData{job: jr.GetJob(), front: front}, nil
+}

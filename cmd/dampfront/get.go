@@ -1,0 +1,100 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"strings"
+	"time"
+
+	"google.golang.org/protobuf/encoding/protojson"
+	"google.golang.org/protobuf/types/known/timestamppb"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+var getCommand = &command{
+	name:    "get",
+	summary: "show one job: state, progress, times",
+	run:     runGet,
+}
+
+func runGet(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "get", "[flags] JOB", `
+Shows a job: its state, progress, times and error. --format json prints
+the Job message as protojson, the stored spec (with its defaults filled
+in) included.`)
+	cf := addClientFlags(fs, e)
+	format := newFormat("text", "text", "json")
+	fs.Var(format, "format", "output `format`: text or json")
+	pos, err := fs.parse(args, 1, 1)
+	if err != nil {
+		return err
+	}
+	c, err := cf.dial()
+	if err != nil {
+		return err
+	}
+	defer c.Close()
+	cctx, cancel := c.call(ctx)
+	resp, err := c.svc.GetJob(cctx, &pb.GetJobRequest{Name: jobName(pos[0]), View: pb.JobView_JOB_VIEW_FULL})
+	cancel()
+	if err != nil {
+		return err
+	}
+	j := resp.GetJob()
+	if format.value == "json" {
+		b, err := protojson.MarshalOptions{Multiline: true}.Marshal(j)
+		if err != nil {
+			return err
+		}
+		fmt.Fprintf(e.stdout, "%s\n", b)
+		return nil
+	}
+	p := j.GetProgress()
+	t := newTable(e.stdout, false)
+	t.row("job", j.GetName())
+	t.row("name", j.GetDisplayName())
+	t.row("state", stateName(j.GetState())+flagText(j.GetCancelRequested() && !terminal(j.GetState()), ", cancel requested")+flagText(j.GetPartial(), ", front partial"))
+	t.row("labels", formatLabels(j.GetLabels()))
+	t.row("seed", fmt.Sprint(j.GetSeed()))
+	t.row("car", j.GetSpec().GetVehicle().GetName())
+	var cases []string
+	for _, rc := range j.GetSpec().GetRoadCases() {
+		cases = append(cases, rc.GetName())
+	}
+	t.row("road cases", strings.Join(cases, "; "))
+	t.row("generation", fmt.Sprintf("%d of %d", p.GetGeneration(), p.GetGenerations()))
+	t.row("evaluations", fmt.Sprint(p.GetEvaluations()))
+	t.row("hypervolume", fmt.Sprintf("%.6g", p.GetHypervolume()))
+	for i, v := range p.GetBestObjectives() {
+		if obj := j.GetSpec().GetObjectives(); i < len(obj) {
+			q := objectiveQuantity(obj[i].GetKind())
+			t.row("best "+q.label, tradeNum(q, v)+" "+q.unit)
+		}
+	}
+	t.row("created", formatTime(j.GetCreateTime()))
+	t.row("started", formatTime(j.GetStartTime()))
+	t.row("finished", formatTime(j.GetFinishTime()))
+	if j.GetErrorMessage() != "" {
+		t.row("error", j.GetErrorMessage())
+	}
+	return t.flush()
+}
+
+func terminal(s pb.JobState) bool {
+	return s == pb.JobState_JOB_STATE_SUCCEEDED || s == pb.JobState_JOB_STATE_FAILED || s == pb.JobState_JOB_STATE_CANCELLED
+}
+
+func flagText(on bool, s string) string {
+	if on {
+		return s
+	}
+	return ""
+}
+
+func formatTime(t *timestamppb.Timestamp) string {
+	if t == nil {
+		return "-"
+	}
+	return t.AsTime().Local().Format(time.RFC3339)
+}

@@ -1,0 +1,120 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"sort"
+	"strings"
+	"time"
+
+	"google.golang.org/protobuf/encoding/protojson"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+var listCommand = &command{
+	name:    "list",
+	summary: "list jobs, newest first",
+	run:     runList,
+}
+
+func runList(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "list", "[flags]", `
+Lists jobs, newest first, as a table or as JSON lines (one protojson Job
+per line).`)
+	cf := addClientFlags(fs, e)
+	var states stringList
+	fs.Var(&states, "state", "keep jobs in this `state` (queued, running, succeeded, failed, cancelled; repeatable)")
+	labels := labelFlag{}
+	fs.Var(labels, "label", "keep jobs carrying this label `key=value` (repeatable)")
+	limit := fs.Int("limit", 50, "largest number of jobs listed; 0 lists all")
+	format := newFormat("table", "table", "json")
+	fs.Var(format, "format", "output `format`: table or json")
+	if _, err := fs.parse(args, 0, 0); err != nil {
+		return err
+	}
+	if *limit < 0 {
+		return usagef("list", "--limit must not be negative")
+	}
+	req := &pb.ListJobsRequest{Labels: labels, View: pb.JobView_JOB_VIEW_BASIC}
+	for _, s := range states {
+		st, ok := parseJobState(s)
+		if !ok {
+			return usagef("list", "--state %q is not one of queued, running, succeeded, failed, cancelled", s)
+		}
+		req.States = append(req.States, st)
+	}
+	c, err := cf.dial()
+	if err != nil {
+		return err
+	}
+	defer c.Close()
+	var jobs []*pb.Job
+	for {
+		if *limit > 0 {
+			req.PageSize = int32(min(*limit-len(jobs), 1000))
+		}
+		cctx, cancel := c.call(ctx)
+		resp, err := c.svc.ListJobs(cctx, req)
+		cancel()
+		if err != nil {
+			return err
+		}
+		jobs = append(jobs, resp.GetJobs()...)
+		if resp.GetNextPageToken() == "" || (*limit > 0 && len(jobs) >= *limit) {
+			break
+		}
+		req.PageToken = resp.GetNextPageToken()
+	}
+	if format.value == "json" {
+		for _, j := range jobs {
+			b, err := protojson.Marshal(j)
+			if err != nil {
+				return err
+			}
+			fmt.Fprintf(e.stdout, "%s\n", b)
+		}
+		return nil
+	}
+	t := newTable(e.stdout, false)
+	t.row("JOB", "STATE", "GENERATION", "CREATED", "NAME", "LABELS")
+	for _, j := range jobs {
+		p := j.GetProgress()
+		t.row(j.GetJobId(), stateName(j.GetState()), fmt.Sprintf("%d/%d", p.GetGeneration(), p.GetGenerations()),
+			j.GetCreateTime().AsTime().Local().Format(time.DateTime), j.GetDisplayName(), formatLabels(j.GetLabels()))
+	}
+	return t.flush()
+}
+
+// parseJobState reads a state by its short name (or its enum name).
+func parseJobState(s string) (pb.JobState, bool) {
+	s = strings.ToUpper(s)
+	if !strings.HasPrefix(s, "JOB_STATE_") {
+		s = "JOB_STATE_" + s
+	}
+	if s == "JOB_STATE_CANCELED" {
+		s = "JOB_STATE_CANCELLED"
+	}
+	v, ok := pb.JobState_value[s]
+	if !ok || v == 0 {
+		return 0, false
+	}
+	return pb.JobState(v), true
+}
+
+// stateName is a state's short name: "succeeded".
+func stateName(s pb.JobState) string {
+	return strings.ToLower(strings.TrimPrefix(s.String(), "JOB_STATE_"))
+}
+
+func formatLabels(l map[string]string) string {
+	keys := make([]string, 0, len(l))
+	for k := range l {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	for i, k := range keys {
+		keys[i] = k + "=" + l[k]
+	}
+	return strings.Join(keys, ",")
+}

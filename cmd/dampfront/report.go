@@ -1,0 +1,54 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+	"text/tabwriter"
+)
+
+// caution ends every printed report (front, eval, check, curves, demo).
+const caution = `Caution: linear model with statistical linearisation, tyres as springs, no
+kinematics: a starting point for rig and track testing by qualified
+engineers, within the series' technical regulations, never a replacement
+for them.`
+
+// printCaution writes the caution after a blank line.
+func printCaution(w io.Writer) {
+	fmt.Fprintf(w, "\n%s\n", caution)
+}
+
+// table is a tabwriter with the house layout: two spaces between columns;
+// right-aligned for tables of numbers, left-aligned for tables of names.
+type table struct {
+	tw *tabwriter.Writer
+}
+
+func newTable(w io.Writer, numeric bool) *table {
+	var flags uint
+	if numeric {
+		flags = tabwriter.AlignRight
+	}
+	return &table{tw: tabwriter.NewWriter(w, 0, 0, 2, ' ', flags)}
+}
+
+// row writes one row; every cell ends with a tab so that the last column
+// is aligned too.
+func (t *table) row(cells ...string) {
+	fmt.Fprintln(t.tw, strings.Join(cells, "\t")+"\t")
+}
+
+func (t *table) flush() error { return t.tw.Flush() }
+
+// num formats a table value with fixed decimals.
+func num(v float64, prec int) string {
+	return strconv.FormatFloat(v, 'f', prec, 64)
+}
+
+// tradeNum formats the trade value of an SI value.
+func tradeNum(q quantity, si float64) string { return num(q.trade(si), q.prec) }
+
+// siNum formats an SI value for CSV: the shortest text that reads back to
+// the same float64, so that files compare bit for bit.
+func siNum(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }

@@ -1,0 +1,243 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"strings"
+	"time"
+
+	"github.com/schollz/progressbar/v3"
+	"google.golang.org/grpc/codes"
+	"google.golang.org/protobuf/encoding/protojson"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+var watchCommand = &command{
+	name:    "watch",
+	summary: "follow a job with a progress bar until it ends",
+	run:     runWatch,
+}
+
+func runWatch(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "watch", "[flags] JOB", `
+Follows a job until it ends: a progress bar of generations on standard
+error with the hypervolume and the best value of each objective, then one
+line with the final state on standard output. The exit code is 0 when the
+job succeeded and 1 when it failed or was cancelled. If the server goes
+away (restart, crash) the watch reconnects for up to --reconnect.`)
+	cf := addClientFlags(fs, e)
+	wf := addWatchModeFlags(fs)
+	pos, err := fs.parse(args, 1, 1)
+	if err != nil {
+		return err
+	}
+	if err := wf.check("watch"); err != nil {
+		return err
+	}
+	c, err := cf.dial()
+	if err != nil {
+		return err
+	}
+	defer c.Close()
+	_, err = watchJob(ctx, e, c, jobName(pos[0]), wf)
+	return err
+}
+
+// watchModes are the output modes of watch and submit --watch.
+type watchModes struct {
+	quiet     bool
+	json      bool
+	reconnect time.Duration
+}
+
+func addWatchModeFlags(fs *flagSet) *watchModes {
+	w := &watchModes{}
+	fs.BoolVar(&w.quiet, "quiet", false, "no progress bar: print only the final state line")
+	fs.BoolVar(&w.json, "json", false, "print every event as one line of protojson (WatchJobResponse) on standard output")
+	fs.DurationVar(&w.reconnect, "reconnect", 60*time.Second, "how long to keep reconnecting while the server is unreachable")
+	return w
+}
+
+func (w *watchModes) check(cmd string) error {
+	if w.quiet && w.json {
+		return usagef(cmd, "--quiet and --json exclude each other")
+	}
+	if w.reconnect < 0 {
+		return usagef(cmd, "--reconnect must not be negative")
+	}
+	return nil
+}
+
+// watchJob follows job name to its end and returns it. The error is nil
+// when it succeeded, an exit code 1 when it failed or was cancelled.
+func watchJob(ctx context.Context, e *env, c *client, name string, w *watchModes) (*pb.Job, error) {
+	var objectives []*pb.Objective
+	if !w.json && !w.quiet {
+		cctx, cancel := c.call(ctx)
+		resp, err := c.svc.GetJob(cctx, &pb.GetJobRequest{Name: name, View: pb.JobView_JOB_VIEW_FULL})
+		cancel()
+		if err != nil {
+			return nil, err
+		}
+		objectives = resp.GetJob().GetSpec().GetObjectives()
+	}
+	var bar *progressBar
+	if !w.json && !w.quiet {
+		bar = newProgressBar(e.stderr, objectives)
+	}
+	var final *pb.Job
+	lastContact := time.Now()
+	for final == nil {
+		job, err := watchOnce(ctx, e, c, name, w, bar, &lastContact)
+		if err == nil {
+			final = job
+			break
+		}
+		if !isCode(err, codes.Unavailable) || time.Since(lastContact) > w.reconnect || ctx.Err() != nil {
+			if bar != nil {
+				bar.abandon()
+			}
+			return nil, err
+		}
+		select {
+		case <-ctx.Done():
+			return nil, ctx.Err()
+		case <-time.After(250 * time.Millisecond):
+		}
+	}
+	if bar != nil {
+		bar.finish(final.GetProgress())
+	}
+	if !w.json {
+		fmt.Fprintln(e.stdout, finalLine(final))
+	}
+	switch final.GetState() {
+	case pb.JobState_JOB_STATE_SUCCEEDED:
+		return final, nil
+	default:
+		return final, &exitError{code: exitFailure}
+	}
+}
+
+// watchOnce runs one WatchJob stream; it returns the terminal job, or the
+// error that broke the stream.
+func watchOnce(ctx context.Context, e *env, c *client, name string, w *watchModes, bar *progressBar, lastContact *time.Time) (*pb.Job, error) {
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	stream, err := c.svc.WatchJob(ctx, &pb.WatchJobRequest{Name: name})
+	if err != nil {
+		return nil, err
+	}
+	for {
+		ev, err := stream.Recv()
+		if err == io.EOF {
+			return nil, fmt.Errorf("the server ended the watch of %s before the job finished", name)
+		}
+		if err != nil {
+			return nil, err
+		}
+		*lastContact = time.Now()
+		if w.json {
+			b, err := protojson.Marshal(ev)
+			if err != nil {
+				return nil, err
+			}
+			fmt.Fprintf(e.stdout, "%s\n", b)
+		}
+		switch ev := ev.GetEvent().(type) {
+		case *pb.WatchJobResponse_Progress:
+			if bar != nil {
+				bar.update(ev.Progress)
+			}
+		case *pb.WatchJobResponse_Job:
+			if ev.Job.GetState() == pb.JobState_JOB_STATE_QUEUED || ev.Job.GetState() == pb.JobState_JOB_STATE_RUNNING {
+				if bar != nil {
+					bar.update(ev.Job.GetProgress())
+				}
+				continue
+			}
+			return ev.Job, nil
+		}
+	}
+}
+
+// finalLine is the one-line summary of a finished job.
+func finalLine(j *pb.Job) string {
+	p := j.GetProgress()
+	state := strings.ToLower(strings.TrimPrefix(j.GetState().String(), "JOB_STATE_"))
+	s := fmt.Sprintf("%s %s: %d of %d generations, %d evaluations", j.GetName(), state, p.GetGeneration(), p.GetGenerations(), p.GetEvaluations())
+	if j.GetPartial() {
+		s += ", front partial"
+	}
+	if j.GetErrorMessage() != "" {
+		s += ": " + j.GetErrorMessage()
+	}
+	return s
+}
+
+// progressBar shows generations done, hypervolume and best objectives.
+type progressBar struct {
+	bar        *progressbar.ProgressBar
+	w          io.Writer
+	objectives []*pb.Objective
+	max        int
+}
+
+func newProgressBar(w io.Writer, objectives []*pb.Objective) *progressBar {
+	return &progressBar{w: w, objectives: objectives, bar: progressbar.NewOptions(1,
+		progressbar.OptionSetWriter(w),
+		progressbar.OptionSetWidth(30),
+		progressbar.OptionShowCount(),
+		progressbar.OptionSetPredictTime(true),
+		progressbar.OptionSetElapsedTime(true),
+		progressbar.OptionThrottle(100*time.Millisecond),
+		progressbar.OptionSetDescription("queued"),
+		progressbar.OptionSetItsString("gen"),
+		progressbar.OptionSetRenderBlankState(true),
+	)}
+}
+
+func (b *progressBar) update(p *pb.Progress) {
+	if p == nil || p.GetGenerations() == 0 {
+		return
+	}
+	if int(p.GetGenerations()) != b.max {
+		b.max = int(p.GetGenerations())
+		b.bar.ChangeMax(b.max)
+	}
+	// Count first: Describe renders at once, Set only past the throttle.
+	_ = b.bar.Set(int(p.GetGeneration()))
+	b.bar.Describe(progressText(p, b.objectives))
+}
+
+// finish draws the last state (unthrottled) and leaves the bar.
+func (b *progressBar) finish(p *pb.Progress) {
+	b.update(p)
+	if b.max > 0 && int(p.GetGeneration()) >= b.max {
+		_ = b.bar.Finish()
+	}
+	b.abandon()
+}
+
+func (b *progressBar) abandon() {
+	_ = b.bar.Exit()
+	fmt.Fprintln(b.w)
+}
+
+// progressText is the bar's description: hypervolume and the best value
+// of each objective in trade units (the bar counts the generations).
+func progressText(p *pb.Progress, objectives []*pb.Objective) string {
+	var parts []string
+	if hv := p.GetHypervolume(); hv > 0 {
+		parts = append(parts, fmt.Sprintf("hv %.3g", hv))
+	}
+	for i, v := range p.GetBestObjectives() {
+		if i < len(objectives) {
+			q := objectiveQuantity(objectives[i].GetKind())
+			parts = append(parts, fmt.Sprintf("%s %s %s", q.label, tradeNum(q, v), q.unit))
+		}
+	}
+	return strings.Join(parts, "  ")
+}
