@@ -10,19 +10,27 @@ import (
 	"time"
 )
 
-// crashChildEnv, when set to a database path, turns TestCrashWorkerProcess
+// crashChildEnv, when set to a database URL, turns TestCrashWorkerProcess
 // into the worker process that TestCrashResume kills.
 const crashChildEnv = "DAMPFRONT_JOBS_CRASH_CHILD_DB"
+
+// crashChildNodeEnv, when set, is the child's Config.NodeID.
+const crashChildNodeEnv = "DAMPFRONT_JOBS_CRASH_CHILD_NODE"
+
+// slowTestEnv enables the tests that wait for River's own rescuer, whose
+// run interval (30 s) River does not let a client shorten.
+const slowTestEnv = "DAMPFRONT_TEST_SLOW"
 
 // TestCrashWorkerProcess is not a test of its own: run by TestCrashResume
 // as a child process, it works the database named by crashChildEnv until
 // it is killed (or, bounded, until testTimeout passes).
 func TestCrashWorkerProcess(t *testing.T) {
-	path := os.Getenv(crashChildEnv)
-	if path == "" {
+	url := os.Getenv(crashChildEnv)
+	if url == "" {
 		t.Skip("helper process for TestCrashResume")
 	}
-	cfg := testConfig(path)
+	cfg := testConfig(url)
+	cfg.NodeID = os.Getenv(crashChildNodeEnv)
 	cfg.Workers = 1
 	cfg.SliceDuration = time.Minute // one long slice, so the kill lands inside it
 	cfg.CheckpointInterval = 50 * time.Millisecond
@@ -38,14 +46,43 @@ func TestCrashWorkerProcess(t *testing.T) {
 
 // TestCrashResume kills a worker process with SIGKILL in the middle of a
 // slice, after a checkpoint and with work done since, then starts a new
-// engine on the same SQLite file. Start must release the dead process's
+// engine on the same database. Start must release the dead process's
 // slice; the job must resume from the last checkpoint (exactly the
 // remaining generations run again, the lost ones included) and end with
 // the front of an uninterrupted run, bit for bit.
 func TestCrashResume(t *testing.T) {
 	t.Parallel()
+	for _, be := range backends {
+		t.Run(be.name, func(t *testing.T) {
+			t.Parallel()
+			testCrashResume(t, be.url(t), "", 1)
+		})
+	}
+}
+
+// TestCrashRescueByRiver is TestCrashResume with the dead worker on
+// another node: Start must leave its slice alone, and River's rescuer
+// (on the leader, after RescueStuckJobsAfter) runs it again. It waits for
+// River's leader election and 30 s rescuer interval, so it runs only when
+// DAMPFRONT_TEST_SLOW is set.
+func TestCrashRescueByRiver(t *testing.T) {
+	t.Parallel()
+	if os.Getenv(slowTestEnv) == "" {
+		t.Skipf("waits for River's rescuer; set %s=1 to run", slowTestEnv)
+	}
+	for _, be := range backends {
+		t.Run(be.name, func(t *testing.T) {
+			t.Parallel()
+			testCrashResume(t, be.url(t), "another-node", 0)
+		})
+	}
+}
+
+// testCrashResume runs the crash scenario on the database at path with
+// the child on node childNode ("" for this node), and wants Start to
+// release wantReleased slices.
+func testCrashResume(t *testing.T, path, childNode string, wantReleased int) {
 	ctx := context.Background()
-	path := testSQLitePath(t)
 	spec := toySpec{Generations: 300, Size: 11, Seed: 5, StepDelay: time.Millisecond}
 
 	client, err := Open(ctx, testConfig(path), &toyOpener{}) // submits and reads; no workers started
@@ -60,7 +97,7 @@ func TestCrashResume(t *testing.T) {
 
 	var out bytes.Buffer
 	child := exec.Command(os.Args[0], "-test.run=^TestCrashWorkerProcess$", "-test.count=1")
-	child.Env = append(os.Environ(), crashChildEnv+"="+path)
+	child.Env = append(os.Environ(), crashChildEnv+"="+path, crashChildNodeEnv+"="+childNode)
 	child.Stdout, child.Stderr = &out, &out
 	if err := child.Start(); err != nil {
 		t.Fatal(err)
@@ -119,10 +156,17 @@ func TestCrashResume(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if released != 1 {
-		t.Errorf("Start released %d slices, want the dead process's 1", released)
+	if released != wantReleased {
+		t.Errorf("Start released %d slices, want %d", released, wantReleased)
 	}
-	waitFor(t, e, j.ID, "resumed", func(j *Job) bool { return j.Slices > atKill.Slices })
+	resumeWait := testTimeout
+	if wantReleased == 0 {
+		// River's leader lease of the dead child must expire, then its
+		// rescuer (every 30 s) finds the slice, then its scheduler
+		// makes the retry available.
+		resumeWait = 3 * time.Minute
+	}
+	waitForWithin(t, e, j.ID, "resumed", resumeWait, func(j *Job) bool { return j.Slices > atKill.Slices })
 	resumeDelay, sinceOpen := time.Since(restart), time.Since(reopen)
 	done := waitTerminal(t, e, j.ID)
 	if done.State != StateSucceeded {

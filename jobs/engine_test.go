@@ -97,7 +97,13 @@ func (b *testBundle) submit(t *testing.T, spec toySpec, labels map[string]string
 // waitFor polls job id until cond holds, at most testTimeout.
 func waitFor(t *testing.T, e *Engine, id string, what string, cond func(*Job) bool) *Job {
 	t.Helper()
-	deadline := time.Now().Add(testTimeout)
+	return waitForWithin(t, e, id, what, testTimeout, cond)
+}
+
+// waitForWithin polls job id until cond holds, at most limit.
+func waitForWithin(t *testing.T, e *Engine, id string, what string, limit time.Duration, cond func(*Job) bool) *Job {
+	t.Helper()
+	deadline := time.Now().Add(limit)
 	for {
 		j, err := e.Get(context.Background(), id)
 		if err != nil {
@@ -107,7 +113,7 @@ func waitFor(t *testing.T, e *Engine, id string, what string, cond func(*Job) bo
 			return j
 		}
 		if time.Now().After(deadline) {
-			t.Fatalf("job %s not %s within %v: %+v", id, what, testTimeout, j)
+			t.Fatalf("job %s not %s within %v: %+v", id, what, limit, j)
 		}
 		time.Sleep(pollInterval)
 	}

@@ -1,0 +1,71 @@
+// Package jobs is dampfront's durable job engine: it stores job specs,
+// runs their optimisation studies as chains of bounded slices on River,
+// checkpoints them, and keeps their progress and Pareto fronts, in the
+// embedded SQLite file (default) or in PostgreSQL (many workers on many
+// hosts sharing one database).
+//
+// The package knows the optimiser only through Study and StudyOpener, and
+// the API only through opaque spec and detail bytes; the wiring code
+// implements those. It imports neither dampfront/api nor dampfront/model.
+//
+// # Data flow
+//
+//	Submit(spec, labels, seed)
+//	  tx { dampfront_job row (queued) + labels; River job "dampfront_slice" #1 }
+//
+//	a worker fetches slice n (River)
+//	  JobStart: job -> running, lease := client/river-job/attempt
+//	  Open(spec, last checkpoint or nil) -> Study
+//	  loop Step(ctx, StepGenerations) until
+//	      done | SliceDuration elapsed | cancel flag seen | engine stopping
+//	    every ProgressInterval:   progress (lease-checked)
+//	    every CheckpointInterval: tx { checkpoint + progress, front }
+//	  end of slice, one transaction:
+//	    done:       checkpoint + progress, front, job -> succeeded, complete slice n
+//	    cancelled:  checkpoint + progress, front, job -> cancelled (partial), complete slice n
+//	    otherwise:  checkpoint + progress, front, insert slice n+1, complete slice n
+//
+//	Get, List, Watch (polls), Front (terminal jobs only) read the tables.
+//
+// Because the checkpoint, the next slice and the completion of the
+// current one commit together, a job is never lost and has at most one
+// queued or running slice: after a crash the slice is still "running" in
+// River's table and is run again from the last checkpoint, either by
+// River's rescuer (RescueStuckJobsAfter = SliceDuration + SliceGrace +
+// RescueMargin, finite: River never rescues a job with timeout -1) or, at
+// once, by Start on the same node, which releases slices whose process is
+// gone. Every write of a slice run carries its lease; a run that has been
+// superseded by a rescued one gets ErrFailedPrecondition and writes
+// nothing, so the stored checkpoint always belongs to one run.
+//
+// Determinism: the engine hands the study exactly the bytes its last
+// Checkpoint returned and never keeps a half-run generation (Study.Step
+// must stop at a generation boundary), so a seeded job ends with the same
+// front, bit for bit, in one slice, in many, or across a kill and resume.
+// Floats are stored as IEEE 754 bits, not decimals.
+//
+// Cancellation sets a flag in dampfront_job; the running slice polls it
+// every CancelPollInterval (and a Cancel in the same process interrupts
+// it directly). The cancelled job keeps the front of its last generation,
+// marked partial. Stop (for SIGTERM) makes every running slice stop after
+// its current generation, checkpoint and queue its next slice, within
+// StopTimeout; then their contexts are cancelled.
+//
+// # Tables
+//
+// River's own (river_job, river_leader, ...) and, prefixed dampfront_:
+// job (spec, state, times, error, partial, cancel flag, lease, progress),
+// job_label (for filtering), checkpoint (one per job), front (one row per
+// solution) and migration (applied versions). Migrations are embedded SQL
+// files, numbered, one directory per backend (migrations/sqlite,
+// migrations/postgres), applied by Open. Times are stored as int64
+// nanoseconds since the Unix epoch, UTC.
+//
+// # Errors
+//
+// Input problems are *InvalidArgumentError values naming each bad field
+// (errors.Is ErrInvalidArgument); unknown IDs *NotFoundError (ErrNotFound);
+// operations the job's state forbids, such as the front of a running job
+// or the cancel of a finished one, *PreconditionError
+// (ErrFailedPrecondition). The API layer maps these to gRPC codes.
+package jobs
