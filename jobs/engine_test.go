@@ -281,9 +281,11 @@ func TestStopHandsOver(t *testing.T) {
 			waitFor(t, e1, j.ID, "past generation 50", func(j *Job) bool { return j.Progress.Generation > 50 })
 			ctx, cancel := context.WithTimeout(context.Background(), testTimeout)
 			defer cancel()
+			stopStart := time.Now()
 			if err := e1.Stop(ctx); err != nil {
 				t.Fatalf("Stop: %v", err)
 			}
+			t.Logf("Stop handed the running slice over in %v", time.Since(stopStart))
 			stopped, err := e1.Get(ctx, j.ID)
 			if err != nil {
 				t.Fatal(err)
