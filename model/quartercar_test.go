@@ -475,3 +475,55 @@ func TestQuarterCarTyreLoadOptimum(t *testing.T) {
 	}
 	t.Logf("tyre-load-optimal damping ratio of the quarter car: %.4f (closed form %.4f)", cStar/cc, want/cc)
 }
+
+// TestQuarterCarJacking checks the mean ride-height shift of a linear
+// damper with bump ≠ rebound in the quarter-car limit. The mean damper
+// force at the wheel is E[f] = σ_v (c_b − c_r)/sqrt(2π) (E[v; v > 0] =
+// σ_v/sqrt(2π) for Gaussian v), σ_v the travel-velocity sd of the quarter
+// car with c = (c_b + c_r)/2 (closed form from the integral table I_4,
+// Newland 1993 appendix 1). By statics the corner's spring carries it:
+// travel shift −E[f]/k, wheel unmoved (the tyre sees no net force), body
+// and so ride height up by E[f]/k; with the same setting on both sides of
+// an axle the shifts form a plane, so the body takes them without
+// twisting. Tolerance relative 1e-6, from the velocity variance.
+func TestQuarterCarJacking(t *testing.T) {
+	t.Parallel()
+	const tol = 1e-6
+	qf := quarterCar{m: 260, mu: 38, k: 42e3, kt: 290e3}
+	qr := quarterCar{m: 260, mu: 45, k: 55e3, kt: 310e3}
+	const gv = 6e-5
+	const mr = 0.8
+	v := quarterCarVehicle(qf, qr, mr)
+	s := Setup{Axles: [2]AxleDamping{{BumpRatio: 0.25, ReboundRatio: 0.75}, {BumpRatio: 0.6, ReboundRatio: 0.3}}}
+	e, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, 40)}, Options{Grid: fineGrid})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var res Result
+	if err := e.Evaluate(s, &res); err != nil {
+		t.Fatal(err)
+	}
+	m := res.Cases[0]
+	var shift [2]float64
+	for ax, q := range []quarterCar{qf, qr} {
+		cc := q.criticalWheelDamping()
+		cb, cr := s.Axles[ax].BumpRatio*cc, s.Axles[ax].ReboundRatio*cc
+		sv := math.Sqrt(q.travelVelVar(gv, (cb+cr)/2))
+		mean := sv * (cb - cr) / math.Sqrt(2*math.Pi)
+		shift[ax] = mean / q.k
+		for _, i := range []int{2 * ax, 2*ax + 1} {
+			if e := relErr(m.MeanDamperForce[i], mean/mr); e > tol {
+				t.Errorf("%s mean damper force %.10g N, closed form E[f]/MR %.10g N", CornerNames[i], m.MeanDamperForce[i], mean/mr)
+			}
+			if e := relErr(m.TravelShift[i], -mean/q.k); e > tol {
+				t.Errorf("%s travel shift %.10g m, closed form −E[f]/k %.10g m", CornerNames[i], m.TravelShift[i], -mean/q.k)
+			}
+		}
+		if e := relErr(m.RideHeightShift[ax], shift[ax]); e > tol {
+			t.Errorf("%s ride-height shift %.10g m, closed form E[f]/k %.10g m", AxleNames[ax], m.RideHeightShift[ax], shift[ax])
+		}
+	}
+	if pitch := (shift[0] - shift[1]) / v.Wheelbase(); relErr(m.PitchShift, pitch) > tol {
+		t.Errorf("pitch shift %.10g rad, closed form %.10g rad", m.PitchShift, pitch)
+	}
+}
