@@ -185,7 +185,7 @@ func (rq *riverQueue[TTx]) finalContext(ctx context.Context) (context.Context, c
 func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Study) error {
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
-	return rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
+	return finishedElsewhere(rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
 		if study != nil {
 			if err := rq.saveState(ctx, st, rj.Args.JobID, lease, study); err != nil {
 				return err
@@ -200,7 +200,7 @@ func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs
 		}
 		_, err := river.JobCompleteTx[riverdriver.Driver[TTx]](ctx, tx, rj)
 		return err
-	})
+	}))
 }
 
 // finish moves the job to a terminal state, saving the study's final
@@ -209,7 +209,7 @@ func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs
 func (rq *riverQueue[TTx]) finish(ctx context.Context, rj *river.Job[sliceArgs], lease string, state State, msg string, study Study) error {
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
-	return rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
+	return finishedElsewhere(rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
 		if study != nil {
 			if err := rq.saveState(ctx, st, rj.Args.JobID, lease, study); err != nil {
 				return err
@@ -221,7 +221,19 @@ func (rq *riverQueue[TTx]) finish(ctx context.Context, rj *river.Job[sliceArgs],
 		}
 		_, err := river.JobCompleteTx[riverdriver.Driver[TTx]](ctx, tx, rj)
 		return err
-	})
+	}))
+}
+
+// finishedElsewhere turns the error of a slice's last transaction into
+// nil when the job had already reached a terminal state (a *PreconditionError
+// from the lease check): nothing was written, and River may complete the
+// slice. A lost lease stays an error, so River retries the slice.
+func finishedElsewhere(err error) error {
+	var pe *PreconditionError
+	if errors.As(err, &pe) && pe.State.Terminal() {
+		return nil
+	}
+	return err
 }
 
 // failJob fails a job whose slice River is about to discard.

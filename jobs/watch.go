@@ -2,6 +2,7 @@ package jobs
 
 import (
 	"context"
+	"errors"
 	"time"
 )
 
@@ -61,7 +62,4 @@ func send(ctx context.Context, ch chan<- *Job, j *Job) bool {
 	}
 }
 
-func isNotFound(err error) bool {
-	_, ok := err.(*NotFoundError)
-	return ok
-}
+func isNotFound(err error) bool { return errors.Is(err, ErrNotFound) }
