@@ -38,7 +38,18 @@ func (f ISOFit) RoadCase(name string, speed float64) RoadCase {
 // FitISO fits the ISO 8608 power law to the Welch spectrum's tracks over
 // the band [lo, hi] (cycles/m); with two tracks it fits their mean PSD
 // (½(G_L + G_R), which has at least the degrees of freedom of one track;
-// the fit's standard errors assume only those).
+// the fit's standard errors assume only those). Start the band at the
+// fourth bin or above: the per-segment detrend takes power from the
+// first two or three.
+//
+// Resolution bias. The Hann window smooths the spectrum with its spectral
+// window |W|², whose second moment is ∫|w'|²/(4π²∫w²) = 1/3 bin² for
+// w = sin²(πt) (Parseval for w'), so E[Ĝ] ≈ G + ½(Δn²/3) G'' (the
+// resolution bias of Bendat & Piersol, "Random Data", 4th ed., ch. 8,
+// for a smoothing window of that second moment; from memory). For
+// G ∝ n^-w at bin k this is the factor 1 + w(w+1)/(6k²), 4% at k = 5 for
+// w = 2 and convex, so it raises the low bins and would steepen the fit.
+// FitISO divides it out with the waviness of a first fit and fits again.
 func (s *Spectrum) FitISO(lo, hi float64) (ISOFit, error) {
 	g := s.Left
 	if s.Right != nil {
@@ -48,7 +59,20 @@ func (s *Spectrum) FitISO(lo, hi float64) (ISOFit, error) {
 		}
 	}
 	infl := hannBinInflation(s.SegmentSamples)
-	return FitISO(s.N, g, lo, hi, 2*s.EquivalentSegments, infl)
+	dof := 2 * s.EquivalentSegments
+	fit, err := FitISO(s.N, g, lo, hi, dof, infl)
+	if err != nil {
+		return fit, err
+	}
+	corrected := make([]float64, len(g))
+	for k := range g {
+		b := 1.0
+		if k > 0 {
+			b += fit.Waviness * (fit.Waviness + 1) / (6 * float64(k) * float64(k))
+		}
+		corrected[k] = g[k] / b
+	}
+	return FitISO(s.N, corrected, lo, hi, dof, infl)
 }
 
 // FitISO fits ln G_k = ln Gd0 - w ln(n_k/n0) + e_k by ordinary least

@@ -128,12 +128,11 @@ func newRoadCoefficients(rc *RoadCase, track, length float64, kmax int, rnd *ran
 		n := float64(k) * dn
 		sl, sr := rc.SpatialPSD(n)
 		gam := coherence(n)
+		// Cholesky factor in closed form, l21 = γ sqrt(G_R) and
+		// l22 = sqrt(G_R (1 - γ²)), which keeps l22 exactly 0 at γ = ±1.
 		l11 := math.Sqrt(sl)
-		l21 := 0.0
-		if l11 > 0 {
-			l21 = gam * math.Sqrt(sl*sr) / l11
-		}
-		l22 := math.Sqrt(math.Max(0, sr-l21*l21))
+		l21 := gam * math.Sqrt(sr)
+		l22 := math.Sqrt(math.Max(0, sr*(1-gam*gam)))
 		r.left[k] = complex(a*l11, 0) * e1
 		r.right[k] = complex(a*l21, 0)*e1 + complex(a*l22, 0)*e2
 	}

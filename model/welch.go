@@ -115,8 +115,8 @@ func EstimateSpectrum(p *Profile, opt WelchOptions) (*Spectrum, error) {
 // periodograms with correlation ρ(D) = (Σ_j w_j w_(j+D))²/U² (the
 // covariance of |X|² is |E[X_s conj(X_t)]|²), so averaging K of them
 // gives Var[G_k]/G_k² = (1/K)(1 + 2 Σ_(m=1)^(K-1) (1 - m/K) ρ(mD)) =
-// 1/K_eff (Welch 1967 gives the same sum for overlapping segments). For
-// the Hann window at half overlap ρ = 1/9.
+// 1/K_eff (Welch 1967 gives the same sum for overlapping segments; from
+// memory). For the Hann window at half overlap ρ = (1/6)² = 1/36.
 func Welch(left, right []float64, spacing float64, opt WelchOptions) (*Spectrum, error) {
 	n := len(left)
 	if !(spacing > 0) || math.IsInf(spacing, 0) {
