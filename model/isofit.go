@@ -44,7 +44,7 @@ func (f ISOFit) RoadCase(name string, speed float64) RoadCase {
 //
 // Resolution bias. The Hann window smooths the spectrum with its spectral
 // window |W|², whose second moment is ∫|w'|²/(4π²∫w²) = 1/3 bin² for
-// w = sin²(πt) (Parseval for w'), so E[Ĝ] ≈ G + ½(Δn²/3) G” (the
+// w = sin²(πt) (Parseval for w'), so E[Ĝ] ≈ G + ½(Δn²/3) d²G/dn² (the
 // resolution bias of Bendat & Piersol, "Random Data", 4th ed., ch. 8,
 // for a smoothing window of that second moment; from memory). For
 // G ∝ n^-w at bin k this is the factor 1 + w(w+1)/(6k²), 4% at k = 5 for
