@@ -1,11 +1,13 @@
 package model
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
 
 	"gonum.org/v1/gonum/integrate/quad"
+	"gonum.org/v1/gonum/mat"
 )
 
 // Statistical linearisation of the piecewise-linear damper (Caughey,
@@ -209,4 +211,105 @@ func TestEquivalentDampingLimits(t *testing.T) {
 		}
 	}
 
+}
+
+// TestLinearisationFixedPoint checks the evaluator's fixed point from the
+// outside: a car with linear dampers of the reported equivalent slopes
+// must show wheel velocities whose Gaussian linearisation (by quadrature
+// of E[f'], Caughey 1963; Roberts & Spanos 1990) gives those slopes back,
+// and the mean forces E[f] at those velocities must produce the reported
+// jacking through the static stiffness of the car (assembled here, see
+// lyapunov_test.go): K x̄ = −Σ_i D_iᵀ E[f_i]. Tolerance relative 1e-6: the
+// fixed point is converged to 1e-8 in c_eq, and the velocity sd depends
+// on c_eq smoothly.
+func TestLinearisationFixedPoint(t *testing.T) {
+	t.Parallel()
+	const tol = 1e-6
+	v := demoCar()
+	s := demoSetup()
+	cases := demoCases()
+	ev, err := NewEvaluator(v, cases, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var res Result
+	if err := ev.Evaluate(s, &res); err != nil {
+		t.Fatal(err)
+	}
+	cw := referenceWheelDamping(&v, [2]float64{1, 1}) // c_crit per corner
+	for ci := range cases {
+		m := res.Cases[ci]
+		if m.Iterations < 2 {
+			t.Errorf("%s: %d iterations for a setup with knees", cases[ci].Name, m.Iterations)
+		}
+		// The linear car with the equivalent slopes (the demo car is
+		// symmetric, so one ratio per axle holds both sides).
+		lin := Setup{}
+		for ax := 0; ax < 2; ax++ {
+			z := m.EquivalentDamping[2*ax] / cw[2*ax]
+			lin.Axles[ax] = AxleDamping{BumpRatio: z, ReboundRatio: z}
+		}
+		one, err := NewEvaluator(v, cases[ci:ci+1], Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var lr Result
+		if err := one.Evaluate(lin, &lr); err != nil {
+			t.Fatal(err)
+		}
+		var fbar [4]float64
+		for i := 0; i < 4; i++ {
+			a := s.Axles[i/2]
+			mr := v.Corners[i].DamperMotionRatio
+			d := wheelDamper{cb: a.BumpRatio * cw[i], cr: a.ReboundRatio * cw[i], vb: a.KneeBump / mr, vr: a.KneeRebound / mr,
+				rb: a.HighSpeedBump, rr: a.HighSpeedRebound}
+			sigma := lr.Cases[0].DamperVelocitySD[i] / mr
+			kinks := []float64{-d.vr, 0, d.vb}
+			ceq := gaussExpect(func(x float64) float64 { return refDamperSlope(d, x) }, sigma, kinks)
+			fbar[i] = gaussExpect(func(x float64) float64 { return refDamperForce(d, x) }, sigma, kinks)
+			if e := relErr(m.EquivalentDamping[i], ceq); e > tol {
+				t.Errorf("%s %s: c_eq %.10g, E[f'] at the linear car's σ %.10g (rel. %.2g)", cases[ci].Name, CornerNames[i], m.EquivalentDamping[i], ceq, e)
+			}
+			if e := relErr(m.MeanDamperForce[i]*mr, fbar[i]); e > tol {
+				t.Errorf("%s %s: mean force %.10g N at the wheel, E[f] %.10g N", cases[ci].Name, CornerNames[i], m.MeanDamperForce[i]*mr, fbar[i])
+			}
+		}
+		// Jacking from the reference stiffness.
+		rm := referenceModel(&v, [4]float64{}, cases[ci].Speed, 0)
+		f := mat.NewVecDense(7, nil)
+		for i := 0; i < 4; i++ {
+			for a := 0; a < 7; a++ {
+				f.SetVec(a, f.AtVec(a)-rm.d[i][a]*fbar[i])
+			}
+		}
+		var xbar mat.VecDense
+		if err := xbar.SolveVec(rm.k, f); err != nil {
+			t.Fatal(err)
+		}
+		want := [2]float64{xbar.AtVec(0) + v.CGToFrontAxle*xbar.AtVec(1), xbar.AtVec(0) - v.CGToRearAxle*xbar.AtVec(1)}
+		for ax := 0; ax < 2; ax++ {
+			if e := relErr(m.RideHeightShift[ax], want[ax]); e > tol {
+				t.Errorf("%s: %s ride-height shift %.10g m, static solve %.10g m", cases[ci].Name, AxleNames[ax], m.RideHeightShift[ax], want[ax])
+			}
+		}
+		if e := relErr(m.PitchShift, xbar.AtVec(1)); e > tol {
+			t.Errorf("%s: pitch shift %.10g rad, static solve %.10g rad", cases[ci].Name, m.PitchShift, xbar.AtVec(1))
+		}
+	}
+}
+
+// TestLinearisationNoConvergence: an iteration budget too small to reach
+// the fixed point gives an error wrapping ErrNoConvergence (issue 2: fail
+// with a clear error).
+func TestLinearisationNoConvergence(t *testing.T) {
+	t.Parallel()
+	ev, err := NewEvaluator(demoCar(), demoCases(), Options{MaxIterations: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var res Result
+	err = ev.Evaluate(demoSetup(), &res)
+	if !errors.Is(err, ErrNoConvergence) || !IsConvergence(err) {
+		t.Errorf("error %v, want one wrapping ErrNoConvergence", err)
+	}
 }
