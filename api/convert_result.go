@@ -30,17 +30,17 @@ func caseMetricsToProto(m *model.CaseMetrics, modes []model.Mode, threshold floa
 	}
 	for i := 0; i < 4; i++ {
 		out.Corners = append(out.Corners, &pb.CornerMetrics{
-			Corner:                    cornerPositions[i],
-			TyreLoadSdN:               m.TyreLoadSD[i],
-			StaticTyreLoadN:           m.StaticTyreLoad[i],
-			RelativeTyreLoadSd:        m.TyreLoadSDRel[i],
-			LiftOffProbability:        m.LiftOffProbability[i],
-			TravelSdM:                 m.TravelSD[i],
-			BumpStopProbability:       m.BumpStopProbability[i],
-			DamperVelocitySdMPerS:     m.DamperVelocitySD[i],
-			EquivalentDampingNSPerM:   m.EquivalentDamping[i],
-			MeanDamperForceN:          m.MeanDamperForce[i],
-			TravelShiftM:              m.TravelShift[i],
+			Corner:                  cornerPositions[i],
+			TyreLoadSdN:             m.TyreLoadSD[i],
+			StaticTyreLoadN:         m.StaticTyreLoad[i],
+			RelativeTyreLoadSd:      m.TyreLoadSDRel[i],
+			LiftOffProbability:      m.LiftOffProbability[i],
+			TravelSdM:               m.TravelSD[i],
+			BumpStopProbability:     m.BumpStopProbability[i],
+			DamperVelocitySdMPerS:   m.DamperVelocitySD[i],
+			EquivalentDampingNSPerM: m.EquivalentDamping[i],
+			MeanDamperForceN:        m.MeanDamperForce[i],
+			TravelShiftM:            m.TravelShift[i],
 		})
 	}
 	return out

@@ -83,6 +83,9 @@ func roadCaseFromProto(rc *pb.RoadCase, path string, p *problems) model.RoadCase
 		letter, ok := isoClassLetters[s.IsoClass]
 		if !ok {
 			p.add(path+".iso_class", "must be one of ISO_CLASS_A to ISO_CLASS_H, got %v", s.IsoClass)
+			// Keep it a class for the model, which then refuses it at
+			// the same path instead of asking for a power law.
+			letter = s.IsoClass.String()
 		}
 		out.Class = letter
 	case *pb.RoadCase_PowerLaw:

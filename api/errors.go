@@ -131,7 +131,7 @@ func invalidArgument(p problems) error {
 
 // statusError returns a status with the given code and message and an
 // ErrorInfo of the service's domain.
-func statusError(c codes.Code, reason, msg string, metadata map[string]string) error {
+func statusError(c codes.Code, msg, reason string, metadata map[string]string) error {
 	return withDetails(c, msg, reason, metadata)
 }
 

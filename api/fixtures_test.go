@@ -27,9 +27,9 @@ func testVehicle() *pb.Vehicle {
 		SprungMassKg: 1120, PitchInertiaKgM2: 1750, RollInertiaKgM2: 430,
 		CgToFrontAxleM: 1.36, CgToRearAxleM: 1.29,
 		TrackFrontM: 1.64, TrackRearM: 1.60,
-		Corners:           []*pb.Corner{front, proto.CloneOf(front), rear, proto.CloneOf(rear)},
-		FrontAntiRollBar:  &pb.AntiRollBar{WheelRateNPerM: 55e3},
-		RearAntiRollBar:   &pb.AntiRollBar{WheelRateNPerM: 28e3},
+		Corners:          []*pb.Corner{front, proto.CloneOf(front), rear, proto.CloneOf(rear)},
+		FrontAntiRollBar: &pb.AntiRollBar{WheelRateNPerM: 55e3},
+		RearAntiRollBar:  &pb.AntiRollBar{WheelRateNPerM: 28e3},
 		Aero: &pb.Aero{ReferenceSpeedMPerS: 50, FrontDownforceN: 2400, RearDownforceN: 3100,
 			FrontStiffnessNPerM: 35e3, RearStiffnessNPerM: 28e3},
 	}

@@ -1,0 +1,216 @@
+package api
+
+import (
+	"context"
+	"errors"
+	"log/slog"
+	"net"
+	"runtime"
+	"strconv"
+	"sync"
+	"time"
+
+	"google.golang.org/grpc"
+	"google.golang.org/grpc/health"
+	healthpb "google.golang.org/grpc/health/grpc_health_v1"
+	"google.golang.org/grpc/reflection"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
+)
+
+// Engine is what the service needs of the job engine; *jobs.Engine is
+// the implementation.
+type Engine interface {
+	Submit(ctx context.Context, p *jobs.SubmitParams) (*jobs.Job, error)
+	Get(ctx context.Context, id string) (*jobs.Job, error)
+	List(ctx context.Context, p *jobs.JobListParams) (*jobs.JobListResult, error)
+	Cancel(ctx context.Context, id string) (*jobs.Job, error)
+	Watch(ctx context.Context, id string) (<-chan *jobs.Job, error)
+	Front(ctx context.Context, p *jobs.FrontGetParams) (*jobs.FrontPage, error)
+}
+
+var _ Engine = (*jobs.Engine)(nil)
+
+// Options configure a Server. Zero values take the defaults named.
+type Options struct {
+	// MaxMessageBytes limits every request and response message.
+	// Default 16 MiB.
+	MaxMessageBytes int
+	// MaxJobWork limits a submitted job's population_size × islands ×
+	// generations × road cases, the number of case evaluations it makes
+	// (to within its initial population); more is ResourceExhausted.
+	// Default 50 000 000, about a night on two cores.
+	MaxJobWork int64
+	// MaxSyncWork limits setups × road cases of one EvaluateSetups call.
+	// Default 4096.
+	MaxSyncWork int
+	// MaxConcurrentEvaluations limits the EvaluateSetups and CompareSetup
+	// calls running at once; one more is ResourceExhausted at once, not
+	// queued. Default GOMAXPROCS.
+	MaxConcurrentEvaluations int
+	// StopTimeout bounds the graceful part of Serve's shutdown; then open
+	// calls are cut. Default 10 s.
+	StopTimeout time.Duration
+	// Logger receives the server's logs. Default slog.Default().
+	Logger *slog.Logger
+}
+
+// Defaults of Options.
+const (
+	DefaultMaxMessageBytes = 16 << 20
+	DefaultMaxJobWork      = 50_000_000
+	DefaultMaxSyncWork     = 4096
+	DefaultStopTimeout     = 10 * time.Second
+)
+
+func (o Options) withDefaults() Options {
+	if o.MaxMessageBytes <= 0 {
+		o.MaxMessageBytes = DefaultMaxMessageBytes
+	}
+	if o.MaxJobWork <= 0 {
+		o.MaxJobWork = DefaultMaxJobWork
+	}
+	if o.MaxSyncWork <= 0 {
+		o.MaxSyncWork = DefaultMaxSyncWork
+	}
+	if o.MaxConcurrentEvaluations <= 0 {
+		o.MaxConcurrentEvaluations = runtime.GOMAXPROCS(0)
+	}
+	if o.StopTimeout <= 0 {
+		o.StopTimeout = DefaultStopTimeout
+	}
+	if o.Logger == nil {
+		o.Logger = slog.Default()
+	}
+	return o
+}
+
+// Server is the DampfrontService over a job engine, with the standard
+// health service and server reflection beside it.
+type Server struct {
+	pb.UnimplementedDampfrontServiceServer
+
+	engine Engine
+	opt    Options
+	health *health.Server
+	slots  chan struct{} // one per synchronous evaluation running
+
+	stopping chan struct{} // closed when shutdown begins
+	stopOnce sync.Once
+}
+
+// NewServer returns the service over engine.
+func NewServer(engine Engine, opt Options) (*Server, error) {
+	if engine == nil {
+		return nil, errors.New("api: NewServer needs an engine")
+	}
+	opt = opt.withDefaults()
+	return &Server{
+		engine:   engine,
+		opt:      opt,
+		health:   health.NewServer(),
+		slots:    make(chan struct{}, opt.MaxConcurrentEvaluations),
+		stopping: make(chan struct{}),
+	}, nil
+}
+
+// ServerOptions are the gRPC options the limits call for; NewGRPCServer
+// applies them.
+func (s *Server) ServerOptions() []grpc.ServerOption {
+	return []grpc.ServerOption{
+		grpc.MaxRecvMsgSize(s.opt.MaxMessageBytes),
+		grpc.MaxSendMsgSize(s.opt.MaxMessageBytes),
+	}
+}
+
+// Register registers the service, the health service (serving, for ""
+// and for dampfront.v1.DampfrontService) and reflection on g.
+func (s *Server) Register(g *grpc.Server) {
+	pb.RegisterDampfrontServiceServer(g, s)
+	healthpb.RegisterHealthServer(g, s.health)
+	reflection.Register(g)
+	s.health.SetServingStatus("", healthpb.HealthCheckResponse_SERVING)
+	s.health.SetServingStatus(pb.DampfrontService_ServiceDesc.ServiceName, healthpb.HealthCheckResponse_SERVING)
+}
+
+// NewGRPCServer returns a gRPC server with the limits' options, opts, and
+// everything registered.
+func (s *Server) NewGRPCServer(opts ...grpc.ServerOption) *grpc.Server {
+	g := grpc.NewServer(append(s.ServerOptions(), opts...)...)
+	s.Register(g)
+	return g
+}
+
+// Serve serves on lis until ctx is done, then shuts down: health turns to
+// NOT_SERVING, open WatchJob streams end with Unavailable, and
+// GracefulStop waits for the other calls for at most Options.StopTimeout,
+// after which Stop cuts them. It returns nil after a shutdown, or the
+// error that ended serving otherwise. The engine is the caller's to stop.
+func (s *Server) Serve(ctx context.Context, lis net.Listener, opts ...grpc.ServerOption) error {
+	g := s.NewGRPCServer(opts...)
+	errc := make(chan error, 1)
+	go func() { errc <- g.Serve(lis) }()
+	select {
+	case err := <-errc:
+		s.beginShutdown()
+		return err
+	case <-ctx.Done():
+	}
+	s.opt.Logger.Info("api: shutting down", "address", lis.Addr().String(), "timeout", s.opt.StopTimeout)
+	s.shutdown(g)
+	if err := <-errc; err != nil && !errors.Is(err, grpc.ErrServerStopped) {
+		return err
+	}
+	return nil
+}
+
+// beginShutdown marks the server stopping: health NOT_SERVING, watches end.
+func (s *Server) beginShutdown() {
+	s.stopOnce.Do(func() {
+		close(s.stopping)
+		s.health.Shutdown()
+	})
+}
+
+// shutdown stops g gracefully within the stop timeout, then hard.
+func (s *Server) shutdown(g *grpc.Server) {
+	s.beginShutdown()
+	done := make(chan struct{})
+	go func() {
+		g.GracefulStop()
+		close(done)
+	}()
+	t := time.NewTimer(s.opt.StopTimeout)
+	defer t.Stop()
+	select {
+	case <-done:
+	case <-t.C:
+		s.opt.Logger.Warn("api: graceful stop timed out; closing open calls", "timeout", s.opt.StopTimeout)
+		g.Stop()
+		<-done
+	}
+}
+
+// isStopping reports whether shutdown has begun.
+func (s *Server) isStopping() bool {
+	select {
+	case <-s.stopping:
+		return true
+	default:
+		return false
+	}
+}
+
+// acquire takes a synchronous-evaluation slot, or fails at once with
+// ResourceExhausted; release gives it back.
+func (s *Server) acquire() (release func(), err error) {
+	select {
+	case s.slots <- struct{}{}:
+		return func() { <-s.slots }, nil
+	default:
+		return nil, resourceExhausted(ReasonServerBusy,
+			"too many synchronous evaluations are running; retry in a second",
+			map[string]string{"limit": strconv.Itoa(s.opt.MaxConcurrentEvaluations)}, time.Second)
+	}
+}

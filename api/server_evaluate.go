@@ -1,0 +1,91 @@
+package api
+
+import (
+	"context"
+	"fmt"
+	"strconv"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
+	"dampfront/model"
+)
+
+// EvaluateSetups evaluates setups on the car, road cases, objectives and
+// constraints of a spec given in the request or of a stored job, at once.
+// It is limited in size (setups × road cases) and in how many such calls
+// run together; both give ResourceExhausted.
+func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsRequest) (*pb.EvaluateSetupsResponse, error) {
+	var p problems
+	if len(req.GetSetups()) == 0 {
+		p.add("setups", "needs at least one setup")
+	}
+	setups := make([]model.Setup, len(req.GetSetups()))
+	for i, su := range req.GetSetups() {
+		setups[i] = setupArgument(su, fmt.Sprintf("setups[%d]", i), &p)
+	}
+	var pl *plan
+	switch src := req.GetSource().(type) {
+	case *pb.EvaluateSetupsRequest_Spec:
+		var err error
+		if pl, err = compile(src.Spec, "spec."); err != nil {
+			// Report the spec's problems and the setups' together.
+			sp, ok := fieldProblems(err)
+			if !ok {
+				return nil, err
+			}
+			p = append(p, sp...)
+		}
+	case *pb.EvaluateSetupsRequest_Job:
+		id := parseJobName(src.Job, "job", &p)
+		if err := p.err(); err != nil {
+			return nil, err
+		}
+		var err error
+		if _, pl, err = s.storedPlan(ctx, id); err != nil {
+			return nil, err
+		}
+	default:
+		p.add("spec", "give spec or job")
+	}
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	if w := len(setups) * pl.eval.Cases(); w > s.opt.MaxSyncWork {
+		return nil, resourceExhausted(ReasonTooManySetups,
+			fmt.Sprintf("setups × road cases = %d is over the server's %d for one call; split the setups over several calls", w, s.opt.MaxSyncWork),
+			map[string]string{"work": strconv.Itoa(w), "limit": strconv.Itoa(s.opt.MaxSyncWork)}, 0)
+	}
+	release, err := s.acquire()
+	if err != nil {
+		return nil, err
+	}
+	defer release()
+	out := &pb.EvaluateSetupsResponse{Objectives: pl.objectivesProto(), Constraints: pl.constraintsProto(), GeneNames: pl.geneNames()}
+	basic := req.GetView() == pb.SolutionView_SOLUTION_VIEW_BASIC
+	for i, su := range setups {
+		if err := ctx.Err(); err != nil {
+			return nil, toStatus(err, nil)
+		}
+		sol := pl.evaluate(su)
+		sol.Index = int32(i)
+		if basic {
+			sol.CaseMetrics, sol.DamperCurves = nil, nil
+		}
+		out.Evaluations = append(out.Evaluations, sol)
+	}
+	return out, nil
+}
+
+// fieldProblems returns the field problems of an InvalidArgument status
+// and whether err is one.
+func fieldProblems(err error) (problems, bool) {
+	ia, ok := statusToJobsError(err).(*jobs.InvalidArgumentError)
+	if !ok {
+		return nil, false
+	}
+	p := make(problems, len(ia.Violations))
+	for i, v := range ia.Violations {
+		p[i] = fieldProblem{Field: v.Field, Reason: v.Reason}
+	}
+	return p, true
+}

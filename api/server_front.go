@@ -1,0 +1,236 @@
+package api
+
+import (
+	"context"
+	"fmt"
+	"strconv"
+	"strings"
+
+	"google.golang.org/grpc/codes"
+	"google.golang.org/protobuf/proto"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
+	"dampfront/model"
+)
+
+// frontPaths maps the engine's front paths to GetFrontRequest's.
+func frontPaths(p string) string {
+	if p == "job_id" {
+		return "job"
+	}
+	return p
+}
+
+// GetFront returns a page of a finished job's front. Solutions come from
+// the stored details; genes, objectives and violations are the stored
+// ones, bit for bit.
+func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.GetFrontResponse, error) {
+	var p problems
+	id := parseJobName(req.GetJob(), "job", &p)
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	page, err := s.engine.Front(ctx, &jobs.FrontGetParams{JobID: id, PageSize: int(req.GetPageSize()), PageToken: req.GetPageToken()})
+	if err != nil {
+		return nil, toStatus(err, frontPaths)
+	}
+	spec, err := unmarshalSpec(page.Job.Spec)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	front := frontHeader(id, spec, page.Total, page.Partial)
+	basic := req.GetView() == pb.SolutionView_SOLUTION_VIEW_BASIC
+	for _, js := range page.Solutions {
+		sol, err := solutionFromStore(js)
+		if err != nil {
+			return nil, toStatus(err, nil)
+		}
+		if basic {
+			sol.CaseMetrics, sol.DamperCurves = nil, nil
+		}
+		front.Solutions = append(front.Solutions, sol)
+	}
+	return &pb.GetFrontResponse{Front: front, NextPageToken: page.NextPageToken}, nil
+}
+
+// frontHeader is a Front without solutions: the job, gene names,
+// objectives and constraints of a stored spec.
+func frontHeader(id string, spec *pb.JobSpec, total int, partial bool) *pb.Front {
+	var p problems
+	design := designFromProto(spec.GetDesignSpace(), "design_space", &p)
+	var names []string
+	for _, g := range design.Genes() {
+		names = append(names, g.Name)
+	}
+	return &pb.Front{
+		Job: jobName(id), GeneNames: names, Objectives: spec.GetObjectives(), Constraints: spec.GetConstraints(),
+		TotalSize: int32(total), Partial: partial,
+	}
+}
+
+// solutionFromStore decodes a stored solution's detail and sets the
+// stored values on it.
+func solutionFromStore(js jobs.Solution) (*pb.Solution, error) {
+	sol := &pb.Solution{}
+	if err := proto.Unmarshal(js.Detail, sol); err != nil {
+		return nil, fmt.Errorf("stored detail of solution %d does not decode: %w", js.Index, err)
+	}
+	sol.Index = int32(js.Index)
+	sol.Genes, sol.Objectives, sol.Violations, sol.Feasible = js.Genes, js.Objectives, js.Violations, js.Feasible
+	return sol, nil
+}
+
+// wholeFront reads every page of a finished job's front.
+func (s *Server) wholeFront(ctx context.Context, id string) (*jobs.FrontPage, error) {
+	var all *jobs.FrontPage
+	token := ""
+	for {
+		page, err := s.engine.Front(ctx, &jobs.FrontGetParams{JobID: id, PageSize: jobs.MaxPageSize, PageToken: token})
+		if err != nil {
+			return nil, err
+		}
+		if all == nil {
+			all = page
+		} else {
+			all.Solutions = append(all.Solutions, page.Solutions...)
+		}
+		if page.NextPageToken == "" || len(page.Solutions) == 0 {
+			all.NextPageToken = ""
+			return all, nil
+		}
+		token = page.NextPageToken
+	}
+}
+
+// storedPlan returns a job and the plan of its stored spec.
+func (s *Server) storedPlan(ctx context.Context, id string) (*jobs.Job, *plan, error) {
+	j, err := s.engine.Get(ctx, id)
+	if err != nil {
+		return nil, nil, toStatus(err, nil)
+	}
+	spec, err := unmarshalSpec(j.Spec)
+	if err != nil {
+		return nil, nil, toStatus(err, nil)
+	}
+	pl, err := compile(spec, "spec.")
+	if err != nil {
+		return nil, nil, statusError(codes.Internal, fmt.Sprintf("the stored spec of job %q no longer compiles: %v", id, err), ReasonInternal, nil)
+	}
+	return j, pl, nil
+}
+
+// setupArgument converts and checks a setup given in a request at path.
+func setupArgument(s *pb.Setup, path string, p *problems) model.Setup {
+	n := len(*p)
+	out := setupFromProto(s, path, p)
+	if len(*p) == n {
+		p.mergeModel(under(path+"."), out.Validate())
+	}
+	return out
+}
+
+// CompareSetup evaluates a candidate setup on a finished job's spec and
+// compares its objectives with the stored front (see
+// CompareSetupResponse for the definitions).
+func (s *Server) CompareSetup(ctx context.Context, req *pb.CompareSetupRequest) (*pb.CompareSetupResponse, error) {
+	var p problems
+	id := parseJobName(req.GetJob(), "job", &p)
+	setup := setupArgument(req.GetSetup(), "setup", &p)
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	front, err := s.wholeFront(ctx, id)
+	if err != nil {
+		return nil, toStatus(err, frontPaths)
+	}
+	if len(front.Solutions) == 0 {
+		return nil, statusError(codes.FailedPrecondition,
+			fmt.Sprintf("job %q has an empty front (no feasible solution was found); nothing to compare with", id),
+			ReasonEmptyFront, map[string]string{"job_id": id})
+	}
+	release, err := s.acquire()
+	if err != nil {
+		return nil, err
+	}
+	defer release()
+	_, pl, err := s.storedPlan(ctx, id)
+	if err != nil {
+		return nil, err
+	}
+	sol := pl.evaluate(setup)
+	if len(sol.Objectives) == 0 {
+		return nil, invalidArgument(problems{{Field: "setup", Reason: "the model cannot evaluate this setup on the job's car: " + sol.InfeasibleReason}})
+	}
+	pts := make([][]float64, len(front.Solutions))
+	for i, f := range front.Solutions {
+		pts[i] = f.Objectives
+	}
+	c := compareWithFront(sol.Objectives, pts)
+	return &pb.CompareSetupResponse{
+		Evaluation:                sol,
+		Dominated:                 c.dominated,
+		AdditiveEpsilon:           c.epsilon,
+		NormalizedAdditiveEpsilon: c.normalized,
+		ObjectiveGaps:             c.gaps,
+		NearestIndex:              int32(front.Solutions[c.nearest].Index),
+		FrontSize:                 int32(len(front.Solutions)),
+		Partial:                   front.Partial,
+		Objectives:                pl.objectivesProto(),
+		Constraints:               pl.constraintsProto(),
+	}, nil
+}
+
+// curvesPaths maps model.DamperCurves's paths to GetDamperCurvesRequest's.
+func curvesPaths(p string) string {
+	switch {
+	case p == "max_velocity_m_per_s" || p == "points":
+		return "curves." + p
+	case strings.HasPrefix(p, "vehicle."):
+		return "job" // the stored car; cannot happen for a stored spec
+	}
+	return p
+}
+
+// GetDamperCurves returns the damper curves of a solution of a finished
+// job's front, or of a setup given in the request on the job's car.
+func (s *Server) GetDamperCurves(ctx context.Context, req *pb.GetDamperCurvesRequest) (*pb.GetDamperCurvesResponse, error) {
+	var p problems
+	id := parseJobName(req.GetJob(), "job", &p)
+	var setup model.Setup
+	switch t := req.GetTarget().(type) {
+	case *pb.GetDamperCurvesRequest_Setup:
+		setup = setupArgument(t.Setup, "setup", &p)
+	case *pb.GetDamperCurvesRequest_SolutionIndex:
+		if t.SolutionIndex < 0 {
+			p.add("solution_index", "must not be negative, got %d", t.SolutionIndex)
+		}
+	default:
+		p.add("solution_index", "give solution_index (a member of the job's front) or setup")
+	}
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	_, pl, err := s.storedPlan(ctx, id)
+	if err != nil {
+		return nil, err
+	}
+	if t, ok := req.GetTarget().(*pb.GetDamperCurvesRequest_SolutionIndex); ok {
+		front, err := s.wholeFront(ctx, id)
+		if err != nil {
+			return nil, toStatus(err, frontPaths)
+		}
+		k := int(t.SolutionIndex)
+		if k >= len(front.Solutions) {
+			return nil, statusError(codes.NotFound,
+				fmt.Sprintf("job %q has %d solutions in its front; solution_index %d is not one of them", id, len(front.Solutions), k),
+				ReasonSolutionNotFound, map[string]string{"job_id": id, "front_size": strconv.Itoa(len(front.Solutions))})
+		}
+		setup = pl.study.Design().Decode(front.Solutions[k].Genes)
+	}
+	curves, err := pl.curves(setup, req.GetAdjustment(), req.GetCurves())
+	if err != nil {
+		return nil, toStatus(err, curvesPaths)
+	}
+	return &pb.GetDamperCurvesResponse{Setup: setupToProto(setup), Curves: damperCurvesToProto(curves)}, nil
+}

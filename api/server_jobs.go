@@ -1,0 +1,175 @@
+package api
+
+import (
+	"context"
+	"fmt"
+	"strconv"
+	"strings"
+
+	"google.golang.org/grpc"
+	"google.golang.org/grpc/codes"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
+)
+
+// submitPaths puts the engine's field paths of a submitted spec under
+// "spec" (its label check says "labels[...]").
+func submitPaths(p string) string {
+	if p == "spec" || strings.HasPrefix(p, "spec.") {
+		return p
+	}
+	return "spec." + p
+}
+
+// listPaths maps the engine's list filter paths to ListJobsRequest's.
+func listPaths(p string) string { return strings.TrimPrefix(p, "filter.") }
+
+// SubmitJob checks the spec in full, fills in its defaults, checks the
+// job's size against the limit and stores it.
+func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.SubmitJobResponse, error) {
+	if req.GetSpec() == nil {
+		return nil, invalidArgument(problems{{Field: "spec", Reason: "is required"}})
+	}
+	pl, err := compile(req.GetSpec(), "spec.")
+	if err != nil {
+		return nil, err
+	}
+	if w := pl.work(); w > s.opt.MaxJobWork {
+		return nil, resourceExhausted(ReasonJobTooLarge,
+			fmt.Sprintf("the job is too large: population_size × islands × generations × road cases = %d, the server allows %d; reduce the population or the generations, or split the road cases over jobs", w, s.opt.MaxJobWork),
+			map[string]string{"work": strconv.FormatInt(w, 10), "limit": strconv.FormatInt(s.opt.MaxJobWork, 10)}, 0)
+	}
+	spec, err := MarshalSpec(pl.spec)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	j, err := s.engine.Submit(ctx, &jobs.SubmitParams{Spec: spec, Labels: pl.spec.GetLabels(), Seed: int64(pl.settings.Seed)})
+	if err != nil {
+		return nil, toStatus(err, submitPaths)
+	}
+	job, err := jobToProto(j, true)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	return &pb.SubmitJobResponse{Job: job}, nil
+}
+
+// GetJob returns a job, with its spec unless the basic view is asked for.
+func (s *Server) GetJob(ctx context.Context, req *pb.GetJobRequest) (*pb.GetJobResponse, error) {
+	var p problems
+	id := parseJobName(req.GetName(), "name", &p)
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	j, err := s.engine.Get(ctx, id)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	job, err := jobToProto(j, req.GetView() != pb.JobView_JOB_VIEW_BASIC)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	return &pb.GetJobResponse{Job: job}, nil
+}
+
+// ListJobs pages through the jobs, newest first.
+func (s *Server) ListJobs(ctx context.Context, req *pb.ListJobsRequest) (*pb.ListJobsResponse, error) {
+	var p problems
+	params := &jobs.JobListParams{PageSize: int(req.GetPageSize()), PageToken: req.GetPageToken(), Labels: req.GetLabels()}
+	for i, st := range req.GetStates() {
+		js, ok := stateFromProto(st)
+		if !ok {
+			p.add(fmt.Sprintf("states[%d]", i), "must be one of the JOB_STATE_ values other than UNSPECIFIED, got %v", st)
+		}
+		params.States = append(params.States, js)
+	}
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	res, err := s.engine.List(ctx, params)
+	if err != nil {
+		return nil, toStatus(err, listPaths)
+	}
+	out := &pb.ListJobsResponse{NextPageToken: res.NextPageToken}
+	for _, j := range res.Jobs {
+		job, err := jobToProto(j, req.GetView() == pb.JobView_JOB_VIEW_FULL)
+		if err != nil {
+			return nil, toStatus(err, nil)
+		}
+		out.Jobs = append(out.Jobs, job)
+	}
+	return out, nil
+}
+
+// CancelJob requests cancellation of a queued or running job.
+func (s *Server) CancelJob(ctx context.Context, req *pb.CancelJobRequest) (*pb.CancelJobResponse, error) {
+	var p problems
+	id := parseJobName(req.GetName(), "name", &p)
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	j, err := s.engine.Cancel(ctx, id)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	job, err := jobToProto(j, false)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	return &pb.CancelJobResponse{Job: job}, nil
+}
+
+// WatchJob streams the job's progress whenever it changes, then the job
+// in its terminal state. A job already finished gives that last event at
+// once. When the server shuts down the stream ends with Unavailable, and
+// the client watches again elsewhere or later.
+func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingServer[pb.WatchJobResponse]) error {
+	var p problems
+	id := parseJobName(req.GetName(), "name", &p)
+	if err := p.err(); err != nil {
+		return err
+	}
+	ctx, cancel := context.WithCancel(stream.Context())
+	defer cancel()
+	go func() {
+		select {
+		case <-s.stopping:
+			cancel()
+		case <-ctx.Done():
+		}
+	}()
+	ch, err := s.engine.Watch(ctx, id)
+	if err != nil {
+		return toStatus(err, nil)
+	}
+	var last *jobs.Progress
+	for j := range ch {
+		if j.State.Terminal() {
+			job, err := jobToProto(j, false)
+			if err != nil {
+				return toStatus(err, nil)
+			}
+			return stream.Send(&pb.WatchJobResponse{Event: &pb.WatchJobResponse_Job{Job: job}})
+		}
+		if last != nil && !progressChanged(last, &j.Progress) {
+			continue
+		}
+		last = &j.Progress
+		if err := stream.Send(&pb.WatchJobResponse{Event: &pb.WatchJobResponse_Progress{Progress: progressToProto(&j.Progress)}}); err != nil {
+			return err
+		}
+	}
+	switch {
+	case s.isStopping():
+		return statusError(codes.Unavailable, "the server is shutting down; watch the job again", ReasonShuttingDown, nil)
+	case stream.Context().Err() != nil:
+		return toStatus(stream.Context().Err(), nil)
+	}
+	return statusError(codes.Unavailable, "the watch ended before the job finished; watch it again", ReasonInternal, nil)
+}
+
+// progressChanged reports whether b is news after a.
+func progressChanged(a, b *jobs.Progress) bool {
+	return a.Generation != b.Generation || a.Evaluations != b.Evaluations || !a.UpdatedAt.Equal(b.UpdatedAt)
+}
