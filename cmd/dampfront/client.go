@@ -81,18 +81,26 @@ func describeError(err error) string {
 		return err.Error()
 	}
 	var b strings.Builder
-	switch st.Code() {
-	case codes.Unavailable:
+	var fields []*errdetails.BadRequest_FieldViolation
+	for _, d := range st.Details() {
+		if br, ok := d.(*errdetails.BadRequest); ok {
+			fields = append(fields, br.GetFieldViolations()...)
+		}
+	}
+	switch {
+	case st.Code() == codes.Unavailable:
 		fmt.Fprintf(&b, "server unavailable: %s", st.Message())
+	case len(fields) > 0 && strings.Contains(st.Message(), fields[0].GetDescription()):
+		// The message repeats the violations listed below.
+		fmt.Fprintf(&b, "%s: %d bad fields", codeName(st.Code()), len(fields))
 	default:
 		fmt.Fprintf(&b, "%s: %s", codeName(st.Code()), st.Message())
 	}
+	for _, v := range fields {
+		fmt.Fprintf(&b, "\n  %s: %s", v.GetField(), v.GetDescription())
+	}
 	for _, d := range st.Details() {
 		switch d := d.(type) {
-		case *errdetails.BadRequest:
-			for _, v := range d.GetFieldViolations() {
-				fmt.Fprintf(&b, "\n  %s: %s", v.GetField(), v.GetDescription())
-			}
 		case *errdetails.PreconditionFailure:
 			for _, v := range d.GetViolations() {
 				fmt.Fprintf(&b, "\n  %s %s: %s", v.GetType(), v.GetSubject(), v.GetDescription())

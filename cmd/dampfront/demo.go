@@ -10,8 +10,8 @@ import (
 	"time"
 
 	"dampfront/api"
-	"dampfront/jobs"
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
 )
 
 // demoJob is testdata/demo-job.yaml, embedded so that the binary runs the

@@ -35,6 +35,9 @@ solution, floats written so that they read back bit for bit.`)
 	if err != nil {
 		return err
 	}
+	if *rows < 0 {
+		return usagef("front", "--rows must not be negative")
+	}
 	c, err := cf.dial()
 	if err != nil {
 		return err
@@ -49,9 +52,6 @@ solution, floats written so that they read back bit for bit.`)
 		return writeFrontCSV(e.stdout, fd)
 	case "json":
 		return writeFrontJSON(e.stdout, fd)
-	}
-	if *rows < 0 {
-		return usagef("front", "--rows must not be negative")
 	}
 	if err := writeFrontTable(e.stdout, fd, *rows, "--rows 0 shows all"); err != nil {
 		return err

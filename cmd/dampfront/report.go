@@ -22,7 +22,8 @@ func printCaution(w io.Writer) {
 // table is a tabwriter with the house layout: two spaces between columns;
 // right-aligned for tables of numbers, left-aligned for tables of names.
 type table struct {
-	tw *tabwriter.Writer
+	tw      *tabwriter.Writer
+	numeric bool
 }
 
 func newTable(w io.Writer, numeric bool) *table {
@@ -30,13 +31,18 @@ func newTable(w io.Writer, numeric bool) *table {
 	if numeric {
 		flags = tabwriter.AlignRight
 	}
-	return &table{tw: tabwriter.NewWriter(w, 0, 0, 2, ' ', flags)}
+	return &table{tw: tabwriter.NewWriter(w, 0, 0, 2, ' ', flags), numeric: numeric}
 }
 
-// row writes one row; every cell ends with a tab so that the last column
-// is aligned too.
+// row writes one row. In a numeric table every cell ends with a tab, so
+// that the last column is right-aligned too; in a table of names the last
+// cell is left as it is, without trailing blanks.
 func (t *table) row(cells ...string) {
-	fmt.Fprintln(t.tw, strings.Join(cells, "\t")+"\t")
+	end := ""
+	if t.numeric {
+		end = "\t"
+	}
+	fmt.Fprintln(t.tw, strings.Join(cells, "\t")+end)
 }
 
 func (t *table) flush() error { return t.tw.Flush() }

@@ -1,0 +1,68 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+)
+
+// The demo runs end to end: an embedded server on a temporary SQLite file
+// and a loopback port, the demo job, the front, the damper curves of the
+// balanced point and the caution, and it leaves no file behind.
+func TestDemo(t *testing.T) {
+	t.Parallel()
+	tmp := t.TempDir()
+	r := mustRun(t, exitOK, []string{"TMPDIR=" + tmp}, "demo", "--quiet")
+	for _, want := range []string{
+		"dampfront demo: server on 127.0.0.1:",
+		"succeeded: 30 of 30 generations",
+		"Pareto front of jobs/",
+		"grip", "platform", "% static", "N s/mm",
+		"* balanced point: solution ",
+		"Damper curves of the balanced point",
+		"Front left = front right damper, at the component",
+		"Rear left = rear right damper, at the component",
+		"softest  stiffest  rebound  softest  stiffest",
+		cautionText,
+	} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("demo output lacks %q:\n%s", want, r.stdout)
+		}
+	}
+	if !strings.HasSuffix(strings.TrimSpace(r.stdout), "for them.") {
+		t.Errorf("demo output does not end with the caution:\n%s", r.stdout)
+	}
+	// The curve tables run from 0 to 250 mm/s in steps of 25 (the demo
+	// spec's curves: 21 points over +-0.25 m/s), with the balanced
+	// point's force rising in bump and falling in rebound.
+	rows := regexp.MustCompile(`(?m)^\s+250\s+(\d+)\s+\d+\s+\d+\s+(-\d+)\s+-\d+\s+-\d+\s*$`).FindAllStringSubmatch(r.stdout, -1)
+	if len(rows) != 2 {
+		t.Errorf("want a 250 mm/s row in each of the two curve tables, found %d:\n%s", len(rows), r.stdout)
+	}
+	entries, err := os.ReadDir(tmp)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(entries) != 0 {
+		t.Errorf("demo left %d entries in its temporary directory, e.g. %s", len(entries), entries[0].Name())
+	}
+}
+
+// demo --keep keeps the database and says where it is.
+func TestDemoKeep(t *testing.T) {
+	t.Parallel()
+	tmp := t.TempDir()
+	r := mustRun(t, exitOK, []string{"TMPDIR=" + tmp}, "demo", "--quiet", "--keep")
+	m := regexp.MustCompile(`Kept (\S+); serve it with: dampfront serve --database (\S+)`).FindStringSubmatch(r.stdout)
+	if m == nil {
+		t.Fatalf("demo --keep does not say what it kept:\n%s", r.stdout)
+	}
+	if filepath.Dir(m[1]) != tmp {
+		t.Errorf("kept directory %s is not under TMPDIR %s", m[1], tmp)
+	}
+	if st, err := os.Stat(m[2]); err != nil || st.Size() == 0 {
+		t.Errorf("kept database %s: %v", m[2], err)
+	}
+}
