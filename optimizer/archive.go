@@ -16,11 +16,11 @@ import (
 // Solutions in the archive share their slices with immutable genomes or
 // own them; they are never modified.
 type archive struct {
-	sols []Solution
+	sols []*Solution // pointers: insertion moves 8 bytes per member
 }
 
 // solutionOrder sorts by objectives, then genes.
-func solutionOrder(a, b Solution) int {
+func solutionOrder(a, b *Solution) int {
 	if c := lexicographic(a.Objectives, b.Objectives); c != 0 {
 		return c
 	}
@@ -28,11 +28,19 @@ func solutionOrder(a, b Solution) int {
 }
 
 // add offers s to the archive and reports whether it entered. Infeasible
-// solutions never enter. Cost O(|archive| M).
-func (a *archive) add(s Solution) bool {
-	if !s.Feasible {
+// solutions never enter. With two objectives the archive, sorted by f1, has
+// f2 strictly falling, so a binary search finds both the one member that
+// could dominate s and the run of members s dominates: O(log n) plus the
+// move of the tail. Otherwise it scans the archive, O(n M).
+func (a *archive) add(sol Solution) bool {
+	if !sol.Feasible {
 		return false
 	}
+	s := &sol
+	if len(s.Objectives) == 2 {
+		return a.add2(s)
+	}
+	dominated := 0
 	for i, t := range a.sols {
 		if Dominates(t.Objectives, s.Objectives) {
 			return false
@@ -46,10 +54,43 @@ func (a *archive) add(s Solution) bool {
 			a.sols[i] = s
 			return true
 		}
+		if Dominates(s.Objectives, t.Objectives) {
+			dominated++
+		}
 	}
-	a.sols = slices.DeleteFunc(a.sols, func(t Solution) bool { return Dominates(s.Objectives, t.Objectives) })
+	if dominated > 0 {
+		a.sols = slices.DeleteFunc(a.sols, func(t *Solution) bool { return Dominates(s.Objectives, t.Objectives) })
+	}
 	i, _ := slices.BinarySearchFunc(a.sols, s, solutionOrder)
 	a.sols = slices.Insert(a.sols, i, s)
+	return true
+}
+
+// add2 is add for two objectives.
+func (a *archive) add2(s *Solution) bool {
+	f := s.Objectives
+	i, _ := slices.BinarySearchFunc(a.sols, s, solutionOrder)
+	// A member with the same objectives sits next to position i.
+	for _, k := range [2]int{i - 1, i} {
+		if k >= 0 && k < len(a.sols) && slices.Equal(a.sols[k].Objectives, f) {
+			if k == i {
+				a.sols[k] = s // s has the smaller genes
+				return true
+			}
+			return false
+		}
+	}
+	// Members before i have f1 ≤ s.f1; the lowest f2 among them is the
+	// last one's.
+	if i > 0 && a.sols[i-1].Objectives[1] <= f[1] {
+		return false
+	}
+	// Members from i on have f1 ≥ s.f1; those with f2 ≥ s.f2 come first.
+	j := i
+	for j < len(a.sols) && a.sols[j].Objectives[1] >= f[1] {
+		j++
+	}
+	a.sols = slices.Replace(a.sols, i, j, s)
 	return true
 }
 

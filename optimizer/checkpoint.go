@@ -206,7 +206,7 @@ func (s *Study) readState(d *decoder) error {
 	count := int(d.u32())
 	s.front.sols = nil
 	for k := 0; k < count && d.err == nil; k++ {
-		sol := Solution{Genes: d.f64s(n), Objectives: d.f64s(m), Violations: d.f64s(c), Feasible: true}
+		sol := &Solution{Genes: d.f64s(n), Objectives: d.f64s(m), Violations: d.f64s(c), Feasible: true}
 		if d.err == nil && k > 0 && solutionOrder(s.front.sols[k-1], sol) >= 0 {
 			d.fail("archive not in order at solution %d", k)
 		}
