@@ -34,19 +34,20 @@ func TestStaticLoadsAndExceedance(t *testing.T) {
 		t.Fatal(err)
 	}
 	l := v.CGToFrontAxle + v.CGToRearAxle
+	const g = 9.80665 // standard gravity (m/s²), ISO 80000-3
 	for ci, rc := range cases {
 		m := res.Cases[ci]
 		q := (rc.Speed / v.Aero.ReferenceSpeed) * (rc.Speed / v.Aero.ReferenceSpeed)
 		for i := 0; i < 4; i++ {
 			ax := i / 2
-			axle := v.SprungMass * Gravity * [2]float64{v.CGToRearAxle, v.CGToFrontAxle}[ax] / l
+			axle := v.SprungMass * g * [2]float64{v.CGToRearAxle, v.CGToFrontAxle}[ax] / l
 			track := [2]float64{v.TrackFront, v.TrackRear}[ax]
 			left := (track/2 + v.CGLateral) / track
 			share := left
 			if i%2 == 1 {
 				share = 1 - left
 			}
-			want := axle*share + v.Corners[i].UnsprungMass*Gravity + v.Aero.Downforce[ax]*q/2
+			want := axle*share + v.Corners[i].UnsprungMass*g + v.Aero.Downforce[ax]*q/2
 			if relErr(m.StaticTyreLoad[i], want) > 1e-12 {
 				t.Errorf("%s %s: static tyre load %.10g N, statics %.10g N", rc.Name, CornerNames[i], m.StaticTyreLoad[i], want)
 			}
