@@ -15,12 +15,12 @@ func TestConstrainedDominates(t *testing.T) {
 	t.Parallel()
 	inf := math.Inf(1)
 	cases := []struct {
-		name   string
-		a      []float64
-		va     float64
-		b      []float64
-		vb     float64
-		want   bool
+		name string
+		a    []float64
+		va   float64
+		b    []float64
+		vb   float64
+		want bool
 	}{
 		{"both feasible, a dominates", []float64{1, 2}, 0, []float64{2, 2}, 0, true},
 		{"both feasible, b dominates", []float64{2, 2}, 0, []float64{1, 2}, 0, false},

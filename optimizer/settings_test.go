@@ -3,8 +3,8 @@ package optimizer
 import (
 	"context"
 	"encoding/binary"
-	"hash/crc32"
 	"errors"
+	"hash/crc32"
 	"math"
 	"testing"
 )
@@ -15,9 +15,9 @@ type badProblem struct {
 	m, c   int
 }
 
-func (b badProblem) Bounds() []Bound                 { return b.bounds }
-func (b badProblem) NumObjectives() int              { return b.m }
-func (b badProblem) NumConstraints() int             { return b.c }
+func (b badProblem) Bounds() []Bound                { return b.bounds }
+func (b badProblem) NumObjectives() int             { return b.m }
+func (b badProblem) NumConstraints() int            { return b.c }
 func (badProblem) Evaluate(_, _, _ []float64) error { return nil }
 
 // TestNewFieldErrors checks that each invalid input is refused with a
