@@ -117,7 +117,7 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt Options) (*Evaluator, error) 
 			}
 		}
 		cd.grid = newCaseGrid(&e.v, &cd.rc, e.f, sym)
-		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear}
+		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, yc: -v.CGLateral}
 		for c := 0; c < 4; c++ {
 			cd.geo.kt[c] = v.Corners[c].TyreRate
 			cd.geo.ct[c] = v.Corners[c].TyreDamping
@@ -253,7 +253,8 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 			xbar[a] += cd.kinv[a][b] * f[b]
 		}
 	}
-	m.RideHeightShift = [2]float64{xbar[0] + e.v.CGToFrontAxle*xbar[1], xbar[0] - e.v.CGToRearAxle*xbar[1]}
+	yc := -e.v.CGLateral * xbar[2] // ride height is taken on the centre line
+	m.RideHeightShift = [2]float64{xbar[0] + e.v.CGToFrontAxle*xbar[1] + yc, xbar[0] - e.v.CGToRearAxle*xbar[1] + yc}
 	m.PitchShift = xbar[1]
 	for i := 0; i < 4; i++ {
 		s := 0.0

@@ -144,6 +144,7 @@ type outputGeometry struct {
 	d            [nIn][nDOF]float64 // travel rows
 	kt, ct       [4]float64
 	a, b, tf, tr float64
+	yc           float64 // lateral position of the centre line from the sprung CG (m)
 }
 
 // responseSpectra computes, for every grid point, the output PSDs summed
@@ -238,8 +239,9 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	}
 	wf := (w[0] + w[1]) / 2
 	wr := (w[2] + w[3]) / 2
-	out[outRide] += abs2(x[0] + complex(g.a, 0)*x[1] - wf)
-	out[outRide+1] += abs2(x[0] - complex(g.b, 0)*x[1] - wr)
+	yc := complex(g.yc, 0) * x[2]
+	out[outRide] += abs2(x[0] + complex(g.a, 0)*x[1] + yc - wf)
+	out[outRide+1] += abs2(x[0] - complex(g.b, 0)*x[1] + yc - wr)
 	out[outPitch] += abs2(x[1] - (wf-wr)/complex(g.a+g.b, 0))
 	out[outRoll] += abs2(x[2] - ((w[0]-w[1])/complex(g.tf, 0)+(w[2]-w[3])/complex(g.tr, 0))/2)
 	out[outHeaveAcc] += om * om * om * om * abs2(x[0])
@@ -255,6 +257,11 @@ func variances(acc *[nOut]float64, band *[4][nOut]float64, f []float64, velOnly 
 		}
 		lo, okLo := tail(band[0][o], band[1][o])
 		hi, okHi := tail(band[3][o], band[2][o])
+		if acc[o] < noiseFloor {
+			// Rounding noise of an output the inputs do not excite (roll
+			// under fully coherent tracks): no tail to speak of.
+			lo, hi, okLo, okHi = 0, 0, true, true
+		}
 		if !okLo {
 			return v, fmt.Errorf("the spectrum of %s does not fall off below %g Hz: its variance is not finite (lower grid.min_hz)", outputNames[o], f[0])
 		}
@@ -265,6 +272,10 @@ func variances(acc *[nOut]float64, band *[4][nOut]float64, f []float64, velOnly 
 	}
 	return v, nil
 }
+
+// noiseFloor is the variance (SI units squared, 1e-12 in standard
+// deviation) below which an output counts as not excited.
+const noiseFloor = 1e-24
 
 // outputNames label the outputs in error messages.
 var outputNames = [nOut]string{
@@ -299,10 +310,11 @@ func newCaseGrid(v *Vehicle, rc *RoadCase, f []float64, symmetric bool) *caseGri
 			cg.ampIn[k] = math.Sqrt(math.Max(0, (sl+sr+2*slr)/4))
 			cg.ampAnti[k] = math.Sqrt(math.Max(0, (sl+sr-2*slr)/4))
 		} else {
-			l11 := math.Sqrt(sl)
-			l21 := slr / l11
-			cg.l11[k], cg.l21[k] = l11, l21
-			cg.l22[k] = math.Sqrt(math.Max(0, sr-l21*l21))
+			// Cholesky of [[S_LL, γ√(S_LL S_RR)], [·, S_RR]], written so
+			// that γ = 1 gives l22 = 0 exactly.
+			cg.l11[k] = math.Sqrt(sl)
+			cg.l21[k] = gam * math.Sqrt(sr)
+			cg.l22[k] = math.Sqrt(sr * math.Max(0, 1-gam*gam))
 		}
 	}
 	return cg

@@ -28,7 +28,8 @@ const (
 //
 // where Ks is diagonal in the wheel rates plus each axle's bar coupling
 // (k_bar/2)[[1,-1],[-1,1]], Cs = diag(c_i) the dampers at the wheel, Kt
-// and Ct the tyres, and T = [1, x_axle, 0] the body point of an axle. The
+// and Ct the tyres, and T = [1, x_axle, -y_cg] the body point on an
+// axle's centre line. The
 // aero term is the force k_aero·h on the body at the axle, h its ride
 // height above the road (downforce grows as h falls).
 type system struct {
@@ -86,7 +87,9 @@ func newSystem(v *Vehicle, speed float64) *system {
 	_, ka := v.AeroAt(speed)
 	xAxle := [2]float64{v.CGToFrontAxle, -v.CGToRearAxle}
 	for ax := 0; ax < 2; ax++ {
-		t := [3]float64{1, xAxle[ax], 0}
+		// The axle's centre line, where the aero load acts and ride height
+		// is measured: y = -CGLateral from the sprung CG.
+		t := [3]float64{1, xAxle[ax], -v.CGLateral}
 		for a := 0; a < 3; a++ {
 			for b := 0; b < 3; b++ {
 				s.k[a][b] -= ka[ax] * t[a] * t[b]
