@@ -45,7 +45,7 @@ func engineConfig(dir string) jobs.Config {
 	return jobs.Config{
 		DatabaseURL:        filepath.Join(dir, "jobs.db"),
 		Workers:            2,
-		SliceDuration:      150 * time.Millisecond,
+		SliceDuration:      40 * time.Millisecond,
 		SliceGrace:         10 * time.Second,
 		RescueMargin:       time.Second,
 		CheckpointInterval: 60 * time.Millisecond,

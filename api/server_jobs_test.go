@@ -60,6 +60,9 @@ func TestJobLifecycle(t *testing.T) {
 	if !slices.Equal(front.GetGeneNames(), []string{"front_bump_ratio", "front_rebound_ratio", "rear_bump_ratio", "rear_rebound_ratio"}) {
 		t.Errorf("gene names %v", front.GetGeneNames())
 	}
+	if j, err := b.engine.Get(testContext(t), job.GetJobId()); err == nil {
+		t.Logf("the job ran in %d slices", j.Slices)
+	}
 	stored, _ := MarshalSpec(spec)
 	direct := frontOf(t, stored, 100, false)
 	if len(direct) != n {

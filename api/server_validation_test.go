@@ -214,3 +214,45 @@ func TestSubmitOverTheLimit(t *testing.T) {
 	_, err := b.client.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: testSpec(11)})
 	wantCode(t, "a job over the limit", err, codes.ResourceExhausted, ReasonJobTooLarge)
 }
+
+// TestListAndFrontRequestPaths: bad list and page arguments are named by
+// their request paths, whichever layer finds them.
+func TestListAndFrontRequestPaths(t *testing.T) {
+	t.Parallel()
+	b := setup(t, Options{})
+	ctx := testContext(t)
+	for _, c := range []struct {
+		name string
+		req  *pb.ListJobsRequest
+		want []string
+	}{
+		{"unspecified state", &pb.ListJobsRequest{States: []pb.JobState{pb.JobState_JOB_STATE_RUNNING, pb.JobState_JOB_STATE_UNSPECIFIED}}, []string{"states[1]"}},
+		{"negative page size", &pb.ListJobsRequest{PageSize: -1}, []string{"page_size"}},
+		{"foreign page token", &pb.ListJobsRequest{PageToken: "bm90IGEgdG9rZW4"}, []string{"page_token"}},
+		{"bad label key", &pb.ListJobsRequest{Labels: map[string]string{"-x": "y"}}, []string{`labels["-x"]`}},
+	} {
+		_, err := b.client.ListJobs(ctx, c.req)
+		got := violations(t, c.name, err)
+		if !slices.Equal(got, c.want) {
+			t.Errorf("%s: violations %q, want %q", c.name, got, c.want)
+		}
+		for _, p := range got {
+			if err := resolvePath(c.req.ProtoReflect().Descriptor(), p); err != nil {
+				t.Errorf("%s: %v", c.name, err)
+			}
+		}
+	}
+	job := b.submit(t, testSpec(2))
+	if _, final := b.watch(t, job.GetName()); final.GetState() != pb.JobState_JOB_STATE_SUCCEEDED {
+		t.Fatalf("job %v", final)
+	}
+	_, err := b.client.GetFront(ctx, &pb.GetFrontRequest{Job: job.GetName(), PageToken: "bm90IGEgdG9rZW4"})
+	if got := violations(t, "front page token", err); !slices.Equal(got, []string{"page_token"}) {
+		t.Errorf("front page token: violations %q", got)
+	}
+	_, err = b.client.GetFront(ctx, &pb.GetFrontRequest{Job: "jobs/a/b"})
+	if got := violations(t, "job name", err); !slices.Equal(got, []string{"job"}) {
+		t.Errorf("job name: violations %q", got)
+	}
+}
+

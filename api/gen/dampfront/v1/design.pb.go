@@ -356,8 +356,9 @@ type DesignSpace struct {
 	FrontHighSpeedFactor *Range `protobuf:"bytes,5,opt,name=front_high_speed_factor,json=frontHighSpeedFactor,proto3" json:"front_high_speed_factor,omitempty"`
 	// Searched high-speed factor at the rear.
 	RearHighSpeedFactor *Range `protobuf:"bytes,6,opt,name=rear_high_speed_factor,json=rearHighSpeedFactor,proto3" json:"rear_high_speed_factor,omitempty"`
-	// Every value that is not searched; absent means knees at 0.05 m/s and
-	// high-speed factors 0.5 on both axles. Its ratios are ignored.
+	// Every value that is not searched. An absent base, or an absent axle
+	// of it, means knees at 0.05 m/s and high-speed factors 0.5 there. Its
+	// ratios are ignored: they are always searched.
 	Base          *Setup `protobuf:"bytes,7,opt,name=base,proto3" json:"base,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache

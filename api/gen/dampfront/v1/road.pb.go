@@ -493,8 +493,8 @@ func (x *Coherence) GetGamma() []float64 {
 }
 
 // Grid is the log-spaced frequency grid on which output spectra are
-// integrated (Simpson's rule in ln f, analytic tails). Absent or all zero
-// means the model's default grid.
+// integrated (Simpson's rule in ln f, analytic tails). Absent, or any
+// zero field, takes the model's default (0.1 to 250 Hz, 241 points).
 type Grid struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Lowest frequency.
