@@ -276,9 +276,9 @@ func (v *Vehicle) Validate() error {
 	for ax := 0; ax < 2; ax++ {
 		p.nonNegative(fmt.Sprintf("aero.downforce_n[%d]", ax), v.Aero.Downforce[ax])
 		p.finite(fmt.Sprintf("aero.stiffness_n_per_m[%d]", ax), v.Aero.Stiffness[ax])
-		if v.Aero.ReferenceSpeed == 0 && (v.Aero.Downforce[ax] != 0 || v.Aero.Stiffness[ax] != 0) {
-			p.add("aero.reference_speed_m_per_s", "must be > 0 when downforce or aero stiffness is given")
-		}
+	}
+	if v.Aero.ReferenceSpeed == 0 && (v.Aero.Downforce != [2]float64{} || v.Aero.Stiffness != [2]float64{}) {
+		p.add("aero.reference_speed_m_per_s", "must be > 0 when downforce or aero stiffness is given")
 	}
 	return p.err()
 }
