@@ -27,26 +27,11 @@ const (
 	mmPerSPerM = 1000.0  // mm/s per m/s
 )
 
-// mm converts metres to millimetres.
-func mm(m float64) float64 { return m * mmPerM }
-
-// mmPerS converts m/s to mm/s.
-func mmPerS(v float64) float64 { return v * mmPerSPerM }
-
 // fromMmPerS converts mm/s (a flag's unit) to m/s.
 func fromMmPerS(v float64) float64 { return v / mmPerSPerM }
 
-// slopeNsPerMm converts a damper slope from N s/m to N s/mm.
-func slopeNsPerMm(c float64) float64 { return c / nsPerMmSI }
-
 // pct converts a fraction to per cent.
 func pct(x float64) float64 { return x * percent }
-
-// deg converts radians to degrees.
-func deg(r float64) float64 { return r * degPerRad }
-
-// gees converts m/s^2 to multiples of standard gravity.
-func gees(a float64) float64 { return a / gravitySI }
 
 // quantity says how one value is named and shown: in tables (label, trade
 // unit, scale from SI, decimals) and in CSV/JSON (column, SI).
@@ -119,17 +104,16 @@ func geneQuantity(name string) quantity {
 
 // Fixed quantities of the metric and curve tables.
 var (
-	qLoadSDRel    = quantity{"load sd", "% static", percent, 2, "relative_tyre_load_sd"}
-	qRideSD       = quantity{"ride sd", "mm", mmPerM, 3, "ride_height_sd_m"}
-	qRideShift    = quantity{"ride shift", "mm", mmPerM, 3, "ride_height_shift_m"}
-	qTravelSD     = quantity{"travel sd", "mm", mmPerM, 3, "travel_sd_m"}
-	qDamperVelSD  = quantity{"damper vel sd", "mm/s", mmPerSPerM, 1, "damper_velocity_sd_m_per_s"}
-	qPitchSD      = quantity{"pitch sd", "deg", degPerRad, 4, "pitch_sd_rad"}
-	qHeaveSD      = quantity{"heave sd", "g", 1 / gravitySI, 4, "heave_accel_sd_m_per_s2"}
-	qProbability  = quantity{"probability", "%", percent, 3, "probability"}
-	qSlope        = quantity{"slope", "N s/mm", 1 / nsPerMmSI, 2, "slope_n_s_per_m"}
-	qVelocity     = quantity{"velocity", "mm/s", mmPerSPerM, 0, "velocity_m_per_s"}
-	qKnee         = quantity{"knee", "mm/s", mmPerSPerM, 0, "knee_m_per_s"}
-	qForce        = quantity{"force", "N", 1, 0, "force_n"}
-	qEpsilonShare = quantity{"epsilon", "% of front extent", percent, 2, "normalized_additive_epsilon"}
+	qLoadSDRel   = quantity{"load sd", "% static", percent, 2, "relative_tyre_load_sd"}
+	qRideSD      = quantity{"ride sd", "mm", mmPerM, 3, "ride_height_sd_m"}
+	qRideShift   = quantity{"ride shift", "mm", mmPerM, 3, "ride_height_shift_m"}
+	qTravelSD    = quantity{"travel sd", "mm", mmPerM, 3, "travel_sd_m"}
+	qDamperVelSD = quantity{"damper vel sd", "mm/s", mmPerSPerM, 1, "damper_velocity_sd_m_per_s"}
+	qPitchSD     = quantity{"pitch sd", "deg", degPerRad, 4, "pitch_sd_rad"}
+	qHeaveSD     = quantity{"heave sd", "g", 1 / gravitySI, 4, "heave_accel_sd_m_per_s2"}
+	qProbability = quantity{"probability", "%", percent, 3, "probability"}
+	qSlope       = quantity{"slope", "N s/mm", 1 / nsPerMmSI, 2, "slope_n_s_per_m"}
+	qVelocity    = quantity{"velocity", "mm/s", mmPerSPerM, 0, "velocity_m_per_s"}
+	qKnee        = quantity{"knee", "mm/s", mmPerSPerM, 0, "knee_m_per_s"}
+	qForce       = quantity{"force", "N", 1, 0, "force_n"}
 )
