@@ -55,7 +55,9 @@
 // eaopt (github.com/MaxHalford/eaopt v0.4.2) evolves Populations of
 // Individuals, each carrying one scalar Fitness, through a loop of
 // Model.Apply, evaluation (optionally parallel), sort by fitness, hall of
-// fame and callback, with islands (NPops) and ring migration. NSGA-II ranks
+// fame and callback, with islands (NPops) and migration (MigRing, which
+// swaps randomly chosen individuals between islands 0 and 1, 1 and 2, and so
+// on; no wrap-around). NSGA-II ranks
 // a whole population at once, so it maps onto that loop like this:
 //
 //   - An eaopt population holds 2N individuals: the N survivors of the last
@@ -73,6 +75,9 @@
 //     has only one possible result.
 //   - The callback after each generation records the generation (archive,
 //     counters, progress) and re-seeds the random streams for the next one.
+//
+// So eaopt's own loop (GA.Minimize), parallel evaluation, islands, migrator
+// and tournament selector run unchanged; nothing of eaopt is driven by hand.
 //
 // # Reproducibility
 //

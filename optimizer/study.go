@@ -109,6 +109,15 @@ func (s *Study) Population() []Solution {
 	return out
 }
 
+// Progress returns the progress of the last completed generation, the
+// zero Progress before the initial population.
+func (s *Study) Progress() Progress {
+	if len(s.history) == 0 {
+		return Progress{}
+	}
+	return s.history[len(s.history)-1].clone()
+}
+
 // History returns the progress of every completed generation, the initial
 // population first.
 func (s *Study) History() []Progress {
