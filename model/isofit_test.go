@@ -159,14 +159,14 @@ func TestFitISOBiasCorrection(t *testing.T) {
 		t.Errorf("Gd0 %g, want 3e-6", f.Gd0)
 	}
 	// ψ'(1) = π²/6 is the variance of ln of an exponential variable.
-	want := math.Sqrt(math.Pi * math.Pi / 6 / sumSq(n))
+	want := math.Sqrt(math.Pi * math.Pi / 6 / isoFitSxx(n))
 	if !scalar.EqualWithinRel(f.StdErrWaviness, want, 1e-9) {
 		t.Errorf("se(w) %g, want %g", f.StdErrWaviness, want)
 	}
 }
 
-// sumSq is Σ (u_k - ū)², u = ln(n/n0).
-func sumSq(n []float64) float64 {
+// isoFitSxx is Σ (u_k - ū)², u = ln(n/n0).
+func isoFitSxx(n []float64) float64 {
 	u := make([]float64, len(n))
 	for k := range n {
 		u[k] = math.Log(n[k] / ISO8608N0)

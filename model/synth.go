@@ -142,8 +142,8 @@ func newRoadCoefficients(rc *RoadCase, track, length float64, kmax int, rnd *ran
 // coherenceStep is the node spacing in ln n of the tabulated isotropic
 // coherence: linear interpolation then errs by at most (h²/8)·max|γ_uu|,
 // γ_uu = d²γ/du² with u = ln n; for w = 2, γ = x K_1(x) gives
-// γ_uu = x³K_1(x) - 2x²K_0(x), at most about 0.5, so the error is < 4e-6.
-const coherenceStep = 0.005
+// γ_uu = x³K_1(x) - 2x²K_0(x), at most about 0.5, so the error is < 1e-5.
+const coherenceStep = 0.01
 
 // coherenceFunc returns γ(n) on [nlo, nhi] for the case: CoherenceAt
 // itself, except for the isotropic model (a Bessel-function quadrature of
@@ -171,6 +171,11 @@ func coherenceFunc(rc *RoadCase, track, nlo, nhi float64) func(n float64) float6
 	tab := make([]float64, nodes+1)
 	for j := range tab {
 		tab[j] = rc.CoherenceAt(math.Exp(l0+float64(j)*coherenceStep), track)
+		if tab[j] < 1e-300 {
+			// x^ν K_ν(x) falls monotonically (its derivative is
+			// -x^ν K_(ν-1)(x)), so the rest of the table is 0 too.
+			break
+		}
 	}
 	return func(n float64) float64 {
 		u := (math.Log(n) - l0) / coherenceStep

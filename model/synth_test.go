@@ -249,9 +249,9 @@ func synthWantField(t *testing.T, err error, field string) {
 func TestCoherenceTableMatchesTheModel(t *testing.T) {
 	t.Parallel()
 	// The tabulated isotropic coherence used by the synthesis must agree
-	// with IsotropicCoherence to its stated interpolation error (4e-6,
+	// with IsotropicCoherence to its stated interpolation error (1e-5,
 	// see coherenceStep) everywhere in its range, also between nodes.
-	const interpolation = 4e-6
+	const interpolation = 1e-5
 	rc := RoadCase{Speed: 40, Class: "B", Waviness: 2.2}
 	f := coherenceFunc(&rc, 1.6, 1e-4, 20)
 	for n := 1e-4; n < 20; n *= 1.0013 {

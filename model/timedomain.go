@@ -375,7 +375,10 @@ func (m *timeModel) timing() (h, settle, rho float64, err error) {
 // steps in a wheel-hop period, and keeps RK4's amplitude error per step
 // below (ρh)⁶/144 ≈ 1e-4 (the series of e^z - R(z), R the RK4 stability
 // polynomial). The 1 ms cap keeps the road synthesised up to 1/h = 1 kHz
-// in time, past the tyres' envelope cut-off V/ℓ for track speeds.
+// in time, past the tyres' envelope cut-off V/ℓ for track speeds. The
+// road's band is the rule's 1/h even when opt.Step is given finer, so that
+// a finer step integrates the same road (a coarser one cuts the band at
+// its own 1/h); a step with ρh > 2.5 is refused.
 //
 // Settling. The start is the quasi-static state K x = Bk w(t_0); the
 // settling time is ln(10⁴)/α, α the slowest decay rate -Re λ with every
@@ -413,7 +416,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	steps := stepsRule
 	if opt.Step > 0 {
 		if opt.Step*rho > stepLimit {
-			return nil, &ValidationError{Problems: []FieldError{{Field: "time.step_s", Reason: fmt.Sprintf(
+			return nil, &ValidationError{Problems: []FieldError{{Field: "step_s", Reason: fmt.Sprintf(
 				"%.3g s is beyond RK4's stability for this car (|λ|max·h = %.2f > %g): use at most %.3g s, or 0 to choose", opt.Step, opt.Step*rho, stepLimit, stepLimit/rho)}}}
 		}
 		steps = smoothAbove(int(math.Ceil(dur/opt.Step*(1-1e-12))), 16)
@@ -421,7 +424,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	h := dur / float64(steps)
 	settleSteps := int(math.Ceil(settle / h))
 	if float64(steps+settleSteps) > maxSteps {
-		return nil, &ValidationError{Problems: []FieldError{{Field: "time.duration_s", Reason: fmt.Sprintf(
+		return nil, &ValidationError{Problems: []FieldError{{Field: "duration_s", Reason: fmt.Sprintf(
 			"needs %d steps of %.3g s, more than %g: shorten the record", steps+settleSteps, h, float64(maxSteps))}}}
 	}
 	// The road's band is set by the step rule, not by a step the caller

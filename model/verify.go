@@ -1,6 +1,7 @@
 package model
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -92,6 +93,12 @@ func Verify(v Vehicle, cases []RoadCase, s Setup, opt VerifyOptions) (*VerifyRep
 		rnd := rand.New(rand.NewPCG(opt.Seed, uint64(i)))
 		tm, err := SimulateCase(&e.v, &e.cases[i].rc, &s, opt.Time, rnd)
 		if err != nil {
+			var ve *ValidationError
+			if errors.As(err, &ve) {
+				var p problems
+				p.merge("time.", err)
+				return nil, p.err()
+			}
 			return nil, err
 		}
 		vc.Time = *tm
