@@ -27,6 +27,11 @@
 //	          SBX crossover with probability p_c, then polynomial mutation
 //	          of every gene with probability p_m
 //
+// The first R_0 is 2N points drawn uniformly from the box (Deb et al. draw
+// N and breed the other N from them; here both halves are random, for the
+// same 2N evaluations; from the first survival step on the algorithm is
+// theirs).
+//
 // Domination is the constrained domination of
 //
 //	K. Deb, "An efficient constraint handling method for genetic
