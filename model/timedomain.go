@@ -100,7 +100,8 @@ const (
 	settleMin     = 1.0  // s
 	settleMax     = 30.0 // s
 	warnDefault   = 0.01 // time fraction
-	maxSteps      = 5e7  // steps per case, a bound on memory and time
+	maxSteps      = 5e7  // steps per case with settling, a bound on time
+	maxRecord     = 4e6  // recorded steps: the road input takes 128 bytes a step
 	stepLimit     = 2.5  // ρ·h above which a caller's step is refused (RK4 is stable below 2.78)
 )
 
@@ -373,8 +374,9 @@ func (m *timeModel) timing() (h, settle, rho float64, err error) {
 // 0.5 lies well inside RK4's stability interval (|λh| < 2.78 on the
 // negative real axis, < 2.83 on the imaginary axis), puts at least 12.6
 // steps in a wheel-hop period, and keeps RK4's amplitude error per step
-// below (ρh)⁶/144 ≈ 1e-4 (the series of e^z - R(z), R the RK4 stability
-// polynomial). The 1 ms cap keeps the road synthesised up to 1/h = 1 kHz
+// below (ρh)⁶/144 ≈ 1e-4 (|R(iy)| = 1 - y⁶/144 + ..., R the RK4 stability
+// polynomial; the local error on the real axis is |z|⁵/120 = 2.6e-4).
+// The 1 ms cap keeps the road synthesised up to 1/h = 1 kHz
 // in time, past the tyres' envelope cut-off V/ℓ for track speeds. The
 // road's band is the rule's 1/h even when opt.Step is given finer, so that
 // a finer step integrates the same road (a coarser one cuts the band at
@@ -423,9 +425,9 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	}
 	h := dur / float64(steps)
 	settleSteps := int(math.Ceil(settle / h))
-	if float64(steps+settleSteps) > maxSteps {
+	if float64(steps) > maxRecord || float64(steps+settleSteps) > maxSteps {
 		return nil, &ValidationError{Problems: []FieldError{{Field: "duration_s", Reason: fmt.Sprintf(
-			"needs %d steps of %.3g s, more than %g: shorten the record", steps+settleSteps, h, float64(maxSteps))}}}
+			"needs %d steps of %.3g s (%d recorded), more than %g (%g): shorten the record", steps+settleSteps, h, steps, float64(maxSteps), float64(maxRecord))}}}
 	}
 	// The road's band is set by the step rule, not by a step the caller
 	// gives, so that a finer step integrates the same road.
