@@ -86,9 +86,10 @@ func (s *Spectrum) FitISO(lo, hi float64) (ISOFit, error) {
 // ln G_k + ψ(ν/2) - ln(ν/2) and the variance ψ'(ν/2) (ψ the digamma
 // function; the log of a gamma variable, e.g. Johnson, Kotz &
 // Balakrishnan, "Continuous Univariate Distributions", vol. 1, 2nd ed.,
-// Wiley 1994, ch. 17). The bias ψ(ν/2) - ln(ν/2) ≈ -1/ν is removed from
-// ln Gd0. With u_k = ln(n_k/n0), ū their mean, S = Σ (u_k - ū)² and
-// σ² = ψ'(ν/2)·inflation, the standard errors are
+// Wiley 1994, ch. 17; chapter from memory). The bias
+// ψ(ν/2) - ln(ν/2) ≈ -1/ν is removed from ln Gd0. With u_k = ln(n_k/n0),
+// ū their mean, S = Σ (u_k - ū)² and σ² = ψ'(ν/2)·inflation, the
+// standard errors are
 //
 //	se(w) = σ/sqrt(S),   se(ln Gd0) = σ sqrt(1/M + ū²/S)
 //

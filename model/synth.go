@@ -33,9 +33,9 @@ type SynthOptions struct {
 // SynthesiseProfile returns a realisation of the road case's left and
 // right tracks by the spectral representation method (Shinozuka & Deodatis
 // 1991, "Simulation of stochastic processes by spectral representation",
-// Appl. Mech. Rev. 44(4):191-204, doi:10.1115/1.3119501), in its
-// multivariate form with a Cholesky factor of the cross-spectral matrix
-// (Shinozuka 1971, "Simulation of multivariate and multidimensional
+// Appl. Mech. Rev. 44(4):191-204, doi:10.1115/1.3119501, DOI from
+// memory), in its multivariate form with a Cholesky factor of the
+// cross-spectral matrix (Shinozuka 1971, "Simulation of multivariate and multidimensional
 // processes", J. Acoust. Soc. Am. 49(1B):357-368; citation from memory).
 //
 // On the bins n_k = k Δn, Δn = 1/L, k = 1..K (no mean), with the

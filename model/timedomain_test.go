@@ -223,7 +223,7 @@ func TestRK4IsFourthOrder(t *testing.T) {
 	// mean square over whole periods of a sinusoid is exact, so the
 	// time-domain RMS differs from it only by the integrator. RK4 has a
 	// global error O(h⁴) (Butcher, "Numerical Methods for Ordinary
-	// Differential Equations", 3rd ed., Wiley 2016, sec. 3.1): halving h
+	// Differential Equations", 3rd ed., Wiley 2016; from memory): halving h
 	// must divide the error by 16 (accepted: 12 to 20, the next term of
 	// the series at these steps), and at the default 1 ms the error must be
 	// below 1e-4 relative, the figure SimulateCase's doc claims.
