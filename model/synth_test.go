@@ -260,3 +260,31 @@ func TestCoherenceTableMatchesTheModel(t *testing.T) {
 		}
 	}
 }
+
+func TestTheCheckedRoadCanBeExported(t *testing.T) {
+	t.Parallel()
+	// SimulateCase documents how to write out the road it drove on:
+	// SynthesiseProfile with Length V·T, Spacing V·h/2, the mean track and
+	// the same seeded source gives the front tyres' input before their
+	// envelope, sample for sample (the same coefficients and FFT).
+	v := demoCar()
+	v.Corners[FL].TyreEnvelopeLength, v.Corners[FR].TyreEnvelopeLength = 0, 0
+	v.Corners[FL].TyreDamping, v.Corners[FR].TyreDamping = 0, 0
+	rc := demoCases()[1]
+	const steps, h = 3000, 1e-3
+	track := (v.TrackFront + v.TrackRear) / 2
+	length := rc.Speed * steps * h
+	in := newRoadCoefficients(&rc, track, length, steps-1, rand.New(rand.NewPCG(8, 1))).tyreInputs(&v, rc.Speed, 2*steps)
+	p, err := SynthesiseProfile(&rc, SynthOptions{Length: length, Spacing: rc.Speed * h / 2, Track: track}, rand.New(rand.NewPCG(8, 1)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Len() != 2*steps {
+		t.Fatalf("%d samples, want %d", p.Len(), 2*steps)
+	}
+	for j := 0; j < p.Len(); j++ {
+		if in[8*j+FL] != p.Left[j] || in[8*j+FR] != p.Right[j] {
+			t.Fatalf("sample %d: tyres %g %g, profile %g %g", j, in[8*j+FL], in[8*j+FR], p.Left[j], p.Right[j])
+		}
+	}
+}

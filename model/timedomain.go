@@ -382,6 +382,12 @@ func (m *timeModel) timing() (h, settle, rho float64, err error) {
 // a finer step integrates the same road (a coarser one cuts the band at
 // its own 1/h); a step with ρh > 2.5 is refused.
 //
+// Exporting the road. The tracks the tyres ran on (before their envelope
+// and the rear delay) are SynthesiseProfile(rc, SynthOptions{Length: V·T,
+// Spacing: V·h/2, Track: (t_f + t_r)/2}, r) with T and h from the
+// returned metrics and r a source seeded as rnd was (for the rule's step;
+// with a coarser given step, also MaxN = 1/(V h)).
+//
 // Settling. The start is the quasi-static state K x = Bk w(t_0); the
 // settling time is ln(10⁴)/α, α the slowest decay rate -Re λ with every
 // damper at its softest slope, within [1 s, 30 s].
