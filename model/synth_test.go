@@ -264,9 +264,11 @@ func TestCoherenceTableMatchesTheModel(t *testing.T) {
 func TestTheCheckedRoadCanBeExported(t *testing.T) {
 	t.Parallel()
 	// SimulateCase documents how to write out the road it drove on:
-	// SynthesiseProfile with Length V·T, Spacing V·h/2, the mean track and
-	// the same seeded source gives the front tyres' input before their
-	// envelope, sample for sample (the same coefficients and FFT).
+	// SynthesiseProfile with Length V·T, Spacing V·h/2, MaxN RoadMaxN, the
+	// mean track and the same seeded source gives the front tyres' input
+	// before their envelope, sample for sample (the same coefficients and
+	// FFT); here with the road's band below the samples' Nyquist frequency,
+	// as when a finer step than the rule's is given.
 	v := demoCar()
 	v.Corners[FL].TyreEnvelopeLength, v.Corners[FR].TyreEnvelopeLength = 0, 0
 	v.Corners[FL].TyreDamping, v.Corners[FR].TyreDamping = 0, 0
@@ -274,8 +276,9 @@ func TestTheCheckedRoadCanBeExported(t *testing.T) {
 	const steps, h = 3000, 1e-3
 	track := (v.TrackFront + v.TrackRear) / 2
 	length := rc.Speed * steps * h
-	in := newRoadCoefficients(&rc, track, length, steps-1, rand.New(rand.NewPCG(8, 1))).tyreInputs(&v, rc.Speed, 2*steps)
-	p, err := SynthesiseProfile(&rc, SynthOptions{Length: length, Spacing: rc.Speed * h / 2, Track: track}, rand.New(rand.NewPCG(8, 1)))
+	const bins = 2000
+	in := newRoadCoefficients(&rc, track, length, bins, rand.New(rand.NewPCG(8, 1))).tyreInputs(&v, rc.Speed, 2*steps)
+	p, err := SynthesiseProfile(&rc, SynthOptions{Length: length, Spacing: rc.Speed * h / 2, MaxN: bins / length, Track: track}, rand.New(rand.NewPCG(8, 1)))
 	if err != nil {
 		t.Fatal(err)
 	}

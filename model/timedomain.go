@@ -384,9 +384,8 @@ func (m *timeModel) timing() (h, settle, rho float64, err error) {
 //
 // Exporting the road. The tracks the tyres ran on (before their envelope
 // and the rear delay) are SynthesiseProfile(rc, SynthOptions{Length: V·T,
-// Spacing: V·h/2, Track: (t_f + t_r)/2}, r) with T and h from the
-// returned metrics and r a source seeded as rnd was (for the rule's step;
-// with a coarser given step, also MaxN = 1/(V h)).
+// Spacing: V·h/2, MaxN: RoadMaxN, Track: (t_f + t_r)/2}, r) with T, h
+// and RoadMaxN from the returned metrics and r a source seeded as rnd was.
 //
 // Settling. The start is the quasi-static state K x = Bk w(t_0); the
 // settling time is ln(10⁴)/α, α the slowest decay rate -Re λ with every
@@ -465,5 +464,6 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	}
 	tm := stats.metrics(m, rc.Name, warn)
 	tm.Step, tm.Settle, tm.Duration = h, settle, dur
+	tm.RoadMaxN = float64(len(rcf.left)-1) / length
 	return tm, nil
 }

@@ -25,6 +25,9 @@ type TimeMetrics struct {
 	Settle   float64 // time integrated before recording (s)
 	Duration float64 // recorded time (s)
 	Samples  int     // recorded samples (one per step)
+	// RoadMaxN is the highest spatial frequency of the synthesised road
+	// (cycles/m); the road is periodic with length V·Duration.
+	RoadMaxN float64
 
 	// VelocityAbsRatio is E|v|/σ of each wheel's suspension velocity;
 	// sqrt(2/π) = 0.798 for a Gaussian. The jacking of a bilinear damper
