@@ -310,13 +310,17 @@ func smoothBelow(n, limit int) int {
 }
 
 // Measured returns the bins of s with lo <= n <= hi (cycles/m) as the
-// tabulated spectrum of a road case. lo = 0 means the third bin, 2/L_s
-// (L_s the segment length): the per-segment detrend removes most of bin 1
-// and the window's main lobe spreads that loss into its neighbour; hi = 0
-// means the last bin.
+// tabulated spectrum of a road case. The lowest bins are biased: the
+// per-segment detrend removes most of bins 1 and 2, and the window's
+// resolution bias raises bin k of an n^-w spectrum by w(w+1)/(6k²) (see
+// Spectrum.FitISO), 4% at k = 5 for w = 2. lo = 0 therefore means bin 5,
+// 5/L_s (L_s the segment length): choose L_s so that the lowest spatial
+// frequency that matters (the body frequencies over the speed, about
+// 0.02-0.05 cycles/m at track speeds) lies there or above. hi = 0 means
+// the last bin.
 func (s *Spectrum) Measured(lo, hi float64) (*MeasuredSpectrum, error) {
 	if lo == 0 {
-		lo = s.N[min(2, len(s.N)-1)]
+		lo = s.N[min(5, len(s.N)-1)]
 	}
 	if hi == 0 {
 		hi = s.N[len(s.N)-1]

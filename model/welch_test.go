@@ -342,8 +342,8 @@ func TestSpectrumMeasuredFeedsARoadCase(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if m.N[0] != s.N[2] || m.N[len(m.N)-1] > 4 {
-		t.Errorf("band %g..%g, want from bin 2 (%g) to at most 4", m.N[0], m.N[len(m.N)-1], s.N[2])
+	if m.N[0] != s.N[5] || m.N[len(m.N)-1] > 4 {
+		t.Errorf("band %g..%g, want from bin 5 (%g) to at most 4", m.N[0], m.N[len(m.N)-1], s.N[5])
 	}
 	rc := RoadCase{Name: "measured", Speed: 40, Measured: m}
 	if err := rc.Validate(); err != nil {
