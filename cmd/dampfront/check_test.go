@@ -30,7 +30,7 @@ func TestJudge(t *testing.T) {
 		want    []string
 	}{
 		{"not dominated", cmp(true, 0, -0.1), 0, true, []string{"PASS", "no solution of the front of 40 solutions dominates it"}},
-		{"within epsilon", cmp(true, 0, 0.01), 0.02, true, []string{"PASS", "within 1.00 %", "allowed 2.00 %", "grip +0.10 % static", "platform +0.200 mm"}},
+		{"within epsilon", cmp(true, 0, 0.01), 0.02, true, []string{"PASS", "solution 7", "at least 1.00 %", "allowed 2.00 %", "grip +0.10 % static", "platform +0.200 mm"}},
 		{"at epsilon", cmp(true, 0, 0.02), 0.02, true, []string{"PASS"}},
 		{"beyond epsilon", cmp(true, 0, 0.05), 0.02, false, []string{"FAIL", "solution 7", "at least 5.00 %"}},
 		{"infeasible", cmp(false, 0.326, -1), 1, false, []string{"FAIL: constraints not met", "ride-height shift over its limit 3.00 mm by 32.6 %"}},
@@ -56,5 +56,21 @@ func TestJudge(t *testing.T) {
 	r.Partial = true
 	if v := judge(r, 0); !strings.Contains(v.line, "partial front") {
 		t.Errorf("a partial front is not named: %s", v.line)
+	}
+}
+
+// normalizedNearest on a front worked by hand: objectives (1, 8), (2, 4),
+// (4, 2), (8, 1), extents 7 and 7; the candidate z = (3, 5) has
+// normalised gaps (2, -3)/7, (1, 1)/7, (-1, 3)/7, (-5, 4)/7, minima
+// -3/7, 1/7, -1/7, -5/7: the second point attains eps = 1/7.
+func TestNormalizedNearest(t *testing.T) {
+	t.Parallel()
+	front := solutions([2]float64{1, 8}, [2]float64{2, 4}, [2]float64{4, 2}, [2]float64{8, 1})
+	k, gaps := normalizedNearest([]float64{3, 5}, front)
+	if k != 1 || len(gaps) != 2 || gaps[0] != 1 || gaps[1] != 1 {
+		t.Errorf("normalizedNearest = %d %v, want 1 [1 1]", k, gaps)
+	}
+	if k, _ := normalizedNearest([]float64{3, 5}, nil); k != -1 {
+		t.Errorf("empty front: %d, want -1", k)
 	}
 }

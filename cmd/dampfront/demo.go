@@ -63,11 +63,9 @@ balanced point, stops the server and removes the temporary files.`)
 	}
 	db := filepath.Join(dir, "demo.db")
 	defer func() {
-		if *keep {
-			fmt.Fprintf(e.stdout, "\nKept %s; serve it with: dampfront serve --database %s\n", dir, db)
-			return
+		if !*keep {
+			_ = os.RemoveAll(dir)
 		}
-		_ = os.RemoveAll(dir)
 	}()
 
 	ef := &engineFlags{logLevel: "warn", logFormat: "text"}
@@ -102,15 +100,23 @@ balanced point, stops the server and removes the temporary files.`)
 		_ = eng.Close()
 		return err
 	}
-	runErr := demo(ctx, e, lis.Addr().String(), spec, *quiet, start)
+	runErr := demo(ctx, e, lis.Addr().String(), spec, *quiet)
 	if err := svc.shutdown(); err != nil && runErr == nil {
 		runErr = err
 	}
-	return runErr
+	if runErr != nil {
+		return runErr
+	}
+	fmt.Fprintf(e.stdout, "\nDemo done in %.1f s. Next: dampfront serve, then submit, watch, front, curves, eval and check.\n", time.Since(start).Seconds())
+	if *keep {
+		fmt.Fprintf(e.stdout, "Kept %s; serve it with: dampfront serve --database %s\n", dir, db)
+	}
+	printCaution(e.stdout)
+	return nil
 }
 
 // demo is the client side of the demo, over the loopback port.
-func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool, start time.Time) error {
+func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool) error {
 	c, err := dial(addr, time.Minute)
 	if err != nil {
 		return err
@@ -137,7 +143,6 @@ func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool
 	}
 	bal := balancedIndex(fd.front.GetSolutions())
 	if bal < 0 {
-		printCaution(e.stdout)
 		return &exitError{code: exitFailure, msg: "the front is empty"}
 	}
 	idx := fd.front.GetSolutions()[bal].GetIndex()
@@ -151,10 +156,5 @@ func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool
 	sol := fd.front.GetSolutions()[bal]
 	fmt.Fprintf(e.stdout, "\nDamper curves of the balanced point, solution %d: %s\n", idx, setupText(cr.GetSetup()))
 	fmt.Fprintf(e.stdout, "Its objectives: %s.\n", objectivesText(sol.GetObjectives(), fd.front.GetObjectives()))
-	if err := writeCurvesTable(e.stdout, cr.GetCurves()); err != nil {
-		return err
-	}
-	fmt.Fprintf(e.stdout, "\nDemo done in %.1f s. Next: dampfront curves, eval and check against a server of your own (dampfront serve).\n", time.Since(start).Seconds())
-	printCaution(e.stdout)
-	return nil
+	return writeCurvesTable(e.stdout, cr.GetCurves())
 }
