@@ -1,0 +1,263 @@
+package plot
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	xfont "golang.org/x/image/font"
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/text"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgimg"
+	"gonum.org/v1/plot/vg/vgsvg"
+)
+
+// Format is an output format of a Figure.
+type Format string
+
+// The formats a Figure writes.
+const (
+	SVG Format = "svg"
+	PNG Format = "png"
+)
+
+// DefaultDPI is the resolution of PNG output, dots per inch: a 17 cm wide
+// figure is 964 pixels wide, sharp on a laptop screen and in a report.
+const DefaultDPI = 144
+
+// Figure is a finished chart: a title, a grid of panels, a side column
+// with the legend and a colour bar, and a footnote that ends with
+// Caution, on a page of Width × Height.
+//
+//	+--------------------------------------+
+//	|                title                 |
+//	| +--------+ +--------+     legend     |
+//	| | panel  | | panel  |     colour bar |
+//	| +--------+ +--------+                |
+//	| notes, caution                       |
+//	+--------------------------------------+
+type Figure struct {
+	// Width and Height are the page size.
+	Width, Height vg.Length
+	// DPI is the resolution of PNG output; 0 means DefaultDPI.
+	DPI int
+	// Title is drawn above the panels; empty draws none.
+	Title string
+	// Notes are footnote lines drawn above Caution.
+	Notes []string
+
+	// Panels are the plots, row-major; a nil entry leaves its tile empty.
+	// They may be restyled before the figure is written.
+	Panels [][]*plot.Plot
+	// Legend, when it has entries, is drawn at the top of the side column.
+	Legend *plot.Legend
+	// ColourBar, when not nil, is drawn in the side column under the
+	// legend, level with the data area of the first row of panels.
+	ColourBar *plot.Plot
+}
+
+// Layout constants of a Figure.
+var (
+	margin      = vg.Points(8)  // page edge to content
+	panelGap    = vg.Points(14) // between panels
+	sideGap     = vg.Points(12) // panels to side column
+	barWidth    = vg.Points(12) // the colour strip of a colour bar
+	noteLeading = 1.25          // footnote line spacing over font size
+)
+
+// newFigure returns a figure of one row of panels.
+func newFigure(w, h vg.Length, title string, panels ...*plot.Plot) *Figure {
+	return &Figure{Width: w, Height: h, Title: title, Panels: [][]*plot.Plot{panels}}
+}
+
+// Write renders the figure in a format to w.
+func (f *Figure) Write(w io.Writer, format Format) error {
+	switch format {
+	case SVG:
+		return f.WriteSVG(w)
+	case PNG:
+		return f.WritePNG(w)
+	}
+	return fmt.Errorf("plot: unknown format %q (want svg or png)", format)
+}
+
+// WriteSVG renders the figure as SVG (text as text, fonts not embedded).
+func (f *Figure) WriteSVG(w io.Writer) error {
+	c := vgsvg.New(f.Width, f.Height)
+	f.Draw(draw.New(c))
+	_, err := c.WriteTo(w)
+	return err
+}
+
+// WritePNG renders the figure as PNG of round(Width/inch × DPI) by
+// round(Height/inch × DPI) pixels on a white background.
+func (f *Figure) WritePNG(w io.Writer) error {
+	dpi := f.DPI
+	if dpi == 0 {
+		dpi = DefaultDPI
+	}
+	c := vgimg.NewWith(vgimg.UseWH(f.Width, f.Height), vgimg.UseDPI(dpi))
+	f.Draw(draw.New(c))
+	_, err := vgimg.PngCanvas{Canvas: c}.WriteTo(w)
+	return err
+}
+
+// Draw draws the figure on a canvas.
+func (f *Figure) Draw(c draw.Canvas) {
+	c.SetColor(colourWhite)
+	c.Fill(c.Rectangle.Path())
+	c = draw.Crop(c, margin, -margin, margin, -margin)
+
+	if f.Title != "" {
+		sty := textStyle(sizeTitle)
+		sty.Font.Weight = xfont.WeightBold
+		sty.XAlign, sty.YAlign = draw.XCenter, draw.YTop
+		c.FillText(sty, vg.Point{X: c.Center().X, Y: c.Max.Y}, f.Title)
+		c.Max.Y -= sty.Height(f.Title) + vg.Points(6)
+	}
+
+	note := textStyle(sizeNote)
+	note.Color = colNote
+	note.XAlign, note.YAlign = draw.XLeft, draw.YBottom
+	var lines []string
+	for _, n := range append(append([]string(nil), f.Notes...), Caution) {
+		lines = append(lines, wrap(note, n, c.Max.X-c.Min.X)...)
+	}
+	lead := vg.Length(noteLeading) * note.Font.Size
+	for i := len(lines) - 1; i >= 0; i-- {
+		c.FillText(note, vg.Point{X: c.Min.X, Y: c.Min.Y}, lines[i])
+		c.Min.Y += lead
+	}
+	c.Min.Y += vg.Points(4)
+
+	var side draw.Canvas
+	if w := f.sideWidth(c); w > 0 {
+		side = c
+		side.Min.X = c.Max.X - w
+		c.Max.X = side.Min.X - sideGap
+	}
+
+	rows := len(f.Panels)
+	if rows == 0 {
+		return
+	}
+	cols := 0
+	for _, r := range f.Panels {
+		cols = max(cols, len(r))
+	}
+	grid := make([][]*plot.Plot, rows)
+	for i, r := range f.Panels {
+		grid[i] = make([]*plot.Plot, cols)
+		copy(grid[i], r)
+	}
+	tiles := plot.Align(grid, draw.Tiles{Rows: rows, Cols: cols, PadX: panelGap, PadY: panelGap}, c)
+	for i := range grid {
+		for j, p := range grid[i] {
+			if p != nil {
+				p.Draw(tiles[i][j])
+			}
+		}
+	}
+	if side.Max.X > side.Min.X {
+		top := side.Max.Y
+		if f.hasLegend() {
+			f.Legend.Top, f.Legend.Left = true, true
+			f.Legend.Draw(side)
+			top -= f.Legend.Rectangle(side).Size().Y + vg.Points(10)
+		}
+		if f.ColourBar != nil {
+			bottom := side.Min.Y
+			if p := firstPanel(grid); p != nil {
+				dc := p.DataCanvas(tiles[0][firstCol(grid)])
+				bottom = dc.Min.Y
+				top = min(top, dc.Max.Y)
+			}
+			f.drawColourBar(side, bottom, top)
+		}
+	}
+}
+
+// drawColourBar draws the colour bar with its data area from bottom to
+// top, its strip at the right of the side column.
+func (f *Figure) drawColourBar(side draw.Canvas, bottom, top vg.Length) {
+	if top-bottom < vg.Points(30) {
+		return
+	}
+	trial := side
+	dc := f.ColourBar.DataCanvas(trial)
+	left := dc.Min.X - trial.Min.X
+	cb := side
+	cb.Min.X = side.Min.X
+	cb.Max.X = side.Min.X + left + barWidth + vg.Points(4)
+	cb.Min.Y = bottom - (dc.Min.Y - trial.Min.Y)
+	cb.Max.Y = top + (trial.Max.Y - dc.Max.Y)
+	f.ColourBar.Draw(cb)
+}
+
+// sideWidth is the width the legend and colour bar need; 0 for neither.
+func (f *Figure) sideWidth(c draw.Canvas) vg.Length {
+	var w vg.Length
+	if f.hasLegend() {
+		w = f.Legend.Rectangle(c).Size().X
+	}
+	if f.ColourBar != nil {
+		dc := f.ColourBar.DataCanvas(c)
+		w = max(w, dc.Min.X-c.Min.X+barWidth+vg.Points(4))
+	}
+	return w
+}
+
+func (f *Figure) hasLegend() bool {
+	return f.Legend != nil && f.Legend.Rectangle(draw.Canvas{}).Size().Y > 0
+}
+
+func firstPanel(grid [][]*plot.Plot) *plot.Plot {
+	if j := firstCol(grid); j >= 0 {
+		return grid[0][j]
+	}
+	return nil
+}
+
+func firstCol(grid [][]*plot.Plot) int {
+	for j, p := range grid[0] {
+		if p != nil {
+			return j
+		}
+	}
+	return -1
+}
+
+// wrap breaks s into lines no wider than width in style sty, at spaces.
+func wrap(sty text.Style, s string, width vg.Length) []string {
+	words := strings.Fields(s)
+	var lines []string
+	cur := ""
+	for _, w := range words {
+		try := w
+		if cur != "" {
+			try = cur + " " + w
+		}
+		if cur != "" && sty.Width(try) > width {
+			lines = append(lines, cur)
+			cur = w
+			continue
+		}
+		cur = try
+	}
+	if cur != "" {
+		lines = append(lines, cur)
+	}
+	return lines
+}
+
+// newLegend returns an empty legend in the house font.
+func newLegend() *plot.Legend {
+	l := plot.NewLegend()
+	l.TextStyle.Font = font.From(sansFont, sizeLegend)
+	l.ThumbnailWidth = vg.Points(18)
+	l.Padding = vg.Points(3)
+	return &l
+}
