@@ -14,6 +14,7 @@ import (
 	"google.golang.org/grpc/status"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
 )
 
 // defaultAddr is where serve listens and clients connect unless told.
@@ -138,6 +139,10 @@ func isCode(err error, c codes.Code) bool {
 // input, unknown job, job in the wrong state): exit code 2 where a
 // subcommand tells input errors from failures.
 func inputError(err error) bool {
+	var ia *jobs.InvalidArgumentError
+	if errors.As(err, &ia) {
+		return true // a bad engine setting, such as the database URL
+	}
 	for _, c := range []codes.Code{codes.InvalidArgument, codes.NotFound, codes.FailedPrecondition, codes.OutOfRange} {
 		if isCode(err, c) {
 			return true
