@@ -45,7 +45,7 @@ func engineConfig(dir string) jobs.Config {
 	return jobs.Config{
 		DatabaseURL:        filepath.Join(dir, "jobs.db"),
 		Workers:            2,
-		SliceDuration:      40 * time.Millisecond,
+		SliceDuration:      300 * time.Millisecond,
 		SliceGrace:         10 * time.Second,
 		RescueMargin:       time.Second,
 		CheckpointInterval: 60 * time.Millisecond,
@@ -60,11 +60,28 @@ func engineConfig(dir string) jobs.Config {
 	}
 }
 
-// startEngine opens and starts an engine with the API's opener.
-func startEngine(t *testing.T) *jobs.Engine {
+// shortSlices makes slices short enough that a job of a few dozen small
+// generations crosses several of them. A slice must outlast a generation
+// (the first one includes the initial population), or it ends before
+// committing anything; under the race detector a generation takes some
+// ten times longer, so the slices stay long there.
+func shortSlices(c *jobs.Config) {
+	if !raceDetector {
+		c.SliceDuration = 50 * time.Millisecond
+		c.CheckpointInterval = 20 * time.Millisecond
+	}
+}
+
+// startEngine opens and starts an engine with the API's opener; mods
+// change the configuration first.
+func startEngine(t *testing.T, mods ...func(*jobs.Config)) *jobs.Engine {
 	t.Helper()
 	ctx := context.Background()
-	e, err := jobs.Open(ctx, engineConfig(t.TempDir()), &Opener{Workers: 1})
+	cfg := engineConfig(t.TempDir())
+	for _, m := range mods {
+		m(&cfg)
+	}
+	e, err := jobs.Open(ctx, cfg, &Opener{Workers: 1})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -83,9 +100,9 @@ func startEngine(t *testing.T) *jobs.Engine {
 }
 
 // setup serves a Server with opt over bufconn.
-func setup(t *testing.T, opt Options) *testBundle {
+func setup(t *testing.T, opt Options, mods ...func(*jobs.Config)) *testBundle {
 	t.Helper()
-	e := startEngine(t)
+	e := startEngine(t, mods...)
 	if opt.Logger == nil {
 		opt.Logger = slog.New(slog.DiscardHandler)
 	}

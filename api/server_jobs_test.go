@@ -18,8 +18,8 @@ import (
 // bit-for-bit reproducible, also after a resume").
 func TestJobLifecycle(t *testing.T) {
 	t.Parallel()
-	b := setup(t, Options{})
-	spec := testSpec(12)
+	b := setup(t, Options{}, shortSlices)
+	spec := testSpec(40)
 	job := b.submit(t, spec)
 	if job.GetName() != "jobs/"+job.GetJobId() || job.GetSeed() != 7 || job.GetLabels()["suite"] != "api" {
 		t.Errorf("submitted job %v", job)
@@ -40,7 +40,7 @@ func TestJobLifecycle(t *testing.T) {
 			t.Errorf("progress went back: generation %d after %d", progress[i].GetGeneration(), progress[i-1].GetGeneration())
 		}
 	}
-	if p := final.GetProgress(); p.GetGeneration() != 12 || p.GetGenerations() != 12 || len(p.GetBestObjectives()) != 2 || !(p.GetHypervolume() > 0) {
+	if p := final.GetProgress(); p.GetGeneration() != 40 || p.GetGenerations() != 40 || len(p.GetBestObjectives()) != 2 || !(p.GetHypervolume() > 0) {
 		t.Errorf("final progress %v", p)
 	}
 

@@ -255,4 +255,3 @@ func TestListAndFrontRequestPaths(t *testing.T) {
 		t.Errorf("job name: violations %q", got)
 	}
 }
-

@@ -2,6 +2,7 @@ package api
 
 import (
 	"context"
+	"crypto/sha256"
 	"encoding/binary"
 	"fmt"
 	"math"
@@ -23,6 +24,11 @@ type Opener struct {
 	// Workers is the number of evaluations a study runs at once; 0 means
 	// GOMAXPROCS. The front does not depend on it.
 	Workers int
+
+	// details keeps the encoded details of front members across the
+	// studies this opener makes, so that a job resumed in its next slice
+	// does not evaluate its whole front again.
+	details detailCache
 }
 
 var (
@@ -71,7 +77,12 @@ func (o *Opener) Open(spec, checkpoint []byte) (jobs.Study, error) {
 	if err != nil {
 		return nil, err
 	}
-	return openStudy(pl, o.workers(), checkpoint)
+	js, err := openStudy(pl, o.workers(), checkpoint)
+	if err != nil {
+		return nil, err
+	}
+	js.cache, js.specKey = &o.details, specKey(spec)
+	return js, nil
 }
 
 func (o *Opener) workers() int {
@@ -84,7 +95,7 @@ func (o *Opener) workers() int {
 // openStudy makes the optimiser study of a plan, restored from
 // checkpoint unless it is nil.
 func openStudy(pl *plan, workers int, checkpoint []byte) (*jobStudy, error) {
-	js := &jobStudy{plan: pl, details: map[string][]byte{}}
+	js := &jobStudy{plan: pl}
 	settings := pl.optimizerSettings(workers, js.record)
 	var err error
 	if checkpoint == nil {
@@ -109,10 +120,11 @@ type jobStudy struct {
 	mu   sync.Mutex
 	last optimizer.Progress // after the last completed generation
 
-	// details caches the encoded detail of front members by their genes'
-	// bits: a member's detail never changes, and the front is asked for
-	// at every checkpoint.
-	details map[string][]byte
+	// cache holds the encoded details of front members by spec and genes:
+	// a member's detail never changes, and the front is asked for at
+	// every checkpoint. nil caches nothing.
+	cache   *detailCache
+	specKey string
 }
 
 // record is the optimiser's progress callback.
@@ -148,21 +160,18 @@ func (js *jobStudy) Progress() jobs.Progress {
 func (js *jobStudy) Front() ([]jobs.Solution, error) {
 	front := js.opt.Front()
 	out := make([]jobs.Solution, len(front))
-	seen := make(map[string][]byte, len(front))
 	for i, s := range front {
-		key := geneKey(s.Genes)
-		detail, ok := js.details[key]
+		key := js.specKey + geneKey(s.Genes)
+		detail, ok := js.cache.get(key)
 		if !ok {
 			var err error
-			detail, err = js.detail(s)
-			if err != nil {
+			if detail, err = js.detail(s); err != nil {
 				return nil, err
 			}
+			js.cache.put(key, detail)
 		}
-		seen[key] = detail
 		out[i] = jobs.Solution{Index: i, Genes: s.Genes, Objectives: s.Objectives, Violations: s.Violations, Feasible: s.Feasible, Detail: detail}
 	}
-	js.details = seen
 	return out, nil
 }
 
@@ -189,4 +198,45 @@ func geneKey(x []float64) string {
 		binary.LittleEndian.PutUint64(b[8*i:], math.Float64bits(v))
 	}
 	return string(b)
+}
+
+// specKey identifies spec bytes in the detail cache.
+func specKey(spec []byte) string {
+	h := sha256.Sum256(spec)
+	return string(h[:])
+}
+
+// maxCachedDetails bounds the detail cache: about 10 kB each with the
+// default curve tabulation, so some 20 MB at most.
+const maxCachedDetails = 2048
+
+// detailCache maps spec and genes to an encoded solution detail. It is
+// safe for concurrent use; a nil *detailCache caches nothing. When full
+// it is emptied: the members of the fronts being run come back at the
+// next checkpoint.
+type detailCache struct {
+	mu sync.Mutex
+	m  map[string][]byte
+}
+
+func (c *detailCache) get(key string) ([]byte, bool) {
+	if c == nil {
+		return nil, false
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	b, ok := c.m[key]
+	return b, ok
+}
+
+func (c *detailCache) put(key string, b []byte) {
+	if c == nil {
+		return
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.m == nil || len(c.m) >= maxCachedDetails {
+		c.m = make(map[string][]byte)
+	}
+	c.m[key] = b
 }
