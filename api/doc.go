@@ -11,6 +11,21 @@
 //	study*.go                    JobSpec -> model.Study + optimizer study
 //	server*.go                   the service over a jobs engine
 //
+// # Wiring
+//
+// A serve command opens the job engine with an Opener (which builds the
+// studies from stored specs), starts it, and serves a Server over it:
+//
+//	engine, _ := jobs.Open(ctx, cfg, &api.Opener{})
+//	engine.Start(ctx)
+//	srv, _ := api.NewServer(engine, api.Options{})
+//	srv.Serve(ctx, lis) // until ctx ends; then GracefulStop, Stop after Options.StopTimeout
+//	engine.Stop(stopCtx)
+//
+// Serve registers the standard health service and server reflection
+// beside DampfrontService; Register and NewGRPCServer do the same for a
+// caller that runs its own grpc.Server.
+//
 // # Units
 //
 // Messages carry SI values, the unit in every physical field's name

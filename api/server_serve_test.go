@@ -132,3 +132,52 @@ func TestShutdownEndsWatches(t *testing.T) {
 		t.Errorf("health after shutdown: %v, %v", st, err)
 	}
 }
+
+// TestShutdownCutsLongCalls: a call still running when the graceful stop
+// times out is cut by Stop rather than waited for. The call evaluates
+// some 2000 setups (seconds of work); with a stop timeout of 50 ms it
+// must end with an error, not a result.
+func TestShutdownCutsLongCalls(t *testing.T) {
+	t.Parallel()
+	e := startEngine(t)
+	srv, err := NewServer(e, Options{Logger: slog.New(slog.DiscardHandler), StopTimeout: 50 * time.Millisecond, MaxSyncWork: 1 << 20})
+	if err != nil {
+		t.Fatal(err)
+	}
+	lis := bufconn.Listen(1 << 20)
+	ctx, stop := context.WithCancel(context.Background())
+	defer stop()
+	done := make(chan error, 1)
+	go func() { done <- srv.Serve(ctx, lis) }()
+	conn, err := grpc.NewClient("passthrough:///bufconn", grpc.WithTransportCredentials(insecure.NewCredentials()),
+		grpc.WithContextDialer(func(ctx context.Context, _ string) (net.Conn, error) { return lis.DialContext(ctx) }))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer conn.Close()
+	setups := make([]*pb.Setup, 2000)
+	for i := range setups {
+		setups[i] = testSetup()
+	}
+	callErr := make(chan error, 1)
+	go func() {
+		_, err := pb.NewDampfrontServiceClient(conn).EvaluateSetups(testContext(t), &pb.EvaluateSetupsRequest{
+			Source: &pb.EvaluateSetupsRequest_Spec{Spec: testSpec(1)}, Setups: setups, View: pb.SolutionView_SOLUTION_VIEW_BASIC})
+		callErr <- err
+	}()
+	// Wait until the handler holds its evaluation slot, i.e. is running.
+	deadline := time.Now().Add(testTimeout)
+	for len(srv.slots) == 0 {
+		if time.Now().After(deadline) {
+			t.Fatal("the call never started")
+		}
+		time.Sleep(time.Millisecond)
+	}
+	stop()
+	if err := <-callErr; err == nil {
+		t.Error("the long call completed; the graceful stop's timeout did not cut it")
+	}
+	if err := <-done; err != nil {
+		t.Errorf("Serve: %v", err)
+	}
+}
