@@ -99,7 +99,7 @@ func finish(e *env, name string, err error) int {
 	}
 	var ue *usageError
 	if errors.As(err, &ue) {
-		fmt.Fprintf(e.stderr, "dampfront %s: %s\nRun 'dampfront %s --help' for usage.\n", name, ue.msg, name)
+		fmt.Fprintf(e.stderr, "dampfront %s: %s\nUsage: dampfront %s %s\nRun 'dampfront %s --help' for the flags.\n", name, ue.msg, name, synopses[name], name)
 		return exitUsage
 	}
 	var xe *exitError

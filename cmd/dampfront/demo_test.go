@@ -2,6 +2,7 @@ package main
 
 import (
 	"os"
+	"os/exec"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -64,5 +65,21 @@ func TestDemoKeep(t *testing.T) {
 	}
 	if st, err := os.Stat(m[2]); err != nil || st.Size() == 0 {
 		t.Errorf("kept database %s: %v", m[2], err)
+	}
+}
+
+// BenchmarkDemo is the wall time of "dampfront demo" as a process, start
+// to exit: server start on a fresh SQLite file, the demo job (36 x 30
+// generations on three road cases), the front and curves, shutdown. Run
+// it with -benchtime 3x; the figure belongs in the notes, no test
+// asserts on it.
+func BenchmarkDemo(b *testing.B) {
+	tmp := b.TempDir()
+	for i := 0; i < b.N; i++ {
+		cmd := exec.Command(binary, "demo", "--quiet")
+		cmd.Env = append(cleanEnv(), "TMPDIR="+tmp)
+		if out, err := cmd.CombinedOutput(); err != nil {
+			b.Fatalf("demo: %v\n%s", err, out)
+		}
 	}
 }

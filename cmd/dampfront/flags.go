@@ -22,9 +22,14 @@ type flagSet struct {
 	out      io.Writer
 }
 
+// synopses holds the synopsis of each subcommand whose flags were made,
+// for the usage line of a usage error.
+var synopses = map[string]string{}
+
 // newFlagSet makes the flags of subcommand name; synopsis follows
 // "dampfront name", about is the paragraph under it.
 func newFlagSet(e *env, name, synopsis, about string) *flagSet {
+	synopses[name] = synopsis
 	fs := &flagSet{FlagSet: flag.NewFlagSet(name, flag.ContinueOnError), name: name, synopsis: synopsis, about: about, out: e.stdout}
 	fs.SetOutput(io.Discard) // parse errors are reported by finish, usage by printUsage
 	return fs
@@ -71,9 +76,9 @@ func (fs *flagSet) parse(args []string, minArgs, maxArgs int) ([]string, error) 
 	}
 	switch {
 	case len(pos) < minArgs:
-		return nil, usagef(fs.name, "expected %s", fs.synopsis)
+		return nil, usagef(fs.name, "missing argument")
 	case maxArgs >= 0 && len(pos) > maxArgs:
-		return nil, usagef(fs.name, "unexpected argument %q; expected %s", pos[maxArgs], fs.synopsis)
+		return nil, usagef(fs.name, "unexpected argument %q", pos[maxArgs])
 	}
 	return pos, nil
 }

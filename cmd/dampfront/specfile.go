@@ -109,7 +109,7 @@ func (s *specFlags) load(e *env, path string) (*pb.JobSpec, error) {
 		if err := readMessage(e, path, spec); err != nil {
 			return nil, err
 		}
-		if spec.GetDisplayName() == "" {
+		if spec.GetDisplayName() == "" && path != "-" {
 			spec.DisplayName = filepath.Base(path)
 		}
 	}
