@@ -103,7 +103,8 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt Options) (*Evaluator, error) 
 		sym := vsym && (rc.Measured == nil || rc.Measured.Right == nil)
 		cd := caseData{rc: rc, sym: sym, base: newSystem(&e.v, rc.Speed)}
 		if err := cd.base.checkStable(rc.Name); err != nil {
-			return nil, &ValidationError{Problems: []FieldError{{Field: fmt.Sprintf("road_cases[%d].speed_m_per_s", i), Reason: err.Error()}}}
+			p.add(fmt.Sprintf("road_cases[%d].speed_m_per_s", i), "%v", err)
+			continue
 		}
 		for a := 0; a < nDOF; a++ {
 			var unit [nDOF]float64
@@ -124,6 +125,9 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt Options) (*Evaluator, error) 
 		}
 		cd.static = v.StaticTyreLoads(rc.Speed)
 		e.cases = append(e.cases, cd)
+	}
+	if err := p.err(); err != nil {
+		return nil, err
 	}
 	e.pool.New = func() any { return new(workspace) }
 	return e, nil

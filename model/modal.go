@@ -100,29 +100,37 @@ func modes(s *system) ([]Mode, error) {
 		cd.share = modeShares(s, &x)
 		cands = append(cands, cd)
 	}
-	// Greedy assignment by energy share, two roots per name.
+	// Greedy assignment by energy share, two roots per name: complex
+	// pairs first, each to its own name, then the real roots of the
+	// overdamped modes two by two to the names left. The capacities add
+	// up (14 roots, 7 names), so every name ends with one pair.
 	type pair struct {
 		c, name int
 		share   float64
 	}
-	var pairs []pair
-	for ci, cd := range cands {
-		for j := 0; j < nDOF; j++ {
-			pairs = append(pairs, pair{ci, j, cd.share[j]})
-		}
-	}
-	sort.SliceStable(pairs, func(i, j int) bool { return pairs[i].share > pairs[j].share })
-	assigned := make([]bool, len(cands))
 	var roots [nDOF][]complex128
 	var nroots [nDOF]int
-	for _, pr := range pairs {
-		cd := cands[pr.c]
-		if assigned[pr.c] || nroots[pr.name]+cd.roots > 2 {
-			continue
+	assigned := make([]bool, len(cands))
+	for _, wantRoots := range []int{2, 1} {
+		var pairs []pair
+		for ci, cd := range cands {
+			if cd.roots != wantRoots {
+				continue
+			}
+			for j := 0; j < nDOF; j++ {
+				pairs = append(pairs, pair{ci, j, cd.share[j]})
+			}
 		}
-		assigned[pr.c] = true
-		nroots[pr.name] += cd.roots
-		roots[pr.name] = append(roots[pr.name], cd.lambda)
+		sort.SliceStable(pairs, func(i, j int) bool { return pairs[i].share > pairs[j].share })
+		for _, pr := range pairs {
+			cd := cands[pr.c]
+			if assigned[pr.c] || nroots[pr.name]+cd.roots > 2 {
+				continue
+			}
+			assigned[pr.c] = true
+			nroots[pr.name] += cd.roots
+			roots[pr.name] = append(roots[pr.name], cd.lambda)
+		}
 	}
 	var out []Mode
 	for j := 0; j < nDOF; j++ {
