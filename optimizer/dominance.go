@@ -60,3 +60,39 @@ func TotalViolation(viol []float64) float64 {
 	}
 	return sum
 }
+
+// compareConstrained returns −1 if a constrained-dominates b, 1 if b
+// constrained-dominates a, and 0 otherwise, in one pass over the
+// objectives.
+func compareConstrained(a []float64, va float64, b []float64, vb float64) int {
+	switch {
+	case va == 0 && vb == 0:
+		if len(a) != len(b) {
+			panic(ErrShape)
+		}
+		aBetter, bBetter := false, false
+		for j := range a {
+			if a[j] < b[j] {
+				aBetter = true
+			} else if b[j] < a[j] {
+				bBetter = true
+			}
+		}
+		switch {
+		case aBetter && !bBetter:
+			return -1
+		case bBetter && !aBetter:
+			return 1
+		}
+		return 0
+	case va == 0:
+		return -1
+	case vb == 0:
+		return 1
+	case va < vb:
+		return -1
+	case vb < va:
+		return 1
+	}
+	return 0
+}

@@ -24,25 +24,22 @@ func NonDominatedSort(obj [][]float64, viol []float64) [][]int {
 		}
 		return viol[i]
 	}
-	// dominated[p] lists the points p dominates (S_p in Deb 2002), stored
-	// flat: the list of p is flat[start[p]:start[p+1]].
+	// dom[p*n+q] is set when p dominates q (q ∈ S_p in Deb 2002); each pair
+	// is compared once.
+	dom := make([]bool, n*n)
 	count := make([]int, n) // n_p: number of points dominating p
-	var flat []int
-	start := make([]int, n+1)
 	for p := 0; p < n; p++ {
-		start[p] = len(flat)
-		for q := 0; q < n; q++ {
-			if q == p {
-				continue
-			}
-			if ConstrainedDominates(obj[p], v(p), obj[q], v(q)) {
-				flat = append(flat, q)
-			} else if ConstrainedDominates(obj[q], v(q), obj[p], v(p)) {
+		for q := p + 1; q < n; q++ {
+			switch compareConstrained(obj[p], v(p), obj[q], v(q)) {
+			case -1:
+				dom[p*n+q] = true
+				count[q]++
+			case 1:
+				dom[q*n+p] = true
 				count[p]++
 			}
 		}
 	}
-	start[n] = len(flat)
 
 	var fronts [][]int
 	var current []int
@@ -55,10 +52,13 @@ func NonDominatedSort(obj [][]float64, viol []float64) [][]int {
 		fronts = append(fronts, current)
 		var next []int
 		for _, p := range current {
-			for _, q := range flat[start[p]:start[p+1]] {
-				count[q]--
-				if count[q] == 0 {
-					next = append(next, q)
+			row := dom[p*n : (p+1)*n]
+			for q, d := range row {
+				if d {
+					count[q]--
+					if count[q] == 0 {
+						next = append(next, q)
+					}
 				}
 			}
 		}
