@@ -52,8 +52,10 @@ type Figure struct {
 	// Panels are the plots, row-major; a nil entry leaves its tile empty.
 	// They may be restyled before the figure is written.
 	Panels [][]*plot.Plot
-	// Legend, when it has entries, is drawn at the top of the side column.
-	Legend *plot.Legend
+	// Legend, when it has entries, is drawn at the top of the side column,
+	// or under the panels when LegendBelow is set.
+	Legend      *plot.Legend
+	LegendBelow bool
 	// ColourBar, when not nil, is drawn in the side column under the
 	// legend, level with the data area of the first row of panels.
 	ColourBar *plot.Plot
@@ -133,6 +135,12 @@ func (f *Figure) Draw(c draw.Canvas) {
 	}
 	c.Min.Y += vg.Points(4)
 
+	if f.LegendBelow && f.hasLegend() {
+		f.Legend.Top, f.Legend.Left = false, true
+		f.Legend.Draw(c)
+		c.Min.Y += f.Legend.Rectangle(c).Size().Y + vg.Points(8)
+	}
+
 	var side draw.Canvas
 	if w := f.sideWidth(c); w > 0 {
 		side = c
@@ -163,7 +171,7 @@ func (f *Figure) Draw(c draw.Canvas) {
 	}
 	if side.Max.X > side.Min.X {
 		top := side.Max.Y
-		if f.hasLegend() {
+		if f.hasLegend() && !f.LegendBelow {
 			f.Legend.Top, f.Legend.Left = true, true
 			f.Legend.Draw(side)
 			top -= f.Legend.Rectangle(side).Size().Y + vg.Points(10)
@@ -200,7 +208,7 @@ func (f *Figure) drawColourBar(side draw.Canvas, bottom, top vg.Length) {
 // sideWidth is the width the legend and colour bar need; 0 for neither.
 func (f *Figure) sideWidth(c draw.Canvas) vg.Length {
 	var w vg.Length
-	if f.hasLegend() {
+	if f.hasLegend() && !f.LegendBelow {
 		w = f.Legend.Rectangle(c).Size().X
 	}
 	if f.ColourBar != nil {

@@ -290,7 +290,7 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 		sc.GlyphStyle = draw.GlyphStyle{Color: colVermilion, Radius: vg.Points(7.5), Shape: thickSquare{width: vg.Points(1.4)}}
 		p.Add(sc)
 		if leg != nil {
-			leg.Add("marked", sc)
+			leg.Add("marked", thumb(sc))
 		}
 	}
 	if fr.balanced >= 0 {
@@ -306,7 +306,7 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 			labels = append(labels, fmt.Sprintf("#%d", sols[fr.balanced].GetIndex()))
 		}
 		if leg != nil {
-			leg.Add(fmt.Sprintf("balanced, #%d", sols[fr.balanced].GetIndex()), sc)
+			leg.Add(fmt.Sprintf("balanced, #%d", sols[fr.balanced].GetIndex()), thumb(sc))
 		}
 	}
 	if len(fr.opt.Candidates) > 0 {
@@ -327,7 +327,7 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 		sc.GlyphStyle = draw.GlyphStyle{Color: colBlue, Radius: vg.Points(5), Shape: thickCross{width: vg.Points(1.8)}}
 		p.Add(sc)
 		if leg != nil {
-			leg.Add("candidate setup", sc)
+			leg.Add("candidate setup", thumb(sc))
 		}
 	}
 	if len(labels) > 0 {
@@ -363,6 +363,13 @@ func cmpFloat(a, b float64) int {
 		return 1
 	}
 	return 0
+}
+
+// thumb is a copy of a scatter whose glyph fits a legend row.
+func thumb(sc *plotter.Scatter) *plotter.Scatter {
+	t := *sc
+	t.GlyphStyle.Radius = min(t.GlyphStyle.Radius, vg.Points(4.5))
+	return &t
 }
 
 // thickRing is a ring glyph with its own line width.

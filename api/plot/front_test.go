@@ -36,7 +36,7 @@ func TestFrontRenders(t *testing.T) {
 			opt:   FrontOptions{ColourGene: "front_rebound_ratio", Marked: []int32{2}},
 			want: []string{
 				"Grip: tyre load variation (% of static load)", "Platform: ride-height variation (mm)",
-				"Pitch variation, worst case (deg)", "front rebound ratio", "balanced, #",
+				"Pitch variation, worst case (deg)", "Front rebound ratio", "balanced, #",
 			},
 		},
 	} {

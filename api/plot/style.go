@@ -3,13 +3,13 @@ package plot
 import (
 	"image/color"
 
+	xfont "golang.org/x/image/font"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
-	xfont "golang.org/x/image/font"
 )
 
 // The look shared by every chart: a sans-serif face at sizes that stay

@@ -8,19 +8,27 @@ import (
 )
 
 // niceTicks marks a linear axis at multiples of a round step, 1, 2 or 5
-// times a power of ten, chosen for about five labelled ticks, with one or
-// four unlabelled ticks between labels. Zero is always a multiple, so an
-// axis that spans it is marked there.
-type niceTicks struct{}
+// times a power of ten, chosen for about five labelled ticks, with three
+// or four unlabelled ticks between labels. Zero is always a multiple, so
+// an axis that spans it is marked there. Integer marks only counts, such
+// as generations: its step is at least 1 and it has no minor ticks
+// between integers.
+type niceTicks struct{ Integer bool }
 
 var _ plot.Ticker = niceTicks{}
 
 // Ticks implements plot.Ticker.
-func (niceTicks) Ticks(lo, hi float64) []plot.Tick {
+func (nt niceTicks) Ticks(lo, hi float64) []plot.Tick {
 	if !(hi > lo) || !finite(lo) || !finite(hi) {
 		return plot.DefaultTicks{}.Ticks(lo, hi)
 	}
 	step, minor := niceStep((hi - lo) / 5)
+	if nt.Integer {
+		step = math.Max(step, 1)
+		if step/float64(minor) < 1 {
+			minor = int(step)
+		}
+	}
 	decimals := max(0, -int(math.Floor(math.Log10(step)+1e-9)))
 	var ticks []plot.Tick
 	sub := step / float64(minor)
@@ -53,4 +61,56 @@ func niceStep(raw float64) (step float64, minor int) {
 		return 5 * p, 5
 	}
 	return 10 * p, 5
+}
+
+// decadeTicks marks an axis whose data are log10 of the value: a tick at
+// every decade, labelled (every other one beyond eight decades), and
+// unlabelled ticks at 2 to 9 times it when the axis spans few enough
+// decades for them to be told apart. Decades from 0.001 to 1000 are
+// labelled as decimals, the others as 1e-6 and so on.
+//
+// The log10 transform is done on the data instead of with plot.LogScale:
+// gonum places a log axis's label by the midpoint of its data range,
+// which on a log scale pads the panel by most of the label's length.
+type decadeTicks struct{}
+
+var _ plot.Ticker = decadeTicks{}
+
+// Ticks implements plot.Ticker.
+func (decadeTicks) Ticks(lo, hi float64) []plot.Tick {
+	if !(hi > lo) || !finite(lo) || !finite(hi) {
+		return nil
+	}
+	step := 1.0
+	if hi-lo > 8 {
+		step = 2
+	}
+	minors := hi-lo <= 6
+	var ticks []plot.Tick
+	for k := math.Floor(lo); k <= hi; k++ {
+		if k >= lo {
+			t := plot.Tick{Value: k}
+			if math.Mod(k, step) == 0 {
+				t.Label = decadeLabel(int(k))
+			}
+			ticks = append(ticks, t)
+		}
+		if minors {
+			for m := 2.0; m < 10; m++ {
+				if v := k + math.Log10(m); v >= lo && v <= hi {
+					ticks = append(ticks, plot.Tick{Value: v})
+				}
+			}
+		}
+	}
+	return ticks
+}
+
+// decadeLabel is the label of 10^k: a decimal from 0.001 to 1000,
+// "1e-6" beyond.
+func decadeLabel(k int) string {
+	if k >= -3 && k <= 3 {
+		return strconv.FormatFloat(math.Pow(10, float64(k)), 'f', max(0, -k), 64)
+	}
+	return "1e" + strconv.Itoa(k)
 }

@@ -10,11 +10,11 @@ import (
 // Every conversion from the SI values of the API to the trade units on the
 // axes is in this file; the table is in the package doc.
 const (
-	mmPerM    = 1000.0       // mm per m; also mm/s per m/s
-	percent   = 100.0        // % per unit fraction
+	mmPerM    = 1000.0        // mm per m; also mm/s per m/s
+	percent   = 100.0         // % per unit fraction
 	degPerRad = 180 / math.Pi // deg per rad
-	gravitySI = 9.80665      // standard acceleration of gravity, m/s² (3rd CGPM, 1901)
-	nsPerMmSI = 1000.0       // N s/m per N s/mm
+	gravitySI = 9.80665       // standard acceleration of gravity, m/s² (3rd CGPM, 1901)
+	nsPerMmSI = 1000.0        // N s/m per N s/mm
 )
 
 // quantity names a plotted value and converts it from SI to its trade unit.
@@ -80,6 +80,9 @@ func objectiveQuantity(o *pb.Objective) quantity {
 // (names ending in _m_per_s) in mm/s, ratios and factors as they are.
 func geneQuantity(name string) quantity {
 	label := strings.ReplaceAll(name, "_", " ")
+	if label != "" {
+		label = strings.ToUpper(label[:1]) + label[1:]
+	}
 	if strings.HasSuffix(name, "_m_per_s") {
 		return quantity{strings.TrimSuffix(label, " m per s"), "mm/s", mmPerM}
 	}
