@@ -27,8 +27,9 @@ type comparison struct {
 	// normalized is ε with each objective divided by the front's extent
 	// in it (see extents).
 	normalized float64
-	// nearest is the index in F of a point attaining ε (the first one),
-	// and gaps are z − F[nearest].
+	// nearest is the index in F of a point attaining the normalised ε
+	// (the first one; the raw ε mixes units when the objectives' differ),
+	// and gaps are z − F[nearest] in the objectives' units.
 	nearest int
 	gaps    []float64
 }
@@ -48,10 +49,10 @@ func compareWithFront(z []float64, front [][]float64) comparison {
 			e = math.Min(e, d)
 			n = math.Min(n, d/scale[j])
 		}
-		if e > c.epsilon {
-			c.epsilon, c.nearest = e, k
+		c.epsilon = math.Max(c.epsilon, e)
+		if n > c.normalized {
+			c.normalized, c.nearest = n, k
 		}
-		c.normalized = math.Max(c.normalized, n)
 	}
 	c.gaps = make([]float64, len(z))
 	for j := range z {

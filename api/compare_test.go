@@ -18,6 +18,12 @@ func TestCompareWithFront(t *testing.T) {
 	const epsTol = 1e-15
 	three := [][]float64{{1, 4}, {2, 2}, {4, 1}} // extents 3 and 3
 	one := [][]float64{{0, 5}}                   // extents |0| -> 1 and 5
+	// Objectives in units 100 times apart, extents 10 and 1000: for
+	// z = (5, 600) the raw minima are -400 (first point) and -5 (second),
+	// the normalised ones -0.4 and -0.5, so the raw and the normalised
+	// epsilon are attained by different points; nearest follows the
+	// normalised one.
+	mixed := [][]float64{{0, 1000}, {10, 0}}
 	for _, c := range []struct {
 		name      string
 		front     [][]float64
@@ -33,6 +39,7 @@ func TestCompareWithFront(t *testing.T) {
 		{"ahead of all", three, []float64{0.5, 0.5}, false, -1.5, -1.5 / 3, 1, []float64{-1.5, -1.5}},
 		{"between members", three, []float64{1.5, 3}, false, -0.5, -0.5 / 3, 1, []float64{-0.5, 1}},
 		{"one-point front", one, []float64{1, 10}, true, 1, 1, 0, []float64{1, 5}},
+		{"mixed units", mixed, []float64{5, 600}, false, -5, -0.4, 0, []float64{5, -400}},
 	} {
 		got := compareWithFront(c.z, c.front)
 		if got.dominated != c.dominated || math.Abs(got.epsilon-c.eps) > epsTol || math.Abs(got.normalized-c.norm) > epsTol ||

@@ -92,10 +92,10 @@ var badSpecs = []struct {
 	{"bad label key", func(s *pb.JobSpec) { s.Labels = map[string]string{"Bad Key": "x"} },
 		[]string{`spec.labels["Bad Key"]`}},
 	// Found only once every part is valid on its own: an aero stiffness
-	// above the suspension's makes the car unstable at speed. The model
-	// stops at the first unstable case.
+	// above the suspension's makes the car unstable at speed, on every
+	// road case; each is reported.
 	{"unstable at speed", func(s *pb.JobSpec) { s.Vehicle.Aero.RearStiffnessNPerM = 5e7 },
-		[]string{"spec.road_cases[0].speed_m_per_s"}},
+		[]string{"spec.road_cases[0].speed_m_per_s", "spec.road_cases[1].speed_m_per_s"}},
 	// Every first-pass fault at once: all reported in one answer.
 	{"many at once", func(s *pb.JobSpec) {
 		s.Vehicle.SprungMassKg = -1

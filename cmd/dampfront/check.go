@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"math"
 	"strings"
 
 	pb "dampfront/api/gen/dampfront/v1"
@@ -82,62 +81,7 @@ func check(ctx context.Context, e *env, cf *clientFlags, name, setupPath string,
 	if err != nil {
 		return nil, err
 	}
-	if resp.GetEvaluation().GetFeasible() {
-		// The response's nearest point attains the epsilon of the raw
-		// objectives, whose units differ; the verdict is on the
-		// normalised one, so name the point that attains that.
-		fd, err := fetchFront(ctx, c, name, pb.SolutionView_SOLUTION_VIEW_BASIC)
-		if err != nil {
-			return nil, err
-		}
-		if k, gaps := normalizedNearest(resp.GetEvaluation().GetObjectives(), fd.front.GetSolutions()); k >= 0 {
-			resp.NearestIndex, resp.ObjectiveGaps = fd.front.GetSolutions()[k].GetIndex(), gaps
-		}
-	}
 	return judge(resp, epsilon), nil
-}
-
-// normalizedNearest returns the position in front of the first solution
-// f attaining the normalised additive epsilon of z as CompareSetupResponse
-// defines it,
-//
-//	eps = max over f of min over j of (z_j - f_j) / s_j,
-//
-// with s_j the front's extent in objective j (max - min, |max| when that
-// is 0, 1 when that is 0 too), and the gaps z - f; -1 for an empty front.
-func normalizedNearest(z []float64, front []*pb.Solution) (int, []float64) {
-	if len(front) == 0 || len(z) == 0 {
-		return -1, nil
-	}
-	scale := make([]float64, len(z))
-	for j := range z {
-		lo, hi := math.Inf(1), math.Inf(-1)
-		for _, f := range front {
-			lo, hi = math.Min(lo, f.GetObjectives()[j]), math.Max(hi, f.GetObjectives()[j])
-		}
-		scale[j] = hi - lo
-		if scale[j] == 0 {
-			scale[j] = math.Abs(hi)
-		}
-		if scale[j] == 0 {
-			scale[j] = 1
-		}
-	}
-	best, bestEps := -1, math.Inf(-1)
-	for k, f := range front {
-		e := math.Inf(1)
-		for j := range z {
-			e = math.Min(e, (z[j]-f.GetObjectives()[j])/scale[j])
-		}
-		if e > bestEps {
-			best, bestEps = k, e
-		}
-	}
-	gaps := make([]float64, len(z))
-	for j := range z {
-		gaps[j] = z[j] - front[best].GetObjectives()[j]
-	}
-	return best, gaps
 }
 
 // judge turns a comparison into the verdict line.

@@ -58,19 +58,3 @@ func TestJudge(t *testing.T) {
 		t.Errorf("a partial front is not named: %s", v.line)
 	}
 }
-
-// normalizedNearest on a front worked by hand: objectives (1, 8), (2, 4),
-// (4, 2), (8, 1), extents 7 and 7; the candidate z = (3, 5) has
-// normalised gaps (2, -3)/7, (1, 1)/7, (-1, 3)/7, (-5, 4)/7, minima
-// -3/7, 1/7, -1/7, -5/7: the second point attains eps = 1/7.
-func TestNormalizedNearest(t *testing.T) {
-	t.Parallel()
-	front := solutions([2]float64{1, 8}, [2]float64{2, 4}, [2]float64{4, 2}, [2]float64{8, 1})
-	k, gaps := normalizedNearest([]float64{3, 5}, front)
-	if k != 1 || len(gaps) != 2 || gaps[0] != 1 || gaps[1] != 1 {
-		t.Errorf("normalizedNearest = %d %v, want 1 [1 1]", k, gaps)
-	}
-	if k, _ := normalizedNearest([]float64{3, 5}, nil); k != -1 {
-		t.Errorf("empty front: %d, want -1", k)
-	}
-}

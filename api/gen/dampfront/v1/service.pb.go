@@ -960,7 +960,8 @@ type CompareSetupResponse struct {
 	// eps with each objective divided by the front's extent in it (max - min
 	// over the front; |max| for a front of one point), dimensionless.
 	NormalizedAdditiveEpsilon float64 `protobuf:"fixed64,4,opt,name=normalized_additive_epsilon,json=normalizedAdditiveEpsilon,proto3" json:"normalized_additive_epsilon,omitempty"`
-	// z_j - f_j for the front point f that attains eps; positive where the
+	// z_j - f_j for the front point f that attains the normalised eps (the
+	// raw eps mixes units when the objectives' differ); positive where the
 	// candidate is worse.
 	ObjectiveGaps []float64 `protobuf:"fixed64,5,rep,packed,name=objective_gaps,json=objectiveGaps,proto3" json:"objective_gaps,omitempty"`
 	// Index in the front of that point.
