@@ -7,8 +7,8 @@ import (
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/palette"
 	"gonum.org/v1/plot/palette/moreland"
-	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
 )
 
 // sequential is the colour map of a gene's value: dark blue through teal
@@ -64,8 +64,34 @@ func (s colourScale) bar(q quantity) *plot.Plot {
 	p.HideX()
 	p.X.Padding, p.Y.Padding = 0, 0
 	p.Y.Label.Text = q.label()
-	p.Add(&plotter.ColorBar{ColorMap: s.cmap, Vertical: true, Colors: 96})
+	p.Add(colourStrip{scale: s, steps: 96})
 	p.Y.Min, p.Y.Max = s.lo, s.hi
 	p.Y.Tick.Length = vg.Points(4)
 	return p
+}
+
+// colourStrip draws a colour scale as a column of filled rectangles over
+// x in [0, 1], y in [lo, hi]: vector shapes, so the SVG needs no embedded
+// image and stays sharp at any zoom.
+type colourStrip struct {
+	scale colourScale
+	steps int
+}
+
+// Plot implements plot.Plotter.
+func (s colourStrip) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	x0, x1 := trX(0), trX(1)
+	d := (s.scale.hi - s.scale.lo) / float64(s.steps)
+	for k := range s.steps {
+		lo := s.scale.lo + float64(k)*d
+		// Overlap each band by a hair so no seam shows between them.
+		y0, y1 := trY(lo), trY(lo+d)+vg.Points(0.3)
+		c.FillPolygon(s.scale.at(lo+d/2), []vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}})
+	}
+}
+
+// DataRange implements plot.DataRanger.
+func (s colourStrip) DataRange() (xmin, xmax, ymin, ymax float64) {
+	return 0, 1, s.scale.lo, s.scale.hi
 }

@@ -1,6 +1,7 @@
 package plot
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"strings"
@@ -39,6 +40,9 @@ const DefaultDPI = 144
 //	| +--------+ +--------+                |
 //	| notes, caution                       |
 //	+--------------------------------------+
+//
+// Drawing sets the legend's position, so one Figure is written by one
+// goroutine at a time; build a Figure per request.
 type Figure struct {
 	// Width and Height are the page size.
 	Width, Height vg.Length
@@ -68,6 +72,7 @@ var (
 	sideGap     = vg.Points(12) // panels to side column
 	barWidth    = vg.Points(12) // the colour strip of a colour bar
 	noteLeading = 1.25          // footnote line spacing over font size
+	noteWidth   = 0.96          // share of the width footnotes fill, slack for a substitute face
 )
 
 // newFigure returns a figure of one row of panels.
@@ -86,13 +91,26 @@ func (f *Figure) Write(w io.Writer, format Format) error {
 	return fmt.Errorf("plot: unknown format %q (want svg or png)", format)
 }
 
-// WriteSVG renders the figure as SVG (text as text, fonts not embedded).
+// WriteSVG renders the figure as SVG, text as text. The fonts are not
+// embedded (that would add some 400 KB per face); the text names Liberation
+// Sans with Arial and Helvetica after it, faces of the same metrics, so
+// that the layout holds wherever one of them is installed.
 func (f *Figure) WriteSVG(w io.Writer) error {
 	c := vgsvg.New(f.Width, f.Height)
 	f.Draw(draw.New(c))
-	_, err := c.WriteTo(w)
+	var b bytes.Buffer
+	if _, err := c.WriteTo(&b); err != nil {
+		return err
+	}
+	_, err := w.Write(bytes.ReplaceAll(b.Bytes(), []byte(svgFamily), []byte(svgFamilies)))
 	return err
 }
+
+// The font family vgsvg writes for the house face, and what it becomes.
+const (
+	svgFamily   = "font-family:Liberation Sans;"
+	svgFamilies = "font-family:'Liberation Sans',Arial,Helvetica,sans-serif;"
+)
 
 // WritePNG renders the figure as PNG of round(Width/inch × DPI) by
 // round(Height/inch × DPI) pixels on a white background.
@@ -126,7 +144,7 @@ func (f *Figure) Draw(c draw.Canvas) {
 	note.XAlign, note.YAlign = draw.XLeft, draw.YBottom
 	var lines []string
 	for _, n := range append(append([]string(nil), f.Notes...), Caution) {
-		lines = append(lines, wrap(note, n, c.Max.X-c.Min.X)...)
+		lines = append(lines, wrap(note, n, vg.Length(noteWidth)*(c.Max.X-c.Min.X))...)
 	}
 	lead := vg.Length(noteLeading) * note.Font.Size
 	for i := len(lines) - 1; i >= 0; i-- {

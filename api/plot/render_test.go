@@ -18,6 +18,22 @@ import (
 //	go test ./api/plot -run Example -args -examples
 var writeExamples = flag.Bool("examples", false, "write the example PNGs to testdata/")
 
+// Bounds of the share of non-white pixels of a rendered chart: an empty
+// page has none; a chart whose background failed to paint is all ink.
+// Common-practice bounds, set by looking at the charts of this package
+// (2 % to 20 % of their pixels are drawn on).
+const (
+	minInk = 0.01
+	maxInk = 0.5
+)
+
+// Example PNGs for the README are written at 96 dpi and must stay under
+// 100 KB each.
+const (
+	exampleDPI      = 96
+	maxExampleBytes = 100 << 10
+)
+
 // lookDir, when set in the environment, receives every rendered PNG and
 // SVG so that they can be looked at.
 const lookDirEnv = "DAMPFRONT_PLOT_DIR"
@@ -59,8 +75,31 @@ func render(t *testing.T, name string, fig *Figure) rendered {
 			}
 		}
 	}
+	// A chart is mostly white page, but not all: the share of pixels
+	// that are not white is a coarse check that something was drawn.
+	inked := 0
+	b := img.Bounds()
+	for y := b.Min.Y; y < b.Max.Y; y++ {
+		for x := b.Min.X; x < b.Max.X; x++ {
+			if r, g, bl, _ := img.At(x, y).RGBA(); r&g&bl != 0xffff {
+				inked++
+			}
+		}
+	}
+	if share := float64(inked) / float64(b.Dx()*b.Dy()); share < minInk || share > maxInk {
+		t.Errorf("%.1f %% of the PNG's pixels are not white, want %g %% to %g %%", 100*share, 100*minInk, 100*maxInk)
+	}
 	if *writeExamples {
-		if err := os.WriteFile(filepath.Join("testdata", name+".png"), r.png, 0o644); err != nil {
+		ex := *fig
+		ex.DPI = exampleDPI
+		var eb bytes.Buffer
+		if err := ex.WritePNG(&eb); err != nil {
+			t.Fatal(err)
+		}
+		if eb.Len() > maxExampleBytes {
+			t.Errorf("example %s.png is %d bytes, over the README's %d", name, eb.Len(), maxExampleBytes)
+		}
+		if err := os.WriteFile(filepath.Join("testdata", name+".png"), eb.Bytes(), 0o644); err != nil {
 			t.Fatal(err)
 		}
 	}
@@ -105,6 +144,9 @@ func svgText(t *testing.T, doc []byte) string {
 	if root != "svg" {
 		t.Fatalf("SVG root element is %q, want svg", root)
 	}
+	if bytes.Contains(doc, []byte(svgFamily)) {
+		t.Errorf("SVG names %q without fallbacks", svgFamily)
+	}
 	return out.String()
 }
 
@@ -117,6 +159,21 @@ func checkTexts(t *testing.T, r rendered, want ...string) {
 	for _, w := range want {
 		if !strings.Contains(joined, w) {
 			t.Errorf("SVG text lacks %q; it has:\n%s", w, text)
+		}
+	}
+}
+
+// checkLines fails for every want that is not the whole text of one of
+// the SVG's <text> elements.
+func checkLines(t *testing.T, r rendered, want ...string) {
+	t.Helper()
+	lines := map[string]bool{}
+	for _, l := range strings.Split(svgText(t, r.svg), "\n") {
+		lines[strings.TrimSpace(l)] = true
+	}
+	for _, w := range want {
+		if !lines[w] {
+			t.Errorf("SVG has no text element %q", w)
 		}
 	}
 }

@@ -35,8 +35,9 @@ func TestRoadInputRenders(t *testing.T) {
 		t.Fatal(err)
 	}
 	r := render(t, "road", fig)
+	checkLines(t, r, "A", "B", "C", "D", "E", "F", "G", "H", "0.01", "0.1", "1", "10", "1e-6")
 	checkTexts(t, r, Caution, "Spatial frequency n (cycles/m)", "Displacement PSD Gd(n) (m³)",
-		"A", "D", "H", "kerbs, 30 m/s, ISO class C", "street circuit survey, 40 m/s, measured, right track",
+		"kerbs, 30 m/s, ISO class C", "street circuit survey, 40 m/s, measured, right track",
 		"circuit, main straight, 70 m/s, Gd(n0) = 1e-6 m³, w = 2", "1e-6", "0.01")
 }
 
