@@ -18,7 +18,7 @@ func TestFrontRenders(t *testing.T) {
 		want  []string
 	}{
 		{
-			name:  "front2",
+			name:  "front",
 			front: testFront(14, 2),
 			opt: FrontOptions{
 				Marked:     []int32{3, 11},
@@ -31,7 +31,7 @@ func TestFrontRenders(t *testing.T) {
 			},
 		},
 		{
-			name:  "front3",
+			name:  "front-3-objectives",
 			front: testFront(20, 3),
 			opt:   FrontOptions{ColourGene: "front_rebound_ratio", Marked: []int32{2}},
 			want: []string{
