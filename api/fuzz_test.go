@@ -1,0 +1,226 @@
+package api
+
+import (
+	"bytes"
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"google.golang.org/genproto/googleapis/rpc/errdetails"
+	"google.golang.org/grpc/codes"
+	"google.golang.org/grpc/status"
+	"google.golang.org/protobuf/encoding/protojson"
+	"google.golang.org/protobuf/proto"
+	"sigs.k8s.io/yaml"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
+)
+
+// The fuzz targets of spec input. Their property, from issue 6 and
+// compile's doc comment: any input gives a clear error — InvalidArgument
+// with a field violation naming a field under "spec" and saying what is
+// wrong, or a decoding error with a message — or a valid job, and a
+// valid job re-validates where the engine checks it again (the stored,
+// defaulted bytes through Opener.ValidateSpec). Never a panic.
+//
+//	go test -run '^$' -fuzz '^FuzzCompileSpecText$' -fuzztime 60s ./api/
+//	go test -run '^$' -fuzz '^FuzzValidateSpecBytes$' -fuzztime 60s ./api/
+//
+// Seed corpora: testdata/fuzz/FuzzCompileSpecText (the demo job in YAML
+// and JSON, the spec fixture of these tests, testdata/bad's specs, and
+// broken YAML) and testdata/fuzz/FuzzValidateSpecBytes (the same specs
+// in the protobuf encoding the engine stores, truncated and altered
+// ones); f.Add adds the repository's testdata specs as they are now.
+
+// fuzzMaxSpecBytes skips inputs over the engine's default spec limit
+// (jobs.DefaultMaxSpecBytes), which nothing larger gets past.
+const fuzzMaxSpecBytes = jobs.DefaultMaxSpecBytes
+
+// decodeSpecText decodes a YAML or JSON job spec as the dampfront
+// command does (cmd/dampfront/specfile.go, decodeMessage): YAML to JSON
+// with sigs.k8s.io/yaml, then protojson with unknown fields refused. It
+// is a copy because that code lives in package main.
+func decodeSpecText(b []byte) (*pb.JobSpec, error) {
+	j, err := yaml.YAMLToJSON(b)
+	if err != nil {
+		return nil, err
+	}
+	spec := &pb.JobSpec{}
+	if err := protojson.Unmarshal(j, spec); err != nil {
+		return nil, err
+	}
+	return spec, nil
+}
+
+// addRepositorySpecs adds the job specs of the repository's testdata
+// (in the given encoding) as seeds.
+func addRepositorySpecs(f *testing.F, encode func(*pb.JobSpec, []byte) []byte) {
+	f.Helper()
+	for _, name := range []string{"demo-job.yaml", "bad/five-bad-fields.yaml", "bad/too-large.yaml", "bad/misspelt-field.yaml", "bad/not-yaml.yaml"} {
+		text, err := os.ReadFile(filepath.Join("..", "testdata", name))
+		if err != nil {
+			f.Fatal(err)
+		}
+		spec, err := decodeSpecText(text)
+		if err != nil {
+			spec = nil // the broken ones go in as text only
+		}
+		if b := encode(spec, text); b != nil {
+			f.Add(b)
+		}
+	}
+	if b := encode(testSpec(3), nil); b != nil {
+		f.Add(b)
+	}
+}
+
+func FuzzCompileSpecText(f *testing.F) {
+	addRepositorySpecs(f, func(spec *pb.JobSpec, text []byte) []byte {
+		if text != nil {
+			return text
+		}
+		b, err := protojson.Marshal(spec)
+		if err != nil {
+			f.Fatal(err)
+		}
+		return b
+	})
+	f.Fuzz(func(t *testing.T, text []byte) {
+		if len(text) > fuzzMaxSpecBytes {
+			t.Skip("over the spec size limit")
+		}
+		spec, err := decodeSpecText(text)
+		if err != nil {
+			if strings.TrimSpace(err.Error()) == "" {
+				t.Fatalf("decoding error %T without a message", err)
+			}
+			return
+		}
+		checkCompiledSpec(t, spec)
+	})
+}
+
+func FuzzValidateSpecBytes(f *testing.F) {
+	addRepositorySpecs(f, func(spec *pb.JobSpec, _ []byte) []byte {
+		if spec == nil {
+			return nil
+		}
+		b, err := MarshalSpec(spec)
+		if err != nil {
+			f.Fatal(err)
+		}
+		return b
+	})
+	f.Fuzz(func(t *testing.T, b []byte) {
+		if len(b) > fuzzMaxSpecBytes {
+			t.Skip("over the spec size limit")
+		}
+		o := &Opener{Workers: 1}
+		err := o.ValidateSpec(b)
+		if err != nil {
+			checkJobsInvalidArgument(t, err)
+			return
+		}
+		spec := new(pb.JobSpec)
+		if err := proto.Unmarshal(b, spec); err != nil {
+			t.Fatalf("ValidateSpec accepted bytes that do not decode: %v", err)
+		}
+		checkCompiledSpec(t, spec)
+		// The engine opens what it accepted.
+		if _, err := o.Open(b, nil); err != nil {
+			t.Fatalf("Open of a spec ValidateSpec accepted: %v", err)
+		}
+	})
+}
+
+// checkCompiledSpec compiles spec and fails t unless the result is a
+// clear InvalidArgument or a valid plan that re-validates.
+func checkCompiledSpec(t *testing.T, spec *pb.JobSpec) {
+	t.Helper()
+	pl, err := compile(spec, "spec.")
+	if err != nil {
+		checkSpecInvalidArgument(t, err)
+		if verr := (&Opener{}).ValidateSpec(mustMarshal(t, spec)); verr == nil {
+			t.Fatalf("compile refused the spec (%v), the engine's ValidateSpec accepts it", err)
+		}
+		return
+	}
+	if pl.work() <= 0 {
+		t.Fatalf("a valid plan of work %d", pl.work())
+	}
+	stored, err := MarshalSpec(pl.spec)
+	if err != nil {
+		t.Fatalf("MarshalSpec of a valid spec: %v", err)
+	}
+	// withDefaults is idempotent (its doc comment): the defaulted spec
+	// stores as the same bytes as the spec itself.
+	if direct, err := MarshalSpec(spec); err != nil || !bytes.Equal(direct, stored) {
+		t.Fatalf("MarshalSpec(spec) and MarshalSpec(withDefaults(spec)) differ (err %v)", err)
+	}
+	if err := (&Opener{}).ValidateSpec(stored); err != nil {
+		t.Fatalf("a compiled spec does not re-validate from its stored bytes: %v", err)
+	}
+}
+
+func mustMarshal(t *testing.T, m proto.Message) []byte {
+	t.Helper()
+	b, err := proto.Marshal(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
+}
+
+// checkSpecInvalidArgument fails t unless err is an InvalidArgument
+// status whose BadRequest names, for every violation, a field under
+// "spec" and a reason (AIP-193).
+func checkSpecInvalidArgument(t *testing.T, err error) {
+	t.Helper()
+	st, ok := status.FromError(err)
+	if !ok || st.Code() != codes.InvalidArgument {
+		t.Fatalf("compile error is not InvalidArgument: %v", err)
+	}
+	var n int
+	for _, d := range st.Details() {
+		br, ok := d.(*errdetails.BadRequest)
+		if !ok {
+			continue
+		}
+		for _, v := range br.GetFieldViolations() {
+			n++
+			checkViolation(t, v.GetField(), v.GetDescription())
+		}
+	}
+	if n == 0 {
+		t.Fatalf("InvalidArgument without field violations: %v", err)
+	}
+}
+
+// checkJobsInvalidArgument is checkSpecInvalidArgument for the engine's
+// error type, which ValidateSpec returns.
+func checkJobsInvalidArgument(t *testing.T, err error) {
+	t.Helper()
+	var ia *jobs.InvalidArgumentError
+	if !errors.As(err, &ia) {
+		t.Fatalf("ValidateSpec error %v (%T) is not a *jobs.InvalidArgumentError", err, err)
+	}
+	if len(ia.Violations) == 0 {
+		t.Fatalf("ValidateSpec error without violations: %v", err)
+	}
+	for _, v := range ia.Violations {
+		checkViolation(t, v.Field, v.Reason)
+	}
+}
+
+func checkViolation(t *testing.T, field, reason string) {
+	t.Helper()
+	if field != "spec" && !strings.HasPrefix(field, "spec.") {
+		t.Fatalf("violation of field %q, not under spec: %s", field, reason)
+	}
+	if strings.TrimSpace(reason) == "" {
+		t.Fatalf("violation of %s without a reason", field)
+	}
+}
