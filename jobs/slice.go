@@ -97,14 +97,25 @@ func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], 
 	cfg, st, id := rq.e.cfg, rq.db.store, rj.Args.JobID
 	sliceCtx, cancel := context.WithCancelCause(ctx)
 	defer cancel(nil)
-	timer := time.AfterFunc(cfg.SliceDuration, func() { cancel(errSliceOver) })
-	defer timer.Stop()
+	// The slice clock starts after the first step, so that every slice
+	// makes progress even when one step takes longer than a slice; River's
+	// own timeout still bounds the attempt.
+	var timer *time.Timer
+	defer func() {
+		if timer != nil {
+			timer.Stop()
+		}
+	}()
+	start := time.Now()
 	defer rq.track(id, cancel)()
 	go rq.pollCancel(sliceCtx, cancel, id)
 
 	lastCheckpoint, lastProgress := time.Now(), time.Now()
 	for {
 		done, err := study.Step(sliceCtx, cfg.StepGenerations)
+		if timer == nil {
+			timer = time.AfterFunc(max(0, cfg.SliceDuration-time.Since(start)), func() { cancel(errSliceOver) })
+		}
 		if err != nil && sliceCtx.Err() == nil {
 			return rq.finish(ctx, rj, lease, StateFailed, "step: "+err.Error(), nil)
 		}
