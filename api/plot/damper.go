@@ -20,7 +20,8 @@ import (
 type CurveOptions struct {
 	// Title is drawn above the panels; empty means "Damper curves at the component".
 	Title string
-	// Width and Height are the page size; 0 means 24 cm × 11 cm.
+	// Width and Height are the page size; 0 means 24 cm × 11 cm for two
+	// axles, 15 cm × 11 cm for one.
 	Width, Height vg.Length
 }
 
@@ -75,6 +76,9 @@ func DamperCurves(curves []*pb.DamperCurve, opt CurveOptions) (*Figure, error) {
 	w, h := opt.Width, opt.Height
 	if w == 0 {
 		w = 24 * vg.Centimeter
+		if len(panels) == 1 {
+			w = 15 * vg.Centimeter
+		}
 	}
 	if h == 0 {
 		h = 11 * vg.Centimeter

@@ -30,7 +30,10 @@ func testFront(n, objectives int) *pb.Front {
 		f.Objectives = append(f.Objectives, objPitch)
 	}
 	for i := range n {
-		t := float64(i) / float64(n-1)
+		t := 0.0
+		if n > 1 {
+			t = float64(i) / float64(n-1)
+		}
 		g := []float64{0.35 + 0.9*t, 0.6 + 0.7*t, 0.5 + 0.4*t*t, 0.75 + 0.3*t}
 		z := []float64{0.045 + 0.04*t, 0.0012 + 0.0025*(1-t)*(1-t)}
 		if objectives == 3 {

@@ -272,7 +272,11 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 	var leg *plot.Legend
 	if legend {
 		leg = newLegend()
-		leg.Add(fmt.Sprintf("front, %d solutions", len(sols)), dots, rims)
+		noun := "solutions"
+		if len(sols) == 1 {
+			noun = "solution"
+		}
+		leg.Add(fmt.Sprintf("front, %d %s", len(sols), noun), dots, rims)
 	}
 	var labelPts plotter.XYs
 	var labels []string

@@ -98,7 +98,11 @@ func Hypervolume(history []*pb.Progress, objectives []*pb.Objective, opt Hypervo
 	}
 	fig := newFigure(w, h, title, p)
 	done := pts[len(pts)-1]
+	at := fmt.Sprintf("Generation %.0f", done.X)
+	if planned > 0 {
+		at += fmt.Sprintf(" of %d", planned)
+	}
 	fig.Notes = []string{fmt.Sprintf("Area (volume) the front dominates up to the job's reference point; larger is better. "+
-		"Generation %.0f of %d: %.4g %s.", done.X, planned, done.Y, q.unit)}
+		"%s: %.4g %s.", at, done.Y, q.unit)}
 	return fig, nil
 }

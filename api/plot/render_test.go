@@ -43,7 +43,8 @@ type rendered struct {
 	svg, png []byte
 }
 
-// render writes fig as SVG and PNG and checks both structurally: the SVG
+// render writes fig as SVG and PNG and checks both structurally (a named
+// figure is also written for looking at and as a README example): the SVG
 // is well-formed XML (encoding/xml, to the end of the document) with an
 // <svg> root, the PNG decodes (image/png) to the size WritePNG documents.
 func render(t *testing.T, name string, fig *Figure) rendered {
@@ -68,7 +69,7 @@ func render(t *testing.T, name string, fig *Figure) rendered {
 	if b := img.Bounds(); b.Dx() != wantW || b.Dy() != wantH {
 		t.Errorf("PNG is %d×%d pixels, want %d×%d", b.Dx(), b.Dy(), wantW, wantH)
 	}
-	if dir := os.Getenv(lookDirEnv); dir != "" {
+	if dir := os.Getenv(lookDirEnv); dir != "" && name != "" {
 		for ext, b := range map[string][]byte{".png": r.png, ".svg": r.svg} {
 			if err := os.WriteFile(filepath.Join(dir, name+ext), b, 0o644); err != nil {
 				t.Fatal(err)
@@ -89,7 +90,7 @@ func render(t *testing.T, name string, fig *Figure) rendered {
 	if share := float64(inked) / float64(b.Dx()*b.Dy()); share < minInk || share > maxInk {
 		t.Errorf("%.1f %% of the PNG's pixels are not white, want %g %% to %g %%", 100*share, 100*minInk, 100*maxInk)
 	}
-	if *writeExamples {
+	if *writeExamples && name != "" {
 		ex := *fig
 		ex.DPI = exampleDPI
 		var eb bytes.Buffer

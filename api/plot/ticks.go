@@ -3,6 +3,7 @@ package plot
 import (
 	"math"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/plot"
 )
@@ -39,11 +40,25 @@ func (nt niceTicks) Ticks(lo, hi float64) []plot.Tick {
 		}
 		t := plot.Tick{Value: v}
 		if int64(math.Round(k))%int64(minor) == 0 {
-			t.Label = strconv.FormatFloat(v, 'f', decimals, 64)
+			t.Label = tickLabel(v, step, decimals)
 		}
 		ticks = append(ticks, t)
 	}
 	return ticks
+}
+
+// tickLabel writes a label of a linear axis: a decimal with the step's
+// decimals, or, for steps below 0.001 or values from a million, the
+// shortest exponent form ("2e-6").
+func tickLabel(v, step float64, decimals int) string {
+	if v == 0 {
+		return "0"
+	}
+	if step < 1e-3 || math.Abs(v) >= 1e6 {
+		s := strconv.FormatFloat(v, 'g', 6, 64)
+		return strings.NewReplacer("e-0", "e-", "e+0", "e", "e+", "e").Replace(s)
+	}
+	return strconv.FormatFloat(v, 'f', decimals, 64)
 }
 
 // niceStep rounds a raw step to the nearest (in ratio) of 1, 2 or 5 ×

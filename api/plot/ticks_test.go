@@ -61,6 +61,19 @@ func TestNiceTicksInteger(t *testing.T) {
 	}
 }
 
+func TestTickLabels(t *testing.T) {
+	t.Parallel()
+	for _, tc := range []struct {
+		v, step float64
+		want    string
+	}{{0.5, 0.5, "0.5"}, {-1500, 500, "-1500"}, {2e-6, 2e-6, "2e-6"}, {1.9999999999e-6, 2e-6, "2e-6"}, {0, 2e-6, "0"}, {3e6, 1e6, "3e6"}} {
+		dec := max(0, -int(math.Floor(math.Log10(tc.step)+1e-9)))
+		if got := tickLabel(tc.v, tc.step, dec); got != tc.want {
+			t.Errorf("tickLabel(%g, step %g) = %q, want %q", tc.v, tc.step, got, tc.want)
+		}
+	}
+}
+
 func TestDecadeLabels(t *testing.T) {
 	t.Parallel()
 	for _, tc := range []struct {
