@@ -11,10 +11,12 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 )
 
-// sequential is the colour map of a gene's value: dark blue through teal
-// to yellow-green, increasing in lightness so that it reads in grey too
-// (control colours after the viridis map of van der Walt and Smith, 2015;
-// the last one darkened so that it stays visible on white).
+// sequentialControls make the colour map of a gene's value: dark purple
+// through teal to yellow-green, increasing in lightness so that it reads
+// in grey too (control colours after the viridis map of S. van der Walt
+// and N. Smith, 2015, approximated from memory; the last one darkened so
+// that it stays visible on white). moreland.NewLuminance checks that the
+// lightness increases.
 var sequentialControls = []color.Color{
 	color.RGBA{68, 1, 84, 255},
 	color.RGBA{59, 82, 139, 255},

@@ -6,6 +6,8 @@ import (
 	"io"
 	"strings"
 
+	"dampfront/model"
+
 	xfont "golang.org/x/image/font"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/font"
@@ -91,11 +93,46 @@ func (f *Figure) Write(w io.Writer, format Format) error {
 	return fmt.Errorf("plot: unknown format %q (want svg or png)", format)
 }
 
+// Page limits: below the minimum the panels have no room for their axes;
+// above the DPI maximum a 30 cm page is over 7000 pixels wide.
+const (
+	minPageWidth  = 8 * vg.Centimeter
+	minPageHeight = 6 * vg.Centimeter
+	maxPageSide   = 100 * vg.Centimeter
+	minDPI        = 24
+	maxDPI        = 600
+)
+
+// check reports a page or resolution the figure cannot be drawn on.
+func (f *Figure) check(png bool) error {
+	var probs []model.FieldError
+	for _, d := range []struct {
+		name   string
+		v, min vg.Length
+	}{{"width", f.Width, minPageWidth}, {"height", f.Height, minPageHeight}} {
+		if !(d.v >= d.min && d.v <= maxPageSide) {
+			probs = append(probs, model.FieldError{Field: d.name,
+				Reason: fmt.Sprintf("must be %.0f to %.0f mm, got %.1f mm", d.min.Points()/vg.Millimeter.Points(),
+					maxPageSide.Points()/vg.Millimeter.Points(), d.v.Points()/vg.Millimeter.Points())})
+		}
+	}
+	if png && f.DPI != 0 && (f.DPI < minDPI || f.DPI > maxDPI) {
+		probs = append(probs, model.FieldError{Field: "dpi", Reason: fmt.Sprintf("must be %d to %d, got %d", minDPI, maxDPI, f.DPI)})
+	}
+	if len(probs) > 0 {
+		return &model.ValidationError{Problems: probs}
+	}
+	return nil
+}
+
 // WriteSVG renders the figure as SVG, text as text. The fonts are not
 // embedded (that would add some 400 KB per face); the text names Liberation
 // Sans with Arial and Helvetica after it, faces of the same metrics, so
 // that the layout holds wherever one of them is installed.
 func (f *Figure) WriteSVG(w io.Writer) error {
+	if err := f.check(false); err != nil {
+		return err
+	}
 	c := vgsvg.New(f.Width, f.Height)
 	f.Draw(draw.New(c))
 	var b bytes.Buffer
@@ -114,7 +151,14 @@ const (
 
 // WritePNG renders the figure as PNG of round(Width/inch × DPI) by
 // round(Height/inch × DPI) pixels on a white background.
+//
+// Both writers refuse a page smaller than 8 cm × 6 cm or larger than 1 m,
+// and WritePNG a DPI outside [24, 600], with a *model.ValidationError
+// naming "width", "height" or "dpi".
 func (f *Figure) WritePNG(w io.Writer) error {
+	if err := f.check(true); err != nil {
+		return err
+	}
 	dpi := f.DPI
 	if dpi == 0 {
 		dpi = DefaultDPI

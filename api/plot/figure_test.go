@@ -2,9 +2,12 @@ package plot
 
 import (
 	"bytes"
+	"errors"
 	"image/png"
 	"strings"
 	"testing"
+
+	"dampfront/model"
 
 	"gonum.org/v1/plot/vg"
 )
@@ -71,5 +74,35 @@ func TestWrap(t *testing.T) {
 	}
 	if n := len(wrap(sty, Caution, 1000)); n != 1 {
 		t.Errorf("caution in %d lines at 1000 pt, want 1", n)
+	}
+}
+
+func TestFigurePageLimits(t *testing.T) {
+	t.Parallel()
+	for _, tc := range []struct {
+		name   string
+		w, h   vg.Length
+		dpi    int
+		format Format
+		field  string
+	}{
+		{"narrow", 5 * vg.Centimeter, 10 * vg.Centimeter, 0, SVG, "width"},
+		{"flat", 17 * vg.Centimeter, 2 * vg.Centimeter, 0, PNG, "height"},
+		{"huge", 17 * vg.Centimeter, 200 * vg.Centimeter, 0, SVG, "height"},
+		{"dpi", 17 * vg.Centimeter, 10 * vg.Centimeter, 2000, PNG, "dpi"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			t.Parallel()
+			fig, err := Hypervolume(testHistory(), nil, HypervolumeOptions{Width: tc.w, Height: tc.h})
+			if err != nil {
+				t.Fatal(err)
+			}
+			fig.DPI = tc.dpi
+			err = fig.Write(&bytes.Buffer{}, tc.format)
+			var ve *model.ValidationError
+			if !errors.As(err, &ve) || ve.Problems[0].Field != tc.field {
+				t.Errorf("error %v, want one naming %q", err, tc.field)
+			}
+		})
 	}
 }

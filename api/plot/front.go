@@ -56,7 +56,9 @@ type Candidate struct {
 // Front draws a job's Pareto front: each chosen pair of objectives on its
 // axes in trade units, the solutions coloured by a gene with a colour
 // bar, the balanced point (BalancedSolution over all the front's
-// objectives) ringed, marked solutions boxed and candidates crossed.
+// objectives, among the solutions given: a page of a larger front gets
+// the page's balanced point) ringed, marked solutions boxed and
+// candidates crossed.
 // Problems with the front or the options come back as a
 // *model.ValidationError naming the field.
 func Front(f *pb.Front, opt FrontOptions) (*Figure, error) {

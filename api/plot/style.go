@@ -24,8 +24,9 @@ var (
 	sizeNote   = vg.Points(8)
 )
 
-// Colours of the Okabe-Ito palette (Okabe and Ito 2008, "Color Universal
-// Design"), told apart by the common forms of colour blindness.
+// Colours of the Okabe-Ito palette (M. Okabe and K. Ito, "Color Universal
+// Design", 2008; the values from memory), told apart by the common forms
+// of colour blindness.
 var (
 	colBlack     = color.RGBA{0, 0, 0, 255}
 	colOrange    = color.RGBA{230, 159, 0, 255}

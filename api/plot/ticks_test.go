@@ -7,7 +7,8 @@ import (
 
 // TestNiceTicks checks the laws of the linear tick marks over ranges of
 // many sizes: labels at whole multiples of a step of 1, 2 or 5 × 10^k
-// (the "nice numbers" of Heckbert, Graphics Gems, 1990), 3 to 8 of them,
+// (the "nice numbers" of P. Heckbert, "Nice numbers for graph labels",
+// Graphics Gems, 1990; cited from memory), 3 to 8 of them,
 // zero labelled whenever the range spans it, every mark inside the range.
 func TestNiceTicks(t *testing.T) {
 	t.Parallel()
