@@ -2,6 +2,7 @@ package api
 
 import (
 	"context"
+	"crypto/tls"
 	"errors"
 	"log/slog"
 	"net"
@@ -28,6 +29,7 @@ type Engine interface {
 	Cancel(ctx context.Context, id string) (*jobs.Job, error)
 	Watch(ctx context.Context, id string) (<-chan *jobs.Job, error)
 	Front(ctx context.Context, p *jobs.FrontGetParams) (*jobs.FrontPage, error)
+	Checkpoint(ctx context.Context, id string) ([]byte, error)
 }
 
 var _ Engine = (*jobs.Engine)(nil)
@@ -54,6 +56,16 @@ type Options struct {
 	StopTimeout time.Duration
 	// Logger receives the server's logs. Default slog.Default().
 	Logger *slog.Logger
+	// Tokens, when set, are the bearer tokens the server accepts, each
+	// with a role; see auth.go. Nil serves every call unauthenticated.
+	Tokens *Tokens
+	// TLS, when set, serves TLS with this configuration (its
+	// certificates at least). Nil serves plaintext HTTP/2.
+	TLS *tls.Config
+	// RPCTimeout bounds each unary call on the server, however long the
+	// client's deadline; WatchJob is not bounded. Default
+	// DefaultRPCTimeout; negative means no bound.
+	RPCTimeout time.Duration
 }
 
 // Defaults of Options.
@@ -115,13 +127,13 @@ func NewServer(engine Engine, opt Options) (*Server, error) {
 	}, nil
 }
 
-// ServerOptions are the gRPC options the limits call for; NewGRPCServer
-// applies them.
+// ServerOptions are the gRPC options the limits, TLS, call deadlines and
+// authentication call for; NewGRPCServer applies them.
 func (s *Server) ServerOptions() []grpc.ServerOption {
-	return []grpc.ServerOption{
+	return append([]grpc.ServerOption{
 		grpc.MaxRecvMsgSize(s.opt.MaxMessageBytes),
 		grpc.MaxSendMsgSize(s.opt.MaxMessageBytes),
-	}
+	}, s.callOptions()...)
 }
 
 // Register registers the service, the health service (serving, for ""

@@ -66,9 +66,15 @@ func (s *Server) GetJob(ctx context.Context, req *pb.GetJobRequest) (*pb.GetJobR
 	if err != nil {
 		return nil, toStatus(err, nil)
 	}
-	job, err := jobToProto(j, req.GetView() != pb.JobView_JOB_VIEW_BASIC)
+	full := req.GetView() != pb.JobView_JOB_VIEW_BASIC
+	job, err := jobToProto(j, full)
 	if err != nil {
 		return nil, toStatus(err, nil)
+	}
+	if full {
+		if job.History, err = s.history(ctx, j); err != nil {
+			return nil, toStatus(err, nil)
+		}
 	}
 	return &pb.GetJobResponse{Job: job}, nil
 }

@@ -210,3 +210,19 @@ var (
 	errCancelRequested = errors.New("jobs: cancel requested")
 	errStopping        = errors.New("jobs: engine stopping")
 )
+
+// Checkpoint returns the job's last saved checkpoint, or nil when it has
+// none yet; an unknown job is ErrNotFound.
+func (e *Engine) Checkpoint(ctx context.Context, id string) ([]byte, error) {
+	if _, err := e.Get(ctx, id); err != nil {
+		return nil, err
+	}
+	c, err := e.store.CheckpointGet(ctx, &CheckpointGetParams{JobID: id})
+	if errors.Is(err, ErrNotFound) {
+		return nil, nil
+	}
+	if err != nil {
+		return nil, err
+	}
+	return c.Data, nil
+}

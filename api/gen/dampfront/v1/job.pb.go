@@ -446,7 +446,10 @@ type Job struct {
 	// A cancellation was requested and has not yet taken effect, or has.
 	CancelRequested bool `protobuf:"varint,13,opt,name=cancel_requested,json=cancelRequested,proto3" json:"cancel_requested,omitempty"`
 	// The stored spec with its defaults filled in (JOB_VIEW_FULL only).
-	Spec          *JobSpec `protobuf:"bytes,14,opt,name=spec,proto3" json:"spec,omitempty"`
+	Spec *JobSpec `protobuf:"bytes,14,opt,name=spec,proto3" json:"spec,omitempty"`
+	// Progress after every generation up to the last checkpoint, oldest
+	// first (JOB_VIEW_FULL in GetJob only): the hypervolume history.
+	History       []*Progress `protobuf:"bytes,15,rep,name=history,proto3" json:"history,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -575,6 +578,13 @@ func (x *Job) GetCancelRequested() bool {
 func (x *Job) GetSpec() *JobSpec {
 	if x != nil {
 		return x.Spec
+	}
+	return nil
+}
+
+func (x *Job) GetHistory() []*Progress {
+	if x != nil {
+		return x.History
 	}
 	return nil
 }
@@ -714,7 +724,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x06curves\x18\v \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curves\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\x85\x05\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xb7\x05\n" +
 	"\x03Job\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12\x15\n" +
 	"\x06job_id\x18\x02 \x01(\tR\x05jobId\x12!\n" +
@@ -733,7 +743,8 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\rerror_message\x18\v \x01(\tR\ferrorMessage\x12\x18\n" +
 	"\apartial\x18\f \x01(\bR\apartial\x12)\n" +
 	"\x10cancel_requested\x18\r \x01(\bR\x0fcancelRequested\x12)\n" +
-	"\x04spec\x18\x0e \x01(\v2\x15.dampfront.v1.JobSpecR\x04spec\x1a9\n" +
+	"\x04spec\x18\x0e \x01(\v2\x15.dampfront.v1.JobSpecR\x04spec\x120\n" +
+	"\ahistory\x18\x0f \x03(\v2\x16.dampfront.v1.ProgressR\ahistory\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x01\n" +
@@ -810,12 +821,13 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	16, // 14: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
 	5,  // 15: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
 	3,  // 16: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	16, // 17: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	18, // [18:18] is the sub-list for method output_type
-	18, // [18:18] is the sub-list for method input_type
-	18, // [18:18] is the sub-list for extension type_name
-	18, // [18:18] is the sub-list for extension extendee
-	0,  // [0:18] is the sub-list for field type_name
+	5,  // 17: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	16, // 18: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	19, // [19:19] is the sub-list for method output_type
+	19, // [19:19] is the sub-list for method input_type
+	19, // [19:19] is the sub-list for extension type_name
+	19, // [19:19] is the sub-list for extension extendee
+	0,  // [0:19] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
