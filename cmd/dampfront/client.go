@@ -24,12 +24,14 @@ const defaultAddr = "127.0.0.1:7403"
 type clientFlags struct {
 	addr    string
 	timeout time.Duration
+	sec     *clientSecurityFlags // TLS and bearer token, auth.go
 }
 
 func addClientFlags(fs *flagSet, e *env) *clientFlags {
 	c := &clientFlags{}
 	fs.StringVar(&c.addr, "addr", envOr(e, "DAMPFRONT_ADDR", defaultAddr), "server address host:port ($DAMPFRONT_ADDR)")
 	fs.DurationVar(&c.timeout, "timeout", 60*time.Second, "time limit of each call to the server")
+	c.sec = addClientSecurityFlags(fs, e)
 	return c
 }
 
@@ -40,17 +42,27 @@ type client struct {
 	timeout time.Duration
 }
 
-// dial connects to addr without TLS: the server is meant for a trusted
-// network or a loopback address (TLS termination is the deployment's).
-func dial(addr string, timeout time.Duration) (*client, error) {
-	conn, err := grpc.NewClient(addr, grpc.WithTransportCredentials(insecure.NewCredentials()))
+// dial connects to addr with opts, or without TLS and token when none
+// are given (the demo's own loopback server).
+func dial(addr string, timeout time.Duration, opts ...grpc.DialOption) (*client, error) {
+	if len(opts) == 0 {
+		opts = []grpc.DialOption{grpc.WithTransportCredentials(insecure.NewCredentials())}
+	}
+	conn, err := grpc.NewClient(addr, opts...)
 	if err != nil {
 		return nil, fmt.Errorf("connect to %s: %w", addr, err)
 	}
 	return &client{conn: conn, svc: pb.NewDampfrontServiceClient(conn), timeout: timeout}, nil
 }
 
-func (c *clientFlags) dial() (*client, error) { return dial(c.addr, c.timeout) }
+// dial connects with the flags' TLS and token.
+func (c *clientFlags) dial() (*client, error) {
+	opts, err := c.sec.dialOptions(c.addr)
+	if err != nil {
+		return nil, err
+	}
+	return dial(c.addr, c.timeout, opts...)
+}
 
 func (c *client) Close() error { return c.conn.Close() }
 

@@ -30,7 +30,7 @@ var commands []*command
 
 func init() {
 	commands = []*command{
-		serveCommand, workerCommand, migrateCommand,
+		serveCommand, workerCommand, migrateCommand, tokenCommand,
 		submitCommand, watchCommand, listCommand, getCommand, cancelCommand,
 		frontCommand, evalCommand, checkCommand, curvesCommand,
 		demoCommand,
@@ -142,7 +142,9 @@ Subcommands:
 	tw.Flush()
 	fmt.Fprint(w, `
 Run 'dampfront SUBCOMMAND --help' for the flags of one. Client subcommands
-reach the server at --addr or $DAMPFRONT_ADDR (default `+defaultAddr+`).
+reach the server at --addr or $DAMPFRONT_ADDR (default `+defaultAddr+`),
+with the bearer token in $DAMPFRONT_TOKEN and, over TLS, the server's CA
+certificate in --tls-ca or $DAMPFRONT_TLS_CA.
 Exit codes: 0 success, 1 failure (or a check that did not pass), 2 usage or
 input error.
 `)

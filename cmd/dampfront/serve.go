@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"net"
+	"time"
 
 	"dampfront/api"
 )
@@ -25,8 +26,10 @@ of this node that died are resumed from their last checkpoint at start.
 SIGINT or SIGTERM stops it: running jobs checkpoint and are handed back
 within --stop-timeout.
 
-The server has no TLS or authentication of its own: keep it on loopback
-or a trusted network, or put it behind a proxy that provides them.`)
+With --tokens every call but health and reflection needs a bearer token
+of the file (make them with 'dampfront token new'), whose role decides
+what it may do; without, the server listens on a loopback address only,
+unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.`)
 	addr := fs.String("addr", envOr(e, "DAMPFRONT_ADDR", defaultAddr), "listen address host:port; port 0 picks a free one ($DAMPFRONT_ADDR)")
 	addrFile := fs.String("addr-file", "", "write the address actually listened on to this `file`")
 	ef, err := addEngineFlags(fs, e, true)
@@ -37,6 +40,7 @@ or a trusted network, or put it behind a proxy that provides them.`)
 	if err != nil {
 		return err
 	}
+	sf := addServerSecurityFlags(fs, e)
 	if _, err := fs.parse(args, 0, 0); err != nil {
 		return err
 	}
@@ -44,6 +48,10 @@ or a trusted network, or put it behind a proxy that provides them.`)
 		return err
 	}
 	if err := lf.check("serve"); err != nil {
+		return err
+	}
+	sec, err := sf.load("serve", *addr)
+	if err != nil {
 		return err
 	}
 	log := ef.logger(e.stderr)
@@ -58,6 +66,7 @@ or a trusted network, or put it behind a proxy that provides them.`)
 	}
 	opt := lf.options()
 	opt.Logger = log
+	sec.apply(&opt)
 	svc, err := startService(ctx, eng, lis, opt, ef.stopTimeout, log)
 	if err != nil {
 		_ = lis.Close()
@@ -72,6 +81,7 @@ or a trusted network, or put it behind a proxy that provides them.`)
 		}
 	}
 	log.Info("serving", "address", bound, "database", redactURL(ef.database), "backend", eng.Backend(), "workers", ef.workers)
+	sec.logStart(log, bound)
 	select {
 	case <-ctx.Done():
 		log.Info("stopping: running jobs checkpoint and are handed back", "timeout", ef.stopTimeout)
@@ -92,6 +102,7 @@ type limitFlags struct {
 	maxSyncWork    int
 	maxEvaluations int
 	maxMessage     int
+	rpcTimeout     time.Duration
 }
 
 func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
@@ -112,25 +123,35 @@ func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 	if err != nil {
 		return nil, err
 	}
+	rpcTimeout, err := envDuration(e, fs.name, "DAMPFRONT_RPC_TIMEOUT", api.DefaultRPCTimeout)
+	if err != nil {
+		return nil, err
+	}
 	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(jobWork), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
 	fs.IntVar(&l.maxSyncWork, "max-sync-work", syncWork, "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
 	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", evals, "eval, check and compare calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
 	fs.IntVar(&l.maxMessage, "max-message-bytes", msg, "largest gRPC request or response ($DAMPFRONT_MAX_MESSAGE_BYTES)")
+	fs.DurationVar(&l.rpcTimeout, "rpc-timeout", rpcTimeout, "longest a call other than watch may run on the server, whatever the client's deadline; 0 for no limit ($DAMPFRONT_RPC_TIMEOUT)")
 	return l, nil
 }
 
 func (l *limitFlags) check(cmd string) error {
-	if l.maxJobWork <= 0 || l.maxSyncWork <= 0 || l.maxMessage <= 0 || l.maxEvaluations < 0 {
-		return usagef(cmd, "--max-job-work, --max-sync-work and --max-message-bytes must be positive, --max-concurrent-evaluations not negative")
+	if l.maxJobWork <= 0 || l.maxSyncWork <= 0 || l.maxMessage <= 0 || l.maxEvaluations < 0 || l.rpcTimeout < 0 {
+		return usagef(cmd, "--max-job-work, --max-sync-work and --max-message-bytes must be positive, --max-concurrent-evaluations and --rpc-timeout not negative")
 	}
 	return nil
 }
 
 func (l *limitFlags) options() api.Options {
-	return api.Options{
+	o := api.Options{
 		MaxJobWork:               l.maxJobWork,
 		MaxSyncWork:              l.maxSyncWork,
 		MaxConcurrentEvaluations: l.maxEvaluations,
 		MaxMessageBytes:          l.maxMessage,
+		RPCTimeout:               l.rpcTimeout,
 	}
+	if l.rpcTimeout == 0 {
+		o.RPCTimeout = -1 // api.Options: negative is no limit
+	}
+	return o
 }
