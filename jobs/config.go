@@ -79,9 +79,38 @@ type Config struct {
 	// first 12 the creation time in milliseconds, so IDs sort by age.
 	NewID func() string
 
+	// OnSlice, when set, is called at the end of every slice this process
+	// drives (from the opened study to the slice's last transaction), on
+	// the worker's goroutine, for metrics; it must return quickly.
+	OnSlice func(SliceStats)
+
 	// testOnly shortens River's start-up jitter in this package's tests.
 	testOnly bool
 }
+
+// SliceStats describe one slice that a worker drove, for Config.OnSlice.
+type SliceStats struct {
+	JobID string
+	// Duration is the wall time from the opened study to the end of the
+	// slice's last transaction.
+	Duration time.Duration
+	// Generations and Evaluations are those the slice completed: the
+	// study's progress at the end less that at its opening (from the
+	// last checkpoint, so work redone after a crash counts again).
+	Generations int
+	Evaluations int64
+	// Outcome is how the slice ended: one of the Slice* outcomes.
+	Outcome string
+}
+
+// Outcomes of a slice, in SliceStats.
+const (
+	SliceSucceeded  = "succeeded"   // the study reached its end; the job succeeded
+	SliceFailed     = "failed"      // the study failed; so did the job
+	SliceCancelled  = "cancelled"   // a cancel was seen; the job is cancelled
+	SliceHandedOver = "handed_over" // time up or engine stopping: checkpointed, next slice queued
+	SliceError      = "error"       // a database error; River retries the slice
+)
 
 // Defaults, see Config.
 const (

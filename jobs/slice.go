@@ -93,8 +93,20 @@ func (rq *riverQueue[TTx]) runSlice(ctx context.Context, rj *river.Job[sliceArgs
 }
 
 // drive steps the study for one slice and ends it.
-func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Study) error {
+func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Study) (err error) {
 	cfg, st, id := rq.e.cfg, rq.db.store, rj.Args.JobID
+	outcome := SliceError
+	if cfg.OnSlice != nil {
+		opened, before := time.Now(), study.Progress()
+		defer func() {
+			if err != nil {
+				outcome = SliceError
+			}
+			after := study.Progress()
+			cfg.OnSlice(SliceStats{JobID: id, Duration: time.Since(opened), Outcome: outcome,
+				Generations: after.Generation - before.Generation, Evaluations: after.Evaluations - before.Evaluations})
+		}()
+	}
 	sliceCtx, cancel := context.WithCancelCause(ctx)
 	defer cancel(nil)
 	// The slice clock starts after the first step, so that every slice
@@ -117,9 +129,11 @@ func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], 
 			timer = time.AfterFunc(max(0, cfg.SliceDuration-time.Since(start)), func() { cancel(errSliceOver) })
 		}
 		if err != nil && sliceCtx.Err() == nil {
+			outcome = SliceFailed
 			return rq.finish(ctx, rj, lease, StateFailed, "step: "+err.Error(), nil)
 		}
 		if done {
+			outcome = SliceSucceeded
 			return rq.finish(ctx, rj, lease, StateSucceeded, "", study)
 		}
 		if sliceCtx.Err() != nil {
@@ -140,9 +154,11 @@ func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], 
 		}
 	}
 	if errors.Is(context.Cause(sliceCtx), errCancelRequested) {
+		outcome = SliceCancelled
 		return rq.finish(ctx, rj, lease, StateCancelled, "", study)
 	}
 	// Slice time up, engine stopping, or River's timeout: hand over.
+	outcome = SliceHandedOver
 	return rq.handOver(ctx, rj, lease, study)
 }
 
