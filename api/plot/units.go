@@ -45,6 +45,9 @@ var (
 	qRoadPSD        = quantity{"Displacement PSD Gd(n)", "m³", 1}
 	qGeneration     = quantity{"Generation", "", 1}
 	qBalance        = quantity{"Front/rear mean damping ratio", "", 1}
+	qFrequency      = quantity{"Frequency", "Hz", 1}
+	qTyreLoadPSD    = quantity{"Tyre load PSD", "N²/Hz", 1}
+	qRideHeightPSD  = quantity{"Ride-height PSD", "mm²/Hz", mmPerM * mmPerM}
 )
 
 // objectiveQuantity is how an objective is named and scaled on an axis;
