@@ -55,12 +55,13 @@ The table shows the spectrum in third-octave bands (the mean of the Welch
 bins in each) beside the fitted law; --format csv gives every Welch bin,
 --format json the fit and every bin, SI throughout.
 
-With --road-case NAME --speed V it writes a road case in the YAML form of a
-job spec's road_cases (a one-item list, so that it also serves as a
---roads file): the measured spectrum over the band (third-octave band means
-of the mean of both tracks, used for each, with the isotropic coherence
-model), or with --fitted the fitted power law. It goes to --out FILE, or to standard output, which then
-carries nothing else (the summary goes to standard error).`)
+With --road-case NAME --speed V it writes a road case in the YAML form of
+a job spec's road_cases (a one-item list, so that it also serves as a
+--roads file): the measured spectrum over the band (third-octave band
+means of the mean of both tracks, used for each, with the isotropic
+coherence model), or with --fitted the fitted power law. It goes to --out
+FILE, or to standard output, which then carries nothing else (the summary
+goes to standard error).`)
 	segment := fs.Float64("segment", 0, "Welch segment length, `m` (0: an eighth of the record); the resolution is its inverse")
 	bandMin := fs.Float64("band-min", 0, "lowest spatial frequency of the fit and of the road case's table, `cycles/m` (0: the fifth bin, at least 0.011)")
 	bandMax := fs.Float64("band-max", 0, "highest spatial frequency, `cycles/m` (0: 2.83, or half the Nyquist frequency when lower)")
