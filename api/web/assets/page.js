@@ -1,0 +1,120 @@
+// dampfront job page: sort the solutions table, show a solution's damper
+// curves, follow a running job's progress. Plain JavaScript, no library;
+// without it the page still works through links and a meta refresh.
+"use strict";
+
+// Sort a table by a column when its header button is pressed: numbers by
+// value (the SI value in data-sort), other columns as text; pressing again
+// reverses the order.
+function sortable(table) {
+  table.querySelectorAll("thead th").forEach(function (th) {
+    th.querySelector("button").addEventListener("click", function () {
+      var col = Number(th.dataset.col);
+      var numeric = th.dataset.type === "num";
+      var dir = th.getAttribute("aria-sort") === "ascending" ? -1 : 1;
+      table.querySelectorAll("thead th").forEach(function (o) { o.setAttribute("aria-sort", "none"); });
+      th.setAttribute("aria-sort", dir > 0 ? "ascending" : "descending");
+      var body = table.tBodies[0];
+      var rows = Array.prototype.slice.call(body.rows);
+      rows.sort(function (a, b) {
+        var x = a.cells[col].dataset.sort, y = b.cells[col].dataset.sort;
+        if (numeric) {
+          // Empty cells sort last either way.
+          if (x === "" || y === "") { return (x === "") - (y === ""); }
+          return dir * (Number(x) - Number(y));
+        }
+        return dir * x.localeCompare(y);
+      });
+      rows.forEach(function (r) { body.appendChild(r); });
+    });
+  });
+}
+
+// Show the damper curves of a row's solution: fetch its chart and put it
+// in place of the one shown.
+function selectable(table, panel) {
+  var chart = document.getElementById("curves-chart");
+  var problem = document.getElementById("curves-problem");
+  function show(row) {
+    var url = row.dataset.curves;
+    fetch(url, { credentials: "same-origin" }).then(function (res) {
+      return res.text().then(function (body) {
+        if (!res.ok) { throw new Error(body.trim() || res.statusText); }
+        return body;
+      });
+    }).then(function (body) {
+      var doc = new DOMParser().parseFromString(body, "image/svg+xml");
+      if (doc.querySelector("parsererror")) { throw new Error("the chart did not arrive whole"); }
+      chart.replaceChildren(document.importNode(doc.documentElement, true));
+      problem.hidden = true;
+      table.querySelectorAll("tbody tr.selected").forEach(function (r) {
+        r.classList.remove("selected");
+        r.removeAttribute("aria-selected");
+      });
+      row.classList.add("selected");
+      row.setAttribute("aria-selected", "true");
+      panel.dataset.solution = row.dataset.index;
+      document.getElementById("curves-index").textContent = row.dataset.index;
+      document.getElementById("curves-download").href = url + "?download=1";
+      history.replaceState(null, "", "?solution=" + row.dataset.index);
+    }).catch(function (err) {
+      problem.textContent = "The damper curves could not be shown: " + err.message;
+      problem.hidden = false;
+    });
+  }
+  table.tBodies[0].addEventListener("click", function (ev) {
+    var row = ev.target.closest("tr");
+    if (!row) { return; }
+    ev.preventDefault();
+    show(row);
+  });
+  table.tBodies[0].addEventListener("keydown", function (ev) {
+    if (ev.key === "Enter" && ev.target.matches("tr")) { ev.preventDefault(); show(ev.target); }
+  });
+}
+
+// Follow a queued or running job: poll its progress and reload the page
+// once the job has finished, to show its front.
+function follow(section) {
+  var bar = document.getElementById("progress-bar");
+  var text = document.getElementById("progress-text");
+  var state = document.getElementById("state");
+  var wait = Number(section.dataset.pollMs) || 1000;
+  function poll() {
+    fetch(section.dataset.url, { credentials: "same-origin", cache: "no-store" }).then(function (res) {
+      if (!res.ok) { throw new Error(res.statusText); }
+      return res.json();
+    }).then(function (p) {
+      bar.value = p.percent;
+      text.textContent = p.text;
+      state.textContent = p.state;
+      state.className = "state state-" + p.state;
+      if (p.terminal) { location.reload(); return; }
+      setTimeout(poll, wait);
+    }).catch(function () {
+      setTimeout(poll, 5 * wait); // the server may be restarting; try again later
+    });
+  }
+  setTimeout(poll, wait);
+}
+
+// Reload a page listing unfinished jobs, unless the reader is typing.
+function reloadEvery(seconds) {
+  setInterval(function () {
+    var a = document.activeElement;
+    if (a && (a.tagName === "INPUT" || a.tagName === "TEXTAREA")) { return; }
+    location.reload();
+  }, seconds * 1000);
+}
+
+document.addEventListener("DOMContentLoaded", function () {
+  var table = document.getElementById("solutions-table");
+  if (table) {
+    sortable(table);
+    var panel = document.getElementById("curves");
+    if (panel) { selectable(table, panel); }
+  }
+  var progress = document.getElementById("progress");
+  if (progress && progress.dataset.terminal !== "true") { follow(progress); }
+  if (document.body.dataset.reload) { reloadEvery(Number(document.body.dataset.reload)); }
+});

@@ -1,0 +1,267 @@
+package web
+
+import (
+	"encoding/json"
+	"fmt"
+	"html/template"
+	"net/http"
+	"net/url"
+	"strconv"
+	"strings"
+	"time"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/api/plot"
+)
+
+type header struct {
+	Label   string
+	Unit    string
+	Numeric bool
+}
+
+type cell struct {
+	Text string
+	Sort string // the value the column sorts by: SI for numbers
+}
+
+type solutionRow struct {
+	Index     int32
+	Balanced  bool
+	Selected  bool
+	Feasible  bool
+	CurvesURL string
+	PageURL   string // the job page with this solution's curves, for browsers without JavaScript
+	Cells     []cell
+	Warnings  string
+}
+
+type curvesView struct {
+	Index       int32
+	SVG         template.HTML
+	Problem     string
+	DownloadURL string
+}
+
+type link struct {
+	Label, URL string
+}
+
+type jobView struct {
+	pageView
+	Job             jobRow
+	Seed            uint64
+	Car             string
+	RoadCases       []string
+	Objectives      []string
+	Best            []string
+	Partial         bool
+	CancelRequested bool
+	Terminal        bool
+	ProgressURL     string
+	PollMS          int64
+
+	HypervolumeSVG template.HTML
+	FrontSVG       template.HTML
+	FrontProblem   string
+	FrontNote      string
+	Total          int32
+	Balanced       int32
+	Headers        []header
+	Rows           []solutionRow
+	Curves         *curvesView
+	Downloads      []link
+}
+
+// job is a job's page: its state and live progress; once finished, the
+// front chart, the solutions table and the damper curves of one solution
+// (?solution=N, else the balanced point).
+func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
+	id := r.PathValue("id")
+	ctx, cancel := h.callContext(r)
+	defer cancel()
+	jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(id), View: pb.JobView_JOB_VIEW_FULL})
+	if err != nil {
+		h.serviceError(w, r, err, true)
+		return
+	}
+	j := jr.GetJob()
+	spec := j.GetSpec()
+	v := &jobView{
+		pageView: pageView{Title: j.GetDisplayName()},
+		Job:      newJobRow(j), Seed: j.GetSeed(), Car: spec.GetVehicle().GetName(),
+		Partial: j.GetPartial(), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
+		ProgressURL: "/jobs/" + url.PathEscape(id) + "/progress.json", PollMS: h.opt.PollInterval.Milliseconds(),
+		Balanced: -1,
+	}
+	if v.Title == "" {
+		v.Title = j.GetName()
+	}
+	for _, rc := range spec.GetRoadCases() {
+		v.RoadCases = append(v.RoadCases, fmt.Sprintf("%s at %.0f km/h", rc.GetName(), rc.GetSpeedMPerS()*kmhPerMPerS))
+	}
+	objs := spec.GetObjectives()
+	for k, o := range objs {
+		q := objectiveQuantity(o)
+		v.Objectives = append(v.Objectives, q.label+" ("+q.unit+")")
+		if best := j.GetProgress().GetBestObjectives(); k < len(best) {
+			v.Best = append(v.Best, q.label+" "+q.text(best[k])+" "+q.unit)
+		}
+	}
+	if !v.Terminal {
+		v.Refresh = int(max(5*time.Second, 5*h.opt.PollInterval) / time.Second)
+	}
+	if hist := j.GetHistory(); len(hist) > 1 {
+		if fig, err := plot.Hypervolume(hist, objs, plot.HypervolumeOptions{}); err == nil {
+			if b, err := svgBytes(fig); err == nil {
+				v.HypervolumeSVG = inlineSVG(b)
+			}
+		}
+	}
+	if v.Terminal {
+		front, err := h.wholeFront(ctx, j.GetName())
+		if err != nil {
+			h.serviceError(w, r, err, true)
+			return
+		}
+		h.frontSection(v, id, front, r.URL.Query().Get("solution"))
+	}
+	h.render(w, r, http.StatusOK, "job", v)
+}
+
+// frontSection fills the front chart, the table and the curves of the
+// selected solution.
+func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected string) {
+	sols := front.GetSolutions()
+	v.Total = front.GetTotalSize()
+	base := "/jobs/" + url.PathEscape(id)
+	v.Downloads = []link{
+		{"Front CSV (SI)", base + "/front.csv"},
+		{"Front JSON (SI, every metric)", base + "/front.json"},
+		{"Front chart SVG", base + "/front.svg"},
+	}
+	if len(sols) == 0 {
+		v.FrontNote = "The front is empty: no feasible setup was found. Loosen the constraints or widen the bounds."
+		return
+	}
+	if fig, err := frontFigure(front); err != nil {
+		v.FrontProblem = "The front chart cannot be drawn: " + err.Error()
+	} else if b, err := svgBytes(fig); err != nil {
+		v.FrontProblem = "The front chart cannot be drawn: " + err.Error()
+	} else {
+		v.FrontSVG = inlineSVG(b)
+	}
+	bal, err := plot.BalancedSolution(sols)
+	if err == nil && bal >= 0 {
+		v.Balanced = sols[bal].GetIndex()
+	}
+	pick := v.Balanced
+	if k, err := strconv.Atoi(selected); err == nil && solutionAt(front, k) != nil {
+		pick = int32(k)
+	}
+	v.Headers, v.Rows = solutionTable(id, front, v.Balanced, pick)
+	if s := solutionAt(front, int(pick)); s != nil {
+		c := &curvesView{Index: pick, DownloadURL: curvesURL(id, pick) + "?download=1"}
+		if fig, err := curvesFigure(s); err != nil {
+			c.Problem = "The damper curves cannot be drawn: " + err.Error()
+		} else if b, err := svgBytes(fig); err != nil {
+			c.Problem = "The damper curves cannot be drawn: " + err.Error()
+		} else {
+			c.SVG = inlineSVG(b)
+		}
+		v.Curves = c
+	}
+}
+
+// slopeCorners are the corners whose low-speed slopes the table shows,
+// one per axle: the left ones, as the command line's front table does.
+var slopeCorners = []struct {
+	corner pb.CornerPosition
+	label  string
+}{
+	{pb.CornerPosition_CORNER_POSITION_FRONT_LEFT, "F"},
+	{pb.CornerPosition_CORNER_POSITION_REAR_LEFT, "R"},
+}
+
+// solutionTable is the header and rows of the solutions table: index,
+// genes, objectives in trade units, the low-speed slopes at the damper,
+// and the warnings.
+func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]header, []solutionRow) {
+	hs := []header{{Label: "#", Numeric: true}}
+	geneQ := make([]quantity, len(front.GetGeneNames()))
+	for i, n := range front.GetGeneNames() {
+		geneQ[i] = geneQuantity(n)
+		hs = append(hs, header{Label: geneQ[i].label, Unit: geneQ[i].unit, Numeric: true})
+	}
+	objQ := make([]quantity, len(front.GetObjectives()))
+	for i, o := range front.GetObjectives() {
+		objQ[i] = objectiveQuantity(o)
+		hs = append(hs, header{Label: objQ[i].label, Unit: objQ[i].unit, Numeric: true})
+	}
+	for _, c := range slopeCorners {
+		hs = append(hs, header{Label: c.label + " bump slope", Unit: qSlope.unit, Numeric: true},
+			header{Label: c.label + " rebound slope", Unit: qSlope.unit, Numeric: true})
+	}
+	hs = append(hs, header{Label: "Warnings", Numeric: true})
+
+	base := "/jobs/" + url.PathEscape(id)
+	var rows []solutionRow
+	for _, s := range front.GetSolutions() {
+		idx := s.GetIndex()
+		row := solutionRow{
+			Index: idx, Balanced: idx == balanced, Selected: idx == selected, Feasible: s.GetFeasible(),
+			CurvesURL: curvesURL(id, idx), PageURL: fmt.Sprintf("%s?solution=%d#curves", base, idx),
+			Warnings: strings.Join(s.GetWarnings(), "; "),
+		}
+		row.Cells = append(row.Cells, cell{Text: strconv.Itoa(int(idx)), Sort: strconv.Itoa(int(idx))})
+		for i, q := range geneQ {
+			row.Cells = append(row.Cells, numCell(q, s.GetGenes(), i))
+		}
+		for i, q := range objQ {
+			row.Cells = append(row.Cells, numCell(q, s.GetObjectives(), i))
+		}
+		for _, c := range slopeCorners {
+			bump, rebound := cell{}, cell{}
+			for _, dc := range s.GetDamperCurves() {
+				if dc.GetCorner() == c.corner {
+					bump = numCell(qSlope, []float64{dc.GetBumpSlopeNSPerM()}, 0)
+					rebound = numCell(qSlope, []float64{dc.GetReboundSlopeNSPerM()}, 0)
+				}
+			}
+			row.Cells = append(row.Cells, bump, rebound)
+		}
+		n := strconv.Itoa(len(s.GetWarnings()))
+		row.Cells = append(row.Cells, cell{Text: n, Sort: n})
+		rows = append(rows, row)
+	}
+	return hs, rows
+}
+
+// numCell is the table cell of values[i] in q's trade unit, sorting by
+// the SI value; empty when the value is missing.
+func numCell(q quantity, values []float64, i int) cell {
+	if i >= len(values) {
+		return cell{}
+	}
+	return cell{Text: q.text(values[i]), Sort: siText(values[i])}
+}
+
+// progress is the job's state and progress as JSON, for the job page's
+// poll.
+func (h *Handler) progress(w http.ResponseWriter, r *http.Request) {
+	ctx, cancel := h.callContext(r)
+	defer cancel()
+	jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(r.PathValue("id")), View: pb.JobView_JOB_VIEW_BASIC})
+	if err != nil {
+		h.serviceError(w, r, err, false)
+		return
+	}
+	b, err := json.Marshal(newProgressView(jr.GetJob()))
+	if err != nil {
+		h.serviceError(w, r, err, false)
+		return
+	}
+	w.Header().Set("Content-Type", "application/json")
+	w.Header().Set("Cache-Control", "no-store")
+	_, _ = w.Write(b)
+}
