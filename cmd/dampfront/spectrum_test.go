@@ -375,3 +375,45 @@ func TestSpectrumRoadCaseRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// A one-track profile (distance_m,elevation_m) gives one PSD, no
+// coherence, and a road case of that track.
+func TestSpectrumOneTrack(t *testing.T) {
+	t.Parallel()
+	b, err := os.ReadFile(testdataPath(inventedSector.file))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out []string
+	for _, l := range strings.Split(strings.TrimSpace(string(b)), "\n") {
+		if strings.HasPrefix(l, "#") {
+			continue
+		}
+		f := strings.Split(l, ",")
+		if f[0] == "distance_m" {
+			f[1] = "elevation_m"
+		}
+		out = append(out, f[0]+","+f[1])
+	}
+	p := filepath.Join(t.TempDir(), "one-track.csv")
+	if err := os.WriteFile(p, []byte(strings.Join(out, "\n")+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	s, _ := spectrumOf(t, p)
+	if s.Profile.Tracks != 1 || s.Spectrum.Right != nil || s.Spectrum.Coherence != nil || len(s.Spectrum.Left) != s.Welch.SegmentSamples/2 {
+		t.Errorf("one track: profile %+v, %d right values, %d coherence values", s.Profile, len(s.Spectrum.Right), len(s.Spectrum.Coherence))
+	}
+	table := mustRun(t, exitOK, nil, "spectrum", p).stdout
+	if !strings.Contains(table, "one track") || !strings.Contains(table, "Gd m³") || strings.Contains(table, "coherence") {
+		t.Errorf("one-track table:\n%s", table)
+	}
+	rc := filepath.Join(t.TempDir(), "rc.yaml")
+	mustRun(t, exitOK, nil, "spectrum", p, "--road-case", "left track", "--speed", "40", "--out", rc)
+	cases, err := readRoadCases(&env{}, rc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := cases[0].GetMeasured(); len(m.GetLeftM3()) == 0 || m.GetRightM3() != nil {
+		t.Errorf("one-track road case %v", cases[0])
+	}
+}

@@ -452,6 +452,7 @@ type verifyCaseJSON struct {
 	Duration float64         `json:"duration_s"`
 	Samples  int             `json:"samples"`
 	RoadMaxN float64         `json:"road_max_n_cycles_per_m"`
+	Static   [4]float64      `json:"static_tyre_load_n"`
 	Rows     []verifyRowJSON `json:"rows"`
 	Peaks    verifyPeaksJSON `json:"peaks"`
 	Warnings []string        `json:"warnings"`
@@ -490,7 +491,8 @@ func writeVerifyJSON(w io.Writer, rep *model.VerifyReport, in *verifyInputs, set
 		c := &rep.Cases[i]
 		tm := &c.Time
 		cj := verifyCaseJSON{RoadCase: c.Case, Speed: in.cases[i].Speed, Step: tm.Step, Settle: tm.Settle,
-			Duration: tm.Duration, Samples: tm.Samples, RoadMaxN: tm.RoadMaxN, Differs: []string{}, Warnings: timeWarnings(tm)}
+			Duration: tm.Duration, Samples: tm.Samples, RoadMaxN: tm.RoadMaxN, Static: c.Frequency.StaticTyreLoad,
+			Differs: []string{}, Warnings: timeWarnings(tm)}
 		shown := make([]shownRow, len(c.Rows))
 		for k, r := range c.Rows {
 			shown[k] = showRow(r, c.Frequency.StaticTyreLoad)

@@ -259,3 +259,45 @@ func TestVerifyUsageErrors(t *testing.T) {
 		})
 	}
 }
+
+// On a road rough enough to lift the tyres the frequency-domain lift-off
+// row is the Gaussian tail of the tyre-load row, P = Q(F/σ_F) =
+// ½ erfc(F/(σ_F √2)) (the normal distribution's tail, Abramowitz &
+// Stegun, "Handbook of Mathematical Functions", 26.2.29), F the mean
+// tyre load: the static load for symmetric linear dampers, which do not
+// jack. The time domain, where a tyre cannot pull, names the corners off
+// the road for more than 1 % of the time.
+func TestVerifyRoughRoadLiftsTheTyres(t *testing.T) {
+	t.Parallel()
+	// Agreement to 1e-9 relative: the closed form computed twice, here
+	// and in the model, with erfc's own rounding.
+	const closedForm = 1e-9
+	dir := t.TempDir()
+	rough, linear := filepath.Join(dir, "rough.yaml"), filepath.Join(dir, "linear.yaml")
+	if err := os.WriteFile(rough, []byte("- name: rough street\n  speed_m_per_s: 40\n  power_law: {gd0_m3: 1.0e-3, waviness: 2}\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(linear, []byte("front: {bump_ratio: 0.6, rebound_ratio: 0.6}\nrear: {bump_ratio: 0.6, rebound_ratio: 0.6}\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	v, _ := verifyOf(t, "--spec", testdataPath("demo-job.yaml"), "--roads", rough, "--setup", linear)
+	c := v.Cases[0]
+	rows := map[string]verifyRowJSON{}
+	for _, r := range c.Rows {
+		rows[r.Metric] = r
+	}
+	for i, corner := range []string{"FL", "FR", "RL", "RR"} {
+		sd := rows["tyre_load_sd_n["+corner+"]"].Frequency
+		want := 0.5 * math.Erfc(c.Static[i]/(sd*math.Sqrt2))
+		got := rows["lift_off_fraction["+corner+"]"].Frequency
+		if math.Abs(got-want) > closedForm*want {
+			t.Errorf("%s: lift-off probability %g, the Gaussian tail of sd %g N at %g N static is %g", corner, got, sd, c.Static[i], want)
+		}
+		if lifted := rows["lift_off_fraction["+corner+"]"].Time; lifted > verifyWarn && !strings.Contains(strings.Join(c.Warnings, "\n"), corner+" tyre off the road") {
+			t.Errorf("%s off the road %.2g of the time, no warning: %q", corner, lifted, c.Warnings)
+		}
+	}
+	if len(c.Warnings) == 0 || c.Peaks.TyreLoadMin[0] != 0 {
+		t.Errorf("no tyre left the road: warnings %q, lowest FL load %g N", c.Warnings, c.Peaks.TyreLoadMin[0])
+	}
+}
