@@ -1,0 +1,404 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"dampfront/api"
+	"errors"
+	"flag"
+	"fmt"
+	"math"
+	"os"
+	"slices"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/plot/vg"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/api/plot"
+	"dampfront/model"
+)
+
+var plotCommand = &command{
+	name:    "plot",
+	summary: "write a chart as SVG or PNG: front, damper curves, hypervolume, road input, output spectra",
+	run:     runPlot,
+}
+
+// plotCharts are the charts of "plot", each with the flags of its own;
+// the flags of the page and the files, and the client's, go with every
+// chart.
+var plotCharts = map[string][]string{
+	"front":       {"objectives", "colour", "mark"},
+	"curves":      {"solution", "balanced"},
+	"hypervolume": nil,
+	"road":        {"spec"},
+	"spectra":     {"spec", "setup", "case"},
+}
+
+func runPlot(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "plot", "CHART [flags] [JOB] (--svg FILE | --png FILE)", `
+Writes one chart to --svg FILE, --png FILE or both. Charts:
+
+  front JOB          the Pareto front: each pair of objectives in trade
+                     units, the solutions coloured by the front/rear
+                     damping balance (--colour GENE for a gene), the
+                     balanced point ringed, --mark solutions boxed
+  curves JOB         damper force-velocity curves at the component of the
+                     balanced point (the default) or of --solution N, with
+                     the adjuster range shaded and the knees marked
+  hypervolume JOB    hypervolume per generation, up to the last checkpoint
+  road JOB           the road cases' displacement PSDs over the ISO 8608
+  road --spec FILE   classes, of a stored job or of a spec file
+  spectra --spec FILE --setup FILE [--case I]
+                     tyre load and ride-height PSDs front and rear of a
+                     setup on road case I (0, the first, by default), with
+                     the car's modes marked; computed here, no server
+
+The page is --width by --height in mm (0: the chart's own size), PNGs at
+--dpi. Every chart carries the model's caution in its footnote.`)
+	cf := addClientFlags(fs, e)
+	svgPath := fs.String("svg", "", "write the chart as SVG to this `file`")
+	pngPath := fs.String("png", "", "write the chart as PNG to this `file`")
+	width := fs.Float64("width", 0, "page width, `mm` (0: the chart's default)")
+	height := fs.Float64("height", 0, "page height, `mm` (0: the chart's default)")
+	dpi := fs.Int("dpi", 0, fmt.Sprintf("PNG resolution, `dots` per inch (0: %d)", plot.DefaultDPI))
+	title := fs.String("title", "", "the chart's `title` instead of its default")
+	var objectives, marked intList
+	fs.Var(&objectives, "objectives", "front: the `positions` of the two or three objectives drawn, as 0,1 (default: all)")
+	colour := fs.String("colour", "", "front: colour the points by this `gene` (default: the front/rear balance)")
+	fs.Var(&marked, "mark", "front: box the solutions of these `indices`, as 3,17 (repeatable)")
+	solution := fs.Int("solution", -1, "curves: `index` of a solution of the job's front")
+	fs.Bool("balanced", false, "curves: the balanced point of the front (the default)")
+	specPath := fs.String("spec", "", "road, spectra: job spec `file` giving the car and the road cases")
+	setupPath := fs.String("setup", "", "spectra: setup `file` whose spectra to draw")
+	roadCase := fs.Int("case", 0, "spectra: `index` of the road case in the spec, from 0")
+	pos, err := fs.parse(args, 0, 2)
+	if err != nil {
+		return err
+	}
+	if len(pos) == 0 {
+		return usagef("plot", "name a chart: front, curves, hypervolume, road or spectra")
+	}
+	chart := pos[0]
+	own, ok := plotCharts[chart]
+	if !ok {
+		return usagef("plot", "unknown chart %q (want front, curves, hypervolume, road or spectra)", chart)
+	}
+	var wrong []string
+	fs.Visit(func(f *flag.Flag) {
+		for c, names := range plotCharts {
+			if c != chart && slices.Contains(names, f.Name) && !slices.Contains(own, f.Name) && !slices.Contains(wrong, f.Name) {
+				wrong = append(wrong, f.Name)
+			}
+		}
+	})
+	if len(wrong) > 0 {
+		slices.Sort(wrong)
+		return usagef("plot", "--%s: not a flag of the %s chart", strings.Join(wrong, ", --"), chart)
+	}
+	job := ""
+	if len(pos) == 2 {
+		job = jobName(pos[1])
+	}
+	switch {
+	case *svgPath == "" && *pngPath == "":
+		return usagef("plot", "give --svg FILE, --png FILE or both")
+	case (chart == "front" || chart == "curves" || chart == "hypervolume") && job == "":
+		return usagef("plot", "the %s chart needs a JOB", chart)
+	case chart == "road" && (job == "") == (*specPath == ""):
+		return usagef("plot", "the road chart needs a JOB or --spec FILE, not both")
+	case chart == "spectra" && (job != "" || *specPath == "" || *setupPath == ""):
+		return usagef("plot", "the spectra chart needs --spec FILE and --setup FILE, and no JOB")
+	case isFlagSet(fs, "solution") && isFlagSet(fs, "balanced"):
+		return usagef("plot", "give --solution or --balanced, not both")
+	case isFlagSet(fs, "solution") && *solution < 0:
+		return usagef("plot", "--solution must be a front index >= 0")
+	case *roadCase < 0:
+		return usagef("plot", "--case must be a road case index >= 0")
+	case !(*width >= 0) || !(*height >= 0) || math.IsInf(*width, 0) || math.IsInf(*height, 0) || *dpi < 0:
+		return usagef("plot", "--width, --height and --dpi must be numbers >= 0")
+	}
+
+	var fig *plot.Figure
+	page := plotPage{title: *title, width: vg.Length(*width) * vg.Millimeter, height: vg.Length(*height) * vg.Millimeter}
+	switch chart {
+	case "spectra":
+		fig, err = plotSpectra(e, *specPath, *setupPath, *roadCase, page)
+	case "road":
+		if job == "" {
+			var spec *pb.JobSpec
+			if spec, err = readSpec(e, *specPath); err == nil {
+				fig, err = plotRoad(spec, page)
+			}
+			break
+		}
+		fallthrough
+	default:
+		var c *client
+		if c, err = cf.dial(); err != nil {
+			return err
+		}
+		defer c.Close()
+		switch chart {
+		case "front":
+			fig, err = plotFront(ctx, c, job, plot.FrontOptions{Objectives: objectives, ColourGene: *colour, Marked: int32s(marked)}, page)
+		case "curves":
+			fig, err = plotCurves(ctx, c, job, *solution, page)
+		case "hypervolume", "road":
+			fig, err = plotFromJob(ctx, c, job, chart, page)
+		}
+	}
+	if err != nil {
+		return figureError(err)
+	}
+	fig.DPI = *dpi
+	for _, out := range []struct {
+		path   string
+		format plot.Format
+	}{{*svgPath, plot.SVG}, {*pngPath, plot.PNG}} {
+		if out.path == "" {
+			continue
+		}
+		var b bytes.Buffer
+		if err := fig.Write(&b, out.format); err != nil {
+			return figureError(err)
+		}
+		if err := os.WriteFile(out.path, b.Bytes(), 0o644); err != nil {
+			return err
+		}
+		fmt.Fprintf(e.stdout, "Wrote %s (%s chart, %s).\n", out.path, chart, strings.ToUpper(string(out.format)))
+	}
+	return nil
+}
+
+// plotPage is what the flags set of every chart's page.
+type plotPage struct {
+	title         string
+	width, height vg.Length
+}
+
+// apply sets the page of a built figure: the chart's own defaults stay
+// where a flag is 0 or empty.
+func (pg plotPage) apply(fig *plot.Figure) *plot.Figure {
+	if pg.title != "" {
+		fig.Title = pg.title
+	}
+	if pg.width > 0 {
+		fig.Width = pg.width
+	}
+	if pg.height > 0 {
+		fig.Height = pg.height
+	}
+	return fig
+}
+
+// plotFront draws the whole front of a job.
+func plotFront(ctx context.Context, c *client, job string, opt plot.FrontOptions, page plotPage) (*plot.Figure, error) {
+	fd, err := fetchFront(ctx, c, job, pb.SolutionView_SOLUTION_VIEW_BASIC)
+	if err != nil {
+		return nil, err
+	}
+	if name := fd.job.GetDisplayName(); name != "" {
+		opt.Title = fmt.Sprintf("Pareto front, %s (%s)", name, job)
+	}
+	fig, err := plot.Front(fd.front, opt)
+	if err != nil {
+		return nil, err
+	}
+	return page.apply(fig), nil
+}
+
+// plotCurves draws the damper curves of a solution of a job's front, the
+// balanced point when solution < 0.
+func plotCurves(ctx context.Context, c *client, job string, solution int, page plotPage) (*plot.Figure, error) {
+	req := &pb.GetDamperCurvesRequest{Job: job}
+	what := fmt.Sprintf("solution %d", solution)
+	if solution < 0 {
+		fd, err := fetchFront(ctx, c, job, pb.SolutionView_SOLUTION_VIEW_BASIC)
+		if err != nil {
+			return nil, err
+		}
+		b := balancedIndex(fd.front.GetSolutions())
+		if b < 0 {
+			return nil, &exitError{code: exitFailure, msg: "the front of " + job + " is empty: no balanced point"}
+		}
+		solution = int(fd.front.GetSolutions()[b].GetIndex())
+		what = fmt.Sprintf("balanced point, solution %d", solution)
+	}
+	req.Target = &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: int32(solution)}
+	cctx, cancel := c.call(ctx)
+	resp, err := c.svc.GetDamperCurves(cctx, req)
+	cancel()
+	if err != nil {
+		return nil, err
+	}
+	fig, err := plot.DamperCurves(resp.GetCurves(), plot.CurveOptions{
+		Title: fmt.Sprintf("Damper curves at the component, %s of %s", what, job)})
+	if err != nil {
+		return nil, err
+	}
+	fig.Notes = append(fig.Notes, "Setup: "+setupText(resp.GetSetup())+".")
+	return page.apply(fig), nil
+}
+
+// plotFromJob draws a chart of a job's stored record: its hypervolume
+// history or its spec's road cases.
+func plotFromJob(ctx context.Context, c *client, job, chart string, page plotPage) (*plot.Figure, error) {
+	cctx, cancel := c.call(ctx)
+	jr, err := c.svc.GetJob(cctx, &pb.GetJobRequest{Name: job, View: pb.JobView_JOB_VIEW_FULL})
+	cancel()
+	if err != nil {
+		return nil, err
+	}
+	j := jr.GetJob()
+	if chart == "road" {
+		return plotRoad(j.GetSpec(), page)
+	}
+	if len(j.GetHistory()) == 0 {
+		return nil, &exitError{code: exitFailure, msg: fmt.Sprintf("%s has no progress to draw yet (%s)", job, stateName(j.GetState()))}
+	}
+	fig, err := plot.Hypervolume(j.GetHistory(), j.GetSpec().GetObjectives(), plot.HypervolumeOptions{
+		Title: "Hypervolume per generation, " + jobTitle(j)})
+	if err != nil {
+		return nil, err
+	}
+	return page.apply(fig), nil
+}
+
+// plotRoad draws the road cases of a spec.
+func plotRoad(spec *pb.JobSpec, page plotPage) (*plot.Figure, error) {
+	in, err := api.SpecToModel(spec)
+	if err != nil {
+		return nil, err
+	}
+	title := "Road input"
+	if name := spec.GetDisplayName(); name != "" {
+		title += ", " + name
+	}
+	fig, err := plot.RoadInput(in.RoadCases, plot.RoadOptions{Title: title})
+	if err != nil {
+		return nil, err
+	}
+	return page.apply(fig), nil
+}
+
+// plotSpectra computes and draws the output spectra of a setup on one
+// road case of a spec, with the car's modes at the case's speed.
+func plotSpectra(e *env, specPath, setupPath string, ci int, page plotPage) (*plot.Figure, error) {
+	spec, err := readSpec(e, specPath)
+	if err != nil {
+		return nil, err
+	}
+	setups, err := readSetups(e, []string{setupPath})
+	if err != nil {
+		return nil, err
+	}
+	in, err := api.SpecToModel(spec)
+	if err != nil {
+		return nil, err
+	}
+	if ci >= len(in.RoadCases) {
+		return nil, usagef("plot", "--case %d: the spec has %d road cases (0 to %d)", ci, len(in.RoadCases), len(in.RoadCases)-1)
+	}
+	s, err := setupToModel(setups[0], setupPath)
+	if err != nil {
+		return nil, err
+	}
+	ev, err := model.NewEvaluator(in.Vehicle, in.RoadCases, in.Options)
+	if err != nil {
+		return nil, err
+	}
+	sp, _, err := ev.Spectra(s, ci)
+	if err != nil {
+		return nil, err
+	}
+	speed := in.RoadCases[ci].Speed
+	modes, err := model.ModalAnalysis(&in.Vehicle, &s, speed)
+	if err != nil {
+		return nil, err
+	}
+	fig, err := plot.Spectra(sp, modes, plot.SpectraOptions{})
+	if err != nil {
+		return nil, err
+	}
+	fig.Notes = append(fig.Notes, fmt.Sprintf("Setup %s: %s; %s at %g m/s.", setupPath, setupText(setups[0]), sp.Case, speed))
+	return page.apply(fig), nil
+}
+
+// readSpec reads a job spec file.
+func readSpec(e *env, path string) (*pb.JobSpec, error) {
+	spec := &pb.JobSpec{}
+	if err := readMessage(e, path, spec); err != nil {
+		return nil, err
+	}
+	return spec, nil
+}
+
+// jobTitle is a job's display name with its resource name.
+func jobTitle(j *pb.Job) string {
+	if j.GetDisplayName() == "" {
+		return j.GetName()
+	}
+	return fmt.Sprintf("%s (%s)", j.GetDisplayName(), j.GetName())
+}
+
+// plotFlags are the flags that the chart options' field paths stand for.
+var plotFlags = map[string]string{
+	"width": "width", "height": "height", "dpi": "dpi",
+	"objectives": "objectives", "colour_gene": "colour", "marked": "mark",
+}
+
+// figureError makes a chart's *model.ValidationError about the page or
+// the options a usage error naming the flags (exit code 2), and one about
+// the data (an empty front, say) a failure (exit code 1).
+func figureError(err error) error {
+	var ve *model.ValidationError
+	if !errors.As(err, &ve) {
+		return err
+	}
+	var flags, data []string
+	for _, p := range ve.Problems {
+		root, _, _ := strings.Cut(p.Field, "[")
+		if f, ok := plotFlags[root]; ok {
+			flags = append(flags, fmt.Sprintf("--%s: %s", f, p.Reason))
+			continue
+		}
+		data = append(data, p.Error())
+	}
+	if len(data) > 0 {
+		return &exitError{code: exitFailure, msg: "cannot draw the chart: " + strings.Join(append(data, flags...), "; ")}
+	}
+	return usagef("plot", "%s", strings.Join(flags, "; "))
+}
+
+// intList is a flag of integers, comma-separated or repeated.
+type intList []int
+
+func (l *intList) String() string {
+	parts := make([]string, len(*l))
+	for i, v := range *l {
+		parts[i] = strconv.Itoa(v)
+	}
+	return strings.Join(parts, ",")
+}
+
+func (l *intList) Set(s string) error {
+	for _, p := range strings.Split(s, ",") {
+		v, err := strconv.Atoi(strings.TrimSpace(p))
+		if err != nil {
+			return fmt.Errorf("%q is not a list of integers", s)
+		}
+		*l = append(*l, v)
+	}
+	return nil
+}
+
+func int32s(l intList) []int32 {
+	out := make([]int32, len(l))
+	for i, v := range l {
+		out[i] = int32(v)
+	}
+	return out
+}
