@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"dampfront/api"
 	"encoding/json"
 	"errors"
 	"flag"
@@ -130,16 +131,16 @@ the verdict.`)
 			spec.RoadCases = over.RoadCases
 		}
 	}
-	in, err := specInputs(spec)
+	in, err := api.SpecToModel(spec)
 	if err != nil {
 		return err
 	}
-	s, err := setupModel(setup, source)
+	s, err := setupToModel(setup, source)
 	if err != nil {
 		return err
 	}
 	rep, err := verifyInBackground(ctx, in, s, model.VerifyOptions{
-		Time: model.TimeOptions{Duration: *duration, WarnThreshold: verifyWarn}, Model: in.options, Seed: *seed,
+		Time: model.TimeOptions{Duration: *duration, WarnThreshold: verifyWarn}, Model: in.Options, Seed: *seed,
 	})
 	if err != nil {
 		var ve *model.ValidationError
@@ -197,14 +198,14 @@ func fetchVerifyTarget(ctx context.Context, cf *clientFlags, name string, setup 
 
 // verifyInBackground runs model.Verify, which cannot be cancelled, so
 // that an interrupt still ends the command at once.
-func verifyInBackground(ctx context.Context, in *verifyInputs, s model.Setup, opt model.VerifyOptions) (*model.VerifyReport, error) {
+func verifyInBackground(ctx context.Context, in *api.ModelInputs, s model.Setup, opt model.VerifyOptions) (*model.VerifyReport, error) {
 	type outcome struct {
 		rep *model.VerifyReport
 		err error
 	}
 	done := make(chan outcome, 1)
 	go func() {
-		rep, err := model.Verify(in.vehicle, in.cases, s, opt)
+		rep, err := model.Verify(in.Vehicle, in.RoadCases, s, opt)
 		done <- outcome{rep, err}
 	}()
 	select {
@@ -348,14 +349,14 @@ func verifyVerdict(rows []shownRow) (holds bool, line string) {
 	return false, fmt.Sprintf("differs by more than %d statistical errors in: %s", verifySigmas, strings.Join(off, "; "))
 }
 
-func writeVerifyTable(w io.Writer, rep *model.VerifyReport, in *verifyInputs, setup *pb.Setup, source string) error {
-	fmt.Fprintf(w, "Time-domain check of %s on %s: %s\n", source, in.vehicle.Name, setupText(setup))
+func writeVerifyTable(w io.Writer, rep *model.VerifyReport, in *api.ModelInputs, setup *pb.Setup, source string) error {
+	fmt.Fprintf(w, "Time-domain check of %s on %s: %s\n", source, in.Vehicle.Name, setupText(setup))
 	fmt.Fprintf(w, "Road seed %d. Frequency domain: statistically linearised model; time domain: nonlinear dampers, tyres may leave the road.\n", rep.Seed)
 	for i := range rep.Cases {
 		c := &rep.Cases[i]
 		tm := &c.Time
 		fmt.Fprintf(w, "\nRoad case %q at %g m/s: %g s of road after %.1f s settling, RK4 step %.3f ms, road up to %.3g cycles/m\n",
-			c.Case, in.cases[i].Speed, tm.Duration, tm.Settle, tm.Step*1000, tm.RoadMaxN)
+			c.Case, in.RoadCases[i].Speed, tm.Duration, tm.Settle, tm.Step*1000, tm.RoadMaxN)
 		rows := make([]shownRow, len(c.Rows))
 		for k, r := range c.Rows {
 			rows[k] = showRow(r, c.Frequency.StaticTyreLoad)
@@ -480,17 +481,17 @@ type verifyPeaksJSON struct {
 	HeaveAccelMax     float64    `json:"heave_accel_max_m_per_s2"`
 }
 
-func writeVerifyJSON(w io.Writer, rep *model.VerifyReport, in *verifyInputs, setup *pb.Setup, source string) error {
+func writeVerifyJSON(w io.Writer, rep *model.VerifyReport, in *api.ModelInputs, setup *pb.Setup, source string) error {
 	sb, err := protojson.MarshalOptions{UseProtoNames: true}.Marshal(setup)
 	if err != nil {
 		return err
 	}
-	out := verifyJSON{Source: source, Vehicle: in.vehicle.Name, Setup: sb, Seed: rep.Seed, Sigmas: verifySigmas,
+	out := verifyJSON{Source: source, Vehicle: in.Vehicle.Name, Setup: sb, Seed: rep.Seed, Sigmas: verifySigmas,
 		Caution: strings.Join(strings.Fields(caution), " ")}
 	for i := range rep.Cases {
 		c := &rep.Cases[i]
 		tm := &c.Time
-		cj := verifyCaseJSON{RoadCase: c.Case, Speed: in.cases[i].Speed, Step: tm.Step, Settle: tm.Settle,
+		cj := verifyCaseJSON{RoadCase: c.Case, Speed: in.RoadCases[i].Speed, Step: tm.Step, Settle: tm.Settle,
 			Duration: tm.Duration, Samples: tm.Samples, RoadMaxN: tm.RoadMaxN, Static: c.Frequency.StaticTyreLoad,
 			Differs: []string{}, Warnings: timeWarnings(tm)}
 		shown := make([]shownRow, len(c.Rows))
@@ -524,4 +525,14 @@ func finiteOr0(x float64) float64 {
 		return 0
 	}
 	return x
+}
+
+// setupToModel converts a setup read from path; a bad one is an input
+// error naming the file (exit code 2).
+func setupToModel(s *pb.Setup, path string) (model.Setup, error) {
+	out, err := api.SetupToModel(s, "setup")
+	if err != nil {
+		return out, &inputFileError{path: path, err: err}
+	}
+	return out, nil
 }
