@@ -226,7 +226,7 @@ func effective(t *testing.T, sub string, args []string, env map[string]string, n
 }
 
 // secretValue stands for a variable whose value comes from a Secret.
-const secretValue = "\x00from-a-secret"
+const secretValue = "<from a Secret>"
 
 // checkEnvAndArgs fails t unless every variable in env is one that sub
 // reads (its --help names it) and the binary accepts args and env: it

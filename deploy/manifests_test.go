@@ -183,7 +183,11 @@ func TestManifestMigrationJob(t *testing.T) {
 	m := jobsFound[0]
 	cs, pod := podContainers(t, m)
 	if len(cs) != 1 || cs[0].sub != "migrate" {
-		t.Fatalf("%s: the Job's container must run migrate, runs %v", m.file, cs)
+		var subs []string
+		for _, c := range cs {
+			subs = append(subs, c.sub)
+		}
+		t.Fatalf("%s: the Job must have one container running migrate, has %s", m.file, fmtList(subs))
 	}
 	if s := effective(t, "migrate", cs[0].args, cs[0].env, "database"); s.source != "secret" {
 		t.Errorf("%s: the database comes from %s (%q), want the Secret", m.file, s.source, s.value)
