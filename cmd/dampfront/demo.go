@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	_ "embed"
+	"errors"
 	"fmt"
 	"net"
 	"os"
@@ -35,12 +36,16 @@ Starts a server with an embedded worker on a temporary SQLite file and a
 free port of 127.0.0.1, submits the demo job (testdata/demo-job.yaml: the
 invented Quillon GT on three invented road cases), watches it with a
 progress bar, prints the Pareto front and the damper curves of its
-balanced point, stops the server and removes the temporary files.`)
+balanced point, stops the server and removes the temporary files. While
+it runs, the job page (live progress, the front chart, the solutions and
+their damper curves) is served at the address printed; --serve-page
+keeps it open after the demo, until interrupted.`)
 	keep := fs.Bool("keep", false, "keep the temporary directory with the database and print how to serve it")
 	specPath := fs.String("spec", "", "run this job spec `file` instead of the demo's")
 	workers := fs.Int("eval-workers", 0, "evaluations run at once; 0 means one per CPU")
 	verbose := fs.Bool("verbose", false, "log the server's and the engine's messages on standard error")
 	quiet := fs.Bool("quiet", false, "no progress bar")
+	wf := addDemoWebFlags(fs)
 	if _, err := fs.parse(args, 0, 0); err != nil {
 		return err
 	}
@@ -85,6 +90,7 @@ balanced point, stops the server and removes the temporary files.`)
 		NodeID:            fmt.Sprintf("demo-%d", os.Getpid()),
 		Logger:            log,
 	}
+	wf.configure(&cfg, log)
 	eng, err := openEngine(ctx, cfg, *workers)
 	if err != nil {
 		return err
@@ -94,14 +100,22 @@ balanced point, stops the server and removes the temporary files.`)
 		_ = eng.Close()
 		return err
 	}
-	svc, err := startService(ctx, eng, lis, api.Options{Logger: log}, cfg.StopTimeout, log)
+	svc, err := startService(ctx, eng, lis, api.Options{Logger: log}, cfg.StopTimeout, log, wf.grpcOptions()...)
 	if err != nil {
 		_ = lis.Close()
 		_ = eng.Close()
 		return err
 	}
-	runErr := demo(ctx, e, lis.Addr().String(), spec, *quiet)
-	if err := svc.shutdown(); err != nil && runErr == nil {
+	pg, err := wf.start(eng, api.Options{Logger: log}, nil, log)
+	if err != nil {
+		_ = svc.shutdown()
+		return err
+	}
+	runErr := demo(ctx, e, lis.Addr().String(), spec, *quiet, pg.jobURL)
+	if runErr == nil {
+		pg.linger(ctx, e.stdout, wf.servePage)
+	}
+	if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil && runErr == nil {
 		runErr = err
 	}
 	if runErr != nil {
@@ -115,8 +129,9 @@ balanced point, stops the server and removes the temporary files.`)
 	return nil
 }
 
-// demo is the client side of the demo, over the loopback port.
-func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool) error {
+// demo is the client side of the demo, over the loopback port; pageURL
+// gives the job page of a job ID, or "" without a page.
+func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool, pageURL func(id string) string) error {
 	c, err := dial(addr, time.Minute)
 	if err != nil {
 		return err
@@ -130,6 +145,9 @@ func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool
 		return err
 	}
 	name := resp.GetJob().GetName()
+	if u := pageURL(resp.GetJob().GetJobId()); u != "" {
+		fmt.Fprintf(e.stdout, "Job page: %s\n", u)
+	}
 	if _, err := watchJob(ctx, e, c, name, &watchModes{quiet: quiet, reconnect: 5 * time.Second}); err != nil {
 		return err
 	}

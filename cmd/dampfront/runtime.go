@@ -12,6 +12,8 @@ import (
 	"sync"
 	"time"
 
+	"google.golang.org/grpc"
+
 	"dampfront/api"
 	"dampfront/jobs"
 )
@@ -164,8 +166,9 @@ type service struct {
 }
 
 // startService starts eng (releasing slices left by dead processes of
-// this node) and, with lis, serves the API on it until stop.
-func startService(ctx context.Context, eng *jobs.Engine, lis net.Listener, opt api.Options, stopTimeout time.Duration, log *slog.Logger) (*service, error) {
+// this node) and, with lis, serves the API on it, with the gRPC options
+// grpcOpts, until stop.
+func startService(ctx context.Context, eng *jobs.Engine, lis net.Listener, opt api.Options, stopTimeout time.Duration, log *slog.Logger, grpcOpts ...grpc.ServerOption) (*service, error) {
 	released, err := eng.Start(ctx)
 	if err != nil {
 		return nil, err
@@ -184,7 +187,7 @@ func startService(ctx context.Context, eng *jobs.Engine, lis net.Listener, opt a
 	sctx, cancel := context.WithCancel(context.WithoutCancel(ctx))
 	s.cancel = cancel
 	s.served = make(chan error, 1)
-	go func() { s.served <- srv.Serve(sctx, lis) }()
+	go func() { s.served <- srv.Serve(sctx, lis, grpcOpts...) }()
 	return s, nil
 }
 

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"net"
 	"time"
@@ -29,7 +30,11 @@ within --stop-timeout.
 With --tokens every call but health and reflection needs a bearer token
 of the file (make them with 'dampfront token new'), whose role decides
 what it may do; without, the server listens on a loopback address only,
-unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.`)
+unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.
+
+--http-addr also serves a read-only job page (jobs, progress, fronts,
+damper curves; the same tokens, as a bearer header or a login form's
+cookie) and Prometheus metrics at /metrics, off by default.`)
 	addr := fs.String("addr", envOr(e, "DAMPFRONT_ADDR", defaultAddr), "listen address host:port; port 0 picks a free one ($DAMPFRONT_ADDR)")
 	addrFile := fs.String("addr-file", "", "write the address actually listened on to this `file`")
 	ef, err := addEngineFlags(fs, e, true)
@@ -41,6 +46,7 @@ unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.`)
 		return err
 	}
 	sf := addServerSecurityFlags(fs, e)
+	wf := addWebFlags(fs, e)
 	if _, err := fs.parse(args, 0, 0); err != nil {
 		return err
 	}
@@ -54,8 +60,13 @@ unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.`)
 	if err != nil {
 		return err
 	}
+	if err := wf.check(sec, sf.insecureNoAuth); err != nil {
+		return err
+	}
 	log := ef.logger(e.stderr)
-	eng, err := openEngine(ctx, ef.jobsConfig(log), ef.evalWorkers)
+	cfg := ef.jobsConfig(log)
+	wf.configure(&cfg, log)
+	eng, err := openEngine(ctx, cfg, ef.evalWorkers)
 	if err != nil {
 		return err
 	}
@@ -67,7 +78,7 @@ unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.`)
 	opt := lf.options()
 	opt.Logger = log
 	sec.apply(&opt)
-	svc, err := startService(ctx, eng, lis, opt, ef.stopTimeout, log)
+	svc, err := startService(ctx, eng, lis, opt, ef.stopTimeout, log, wf.grpcOptions()...)
 	if err != nil {
 		_ = lis.Close()
 		_ = eng.Close()
@@ -82,6 +93,11 @@ unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.`)
 	}
 	log.Info("serving", "address", bound, "database", redactURL(ef.database), "backend", eng.Backend(), "workers", ef.workers)
 	sec.logStart(log, bound)
+	pg, err := wf.start(eng, opt, sec.tls, log)
+	if err != nil {
+		_ = svc.shutdown()
+		return err
+	}
 	select {
 	case <-ctx.Done():
 		log.Info("stopping: running jobs checkpoint and are handed back", "timeout", ef.stopTimeout)
@@ -89,7 +105,7 @@ unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.`)
 		svc.served <- err // shutdown reads it again
 		log.Error("serving ended", "error", err)
 	}
-	if err := svc.shutdown(); err != nil {
+	if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil {
 		return err
 	}
 	log.Info("stopped")
