@@ -21,7 +21,8 @@ import (
 // Gv = 4π² Gd0 n0² V per track (see quartercar_test.go), i.e. two-sided
 // intensity q = Gv/2, and W = q [[1, γ], [γ, 1]] for a coherence γ that
 // does not depend on frequency (γ = 1 is CoherenceFull, a constant γ is a
-// one-point CoherenceTable). The rear tyres see the front tracks delayed
+// one-point CoherenceTable placed at 1e-12 cycles/m, far below the grid,
+// since a table rises to full coherence below its first point). The rear tyres see the front tracks delayed
 // by τ = L/V. The delay is handled exactly: the state is the sum of a
 // response to the front inputs and one to the rear inputs, and
 //
@@ -540,7 +541,7 @@ func TestLyapunovCovariance(t *testing.T) {
 			if tc.gamma == 1 {
 				rc.Coherence = Coherence{Kind: CoherenceFull}
 			} else {
-				rc.Coherence = Coherence{Kind: CoherenceTable, N: []float64{1}, Gamma: []float64{tc.gamma}}
+				rc.Coherence = Coherence{Kind: CoherenceTable, N: []float64{1e-12}, Gamma: []float64{tc.gamma}}
 			}
 			grid := fineGrid
 			if v.Corners[FL].TyreEnvelopeLength > 0 {

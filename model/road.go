@@ -78,7 +78,8 @@ type Coherence struct {
 	Kind CoherenceKind
 	// N and Gamma tabulate γ(n) for CoherenceTable: spatial frequency
 	// (cycles/m, increasing) and γ in [-1, 1]; linear in log n between
-	// points, held constant beyond the ends.
+	// points, held beyond the last point, and rising to 1 below the first
+	// (see tableCoherence).
 	N, Gamma []float64
 }
 
@@ -216,14 +217,15 @@ func (rc *RoadCase) Validate() error {
 //	Gd(n) = Gd(n0) (n/n0)^-w   (ISO 8608:1995, eq. for the fitted PSD)
 //
 // or the measured table interpolated linearly in log n - log Gd and
-// extended beyond its ends with the slope of its end segments.
+// extended beyond its ends by a power law fitted to its outer points (see
+// tableSpectrum).
 func (rc *RoadCase) SpatialPSD(n float64) (left, right float64) {
 	if m := rc.Measured; m != nil {
-		left = logLogInterp(m.N, m.Left, n)
+		left = tableSpectrum(m.N, m.Left, n)
 		if m.Right == nil {
 			return left, left
 		}
-		return left, logLogInterp(m.N, m.Right, n)
+		return left, tableSpectrum(m.N, m.Right, n)
 	}
 	g := rc.gd0() * math.Pow(n/ISO8608N0, -rc.waviness())
 	return g, g
@@ -235,10 +237,10 @@ func (rc *RoadCase) CoherenceAt(n, track float64) float64 {
 	case CoherenceFull:
 		return 1
 	case CoherenceTable:
-		return logLinInterp(rc.Coherence.N, rc.Coherence.Gamma, n)
+		return tableCoherence(rc.Coherence.N, rc.Coherence.Gamma, n)
 	case CoherenceAuto:
 		if rc.Measured != nil && rc.Measured.Coherence != nil {
-			return logLinInterp(rc.Measured.N, rc.Measured.Coherence, n)
+			return tableCoherence(rc.Measured.N, rc.Measured.Coherence, n)
 		}
 	}
 	return IsotropicCoherence(n, track, rc.waviness())
@@ -328,4 +330,68 @@ func segment(xs []float64, x float64) int {
 		i = len(xs) - 2
 	}
 	return i
+}
+
+// tableSpectrum interpolates a tabulated PSD linearly in log n - log G
+// and extends it beyond each end by G ∝ n^-w, with w fitted by least
+// squares in log-log to the outer points (up to 5 or a third of the
+// table) and held within [1, 4], the range of road wavinesses (ISO 8608
+// uses 2; measured roads lie roughly between 1.5 and 3.5). A raw end
+// segment of a Welch estimate is too noisy to extrapolate by itself, and
+// a slope outside that range would make the tails of the output spectra
+// diverge.
+func tableSpectrum(ns, gs []float64, n float64) float64 {
+	last := len(ns) - 1
+	switch {
+	case n < ns[0]:
+		return gs[0] * math.Pow(n/ns[0], -endWaviness(ns, gs, false))
+	case n > ns[last]:
+		return gs[last] * math.Pow(n/ns[last], -endWaviness(ns, gs, true))
+	}
+	return logLogInterp(ns, gs, n)
+}
+
+// endWaviness fits the exponent w of G ∝ n^-w to the outer points at the
+// top (or bottom) of a table, clamped to [1, 4].
+func endWaviness(ns, gs []float64, top bool) float64 {
+	k := len(ns) / 3
+	if k > 5 {
+		k = 5
+	}
+	if k < 2 {
+		k = 2
+	}
+	lo := 0
+	if top {
+		lo = len(ns) - k
+	}
+	var sx, sy, sxx, sxy float64
+	for i := lo; i < lo+k; i++ {
+		x, y := math.Log(ns[i]), math.Log(gs[i])
+		sx, sy, sxx, sxy = sx+x, sy+y, sxx+x*x, sxy+x*y
+	}
+	fk := float64(k)
+	w := -(fk*sxy - sx*sy) / (fk*sxx - sx*sx)
+	if !(w >= 1) {
+		w = 1
+	}
+	if w > 4 {
+		w = 4
+	}
+	return w
+}
+
+// tableCoherence interpolates a coherence table linearly in log n, holds
+// its last value beyond the top, and below the first point n0 rises to
+// full coherence as γ(n) = 1 - (1 - γ0)(n/n0)²: at wavelengths much
+// longer than the track width both tracks see the same road, as every
+// coherence model does (Dodds & Robson 1973: γ -> 1 as n B -> 0), and a
+// coherence held below 1 down to n = 0 would give the road an unbounded
+// twist.
+func tableCoherence(ns, gam []float64, n float64) float64 {
+	if n < ns[0] {
+		r := n / ns[0]
+		return 1 - (1-gam[0])*r*r
+	}
+	return logLinInterp(ns, gam, n)
 }
