@@ -1,0 +1,342 @@
+// Package pyclient holds the tests of the Python client script
+// dampfront_front_csv.py: they run it with Debian's /usr/bin/python3
+// against a server on 127.0.0.1.
+package pyclient
+
+import (
+	"bytes"
+	"context"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io/fs"
+	"log/slog"
+	"math/rand/v2"
+	"net"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"google.golang.org/grpc"
+	"google.golang.org/grpc/credentials/insecure"
+	"google.golang.org/grpc/metadata"
+	"google.golang.org/protobuf/encoding/protojson"
+	"google.golang.org/protobuf/proto"
+	"sigs.k8s.io/yaml"
+
+	"dampfront/api"
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
+)
+
+// python is Debian's interpreter, which has Debian's python3-grpcio and
+// python3-protobuf; a python3 first on PATH (pyenv, a virtualenv) may not.
+const python = "/usr/bin/python3"
+
+// testTimeout bounds each wait: a job of a few generations, one run of
+// the script.
+const testTimeout = 45 * time.Second
+
+// needPython skips the test without Debian's python3 and its grpc and
+// protobuf modules.
+func needPython(t *testing.T) {
+	t.Helper()
+	if _, err := os.Stat(python); err != nil {
+		t.Skipf("no %s (Debian: apt-get install python3 python3-grpcio python3-protobuf)", python)
+	}
+	if out, err := exec.Command(python, "-c", "import grpc, google.protobuf").CombinedOutput(); err != nil {
+		t.Skipf("%s has no grpc or protobuf module (Debian: apt-get install python3-grpcio python3-protobuf): %s", python, bytes.TrimSpace(out))
+	}
+}
+
+func testContext(t *testing.T) context.Context {
+	t.Helper()
+	ctx, cancel := context.WithTimeout(context.Background(), testTimeout)
+	t.Cleanup(cancel)
+	return ctx
+}
+
+// serve starts an engine on a new SQLite file and the service over it on
+// a free port of 127.0.0.1; it returns the address and a client.
+func serve(t *testing.T, opt api.Options) (string, pb.DampfrontServiceClient) {
+	t.Helper()
+	quiet := slog.New(slog.DiscardHandler)
+	ctx := context.Background()
+	e, err := jobs.Open(ctx, jobs.Config{
+		DatabaseURL: filepath.Join(t.TempDir(), "jobs.db"), Workers: 1,
+		ProgressInterval: 50 * time.Millisecond, FetchPollInterval: 20 * time.Millisecond,
+		StopTimeout: 10 * time.Second, Logger: quiet,
+	}, &api.Opener{Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := e.Start(ctx); err != nil {
+		t.Fatal(err)
+	}
+	opt.Logger = quiet
+	srv, err := api.NewServer(e, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lis, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		t.Fatal(err)
+	}
+	sctx, cancel := context.WithCancel(ctx)
+	done := make(chan error, 1)
+	go func() { done <- srv.Serve(sctx, lis) }()
+	conn, err := grpc.NewClient(lis.Addr().String(), grpc.WithTransportCredentials(insecure.NewCredentials()))
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() {
+		_ = conn.Close()
+		cancel()
+		if err := <-done; err != nil {
+			t.Errorf("Serve: %v", err)
+		}
+		sctx, scancel := context.WithTimeout(context.Background(), testTimeout)
+		defer scancel()
+		if err := e.Stop(sctx); err != nil {
+			t.Errorf("engine Stop: %v", err)
+		}
+		_ = e.Close()
+	})
+	return lis.Addr().String(), pb.NewDampfrontServiceClient(conn)
+}
+
+// demoSpec is testdata/demo-job.yaml (the invented Quillon GT on three
+// invented road cases) cut to a small population and a few generations,
+// with the labels given.
+func demoSpec(t *testing.T, labels map[string]string) *pb.JobSpec {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "demo-job.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	j, err := yaml.YAMLToJSON(b)
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec := &pb.JobSpec{}
+	if err := protojson.Unmarshal(j, spec); err != nil {
+		t.Fatal(err)
+	}
+	spec.Search.PopulationSize, spec.Search.Generations, spec.Search.Seed = 12, 3, proto.Uint64(5)
+	spec.Labels = labels
+	return spec
+}
+
+// runJob submits spec and waits until it has finished.
+func runJob(t *testing.T, ctx context.Context, c pb.DampfrontServiceClient, spec *pb.JobSpec) *pb.Job {
+	t.Helper()
+	res, err := c.SubmitJob(ctx, &pb.SubmitJobRequest{Spec: spec})
+	if err != nil {
+		t.Fatalf("SubmitJob: %v", err)
+	}
+	for {
+		g, err := c.GetJob(ctx, &pb.GetJobRequest{Name: res.GetJob().GetName(), View: pb.JobView_JOB_VIEW_BASIC})
+		if err != nil {
+			t.Fatalf("GetJob: %v", err)
+		}
+		if s := g.GetJob().GetState(); s != pb.JobState_JOB_STATE_QUEUED && s != pb.JobState_JOB_STATE_RUNNING {
+			return g.GetJob()
+		}
+		select {
+		case <-ctx.Done():
+			t.Fatalf("job still %v after %v", g.GetJob().GetState(), testTimeout)
+		case <-time.After(20 * time.Millisecond):
+		}
+	}
+}
+
+// script runs dampfront_front_csv.py with args and extra environment
+// "K=V" pairs; it returns the exit code and standard error.
+func script(t *testing.T, env []string, args ...string) (int, string) {
+	t.Helper()
+	ctx := testContext(t)
+	cmd := exec.CommandContext(ctx, python, append([]string{"dampfront_front_csv.py"}, args...)...)
+	for _, kv := range os.Environ() {
+		if !strings.HasPrefix(kv, "DAMPFRONT_") && !strings.HasPrefix(kv, "PYTHON") {
+			cmd.Env = append(cmd.Env, kv)
+		}
+	}
+	// No __pycache__ in the source tree.
+	cmd.Env = append(append(cmd.Env, "PYTHONDONTWRITEBYTECODE=1"), env...)
+	var stderr bytes.Buffer
+	cmd.Stderr = &stderr
+	err := cmd.Run()
+	var ee *exec.ExitError
+	switch {
+	case err == nil:
+		return 0, stderr.String()
+	case errors.As(err, &ee) && ctx.Err() == nil:
+		return ee.ExitCode(), stderr.String()
+	}
+	t.Fatalf("python3 dampfront_front_csv.py %s: %v\n%s", strings.Join(args, " "), err, stderr.String())
+	return 0, ""
+}
+
+// wholeFront reads a job's front through the Go client.
+func wholeFront(t *testing.T, ctx context.Context, c pb.DampfrontServiceClient, name string) *pb.Front {
+	t.Helper()
+	req := &pb.GetFrontRequest{Job: name, PageSize: 7, View: pb.SolutionView_SOLUTION_VIEW_BASIC}
+	var front *pb.Front
+	for {
+		res, err := c.GetFront(ctx, req)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if front == nil {
+			front = res.GetFront()
+		} else {
+			front.Solutions = append(front.Solutions, res.GetFront().GetSolutions()...)
+		}
+		if req.PageToken = res.GetNextPageToken(); req.PageToken == "" {
+			return front
+		}
+	}
+}
+
+// TestFrontCSV runs the script against a server with two finished jobs
+// of different labels: it picks the one with the label and writes its
+// front, every float the same double the Go client reads (Python's
+// repr() is the shortest text that reads back to the same double, as is
+// strconv's 'g' with precision -1).
+func TestFrontCSV(t *testing.T) {
+	t.Parallel()
+	needPython(t)
+	ctx := testContext(t)
+	addr, c := serve(t, api.Options{})
+	want := runJob(t, ctx, c, demoSpec(t, map[string]string{"suite": "python", "car": "quillon-gt"}))
+	other := runJob(t, ctx, c, demoSpec(t, map[string]string{"suite": "elsewhere"}))
+	if want.GetState() != pb.JobState_JOB_STATE_SUCCEEDED || other.GetState() != pb.JobState_JOB_STATE_SUCCEEDED {
+		t.Fatalf("jobs ended %v and %v", want.GetState(), other.GetState())
+	}
+	front := wholeFront(t, ctx, c, want.GetName())
+
+	out := filepath.Join(t.TempDir(), "front.csv")
+	code, stderr := script(t, nil, "--addr", addr, "--label", "suite=python", "-o", out)
+	if code != 0 {
+		t.Fatalf("exit code %d:\n%s", code, stderr)
+	}
+	if !strings.Contains(stderr, want.GetName()) || strings.Contains(stderr, other.GetName()) {
+		t.Errorf("the script listed the wrong jobs:\n%s", stderr)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	genes := front.GetGeneNames()
+	wantHeader := append(append([]string{"index"}, genes...), "grip_rel", "platform_m")
+	for i := range front.GetConstraints() {
+		wantHeader = append(wantHeader, fmt.Sprintf("violation_%d", i))
+	}
+	wantHeader = append(wantHeader, "feasible")
+	if len(rows) == 0 || strings.Join(rows[0], ",") != strings.Join(wantHeader, ",") {
+		t.Fatalf("header %v, want %v", rows[0], wantHeader)
+	}
+	if len(rows)-1 != len(front.GetSolutions()) || len(rows) < 2 {
+		t.Fatalf("%d CSV rows for %d solutions", len(rows)-1, len(front.GetSolutions()))
+	}
+	for i, s := range front.GetSolutions() {
+		row := rows[i+1]
+		if row[0] != strconv.Itoa(int(s.GetIndex())) {
+			t.Errorf("row %d has index %s, want %d", i, row[0], s.GetIndex())
+		}
+		values := append(append(append([]float64(nil), s.GetGenes()...), s.GetObjectives()...), s.GetViolations()...)
+		for k, v := range values {
+			got, err := strconv.ParseFloat(row[1+k], 64)
+			if err != nil || got != v {
+				t.Errorf("row %d column %s: %q, want %v", i, wantHeader[1+k], row[1+k], v)
+			}
+		}
+		if row[len(row)-1] != strconv.FormatBool(s.GetFeasible()) {
+			t.Errorf("row %d feasible %q, want %v", i, row[len(row)-1], s.GetFeasible())
+		}
+	}
+
+	code, stderr = script(t, nil, "--addr", addr, "--label", "suite=none")
+	if code != 1 || !strings.Contains(stderr, "no finished job") {
+		t.Errorf("no matching job: exit code %d, want 1:\n%s", code, stderr)
+	}
+}
+
+// TestFrontCSVToken runs the script against a server that asks for
+// tokens: $DAMPFRONT_TOKEN goes as the bearer token; without it the
+// server's Unauthenticated ends the script with exit code 1.
+func TestFrontCSVToken(t *testing.T) {
+	t.Parallel()
+	needPython(t)
+	// A seeded source stands in for crypto/rand in this test only.
+	token, err := api.NewToken(rand.NewChaCha8([32]byte{3}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	tokens, err := api.ParseTokens([]byte(fmt.Sprintf("- {name: ci, role: submitter, sha256: %q}\n", api.HashToken(token))))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx := testContext(t)
+	addr, c := serve(t, api.Options{Tokens: tokens})
+	authed := metadata.AppendToOutgoingContext(ctx, "authorization", "Bearer "+token)
+	job := runJob(t, authed, c, demoSpec(t, map[string]string{"suite": "python"}))
+	if job.GetState() != pb.JobState_JOB_STATE_SUCCEEDED {
+		t.Fatalf("job ended %v", job.GetState())
+	}
+	code, stderr := script(t, []string{"DAMPFRONT_TOKEN=" + token}, "--addr", addr, "--label", "suite=python", "-o", filepath.Join(t.TempDir(), "f.csv"))
+	if code != 0 {
+		t.Errorf("with the token: exit code %d:\n%s", code, stderr)
+	}
+	code, stderr = script(t, nil, "--addr", addr, "--label", "suite=python")
+	if code != 1 || !strings.Contains(stderr, "UNAUTHENTICATED") {
+		t.Errorf("without the token: exit code %d, want 1 with UNAUTHENTICATED:\n%s", code, stderr)
+	}
+}
+
+// TestGeneratedCodeIsCurrent regenerates the Python message code into a
+// temporary directory with generate.sh and fails when it differs from the
+// committed dampfront/v1/, file by file and byte for byte.
+func TestGeneratedCodeIsCurrent(t *testing.T) {
+	t.Parallel()
+	out, err := exec.Command("protoc", "--version").Output()
+	if err != nil || strings.TrimSpace(string(out)) != "libprotoc 3.21.12" {
+		t.Skipf("protoc 3.21.12 (Debian 12: apt-get install protobuf-compiler) is needed, have %q", strings.TrimSpace(string(out)))
+	}
+	dir := t.TempDir()
+	if b, err := exec.Command("./generate.sh", "--out", dir).CombinedOutput(); err != nil {
+		t.Fatalf("generate.sh: %v\n%s", err, b)
+	}
+	committed := os.DirFS(filepath.Join("dampfront", "v1"))
+	fresh := os.DirFS(filepath.Join(dir, "dampfront", "v1"))
+	names := map[string]bool{}
+	for _, f := range []fs.FS{committed, fresh} {
+		entries, err := fs.ReadDir(f, ".")
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, e := range entries {
+			names[e.Name()] = true
+		}
+	}
+	for name := range names {
+		a, errA := fs.ReadFile(committed, name)
+		b, errB := fs.ReadFile(fresh, name)
+		switch {
+		case errA != nil:
+			t.Errorf("%s is generated but not committed", name)
+		case errB != nil:
+			t.Errorf("%s is committed but no longer generated", name)
+		case !bytes.Equal(a, b):
+			t.Errorf("%s differs from what generate.sh makes; run api/clients/python/generate.sh", name)
+		}
+	}
+}
