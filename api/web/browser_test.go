@@ -167,11 +167,34 @@ func TestBrowserJobPage(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	path := filepath.Join(artifactDir(t), "job-page.png")
+	artifacts := artifactDir(t)
+	path := filepath.Join(artifacts, "job-page.png")
 	if err := os.WriteFile(path, png, 0o644); err != nil {
 		t.Fatal(err)
 	}
 	t.Logf("screenshot of the job page: %s", path)
+
+	// The jobs list shows the finished job with its state and labels.
+	if err := chromedp.Do(bctx, chromedp.Navigate(b.page.URL+"/"), chromedp.WaitVisible(chromedp.CSS("table.jobs"))); err != nil {
+		t.Fatal(err)
+	}
+	list, err := chromedp.Run(bctx, chromedp.Text(chromedp.CSS("table.jobs tbody")))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{job.GetJobId(), "succeeded", "car=quillon-gt"} {
+		if !strings.Contains(list, want) {
+			t.Errorf("the jobs list lacks %q:\n%s", want, list)
+		}
+	}
+	if png, err = chromedp.Run(bctx, chromedp.FullScreenshot(100)); err != nil {
+		t.Fatal(err)
+	}
+	path = filepath.Join(artifacts, "jobs-list.png")
+	if err := os.WriteFile(path, png, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	t.Logf("screenshot of the jobs list: %s", path)
 	if err := bctx.Err(); errors.Is(err, context.DeadlineExceeded) {
 		t.Fatalf("browser test ran past %v", browserTimeout)
 	}
