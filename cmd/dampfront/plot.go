@@ -200,13 +200,12 @@ func plotFront(ctx context.Context, c *client, job string, opt plot.FrontOptions
 	if err != nil {
 		return nil, err
 	}
-	if name := fd.job.GetDisplayName(); name != "" {
-		opt.Title = fmt.Sprintf("Pareto front, %s (%s)", name, job)
-	}
+	opt.Title = "Pareto front, " + jobTitle(fd.job)
 	fig, err := plot.Front(fd.front, opt)
 	if err != nil {
 		return nil, err
 	}
+	fig.Notes = append(fig.Notes, jobNote(fd.job))
 	return page.apply(fig), nil
 }
 
@@ -215,6 +214,7 @@ func plotFront(ctx context.Context, c *client, job string, opt plot.FrontOptions
 func plotCurves(ctx context.Context, c *client, job string, solution int, page plotPage) (*plot.Figure, error) {
 	req := &pb.GetDamperCurvesRequest{Job: job}
 	what := fmt.Sprintf("solution %d", solution)
+	var j *pb.Job
 	if solution < 0 {
 		fd, err := fetchFront(ctx, c, job, pb.SolutionView_SOLUTION_VIEW_BASIC)
 		if err != nil {
@@ -225,7 +225,8 @@ func plotCurves(ctx context.Context, c *client, job string, solution int, page p
 			return nil, &exitError{code: exitFailure, msg: "the front of " + job + " is empty: no balanced point"}
 		}
 		solution = int(fd.front.GetSolutions()[b].GetIndex())
-		what = fmt.Sprintf("balanced point, solution %d", solution)
+		what = fmt.Sprintf("balanced point (solution %d)", solution)
+		j = fd.job
 	}
 	req.Target = &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: int32(solution)}
 	cctx, cancel := c.call(ctx)
@@ -234,12 +235,14 @@ func plotCurves(ctx context.Context, c *client, job string, solution int, page p
 	if err != nil {
 		return nil, err
 	}
-	fig, err := plot.DamperCurves(resp.GetCurves(), plot.CurveOptions{
-		Title: fmt.Sprintf("Damper curves at the component, %s of %s", what, job)})
+	if j == nil {
+		j = &pb.Job{Name: job}
+	}
+	fig, err := plot.DamperCurves(resp.GetCurves(), plot.CurveOptions{Title: "Damper curves at the component, " + what})
 	if err != nil {
 		return nil, err
 	}
-	fig.Notes = append(fig.Notes, "Setup: "+setupText(resp.GetSetup())+".")
+	fig.Notes = append(fig.Notes, "Setup: "+setupText(resp.GetSetup())+".", jobNote(j))
 	return page.apply(fig), nil
 }
 
@@ -254,7 +257,12 @@ func plotFromJob(ctx context.Context, c *client, job, chart string, page plotPag
 	}
 	j := jr.GetJob()
 	if chart == "road" {
-		return plotRoad(j.GetSpec(), page)
+		fig, err := plotRoad(j.GetSpec(), page)
+		if err != nil {
+			return nil, err
+		}
+		fig.Notes = append(fig.Notes, jobNote(j))
+		return fig, nil
 	}
 	if len(j.GetHistory()) == 0 {
 		return nil, &exitError{code: exitFailure, msg: fmt.Sprintf("%s has no progress to draw yet (%s)", job, stateName(j.GetState()))}
@@ -264,6 +272,7 @@ func plotFromJob(ctx context.Context, c *client, job, chart string, page plotPag
 	if err != nil {
 		return nil, err
 	}
+	fig.Notes = append(fig.Notes, jobNote(j))
 	return page.apply(fig), nil
 }
 
@@ -336,12 +345,22 @@ func readSpec(e *env, path string) (*pb.JobSpec, error) {
 	return spec, nil
 }
 
-// jobTitle is a job's display name with its resource name.
+// jobTitle names a job in a chart's title: its display name, or its
+// resource name when it has none.
 func jobTitle(j *pb.Job) string {
 	if j.GetDisplayName() == "" {
 		return j.GetName()
 	}
-	return fmt.Sprintf("%s (%s)", j.GetDisplayName(), j.GetName())
+	return j.GetDisplayName()
+}
+
+// jobNote is the footnote naming the job a chart comes from: "Job
+// jobs/01a2..., seed 7." (the seed makes the search reproducible).
+func jobNote(j *pb.Job) string {
+	if j.GetSeed() == 0 {
+		return "Job " + j.GetName() + "."
+	}
+	return fmt.Sprintf("Job %s, seed %d.", j.GetName(), j.GetSeed())
 }
 
 // plotFlags are the flags that the chart options' field paths stand for.

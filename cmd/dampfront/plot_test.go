@@ -161,7 +161,7 @@ func TestPlotServer(t *testing.T) {
 	at := func(name string) string { return filepath.Join(dir, name) }
 
 	mustRun(t, exitOK, nil, s.client("plot", "front", id, "--svg", at("front.svg"), "--png", at("front.png"))...)
-	checkSVG(t, at("front.svg"), "Pareto front, Quillon GT, demo tracks (jobs/"+id+")",
+	checkSVG(t, at("front.svg"), "Pareto front, Quillon GT, demo tracks", "Job jobs/"+id+", seed 7.",
 		"Grip: tyre load variation (% of static load)", "Platform: ride-height variation (mm)", "balanced, #")
 	checkPNG(t, at("front.png"), 170, 110, plot.DefaultDPI) // the front chart's default page, 17 cm × 11 cm
 
@@ -169,7 +169,7 @@ func TestPlotServer(t *testing.T) {
 	checkSVG(t, at("front-marked.svg"), "Rear bump ratio", "marked", "#0", "#1")
 
 	mustRun(t, exitOK, nil, s.client("plot", "curves", id, "--svg", at("curves.svg"))...)
-	checkSVG(t, at("curves.svg"), "Damper curves at the component, balanced point, solution", "Front dampers", "Rear dampers",
+	checkSVG(t, at("curves.svg"), "Damper curves at the component, balanced point (solution", "Job jobs/"+id+", seed 7.", "Front dampers", "Rear dampers",
 		"adjuster range, softest to stiffest", "Setup: front bump")
 	mustRun(t, exitOK, nil, s.client("plot", "curves", id, "--solution", "0", "--png", at("curves.png"), "--width", "240", "--height", "110", "--dpi", "96")...)
 	checkPNG(t, at("curves.png"), 240, 110, 96)
