@@ -257,3 +257,38 @@ func checkEnvAndArgs(t *testing.T, where, sub string, args []string, env map[str
 }
 
 func sortedKeys[V any](m map[string]V) []string { return slices.Sorted(maps.Keys(m)) }
+
+// hasFlag reports whether args set the boolean flag name.
+func hasFlag(args []string, name string) bool {
+	for _, a := range args {
+		if a == "-"+name || a == "--"+name || a == "-"+name+"=true" || a == "--"+name+"=true" {
+			return true
+		}
+	}
+	return false
+}
+
+// checkServeAuth applies serve's rule (serve --help; cmd/dampfront/auth.go)
+// to a serve container listening on the non-loopback addr: it must have
+// a tokens file, or say --insecure-no-auth, which production forbids. It
+// returns the tokens file's path, or "".
+func checkServeAuth(t *testing.T, where string, args []string, env map[string]string, production bool) string {
+	t.Helper()
+	u := helpOf(t, "serve")
+	for _, f := range []string{"tokens", "insecure-no-auth"} {
+		if _, ok := u.flags[f]; !ok {
+			t.Fatalf("serve has no --%s; update this check to the binary's authentication", f)
+		}
+	}
+	tokens := effective(t, "serve", args, env, "tokens")
+	insecure := hasFlag(args, "insecure-no-auth")
+	switch {
+	case tokens.value != "" && insecure:
+		t.Errorf("%s: both a tokens file and --insecure-no-auth, which serve refuses", where)
+	case tokens.value == "" && !insecure:
+		t.Errorf("%s: no tokens file and no --insecure-no-auth: serve refuses a non-loopback address so", where)
+	case production && tokens.value == "":
+		t.Errorf("%s: serves without authentication (--insecure-no-auth)", where)
+	}
+	return tokens.value
+}

@@ -161,6 +161,7 @@ func TestComposeAPIPortAndHealthCheck(t *testing.T) {
 	addr := effective(t, "serve", a.args, a.env, "addr")
 	reachableHost(t, where, addr.value)
 	port := portOf(t, where, addr.value)
+	checkServeAuth(t, where, a.args, a.env, false)
 	ports := strings_(t, where, list(t, where, a.raw, "ports"))
 	if len(ports) != 1 {
 		t.Fatalf("%s: ports %v, want one", where, ports)

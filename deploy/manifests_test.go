@@ -313,6 +313,75 @@ func TestManifestAPIPortsAndProbes(t *testing.T) {
 	}
 }
 
+// The API authenticates with the tokens file of the Secret, mounted where
+// the container's --tokens (DAMPFRONT_TOKENS_FILE) points.
+func TestManifestAPIAuthentication(t *testing.T) {
+	t.Parallel()
+	ms := readManifests(t)
+	apiDep, _ := deployments(t, ms)
+	c := mustContainers(t, apiDep)[0]
+	path := checkServeAuth(t, c.where, c.args, c.env, true)
+	if path == "" {
+		return
+	}
+	if secretFile(t, ms, apiDep, c, path) == "" {
+		t.Errorf("%s: the tokens file %s is empty in the Secret", c.where, path)
+	}
+}
+
+// secretFile returns the content of the file at path in container c of
+// m: the Secret key behind the secret volume mounted at path's
+// directory. It fails t when there is none.
+func secretFile(t *testing.T, ms []manifest, m manifest, c container, path string) string {
+	t.Helper()
+	dir, base := filepath.Split(path)
+	dir = strings.TrimSuffix(dir, "/")
+	var volume string
+	if mounts, ok := c.raw["volumeMounts"].([]any); ok {
+		for _, v := range mounts {
+			vm := v.(obj)
+			if str(t, c.where, vm, "mountPath") == dir {
+				volume = str(t, c.where, vm, "name")
+				if vm["readOnly"] != true {
+					t.Errorf("%s: the mount of %s is not readOnly", c.where, dir)
+				}
+			}
+		}
+	}
+	if volume == "" {
+		t.Fatalf("%s: nothing is mounted at %s, the directory of %s", c.where, dir, path)
+	}
+	pod := object(t, m.file, m.obj, "spec", "template", "spec")
+	for _, v := range list(t, m.file, pod, "volumes") {
+		vo := v.(obj)
+		if str(t, m.file, vo, "name") != volume {
+			continue
+		}
+		name := str(t, m.file, vo, "secret", "secretName")
+		key := base
+		if items, ok := at(vo, "secret", "items"); ok {
+			key = ""
+			for _, it := range items.([]any) {
+				if str(t, m.file, it.(obj), "path") == base {
+					key = str(t, m.file, it.(obj), "key")
+				}
+			}
+		}
+		for _, s := range byKind(t, ms, "Secret") {
+			if s.name(t) != name {
+				continue
+			}
+			if v, ok := at(s.obj, "stringData", key); ok {
+				return v.(string)
+			}
+			t.Fatalf("%s: Secret %q has no stringData key %q for %s", m.file, name, key, path)
+		}
+		t.Fatalf("%s: volume %q names Secret %q, which is not among the manifests", m.file, volume, name)
+	}
+	t.Fatalf("%s: no volume %q", m.file, volume)
+	return ""
+}
+
 // A worker serves no gRPC, so it must not be probed on a port; it is
 // sized by replicas and by the jobs and evaluations each runs at once.
 func TestManifestWorkers(t *testing.T) {

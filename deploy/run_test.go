@@ -13,8 +13,12 @@ import (
 	"time"
 
 	"google.golang.org/grpc"
+	"google.golang.org/grpc/codes"
 	"google.golang.org/grpc/credentials/insecure"
 	healthpb "google.golang.org/grpc/health/grpc_health_v1"
+	"google.golang.org/grpc/status"
+
+	pb "dampfront/api/gen/dampfront/v1"
 )
 
 // The containers of the manifests and the compose file, run for real as
@@ -38,6 +42,7 @@ type runCase struct {
 	args     []string
 	env      map[string]string
 	services []string // health service names probed (serve only)
+	tokens   string   // the tokens file's content, when serve has one
 }
 
 func runCases(t *testing.T) []runCase {
@@ -48,6 +53,11 @@ func runCases(t *testing.T) []runCase {
 		for _, m := range byKind(t, ms, kind) {
 			for _, c := range mustContainers(t, m) {
 				rc := runCase{where: c.where, sub: c.sub, args: c.args, env: c.env}
+				if c.sub == "serve" {
+					if path := effective(t, "serve", c.args, c.env, "tokens").value; path != "" {
+						rc.tokens = secretFile(t, ms, m, c, path)
+					}
+				}
 				for _, probe := range []string{"readinessProbe", "livenessProbe"} {
 					if g, ok := at(c.raw, probe, "grpc"); ok {
 						svc, _ := g.(obj)["service"].(string)
@@ -86,6 +96,13 @@ func TestContainersRunOnLoopback(t *testing.T) {
 			addrFile := filepath.Join(dir, "addr")
 			if rc.sub == "serve" {
 				args = append(args, "--addr=127.0.0.1:0", "--addr-file="+addrFile)
+				if rc.tokens != "" {
+					tokensFile := filepath.Join(dir, "tokens.yaml")
+					if err := os.WriteFile(tokensFile, []byte(rc.tokens), 0o600); err != nil {
+						t.Fatal(err)
+					}
+					args = append(args, "--tokens="+tokensFile)
+				}
 			}
 			cmd := exec.Command(bin, args...)
 			cmd.Env = baseEnv(t)
@@ -117,7 +134,7 @@ func TestContainersRunOnLoopback(t *testing.T) {
 				return
 			case "serve":
 				addr := waitFile(t, addrFile, done, &out)
-				checkHealth(t, addr, rc.services)
+				checkHealth(t, addr, rc.services, rc.tokens != "")
 			case "worker":
 				waitOutput(t, "working", done, &out)
 			default:
@@ -131,9 +148,12 @@ func TestContainersRunOnLoopback(t *testing.T) {
 	}
 }
 
-// checkHealth asks the gRPC health service at addr for each service name
-// ("" is the server as a whole) and fails t unless each is SERVING.
-func checkHealth(t *testing.T, addr string, services []string) {
+// checkHealth asks the gRPC health service at addr, without a token as
+// the kubelet and grpc-health-probe do, for each service name ("" is the
+// server as a whole) and fails t unless each is SERVING. It also lists
+// jobs without a token, which must be refused (Unauthenticated) when
+// the server has tokens and served otherwise.
+func checkHealth(t *testing.T, addr string, services []string, auth bool) {
 	t.Helper()
 	if len(services) == 0 {
 		t.Fatal("the server is probed for no health service")
@@ -155,6 +175,13 @@ func checkHealth(t *testing.T, addr string, services []string) {
 		if resp.GetStatus() != healthpb.HealthCheckResponse_SERVING {
 			t.Errorf("health of %q: %v, want SERVING", svc, resp.GetStatus())
 		}
+	}
+	_, err = pb.NewDampfrontServiceClient(conn).ListJobs(ctx, &pb.ListJobsRequest{})
+	switch code := status.Code(err); {
+	case auth && code != codes.Unauthenticated:
+		t.Errorf("ListJobs without a token on a server with tokens: %v, want Unauthenticated", err)
+	case !auth && err != nil:
+		t.Errorf("ListJobs on a server without tokens: %v", err)
 	}
 }
 
