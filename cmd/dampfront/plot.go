@@ -154,21 +154,28 @@ The page is --width by --height in mm (0: the chart's own size), PNGs at
 		return figureError(err)
 	}
 	fig.DPI = *dpi
-	for _, out := range []struct {
+	// Both formats are rendered before either file is written, so that a
+	// page the PNG refuses leaves no SVG behind either.
+	outs := []struct {
 		path   string
 		format plot.Format
-	}{{*svgPath, plot.SVG}, {*pngPath, plot.PNG}} {
-		if out.path == "" {
+		b      bytes.Buffer
+	}{{path: *svgPath, format: plot.SVG}, {path: *pngPath, format: plot.PNG}}
+	for i := range outs {
+		if outs[i].path != "" {
+			if err := fig.Write(&outs[i].b, outs[i].format); err != nil {
+				return figureError(err)
+			}
+		}
+	}
+	for i := range outs {
+		if outs[i].path == "" {
 			continue
 		}
-		var b bytes.Buffer
-		if err := fig.Write(&b, out.format); err != nil {
-			return figureError(err)
-		}
-		if err := os.WriteFile(out.path, b.Bytes(), 0o644); err != nil {
+		if err := os.WriteFile(outs[i].path, outs[i].b.Bytes(), 0o644); err != nil {
 			return err
 		}
-		fmt.Fprintf(e.stdout, "Wrote %s (%s chart, %s).\n", out.path, chart, strings.ToUpper(string(out.format)))
+		fmt.Fprintf(e.stdout, "Wrote %s (%s chart, %s).\n", outs[i].path, chart, strings.ToUpper(string(outs[i].format)))
 	}
 	return nil
 }

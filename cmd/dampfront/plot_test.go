@@ -134,7 +134,7 @@ func TestPlotUsage(t *testing.T) {
 		{"spectra without setup", []string{"plot", "spectra", "--spec", spec, "--svg", out}, "needs --spec FILE and --setup FILE"},
 		{"case beyond the spec", []string{"plot", "spectra", "--spec", spec, "--setup", setup, "--case", "3", "--svg", out}, "--case 3: the spec has 3 road cases (0 to 2)"},
 		{"page too narrow", []string{"plot", "spectra", "--spec", spec, "--setup", setup, "--width", "50", "--svg", out}, "--width: must be 80 to 1000 mm, got 50.0 mm"},
-		{"dpi too high", []string{"plot", "road", "--spec", spec, "--dpi", "2000", "--png", out}, "--dpi: must be 24 to 600, got 2000"},
+		{"dpi too high", []string{"plot", "road", "--spec", spec, "--dpi", "2000", "--png", out + ".png", "--svg", out}, "--dpi: must be 24 to 600, got 2000"},
 		{"bad spec", []string{"plot", "road", "--spec", testdataPath("candidate-setup.yaml"), "--svg", out}, "candidate-setup.yaml"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
