@@ -108,6 +108,9 @@ func New(client Client, opt Options) (*Handler, error) {
 		{"POST /logout", "logout", h.logout},
 		{"GET /assets/page.css", "assets", serveAsset(static)},
 		{"GET /assets/page.js", "assets", serveAsset(static)},
+		{"GET /", "not_found", func(w http.ResponseWriter, r *http.Request) {
+			h.fail(w, r, http.StatusNotFound, "There is no page at "+r.URL.Path+".")
+		}},
 	}
 	for _, rt := range routes {
 		var handler http.Handler = rt.fn

@@ -287,6 +287,9 @@ func TestPages(t *testing.T) {
 		}
 		res, body = get(t, b, "/assets/layout.html")
 		wantStatus(t, "a template", res, body, http.StatusNotFound)
+		if !strings.Contains(body, "qualified engineers") {
+			t.Error("the page of an unknown path lacks the caution")
+		}
 	})
 }
 

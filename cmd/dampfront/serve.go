@@ -34,7 +34,8 @@ unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.
 
 --http-addr also serves a read-only job page (jobs, progress, fronts,
 damper curves; the same tokens, as a bearer header or a login form's
-cookie) and Prometheus metrics at /metrics, off by default.`)
+cookie) and Prometheus metrics at /metrics (job counts, slice and call
+times; no token needed), off by default.`)
 	addr := fs.String("addr", envOr(e, "DAMPFRONT_ADDR", defaultAddr), "listen address host:port; port 0 picks a free one ($DAMPFRONT_ADDR)")
 	addrFile := fs.String("addr-file", "", "write the address actually listened on to this `file`")
 	ef, err := addEngineFlags(fs, e, true)

@@ -87,8 +87,12 @@ type page struct {
 	log   *slog.Logger
 }
 
-// pageHeaderTimeout bounds the reading of a request's headers.
-const pageHeaderTimeout = 10 * time.Second
+// Time bounds of the page's connections: reading a request's headers,
+// and keeping an idle connection open.
+const (
+	pageHeaderTimeout = 10 * time.Second
+	pageIdleTimeout   = 2 * time.Minute
+)
 
 // start serves the page and /metrics on --http-addr over eng, reading
 // through an in-process API server with opt (its tokens and limits; TLS
@@ -123,7 +127,8 @@ func (w *webFlags) start(eng *jobs.Engine, opt api.Options, tlsConfig *tls.Confi
 		return nil, fmt.Errorf("listen on --http-addr %s: %w", w.addr, err)
 	}
 	p := &page{
-		srv:   &http.Server{Handler: mux, ReadHeaderTimeout: pageHeaderTimeout, TLSConfig: tlsConfig, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)},
+		srv: &http.Server{Handler: mux, ReadHeaderTimeout: pageHeaderTimeout, IdleTimeout: pageIdleTimeout,
+			TLSConfig: tlsConfig, ErrorLog: slog.NewLogLogger(log.Handler(), slog.LevelWarn)},
 		local: local, done: make(chan error, 1), log: log,
 	}
 	scheme := "http"
