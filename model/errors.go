@@ -83,6 +83,14 @@ func (p *problems) within(field string, v, lo, hi float64) {
 	}
 }
 
+// atMost requires v <= max: a guard against values far out of scale
+// (a mistyped exponent), which would make the linear algebra meaningless.
+func (p *problems) atMost(field string, v, max float64) {
+	if v > max {
+		p.add(field, "must be at most %g, got %g: check the unit and the exponent", max, v)
+	}
+}
+
 // merge adds the problems of a nested validation under a prefix.
 func (p *problems) merge(prefix string, err error) {
 	if err == nil {

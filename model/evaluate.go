@@ -111,7 +111,8 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt Options) (*Evaluator, error) 
 			unit[a] = 1
 			col, err := cd.base.staticSolve(unit)
 			if err != nil {
-				return nil, err
+				p.add("vehicle", "%v: check the rates and masses for values far out of scale", err)
+				return nil, p.err()
 			}
 			for b := 0; b < nDOF; b++ {
 				cd.kinv[b][a] = col[b]

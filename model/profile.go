@@ -170,7 +170,12 @@ func ReadProfile(r io.Reader, opt ProfileOptions) (*Profile, error) {
 	if len(dist) < minProfileSamples {
 		return nil, &ProfileError{Line: line, Reason: fmt.Sprintf("has %d samples, at least %d are needed", len(dist), minProfileSamples)}
 	}
-	p.uniform(dist, lines, opt.SpacingTolerance)
+	if err := p.uniform(dist, lines, opt.SpacingTolerance); err != nil {
+		return nil, err
+	}
+	if p.Len() < minProfileSamples {
+		return nil, &ProfileError{Line: line, Reason: fmt.Sprintf("has %d samples after resampling at the median step, at least %d are needed", p.Len(), minProfileSamples)}
+	}
 	if opt.Resolution > 0 && p.Length() < 1/opt.Resolution {
 		return nil, &ProfileError{Line: lines[len(lines)-1], Reason: fmt.Sprintf(
 			"the record is %.6g m long (lines %d to %d): a resolution of %g cycles/m needs at least %.6g m",
@@ -217,9 +222,13 @@ func (p *Profile) readHeader(fields []string, line int) error {
 // uniform sets Start and Spacing from the distances, resampling the
 // tracks by linear interpolation when a step departs from the nominal
 // spacing (the mean step) by more than tol of it.
-func (p *Profile) uniform(dist []float64, lines []int, tol float64) {
+func (p *Profile) uniform(dist []float64, lines []int, tol float64) error {
 	n := len(dist)
-	nominal := (dist[n-1] - dist[0]) / float64(n-1)
+	span := dist[n-1] - dist[0]
+	if math.IsInf(span, 0) {
+		return &ProfileError{Line: lines[n-1], Column: 1, Name: p.Names[0], Reason: fmt.Sprintf("the distances span from %g m to %g m, beyond the range of a float64", dist[0], dist[n-1])}
+	}
+	nominal := span / float64(n-1)
 	worst, at := 0.0, 0
 	for j := 1; j < n; j++ {
 		if d := math.Abs(dist[j]-dist[j-1]-nominal) / nominal; d > worst {
@@ -229,7 +238,7 @@ func (p *Profile) uniform(dist []float64, lines []int, tol float64) {
 	p.Start = dist[0]
 	if worst <= tol {
 		p.Spacing = nominal
-		return
+		return nil
 	}
 	steps := make([]float64, n-1)
 	for j := range steps {
@@ -237,7 +246,13 @@ func (p *Profile) uniform(dist []float64, lines []int, tol float64) {
 	}
 	sort.Float64s(steps)
 	h := steps[len(steps)/2]
-	m := int(math.Floor((dist[n-1]-dist[0])/h*(1+1e-12))) + 1
+	mf := math.Floor(span/h*(1+1e-12)) + 1
+	if !(mf <= maxResampleFactor*float64(n)) {
+		return &ProfileError{Line: lines[at], Column: 1, Name: p.Names[0], Reason: fmt.Sprintf(
+			"the distance step ending here is %.4g m, %.3g times the median step of %.4g m: resampling at the median step would make %.4g samples of %d; look for a gap or a mistyped distance",
+			dist[at]-dist[at-1], (dist[at]-dist[at-1])/h, h, mf, n)}
+	}
+	m := int(mf)
 	p.Warnings = append(p.Warnings, fmt.Sprintf(
 		"distance steps are not uniform: the step ending on line %d is %.4g m against a mean of %.4g m (%.1f%% off, tolerance %.1f%%); resampled by linear interpolation to %d samples %.4g m apart",
 		lines[at], dist[at]-dist[at-1], nominal, 100*worst, 100*tol, m, h))
@@ -246,7 +261,12 @@ func (p *Profile) uniform(dist []float64, lines []int, tol float64) {
 	if p.Right != nil {
 		p.Right = resampleLinear(dist, p.Right, p.Start, h, m)
 	}
+	return nil
 }
+
+// maxResampleFactor bounds the resampled record at this many times the
+// samples read: more means a gap or a mistyped distance, not jitter.
+const maxResampleFactor = 4
 
 // resampleLinear interpolates y(x) linearly at x0 + j h, j < m (x increasing).
 func resampleLinear(x, y []float64, x0, h float64, m int) []float64 {

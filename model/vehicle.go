@@ -219,6 +219,37 @@ func (v *Vehicle) symmetric() bool {
 // bad field, or nil.
 func (v *Vehicle) Validate() error {
 	var p problems
+	// Out-of-scale guards, far beyond any car (common practice, no
+	// source): a mistyped exponent is caught here with its field named.
+	const maxMass, maxInertia, maxLength, maxRate, maxDamping = 1e5, 1e6, 100.0, 1e9, 1e7
+	p.atMost("sprung_mass_kg", v.SprungMass, maxMass)
+	p.atMost("pitch_inertia_kg_m2", v.PitchInertia, maxInertia)
+	p.atMost("roll_inertia_kg_m2", v.RollInertia, maxInertia)
+	p.atMost("cg_to_front_axle_m", v.CGToFrontAxle, maxLength)
+	p.atMost("cg_to_rear_axle_m", v.CGToRearAxle, maxLength)
+	p.atMost("track_front_m", v.TrackFront, maxLength)
+	p.atMost("track_rear_m", v.TrackRear, maxLength)
+	for i, c := range v.Corners {
+		f := fmt.Sprintf("corners[%d].", i)
+		p.atMost(f+"spring_rate_n_per_m", c.SpringRate, maxRate)
+		p.atMost(f+"wheel_rate_n_per_m", c.WheelRate, maxRate)
+		p.atMost(f+"unsprung_mass_kg", c.UnsprungMass, maxMass)
+		p.atMost(f+"tyre_rate_n_per_m", c.TyreRate, maxRate)
+		p.atMost(f+"tyre_damping_n_s_per_m", c.TyreDamping, maxDamping)
+		p.atMost(f+"tyre_envelope_length_m", c.TyreEnvelopeLength, maxLength)
+		p.atMost(f+"bump_stop_gap_m", c.BumpStopGap, maxLength)
+		p.atMost(f+"sprung_load_n", c.SprungLoad, maxMass*Gravity)
+	}
+	for ax, b := range v.AntiRoll {
+		f := fmt.Sprintf("anti_roll[%d].", ax)
+		p.atMost(f+"wheel_rate_n_per_m", b.WheelRate, maxRate)
+		p.atMost(f+"bar_rate_n_per_m", b.BarRate, maxRate)
+	}
+	p.atMost("aero.reference_speed_m_per_s", v.Aero.ReferenceSpeed, 1e3)
+	for ax := 0; ax < 2; ax++ {
+		p.atMost(fmt.Sprintf("aero.downforce_n[%d]", ax), v.Aero.Downforce[ax], 1e6)
+		p.atMost(fmt.Sprintf("aero.stiffness_n_per_m[%d]", ax), math.Abs(v.Aero.Stiffness[ax]), maxRate)
+	}
 	p.positive("sprung_mass_kg", v.SprungMass)
 	p.positive("pitch_inertia_kg_m2", v.PitchInertia)
 	p.positive("roll_inertia_kg_m2", v.RollInertia)
