@@ -27,5 +27,7 @@
 // dampers, tyres as springs and no kinematics.
 package plot
 
+import "dampfront/model"
+
 // Caution is the footnote of every figure.
-const Caution = "Linear model: a starting point for rig and track testing by qualified engineers, within the series' regulations."
+const Caution = model.CautionShort

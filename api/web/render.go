@@ -3,6 +3,7 @@ package web
 import (
 	"bytes"
 	"context"
+	"dampfront/model"
 	"errors"
 	"net/http"
 
@@ -12,9 +13,7 @@ import (
 
 // Caution is shown at the foot of every page: the words of the command
 // line's reports.
-const Caution = "Caution: linear model with statistical linearisation, tyres as springs, no kinematics: " +
-	"a starting point for rig and track testing by qualified engineers, within the series' technical regulations, " +
-	"never a replacement for them."
+const Caution = model.Caution
 
 // pageView is what every page's layout shows.
 type pageView struct {

@@ -32,7 +32,7 @@ func TestDemo(t *testing.T) {
 			t.Errorf("demo output lacks %q:\n%s", want, r.stdout)
 		}
 	}
-	if !strings.HasSuffix(strings.TrimSpace(r.stdout), "for them.") {
+	if !strings.HasSuffix(strings.TrimSpace(r.stdout), cautionText) {
 		t.Errorf("demo output does not end with the caution:\n%s", r.stdout)
 	}
 	// The curve tables run from 0 to 250 mm/s in steps of 25 (the demo

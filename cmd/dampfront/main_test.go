@@ -222,8 +222,9 @@ func writeSpec(t *testing.T, replacements ...string) string {
 	return p
 }
 
-// cautionText is the caution as printed, to look for in outputs.
-var cautionText = "a starting point for rig and track testing by qualified\nengineers, within the series' technical regulations, never a replacement\nfor them."
+// cautionText is the caution as printed, to look for in outputs: the
+// model's words, wrapped for a terminal.
+var cautionText = caution
 
 var timeNow = time.Now
 

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"dampfront/model"
 	"fmt"
 	"io"
 	"strconv"
@@ -8,11 +9,29 @@ import (
 	"text/tabwriter"
 )
 
-// caution ends every printed report (front, eval, check, curves, demo).
-const caution = `Caution: linear model with statistical linearisation, tyres as springs, no
-kinematics: a starting point for rig and track testing by qualified
-engineers, within the series' technical regulations, never a replacement
-for them.`
+// caution ends every printed report (front, eval, check, curves, demo),
+// wrapped for a terminal.
+var caution = wrapWords(model.Caution, 76)
+
+// wrapWords breaks text into lines of at most width characters at spaces.
+func wrapWords(text string, width int) string {
+	var b strings.Builder
+	n := 0
+	for i, w := range strings.Fields(text) {
+		switch {
+		case i == 0:
+		case n+1+len(w) > width:
+			b.WriteByte('\n')
+			n = 0
+		default:
+			b.WriteByte(' ')
+			n++
+		}
+		b.WriteString(w)
+		n += len(w)
+	}
+	return b.String()
+}
 
 // printCaution writes the caution after a blank line.
 func printCaution(w io.Writer) {

@@ -55,7 +55,7 @@ func TestVerifyDemoCandidate(t *testing.T) {
 	if len(verdicts) != 3 {
 		t.Errorf("want one verdict line for each of the 3 road cases, found %d:\n%s", len(verdicts), r.stdout)
 	}
-	if !strings.HasSuffix(strings.TrimSpace(r.stdout), "for them.") {
+	if !strings.HasSuffix(strings.TrimSpace(r.stdout), cautionText) {
 		t.Errorf("verify output does not end with the caution:\n%s", r.stdout)
 	}
 }

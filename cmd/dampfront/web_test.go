@@ -158,7 +158,7 @@ func TestDemoJobPage(t *testing.T) {
 	if !strings.Contains(r.stdout, "run with --serve-page to keep it open at http://127.0.0.1:") {
 		t.Errorf("the demo does not say how to keep the page:\n%s", r.stdout)
 	}
-	if !strings.HasSuffix(strings.TrimSpace(r.stdout), "for them.") {
+	if !strings.HasSuffix(strings.TrimSpace(r.stdout), cautionText) {
 		t.Errorf("demo output does not end with the caution:\n%s", r.stdout)
 	}
 }
