@@ -32,7 +32,7 @@ import (
 // Bounds of the fault tests (generous for a loaded 2-core machine; they
 // bound hangs, they do not measure speed).
 const (
-	faultJobsTimeout = 120 * time.Second // until every job of a test has ended
+	faultJobsTimeout = 180 * time.Second // until every job of a test has ended
 	pollInterval     = 25 * time.Millisecond
 )
 
@@ -389,12 +389,13 @@ func TestFaultKillWorkers(t *testing.T) {
 
 	rng := rand.New(rand.NewPCG(6, 1)) // seeded: which worker, and when
 	var (
-		kills    int
-		restarts []time.Duration // kill to the new process working
-		mu       sync.Mutex
-		wg       sync.WaitGroup
-		resumed  []time.Duration // kill to the killed job's next slice run
-		notTaken []string
+		kills       int
+		restarts    []time.Duration // kill to the new process working
+		mu          sync.Mutex
+		wg          sync.WaitGroup
+		resumed     []time.Duration // kill to the killed job's next slice run
+		notTaken    []string
+		startedOver []string
 	)
 	for kills < maxKills {
 		time.Sleep(time.Second + time.Duration(rng.Int64N(int64(time.Second))))
@@ -417,12 +418,18 @@ func TestFaultKillWorkers(t *testing.T) {
 		killedAt := time.Now()
 		kills++
 		at, _ := readJob(pool, job) // the lease of the last run that started
+		ckpt := checkpointGeneration(pool, job)
 		victim.start()
 		restarts = append(restarts, time.Since(killedAt))
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
 			when, ok := waitTakenOver(pool, job, at.lease, faultJobsTimeout)
+			// The next run's first progress: a run that started over
+			// instead of resuming would store a generation below the
+			// checkpoint (it checkpoints every 150 ms, a few
+			// generations).
+			first := nextGeneration(pool, job, at.generation, faultJobsTimeout)
 			mu.Lock()
 			defer mu.Unlock()
 			if !ok {
@@ -430,6 +437,9 @@ func TestFaultKillWorkers(t *testing.T) {
 				return
 			}
 			resumed = append(resumed, when.Sub(killedAt))
+			if first < ckpt {
+				startedOver = append(startedOver, fmt.Sprintf("%s (checkpoint at generation %d, next stored %d)", job, ckpt, first))
+			}
 		}()
 	}
 	final := waitJobsEnded(t, pool, ids)
@@ -437,6 +447,9 @@ func TestFaultKillWorkers(t *testing.T) {
 	wg.Wait()
 	if len(notTaken) > 0 {
 		t.Errorf("no slice run took over jobs %v within %v of their worker's kill", notTaken, faultJobsTimeout)
+	}
+	if len(startedOver) > 0 {
+		t.Errorf("jobs started over after their worker's kill instead of resuming from the checkpoint: %v", startedOver)
 	}
 	if kills == 0 {
 		t.Fatalf("no worker held a running slice at any of the kill times; the jobs are too short for the test")

@@ -272,11 +272,20 @@ type jobRow struct {
 
 func readJobs(t *testing.T, pool *pgxpool.Pool) map[string]jobRow {
 	t.Helper()
+	all, err := queryJobs(pool)
+	if err != nil {
+		t.Fatalf("read jobs: %v", err)
+	}
+	return all
+}
+
+// queryJobs reads every job row, by ID.
+func queryJobs(pool *pgxpool.Pool) (map[string]jobRow, error) {
 	ctx, cancel := context.WithTimeout(context.Background(), pgTimeout)
 	defer cancel()
 	rows, err := pool.Query(ctx, `SELECT id, state, error, lease, partial, generation, generations, slices, spec FROM dampfront_job`)
 	if err != nil {
-		t.Fatalf("read jobs: %v", err)
+		return nil, err
 	}
 	defer rows.Close()
 	out := map[string]jobRow{}
@@ -284,15 +293,12 @@ func readJobs(t *testing.T, pool *pgxpool.Pool) map[string]jobRow {
 		var j jobRow
 		var partial int64
 		if err := rows.Scan(&j.id, &j.state, &j.errMsg, &j.lease, &partial, &j.generation, &j.generations, &j.slices, &j.spec); err != nil {
-			t.Fatalf("read jobs: %v", err)
+			return nil, err
 		}
 		j.partial = partial != 0
 		out[j.id] = j
 	}
-	if err := rows.Err(); err != nil {
-		t.Fatalf("read jobs: %v", err)
-	}
-	return out
+	return out, rows.Err()
 }
 
 // readJob is one job's row; ok is false when it cannot be read (the
@@ -308,12 +314,16 @@ func readJob(pool *pgxpool.Pool, id string) (j jobRow, ok bool) {
 }
 
 // waitJobsEnded polls until every job is in a terminal state, within
-// faultJobsTimeout, and returns their rows.
+// faultJobsTimeout, and returns their rows. A failed read is tried again
+// (the database may be restarting).
 func waitJobsEnded(t *testing.T, pool *pgxpool.Pool, ids []string) map[string]jobRow {
 	t.Helper()
 	deadline := time.Now().Add(faultJobsTimeout)
 	for {
-		all := readJobs(t, pool)
+		all, err := queryJobs(pool)
+		if err != nil && time.Now().After(deadline) {
+			t.Fatalf("read jobs: %v", err)
+		}
 		ended := 0
 		for _, id := range ids {
 			if s := all[id].state; s == "succeeded" || s == "failed" || s == "cancelled" {
@@ -447,6 +457,19 @@ func waitTakenOver(pool *pgxpool.Pool, id, lease string, timeout time.Duration) 
 		time.Sleep(pollInterval)
 	}
 	return time.Time{}, false
+}
+
+// nextGeneration polls until job id stores a generation other than gen,
+// or ends, and returns the generation then stored (gen after timeout).
+func nextGeneration(pool *pgxpool.Pool, id string, gen int, timeout time.Duration) int {
+	deadline := time.Now().Add(timeout)
+	for time.Now().Before(deadline) {
+		if j, ok := readJob(pool, id); ok && (j.generation != gen || j.state == "succeeded" || j.state == "failed" || j.state == "cancelled") {
+			return j.generation
+		}
+		time.Sleep(pollInterval)
+	}
+	return gen
 }
 
 // readSlicesOpen returns the River slices not yet completed, by job.
