@@ -28,7 +28,7 @@ func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex
 			a[p], a[col] = a[col], a[p]
 			b[p], b[col] = b[col], b[p]
 		}
-		inv := 1 / a[col][col]
+		inv := recip(a[col][col])
 		for r := col + 1; r < n; r++ {
 			f := a[r][col] * inv
 			if f == 0 {
@@ -43,7 +43,7 @@ func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex
 		}
 	}
 	for col := n - 1; col >= 0; col-- {
-		inv := 1 / a[col][col]
+		inv := recip(a[col][col])
 		for j := 0; j < nr; j++ {
 			s := b[col][j]
 			for c := col + 1; c < n; c++ {
@@ -53,6 +53,21 @@ func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex
 		}
 	}
 	return true
+}
+
+// recip is 1/z for a finite non-zero z, without the runtime's complex
+// division (which guards against infinities the solver never has). The
+// scaling by the larger part avoids overflow of |z|².
+func recip(z complex128) complex128 {
+	re, im := real(z), imag(z)
+	if math.Abs(re) >= math.Abs(im) {
+		r := im / re
+		d := 1 / (re + im*r)
+		return complex(d, -r*d)
+	}
+	r := re / im
+	d := 1 / (re*r + im)
+	return complex(r*d, -d)
 }
 
 // cabs1 is |re| + |im|, a cheap pivot size.
