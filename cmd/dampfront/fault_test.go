@@ -2,11 +2,11 @@ package main
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"os/exec"
+	"path/filepath"
 	"slices"
 	"strconv"
 	"strings"
@@ -189,88 +189,52 @@ func submitJobs(t *testing.T, s *server, spec string, n int, seed0 uint64) []str
 	return ids
 }
 
-// uninterruptedFront runs the study of stored spec bytes in this process
-// from start to end without a checkpoint, as one slice would, and returns
-// its front indexed as the engine stores it.
-func uninterruptedFront(spec []byte) ([]jobs.Solution, error) {
-	study, err := (&api.Opener{Workers: 1}).Open(spec, nil)
-	if err != nil {
-		return nil, err
-	}
-	for {
-		done, err := study.Step(context.Background(), 1)
-		if err != nil {
-			return nil, err
-		}
-		if done {
-			break
-		}
-	}
-	front, err := study.Front()
-	if err != nil {
-		return nil, err
-	}
-	for i := range front {
-		front[i].Index = i
-	}
-	return front, nil
-}
-
-// referenceFronts computes the uninterrupted front of every job's stored
-// spec, two at a time (the machine has two cores), by job ID. It may run
-// outside the test's goroutine.
-func referenceFronts(specs map[string][]byte) (map[string][]jobs.Solution, error) {
-	out := make(map[string][]jobs.Solution, len(specs))
-	var (
-		mu   sync.Mutex
-		wg   sync.WaitGroup
-		errs []error
-	)
-	sem := make(chan struct{}, 2)
-	for id, spec := range specs {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			sem <- struct{}{}
-			defer func() { <-sem }()
-			f, err := uninterruptedFront(spec)
-			mu.Lock()
-			defer mu.Unlock()
-			if err != nil {
-				errs = append(errs, fmt.Errorf("uninterrupted run of job %s: %w", id, err))
-			}
-			out[id] = f
-		}()
-	}
-	wg.Wait()
-	return out, errors.Join(errs...)
-}
-
-// startReferenceFronts starts referenceFronts on the stored specs of the
-// jobs in the database; the returned function waits for it.
-func startReferenceFronts(t *testing.T, pool *pgxpool.Pool) func() map[string][]jobs.Solution {
+// referenceRun submits spec once per seed to a server of the binary under
+// test on a SQLite file of its own, with two jobs at a time, each in one
+// slice (an hour long) and without checkpoints inside it: one clean,
+// uninterrupted run of each job of a fault test. The same binary runs
+// both, so the comparison holds even while the source tree changes
+// under a developer's test run. The returned function waits for the run
+// and gives each front by the stored spec bytes, which the server makes
+// the same for the same spec and seed (api.MarshalSpec is
+// deterministic).
+func referenceRun(t *testing.T, spec string, seeds []uint64) func() map[string][]jobs.Solution {
 	t.Helper()
-	specs := map[string][]byte{}
-	for id, j := range readJobs(t, pool) {
-		specs[id] = j.spec
+	db := filepath.Join(t.TempDir(), "reference.db")
+	s := startServer(t, db, []string{"DAMPFRONT_SLICE=1h", "DAMPFRONT_CHECKPOINT_INTERVAL=-1s"},
+		"--workers", "2", "--eval-workers", "1")
+	var ids []string
+	for _, seed := range seeds {
+		ids = append(ids, submitJobs(t, s, spec, 1, seed)...)
 	}
-	type result struct {
-		fronts map[string][]jobs.Solution
-		err    error
-	}
-	done := make(chan result, 1)
-	go func() {
-		f, err := referenceFronts(specs)
-		done <- result{f, err}
-	}()
 	return func() map[string][]jobs.Solution {
 		t.Helper()
-		r := <-done
-		if r.err != nil {
-			t.Fatal(r.err)
+		for _, id := range ids {
+			mustRun(t, exitOK, nil, s.client("watch", id, "--quiet")...)
 		}
-		return r.fronts
+		st := openStore(t, db)
+		out := map[string][]jobs.Solution{}
+		for _, id := range ids {
+			j, err := st.JobGetByID(context.Background(), &jobs.JobGetByIDParams{ID: id})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if j.State != jobs.StateSucceeded || j.Slices != 1 {
+				t.Fatalf("reference job %s: %s in %d slices; want succeeded in one", id, j.State, j.Slices)
+			}
+			out[string(j.Spec)] = readFront(t, st, id)
+		}
+		return out
 	}
+}
+
+// seedRange is seed0, seed0+1, ..., n seeds.
+func seedRange(seed0 uint64, n int) []uint64 {
+	out := make([]uint64, n)
+	for i := range out {
+		out[i] = seed0 + uint64(i)
+	}
+	return out
 }
 
 // openStore opens the database at url in this process, neither working
@@ -287,29 +251,41 @@ func openStore(t *testing.T, url string) jobs.Store {
 	return eng.Store()
 }
 
-// checkFronts compares each job's stored front with its uninterrupted
-// front, bit for bit: genes, objectives and violations as IEEE 754 bits,
-// feasibility and the encoded details. The stored floats are the bits
-// the engine wrote (jobs package doc), so equality is exact, not within a
-// tolerance; the API's fronts are derived from these rows alone.
-func checkFronts(t *testing.T, st jobs.Store, ids []string, want map[string][]jobs.Solution) {
+// readFront reads every page of a job's stored front.
+func readFront(t *testing.T, st jobs.Store, id string) []jobs.Solution {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), pgTimeout)
 	defer cancel()
-	for _, id := range ids {
-		var got []jobs.Solution
-		tok := ""
-		for {
-			page, err := st.FrontGet(ctx, &jobs.FrontGetParams{JobID: id, PageSize: jobs.MaxPageSize, PageToken: tok})
-			if err != nil {
-				t.Fatalf("front of %s: %v", id, err)
-			}
-			got = append(got, page.Solutions...)
-			if tok = page.NextPageToken; tok == "" {
-				break
-			}
+	var out []jobs.Solution
+	tok := ""
+	for {
+		page, err := st.FrontGet(ctx, &jobs.FrontGetParams{JobID: id, PageSize: jobs.MaxPageSize, PageToken: tok})
+		if err != nil {
+			t.Fatalf("front of %s: %v", id, err)
 		}
-		if msg := diffSolutions(got, want[id]); msg != "" {
+		out = append(out, page.Solutions...)
+		if tok = page.NextPageToken; tok == "" {
+			return out
+		}
+	}
+}
+
+// checkFronts compares each job's stored front with the uninterrupted
+// front of its stored spec (want, by spec bytes), bit for bit: genes,
+// objectives and violations as IEEE 754 bits, feasibility and the encoded
+// details. The engine stores floats as their bits (jobs package doc), so
+// equality is exact, not within a tolerance; the API's fronts are derived
+// from these rows alone.
+func checkFronts(t *testing.T, st jobs.Store, pool *pgxpool.Pool, ids []string, want map[string][]jobs.Solution) {
+	t.Helper()
+	rows := readJobs(t, pool)
+	for _, id := range ids {
+		ref, ok := want[string(rows[id].spec)]
+		if !ok {
+			t.Errorf("job %s: no reference job has its stored spec", id)
+			continue
+		}
+		if msg := diffSolutions(readFront(t, st, id), ref); msg != "" {
 			t.Errorf("job %s: the stored front is not the uninterrupted one: %s", id, msg)
 		}
 	}
@@ -384,8 +360,9 @@ func TestFaultKillWorkers(t *testing.T) {
 		workers[i] = startWorker(t, db, fmt.Sprintf("fault-kill-%d", i+1), env)
 	}
 	began := time.Now()
-	ids := submitJobs(t, s, faultSpec(t, 12, 40), nJobs, 100)
-	reference := startReferenceFronts(t, pool) // while the workers run
+	spec := faultSpec(t, 12, 40)
+	reference := referenceRun(t, spec, seedRange(100, nJobs)) // while the workers run
+	ids := submitJobs(t, s, spec, nJobs, 100)
 
 	rng := rand.New(rand.NewPCG(6, 1)) // seeded: which worker, and when
 	var (
@@ -455,7 +432,7 @@ func TestFaultKillWorkers(t *testing.T) {
 		t.Fatalf("no worker held a running slice at any of the kill times; the jobs are too short for the test")
 	}
 	slicesRun, reruns := checkSucceededOnce(t, pool, ids)
-	checkFronts(t, openStore(t, db), ids, reference())
+	checkFronts(t, openStore(t, db), pool, ids, reference())
 	runs, released := 0, 0
 	for _, id := range ids {
 		runs += final[id].slices
@@ -502,9 +479,10 @@ func TestFaultSigtermWorker(t *testing.T) {
 	env := []string{"DAMPFRONT_SLICE=1m", "DAMPFRONT_CHECKPOINT_INTERVAL=1m"}
 	s := startServer(t, db, env, "--workers", "0")
 	a := startWorker(t, db, "fault-term-a", env, "--stop-timeout", stopTimeout.String())
-	ids := submitJobs(t, s, faultSpec(t, 12, 100), 1, 11)
+	spec := faultSpec(t, 12, 100)
+	reference := referenceRun(t, spec, seedRange(11, 1))
+	ids := submitJobs(t, s, spec, 1, 11)
 	id := ids[0]
-	reference := startReferenceFronts(t, pool)
 
 	// Past generation 30, so that a run started over would show lower
 	// generations than the checkpoint's for a while (progress is written
@@ -574,7 +552,7 @@ func TestFaultSigtermWorker(t *testing.T) {
 		}
 	}
 	checkSucceededOnce(t, pool, ids)
-	checkFronts(t, openStore(t, db), ids, reference())
+	checkFronts(t, openStore(t, db), pool, ids, reference())
 	if !strings.Contains(b.logs.String(), "msg=working") {
 		t.Errorf("worker b logged no start")
 	}
@@ -595,8 +573,9 @@ func TestFaultPostgresRestart(t *testing.T) {
 	env := []string{"DAMPFRONT_SLICE=2s", "DAMPFRONT_CHECKPOINT_INTERVAL=150ms"}
 	s := startServer(t, db, env, "--workers", "0")
 	workers := []*proc{startWorker(t, db, "fault-pg-a", env), startWorker(t, db, "fault-pg-b", env)}
-	ids := submitJobs(t, s, faultSpec(t, 12, 60), 4, 21)
-	reference := startReferenceFronts(t, pool)
+	spec := faultSpec(t, 12, 60)
+	reference := referenceRun(t, spec, seedRange(21, 4))
+	ids := submitJobs(t, s, spec, 4, 21)
 
 	// Both workers in the middle of a job.
 	deadline := time.Now().Add(faultJobsTimeout)
@@ -651,7 +630,7 @@ func TestFaultPostgresRestart(t *testing.T) {
 	ids = append(ids, submitJobs(t, s, faultSpec(t, 12, 10), 1, 25)...)
 	waitJobsEnded(t, pool, ids)
 	_, reruns := checkSucceededOnce(t, pool, ids)
-	checkFronts(t, openStore(t, db), ids[:4], reference())
+	checkFronts(t, openStore(t, db), pool, ids[:4], reference())
 	t.Logf("database restarted under 2 workers running 4 jobs: pg_ctl restart took %v; a job moved on %v after the restart began; %d slice attempts again",
 		outage.Round(time.Millisecond), movedAfter.Round(time.Millisecond), reruns)
 }
