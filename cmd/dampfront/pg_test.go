@@ -27,8 +27,8 @@ import (
 // only when DAMPFRONT_TEST_DATABASE_URL is unset (CI sets it, .ci/run);
 // each gets a database of its own, created through that URL and dropped
 // at its end, so they run in parallel with each other and with the rest.
-// The tests that restart or stop PostgreSQL itself run a throwaway
-// cluster of their own, as .ci/run does.
+// The test that restarts PostgreSQL itself runs a throwaway cluster of
+// its own, as .ci/run does.
 
 // testDatabaseURLEnv names the variable of the shared test server.
 const testDatabaseURLEnv = "DAMPFRONT_TEST_DATABASE_URL"
@@ -270,6 +270,7 @@ type jobRow struct {
 	spec                     []byte
 }
 
+// readJobs is queryJobs that fails the test on an error.
 func readJobs(t *testing.T, pool *pgxpool.Pool) map[string]jobRow {
 	t.Helper()
 	all, err := queryJobs(pool)
