@@ -24,17 +24,18 @@ const ErrorDomain = "dampfront"
 
 // ErrorInfo reasons, UPPER_SNAKE_CASE as AIP-193 asks.
 const (
-	ReasonInvalidArgument  = "INVALID_ARGUMENT"   // some request fields are bad; see BadRequest
-	ReasonJobNotFound      = "JOB_NOT_FOUND"      // no job has the ID
-	ReasonJobNotFinished   = "JOB_NOT_FINISHED"   // the front of a queued or running job
-	ReasonJobFinished      = "JOB_FINISHED"       // cancelling a job that has already ended
-	ReasonEmptyFront       = "EMPTY_FRONT"        // the job's front has no solution to compare with
-	ReasonSolutionNotFound = "SOLUTION_NOT_FOUND" // no solution of the front has the index
-	ReasonJobTooLarge      = "JOB_TOO_LARGE"      // population × islands × generations × cases over the limit
-	ReasonTooManySetups    = "TOO_MANY_SETUPS"    // setups × cases of one synchronous call over the limit
-	ReasonServerBusy       = "SERVER_BUSY"        // too many synchronous evaluations at once
-	ReasonShuttingDown     = "SHUTTING_DOWN"      // the server is stopping
-	ReasonInternal         = "INTERNAL"           // a bug or a storage failure
+	ReasonInvalidArgument  = "INVALID_ARGUMENT"     // some request fields are bad; see BadRequest
+	ReasonJobNotFound      = "JOB_NOT_FOUND"        // no job has the ID
+	ReasonJobNotFinished   = "JOB_NOT_FINISHED"     // the front of a queued or running job
+	ReasonJobFinished      = "JOB_FINISHED"         // cancelling a job that has already ended
+	ReasonEmptyFront       = "EMPTY_FRONT"          // the job's front has no solution to compare with
+	ReasonSolutionNotFound = "SOLUTION_NOT_FOUND"   // no solution of the front has the index
+	ReasonJobTooLarge      = "JOB_TOO_LARGE"        // population × islands × generations × cases over the limit
+	ReasonTooManySetups    = "TOO_MANY_SETUPS"      // setups × cases of one synchronous call over the limit
+	ReasonServerBusy       = "SERVER_BUSY"          // too many synchronous evaluations at once
+	ReasonShuttingDown     = "SHUTTING_DOWN"        // the server is stopping
+	ReasonInternal         = "INTERNAL"             // a bug or a storage failure
+	ReasonDatabaseDown     = "DATABASE_UNAVAILABLE" // the job database cannot be reached or is full; retry later
 )
 
 // fieldProblem is one bad request field, by its path in the request.
@@ -214,6 +215,12 @@ func toStatus(err error, paths pathMapper) error {
 		return status.Error(codes.Canceled, "the request was cancelled")
 	case errors.Is(err, context.DeadlineExceeded):
 		return status.Error(codes.DeadlineExceeded, "the request's deadline passed")
+	}
+	if jobs.IsUnavailable(err) {
+		// The driver's text can name the database's user, host and port:
+		// it stays in the server's log, not in the answer.
+		return statusError(codes.Unavailable, "the job database is unavailable (unreachable, restarting or full); nothing was changed, retry later",
+			ReasonDatabaseDown, nil)
 	}
 	return statusError(codes.Internal, "internal error: "+err.Error(), ReasonInternal, nil)
 }

@@ -15,6 +15,13 @@ import (
 // It is limited in size (setups × road cases) and in how many such calls
 // run together; both give ResourceExhausted.
 func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsRequest) (*pb.EvaluateSetupsResponse, error) {
+	// The slot comes first: compiling the spec is a large part of the
+	// work, and a call turned away should not have paid for it.
+	release, err := s.acquire()
+	if err != nil {
+		return nil, err
+	}
+	defer release()
 	var p problems
 	if len(req.GetSetups()) == 0 {
 		p.add("setups", "needs at least one setup")
@@ -55,11 +62,6 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 			fmt.Sprintf("setups × road cases = %d is over the server's %d for one call; split the setups over several calls", w, s.opt.MaxSyncWork),
 			map[string]string{"work": strconv.Itoa(w), "limit": strconv.Itoa(s.opt.MaxSyncWork)}, 0)
 	}
-	release, err := s.acquire()
-	if err != nil {
-		return nil, err
-	}
-	defer release()
 	out := &pb.EvaluateSetupsResponse{Objectives: pl.objectivesProto(), Constraints: pl.constraintsProto(), GeneNames: pl.geneNames()}
 	basic := req.GetView() == pb.SolutionView_SOLUTION_VIEW_BASIC
 	for i, su := range setups {
