@@ -13,7 +13,6 @@ import (
 	"google.golang.org/grpc/status"
 	"google.golang.org/protobuf/encoding/protojson"
 	"google.golang.org/protobuf/proto"
-	"sigs.k8s.io/yaml"
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
@@ -40,16 +39,10 @@ import (
 const fuzzMaxSpecBytes = jobs.DefaultMaxSpecBytes
 
 // decodeSpecText decodes a YAML or JSON job spec as the dampfront
-// command does (cmd/dampfront/specfile.go, decodeMessage): YAML to JSON
-// with sigs.k8s.io/yaml, then protojson with unknown fields refused. It
-// is a copy because that code lives in package main.
+// command does (DecodeText).
 func decodeSpecText(b []byte) (*pb.JobSpec, error) {
-	j, err := yaml.YAMLToJSON(b)
-	if err != nil {
-		return nil, err
-	}
 	spec := &pb.JobSpec{}
-	if err := protojson.Unmarshal(j, spec); err != nil {
+	if err := DecodeText(b, spec); err != nil {
 		return nil, err
 	}
 	return spec, nil

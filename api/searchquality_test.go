@@ -8,9 +8,6 @@ import (
 	"sync"
 	"testing"
 
-	"google.golang.org/protobuf/encoding/protojson"
-	"sigs.k8s.io/yaml"
-
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/optimizer"
 )
@@ -24,12 +21,8 @@ func demoPlan(tb testing.TB, nCases int) *plan {
 	if err != nil {
 		tb.Fatal(err)
 	}
-	j, err := yaml.YAMLToJSON(b)
-	if err != nil {
-		tb.Fatal(err)
-	}
 	spec := &pb.JobSpec{}
-	if err := protojson.Unmarshal(j, spec); err != nil {
+	if err := DecodeText(b, spec); err != nil {
 		tb.Fatal(err)
 	}
 	spec.RoadCases = spec.RoadCases[:nCases]

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"dampfront/api"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -49,12 +50,8 @@ func readMessage(e *env, path string, m proto.Message) error {
 }
 
 func decodeMessage(path string, b []byte, m proto.Message) error {
-	j, err := yaml.YAMLToJSON(b)
-	if err != nil {
-		return &inputFileError{path: path, err: fmt.Errorf("not YAML or JSON: %w", err)}
-	}
-	if err := protojson.Unmarshal(j, m); err != nil {
-		return &inputFileError{path: path, err: fmt.Errorf("not a %s: %w", m.ProtoReflect().Descriptor().FullName(), err)}
+	if err := api.DecodeText(b, m); err != nil {
+		return &inputFileError{path: path, err: err}
 	}
 	return nil
 }
