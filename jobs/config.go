@@ -14,6 +14,11 @@ type Config struct {
 	// DatabaseURL is a SQLite file path (or sqlite:PATH), the embedded
 	// default, or a postgres:// URL for the multi-machine mode.
 	DatabaseURL string
+	// SkipMigrate (PostgreSQL only) leaves the schema alone at Open and
+	// fails if it is not current: for processes whose database role may
+	// not change it, after `dampfront migrate` has run. A SQLite file is
+	// always migrated.
+	SkipMigrate bool
 
 	// Workers is the number of slices this process runs at once. 0 makes
 	// a submit-and-read-only engine (an API server with workers elsewhere).

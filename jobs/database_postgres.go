@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"strings"
 
 	"github.com/jackc/pgx/v5"
 	"github.com/jackc/pgx/v5/pgxpool"
@@ -18,8 +19,9 @@ const pgMigrationLockKey int64 = 0x64616d7066726f6e // "dampfron"
 // openPostgres connects to url (a pgx connection string; search_path may
 // be given as a query parameter) and migrates River's tables and this
 // package's, under an advisory lock so that workers starting together do
-// not migrate twice.
-func openPostgres(ctx context.Context, url string) (*database[pgx.Tx], error) {
+// not migrate twice. With migrate false it only checks that both are
+// current, for processes whose database role may not change the schema.
+func openPostgres(ctx context.Context, url string, migrate bool) (*database[pgx.Tx], error) {
 	pool, err := pgxpool.New(ctx, url)
 	if err != nil {
 		return nil, fmt.Errorf("jobs: open PostgreSQL: %w", err)
@@ -44,11 +46,41 @@ func openPostgres(ctx context.Context, url string) (*database[pgx.Tx], error) {
 		rollback: func(ctx context.Context, tx pgx.Tx) { _ = tx.Rollback(context.WithoutCancel(ctx)) },
 		close:    func() error { pool.Close(); return nil },
 	}
-	if err := migratePostgres(ctx, pool, d); err != nil {
+	check := migratePostgres
+	if !migrate {
+		check = checkPostgresSchema
+	}
+	if err := check(ctx, pool, d); err != nil {
 		pool.Close()
 		return nil, err
 	}
 	return d, nil
+}
+
+// checkPostgresSchema returns an error naming the remedy when River's
+// tables or this package's are behind the binary's migrations.
+func checkPostgresSchema(ctx context.Context, _ *pgxpool.Pool, d *database[pgx.Tx]) error {
+	migrator, err := rivermigrate.New(d.driver, nil)
+	if err != nil {
+		return fmt.Errorf("jobs: check River tables: %w", err)
+	}
+	res, err := migrator.Validate(ctx, nil)
+	if err != nil {
+		return fmt.Errorf("jobs: check River tables: %w", err)
+	}
+	if !res.OK {
+		return fmt.Errorf("jobs: the database's River tables are not current (%s): run `dampfront migrate` first, or start without skipping migrations", strings.Join(res.Messages, "; "))
+	}
+	ms, err := loadMigrations(backendPostgres)
+	if err != nil {
+		return err
+	}
+	var have int64
+	err = d.store.q.queryRow(ctx, `SELECT COALESCE(MAX(version), 0) FROM dampfront_migration`).Scan(&have)
+	if err != nil || int(have) < ms[len(ms)-1].version {
+		return fmt.Errorf("jobs: the database's dampfront tables are at version %d, this binary needs %d: run `dampfront migrate` first, or start without skipping migrations", have, ms[len(ms)-1].version)
+	}
+	return nil
 }
 
 func migratePostgres(ctx context.Context, pool *pgxpool.Pool, d *database[pgx.Tx]) (err error) {

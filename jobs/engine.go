@@ -68,7 +68,7 @@ func Open(ctx context.Context, cfg Config, opener StudyOpener) (*Engine, error) 
 			return nil, err
 		}
 	case backendPostgres:
-		db, err := openPostgres(ctx, target)
+		db, err := openPostgres(ctx, target, !cfg.SkipMigrate)
 		if err != nil {
 			return nil, err
 		}

@@ -77,7 +77,7 @@ func newTestSQLiteStore(t testing.TB) Store {
 // newTestPostgresStore opens a migrated PostgreSQL store in a fresh schema.
 func newTestPostgresStore(t testing.TB) Store {
 	t.Helper()
-	db, err := openPostgres(context.Background(), testPostgresURL(t))
+	db, err := openPostgres(context.Background(), testPostgresURL(t), true)
 	if err != nil {
 		t.Fatal(err)
 	}

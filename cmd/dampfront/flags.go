@@ -104,6 +104,19 @@ func envInt(e *env, cmd, key string, def int) (int, error) {
 	return n, nil
 }
 
+// envBool is envOr for a boolean (true/false, 1/0).
+func envBool(e *env, cmd, key string, def bool) (bool, error) {
+	v := e.getenv(key)
+	if v == "" {
+		return def, nil
+	}
+	b, err := strconv.ParseBool(v)
+	if err != nil {
+		return false, usagef(cmd, "$%s=%q is not true or false", key, v)
+	}
+	return b, nil
+}
+
 // envDuration is envOr for a duration such as "90s".
 func envDuration(e *env, cmd, key string, def time.Duration) (time.Duration, error) {
 	v := e.getenv(key)

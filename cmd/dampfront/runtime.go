@@ -31,6 +31,7 @@ type engineFlags struct {
 	maxSpecBytes    int
 	logLevel        string
 	logFormat       string
+	migrate         bool
 }
 
 // defaultDatabase is the embedded SQLite file of serve and worker.
@@ -45,9 +46,15 @@ func addEngineFlags(fs *flagSet, e *env, withWorkers bool) (*engineFlags, error)
 		"SQLite file `path` (or sqlite:PATH), or a postgres:// URL shared by several hosts ($DAMPFRONT_DATABASE)")
 	fs.StringVar(&f.logLevel, "log-level", envOr(e, "DAMPFRONT_LOG_LEVEL", "info"), "log `level`: debug, info, warn or error ($DAMPFRONT_LOG_LEVEL)")
 	fs.StringVar(&f.logFormat, "log-format", envOr(e, "DAMPFRONT_LOG_FORMAT", "text"), "log `format` on standard error: text or json ($DAMPFRONT_LOG_FORMAT)")
+	f.migrate = true
 	if !withWorkers {
 		return f, nil
 	}
+	migrate, err := envBool(e, fs.name, "DAMPFRONT_MIGRATE", true)
+	if err != nil {
+		return nil, err
+	}
+	fs.BoolVar(&f.migrate, "migrate", migrate, "create or upgrade the tables at start; false (PostgreSQL only) checks that dampfront migrate has run, for a database role without DDL rights ($DAMPFRONT_MIGRATE)")
 	workers, err := envInt(e, fs.name, "DAMPFRONT_WORKERS", 1)
 	if err != nil {
 		return nil, err
@@ -127,6 +134,7 @@ func (f *engineFlags) jobsConfig(log *slog.Logger) jobs.Config {
 		MaxSpecBytes:       f.maxSpecBytes,
 		NodeID:             f.nodeID,
 		Logger:             log,
+		SkipMigrate:        !f.migrate,
 	}
 }
 
