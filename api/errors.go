@@ -32,6 +32,7 @@ const (
 	ReasonSolutionNotFound = "SOLUTION_NOT_FOUND"   // no solution of the front has the index
 	ReasonJobTooLarge      = "JOB_TOO_LARGE"        // population × islands × generations × cases over the limit
 	ReasonTooManySetups    = "TOO_MANY_SETUPS"      // setups × cases of one synchronous call over the limit
+	ReasonGridTooFine      = "GRID_TOO_FINE"        // a spec's frequency grid over the limit
 	ReasonServerBusy       = "SERVER_BUSY"          // too many synchronous evaluations at once
 	ReasonShuttingDown     = "SHUTTING_DOWN"        // the server is stopping
 	ReasonInternal         = "INTERNAL"             // a bug or a storage failure

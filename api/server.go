@@ -3,7 +3,9 @@ package api
 import (
 	"context"
 	"crypto/tls"
+	"dampfront/model"
 	"errors"
+	"fmt"
 	"log/slog"
 	"net"
 	"runtime"
@@ -44,6 +46,10 @@ type Options struct {
 	// (to within its initial population); more is ResourceExhausted.
 	// Default 50 000 000, about a night on two cores.
 	MaxJobWork int64
+	// MaxGridPoints limits the frequency grid of a submitted or evaluated
+	// spec (the cost of one evaluation grows with it); more is
+	// ResourceExhausted. Default 2001, eight times the model's default.
+	MaxGridPoints int
 	// MaxSyncWork limits setups × road cases of one EvaluateSetups call.
 	// Default 4096.
 	MaxSyncWork int
@@ -72,6 +78,7 @@ type Options struct {
 const (
 	DefaultMaxMessageBytes = 16 << 20
 	DefaultMaxJobWork      = 50_000_000
+	DefaultMaxGridPoints   = 2001
 	DefaultMaxSyncWork     = 4096
 	DefaultStopTimeout     = 10 * time.Second
 )
@@ -82,6 +89,9 @@ func (o Options) withDefaults() Options {
 	}
 	if o.MaxJobWork <= 0 {
 		o.MaxJobWork = DefaultMaxJobWork
+	}
+	if o.MaxGridPoints <= 0 {
+		o.MaxGridPoints = DefaultMaxGridPoints
 	}
 	if o.MaxSyncWork <= 0 {
 		o.MaxSyncWork = DefaultMaxSyncWork
@@ -225,4 +235,15 @@ func (s *Server) acquire() (release func(), err error) {
 			"too many synchronous evaluations are running; retry in a second",
 			map[string]string{"limit": strconv.Itoa(s.opt.MaxConcurrentEvaluations)}, time.Second)
 	}
+}
+
+// checkGrid refuses a spec whose frequency grid is over the limit.
+func (s *Server) checkGrid(pl *plan) error {
+	n := len(pl.eval.Frequencies())
+	if n <= s.opt.MaxGridPoints {
+		return nil
+	}
+	return resourceExhausted(ReasonGridTooFine,
+		fmt.Sprintf("spec.grid.points = %d is over the server's %d; the default grid (%d points, tails added analytically) is accurate to 0.5 %%", n, s.opt.MaxGridPoints, model.DefaultGrid.Points),
+		map[string]string{"points": strconv.Itoa(n), "limit": strconv.Itoa(s.opt.MaxGridPoints)}, 0)
 }

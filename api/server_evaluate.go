@@ -57,6 +57,9 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 	if err := p.err(); err != nil {
 		return nil, err
 	}
+	if err := s.checkGrid(pl); err != nil {
+		return nil, err
+	}
 	if w := len(setups) * pl.eval.Cases(); w > s.opt.MaxSyncWork {
 		return nil, resourceExhausted(ReasonTooManySetups,
 			fmt.Sprintf("setups × road cases = %d is over the server's %d for one call; split the setups over several calls", w, s.opt.MaxSyncWork),

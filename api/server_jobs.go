@@ -35,6 +35,9 @@ func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.S
 	if err != nil {
 		return nil, err
 	}
+	if err := s.checkGrid(pl); err != nil {
+		return nil, err
+	}
 	if w := pl.work(); w > s.opt.MaxJobWork {
 		return nil, resourceExhausted(ReasonJobTooLarge,
 			fmt.Sprintf("the job is too large: population_size × islands × generations × road cases = %d, the server allows %d; reduce the population or the generations, or split the road cases over jobs", w, s.opt.MaxJobWork),

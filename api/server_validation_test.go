@@ -215,6 +215,23 @@ func TestSubmitOverTheLimit(t *testing.T) {
 	wantCode(t, "a job over the limit", err, codes.ResourceExhausted, ReasonJobTooLarge)
 }
 
+// TestGridOverTheLimit: a spec whose grid is finer than MaxGridPoints is
+// refused, as a job and as a synchronous evaluation.
+func TestGridOverTheLimit(t *testing.T) {
+	t.Parallel()
+	b := setup(t, Options{MaxGridPoints: 121}) // testSpec's grid has 121 points
+	if _, err := b.client.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: testSpec(2)}); err != nil {
+		t.Fatalf("a grid at the limit: %v", err)
+	}
+	spec := testSpec(2)
+	spec.Grid.Points = 123
+	_, err := b.client.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: spec})
+	wantCode(t, "a job with a grid over the limit", err, codes.ResourceExhausted, ReasonGridTooFine)
+	_, err = b.client.EvaluateSetups(testContext(t), &pb.EvaluateSetupsRequest{
+		Source: &pb.EvaluateSetupsRequest_Spec{Spec: spec}, Setups: []*pb.Setup{testSetup()}})
+	wantCode(t, "an evaluation with a grid over the limit", err, codes.ResourceExhausted, ReasonGridTooFine)
+}
+
 // TestListAndFrontRequestPaths: bad list and page arguments are named by
 // their request paths, whichever layer finds them.
 func TestListAndFrontRequestPaths(t *testing.T) {

@@ -116,6 +116,7 @@ times; no token needed), off by default.`)
 // limitFlags are the API server's limits.
 type limitFlags struct {
 	maxJobWork     int64
+	maxGridPoints  int
 	maxSyncWork    int
 	maxEvaluations int
 	maxMessage     int
@@ -125,6 +126,10 @@ type limitFlags struct {
 func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 	l := &limitFlags{}
 	jobWork, err := envInt(e, fs.name, "DAMPFRONT_MAX_JOB_WORK", api.DefaultMaxJobWork)
+	if err != nil {
+		return nil, err
+	}
+	gridPoints, err := envInt(e, fs.name, "DAMPFRONT_MAX_GRID_POINTS", api.DefaultMaxGridPoints)
 	if err != nil {
 		return nil, err
 	}
@@ -145,6 +150,7 @@ func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 		return nil, err
 	}
 	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(jobWork), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
+	fs.IntVar(&l.maxGridPoints, "max-grid-points", gridPoints, "finest frequency grid of a spec, in points ($DAMPFRONT_MAX_GRID_POINTS)")
 	fs.IntVar(&l.maxSyncWork, "max-sync-work", syncWork, "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
 	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", evals, "eval, check and compare calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
 	fs.IntVar(&l.maxMessage, "max-message-bytes", msg, "largest gRPC request or response ($DAMPFRONT_MAX_MESSAGE_BYTES)")
@@ -153,8 +159,8 @@ func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 }
 
 func (l *limitFlags) check(cmd string) error {
-	if l.maxJobWork <= 0 || l.maxSyncWork <= 0 || l.maxMessage <= 0 || l.maxEvaluations < 0 || l.rpcTimeout < 0 {
-		return usagef(cmd, "--max-job-work, --max-sync-work and --max-message-bytes must be positive, --max-concurrent-evaluations and --rpc-timeout not negative")
+	if l.maxJobWork <= 0 || l.maxGridPoints <= 0 || l.maxSyncWork <= 0 || l.maxMessage <= 0 || l.maxEvaluations < 0 || l.rpcTimeout < 0 {
+		return usagef(cmd, "--max-job-work, --max-grid-points, --max-sync-work and --max-message-bytes must be positive, --max-concurrent-evaluations and --rpc-timeout not negative")
 	}
 	return nil
 }
@@ -162,6 +168,7 @@ func (l *limitFlags) check(cmd string) error {
 func (l *limitFlags) options() api.Options {
 	o := api.Options{
 		MaxJobWork:               l.maxJobWork,
+		MaxGridPoints:            l.maxGridPoints,
 		MaxSyncWork:              l.maxSyncWork,
 		MaxConcurrentEvaluations: l.maxEvaluations,
 		MaxMessageBytes:          l.maxMessage,
