@@ -34,11 +34,8 @@ func fileStem(id string) string { return "dampfront-" + id }
 // violation, feasible and balanced.
 func (h *Handler) frontCSV(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
-	ctx, cancel := h.callContext(r)
-	defer cancel()
-	front, err := h.wholeFront(ctx, jobName(id))
-	if err != nil {
-		h.serviceError(w, r, err, false)
+	front, ok := h.requestFront(w, r, id)
+	if !ok {
 		return
 	}
 	b, err := frontCSVBytes(front)
@@ -112,11 +109,8 @@ func frontCSVBytes(front *pb.Front) ([]byte, error) {
 // in the protobuf JSON mapping (field names as in the .proto files).
 func (h *Handler) frontJSON(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
-	ctx, cancel := h.callContext(r)
-	defer cancel()
-	front, err := h.wholeFront(ctx, jobName(id))
-	if err != nil {
-		h.serviceError(w, r, err, false)
+	front, ok := h.requestFront(w, r, id)
+	if !ok {
 		return
 	}
 	b, err := protojson.MarshalOptions{Multiline: true, Indent: "  ", UseProtoNames: true}.Marshal(front)
@@ -130,11 +124,8 @@ func (h *Handler) frontJSON(w http.ResponseWriter, r *http.Request) {
 // frontSVG is the front chart as a file.
 func (h *Handler) frontSVG(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
-	ctx, cancel := h.callContext(r)
-	defer cancel()
-	front, err := h.wholeFront(ctx, jobName(id))
-	if err != nil {
-		h.serviceError(w, r, err, false)
+	front, ok := h.requestFront(w, r, id)
+	if !ok {
 		return
 	}
 	if len(front.GetSolutions()) == 0 {
@@ -153,11 +144,8 @@ func (h *Handler) curvesSVG(w http.ResponseWriter, r *http.Request) {
 		http.Error(w, fmt.Sprintf("solution index %q must be a whole number from 0", r.PathValue("index")), http.StatusBadRequest)
 		return
 	}
-	ctx, cancel := h.callContext(r)
-	defer cancel()
-	front, err := h.wholeFront(ctx, jobName(id))
-	if err != nil {
-		h.serviceError(w, r, err, false)
+	front, ok := h.requestFront(w, r, id)
+	if !ok {
 		return
 	}
 	s := solutionAt(front, k)
@@ -167,6 +155,19 @@ func (h *Handler) curvesSVG(w http.ResponseWriter, r *http.Request) {
 	}
 	name := fmt.Sprintf("%s-solution-%d-curves.svg", fileStem(id), k)
 	h.writeFigure(w, name, r.URL.Query().Get("download") != "", func() (*plot.Figure, error) { return curvesFigure(s) })
+}
+
+// requestFront fetches the whole front of job id for a request with the
+// reader's credentials; on failure it has written the error response.
+func (h *Handler) requestFront(w http.ResponseWriter, r *http.Request, id string) (*pb.Front, bool) {
+	ctx, cancel := h.callContext(r)
+	defer cancel()
+	front, err := h.wholeFront(ctx, jobName(id))
+	if err != nil {
+		h.serviceError(w, r, err, false)
+		return nil, false
+	}
+	return front, true
 }
 
 // writeFigure renders a figure as an SVG response.
