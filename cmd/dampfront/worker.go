@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 
 	"dampfront/api"
 )
@@ -19,11 +20,16 @@ workers on any number of hosts against one postgres:// database (each with
 its own --node-id), or beside a serve --workers 0 on the same SQLite file.
 A job whose worker dies is picked up by another from its last checkpoint.
 SIGINT or SIGTERM stops it: running jobs checkpoint and are handed back
-within --stop-timeout.`)
+within --stop-timeout.
+
+--health-addr serves the standard gRPC health service alone, for a
+liveness probe: SERVING while the worker works, NOT_SERVING from the
+signal on. It says the process is alive, not that the database is.`)
 	ef, err := addEngineFlags(fs, e, true)
 	if err != nil {
 		return err
 	}
+	hf := addHealthFlags(fs, e)
 	if _, err := fs.parse(args, 0, 0); err != nil {
 		return err
 	}
@@ -33,20 +39,41 @@ within --stop-timeout.`)
 	if ef.workers < 1 {
 		return usagef("worker", "--workers must be at least 1")
 	}
+	if err := hf.check(); err != nil {
+		return err
+	}
 	log := ef.logger(e.stderr)
-	eng, err := openEngine(ctx, ef.jobsConfig(log), ef.evalWorkers)
+	hp, err := hf.listen()
 	if err != nil {
 		return err
+	}
+	eng, err := openEngine(ctx, ef.jobsConfig(log), ef.evalWorkers)
+	if err != nil {
+		return errors.Join(err, hp.close())
 	}
 	svc, err := startService(ctx, eng, nil, api.Options{}, ef.stopTimeout, log)
 	if err != nil {
 		_ = eng.Close()
-		return err
+		return errors.Join(err, hp.close())
 	}
-	log.Info("working", "database", redactURL(ef.database), "backend", eng.Backend(), "workers", ef.workers)
-	<-ctx.Done()
+	hp.working()
+	attrs := []any{"database", redactURL(ef.database), "backend", eng.Backend(), "workers", ef.workers}
+	if hp != nil {
+		attrs = append(attrs, "health", hp.addr())
+	}
+	log.Info("working", attrs...)
+	select {
+	case <-ctx.Done():
+	case <-hp.ended():
+		// Without its health service the worker would be restarted by
+		// its liveness probe; stopping here hands its jobs back first.
+		log.Error("health service ended; stopping", "error", hp.err)
+	}
+	// NOT_SERVING before the running jobs checkpoint, so that a probe
+	// sees the worker going away for the whole of its stop.
+	hp.stopping()
 	log.Info("stopping: running jobs checkpoint and are handed back", "timeout", ef.stopTimeout)
-	if err := svc.shutdown(); err != nil {
+	if err := errors.Join(svc.shutdown(), hp.close()); err != nil {
 		return err
 	}
 	log.Info("stopped")
