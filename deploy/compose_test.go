@@ -150,8 +150,9 @@ func TestComposeMigratesBeforeServing(t *testing.T) {
 	}
 }
 
-// The API's address, published port and health check agree; the workers
-// serve nothing and have the image's health check off.
+// The API's address, published port and health check agree; so do the
+// workers' health address and health check, and the workers publish
+// nothing (the check runs inside the container).
 func TestComposeAPIPortAndHealthCheck(t *testing.T) {
 	t.Parallel()
 	c := readCompose(t)
@@ -173,7 +174,29 @@ func TestComposeAPIPortAndHealthCheck(t *testing.T) {
 	if cp, _ := strconv.Atoi(parts[len(parts)-1]); cp != port {
 		t.Errorf("%s: publishes container port %s, the server listens on %d", where, parts[len(parts)-1], port)
 	}
-	test := strings_(t, where, list(t, where, a.raw, "healthcheck", "test"))
+	checkComposeHealthCheck(t, where, a.raw, port)
+
+	w := svcs["worker"]
+	where = composeFile + ": service worker"
+	health := effective(t, "worker", w.args, w.env, "health-addr")
+	if health.value == "" {
+		t.Fatalf("%s: no --health-addr (or $DAMPFRONT_HEALTH_ADDR): its health check would ask nothing", where)
+	}
+	checkComposeHealthCheck(t, where, w.raw, portOf(t, where, health.value))
+	if _, ok := w.raw["ports"]; ok {
+		t.Errorf("%s: publishes ports, but only its own health check needs its one", where)
+	}
+}
+
+// checkComposeHealthCheck fails t unless the service's health check runs
+// the image's grpc-health-probe against port on the container's
+// loopback.
+func checkComposeHealthCheck(t *testing.T, where string, svc obj, port int) {
+	t.Helper()
+	if v, _ := at(svc, "healthcheck", "disable"); v == true {
+		t.Errorf("%s: the health check is disabled", where)
+	}
+	test := strings_(t, where, list(t, where, svc, "healthcheck", "test"))
 	if len(test) < 2 || test[0] != "CMD" || test[1] != "/usr/local/bin/grpc-health-probe" {
 		t.Fatalf("%s: healthcheck %q, want [CMD /usr/local/bin/grpc-health-probe ...]", where, test)
 	}
@@ -183,14 +206,6 @@ func TestComposeAPIPortAndHealthCheck(t *testing.T) {
 		t.Errorf("%s: the image has no %s", where, test[1])
 	}
 	checkProbeAddr(t, where, test[2:], port)
-
-	w := svcs["worker"]
-	if v, _ := at(w.raw, "healthcheck", "disable"); v != true {
-		t.Errorf("%s: the worker keeps the image's gRPC health check, but serves no gRPC", composeFile)
-	}
-	if _, ok := w.raw["ports"]; ok {
-		t.Errorf("%s: the worker publishes ports but listens on none", composeFile)
-	}
 }
 
 // The database URL reaches the postgres service with its user, password

@@ -291,7 +291,7 @@ func TestManifestAPIPortsAndProbes(t *testing.T) {
 		}
 	}
 	if selectsWorkers {
-		t.Errorf("%s: the selector also selects the worker pods, which serve no gRPC", svc.file)
+		t.Errorf("%s: the selector also selects the worker pods, which serve no API", svc.file)
 	}
 	for _, p := range list(t, svc.file, svc.obj, "spec", "ports") {
 		po := p.(obj)
@@ -382,19 +382,44 @@ func secretFile(t *testing.T, ms []manifest, m manifest, c container, path strin
 	return ""
 }
 
-// A worker serves no gRPC, so it must not be probed on a port; it is
-// sized by replicas and by the jobs and evaluations each runs at once.
+// A worker serves the gRPC health service alone, on its --health-addr
+// (cmd/dampfront/worker_health.go): its container port and its liveness
+// probe are that port, which is off loopback, since the kubelet probes
+// the pod's address. No Service sends it traffic, and its health does
+// not say whether it could take any, so it has no readiness probe (nor a
+// startup probe: it starts in seconds, the migration Job having run). It
+// is sized by replicas and by the jobs and evaluations each runs at once.
 func TestManifestWorkers(t *testing.T) {
 	t.Parallel()
 	_, w := deployments(t, readManifests(t))
 	c := mustContainers(t, w)[0]
-	for _, probe := range []string{"readinessProbe", "livenessProbe", "startupProbe"} {
-		if _, ok := c.raw[probe]; ok {
-			t.Errorf("%s: %s, but a worker serves nothing to probe", c.where, probe)
+	addr := effective(t, "worker", c.args, c.env, "health-addr")
+	switch addr.source {
+	case "secret":
+		t.Fatalf("%s: --health-addr from a Secret", c.where)
+	case "default":
+		t.Fatalf("%s: no --health-addr (or $DAMPFRONT_HEALTH_ADDR): the worker would serve nothing for its liveness probe", c.where)
+	}
+	reachableHost(t, c.where, addr.value)
+	port := portOf(t, c.where, addr.value)
+	ports := list(t, c.where, c.raw, "ports")
+	if len(ports) != 1 {
+		t.Errorf("%s: %d container ports, want the health port %d alone", c.where, len(ports), port)
+	}
+	for _, p := range ports {
+		if cp := int(num(t, c.where, p.(obj), "containerPort")); cp != port {
+			t.Errorf("%s: containerPort %d, the health service listens on %d (%s)", c.where, cp, port, addr.value)
 		}
 	}
-	if _, ok := c.raw["ports"]; ok {
-		t.Errorf("%s: container ports, but a worker listens on none", c.where)
+	if g, ok := at(c.raw, "livenessProbe", "grpc"); !ok {
+		t.Errorf("%s: no livenessProbe.grpc: probe the worker's gRPC health service", c.where)
+	} else if p := int(num(t, c.where, g.(obj), "port")); p != port {
+		t.Errorf("%s: livenessProbe on port %d, the health service listens on %d", c.where, p, port)
+	}
+	for _, probe := range []string{"readinessProbe", "startupProbe"} {
+		if _, ok := c.raw[probe]; ok {
+			t.Errorf("%s: %s, but no Service sends a worker traffic and its health is liveness only", c.where, probe)
+		}
 	}
 	if r := num(t, w.file, w.obj, "spec", "replicas"); r < 1 {
 		t.Errorf("%s: replicas %g", w.file, r)

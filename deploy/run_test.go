@@ -3,9 +3,11 @@ package deploy
 import (
 	"bytes"
 	"context"
+	"net"
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"sync"
 	"syscall"
@@ -25,7 +27,8 @@ import (
 // far as this machine allows: each subcommand with the container's
 // arguments and environment, but on 127.0.0.1 with a free port and on a
 // SQLite file in a temporary directory instead of the PostgreSQL URL.
-// A served API must answer the gRPC health service (grpc.health.v1,
+// A served API, and a worker's health endpoint, must answer the gRPC
+// health service (grpc.health.v1,
 // github.com/grpc/grpc/blob/master/doc/health-checking.md) as SERVING
 // for every service name a probe asks about; every process must stop
 // with exit code 0 on SIGTERM, as Kubernetes and compose stop it.
@@ -41,7 +44,7 @@ type runCase struct {
 	sub      string
 	args     []string
 	env      map[string]string
-	services []string // health service names probed (serve only)
+	services []string // health service names probed
 	tokens   string   // the tokens file's content, when serve has one
 }
 
@@ -94,6 +97,12 @@ func TestContainersRunOnLoopback(t *testing.T) {
 			args := append([]string{rc.sub}, rc.args...)
 			args = append(args, "--database="+filepath.Join(dir, "jobs.db"))
 			addrFile := filepath.Join(dir, "addr")
+			healthAddr := ""
+			if rc.sub == "worker" && effective(t, "worker", rc.args, rc.env, "health-addr").value != "" {
+				// The flag overrides the container's variable.
+				healthAddr = "127.0.0.1:" + strconv.Itoa(freePort(t))
+				args = append(args, "--health-addr="+healthAddr)
+			}
 			if rc.sub == "serve" {
 				args = append(args, "--addr=127.0.0.1:0", "--addr-file="+addrFile)
 				if rc.tokens != "" {
@@ -137,6 +146,7 @@ func TestContainersRunOnLoopback(t *testing.T) {
 				checkHealth(t, addr, rc.services, rc.tokens != "")
 			case "worker":
 				waitOutput(t, "working", done, &out)
+				checkWorkerHealth(t, healthAddr, rc.services)
 			default:
 				t.Fatalf("no run check for %s", rc.sub)
 			}
@@ -158,13 +168,56 @@ func checkHealth(t *testing.T, addr string, services []string, auth bool) {
 	if len(services) == 0 {
 		t.Fatal("the server is probed for no health service")
 	}
+	conn, ctx := dialHealth(t, addr)
+	checkServing(t, ctx, conn, services)
+	_, err := pb.NewDampfrontServiceClient(conn).ListJobs(ctx, &pb.ListJobsRequest{})
+	switch code := status.Code(err); {
+	case auth && code != codes.Unauthenticated:
+		t.Errorf("ListJobs without a token on a server with tokens: %v, want Unauthenticated", err)
+	case !auth && err != nil:
+		t.Errorf("ListJobs on a server without tokens: %v", err)
+	}
+}
+
+// checkWorkerHealth checks a worker's health endpoint at addr ("" when
+// it has none) as checkHealth does a server's: each probed service name
+// SERVING, and no API behind the port (Unimplemented). A worker probed
+// without a health address, or given one that nothing probes, fails t.
+func checkWorkerHealth(t *testing.T, addr string, services []string) {
+	t.Helper()
+	switch {
+	case addr == "" && len(services) == 0:
+		return
+	case addr == "":
+		t.Fatalf("the worker is probed for %q but has no --health-addr", services)
+	case len(services) == 0:
+		t.Fatalf("the worker serves health on --health-addr but nothing probes it")
+	}
+	conn, ctx := dialHealth(t, addr)
+	checkServing(t, ctx, conn, services)
+	if _, err := pb.NewDampfrontServiceClient(conn).ListJobs(ctx, &pb.ListJobsRequest{}); status.Code(err) != codes.Unimplemented {
+		t.Errorf("ListJobs on the worker's health port: %v, want Unimplemented", err)
+	}
+}
+
+// dialHealth connects to addr in plaintext, as the probes do, with a
+// context bounded by runBound; both end with the test.
+func dialHealth(t *testing.T, addr string) (*grpc.ClientConn, context.Context) {
+	t.Helper()
 	conn, err := grpc.NewClient(addr, grpc.WithTransportCredentials(insecure.NewCredentials()))
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer conn.Close()
+	t.Cleanup(func() { conn.Close() })
 	ctx, cancel := context.WithTimeout(context.Background(), runBound)
-	defer cancel()
+	t.Cleanup(cancel)
+	return conn, ctx
+}
+
+// checkServing fails t unless the health service answers SERVING for
+// each service name.
+func checkServing(t *testing.T, ctx context.Context, conn *grpc.ClientConn, services []string) {
+	t.Helper()
 	hc := healthpb.NewHealthClient(conn)
 	for _, svc := range services {
 		resp, err := hc.Check(ctx, &healthpb.HealthCheckRequest{Service: svc})
@@ -176,13 +229,17 @@ func checkHealth(t *testing.T, addr string, services []string, auth bool) {
 			t.Errorf("health of %q: %v, want SERVING", svc, resp.GetStatus())
 		}
 	}
-	_, err = pb.NewDampfrontServiceClient(conn).ListJobs(ctx, &pb.ListJobsRequest{})
-	switch code := status.Code(err); {
-	case auth && code != codes.Unauthenticated:
-		t.Errorf("ListJobs without a token on a server with tokens: %v, want Unauthenticated", err)
-	case !auth && err != nil:
-		t.Errorf("ListJobs on a server without tokens: %v", err)
+}
+
+// freePort is a TCP port of 127.0.0.1 that was free a moment ago.
+func freePort(t *testing.T) int {
+	t.Helper()
+	l, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		t.Fatal(err)
 	}
+	defer l.Close()
+	return l.Addr().(*net.TCPAddr).Port
 }
 
 // waitExit waits for the process to end and fails t unless it exited 0.
