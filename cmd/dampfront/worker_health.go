@@ -28,10 +28,10 @@ import (
 // database outage would make Kubernetes restart every worker at once,
 // which cures nothing (the new ones cannot reach the database either),
 // throws away the work since the last checkpoint and turns one outage
-// into a restart storm; the engine already rides out an outage and
-// carries on when the database is back (the fault tests restart
-// PostgreSQL under running workers). So the answer means only "the
-// process is alive and not stopping".
+// into a restart storm; a worker left running reconnects when the
+// database is back (TestFaultPostgresRestart restarts PostgreSQL under
+// running workers). So the answer means only "the process is alive and
+// not stopping".
 //
 // It is plaintext and needs no token: it tells a caller nothing but that
 // status. Kubernetes' native gRPC probes cannot speak TLS anyway (see
