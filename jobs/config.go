@@ -58,11 +58,14 @@ type Config struct {
 	// FinalizeTimeout bounds the database writes at the end of a slice.
 	// Default 30 s.
 	FinalizeTimeout time.Duration
-	// RetryDelay is the wait before a slice that failed on a database
-	// error runs again. Default 5 s.
+	// RetryDelay is the wait before a slice that failed runs again.
+	// Default 5 s.
 	RetryDelay time.Duration
 	// MaxAttempts is the number of attempts per slice (River's); a slice
-	// that fails on its last attempt fails the job. Default 10.
+	// that fails on its last attempt fails the job. A failure because the
+	// database is unreachable or full (IsUnavailable) spends no attempt:
+	// the slice waits RetryDelay and runs again, as often as it takes.
+	// Default 10.
 	MaxAttempts int
 	// FetchPollInterval is how often idle workers look for queued slices
 	// (River's; SQLite has no LISTEN/NOTIFY). Default 1 s.

@@ -14,7 +14,7 @@
 //	  tx { dampfront_job row (queued) + labels; River job "dampfront_slice" #1 }
 //
 //	a worker fetches slice n (River)
-//	  JobStart: job -> running, lease := client/river-job/attempt
+//	  JobStart: job -> running, lease := client/river-job/attempt/snoozes
 //	  Open(spec, last checkpoint or nil) -> Study
 //	  loop Step(ctx, StepGenerations) until
 //	      done | SliceDuration elapsed | cancel flag seen | engine stopping
@@ -37,6 +37,11 @@
 // gone. Every write of a slice run carries its lease; a run that has been
 // superseded by a rescued one gets ErrFailedPrecondition and writes
 // nothing, so the stored checkpoint always belongs to one run.
+//
+// A slice run that fails because the database is unreachable or full
+// (IsUnavailable) is snoozed for RetryDelay rather than retried: River
+// runs it again without spending one of MaxAttempts, so a database
+// outage of any length delays jobs and fails none.
 //
 // Determinism: the engine hands the study exactly the bytes its last
 // Checkpoint returned and never keeps a half-run generation (Study.Step

@@ -2,6 +2,7 @@ package jobs
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"time"
@@ -9,6 +10,17 @@ import (
 	"github.com/riverqueue/river"
 	"github.com/riverqueue/river/riverdriver"
 )
+
+// runLease names one run of a slice: River client, River job, attempt, and
+// the times it was snoozed, which River records in the job's metadata and
+// which tell apart the runs of one attempt (a snooze does not count one).
+func runLease(client string, rj *river.Job[sliceArgs]) string {
+	var m struct {
+		Snoozes int64 `json:"snoozes"`
+	}
+	_ = json.Unmarshal(rj.Metadata, &m) // absent or unreadable: never snoozed
+	return fmt.Sprintf("%s/%d/%d/%d", client, rj.ID, rj.Attempt, m.Snoozes)
+}
 
 // sliceWorker is River's worker for slices.
 type sliceWorker[TTx any] struct {
@@ -26,8 +38,19 @@ func (w *sliceWorker[TTx]) Timeout(*river.Job[sliceArgs]) time.Duration {
 // the job's progress waits for it.
 func (w *sliceWorker[TTx]) NextRetry(*river.Job[sliceArgs]) time.Time { return w.rq.retryAt() }
 
+// Work runs one slice. A slice that fails because the database is
+// unreachable or full (IsUnavailable) is snoozed for RetryDelay instead:
+// River then runs it again without counting an attempt, so an outage of
+// any length delays a job but never fails it, and the job goes on from
+// its last stored checkpoint when the database is back. Other errors
+// spend one of MaxAttempts.
 func (w *sliceWorker[TTx]) Work(ctx context.Context, rj *river.Job[sliceArgs]) error {
 	err := w.rq.runSlice(ctx, rj)
+	if err != nil && ctx.Err() == nil && IsUnavailable(err) {
+		w.rq.e.cfg.Logger.WarnContext(ctx, "jobs: database unavailable; the slice waits and runs again",
+			"job", rj.Args.JobID, "slice", rj.Args.Slice, "retry_in", w.rq.e.cfg.RetryDelay, "error", err)
+		return river.JobSnooze(w.rq.e.cfg.RetryDelay)
+	}
 	if err != nil && rj.Attempt >= rj.MaxAttempts {
 		// River discards the slice after this attempt; fail the job with
 		// it rather than leave it running forever.
@@ -66,7 +89,7 @@ func (rq *riverQueue[TTx]) runSlice(ctx context.Context, rj *river.Job[sliceArgs
 		return rq.handOver(ctx, rj, "", nil)
 	default:
 	}
-	lease := fmt.Sprintf("%s/%d/%d", rq.id, rj.ID, rj.Attempt)
+	lease := runLease(rq.id, rj)
 	job, err = st.JobStart(ctx, &JobStartParams{ID: id, Lease: lease, Now: e.cfg.Now()})
 	if errors.Is(err, ErrFailedPrecondition) {
 		return nil // finished meanwhile
@@ -268,7 +291,7 @@ func (rq *riverQueue[TTx]) failJob(ctx context.Context, rj *river.Job[sliceArgs]
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
 	st := rq.db.store
-	lease := fmt.Sprintf("%s/%d/%d/final", rq.id, rj.ID, rj.Attempt)
+	lease := runLease(rq.id, rj) + "/final"
 	if _, err := st.JobStart(ctx, &JobStartParams{ID: rj.Args.JobID, Lease: lease, Now: rq.e.cfg.Now()}); err != nil {
 		return
 	}

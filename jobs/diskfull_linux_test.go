@@ -1,0 +1,125 @@
+package jobs
+
+import (
+	"context"
+	"errors"
+	"log/slog"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync/atomic"
+	"syscall"
+	"testing"
+	"time"
+)
+
+// A full disk under a running job spends no slice attempts: with
+// MaxAttempts 2, the disk stays full until the slice has failed on it
+// more than twice, and the job still succeeds, with the front of the run
+// straight through, once room is made. Without the snooze on
+// IsUnavailable errors the second failure would fail the job.
+//
+// The database is on a small tmpfs that the test mounts and fills, for a
+// real SQLITE_FULL; that needs root and CAP_SYS_ADMIN, and the test skips,
+// saying so, without them.
+func TestDiskFullSpendsNoAttempts(t *testing.T) {
+	t.Parallel()
+	dir := mountTmpfs(t, "16m")
+	waits := &countingHandler{prefix: "jobs: database unavailable"}
+	b := setup(t, filepath.Join(dir, "dampfront.db"), func(c *Config) {
+		c.Workers, c.MaxAttempts = 1, 2
+		c.Logger = slog.New(waits)
+	})
+	spec := toySpec{Generations: 300, Size: 5, Seed: 3, StepDelay: 2 * time.Millisecond}
+	j := b.submit(t, spec, nil)
+	waitFor(t, b.engine, j.ID, "checkpointed", func(j *Job) bool { return j.Progress.Generation > 0 })
+
+	// The disk fills and empties in turns, as a volume shared with files
+	// that come and go would: the slice fails on it while full, and River
+	// records the failure while there is room. Turns until the slice has
+	// failed more than MaxAttempts times, within a bound.
+	const failures = 3 // more than MaxAttempts
+	// River's completer backs off 1 s, 2 s, 4 s ... while it cannot write,
+	// so the turns take a few seconds to some tens; this bounds a hang.
+	const bound = 2 * time.Minute
+	deadline := time.Now().Add(bound)
+	for turns := 0; waits.n.Load() < failures; turns++ {
+		if time.Now().After(deadline) {
+			t.Fatalf("the slice met the full disk %d times in %d turns within %v; want %d", waits.n.Load(), turns, bound, failures)
+		}
+		if j, err := b.engine.Get(context.Background(), j.ID); err == nil && j.State.Terminal() {
+			t.Fatalf("job ended %s (%s) after the slice met the full disk %d times; want it to wait", j.State, j.Error, waits.n.Load())
+		}
+		filler := fillTmpfs(t, dir)
+		time.Sleep(300 * time.Millisecond)
+		if err := os.Remove(filler); err != nil {
+			t.Fatal(err)
+		}
+		time.Sleep(300 * time.Millisecond)
+	}
+
+	j = waitTerminal(t, b.engine, j.ID)
+	if j.State != StateSucceeded || j.Partial || j.Error != "" {
+		t.Fatalf("job after %d runs met the full disk: %+v; want succeeded", waits.n.Load(), j)
+	}
+	sameFront(t, frontOf(t, b.engine, j.ID).Solutions, toyFrontAt(spec, spec.Generations))
+}
+
+// countingHandler counts the log records whose message starts with prefix.
+type countingHandler struct {
+	prefix string
+	n      atomic.Int64
+}
+
+func (h *countingHandler) Enabled(context.Context, slog.Level) bool { return true }
+func (h *countingHandler) WithAttrs([]slog.Attr) slog.Handler      { return h }
+func (h *countingHandler) WithGroup(string) slog.Handler           { return h }
+func (h *countingHandler) Handle(_ context.Context, r slog.Record) error {
+	if strings.HasPrefix(r.Message, h.prefix) {
+		h.n.Add(1)
+	}
+	return nil
+}
+
+// mountTmpfs mounts a tmpfs of the given size on a new temporary
+// directory, unmounted by the cleanup, or skips the test. Call it before
+// anything whose cleanup must run while it is mounted.
+func mountTmpfs(t *testing.T, size string) string {
+	t.Helper()
+	if os.Geteuid() != 0 {
+		t.Skip("mounting a small tmpfs to fill needs root")
+	}
+	dir := t.TempDir()
+	if err := syscall.Mount("tmpfs", dir, "tmpfs", 0, "size="+size+",mode=0700"); err != nil {
+		t.Skipf("cannot mount a tmpfs to fill (%v); this kernel or container does not allow it", err)
+	}
+	t.Cleanup(func() {
+		if err := syscall.Unmount(dir, syscall.MNT_DETACH); err != nil {
+			t.Errorf("unmount %s: %v", dir, err)
+		}
+	})
+	return dir
+}
+
+// fillTmpfs writes a file into dir until its file system is full, and
+// returns the file's path.
+func fillTmpfs(t *testing.T, dir string) string {
+	t.Helper()
+	path := filepath.Join(dir, "filler")
+	f, err := os.Create(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	block := make([]byte, 64<<10)
+	for {
+		if _, err := f.Write(block); errors.Is(err, syscall.ENOSPC) {
+			break
+		} else if err != nil {
+			t.Fatalf("fill the tmpfs: %v", err)
+		}
+	}
+	if err := f.Close(); err != nil && !errors.Is(err, syscall.ENOSPC) {
+		t.Fatal(err)
+	}
+	return path
+}
