@@ -53,8 +53,15 @@ func (w *sliceWorker[TTx]) Work(ctx context.Context, rj *river.Job[sliceArgs]) e
 	}
 	if err != nil && rj.Attempt >= rj.MaxAttempts {
 		// River discards the slice after this attempt; fail the job with
-		// it rather than leave it running forever.
-		w.rq.failJob(ctx, rj, fmt.Errorf("slice %d failed %d times, last: %w", rj.Args.Slice, rj.Attempt, err))
+		// it rather than leave it running forever. If even that cannot be
+		// written, keep the slice (snoozed, so this stays the last
+		// attempt) until it can: a discarded slice under a running job
+		// would leave the job running with nothing to end it.
+		if ferr := w.rq.failJob(ctx, rj, fmt.Errorf("slice %d failed %d times, last: %w", rj.Args.Slice, rj.Attempt, err)); ferr != nil {
+			w.rq.e.cfg.Logger.ErrorContext(ctx, "jobs: could not fail job after its last slice attempt; trying again",
+				"job", rj.Args.JobID, "retry_in", w.rq.e.cfg.RetryDelay, "error", ferr)
+			return river.JobSnooze(w.rq.e.cfg.RetryDelay)
+		}
 	}
 	return err
 }
@@ -286,18 +293,20 @@ func finishedElsewhere(err error) error {
 	return err
 }
 
-// failJob fails a job whose slice River is about to discard.
-func (rq *riverQueue[TTx]) failJob(ctx context.Context, rj *river.Job[sliceArgs], cause error) {
+// failJob fails a job whose slice River is about to discard. A job that
+// has ended meanwhile is left as it is.
+func (rq *riverQueue[TTx]) failJob(ctx context.Context, rj *river.Job[sliceArgs], cause error) error {
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
 	st := rq.db.store
 	lease := runLease(rq.id, rj) + "/final"
-	if _, err := st.JobStart(ctx, &JobStartParams{ID: rj.Args.JobID, Lease: lease, Now: rq.e.cfg.Now()}); err != nil {
-		return
+	_, err := st.JobStart(ctx, &JobStartParams{ID: rj.Args.JobID, Lease: lease, Now: rq.e.cfg.Now()})
+	if err == nil {
+		_, err = st.JobFinish(ctx, &JobFinishParams{ID: rj.Args.JobID, Lease: lease, State: StateFailed,
+			Error: cause.Error(), Partial: true, Now: rq.e.cfg.Now()})
 	}
-	if _, err := st.JobFinish(ctx, &JobFinishParams{ID: rj.Args.JobID, Lease: lease, State: StateFailed,
-		Error: cause.Error(), Partial: true, Now: rq.e.cfg.Now()}); err != nil {
-		rq.e.cfg.Logger.ErrorContext(ctx, "jobs: could not fail job after its last slice attempt",
-			"job", rj.Args.JobID, "error", err)
+	if errors.Is(err, ErrFailedPrecondition) || errors.Is(err, ErrNotFound) {
+		return nil // ended meanwhile, or gone
 	}
+	return err
 }
