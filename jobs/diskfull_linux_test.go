@@ -2,15 +2,15 @@ package jobs
 
 import (
 	"context"
-	"errors"
 	"log/slog"
 	"os"
 	"path/filepath"
 	"strings"
 	"sync/atomic"
-	"syscall"
 	"testing"
 	"time"
+
+	"dampfront/jobs/jobstest"
 )
 
 // A full disk under a running job spends no slice attempts: with
@@ -20,11 +20,10 @@ import (
 // IsUnavailable errors the second failure would fail the job.
 //
 // The database is on a small tmpfs that the test mounts and fills, for a
-// real SQLITE_FULL; that needs root and CAP_SYS_ADMIN, and the test skips,
-// saying so, without them.
+// real SQLITE_FULL (jobstest.MountSmallDisk: root only, else skipped).
 func TestDiskFullSpendsNoAttempts(t *testing.T) {
 	t.Parallel()
-	dir := mountTmpfs(t, "16m")
+	dir := jobstest.MountSmallDisk(t, "16m")
 	waits := &countingHandler{prefix: "jobs: database unavailable"}
 	b := setup(t, filepath.Join(dir, "dampfront.db"), func(c *Config) {
 		c.Workers, c.MaxAttempts = 1, 2
@@ -50,7 +49,7 @@ func TestDiskFullSpendsNoAttempts(t *testing.T) {
 		if j, err := b.engine.Get(context.Background(), j.ID); err == nil && j.State.Terminal() {
 			t.Fatalf("job ended %s (%s) after the slice met the full disk %d times; want it to wait", j.State, j.Error, waits.n.Load())
 		}
-		filler := fillTmpfs(t, dir)
+		filler := jobstest.Fill(t, dir, 0)
 		time.Sleep(300 * time.Millisecond)
 		if err := os.Remove(filler); err != nil {
 			t.Fatal(err)
@@ -79,47 +78,4 @@ func (h *countingHandler) Handle(_ context.Context, r slog.Record) error {
 		h.n.Add(1)
 	}
 	return nil
-}
-
-// mountTmpfs mounts a tmpfs of the given size on a new temporary
-// directory, unmounted by the cleanup, or skips the test. Call it before
-// anything whose cleanup must run while it is mounted.
-func mountTmpfs(t *testing.T, size string) string {
-	t.Helper()
-	if os.Geteuid() != 0 {
-		t.Skip("mounting a small tmpfs to fill needs root")
-	}
-	dir := t.TempDir()
-	if err := syscall.Mount("tmpfs", dir, "tmpfs", 0, "size="+size+",mode=0700"); err != nil {
-		t.Skipf("cannot mount a tmpfs to fill (%v); this kernel or container does not allow it", err)
-	}
-	t.Cleanup(func() {
-		if err := syscall.Unmount(dir, syscall.MNT_DETACH); err != nil {
-			t.Errorf("unmount %s: %v", dir, err)
-		}
-	})
-	return dir
-}
-
-// fillTmpfs writes a file into dir until its file system is full, and
-// returns the file's path.
-func fillTmpfs(t *testing.T, dir string) string {
-	t.Helper()
-	path := filepath.Join(dir, "filler")
-	f, err := os.Create(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	block := make([]byte, 64<<10)
-	for {
-		if _, err := f.Write(block); errors.Is(err, syscall.ENOSPC) {
-			break
-		} else if err != nil {
-			t.Fatalf("fill the tmpfs: %v", err)
-		}
-	}
-	if err := f.Close(); err != nil && !errors.Is(err, syscall.ENOSPC) {
-		t.Fatal(err)
-	}
-	return path
 }

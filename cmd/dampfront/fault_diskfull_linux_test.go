@@ -8,7 +8,6 @@ import (
 	"path/filepath"
 	"slices"
 	"strings"
-	"syscall"
 	"testing"
 	"time"
 
@@ -22,6 +21,7 @@ import (
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
+	"dampfront/jobs/jobstest"
 )
 
 // diskFullMaxSubmits bounds the submits it takes to fill the disk. Each
@@ -48,7 +48,7 @@ const (
 // skipped, saying so, otherwise.
 func TestFaultDiskFullAtSubmit(t *testing.T) {
 	t.Parallel()
-	dir := mountSmallDisk(t)
+	dir := jobstest.MountSmallDisk(t, diskFullSize)
 	db := filepath.Join(dir, "dampfront.db")
 	s := startServer(t, db, nil, "--workers", "0")
 	spec := &pb.JobSpec{}
@@ -64,7 +64,7 @@ func TestFaultDiskFullAtSubmit(t *testing.T) {
 	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Minute)
 	defer cancel()
 
-	filler := fillDisk(t, dir, diskFullHeadroom)
+	filler := jobstest.Fill(t, dir, diskFullHeadroom)
 	var accepted []string
 	full := 0
 	for i := 0; i < diskFullMaxSubmits && full < 3; i++ {
@@ -114,58 +114,6 @@ func seeded(spec *pb.JobSpec, seed uint64) *pb.JobSpec {
 	}
 	out.Search.Seed = &seed
 	return out
-}
-
-// mountSmallDisk mounts a tmpfs of diskFullSize on a new temporary
-// directory, unmounted by the cleanup (after the server's, which is
-// registered later), or skips the test.
-func mountSmallDisk(t *testing.T) string {
-	t.Helper()
-	if os.Geteuid() != 0 {
-		t.Skip("mounting a small tmpfs to fill needs root")
-	}
-	dir := t.TempDir()
-	if err := syscall.Mount("tmpfs", dir, "tmpfs", 0, "size="+diskFullSize+",mode=0700"); err != nil {
-		t.Skipf("cannot mount a tmpfs to fill (%v); this kernel or container does not allow it", err)
-	}
-	t.Cleanup(func() {
-		if err := syscall.Unmount(dir, syscall.MNT_DETACH); err != nil {
-			t.Errorf("unmount %s: %v", dir, err)
-		}
-	})
-	return dir
-}
-
-// fillDisk writes a file into dir until headroom bytes are left free on
-// its file system, and returns its path.
-func fillDisk(t *testing.T, dir string, headroom int64) string {
-	t.Helper()
-	var fs syscall.Statfs_t
-	if err := syscall.Statfs(dir, &fs); err != nil {
-		t.Fatal(err)
-	}
-	free := int64(fs.Bavail) * fs.Bsize
-	if free < headroom {
-		t.Fatalf("only %d bytes free on the tmpfs after the server started; want more than %d", free, headroom)
-	}
-	path := filepath.Join(dir, "filler")
-	f, err := os.Create(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	block := make([]byte, 64<<10)
-	for left := free - headroom; left > 0; left -= int64(len(block)) {
-		n := min(left, int64(len(block)))
-		if _, err := f.Write(block[:n]); errors.Is(err, syscall.ENOSPC) {
-			break // full a little early: the server's files grew meanwhile
-		} else if err != nil {
-			t.Fatalf("fill the tmpfs: %v", err)
-		}
-	}
-	if err := f.Close(); err != nil {
-		t.Fatal(err)
-	}
-	return path
 }
 
 // checkUnavailableFull checks that submit i failed as a full database
@@ -245,7 +193,7 @@ func TestFaultDiskFullWhileRunning(t *testing.T) {
 	t.Parallel()
 	specPath := faultSpec(t, 16, 60)
 	reference := referenceRun(t, specPath, []uint64{41})
-	dir := mountSmallDisk(t)
+	dir := jobstest.MountSmallDisk(t, diskFullSize)
 	db := filepath.Join(dir, "dampfront.db")
 	s := startServer(t, db, []string{"DAMPFRONT_SLICE=1s", "DAMPFRONT_CHECKPOINT_INTERVAL=100ms"},
 		"--workers", "1", "--eval-workers", "1")
@@ -268,7 +216,7 @@ func TestFaultDiskFullWhileRunning(t *testing.T) {
 		}
 		time.Sleep(pollInterval)
 	}
-	filler := fillDisk(t, dir, 0)
+	filler := jobstest.Fill(t, dir, 0)
 	// Until the worker has met the full disk (a checkpoint or a slice
 	// hand-over failed), so that the test cannot pass without the fault.
 	for !strings.Contains(s.logs.String(), "database or disk is full") {
