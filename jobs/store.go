@@ -21,6 +21,10 @@ type Store interface {
 	JobGetByID(ctx context.Context, params *JobGetByIDParams) (*Job, error)
 	// JobList pages through jobs, newest first, filtered by state and labels.
 	JobList(ctx context.Context, params *JobListParams) (*JobListResult, error)
+	// JobCounts counts the jobs in each state and finds the oldest last
+	// checkpoint among running jobs, by aggregate queries that decode no
+	// job (a metrics scrape reads it; JobList would read every spec).
+	JobCounts(ctx context.Context, params *JobCountsParams) (*JobCountsResult, error)
 	// JobCancelRequest flags a job for cancellation. A queued job that no
 	// slice has started is cancelled at once; a running one is finished by
 	// its slice. A terminal job gives a *PreconditionError.
@@ -114,6 +118,22 @@ const (
 type JobListResult struct {
 	Jobs          []*Job
 	NextPageToken string // empty on the last page
+}
+
+// JobCountsParams are the inputs of Store.JobCounts. There are none yet;
+// the struct keeps the Store's one signature style and room for a filter.
+type JobCountsParams struct{}
+
+// JobCountsResult is what Store.JobCounts read.
+type JobCountsResult struct {
+	// ByState holds the number of jobs in each state; every state of
+	// States is present, with 0 when no job is in it.
+	ByState map[State]int
+	// OldestRunningSince is, over the running jobs, the earliest of each
+	// job's last checkpoint time, or of its start time when it has no
+	// checkpoint yet: the start of the oldest work that a crash now would
+	// lose. Zero when no job runs.
+	OldestRunningSince time.Time
 }
 
 // JobCancelRequestParams are the inputs of Store.JobCancelRequest.

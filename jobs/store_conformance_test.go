@@ -434,6 +434,11 @@ func runStoreConformance(t *testing.T, newStore func(t testing.TB) Store) {
 		}
 	})
 
+	t.Run("JobCounts", func(t *testing.T) {
+		t.Parallel()
+		testJobCounts(t, newStore, t0)
+	})
+
 	t.Run("TxRollback", func(t *testing.T) {
 		t.Parallel()
 		s := newStore(t)
