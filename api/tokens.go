@@ -12,6 +12,7 @@ import (
 	"io"
 	"regexp"
 	"strings"
+	"sync"
 
 	"sigs.k8s.io/yaml"
 )
@@ -110,9 +111,23 @@ type tokenEntry struct {
 }
 
 // Tokens is the set of bearer tokens a Server accepts, each with a name
-// and a Role. Only the tokens' SHA-256 hashes are held.
+// and a Role. Only the tokens' SHA-256 hashes are held. Replace swaps in
+// a new set while the server runs; calls in flight finish with the set
+// they were checked against.
 type Tokens struct {
+	mu      sync.RWMutex
 	entries []tokenEntry
+}
+
+// Replace makes t accept exactly the tokens of from (as read by
+// ParseTokens), from the next call on.
+func (t *Tokens) Replace(from *Tokens) {
+	from.mu.RLock()
+	entries := from.entries
+	from.mu.RUnlock()
+	t.mu.Lock()
+	t.entries = entries
+	t.mu.Unlock()
 }
 
 // tokenFileEntry is one element of a tokens file.
@@ -186,7 +201,11 @@ func ParseTokens(data []byte) (*Tokens, error) {
 }
 
 // Len is the number of tokens.
-func (t *Tokens) Len() int { return len(t.entries) }
+func (t *Tokens) Len() int {
+	t.mu.RLock()
+	defer t.mu.RUnlock()
+	return len(t.entries)
+}
 
 // lookup returns the entry of token, or false. It hashes token and
 // compares the hash with every entry's in constant time
@@ -194,14 +213,17 @@ func (t *Tokens) Len() int { return len(t.entries) }
 // tells nothing of how many leading bytes matched nor which entry did.
 func (t *Tokens) lookup(token string) (tokenEntry, bool) {
 	h := sha256.Sum256([]byte(token))
+	t.mu.RLock()
+	entries := t.entries
+	t.mu.RUnlock()
 	found := -1
-	for i := range t.entries {
-		if subtle.ConstantTimeCompare(h[:], t.entries[i].hash[:]) == 1 {
+	for i := range entries {
+		if subtle.ConstantTimeCompare(h[:], entries[i].hash[:]) == 1 {
 			found = i
 		}
 	}
 	if found < 0 {
 		return tokenEntry{}, false
 	}
-	return t.entries[found], true
+	return entries[found], true
 }

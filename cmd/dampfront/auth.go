@@ -10,6 +10,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"sync/atomic"
 
 	"google.golang.org/grpc"
 	"google.golang.org/grpc/credentials"
@@ -39,10 +40,11 @@ func addServerSecurityFlags(fs *flagSet, e *env) *serverSecurityFlags {
 }
 
 // serverSecurity is what the flags loaded: the tokens and TLS of the
-// server, and how to say it at start.
+// server, and how to say it at start. reload reads the files again.
 type serverSecurity struct {
 	tokens   *api.Tokens
 	tls      *tls.Config
+	cert     atomic.Pointer[tls.Certificate] // what tls hands out, swapped by reload
 	loopback bool
 }
 
@@ -57,25 +59,71 @@ func (f *serverSecurityFlags) load(cmd, addr string) (*serverSecurity, error) {
 	if f.insecureNoAuth && f.tokensFile != "" {
 		return nil, usagef(cmd, "--insecure-no-auth and --tokens exclude each other")
 	}
+	if f.tokensFile == "" && !s.loopback && !f.insecureNoAuth {
+		return nil, usagef(cmd, "%s is not a loopback address: give --tokens FILE (make tokens with 'dampfront token new'), or --insecure-no-auth to let anyone who reaches it submit and cancel jobs", addr)
+	}
+	tokens, cert, err := f.read()
+	if err != nil {
+		return nil, err
+	}
+	s.tokens = tokens
+	if cert != nil {
+		s.cert.Store(cert)
+		s.tls = &tls.Config{
+			GetCertificate: func(*tls.ClientHelloInfo) (*tls.Certificate, error) { return s.cert.Load(), nil },
+			MinVersion:     tls.VersionTLS12,
+		}
+	}
+	return s, nil
+}
+
+// read reads the tokens file and the certificate and key, those given.
+func (f *serverSecurityFlags) read() (*api.Tokens, *tls.Certificate, error) {
+	var tokens *api.Tokens
 	if f.tokensFile != "" {
 		b, err := os.ReadFile(f.tokensFile)
 		if err != nil {
-			return nil, &inputFileError{path: f.tokensFile, err: err}
+			return nil, nil, &inputFileError{path: f.tokensFile, err: err}
 		}
-		if s.tokens, err = api.ParseTokens(b); err != nil {
-			return nil, &inputFileError{path: f.tokensFile, err: err}
+		if tokens, err = api.ParseTokens(b); err != nil {
+			return nil, nil, &inputFileError{path: f.tokensFile, err: err}
 		}
-	} else if !s.loopback && !f.insecureNoAuth {
-		return nil, usagef(cmd, "%s is not a loopback address: give --tokens FILE (make tokens with 'dampfront token new'), or --insecure-no-auth to let anyone who reaches it submit and cancel jobs", addr)
 	}
-	if f.tlsCert != "" {
-		cert, err := tls.LoadX509KeyPair(f.tlsCert, f.tlsKey)
-		if err != nil {
-			return nil, &inputFileError{path: f.tlsCert + ", " + f.tlsKey, err: err}
-		}
-		s.tls = &tls.Config{Certificates: []tls.Certificate{cert}, MinVersion: tls.VersionTLS12}
+	if f.tlsCert == "" {
+		return tokens, nil, nil
 	}
-	return s, nil
+	cert, err := tls.LoadX509KeyPair(f.tlsCert, f.tlsKey)
+	if err != nil {
+		return nil, nil, &inputFileError{path: f.tlsCert + ", " + f.tlsKey, err: err}
+	}
+	return tokens, &cert, nil
+}
+
+// reload reads the tokens file and the certificate again (on SIGHUP) and,
+// only if every file reads and parses, swaps them in for the calls and
+// TLS handshakes that follow; otherwise what is in use stays and the
+// error says why. Authentication and TLS cannot be turned on or off
+// this way: that takes a restart.
+func (f *serverSecurityFlags) reload(s *serverSecurity, log *slog.Logger) {
+	if f.tokensFile == "" && f.tlsCert == "" {
+		log.Info("SIGHUP: nothing to reload (no --tokens, no --tls-cert)")
+		return
+	}
+	tokens, cert, err := f.read()
+	if err != nil {
+		log.Error("SIGHUP: reload refused; the tokens and certificate in use stay", "error", err)
+		return
+	}
+	var attrs []any
+	if tokens != nil {
+		s.tokens.Replace(tokens)
+		attrs = append(attrs, "tokens", tokens.Len())
+	}
+	if cert != nil {
+		s.cert.Store(cert)
+		attrs = append(attrs, "certificate", f.tlsCert)
+	}
+	log.Info("SIGHUP: reloaded", attrs...)
 }
 
 // apply sets the tokens and TLS on the server's options.

@@ -5,6 +5,9 @@ import (
 	"errors"
 	"fmt"
 	"net"
+	"os"
+	"os/signal"
+	"syscall"
 	"time"
 
 	"dampfront/api"
@@ -30,7 +33,10 @@ within --stop-timeout.
 With --tokens every call but health and reflection needs a bearer token
 of the file (make them with 'dampfront token new'), whose role decides
 what it may do; without, the server listens on a loopback address only,
-unless --insecure-no-auth. --tls-cert and --tls-key serve TLS.
+unless --insecure-no-auth. --tls-cert and --tls-key serve TLS. SIGHUP
+reads the tokens file and the certificate again and swaps them in if they
+all read, for new calls and connections (a bad file is logged and the
+ones in use stay).
 
 --http-addr also serves a read-only job page (jobs, progress, fronts,
 damper curves; the same tokens, as a bearer header or a login form's
@@ -99,12 +105,23 @@ times; no token needed), off by default.`)
 		_ = svc.shutdown()
 		return err
 	}
-	select {
-	case <-ctx.Done():
-		log.Info("stopping: running jobs checkpoint and are handed back", "timeout", ef.stopTimeout)
-	case err := <-svc.served:
-		svc.served <- err // shutdown reads it again
-		log.Error("serving ended", "error", err)
+	// SIGHUP reads the tokens file and the certificate again.
+	hup := make(chan os.Signal, 1)
+	signal.Notify(hup, syscall.SIGHUP)
+	defer signal.Stop(hup)
+wait:
+	for {
+		select {
+		case <-hup:
+			sf.reload(sec, log)
+		case <-ctx.Done():
+			log.Info("stopping: running jobs checkpoint and are handed back", "timeout", ef.stopTimeout)
+			break wait
+		case err := <-svc.served:
+			svc.served <- err // shutdown reads it again
+			log.Error("serving ended", "error", err)
+			break wait
+		}
 	}
 	if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil {
 		return err
