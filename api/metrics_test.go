@@ -213,88 +213,136 @@ func TestMetricsAfterJob(t *testing.T) {
 	}
 }
 
-// fakeStore answers the two queries of the metrics' store collector.
+// fakeStore answers the one query of the metrics' store collector.
 type fakeStore struct {
 	jobs.Store
-	list        []*jobs.Job
-	checkpoints map[string]time.Time
-	err         error
+	counts *jobs.JobCountsResult
+	err    error
 }
 
-func (f *fakeStore) JobList(ctx context.Context, p *jobs.JobListParams) (*jobs.JobListResult, error) {
+func (f *fakeStore) JobCounts(ctx context.Context, p *jobs.JobCountsParams) (*jobs.JobCountsResult, error) {
 	if f.err != nil {
 		return nil, f.err
 	}
-	return &jobs.JobListResult{Jobs: f.list}, nil
+	return f.counts, nil
 }
 
-func (f *fakeStore) CheckpointGet(ctx context.Context, p *jobs.CheckpointGetParams) (*jobs.Checkpoint, error) {
-	at, ok := f.checkpoints[p.JobID]
-	if !ok {
-		return nil, &jobs.NotFoundError{Resource: "checkpoint", ID: p.JobID}
+// scrapeCollector serves a storeCollector on store whose clock reads now,
+// and scrapes it once.
+func scrapeCollector(t *testing.T, store jobs.Store, now time.Time) map[string]*dto.MetricFamily {
+	t.Helper()
+	m := NewMetrics(MetricsOptions{Logger: slog.New(slog.DiscardHandler)})
+	if err := m.reg.Register(&storeCollector{store: store, timeout: time.Second, now: func() time.Time { return now }, logger: m.logger}); err != nil {
+		t.Fatal(err)
 	}
-	return &jobs.Checkpoint{JobID: p.JobID, SavedAt: at}, nil
+	web := httptest.NewServer(m.Handler()) // 127.0.0.1
+	t.Cleanup(web.Close)
+	return scrape(t, web.URL)
 }
 
-// TestStoreCollector checks the checkpoint age and the job counts on a
-// store whose answers are fixed; the expected values are the arithmetic
-// of the times given.
+// checkStoreGauges compares the store's gauges of a scrape with the
+// counts and the checkpoint age wanted.
+func checkStoreGauges(t *testing.T, fams map[string]*dto.MetricFamily, counts map[jobs.State]int, age float64) {
+	t.Helper()
+	if got := value(t, fams, "dampfront_store_up", nil); got != 1 {
+		t.Errorf("dampfront_store_up = %v, want 1", got)
+	}
+	for _, st := range jobs.States {
+		if got := value(t, fams, "dampfront_jobs", map[string]string{"state": string(st)}); got != float64(counts[st]) {
+			t.Errorf("dampfront_jobs{state=%q} = %v, want %d", st, got, counts[st])
+		}
+	}
+	if got := value(t, fams, "dampfront_checkpoint_age_seconds", nil); got != age {
+		t.Errorf("dampfront_checkpoint_age_seconds = %v, want %v", got, age)
+	}
+}
+
+// TestStoreCollector checks the gauges made from fixed store answers; the
+// expected ages are the arithmetic of the times given.
 func TestStoreCollector(t *testing.T) {
 	t.Parallel()
 	now := time.Date(2026, 3, 1, 12, 0, 0, 0, time.UTC)
-	ago := func(s int) time.Time { return now.Add(-time.Duration(s) * time.Second) }
+	byState := func(q, r, s, f, c int) map[jobs.State]int {
+		return map[jobs.State]int{jobs.StateQueued: q, jobs.StateRunning: r, jobs.StateSucceeded: s, jobs.StateFailed: f, jobs.StateCancelled: c}
+	}
 	cases := []struct {
-		name    string
-		store   *fakeStore
-		up      float64
-		age     float64
-		running float64
+		name  string
+		store *fakeStore
+		age   float64 // -1: the store is down
 	}{
-		{"none running", &fakeStore{list: []*jobs.Job{{ID: "a", State: jobs.StateSucceeded}}}, 1, 0, 0},
-		{"oldest checkpoint wins", &fakeStore{
-			list: []*jobs.Job{
-				{ID: "a", State: jobs.StateRunning, StartedAt: ago(600)},
-				{ID: "b", State: jobs.StateRunning, StartedAt: ago(900)},
-				{ID: "c", State: jobs.StateQueued},
-			},
-			checkpoints: map[string]time.Time{"a": ago(30), "b": ago(12)},
-		}, 1, 30, 2},
-		{"a job without checkpoint counts from its start", &fakeStore{
-			list: []*jobs.Job{
-				{ID: "a", State: jobs.StateRunning, StartedAt: ago(600)},
-				{ID: "b", State: jobs.StateRunning, StartedAt: ago(50)},
-			},
-			checkpoints: map[string]time.Time{"a": ago(30)},
-		}, 1, 50, 2},
-		{"store down", &fakeStore{err: errors.New("database is locked")}, 0, -1, -1},
+		{"none running", &fakeStore{counts: &jobs.JobCountsResult{ByState: byState(1, 0, 40, 2, 3)}}, 0},
+		{"age of the oldest checkpoint", &fakeStore{counts: &jobs.JobCountsResult{ByState: byState(0, 2, 5, 0, 0),
+			OldestRunningSince: now.Add(-90 * time.Second)}}, 90},
+		// A checkpoint written by a process whose clock runs ahead.
+		{"a time ahead of the clock is no age", &fakeStore{counts: &jobs.JobCountsResult{ByState: byState(0, 1, 0, 0, 0),
+			OldestRunningSince: now.Add(5 * time.Second)}}, 0},
+		{"store down", &fakeStore{err: errors.New("database is locked")}, -1},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
-			m := NewMetrics(MetricsOptions{Logger: slog.New(slog.DiscardHandler)})
-			if err := m.reg.Register(&storeCollector{store: tc.store, timeout: time.Second, now: func() time.Time { return now }, logger: m.logger}); err != nil {
-				t.Fatal(err)
-			}
-			web := httptest.NewServer(m.Handler())
-			defer web.Close()
-			fams := scrape(t, web.URL)
-			if got := value(t, fams, "dampfront_store_up", nil); got != tc.up {
-				t.Errorf("dampfront_store_up = %v, want %v", got, tc.up)
-			}
-			if tc.up == 0 {
+			fams := scrapeCollector(t, tc.store, now)
+			if tc.age < 0 {
+				if got := value(t, fams, "dampfront_store_up", nil); got != 0 {
+					t.Errorf("dampfront_store_up = %v with the store down, want 0", got)
+				}
 				if fams["dampfront_jobs"] != nil || fams["dampfront_checkpoint_age_seconds"] != nil {
 					t.Error("job gauges served although the store could not be read")
 				}
 				return
 			}
-			if got := value(t, fams, "dampfront_checkpoint_age_seconds", nil); got != tc.age {
-				t.Errorf("dampfront_checkpoint_age_seconds = %v, want %v", got, tc.age)
-			}
-			if got := value(t, fams, "dampfront_jobs", map[string]string{"state": "running"}); got != tc.running {
-				t.Errorf("dampfront_jobs{state=running} = %v, want %v", got, tc.running)
-			}
+			checkStoreGauges(t, fams, tc.store.counts.ByState, tc.age)
 		})
 	}
+}
+
+// TestStoreCollectorOnStore scrapes the collector on a real SQLite store
+// holding jobs brought to known states by the store's own transitions;
+// the expected gauges are those of the construction.
+func TestStoreCollectorOnStore(t *testing.T) {
+	t.Parallel()
+	ctx := testContext(t)
+	e, err := jobs.Open(ctx, engineConfig(t.TempDir()), &Opener{Workers: 1}) // never started: no slice runs
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { _ = e.Close() })
+	st := e.Store()
+	now := time.Date(2026, 3, 1, 12, 0, 0, 0, time.UTC)
+	ago := func(s int) time.Time { return now.Add(-time.Duration(s) * time.Second) }
+	insert := func(id string) {
+		t.Helper()
+		if _, err := st.JobInsert(ctx, &jobs.JobInsertParams{ID: id, Spec: []byte("spec of " + id), Now: ago(3600)}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	startJob := func(id string, at time.Time) {
+		t.Helper()
+		if _, err := st.JobStart(ctx, &jobs.JobStartParams{ID: id, Lease: "lease-" + id, Now: at}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for _, id := range []string{"queued-1", "queued-2", "running-1", "running-2", "succeeded", "failed", "cancelled"} {
+		insert(id)
+	}
+	// running-1 started 10 min ago and checkpointed 90 s ago; running-2
+	// started 40 s ago with no checkpoint: the oldest work is 90 s old.
+	startJob("running-1", ago(600))
+	if err := st.CheckpointSave(ctx, &jobs.CheckpointSaveParams{JobID: "running-1", Lease: "lease-running-1", Data: []byte{1}, Now: ago(90)}); err != nil {
+		t.Fatal(err)
+	}
+	startJob("running-2", ago(40))
+	for id, end := range map[string]jobs.State{"succeeded": jobs.StateSucceeded, "failed": jobs.StateFailed} {
+		startJob(id, ago(1800))
+		if _, err := st.JobFinish(ctx, &jobs.JobFinishParams{ID: id, Lease: "lease-" + id, State: end, Now: ago(1200)}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if _, err := st.JobCancelRequest(ctx, &jobs.JobCancelRequestParams{ID: "cancelled", Now: ago(60)}); err != nil {
+		t.Fatal(err)
+	}
+	want := map[jobs.State]int{jobs.StateQueued: 2, jobs.StateRunning: 2, jobs.StateSucceeded: 1, jobs.StateFailed: 1, jobs.StateCancelled: 1}
+	checkStoreGauges(t, scrapeCollector(t, st, now), want, 90)
 }
 
 func TestSplitMethod(t *testing.T) {
