@@ -2,6 +2,7 @@ package main
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -248,6 +249,15 @@ func TestVerifyUsageErrors(t *testing.T) {
 		{"misspelt spec", []string{"verify", "--spec", testdataPath("bad/misspelt-field.yaml"), "--setup", setup}, `unknown field "sprung_mass"`},
 		{"bad value in spec", []string{"verify", "--spec", badMass, "--setup", setup}, "spec.vehicle.sprung_mass_kg"},
 		{"record too long", []string{"verify", "--spec", spec, "--setup", setup, "--duration", "1e7"}, "time.duration_s"},
+		{"all without job", []string{"verify", "--all", noServer}, "--all needs a JOB"},
+		{"all with spec", []string{"verify", "--all", "--spec", spec, "--setup", setup}, "--all checks every solution of a JOB's front: it conflicts with --spec and --setup"},
+		{"all with job and spec", []string{"verify", "a", "--all", "--spec", spec, noServer}, "it conflicts with --spec"},
+		{"all with solution", []string{"verify", "a", "--all", "--solution", "1", noServer}, "it conflicts with --solution"},
+		{"all with balanced", []string{"verify", "a", "--all", "--balanced", noServer}, "it conflicts with --balanced"},
+		{"all with setup", []string{"verify", "a", "--all", "--setup", setup, noServer}, "it conflicts with --setup"},
+		{"all without job, with car", []string{"verify", "--all", "--vehicle", testdataPath("quillon-gt.yaml"), "--roads", testdataPath("quillon-gt.yaml")}, "--all needs a JOB"},
+		{"no goroutine", []string{"verify", "a", "--all", "--parallel", "0", noServer}, "--parallel must be a number of solutions >= 1, got 0"},
+		{"parallel without all", []string{"verify", "a", "--parallel", "2", noServer}, "--parallel needs --all"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -299,5 +309,123 @@ func TestVerifyRoughRoadLiftsTheTyres(t *testing.T) {
 	}
 	if len(c.Warnings) == 0 || c.Peaks.TyreLoadMin[0] != 0 {
 		t.Errorf("no tyre left the road: warnings %q, lowest FL load %g N", c.Warnings, c.Peaks.TyreLoadMin[0])
+	}
+}
+
+// verify JOB --all checks every solution of a small seeded job's front:
+// the table has one row per solution in front order (as "front --format
+// json" lists them), each row's worst deviation, time fractions and
+// verdict agree with the rows of the JSON report, and the JSON holds one
+// report per solution equal to what verify JOB --solution N gives for
+// the same seed and duration, byte for byte the same with one goroutine
+// as with two.
+func TestVerifyAllFront(t *testing.T) {
+	t.Parallel()
+	s := startServer(t, filepath.Join(t.TempDir(), "verify-all.db"), nil)
+	// A few seconds of CPU on 2 cores for a front of some ten solutions.
+	spec := writeSpec(t, "population_size: 36", "population_size: 12", "generations: 30", "generations: 6")
+	id := firstLine(mustRun(t, exitOK, nil, s.client("submit", spec, "--watch", "--quiet")...).stdout)
+	front := parseFrontJSON(t, mustRun(t, exitOK, nil, s.client("front", id, "--format", "json")...).stdout)
+	if len(front.Solutions) < 2 {
+		t.Fatalf("the front of the small job has %d solutions; the test needs at least 2", len(front.Solutions))
+	}
+	var indices []int
+	for _, sol := range front.Solutions {
+		indices = append(indices, int(sol["index"].(float64)))
+	}
+
+	all := func(args ...string) (string, []verifyPointJSON) {
+		t.Helper()
+		r := mustRun(t, exitOK, nil, s.client(append([]string{"verify", id, "--all", "--format", "json", "--duration", testDuration, "--seed", "3"}, args...)...)...)
+		var v []verifyPointJSON
+		if err := json.Unmarshal([]byte(r.stdout), &v); err != nil {
+			t.Fatalf("verify --all --format json: %v\n%s", err, r.stdout)
+		}
+		return r.stdout, v
+	}
+	one, points := all("--parallel", "1")
+	if two, _ := all("--parallel", "2"); two != one {
+		t.Error("verify --all gave another report with --parallel 2 than with --parallel 1")
+	}
+	if len(points) != len(indices) {
+		t.Fatalf("verify --all reported %d solutions, the front has %d", len(points), len(indices))
+	}
+	for k, p := range points {
+		if p.Index != indices[k] || p.Source != fmt.Sprintf("solution %d of jobs/%s", p.Index, id) || p.Seed != 3 || len(p.Cases) != 3 || p.Caution == "" {
+			t.Errorf("entry %d: index %d (front has %d), source %q, seed %d, %d cases, caution %q", k, p.Index, indices[k], p.Source, p.Seed, len(p.Cases), p.Caution)
+		}
+	}
+	for _, k := range []int{0, len(points) - 1} {
+		single, _ := verifyOf(t, s.client(id, "--solution", fmt.Sprint(indices[k]), "--seed", "3")...)
+		// The two are printed at different depths of indentation; the
+		// compact JSON of both is compared.
+		got, err := json.Marshal(points[k].verifyJSON)
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, err := json.Marshal(single)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if string(got) != string(want) {
+			t.Errorf("solution %d: --all reports\n%s\n--solution reports\n%s", indices[k], got, want)
+		}
+	}
+
+	r := mustRun(t, exitOK, nil, s.client("verify", id, "--all", "--duration", testDuration, "--seed", "3")...)
+	rowRE := regexp.MustCompile(`(?m)^ *\*? +(\d+)( +-?[0-9.]+){6} +(-|[0-9]+\.[0-9]) +(.+?) +(-|\d) +([0-9.]+) +([0-9.]+) +(holds|differs) *$`)
+	rows := rowRE.FindAllStringSubmatch(r.stdout, -1)
+	if len(rows) != len(points) {
+		t.Fatalf("the table has %d solution rows, the front %d solutions:\n%s", len(rows), len(points), r.stdout)
+	}
+	held := 0
+	for k, row := range rows {
+		p := points[k]
+		if row[1] != fmt.Sprint(p.Index) {
+			t.Errorf("table row %d is solution %s, the front's is %d", k, row[1], p.Index)
+		}
+		// The row's figures from the JSON rows: judged are the rows with
+		// a statistical error, fractions are shown in % with 3 decimals.
+		worst, holds := -1.0, true
+		var liftOff, bumpStop float64
+		for _, c := range p.Cases {
+			holds = holds && c.Holds
+			for _, cr := range c.Rows {
+				if cr.StatError > 0 {
+					worst = math.Max(worst, math.Abs(cr.Diff)/cr.StatError)
+				}
+				switch {
+				case strings.HasPrefix(cr.Metric, "lift_off_fraction["):
+					liftOff = math.Max(liftOff, cr.Time)
+				case strings.HasPrefix(cr.Metric, "bump_stop_fraction["):
+					bumpStop = math.Max(bumpStop, cr.Time)
+				}
+			}
+		}
+		want := []string{fmt.Sprintf("%.1f", worst), fmt.Sprintf("%.3f", 100*liftOff), fmt.Sprintf("%.3f", 100*bumpStop), map[bool]string{true: "holds", false: "differs"}[holds]}
+		if got := []string{row[3], row[6], row[7], row[8]}; strings.Join(got, " ") != strings.Join(want, " ") {
+			t.Errorf("solution %d: table shows worst, off road, bump stop, verdict %q; its JSON report gives %q", p.Index, got, want)
+		}
+		if holds {
+			held++
+		}
+	}
+	for _, want := range []string{
+		fmt.Sprintf("Time-domain check of every solution of the front of jobs/%s ", id),
+		"Road seed 3, 20 s of road per case after settling",
+		"  2  Kessock Hill, chicane kerbs at 20 m/s",
+		fmt.Sprintf("The linear answer holds on every road case for %d of %d solutions.", held, len(points)),
+		cautionText,
+	} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("verify --all output lacks %q:\n%s", want, r.stdout)
+		}
+	}
+
+	help := mustRun(t, exitOK, nil, "verify", "--help")
+	for _, want := range []string{"JOB --all checks every solution", "-parallel N", "The exit code is 0 whatever the verdicts."} {
+		if !strings.Contains(help.stdout, want) {
+			t.Errorf("verify --help lacks %q:\n%s", want, help.stdout)
+		}
 	}
 }
