@@ -2,6 +2,9 @@ package jobs
 
 import (
 	"context"
+	"errors"
+	"fmt"
+	"maps"
 	"testing"
 	"time"
 )
@@ -97,4 +100,173 @@ func BenchmarkCheckpoint(b *testing.B) {
 			}
 		})
 	}
+}
+
+// BenchmarkScrapeRead measures the store reads of one metrics scrape
+// (api's storeCollector.read) on a store of n jobs: read=list is how the
+// collector read them before Store.JobCounts, paging through every job
+// and reading each running job's checkpoint; read=counts is the one
+// JobCounts call it makes now. The jobs are mostly succeeded, as after
+// months of overnight batches, with 4 running (2 workers on each of 2
+// machines), each with a spec of 1078 bytes (the size of the stored
+// testdata/demo-job.yaml) and two labels.
+func BenchmarkScrapeRead(b *testing.B) {
+	for _, be := range backends {
+		b.Run(be.name, func(b *testing.B) {
+			for _, n := range []int{2000, 20000} {
+				b.Run(fmt.Sprintf("jobs=%d", n), func(b *testing.B) {
+					ctx := context.Background()
+					var s Store
+					if be.name == "sqlite" {
+						s = newTestSQLiteStore(b)
+					} else {
+						s = newTestPostgresStore(b)
+					}
+					now := time.Now()
+					fillScrapeStore(ctx, b, s, n, now)
+					if be.name == "postgres" {
+						// Each job's row was rewritten at every transition in
+						// one transaction, leaving dead versions in the table
+						// and the state index; a database some months old has
+						// had them vacuumed and its statistics taken.
+						if _, err := s.(*sqlStore).q.exec(ctx, `VACUUM ANALYZE dampfront_job, dampfront_checkpoint`); err != nil {
+							b.Fatal(err)
+						}
+					}
+					reads := []struct {
+						name string
+						read func(context.Context, Store, time.Time) (map[State]int, time.Duration, error)
+					}{
+						{"list", readByListing},
+						{"counts", readByCounts},
+					}
+					// Both reads must agree before either is timed.
+					wantCounts, wantAge, err := readByListing(ctx, s, now)
+					if err != nil {
+						b.Fatal(err)
+					}
+					for _, r := range reads {
+						b.Run("read="+r.name, func(b *testing.B) {
+							counts, age, err := r.read(ctx, s, now)
+							if err != nil || !maps.Equal(counts, wantCounts) || age != wantAge {
+								b.Fatalf("read %s = %v, %v, %v; the listing gives %v, %v", r.name, counts, age, err, wantCounts, wantAge)
+							}
+							b.ReportAllocs()
+							for b.Loop() {
+								if _, _, err := r.read(ctx, s, now); err != nil {
+									b.Fatal(err)
+								}
+							}
+						})
+					}
+				})
+			}
+		})
+	}
+}
+
+// fillScrapeStore stores n jobs in one transaction: 4 running with a
+// checkpoint, and of the others 1 in 100 queued, 1 in 50 failed, 1 in 100
+// cancelled before it started, the rest succeeded.
+func fillScrapeStore(ctx context.Context, b *testing.B, s Store, n int, now time.Time) {
+	b.Helper()
+	spec := make([]byte, 1078)
+	for i := range spec {
+		spec[i] = byte(i * 7)
+	}
+	labels := map[string]string{"car": "demo-gt", "night": "2026-03-01"}
+	err := s.Tx(ctx, func(ctx context.Context, tx Store) error {
+		for i := range n {
+			id := fmt.Sprintf("job-%06d", i)
+			at := now.Add(time.Duration(i-n) * time.Minute)
+			if _, err := tx.JobInsert(ctx, &JobInsertParams{ID: id, Spec: spec, Labels: labels, Seed: int64(i), Now: at}); err != nil {
+				return err
+			}
+			switch {
+			case i%100 == 4: // queued
+				continue
+			case i%100 == 6: // cancelled before it started
+				if _, err := tx.JobCancelRequest(ctx, &JobCancelRequestParams{ID: id, Now: at}); err != nil {
+					return err
+				}
+				continue
+			}
+			if _, err := tx.JobStart(ctx, &JobStartParams{ID: id, Lease: "l", Now: at}); err != nil {
+				return err
+			}
+			if i < 4 { // running, last checkpoint i+1 minutes ago
+				if err := tx.CheckpointSave(ctx, &CheckpointSaveParams{JobID: id, Lease: "l", Data: []byte{1},
+					Now: now.Add(-time.Duration(i+1) * time.Minute)}); err != nil {
+					return err
+				}
+				continue
+			}
+			end := StateSucceeded
+			if i%50 == 5 {
+				end = StateFailed
+			}
+			if _, err := tx.JobFinish(ctx, &JobFinishParams{ID: id, Lease: "l", State: end, Now: at.Add(time.Minute)}); err != nil {
+				return err
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		b.Fatal(err)
+	}
+}
+
+// readByListing is api's storeCollector.read as it was before
+// Store.JobCounts, the baseline of BenchmarkScrapeRead.
+func readByListing(ctx context.Context, s Store, now time.Time) (map[State]int, time.Duration, error) {
+	counts := map[State]int{}
+	for _, st := range States {
+		counts[st] = 0 // as JobCounts gives them, for the comparison; the collector read 0 for a missing state
+	}
+	var running []*Job
+	token := ""
+	for {
+		res, err := s.JobList(ctx, &JobListParams{PageSize: MaxPageSize, PageToken: token})
+		if err != nil {
+			return nil, 0, err
+		}
+		for _, j := range res.Jobs {
+			counts[j.State]++
+			if j.State == StateRunning {
+				running = append(running, j)
+			}
+		}
+		if token = res.NextPageToken; token == "" {
+			break
+		}
+	}
+	var oldest time.Duration
+	for _, j := range running {
+		since := j.StartedAt
+		cp, err := s.CheckpointGet(ctx, &CheckpointGetParams{JobID: j.ID})
+		switch {
+		case err == nil:
+			since = cp.SavedAt
+		case errors.Is(err, ErrNotFound):
+		default:
+			return nil, 0, err
+		}
+		if !since.IsZero() {
+			oldest = max(oldest, now.Sub(since))
+		}
+	}
+	return counts, oldest, nil
+}
+
+// readByCounts is api's storeCollector.read now.
+func readByCounts(ctx context.Context, s Store, now time.Time) (map[State]int, time.Duration, error) {
+	res, err := s.JobCounts(ctx, &JobCountsParams{})
+	if err != nil {
+		return nil, 0, err
+	}
+	var age time.Duration
+	if !res.OldestRunningSince.IsZero() {
+		age = max(0, now.Sub(res.OldestRunningSince))
+	}
+	return res.ByState, age, nil
 }
