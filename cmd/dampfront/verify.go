@@ -68,9 +68,9 @@ front shows them, the worst |time domain - frequency domain| in
 statistical errors over the road cases and judged metrics with the metric
 and case where it occurs, the largest time fraction a tyre is off the
 road and a travel is beyond its bump-stop gap, and the verdict (holds on
-every case, or differs); then how many points hold. --format json gives
+every case, or differs); then how many solutions hold. --format json gives
 an array of the single-setup reports, each with its solution's index.
-The demo's front of about 150 points takes about 45 s on 2 cores.
+The demo's front of about 150 solutions takes about 50 s on 2 cores.
 
 The exit code is 0 whatever the verdicts.`)
 	cf := addClientFlags(fs, e)
@@ -84,7 +84,7 @@ The exit code is 0 whatever the verdicts.`)
 	format := newFormat("table", "table", "json")
 	fs.Var(format, "format", "output `format`: table or json (SI)")
 	all := fs.Bool("all", false, "check every solution of the JOB's front and print a summary")
-	parallel := fs.Int("parallel", runtime.NumCPU(), "with --all: solutions checked at once, `N` >= 1 (default: the number of CPUs)")
+	parallel := fs.Int("parallel", runtime.NumCPU(), "with --all: solutions checked at once, `N` >= 1, one per CPU by default")
 	pos, err := fs.parse(args, 0, 1)
 	if err != nil {
 		return err
