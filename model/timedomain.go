@@ -453,7 +453,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	if err != nil {
 		return nil, err
 	}
-	stats := newTimeStats(m.gap)
+	stats := newTimeStats(m.gap, steps)
 	m.integrate(in, steps, settleSteps, h, x0, stats)
 	if !stats.finite() {
 		return nil, fmt.Errorf("%w: road case %q: the time integration diverged at a step of %.3g s", ErrUnstable, rc.Name, h)

@@ -242,7 +242,7 @@ func TestRK4IsFourthOrder(t *testing.T) {
 	for _, steps := range []int{250, 500, 1000, 2000} { // h = 4, 2, 1, 0.5 ms over 1 s
 		h := 1.0 / float64(steps)
 		in := tdHarmonic(steps, h, f, amp, phase)
-		st := newTimeStats(m.gap)
+		st := newTimeStats(m.gap, steps)
 		m.integrate(in, steps, int(8/h), h, [nDOF]float64{}, st)
 		e := 0.0
 		for i := 0; i < 4; i++ {
@@ -426,7 +426,7 @@ func BenchmarkIntegrate(b *testing.B) {
 	m := newTimeModel(&v, &s, 50, [2]*BumpStop{})
 	const steps, h = 1000, 1e-3
 	in := tdHarmonic(steps, h, 12, 1e-3, [4]float64{0, 1, 2, 3})
-	st := newTimeStats(m.gap)
+	st := newTimeStats(m.gap, steps)
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {

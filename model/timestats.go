@@ -36,6 +36,10 @@ type TimeMetrics struct {
 	VelocityAbsRatio [4]float64
 
 	Peaks Peaks
+
+	// meanError is the batch-means standard error of each output's
+	// sample mean (batchMeansError), for Verify.
+	meanError [nOut]float64
 }
 
 // Peaks are extreme values over the record.
@@ -52,19 +56,30 @@ type Peaks struct {
 	HeaveAccelMax     float64    // largest |heave acceleration| (m/s²)
 }
 
+// meanBatches is the number of consecutive blocks a record is cut into
+// for the batch-means error of its sample means: 16 blocks of 7.5 s of a
+// 120 s record, each far longer than the car's correlation times (its
+// slowest mode, heave or pitch at 1-2 Hz with ζ ≈ 0.3, decays in well
+// under a second), and enough blocks that the error estimate itself is
+// within about 1/sqrt(2(16-1)) = 18 %. Common practice for the method
+// (10 to 30 batches), no single source.
+const meanBatches = 16
+
 // timeStats accumulates a run's statistics one sample at a time.
 type timeStats struct {
 	gap        [4]float64
+	total      int // samples the record will have, for the block bounds
 	n          int
 	sum, sq    [nOut]float64
+	blocks     [meanBatches][nOut]float64 // sums of each block
 	fsum, fv   [4]float64
 	vabs       [4]float64
 	air, above [4]int
 	peaks      Peaks
 }
 
-func newTimeStats(gap [4]float64) *timeStats {
-	s := &timeStats{gap: gap}
+func newTimeStats(gap [4]float64, total int) *timeStats {
+	s := &timeStats{gap: gap, total: total}
 	inf := math.Inf(1)
 	for i := 0; i < 4; i++ {
 		s.peaks.TyreLoadMin[i], s.peaks.TyreLoadMax[i] = inf, -inf
@@ -78,10 +93,12 @@ func newTimeStats(gap [4]float64) *timeStats {
 }
 
 func (s *timeStats) add(o *timeSample) {
+	b := min(s.n*meanBatches/max(s.total, 1), meanBatches-1)
 	s.n++
 	for k, y := range o.out {
 		s.sum[k] += y
 		s.sq[k] += y * y
+		s.blocks[b][k] += y
 	}
 	p := &s.peaks
 	for i := 0; i < 4; i++ {
@@ -169,5 +186,48 @@ func (s *timeStats) metrics(m *timeModel, name string, warn float64) *TimeMetric
 	c.PitchShift = mean[outPitch]
 	c.RollSD = sd[outRoll]
 	c.HeaveAccelSD = sd[outHeaveAcc]
+	for k := range tm.meanError {
+		var means [meanBatches]float64
+		for b := range means {
+			lo, hi := blockBounds(b, s.total)
+			means[b] = s.blocks[b][k] / float64(hi-lo)
+		}
+		tm.meanError[k] = batchMeansError(means[:])
+	}
 	return tm
+}
+
+// blockBounds is the sample range [lo, hi) of block b of a record of
+// total samples, as add assigns them.
+func blockBounds(b, total int) (lo, hi int) {
+	// Sample i is in block floor(i·B/total): the first i with
+	// i·B >= b·total starts block b.
+	first := func(b int) int { return (b*total + meanBatches - 1) / meanBatches }
+	return first(b), first(b + 1)
+}
+
+// batchMeansError is the standard error of the mean of a record from the
+// means of its B equal consecutive blocks, s_b/sqrt(B) with s_b the
+// sample standard deviation of the block means (the method of batch
+// means; e.g. Law & Kelton, "Simulation Modeling and Analysis", ch. 9,
+// from memory). Unlike an error read off a spectrum it needs no model of
+// the process, so it also holds the slow wander of a nonlinear car's
+// mean, such as the jacking of asymmetric dampers following the road's
+// roughness. It is valid when each block is much longer than the
+// process's correlation time.
+func batchMeansError(means []float64) float64 {
+	b := float64(len(means))
+	if b < 2 {
+		return math.NaN()
+	}
+	m := 0.0
+	for _, x := range means {
+		m += x
+	}
+	m /= b
+	ss := 0.0
+	for _, x := range means {
+		ss += (x - m) * (x - m)
+	}
+	return math.Sqrt(ss / (b - 1) / b)
 }
