@@ -34,7 +34,7 @@ var plotCharts = map[string][]string{
 	"curves":      {"solution", "balanced"},
 	"hypervolume": nil,
 	"road":        {"spec"},
-	"spectra":     {"spec", "setup", "case"},
+	"spectra":     {"spec", "setup", "case", "solution", "balanced"},
 }
 
 func runPlot(ctx context.Context, e *env, args []string) error {
@@ -51,10 +51,14 @@ Writes one chart to --svg FILE, --png FILE or both. Charts:
   hypervolume JOB    hypervolume per generation, up to the last checkpoint
   road JOB           the road cases' displacement PSDs over the ISO 8608
   road --spec FILE   classes, of a stored job or of a spec file
+  spectra JOB [--solution N | --setup FILE] [--case I]
   spectra --spec FILE --setup FILE [--case I]
                      tyre load and ride-height PSDs front and rear of a
                      setup on road case I (0, the first, by default), with
-                     the car's modes marked; computed here, no server
+                     the car's modes marked: the balanced point of a job's
+                     front (the default), its --solution N, or a --setup
+                     FILE on the job's car and roads; or a setup on a spec
+                     file's, with no server. Computed here.
 
 The page is --width by --height in mm (0: the chart's own size), PNGs at
 --dpi. Every chart carries the model's caution in its footnote.`)
@@ -69,10 +73,10 @@ The page is --width by --height in mm (0: the chart's own size), PNGs at
 	fs.Var(&objectives, "objectives", "front: the `positions` of the two or three objectives drawn, as 0,1 (default: all)")
 	colour := fs.String("colour", "", "front: colour the points by this `gene` (default: the front/rear balance)")
 	fs.Var(&marked, "mark", "front: box the solutions of these `indices`, as 3,17 (repeatable)")
-	solution := fs.Int("solution", -1, "curves: `index` of a solution of the job's front")
-	fs.Bool("balanced", false, "curves: the balanced point of the front (the default)")
+	solution := fs.Int("solution", -1, "curves, spectra: `index` of a solution of the job's front")
+	fs.Bool("balanced", false, "curves, spectra: the balanced point of the front (the default)")
 	specPath := fs.String("spec", "", "road, spectra: job spec `file` giving the car and the road cases")
-	setupPath := fs.String("setup", "", "spectra: setup `file` whose spectra to draw")
+	setupPath := fs.String("setup", "", "spectra: setup `file` whose spectra to draw (with --spec, or on a JOB's car and roads)")
 	roadCase := fs.Int("case", 0, "spectra: `index` of the road case in the spec, from 0")
 	pos, err := fs.parse(args, 0, 2)
 	if err != nil {
@@ -109,10 +113,14 @@ The page is --width by --height in mm (0: the chart's own size), PNGs at
 		return usagef("plot", "the %s chart needs a JOB", chart)
 	case chart == "road" && (job == "") == (*specPath == ""):
 		return usagef("plot", "the road chart needs a JOB or --spec FILE, not both")
-	case chart == "spectra" && (job != "" || *specPath == "" || *setupPath == ""):
-		return usagef("plot", "the spectra chart needs --spec FILE and --setup FILE, and no JOB")
-	case isFlagSet(fs, "solution") && isFlagSet(fs, "balanced"):
-		return usagef("plot", "give --solution or --balanced, not both")
+	case chart == "spectra" && job == "" && (*specPath == "" || *setupPath == ""):
+		return usagef("plot", "the spectra chart needs a JOB, or --spec FILE and --setup FILE")
+	case chart == "spectra" && job != "" && *specPath != "":
+		return usagef("plot", "the spectra chart takes a JOB or --spec FILE, not both")
+	case chart == "spectra" && job == "" && (isFlagSet(fs, "solution") || isFlagSet(fs, "balanced")):
+		return usagef("plot", "--solution and --balanced need a JOB")
+	case isFlagSet(fs, "solution") && isFlagSet(fs, "balanced"), isFlagSet(fs, "setup") && (isFlagSet(fs, "solution") || isFlagSet(fs, "balanced")):
+		return usagef("plot", "give at most one of --solution, --balanced and --setup")
 	case isFlagSet(fs, "solution") && *solution < 0:
 		return usagef("plot", "--solution must be a front index >= 0")
 	case *roadCase < 0:
@@ -125,7 +133,7 @@ The page is --width by --height in mm (0: the chart's own size), PNGs at
 	page := plotPage{title: *title, width: vg.Length(*width) * vg.Millimeter, height: vg.Length(*height) * vg.Millimeter}
 	switch chart {
 	case "spectra":
-		fig, err = plotSpectra(e, *specPath, *setupPath, *roadCase, page)
+		fig, err = plotSpectra(ctx, e, cf, job, *specPath, *setupPath, *solution, *roadCase, page)
 	case "road":
 		if job == "" {
 			var spec *pb.JobSpec
@@ -301,13 +309,26 @@ func plotRoad(spec *pb.JobSpec, page plotPage) (*plot.Figure, error) {
 }
 
 // plotSpectra computes and draws the output spectra of a setup on one
-// road case of a spec, with the car's modes at the case's speed.
-func plotSpectra(e *env, specPath, setupPath string, ci int, page plotPage) (*plot.Figure, error) {
-	spec, err := readSpec(e, specPath)
-	if err != nil {
-		return nil, err
+// road case, with the car's modes at the case's speed: a setup file on a
+// spec file's car and roads, or a solution of a job's front (or a setup
+// file) on the job's, fetched from the server.
+func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, setupPath string, solution, ci int, page plotPage) (*plot.Figure, error) {
+	var spec *pb.JobSpec
+	var setup *pb.Setup
+	source := ""
+	if setupPath != "" {
+		setups, err := readSetups(e, []string{setupPath})
+		if err != nil {
+			return nil, err
+		}
+		setup, source = setups[0], "setup "+setupPath
 	}
-	setups, err := readSetups(e, []string{setupPath})
+	var err error
+	if job == "" {
+		spec, err = readSpec(e, specPath)
+	} else {
+		spec, setup, source, err = fetchVerifyTarget(ctx, cf, job, setup, source, solution)
+	}
 	if err != nil {
 		return nil, err
 	}
@@ -318,7 +339,7 @@ func plotSpectra(e *env, specPath, setupPath string, ci int, page plotPage) (*pl
 	if ci >= len(in.RoadCases) {
 		return nil, usagef("plot", "--case %d: the spec has %d road cases (0 to %d)", ci, len(in.RoadCases), len(in.RoadCases)-1)
 	}
-	s, err := setupToModel(setups[0], setupPath)
+	s, err := setupToModel(setup, source)
 	if err != nil {
 		return nil, err
 	}
@@ -339,7 +360,7 @@ func plotSpectra(e *env, specPath, setupPath string, ci int, page plotPage) (*pl
 	if err != nil {
 		return nil, err
 	}
-	fig.Notes = append(fig.Notes, fmt.Sprintf("Setup %s: %s; %s at %g m/s.", setupPath, setupText(setups[0]), sp.Case, speed))
+	fig.Notes = append(fig.Notes, fmt.Sprintf("%s: %s; %s at %g m/s.", capitalise(source), setupText(setup), sp.Case, speed))
 	return page.apply(fig), nil
 }
 

@@ -131,7 +131,10 @@ func TestPlotUsage(t *testing.T) {
 		{"front without job", []string{"plot", "front", "--svg", out}, "the front chart needs a JOB"},
 		{"flag of another chart", []string{"plot", "front", "j1", "--solution", "1", "--svg", out}, "--solution: not a flag of the front chart"},
 		{"road with job and spec", []string{"plot", "road", "j1", "--spec", spec, "--svg", out}, "a JOB or --spec FILE, not both"},
-		{"spectra without setup", []string{"plot", "spectra", "--spec", spec, "--svg", out}, "needs --spec FILE and --setup FILE"},
+		{"spectra without setup", []string{"plot", "spectra", "--spec", spec, "--svg", out}, "needs a JOB, or --spec FILE and --setup FILE"},
+		{"spectra with job and spec", []string{"plot", "spectra", "j1", "--spec", spec, "--setup", setup, "--svg", out}, "a JOB or --spec FILE, not both"},
+		{"spectra solution without job", []string{"plot", "spectra", "--spec", spec, "--setup", setup, "--solution", "2", "--svg", out}, "--solution and --balanced need a JOB"},
+		{"spectra solution and setup", []string{"plot", "spectra", "j1", "--setup", setup, "--solution", "2", "--svg", out}, "at most one of --solution, --balanced and --setup"},
 		{"case beyond the spec", []string{"plot", "spectra", "--spec", spec, "--setup", setup, "--case", "3", "--svg", out}, "--case 3: the spec has 3 road cases (0 to 2)"},
 		{"page too narrow", []string{"plot", "spectra", "--spec", spec, "--setup", setup, "--width", "50", "--svg", out}, "--width: must be 80 to 1000 mm, got 50.0 mm"},
 		{"dpi too high", []string{"plot", "road", "--spec", spec, "--dpi", "2000", "--png", out + ".png", "--svg", out}, "--dpi: must be 24 to 600, got 2000"},
@@ -180,6 +183,15 @@ func TestPlotServer(t *testing.T) {
 	mustRun(t, exitOK, nil, s.client("plot", "road", id, "--svg", at("road.svg"))...)
 	checkSVG(t, at("road.svg"), "Road input, Quillon GT, demo tracks", "Port Vellan streets, bumpy braking zone, 30 m/s")
 
+	// Spectra of the job's balanced point (the default), of a solution,
+	// and of a setup file on the job's car and roads.
+	mustRun(t, exitOK, nil, s.client("plot", "spectra", id, "--case", "2", "--svg", at("spectra-balanced.svg"))...)
+	checkSVG(t, at("spectra-balanced.svg"), "Output spectra, Kessock Hill, chicane kerbs", "Balanced point, solution", "of jobs/"+id, "at 20 m/s")
+	mustRun(t, exitOK, nil, s.client("plot", "spectra", id, "--solution", "0", "--svg", at("spectra-0.svg"))...)
+	checkSVG(t, at("spectra-0.svg"), "Output spectra, Ashgrove Ring, fast sweepers", "Solution 0 of jobs/"+id)
+	mustRun(t, exitOK, nil, s.client("plot", "spectra", id, "--setup", testdataPath("candidate-setup.yaml"), "--svg", at("spectra-setup.svg"))...)
+	checkSVG(t, at("spectra-setup.svg"), "candidate-setup.yaml on jobs/"+id, "front bump 0.550 rebound 0.850")
+
 	for _, tc := range []struct {
 		name string
 		args []string
@@ -187,6 +199,8 @@ func TestPlotServer(t *testing.T) {
 	}{
 		{"unknown gene", []string{"plot", "front", id, "--colour", "no_such_gene", "--svg", at("x.svg")}, "--colour:"},
 		{"no such solution", []string{"plot", "curves", id, "--solution", "9999", "--svg", at("x.svg")}, "9999"},
+		{"no such solution for spectra", []string{"plot", "spectra", id, "--solution", "9999", "--svg", at("x.svg")}, "has no solution 9999"},
+		{"case beyond the job's", []string{"plot", "spectra", id, "--case", "3", "--svg", at("x.svg")}, "--case 3: the spec has 3 road cases"},
 		{"no such job", []string{"plot", "hypervolume", "no-such-job", "--svg", at("x.svg")}, "not found"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
