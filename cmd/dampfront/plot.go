@@ -327,7 +327,7 @@ func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, se
 	if job == "" {
 		spec, err = readSpec(e, specPath)
 	} else {
-		spec, setup, source, err = fetchVerifyTarget(ctx, cf, job, setup, source, solution)
+		spec, setup, source, err = fetchJobSetup(ctx, cf, job, setup, source, solution)
 	}
 	if err != nil {
 		return nil, err

@@ -146,7 +146,7 @@ The exit code is 0 whatever the verdicts.`)
 		if err != nil {
 			return err
 		}
-		if spec, setup, source, err = fetchVerifyTarget(ctx, cf, jobName(pos[0]), setup, source, *solution); err != nil {
+		if spec, setup, source, err = fetchJobSetup(ctx, cf, jobName(pos[0]), setup, source, *solution); err != nil {
 			return err
 		}
 		if over.Vehicle != nil {
@@ -184,9 +184,9 @@ The exit code is 0 whatever the verdicts.`)
 	return nil
 }
 
-// fetchVerifyTarget reads a job's spec and the setup to check: the given
+// fetchJobSetup reads a job's spec and a setup to use on it: the given
 // one, the solution of that index, or the balanced point.
-func fetchVerifyTarget(ctx context.Context, cf *clientFlags, name string, setup *pb.Setup, source string, solution int) (*pb.JobSpec, *pb.Setup, string, error) {
+func fetchJobSetup(ctx context.Context, cf *clientFlags, name string, setup *pb.Setup, source string, solution int) (*pb.JobSpec, *pb.Setup, string, error) {
 	c, err := cf.dial()
 	if err != nil {
 		return nil, nil, "", err
