@@ -132,26 +132,12 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 		return nil
 	}
 	bal := balancedIndex(sols)
-	extra := extraGenes(f.GetGeneNames())
+	cols := newSolutionColumns(f)
 	_, withSlopes := slopes(sols[0])
-	objQ := make([]quantity, len(f.GetObjectives()))
-	for i, o := range f.GetObjectives() {
-		objQ[i] = objectiveQuantity(o.GetKind())
-	}
 
 	fmt.Fprintln(w)
 	t := newTable(w, true)
-	h1, h2 := []string{"", "#"}, []string{"", ""}
-	for _, h := range ratioHeaders {
-		h1, h2 = append(h1, h), append(h2, "ratio")
-	}
-	for _, g := range extra {
-		q := geneQuantity(f.GetGeneNames()[g])
-		h1, h2 = append(h1, q.label), append(h2, q.unit)
-	}
-	for _, q := range objQ {
-		h1, h2 = append(h1, q.label), append(h2, q.unit)
-	}
+	h1, h2 := cols.headers()
 	if withSlopes {
 		for _, h := range ratioHeaders {
 			h1, h2 = append(h1, h), append(h2, qSlope.unit)
@@ -169,21 +155,7 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 			continue
 		}
 		shown++
-		mark := ""
-		if i == bal {
-			mark = "*"
-		}
-		row := []string{mark, fmt.Sprint(s.GetIndex())}
-		for _, r := range ratios(s) {
-			row = append(row, num(r, 3))
-		}
-		for _, g := range extra {
-			q := geneQuantity(f.GetGeneNames()[g])
-			row = append(row, tradeNum(q, s.GetGenes()[g]))
-		}
-		for k, q := range objQ {
-			row = append(row, tradeNum(q, s.GetObjectives()[k]))
-		}
+		row := cols.cells(s, i == bal)
 		if sl, ok := slopes(s); ok {
 			for _, v := range sl {
 				row = append(row, tradeNum(qSlope, v))
@@ -346,4 +318,57 @@ func nonNilRecords(r []record) []record {
 		return []record{}
 	}
 	return r
+}
+
+// solutionColumns are the leading columns of a table of front solutions:
+// the balanced mark and index, the four damping ratios, the other genes
+// the study searched, and the objectives, in trade units.
+type solutionColumns struct {
+	genes []string
+	extra []int      // indices of the genes beyond the four ratios
+	objQ  []quantity // of each objective
+}
+
+func newSolutionColumns(f *pb.Front) *solutionColumns {
+	c := &solutionColumns{genes: f.GetGeneNames(), extra: extraGenes(f.GetGeneNames())}
+	for _, o := range f.GetObjectives() {
+		c.objQ = append(c.objQ, objectiveQuantity(o.GetKind()))
+	}
+	return c
+}
+
+// headers are the two header rows: labels, then units.
+func (c *solutionColumns) headers() (h1, h2 []string) {
+	h1, h2 = []string{"", "#"}, []string{"", ""}
+	for _, h := range ratioHeaders {
+		h1, h2 = append(h1, h), append(h2, "ratio")
+	}
+	for _, g := range c.extra {
+		q := geneQuantity(c.genes[g])
+		h1, h2 = append(h1, q.label), append(h2, q.unit)
+	}
+	for _, q := range c.objQ {
+		h1, h2 = append(h1, q.label), append(h2, q.unit)
+	}
+	return h1, h2
+}
+
+// cells are the solution's cells under headers, "*" marking the
+// balanced point.
+func (c *solutionColumns) cells(s *pb.Solution, balanced bool) []string {
+	mark := ""
+	if balanced {
+		mark = "*"
+	}
+	row := []string{mark, fmt.Sprint(s.GetIndex())}
+	for _, r := range ratios(s) {
+		row = append(row, num(r, 3))
+	}
+	for _, g := range c.extra {
+		row = append(row, tradeNum(geneQuantity(c.genes[g]), s.GetGenes()[g]))
+	}
+	for k, q := range c.objQ {
+		row = append(row, tradeNum(q, s.GetObjectives()[k]))
+	}
+	return row
 }

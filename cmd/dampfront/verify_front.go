@@ -224,11 +224,7 @@ func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelI
 		return nil
 	}
 	bal := balancedIndex(sols)
-	extra := extraGenes(f.GetGeneNames())
-	objQ := make([]quantity, len(f.GetObjectives()))
-	for i, o := range f.GetObjectives() {
-		objQ[i] = objectiveQuantity(o.GetKind())
-	}
+	cols := newSolutionColumns(f)
 	sums := make([]pointSummary, len(reps))
 	mw := len("metric")
 	for i, rep := range reps {
@@ -238,17 +234,7 @@ func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelI
 
 	fmt.Fprintln(w)
 	t := newTable(w, true)
-	h1, h2 := []string{"", "#"}, []string{"", ""}
-	for _, h := range ratioHeaders {
-		h1, h2 = append(h1, h), append(h2, "ratio")
-	}
-	for _, g := range extra {
-		q := geneQuantity(f.GetGeneNames()[g])
-		h1, h2 = append(h1, q.label), append(h2, q.unit)
-	}
-	for _, q := range objQ {
-		h1, h2 = append(h1, q.label), append(h2, q.unit)
-	}
+	h1, h2 := cols.headers()
 	h1 = append(h1, "worst", fmt.Sprintf("%-*s", mw, "metric"), "case", "off road", "bump stop", "verdict")
 	h2 = append(h2, "errors", fmt.Sprintf("%-*s", mw, ""), "", "% time", "% time", fmt.Sprintf("%-*s", len(verdictDiffers), ""))
 	t.row(h1...)
@@ -256,20 +242,7 @@ func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelI
 	held := 0
 	for i, s := range sols {
 		p := sums[i]
-		mark := ""
-		if i == bal {
-			mark = "*"
-		}
-		row := []string{mark, fmt.Sprint(s.GetIndex())}
-		for _, r := range ratios(s) {
-			row = append(row, num(r, 3))
-		}
-		for _, g := range extra {
-			row = append(row, tradeNum(geneQuantity(f.GetGeneNames()[g]), s.GetGenes()[g]))
-		}
-		for k, q := range objQ {
-			row = append(row, tradeNum(q, s.GetObjectives()[k]))
-		}
+		row := cols.cells(s, i == bal)
 		worst, metric, rc := "-", "-", "-"
 		if p.judgedAny {
 			worst, metric, rc = num(p.worst, 1), p.metric, fmt.Sprint(p.roadCase)
