@@ -127,6 +127,18 @@ func (s *specFlags) load(e *env, path string) (*pb.JobSpec, error) {
 	return spec, nil
 }
 
+// replaceParts sets on spec the car and road cases that over (a load of
+// the replacement files alone) holds, and returns spec.
+func replaceParts(spec, over *pb.JobSpec) *pb.JobSpec {
+	if over.Vehicle != nil {
+		spec.Vehicle = over.Vehicle
+	}
+	if over.RoadCases != nil {
+		spec.RoadCases = over.RoadCases
+	}
+	return spec
+}
+
 // readSetups reads one Setup message per file.
 func readSetups(e *env, paths []string) ([]*pb.Setup, error) {
 	out := make([]*pb.Setup, len(paths))

@@ -149,12 +149,7 @@ The exit code is 0 whatever the verdicts.`)
 		if spec, setup, source, err = fetchJobSetup(ctx, cf, jobName(pos[0]), setup, source, *solution); err != nil {
 			return err
 		}
-		if over.Vehicle != nil {
-			spec.Vehicle = over.Vehicle
-		}
-		if over.RoadCases != nil {
-			spec.RoadCases = over.RoadCases
-		}
+		spec = replaceParts(spec, over)
 	}
 	in, err := api.SpecToModel(spec)
 	if err != nil {

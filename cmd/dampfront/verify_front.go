@@ -70,13 +70,7 @@ func runVerifyAll(ctx context.Context, e *env, cf *clientFlags, sf *specFlags, n
 	if err != nil {
 		return err
 	}
-	spec := fd.job.GetSpec()
-	if over.Vehicle != nil {
-		spec.Vehicle = over.Vehicle
-	}
-	if over.RoadCases != nil {
-		spec.RoadCases = over.RoadCases
-	}
+	spec := replaceParts(fd.job.GetSpec(), over)
 	in, err := api.SpecToModel(spec)
 	if err != nil {
 		return err
