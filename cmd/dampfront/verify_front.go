@@ -10,6 +10,9 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"time"
+
+	"github.com/schollz/progressbar/v3"
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -24,8 +27,10 @@ import (
 // or the local mode, and --parallel without --all.
 func checkVerifyAllFlags(fs *flagSet, withJob, all bool, parallel int) error {
 	if !all {
-		if isFlagSet(fs, "parallel") {
-			return usagef("verify", "--parallel needs --all")
+		for _, name := range []string{"parallel", "quiet"} {
+			if isFlagSet(fs, name) {
+				return usagef("verify", "--%s needs --all", name)
+			}
 		}
 		return nil
 	}
@@ -51,6 +56,7 @@ type verifyAllOptions struct {
 	opt      model.VerifyOptions // Model is filled in from the job's spec
 	parallel int                 // solutions checked at once
 	json     bool                // --format json
+	quiet    bool                // no progress bar
 }
 
 // runVerifyAll fetches the job's spec and whole front and checks every
@@ -83,7 +89,23 @@ func runVerifyAll(ctx context.Context, e *env, cf *clientFlags, sf *specFlags, n
 			return err
 		}
 	}
-	reps, at, err := verifyPoints(ctx, in, setups, o.opt, o.parallel)
+	done := func() {}
+	if !o.quiet {
+		bar := progressbar.NewOptions(len(setups),
+			progressbar.OptionSetWriter(e.stderr),
+			progressbar.OptionSetWidth(30),
+			progressbar.OptionShowCount(),
+			progressbar.OptionSetPredictTime(true),
+			progressbar.OptionSetElapsedTime(true),
+			progressbar.OptionThrottle(100*time.Millisecond),
+			progressbar.OptionSetDescription("time-domain checks"),
+			progressbar.OptionSetItsString("solutions"),
+			progressbar.OptionSetRenderBlankState(true),
+		)
+		done = func() { _ = bar.Add(1) }
+		defer func() { _ = bar.Exit(); fmt.Fprintln(e.stderr) }()
+	}
+	reps, at, err := verifyPoints(ctx, in, setups, o.opt, o.parallel, done)
 	if err != nil {
 		if at >= 0 {
 			err = fmt.Errorf("%s: %w", solutionSource(sols[at], name), err)
@@ -113,12 +135,13 @@ func solutionSource(s *pb.Solution, job string) string {
 // time, and returns the reports in the order of setups. Each report
 // depends only on its setup and opt (case i of every setup draws its road
 // from the stream (opt.Seed, i)), never on which goroutine ran it or
-// when. After an error no further setup is started, and the error of the
+// when; done is called as each ends (from its goroutine). After an error
+// no further setup is started, and the error of the
 // first failed setup in order is returned with its position (-1 for an
 // interrupt). model.Verify cannot be
 // cancelled, so an interrupt returns at once and leaves the running
 // checks to the end of the process.
-func verifyPoints(ctx context.Context, in *api.ModelInputs, setups []model.Setup, opt model.VerifyOptions, parallel int) ([]*model.VerifyReport, int, error) {
+func verifyPoints(ctx context.Context, in *api.ModelInputs, setups []model.Setup, opt model.VerifyOptions, parallel int, done func()) ([]*model.VerifyReport, int, error) {
 	reps := make([]*model.VerifyReport, len(setups))
 	errs := make([]error, len(setups))
 	var next atomic.Int64 // index of the next setup to start
@@ -134,16 +157,17 @@ func verifyPoints(ctx context.Context, in *api.ModelInputs, setups []model.Setup
 					return
 				}
 				reps[i], errs[i] = model.Verify(in.Vehicle, in.RoadCases, setups[i], opt)
+				done()
 				if errs[i] != nil {
 					failed.Store(true)
 				}
 			}
 		}()
 	}
-	done := make(chan struct{})
-	go func() { wg.Wait(); close(done) }()
+	all := make(chan struct{})
+	go func() { wg.Wait(); close(all) }()
 	select {
-	case <-done:
+	case <-all:
 	case <-ctx.Done():
 		return nil, -1, fmt.Errorf("interrupted: %w", ctx.Err())
 	}

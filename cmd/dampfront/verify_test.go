@@ -258,6 +258,7 @@ func TestVerifyUsageErrors(t *testing.T) {
 		{"all without job, with car", []string{"verify", "--all", "--vehicle", testdataPath("quillon-gt.yaml"), "--roads", testdataPath("quillon-gt.yaml")}, "--all needs a JOB"},
 		{"no goroutine", []string{"verify", "a", "--all", "--parallel", "0", noServer}, "--parallel must be a number of solutions >= 1, got 0"},
 		{"parallel without all", []string{"verify", "a", "--parallel", "2", noServer}, "--parallel needs --all"},
+		{"quiet without all", []string{"verify", "a", "--quiet", noServer}, "--quiet needs --all"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -373,6 +374,13 @@ func TestVerifyAllFront(t *testing.T) {
 	}
 
 	r := mustRun(t, exitOK, nil, s.client("verify", id, "--all", "--duration", testDuration, "--seed", "3")...)
+	// The progress bar on stderr ends at every solution checked.
+	if n := len(points); !strings.Contains(r.stderr, "time-domain checks") || !strings.Contains(r.stderr, fmt.Sprintf("(%d/%d", n, n)) {
+		t.Errorf("verify --all stderr has no progress bar ending at %d of %d:\n%q", n, n, r.stderr)
+	}
+	if q := mustRun(t, exitOK, nil, s.client("verify", id, "--all", "--quiet", "--format", "json", "--duration", testDuration, "--seed", "3")...); q.stderr != "" {
+		t.Errorf("verify --all --quiet wrote to stderr: %q", q.stderr)
+	}
 	rowRE := regexp.MustCompile(`(?m)^ *\*? +(\d+)( +-?[0-9.]+){6} +(-|[0-9]+\.[0-9]) +(.+?) +(-|\d) +([0-9.]+) +([0-9.]+) +(holds|differs) *$`)
 	rows := rowRE.FindAllStringSubmatch(r.stdout, -1)
 	if len(rows) != len(points) {
