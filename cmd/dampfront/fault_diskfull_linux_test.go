@@ -37,7 +37,7 @@ const (
 
 // The disk full at submit time, for real: the server's SQLite file is on
 // a small tmpfs of its own, filled with a filler file until a little room
-// is left, and jobs are submitted until the room is gone. Every submit
+// is left, and jobs are submitted until three were refused. Every submit
 // either succeeds whole or fails with Unavailable (reason
 // DATABASE_UNAVAILABLE), and the server goes on answering reads. Once the
 // filler is removed submits work again. After the server stops, the
@@ -70,9 +70,10 @@ func TestFaultDiskFullAtSubmit(t *testing.T) {
 	for i := 0; i < diskFullMaxSubmits && full < 3; i++ {
 		r, err := c.SubmitJob(ctx, &pb.SubmitJobRequest{Spec: seeded(spec, uint64(100+i))})
 		if err == nil {
-			if full > 0 {
-				t.Errorf("submit %d succeeded after an earlier one found the disk full; nothing was freed", i)
-			}
+			// Also after a refusal: the rolled-back transaction's WAL
+			// frames are written over by the next, so a smaller write may
+			// still fit. What matters is that each submit is whole or
+			// refused, which the database is checked for below.
 			accepted = append(accepted, r.GetJob().GetJobId())
 			continue
 		}
@@ -91,7 +92,7 @@ func TestFaultDiskFullAtSubmit(t *testing.T) {
 	if len(accepted) == 0 {
 		t.Fatalf("no submit fitted into %d bytes of headroom; the test needs a few to succeed first", diskFullHeadroom)
 	}
-	t.Logf("%d submits accepted, then %d refused with the disk full", len(accepted), full)
+	t.Logf("%d submits accepted and %d refused with the disk full", len(accepted), full)
 
 	if err := os.Remove(filler); err != nil {
 		t.Fatal(err)
