@@ -24,12 +24,15 @@ within --stop-timeout.
 
 --health-addr serves the standard gRPC health service alone, for a
 liveness probe: SERVING while the worker works, NOT_SERVING from the
-signal on. It says the process is alive, not that the database is.`)
+signal on. It says the process is alive, not that the database is.
+--metrics-addr serves Prometheus /metrics of this worker's slices
+(generations, evaluations, slice times by outcome).`)
 	ef, err := addEngineFlags(fs, e, true)
 	if err != nil {
 		return err
 	}
 	hf := addHealthFlags(fs, e)
+	mf := addMetricsFlags(fs, e)
 	if _, err := fs.parse(args, 0, 0); err != nil {
 		return err
 	}
@@ -42,24 +45,36 @@ signal on. It says the process is alive, not that the database is.`)
 	if err := hf.check(); err != nil {
 		return err
 	}
+	if err := mf.check(); err != nil {
+		return err
+	}
 	log := ef.logger(e.stderr)
+	cfg := ef.jobsConfig(log)
+	mf.configure(&cfg, log)
 	hp, err := hf.listen()
 	if err != nil {
 		return err
 	}
-	eng, err := openEngine(ctx, ef.jobsConfig(log), ef.evalWorkers)
+	mp, err := mf.listen(log)
 	if err != nil {
 		return errors.Join(err, hp.close())
+	}
+	eng, err := openEngine(ctx, cfg, ef.evalWorkers)
+	if err != nil {
+		return errors.Join(err, mp.close(), hp.close())
 	}
 	svc, err := startService(ctx, eng, nil, api.Options{}, ef.stopTimeout, log)
 	if err != nil {
 		_ = eng.Close()
-		return errors.Join(err, hp.close())
+		return errors.Join(err, mp.close(), hp.close())
 	}
 	hp.working()
 	attrs := []any{"database", redactURL(ef.database), "backend", eng.Backend(), "workers", ef.workers}
 	if hp != nil {
 		attrs = append(attrs, "health", hp.addr())
+	}
+	if mp != nil {
+		attrs = append(attrs, "metrics", "http://"+mp.addr()+"/metrics")
 	}
 	log.Info("working", attrs...)
 	select {
@@ -73,7 +88,7 @@ signal on. It says the process is alive, not that the database is.`)
 	// sees the worker going away for the whole of its stop.
 	hp.stopping()
 	log.Info("stopping: running jobs checkpoint and are handed back", "timeout", ef.stopTimeout)
-	if err := errors.Join(svc.shutdown(), hp.close()); err != nil {
+	if err := errors.Join(svc.shutdown(), mp.close(), hp.close()); err != nil {
 		return err
 	}
 	log.Info("stopped")

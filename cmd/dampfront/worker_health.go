@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"net"
-	"strconv"
 
 	"google.golang.org/grpc"
 	"google.golang.org/grpc/health"
@@ -57,17 +56,7 @@ func addHealthFlags(fs *flagSet, e *env) *healthFlags {
 // a port that is taken or a host that is not this machine's is found by
 // the listen.
 func (h *healthFlags) check() error {
-	if h.addr == "" {
-		return nil
-	}
-	_, port, err := net.SplitHostPort(h.addr)
-	if err != nil {
-		return usagef(h.cmd, "--health-addr %q is not host:port: %v", h.addr, err)
-	}
-	if n, err := strconv.Atoi(port); err != nil || n < 0 || n > 65535 {
-		return usagef(h.cmd, "--health-addr %q: port %q is not a number from 0 to 65535", h.addr, port)
-	}
-	return nil
+	return checkListenAddr(h.cmd, "health-addr", h.addr)
 }
 
 // healthEndpoint is the running health server; the nil *healthEndpoint

@@ -142,7 +142,7 @@ func TestWorkerHealth(t *testing.T) {
 	}
 }
 
-// A --health-addr that is not host:port with a numeric port is a usage
+// A --health-addr or --metrics-addr that is not host:port with a numeric port is a usage
 // error naming the flag, and one that cannot be listened on fails the
 // worker with the flag's name; both before the database is opened.
 func TestWorkerHealthAddrErrors(t *testing.T) {
@@ -164,6 +164,9 @@ func TestWorkerHealthAddrErrors(t *testing.T) {
 		{"named port", nil, []string{"--health-addr", "127.0.0.1:grpc"}, exitUsage, `port "grpc" is not a number`},
 		{"bad env", []string{"DAMPFRONT_HEALTH_ADDR=probe-me"}, nil, exitUsage, `--health-addr "probe-me" is not host:port`},
 		{"port taken", nil, []string{"--health-addr", taken.Addr().String()}, exitFailure, "listen on --health-addr " + taken.Addr().String()},
+		{"metrics no port", nil, []string{"--metrics-addr", "127.0.0.1"}, exitUsage, `--metrics-addr "127.0.0.1" is not host:port`},
+		{"metrics bad env", []string{"DAMPFRONT_METRICS_ADDR=127.0.0.1:x"}, nil, exitUsage, `--metrics-addr "127.0.0.1:x": port "x" is not a number`},
+		{"metrics port taken", nil, []string{"--metrics-addr", taken.Addr().String()}, exitFailure, "listen on --metrics-addr " + taken.Addr().String()},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
