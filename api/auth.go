@@ -61,6 +61,7 @@ var methodRoles = map[string]Role{
 	pb.DampfrontService_EvaluateSetups_FullMethodName:  RoleSubmitter,
 	pb.DampfrontService_CompareSetup_FullMethodName:    RoleSubmitter,
 	pb.DampfrontService_GetDamperCurves_FullMethodName: RoleSubmitter,
+	pb.DampfrontService_VerifySetup_FullMethodName:     RoleSubmitter,
 	pb.DampfrontService_CancelJob_FullMethodName:       RoleSubmitter, // own jobs; others' need RoleAdmin
 }
 

@@ -84,7 +84,9 @@ func TestRoleOfEveryMethod(t *testing.T) {
 func TestAuthMatrix(t *testing.T) {
 	t.Parallel()
 	toks, secrets := testTokens(t, 1, authRoles)
-	b := setup(t, Options{Tokens: toks})
+	// Slots for every parallel subtest's synchronous call, so that none
+	// is turned away as busy.
+	b := setup(t, Options{Tokens: toks, MaxConcurrentEvaluations: 256})
 
 	calls := []struct {
 		name    string
@@ -126,6 +128,10 @@ func TestAuthMatrix(t *testing.T) {
 		}},
 		{"GetDamperCurves", RoleSubmitter, codes.InvalidArgument, func(ctx context.Context, c pb.DampfrontServiceClient) error {
 			_, err := c.GetDamperCurves(ctx, &pb.GetDamperCurvesRequest{})
+			return err
+		}},
+		{"VerifySetup", RoleSubmitter, codes.InvalidArgument, func(ctx context.Context, c pb.DampfrontServiceClient) error {
+			_, err := c.VerifySetup(ctx, &pb.VerifySetupRequest{})
 			return err
 		}},
 		{"CancelJob", RoleSubmitter, codes.InvalidArgument, func(ctx context.Context, c pb.DampfrontServiceClient) error {

@@ -53,9 +53,10 @@ type Options struct {
 	// MaxSyncWork limits setups × road cases of one EvaluateSetups call.
 	// Default 4096.
 	MaxSyncWork int
-	// MaxConcurrentEvaluations limits the EvaluateSetups and CompareSetup
-	// calls running at once; one more is ResourceExhausted at once, not
-	// queued. Default GOMAXPROCS.
+	// MaxConcurrentEvaluations limits the EvaluateSetups, CompareSetup
+	// and VerifySetup calls running at once (a VerifySetup holds its slot
+	// until its check ends, also when the call has ended before); one more
+	// is ResourceExhausted at once, not queued. Default GOMAXPROCS.
 	MaxConcurrentEvaluations int
 	// StopTimeout bounds the graceful part of Serve's shutdown; then open
 	// calls are cut. Default 10 s.

@@ -169,7 +169,7 @@ func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(jobWork), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
 	fs.IntVar(&l.maxGridPoints, "max-grid-points", gridPoints, "finest frequency grid of a spec, in points ($DAMPFRONT_MAX_GRID_POINTS)")
 	fs.IntVar(&l.maxSyncWork, "max-sync-work", syncWork, "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
-	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", evals, "eval, check and compare calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
+	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", evals, "EvaluateSetups, CompareSetup and VerifySetup calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
 	fs.IntVar(&l.maxMessage, "max-message-bytes", msg, "largest gRPC request or response ($DAMPFRONT_MAX_MESSAGE_BYTES)")
 	fs.DurationVar(&l.rpcTimeout, "rpc-timeout", rpcTimeout, "longest a call other than watch may run on the server, whatever the client's deadline; 0 for no limit ($DAMPFRONT_RPC_TIMEOUT)")
 	return l, nil

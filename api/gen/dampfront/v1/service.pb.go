@@ -1247,6 +1247,370 @@ func (x *GetDamperCurvesResponse) GetCurves() []*DamperCurve {
 	return nil
 }
 
+// VerifySetupRequest is the input of VerifySetup.
+type VerifySetupRequest struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Where the car and road cases come from.
+	//
+	// Types that are valid to be assigned to Source:
+	//
+	//	*VerifySetupRequest_Spec
+	//	*VerifySetupRequest_Job
+	Source isVerifySetupRequest_Source `protobuf_oneof:"source"`
+	// The setup to check.
+	Setup *Setup `protobuf:"bytes,3,opt,name=setup,proto3" json:"setup,omitempty"`
+	// Seed of the road realisations (road case i uses the stream
+	// (seed, i)); unset means 1. Same seed, same report.
+	Seed *uint64 `protobuf:"varint,4,opt,name=seed,proto3,oneof" json:"seed,omitempty"`
+	// Recorded seconds of road per case, after settling; unset or 0 means
+	// 120 s. At most 600 s.
+	DurationS     float64 `protobuf:"fixed64,5,opt,name=duration_s,json=durationS,proto3" json:"duration_s,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *VerifySetupRequest) Reset() {
+	*x = VerifySetupRequest{}
+	mi := &file_dampfront_v1_service_proto_msgTypes[18]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *VerifySetupRequest) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*VerifySetupRequest) ProtoMessage() {}
+
+func (x *VerifySetupRequest) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_service_proto_msgTypes[18]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use VerifySetupRequest.ProtoReflect.Descriptor instead.
+func (*VerifySetupRequest) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{18}
+}
+
+func (x *VerifySetupRequest) GetSource() isVerifySetupRequest_Source {
+	if x != nil {
+		return x.Source
+	}
+	return nil
+}
+
+func (x *VerifySetupRequest) GetSpec() *JobSpec {
+	if x != nil {
+		if x, ok := x.Source.(*VerifySetupRequest_Spec); ok {
+			return x.Spec
+		}
+	}
+	return nil
+}
+
+func (x *VerifySetupRequest) GetJob() string {
+	if x != nil {
+		if x, ok := x.Source.(*VerifySetupRequest_Job); ok {
+			return x.Job
+		}
+	}
+	return ""
+}
+
+func (x *VerifySetupRequest) GetSetup() *Setup {
+	if x != nil {
+		return x.Setup
+	}
+	return nil
+}
+
+func (x *VerifySetupRequest) GetSeed() uint64 {
+	if x != nil && x.Seed != nil {
+		return *x.Seed
+	}
+	return 0
+}
+
+func (x *VerifySetupRequest) GetDurationS() float64 {
+	if x != nil {
+		return x.DurationS
+	}
+	return 0
+}
+
+type isVerifySetupRequest_Source interface {
+	isVerifySetupRequest_Source()
+}
+
+type VerifySetupRequest_Spec struct {
+	// A spec given here; only its car, road cases and grid are used.
+	Spec *JobSpec `protobuf:"bytes,1,opt,name=spec,proto3,oneof"`
+}
+
+type VerifySetupRequest_Job struct {
+	// The stored spec of a job, "jobs/{job_id}".
+	Job string `protobuf:"bytes,2,opt,name=job,proto3,oneof"`
+}
+
+func (*VerifySetupRequest_Spec) isVerifySetupRequest_Source() {}
+
+func (*VerifySetupRequest_Job) isVerifySetupRequest_Source() {}
+
+// VerifySetupResponse is the output of VerifySetup: per road case, each
+// metric in both models side by side.
+type VerifySetupResponse struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// One per road case, in the spec's order.
+	Cases []*VerifiedCase `protobuf:"bytes,1,rep,name=cases,proto3" json:"cases,omitempty"`
+	// The seed and record length used.
+	Seed      uint64  `protobuf:"varint,2,opt,name=seed,proto3" json:"seed,omitempty"`
+	DurationS float64 `protobuf:"fixed64,3,opt,name=duration_s,json=durationS,proto3" json:"duration_s,omitempty"`
+	// The model's caution, to be shown with any report of these figures.
+	Caution       string `protobuf:"bytes,4,opt,name=caution,proto3" json:"caution,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *VerifySetupResponse) Reset() {
+	*x = VerifySetupResponse{}
+	mi := &file_dampfront_v1_service_proto_msgTypes[19]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *VerifySetupResponse) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*VerifySetupResponse) ProtoMessage() {}
+
+func (x *VerifySetupResponse) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_service_proto_msgTypes[19]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use VerifySetupResponse.ProtoReflect.Descriptor instead.
+func (*VerifySetupResponse) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{19}
+}
+
+func (x *VerifySetupResponse) GetCases() []*VerifiedCase {
+	if x != nil {
+		return x.Cases
+	}
+	return nil
+}
+
+func (x *VerifySetupResponse) GetSeed() uint64 {
+	if x != nil {
+		return x.Seed
+	}
+	return 0
+}
+
+func (x *VerifySetupResponse) GetDurationS() float64 {
+	if x != nil {
+		return x.DurationS
+	}
+	return 0
+}
+
+func (x *VerifySetupResponse) GetCaution() string {
+	if x != nil {
+		return x.Caution
+	}
+	return ""
+}
+
+// VerifiedCase is the check on one road case.
+type VerifiedCase struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// The road case's name.
+	RoadCase string `protobuf:"bytes,1,opt,name=road_case,json=roadCase,proto3" json:"road_case,omitempty"`
+	// The metrics, frequency domain against time domain.
+	Metrics []*VerifiedMetric `protobuf:"bytes,2,rep,name=metrics,proto3" json:"metrics,omitempty"`
+	// Integration step and settling time of the time domain, s.
+	StepS   float64 `protobuf:"fixed64,3,opt,name=step_s,json=stepS,proto3" json:"step_s,omitempty"`
+	SettleS float64 `protobuf:"fixed64,4,opt,name=settle_s,json=settleS,proto3" json:"settle_s,omitempty"`
+	// Frequency-domain warnings (lift-off, bump-stop contact, ...).
+	Warnings      []string `protobuf:"bytes,5,rep,name=warnings,proto3" json:"warnings,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *VerifiedCase) Reset() {
+	*x = VerifiedCase{}
+	mi := &file_dampfront_v1_service_proto_msgTypes[20]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *VerifiedCase) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*VerifiedCase) ProtoMessage() {}
+
+func (x *VerifiedCase) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_service_proto_msgTypes[20]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use VerifiedCase.ProtoReflect.Descriptor instead.
+func (*VerifiedCase) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{20}
+}
+
+func (x *VerifiedCase) GetRoadCase() string {
+	if x != nil {
+		return x.RoadCase
+	}
+	return ""
+}
+
+func (x *VerifiedCase) GetMetrics() []*VerifiedMetric {
+	if x != nil {
+		return x.Metrics
+	}
+	return nil
+}
+
+func (x *VerifiedCase) GetStepS() float64 {
+	if x != nil {
+		return x.StepS
+	}
+	return 0
+}
+
+func (x *VerifiedCase) GetSettleS() float64 {
+	if x != nil {
+		return x.SettleS
+	}
+	return 0
+}
+
+func (x *VerifiedCase) GetWarnings() []string {
+	if x != nil {
+		return x.Warnings
+	}
+	return nil
+}
+
+// VerifiedMetric is one metric in both models, in SI units as its name
+// says (e.g. "tyre_load_sd_n[FL]", "ride_height_shift_m[front]").
+type VerifiedMetric struct {
+	state  protoimpl.MessageState `protogen:"open.v1"`
+	Metric string                 `protobuf:"bytes,1,opt,name=metric,proto3" json:"metric,omitempty"`
+	// The statistically linearised frequency-domain value.
+	FrequencyDomain float64 `protobuf:"fixed64,2,opt,name=frequency_domain,json=frequencyDomain,proto3" json:"frequency_domain,omitempty"`
+	// The nonlinear time-domain value from the recorded history.
+	TimeDomain float64 `protobuf:"fixed64,3,opt,name=time_domain,json=timeDomain,proto3" json:"time_domain,omitempty"`
+	// time_domain - frequency_domain, and that over |frequency_domain|
+	// (0 when the frequency-domain value is 0).
+	Difference         float64 `protobuf:"fixed64,4,opt,name=difference,proto3" json:"difference,omitempty"`
+	RelativeDifference float64 `protobuf:"fixed64,5,opt,name=relative_difference,json=relativeDifference,proto3" json:"relative_difference,omitempty"`
+	// Standard deviation of the time-domain value from the record length
+	// (see the model's statistical error); 0 where none is estimated
+	// (equivalent damping, mean damper force). A difference of more than
+	// about 3 of these is more than sampling error.
+	StatisticalError float64 `protobuf:"fixed64,6,opt,name=statistical_error,json=statisticalError,proto3" json:"statistical_error,omitempty"`
+	unknownFields    protoimpl.UnknownFields
+	sizeCache        protoimpl.SizeCache
+}
+
+func (x *VerifiedMetric) Reset() {
+	*x = VerifiedMetric{}
+	mi := &file_dampfront_v1_service_proto_msgTypes[21]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *VerifiedMetric) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*VerifiedMetric) ProtoMessage() {}
+
+func (x *VerifiedMetric) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_service_proto_msgTypes[21]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use VerifiedMetric.ProtoReflect.Descriptor instead.
+func (*VerifiedMetric) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{21}
+}
+
+func (x *VerifiedMetric) GetMetric() string {
+	if x != nil {
+		return x.Metric
+	}
+	return ""
+}
+
+func (x *VerifiedMetric) GetFrequencyDomain() float64 {
+	if x != nil {
+		return x.FrequencyDomain
+	}
+	return 0
+}
+
+func (x *VerifiedMetric) GetTimeDomain() float64 {
+	if x != nil {
+		return x.TimeDomain
+	}
+	return 0
+}
+
+func (x *VerifiedMetric) GetDifference() float64 {
+	if x != nil {
+		return x.Difference
+	}
+	return 0
+}
+
+func (x *VerifiedMetric) GetRelativeDifference() float64 {
+	if x != nil {
+		return x.RelativeDifference
+	}
+	return 0
+}
+
+func (x *VerifiedMetric) GetStatisticalError() float64 {
+	if x != nil {
+		return x.StatisticalError
+	}
+	return 0
+}
+
 var File_dampfront_v1_service_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_service_proto_rawDesc = "" +
@@ -1338,7 +1702,38 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\x06target\"w\n" +
 	"\x17GetDamperCurvesResponse\x12)\n" +
 	"\x05setup\x18\x01 \x01(\v2\x13.dampfront.v1.SetupR\x05setup\x121\n" +
-	"\x06curves\x18\x02 \x03(\v2\x19.dampfront.v1.DamperCurveR\x06curves2\xea\x05\n" +
+	"\x06curves\x18\x02 \x03(\v2\x19.dampfront.v1.DamperCurveR\x06curves\"\xcb\x01\n" +
+	"\x12VerifySetupRequest\x12+\n" +
+	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecH\x00R\x04spec\x12\x12\n" +
+	"\x03job\x18\x02 \x01(\tH\x00R\x03job\x12)\n" +
+	"\x05setup\x18\x03 \x01(\v2\x13.dampfront.v1.SetupR\x05setup\x12\x17\n" +
+	"\x04seed\x18\x04 \x01(\x04H\x01R\x04seed\x88\x01\x01\x12\x1d\n" +
+	"\n" +
+	"duration_s\x18\x05 \x01(\x01R\tdurationSB\b\n" +
+	"\x06sourceB\a\n" +
+	"\x05_seed\"\x94\x01\n" +
+	"\x13VerifySetupResponse\x120\n" +
+	"\x05cases\x18\x01 \x03(\v2\x1a.dampfront.v1.VerifiedCaseR\x05cases\x12\x12\n" +
+	"\x04seed\x18\x02 \x01(\x04R\x04seed\x12\x1d\n" +
+	"\n" +
+	"duration_s\x18\x03 \x01(\x01R\tdurationS\x12\x18\n" +
+	"\acaution\x18\x04 \x01(\tR\acaution\"\xb1\x01\n" +
+	"\fVerifiedCase\x12\x1b\n" +
+	"\troad_case\x18\x01 \x01(\tR\broadCase\x126\n" +
+	"\ametrics\x18\x02 \x03(\v2\x1c.dampfront.v1.VerifiedMetricR\ametrics\x12\x15\n" +
+	"\x06step_s\x18\x03 \x01(\x01R\x05stepS\x12\x19\n" +
+	"\bsettle_s\x18\x04 \x01(\x01R\asettleS\x12\x1a\n" +
+	"\bwarnings\x18\x05 \x03(\tR\bwarnings\"\xf2\x01\n" +
+	"\x0eVerifiedMetric\x12\x16\n" +
+	"\x06metric\x18\x01 \x01(\tR\x06metric\x12)\n" +
+	"\x10frequency_domain\x18\x02 \x01(\x01R\x0ffrequencyDomain\x12\x1f\n" +
+	"\vtime_domain\x18\x03 \x01(\x01R\n" +
+	"timeDomain\x12\x1e\n" +
+	"\n" +
+	"difference\x18\x04 \x01(\x01R\n" +
+	"difference\x12/\n" +
+	"\x13relative_difference\x18\x05 \x01(\x01R\x12relativeDifference\x12+\n" +
+	"\x11statistical_error\x18\x06 \x01(\x01R\x10statisticalError2\xbe\x06\n" +
 	"\x10DampfrontService\x12L\n" +
 	"\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12C\n" +
 	"\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n" +
@@ -1348,7 +1743,8 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\bGetFront\x12\x1d.dampfront.v1.GetFrontRequest\x1a\x1e.dampfront.v1.GetFrontResponse\x12[\n" +
 	"\x0eEvaluateSetups\x12#.dampfront.v1.EvaluateSetupsRequest\x1a$.dampfront.v1.EvaluateSetupsResponse\x12U\n" +
 	"\fCompareSetup\x12!.dampfront.v1.CompareSetupRequest\x1a\".dampfront.v1.CompareSetupResponse\x12^\n" +
-	"\x0fGetDamperCurves\x12$.dampfront.v1.GetDamperCurvesRequest\x1a%.dampfront.v1.GetDamperCurvesResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\x0fGetDamperCurves\x12$.dampfront.v1.GetDamperCurvesRequest\x1a%.dampfront.v1.GetDamperCurvesResponse\x12R\n" +
+	"\vVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_service_proto_rawDescOnce sync.Once
@@ -1362,7 +1758,7 @@ func file_dampfront_v1_service_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_service_proto_rawDescData
 }
 
-var file_dampfront_v1_service_proto_msgTypes = make([]protoimpl.MessageInfo, 19)
+var file_dampfront_v1_service_proto_msgTypes = make([]protoimpl.MessageInfo, 23)
 var file_dampfront_v1_service_proto_goTypes = []any{
 	(*SubmitJobRequest)(nil),        // 0: dampfront.v1.SubmitJobRequest
 	(*SubmitJobResponse)(nil),       // 1: dampfront.v1.SubmitJobResponse
@@ -1382,74 +1778,84 @@ var file_dampfront_v1_service_proto_goTypes = []any{
 	(*CompareSetupResponse)(nil),    // 15: dampfront.v1.CompareSetupResponse
 	(*GetDamperCurvesRequest)(nil),  // 16: dampfront.v1.GetDamperCurvesRequest
 	(*GetDamperCurvesResponse)(nil), // 17: dampfront.v1.GetDamperCurvesResponse
-	nil,                             // 18: dampfront.v1.ListJobsRequest.LabelsEntry
-	(*JobSpec)(nil),                 // 19: dampfront.v1.JobSpec
-	(*Job)(nil),                     // 20: dampfront.v1.Job
-	(JobView)(0),                    // 21: dampfront.v1.JobView
-	(JobState)(0),                   // 22: dampfront.v1.JobState
-	(*Progress)(nil),                // 23: dampfront.v1.Progress
-	(SolutionView)(0),               // 24: dampfront.v1.SolutionView
-	(*Front)(nil),                   // 25: dampfront.v1.Front
-	(*Setup)(nil),                   // 26: dampfront.v1.Setup
-	(*Solution)(nil),                // 27: dampfront.v1.Solution
-	(*Objective)(nil),               // 28: dampfront.v1.Objective
-	(*Constraint)(nil),              // 29: dampfront.v1.Constraint
-	(*Adjustment)(nil),              // 30: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),           // 31: dampfront.v1.CurveSettings
-	(*DamperCurve)(nil),             // 32: dampfront.v1.DamperCurve
+	(*VerifySetupRequest)(nil),      // 18: dampfront.v1.VerifySetupRequest
+	(*VerifySetupResponse)(nil),     // 19: dampfront.v1.VerifySetupResponse
+	(*VerifiedCase)(nil),            // 20: dampfront.v1.VerifiedCase
+	(*VerifiedMetric)(nil),          // 21: dampfront.v1.VerifiedMetric
+	nil,                             // 22: dampfront.v1.ListJobsRequest.LabelsEntry
+	(*JobSpec)(nil),                 // 23: dampfront.v1.JobSpec
+	(*Job)(nil),                     // 24: dampfront.v1.Job
+	(JobView)(0),                    // 25: dampfront.v1.JobView
+	(JobState)(0),                   // 26: dampfront.v1.JobState
+	(*Progress)(nil),                // 27: dampfront.v1.Progress
+	(SolutionView)(0),               // 28: dampfront.v1.SolutionView
+	(*Front)(nil),                   // 29: dampfront.v1.Front
+	(*Setup)(nil),                   // 30: dampfront.v1.Setup
+	(*Solution)(nil),                // 31: dampfront.v1.Solution
+	(*Objective)(nil),               // 32: dampfront.v1.Objective
+	(*Constraint)(nil),              // 33: dampfront.v1.Constraint
+	(*Adjustment)(nil),              // 34: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),           // 35: dampfront.v1.CurveSettings
+	(*DamperCurve)(nil),             // 36: dampfront.v1.DamperCurve
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
-	19, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
-	20, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
-	21, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
-	20, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
-	22, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
-	18, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
-	21, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
-	20, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
-	20, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
-	23, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
-	20, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
-	24, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
-	25, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
-	19, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
-	26, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
-	24, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
-	27, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
-	28, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
-	29, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
-	26, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
-	27, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
-	28, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
-	29, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
-	26, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
-	30, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
-	31, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
-	26, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
-	32, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
-	0,  // 28: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
-	2,  // 29: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
-	4,  // 30: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
-	6,  // 31: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
-	8,  // 32: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
-	10, // 33: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
-	12, // 34: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
-	14, // 35: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
-	16, // 36: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
-	1,  // 37: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	3,  // 38: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	5,  // 39: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	7,  // 40: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	9,  // 41: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	11, // 42: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	13, // 43: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	15, // 44: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	17, // 45: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	37, // [37:46] is the sub-list for method output_type
-	28, // [28:37] is the sub-list for method input_type
-	28, // [28:28] is the sub-list for extension type_name
-	28, // [28:28] is the sub-list for extension extendee
-	0,  // [0:28] is the sub-list for field type_name
+	23, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
+	24, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
+	25, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
+	24, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
+	26, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
+	22, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
+	25, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
+	24, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
+	24, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
+	27, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
+	24, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
+	28, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
+	29, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
+	23, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
+	30, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
+	28, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
+	31, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
+	32, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
+	33, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
+	30, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
+	31, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
+	32, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
+	33, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
+	30, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
+	34, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
+	35, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
+	30, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
+	36, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
+	23, // 28: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
+	30, // 29: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
+	20, // 30: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
+	21, // 31: dampfront.v1.VerifiedCase.metrics:type_name -> dampfront.v1.VerifiedMetric
+	0,  // 32: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
+	2,  // 33: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
+	4,  // 34: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
+	6,  // 35: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
+	8,  // 36: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
+	10, // 37: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
+	12, // 38: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
+	14, // 39: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
+	16, // 40: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
+	18, // 41: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
+	1,  // 42: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	3,  // 43: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	5,  // 44: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	7,  // 45: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	9,  // 46: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	11, // 47: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	13, // 48: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	15, // 49: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	17, // 50: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	19, // 51: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	42, // [42:52] is the sub-list for method output_type
+	32, // [32:42] is the sub-list for method input_type
+	32, // [32:32] is the sub-list for extension type_name
+	32, // [32:32] is the sub-list for extension extendee
+	0,  // [0:32] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_service_proto_init() }
@@ -1472,13 +1878,17 @@ func file_dampfront_v1_service_proto_init() {
 		(*GetDamperCurvesRequest_SolutionIndex)(nil),
 		(*GetDamperCurvesRequest_Setup)(nil),
 	}
+	file_dampfront_v1_service_proto_msgTypes[18].OneofWrappers = []any{
+		(*VerifySetupRequest_Spec)(nil),
+		(*VerifySetupRequest_Job)(nil),
+	}
 	type x struct{}
 	out := protoimpl.TypeBuilder{
 		File: protoimpl.DescBuilder{
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_service_proto_rawDesc), len(file_dampfront_v1_service_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   19,
+			NumMessages:   23,
 			NumExtensions: 0,
 			NumServices:   1,
 		},

@@ -28,6 +28,7 @@ const (
 	DampfrontService_EvaluateSetups_FullMethodName  = "/dampfront.v1.DampfrontService/EvaluateSetups"
 	DampfrontService_CompareSetup_FullMethodName    = "/dampfront.v1.DampfrontService/CompareSetup"
 	DampfrontService_GetDamperCurves_FullMethodName = "/dampfront.v1.DampfrontService/GetDamperCurves"
+	DampfrontService_VerifySetup_FullMethodName     = "/dampfront.v1.DampfrontService/VerifySetup"
 )
 
 // DampfrontServiceClient is the client API for DampfrontService service.
@@ -66,6 +67,11 @@ type DampfrontServiceClient interface {
 	// Returns the damper curves of a solution of a finished job's front or
 	// of a given setup on the job's car.
 	GetDamperCurves(ctx context.Context, in *GetDamperCurvesRequest, opts ...grpc.CallOption) (*GetDamperCurvesResponse, error)
+	// Runs the time-domain check of a setup: the nonlinear car (piecewise
+	// dampers with knees, tyres that may leave the road) on a synthesised
+	// road with each road case's spectra, coherence and wheelbase delay,
+	// against the statistically linearised frequency-domain answer.
+	VerifySetup(ctx context.Context, in *VerifySetupRequest, opts ...grpc.CallOption) (*VerifySetupResponse, error)
 }
 
 type dampfrontServiceClient struct {
@@ -175,6 +181,16 @@ func (c *dampfrontServiceClient) GetDamperCurves(ctx context.Context, in *GetDam
 	return out, nil
 }
 
+func (c *dampfrontServiceClient) VerifySetup(ctx context.Context, in *VerifySetupRequest, opts ...grpc.CallOption) (*VerifySetupResponse, error) {
+	cOpts := append([]grpc.CallOption{grpc.StaticMethod()}, opts...)
+	out := new(VerifySetupResponse)
+	err := c.cc.Invoke(ctx, DampfrontService_VerifySetup_FullMethodName, in, out, cOpts...)
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
 // DampfrontServiceServer is the server API for DampfrontService service.
 // All implementations must embed UnimplementedDampfrontServiceServer
 // for forward compatibility.
@@ -211,6 +227,11 @@ type DampfrontServiceServer interface {
 	// Returns the damper curves of a solution of a finished job's front or
 	// of a given setup on the job's car.
 	GetDamperCurves(context.Context, *GetDamperCurvesRequest) (*GetDamperCurvesResponse, error)
+	// Runs the time-domain check of a setup: the nonlinear car (piecewise
+	// dampers with knees, tyres that may leave the road) on a synthesised
+	// road with each road case's spectra, coherence and wheelbase delay,
+	// against the statistically linearised frequency-domain answer.
+	VerifySetup(context.Context, *VerifySetupRequest) (*VerifySetupResponse, error)
 	mustEmbedUnimplementedDampfrontServiceServer()
 }
 
@@ -247,6 +268,9 @@ func (UnimplementedDampfrontServiceServer) CompareSetup(context.Context, *Compar
 }
 func (UnimplementedDampfrontServiceServer) GetDamperCurves(context.Context, *GetDamperCurvesRequest) (*GetDamperCurvesResponse, error) {
 	return nil, status.Error(codes.Unimplemented, "method GetDamperCurves not implemented")
+}
+func (UnimplementedDampfrontServiceServer) VerifySetup(context.Context, *VerifySetupRequest) (*VerifySetupResponse, error) {
+	return nil, status.Error(codes.Unimplemented, "method VerifySetup not implemented")
 }
 func (UnimplementedDampfrontServiceServer) mustEmbedUnimplementedDampfrontServiceServer() {}
 func (UnimplementedDampfrontServiceServer) testEmbeddedByValue()                          {}
@@ -424,6 +448,24 @@ func _DampfrontService_GetDamperCurves_Handler(srv interface{}, ctx context.Cont
 	return interceptor(ctx, in, info, handler)
 }
 
+func _DampfrontService_VerifySetup_Handler(srv interface{}, ctx context.Context, dec func(interface{}) error, interceptor grpc.UnaryServerInterceptor) (interface{}, error) {
+	in := new(VerifySetupRequest)
+	if err := dec(in); err != nil {
+		return nil, err
+	}
+	if interceptor == nil {
+		return srv.(DampfrontServiceServer).VerifySetup(ctx, in)
+	}
+	info := &grpc.UnaryServerInfo{
+		Server:     srv,
+		FullMethod: DampfrontService_VerifySetup_FullMethodName,
+	}
+	handler := func(ctx context.Context, req interface{}) (interface{}, error) {
+		return srv.(DampfrontServiceServer).VerifySetup(ctx, req.(*VerifySetupRequest))
+	}
+	return interceptor(ctx, in, info, handler)
+}
+
 // DampfrontService_ServiceDesc is the grpc.ServiceDesc for DampfrontService service.
 // It's only intended for direct use with grpc.RegisterService,
 // and not to be introspected or modified (even as a copy)
@@ -462,6 +504,10 @@ var DampfrontService_ServiceDesc = grpc.ServiceDesc{
 		{
 			MethodName: "GetDamperCurves",
 			Handler:    _DampfrontService_GetDamperCurves_Handler,
+		},
+		{
+			MethodName: "VerifySetup",
+			Handler:    _DampfrontService_VerifySetup_Handler,
 		},
 	},
 	Streams: []grpc.StreamDesc{

@@ -1,0 +1,135 @@
+package api
+
+import (
+	"context"
+	"errors"
+	"math"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
+)
+
+// MaxVerifyDuration is the longest record VerifySetup takes per road
+// case, s: five times the default, about 1 s of one core per case on the
+// demo car, so one call stays within a default call deadline.
+const MaxVerifyDuration = 600.0
+
+// VerifySetup runs model.Verify for one setup on the car and road cases
+// of a spec given in the request or of a stored job. It takes one of the
+// synchronous-evaluation slots (ResourceExhausted when none is free). The
+// check cannot be interrupted: a call that ends early (its deadline, a
+// cancel) returns at once, and its slot is freed when the check is done,
+// so that abandoned calls cannot pile up work beyond the slots.
+func (s *Server) VerifySetup(ctx context.Context, req *pb.VerifySetupRequest) (*pb.VerifySetupResponse, error) {
+	release, err := s.acquire()
+	if err != nil {
+		return nil, err
+	}
+	released := false
+	defer func() {
+		if !released {
+			release()
+		}
+	}()
+	var p problems
+	setup := setupArgument(req.GetSetup(), "setup", &p)
+	if req.GetSetup() == nil {
+		p = problems{{Field: "setup", Reason: "is required"}}
+	}
+	duration := req.GetDurationS()
+	switch {
+	case duration == 0:
+		duration = model.DefaultDuration
+	case !(duration > 0) || math.IsInf(duration, 0) || duration > MaxVerifyDuration:
+		p.add("duration_s", "must be a number of seconds in (0, %g], got %g", MaxVerifyDuration, duration)
+	}
+	seed := uint64(1)
+	if req.Seed != nil {
+		seed = req.GetSeed()
+	}
+	var pl *plan
+	switch src := req.GetSource().(type) {
+	case *pb.VerifySetupRequest_Spec:
+		if pl, err = compile(src.Spec, "spec."); err != nil {
+			sp, ok := fieldProblems(err)
+			if !ok {
+				return nil, err
+			}
+			p = append(p, sp...)
+		}
+	case *pb.VerifySetupRequest_Job:
+		id := parseJobName(src.Job, "job", &p)
+		if err := p.err(); err != nil {
+			return nil, err
+		}
+		if _, pl, err = s.storedPlan(ctx, id); err != nil {
+			return nil, err
+		}
+	default:
+		p.add("spec", "give spec or job")
+	}
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	if err := s.checkGrid(pl); err != nil {
+		return nil, err
+	}
+	ev := pl.eval
+	cases := make([]model.RoadCase, ev.Cases())
+	for i := range cases {
+		cases[i] = *ev.Case(i)
+	}
+	opt := model.VerifyOptions{
+		Time:  model.TimeOptions{Duration: duration, WarnThreshold: ev.WarnThreshold()},
+		Model: model.Options{Grid: gridFromProto(pl.spec.GetGrid())},
+		Seed:  seed,
+	}
+	type result struct {
+		rep *model.VerifyReport
+		err error
+	}
+	done := make(chan result, 1)
+	released = true // from here the check's goroutine frees the slot
+	go func() {
+		defer release()
+		rep, err := model.Verify(*ev.Vehicle(), cases, setup, opt)
+		done <- result{rep, err}
+	}()
+	var r result
+	select {
+	case r = <-done:
+	case <-ctx.Done():
+		return nil, toStatus(ctx.Err(), nil)
+	}
+	if r.err != nil {
+		var q problems
+		q.mergeModel(under(""), r.err)
+		var ve *model.ValidationError
+		if errors.As(r.err, &ve) {
+			return nil, q.err()
+		}
+		return nil, toStatus(r.err, nil)
+	}
+	return verifyReportToProto(r.rep, duration, ev.WarnThreshold()), nil
+}
+
+// verifyReportToProto converts a Verify report.
+func verifyReportToProto(rep *model.VerifyReport, duration, threshold float64) *pb.VerifySetupResponse {
+	out := &pb.VerifySetupResponse{Seed: rep.Seed, DurationS: duration, Caution: model.Caution}
+	for i := range rep.Cases {
+		c := &rep.Cases[i]
+		vc := &pb.VerifiedCase{RoadCase: c.Case, StepS: c.Time.Step, SettleS: c.Time.Settle,
+			Warnings: c.Frequency.WarningStrings(threshold)}
+		for _, r := range c.Rows {
+			se := r.StatError
+			if math.IsInf(se, 0) || math.IsNaN(se) {
+				se = 0
+			}
+			vc.Metrics = append(vc.Metrics, &pb.VerifiedMetric{Metric: r.Metric, FrequencyDomain: r.Frequency,
+				TimeDomain: r.Time, Difference: r.Diff, RelativeDifference: r.RelDiff, StatisticalError: se})
+		}
+		out.Cases = append(out.Cases, vc)
+	}
+	return out
+}
+
