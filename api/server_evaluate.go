@@ -30,29 +30,17 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 	for i, su := range req.GetSetups() {
 		setups[i] = setupArgument(su, fmt.Sprintf("setups[%d]", i), &p)
 	}
-	var pl *plan
+	var spec *pb.JobSpec
+	var job *string
 	switch src := req.GetSource().(type) {
 	case *pb.EvaluateSetupsRequest_Spec:
-		var err error
-		if pl, err = compile(src.Spec, "spec."); err != nil {
-			// Report the spec's problems and the setups' together.
-			sp, ok := fieldProblems(err)
-			if !ok {
-				return nil, err
-			}
-			p = append(p, sp...)
-		}
+		spec = src.Spec
 	case *pb.EvaluateSetupsRequest_Job:
-		id := parseJobName(src.Job, "job", &p)
-		if err := p.err(); err != nil {
-			return nil, err
-		}
-		var err error
-		if _, pl, err = s.storedPlan(ctx, id); err != nil {
-			return nil, err
-		}
-	default:
-		p.add("spec", "give spec or job")
+		job = &src.Job
+	}
+	pl, err := s.sourcePlan(ctx, spec, job, &p)
+	if err != nil {
+		return nil, err
 	}
 	if err := p.err(); err != nil {
 		return nil, err
@@ -79,6 +67,36 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 		out.Evaluations = append(out.Evaluations, sol)
 	}
 	return out, nil
+}
+
+// sourcePlan compiles the car, road cases and study of a request's
+// source: a spec given in it (spec non-nil; its problems are added to p
+// at "spec.", beside the request's others), or a stored job's
+// ("jobs/{job_id}" in job; a bad name is added to p and returned with
+// p's other problems); with neither, p gets "spec: give spec or job".
+// The plan is nil when there is none to use.
+func (s *Server) sourcePlan(ctx context.Context, spec *pb.JobSpec, job *string, p *problems) (*plan, error) {
+	switch {
+	case spec != nil:
+		pl, err := compile(spec, "spec.")
+		if err != nil {
+			sp, ok := fieldProblems(err)
+			if !ok {
+				return nil, err
+			}
+			*p = append(*p, sp...)
+		}
+		return pl, nil
+	case job != nil:
+		id := parseJobName(*job, "job", p)
+		if err := p.err(); err != nil {
+			return nil, err
+		}
+		_, pl, err := s.storedPlan(ctx, id)
+		return pl, err
+	}
+	p.add("spec", "give spec or job")
+	return nil, nil
 }
 
 // fieldProblems returns the field problems of an InvalidArgument status

@@ -47,26 +47,17 @@ func (s *Server) VerifySetup(ctx context.Context, req *pb.VerifySetupRequest) (*
 	if req.Seed != nil {
 		seed = req.GetSeed()
 	}
-	var pl *plan
+	var spec *pb.JobSpec
+	var job *string
 	switch src := req.GetSource().(type) {
 	case *pb.VerifySetupRequest_Spec:
-		if pl, err = compile(src.Spec, "spec."); err != nil {
-			sp, ok := fieldProblems(err)
-			if !ok {
-				return nil, err
-			}
-			p = append(p, sp...)
-		}
+		spec = src.Spec
 	case *pb.VerifySetupRequest_Job:
-		id := parseJobName(src.Job, "job", &p)
-		if err := p.err(); err != nil {
-			return nil, err
-		}
-		if _, pl, err = s.storedPlan(ctx, id); err != nil {
-			return nil, err
-		}
-	default:
-		p.add("spec", "give spec or job")
+		job = &src.Job
+	}
+	pl, err := s.sourcePlan(ctx, spec, job, &p)
+	if err != nil {
+		return nil, err
 	}
 	if err := p.err(); err != nil {
 		return nil, err
@@ -132,4 +123,3 @@ func verifyReportToProto(rep *model.VerifyReport, duration, threshold float64) *
 	}
 	return out
 }
-

@@ -71,8 +71,8 @@ type countingHandler struct {
 }
 
 func (h *countingHandler) Enabled(context.Context, slog.Level) bool { return true }
-func (h *countingHandler) WithAttrs([]slog.Attr) slog.Handler      { return h }
-func (h *countingHandler) WithGroup(string) slog.Handler           { return h }
+func (h *countingHandler) WithAttrs([]slog.Attr) slog.Handler       { return h }
+func (h *countingHandler) WithGroup(string) slog.Handler            { return h }
 func (h *countingHandler) Handle(_ context.Context, r slog.Record) error {
 	if strings.HasPrefix(r.Message, h.prefix) {
 		h.n.Add(1)
