@@ -42,12 +42,6 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 	if err != nil {
 		return nil, err
 	}
-	if err := p.err(); err != nil {
-		return nil, err
-	}
-	if err := s.checkGrid(pl); err != nil {
-		return nil, err
-	}
 	if w := len(setups) * pl.eval.Cases(); w > s.opt.MaxSyncWork {
 		return nil, resourceExhausted(ReasonTooManySetups,
 			fmt.Sprintf("setups × road cases = %d is over the server's %d for one call; split the setups over several calls", w, s.opt.MaxSyncWork),
@@ -70,33 +64,42 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 }
 
 // sourcePlan compiles the car, road cases and study of a request's
-// source: a spec given in it (spec non-nil; its problems are added to p
-// at "spec.", beside the request's others), or a stored job's
-// ("jobs/{job_id}" in job; a bad name is added to p and returned with
-// p's other problems); with neither, p gets "spec: give spec or job".
-// The plan is nil when there is none to use.
+// source: a spec given in it (spec non-nil; its problems are reported at
+// "spec.", together with those already in p) or a stored job's
+// ("jobs/{job_id}" in job); with neither, "spec: give spec or job". Any
+// problem in p is returned as one InvalidArgument, and a spec over the
+// grid limit as ResourceExhausted, so a nil error means a plan to use.
 func (s *Server) sourcePlan(ctx context.Context, spec *pb.JobSpec, job *string, p *problems) (*plan, error) {
+	var pl *plan
 	switch {
 	case spec != nil:
-		pl, err := compile(spec, "spec.")
-		if err != nil {
+		var err error
+		if pl, err = compile(spec, "spec."); err != nil {
 			sp, ok := fieldProblems(err)
 			if !ok {
 				return nil, err
 			}
 			*p = append(*p, sp...)
 		}
-		return pl, nil
 	case job != nil:
 		id := parseJobName(*job, "job", p)
 		if err := p.err(); err != nil {
 			return nil, err
 		}
-		_, pl, err := s.storedPlan(ctx, id)
-		return pl, err
+		var err error
+		if _, pl, err = s.storedPlan(ctx, id); err != nil {
+			return nil, err
+		}
+	default:
+		p.add("spec", "give spec or job")
 	}
-	p.add("spec", "give spec or job")
-	return nil, nil
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	if err := s.checkGrid(pl); err != nil {
+		return nil, err
+	}
+	return pl, nil
 }
 
 // fieldProblems returns the field problems of an InvalidArgument status

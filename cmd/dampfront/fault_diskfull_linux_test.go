@@ -16,7 +16,6 @@ import (
 	"google.golang.org/grpc/codes"
 	"google.golang.org/grpc/credentials/insecure"
 	"google.golang.org/grpc/status"
-	"google.golang.org/protobuf/proto"
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -105,16 +104,6 @@ func TestFaultDiskFullAtSubmit(t *testing.T) {
 
 	s.stop(t)
 	checkOnlyAccepted(t, db, accepted)
-}
-
-// seeded is a copy of spec with the search seed set to seed.
-func seeded(spec *pb.JobSpec, seed uint64) *pb.JobSpec {
-	out := proto.CloneOf(spec)
-	if out.Search == nil {
-		out.Search = &pb.SearchSettings{}
-	}
-	out.Search.Seed = &seed
-	return out
 }
 
 // checkUnavailableFull checks that submit i failed as a full database

@@ -20,7 +20,6 @@ import (
 	"google.golang.org/grpc/codes"
 	"google.golang.org/grpc/credentials/insecure"
 	"google.golang.org/grpc/status"
-	"google.golang.org/protobuf/proto"
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -231,8 +230,7 @@ func runLoad(t *testing.T, s *server, noBusy bool) {
 	for i := range loadSubmits {
 		rng := rand.New(rand.NewPCG(uint64(i), 50))
 		seed := uint64(1000 + i)
-		js := proto.Clone(spec).(*pb.JobSpec)
-		js.Search.Seed = &seed
+		js := seeded(spec, seed)
 		c := conns[i%loadConns]
 		wg.Add(1)
 		go func() {

@@ -14,6 +14,10 @@ import (
 	"syscall"
 	"testing"
 	"time"
+
+	"google.golang.org/protobuf/proto"
+
+	pb "dampfront/api/gen/dampfront/v1"
 )
 
 // The tests run the real binary as a process, built once here, against
@@ -229,3 +233,13 @@ var cautionText = caution
 var timeNow = time.Now
 
 func sleep(ms int) { time.Sleep(time.Duration(ms) * time.Millisecond) }
+
+// seeded is a copy of spec with the search seed set to seed.
+func seeded(spec *pb.JobSpec, seed uint64) *pb.JobSpec {
+	out := proto.CloneOf(spec)
+	if out.Search == nil {
+		out.Search = &pb.SearchSettings{}
+	}
+	out.Search.Seed = &seed
+	return out
+}

@@ -10,9 +10,6 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
-	"time"
-
-	"github.com/schollz/progressbar/v3"
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -91,17 +88,7 @@ func runVerifyAll(ctx context.Context, e *env, cf *clientFlags, sf *specFlags, n
 	}
 	done := func() {}
 	if !o.quiet {
-		bar := progressbar.NewOptions(len(setups),
-			progressbar.OptionSetWriter(e.stderr),
-			progressbar.OptionSetWidth(30),
-			progressbar.OptionShowCount(),
-			progressbar.OptionSetPredictTime(true),
-			progressbar.OptionSetElapsedTime(true),
-			progressbar.OptionThrottle(100*time.Millisecond),
-			progressbar.OptionSetDescription("time-domain checks"),
-			progressbar.OptionSetItsString("solutions"),
-			progressbar.OptionSetRenderBlankState(true),
-		)
+		bar := newCountBar(e.stderr, len(setups), "time-domain checks", "solutions")
 		done = func() { _ = bar.Add(1) }
 		defer func() { _ = bar.Exit(); fmt.Fprintln(e.stderr) }()
 	}

@@ -186,17 +186,24 @@ type progressBar struct {
 }
 
 func newProgressBar(w io.Writer, objectives []*pb.Objective) *progressBar {
-	return &progressBar{w: w, objectives: objectives, bar: progressbar.NewOptions(1,
+	return &progressBar{w: w, objectives: objectives, bar: newCountBar(w, 1, "queued", "gen")}
+}
+
+// newCountBar is the look of the CLI's progress bars on w: 30 wide,
+// counting to max items of the unit, with elapsed and predicted time,
+// redrawn at most every 100 ms.
+func newCountBar(w io.Writer, max int, description, unit string) *progressbar.ProgressBar {
+	return progressbar.NewOptions(max,
 		progressbar.OptionSetWriter(w),
 		progressbar.OptionSetWidth(30),
 		progressbar.OptionShowCount(),
 		progressbar.OptionSetPredictTime(true),
 		progressbar.OptionSetElapsedTime(true),
 		progressbar.OptionThrottle(100*time.Millisecond),
-		progressbar.OptionSetDescription("queued"),
-		progressbar.OptionSetItsString("gen"),
+		progressbar.OptionSetDescription(description),
+		progressbar.OptionSetItsString(unit),
 		progressbar.OptionSetRenderBlankState(true),
-	)}
+	)
 }
 
 func (b *progressBar) update(p *pb.Progress) {
