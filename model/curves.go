@@ -36,13 +36,13 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	var p problems
 	p.merge("vehicle.", v.Validate())
 	p.merge("setup.", s.Validate())
-	p.positive("max_velocity_m_per_s", vmax)
+	p.in("max_velocity_m_per_s", vmax, "Curves.max_velocity_m_per_s")
 	if points < 3 || points > 10001 {
 		p.add("points", "must be in [3, 10001], got %d", points)
 	}
 	for name, r := range map[string]float64{"bump_softest": adj.BumpSoftest, "bump_stiffest": adj.BumpStiffest,
 		"rebound_softest": adj.ReboundSoftest, "rebound_stiffest": adj.ReboundStiffest} {
-		p.nonNegative("adjustment."+name, r)
+		p.in("adjustment."+name, r, "Adjustment.ratio")
 	}
 	if adj.BumpStiffest < adj.BumpSoftest {
 		p.add("adjustment.bump_stiffest", "must be >= bump_softest (%g), got %g", adj.BumpSoftest, adj.BumpStiffest)

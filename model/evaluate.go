@@ -83,6 +83,7 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt Options) (*Evaluator, error) 
 	if opt.Tolerance < 0 || opt.Tolerance > 1e-2 {
 		p.add("tolerance", "must be in (0, 0.01], got %g", opt.Tolerance)
 	}
+	p.in("warn_threshold", opt.WarnThreshold, "Options.warn_threshold")
 	if opt.MaxIterations < 0 {
 		p.add("max_iterations", "must be >= 0, got %d", opt.MaxIterations)
 	}
@@ -239,7 +240,7 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 	}
 	e.fillMetrics(cd, dampers, &v, m)
 	m.Iterations = iter
-	return nil
+	return m.checkFinite()
 }
 
 // fillMetrics turns variances into metrics and solves the jacking.

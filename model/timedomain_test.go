@@ -338,7 +338,7 @@ func TestBumpStopsLimitTravel(t *testing.T) {
 	s := tdLinearSetup(0.5)
 	rc := RoadCase{Name: "bumpy", Speed: 30, Class: "B"}
 	stop := &BumpStop{Gap: 0.003, Deflection: []float64{0.004, 0.008}, Force: []float64{800, 4000}}
-	free, err := SimulateCase(&v, &rc, &s, TimeOptions{Duration: 20, BumpStops: [2]*BumpStop{{Gap: 0.003, Deflection: []float64{1}, Force: []float64{0}}, nil}}, rand.New(rand.NewPCG(3, 3)))
+	free, err := SimulateCase(&v, &rc, &s, TimeOptions{Duration: 20, BumpStops: [2]*BumpStop{{Gap: 0.003, Deflection: []float64{0.3}, Force: []float64{0}}, nil}}, rand.New(rand.NewPCG(3, 3)))
 	if err != nil {
 		t.Fatal(err)
 	}
