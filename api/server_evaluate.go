@@ -73,6 +73,9 @@ func (s *Server) sourcePlan(ctx context.Context, spec *pb.JobSpec, job *string, 
 	var pl *plan
 	switch {
 	case spec != nil:
+		if err := s.checkSpecSize(spec); err != nil {
+			return nil, err
+		}
 		var err error
 		if pl, err = compile(spec, "spec."); err != nil {
 			sp, ok := fieldProblems(err)

@@ -35,19 +35,23 @@ func DecodeText(b []byte, m proto.Message) error {
 // was written, so that problems found later (by the server's validation)
 // can be shown at the user's line.
 func DecodeTextPositions(b []byte, m proto.Message) (TextPositions, error) {
+	name := string(m.ProtoReflect().Descriptor().FullName())
 	root, err := parseText(b)
 	if err != nil {
+		if te, ok := err.(*TextError); ok {
+			te.Message = name
+		}
 		return nil, err
 	}
 	d := textDecoder{pos: TextPositions{}}
 	var buf bytes.Buffer
 	d.message(root, m.ProtoReflect().Descriptor(), "", &buf)
 	if len(d.problems) > 0 {
-		return nil, &TextError{Problems: d.problems}
+		return nil, &TextError{Message: name, Problems: d.problems}
 	}
 	if err := protojson.Unmarshal(buf.Bytes(), m); err != nil {
 		// The walk checks what protojson checks; this is a fallback.
-		return nil, &TextError{Problems: []TextProblem{{Line: root.Line, Column: root.Column, Reason: fmt.Sprintf("not a %s: %v", m.ProtoReflect().Descriptor().FullName(), err)}}}
+		return nil, &TextError{Message: name, Problems: []TextProblem{{Line: root.Line, Column: root.Column, Reason: err.Error()}}}
 	}
 	return d.pos, nil
 }
@@ -75,15 +79,16 @@ func (p TextProblem) String() string {
 
 // TextError lists every problem DecodeText found.
 type TextError struct {
+	Message  string // full name of the message decoded
 	Problems []TextProblem
 }
 
 func (e *TextError) Error() string {
 	if len(e.Problems) == 1 {
-		return e.Problems[0].String()
+		return "not a " + e.Message + ": " + e.Problems[0].String()
 	}
 	var b strings.Builder
-	fmt.Fprintf(&b, "%d problems:", len(e.Problems))
+	fmt.Fprintf(&b, "not a %s, %d problems:", e.Message, len(e.Problems))
 	for _, p := range e.Problems {
 		b.WriteString("\n  " + p.String())
 	}

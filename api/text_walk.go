@@ -127,7 +127,7 @@ func (d *textDecoder) message(n *yaml.Node, md protoreflect.MessageDescriptor, p
 			fd = fields.ByName(protoreflect.Name(k.Value))
 		}
 		if fd == nil {
-			d.bad(k, joinField(path, k.Value), "unknown field of %s; %s", md.Name(), suggestField(fields, k.Value))
+			d.bad(k, joinField(path, k.Value), "unknown field %q of %s; %s", k.Value, md.Name(), suggestField(fields, k.Value))
 			continue
 		}
 		fpath := joinField(path, string(fd.Name()))

@@ -84,6 +84,7 @@ times; no token needed), off by default.`)
 	}
 	opt := lf.options()
 	opt.Logger = log
+	opt.MaxSpecBytes = cfg.MaxSpecBytes // one spec limit for the engine and every call carrying a spec
 	sec.apply(&opt)
 	svc, err := startService(ctx, eng, lis, opt, ef.stopTimeout, log, wf.grpcOptions()...)
 	if err != nil {
