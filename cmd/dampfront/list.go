@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"sort"
 	"strings"
 	"time"
@@ -76,7 +77,12 @@ per line).`)
 		}
 		return nil
 	}
-	t := newTable(e.stdout, false)
+	return writeJobList(e.stdout, jobs)
+}
+
+// writeJobList prints jobs as a table, one row each.
+func writeJobList(w io.Writer, jobs []*pb.Job) error {
+	t := newTable(w, false)
 	t.row("JOB", "STATE", "GENERATION", "CREATED", "NAME", "LABELS")
 	for _, j := range jobs {
 		p := j.GetProgress()
