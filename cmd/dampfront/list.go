@@ -80,6 +80,10 @@ per line).`)
 	return writeJobList(e.stdout, jobs)
 }
 
+// listTime is the layout of the list's times: local time with its offset
+// from UTC, so that a list read elsewhere is not off by a time zone.
+const listTime = time.DateTime + " -07:00"
+
 // writeJobList prints jobs as a table, one row each.
 func writeJobList(w io.Writer, jobs []*pb.Job) error {
 	t := newTable(w, false)
@@ -87,7 +91,7 @@ func writeJobList(w io.Writer, jobs []*pb.Job) error {
 	for _, j := range jobs {
 		p := j.GetProgress()
 		t.row(j.GetJobId(), stateName(j.GetState()), fmt.Sprintf("%d/%d", p.GetGeneration(), p.GetGenerations()),
-			j.GetCreateTime().AsTime().Local().Format(time.DateTime), j.GetDisplayName(), formatLabels(j.GetLabels()))
+			j.GetCreateTime().AsTime().Local().Format(listTime), j.GetDisplayName(), formatLabels(j.GetLabels()))
 	}
 	return t.flush()
 }

@@ -3,8 +3,10 @@ package main
 import (
 	"bytes"
 	"errors"
+	"regexp"
 	"strings"
 	"testing"
+	"time"
 	"unicode"
 
 	"google.golang.org/protobuf/types/known/timestamppb"
@@ -75,5 +77,21 @@ func TestPrintedJobHasNoControls(t *testing.T) {
 		if !strings.Contains(out, `x\x1b]0;owned\a`) {
 			t.Errorf("%s does not show the escaped name:\n%q", name, out)
 		}
+	}
+}
+
+// TestListTimesHaveZone checks that the list's creation time reads back
+// to the same instant: it carries its offset from UTC.
+func TestListTimesHaveZone(t *testing.T) {
+	t.Parallel()
+	created := time.Date(2026, 3, 1, 12, 0, 0, 0, time.UTC)
+	var b bytes.Buffer
+	if err := writeJobList(&b, []*pb.Job{{JobId: "0123", CreateTime: timestamppb.New(created)}}); err != nil {
+		t.Fatal(err)
+	}
+	m := regexp.MustCompile(`\d{4}-\d\d-\d\d \d\d:\d\d:\d\d [+-]\d\d:\d\d`).FindString(b.String())
+	got, err := time.Parse("2006-01-02 15:04:05 -07:00", m)
+	if err != nil || !got.Equal(created) {
+		t.Errorf("list shows the creation time as %q (%v, %v), want %v with its offset:\n%s", m, got, err, created, b.String())
 	}
 }
