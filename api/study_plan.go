@@ -33,6 +33,9 @@ func compile(spec *pb.JobSpec, prefix string) (*plan, error) {
 	s := withDefaults(spec)
 	var p problems
 	at := under(prefix)
+	if why := model.TextProblem(s.GetDisplayName()); why != "" {
+		p.add(at("display_name"), "%s", why)
+	}
 
 	v := vehicleFromProto(s.GetVehicle(), at("vehicle"), &p)
 	if len(s.GetRoadCases()) == 0 {
