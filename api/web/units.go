@@ -72,7 +72,6 @@ func objectiveQuantity(o *pb.Objective) quantity {
 	return q
 }
 
-
 // geneQuantity is how a searched variable is shown: knees (names ending
 // in _m_per_s) in mm/s, damping ratios (_ratio) and factors as they are.
 func geneQuantity(name string) quantity {
