@@ -69,12 +69,12 @@ func TestPlausibleRanges(t *testing.T) {
 			}
 			p.merge("setup.", s.Validate())
 			if len(p.list) == 0 {
-				e, err := NewEvaluator(v, rc, Options{})
+				e, err := NewEvaluator(v, rc, EvaluatorOptions{})
 				if err != nil {
 					t.Fatal(err)
 				}
 				d := DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}, Base: s}
-				_, err = NewStudy(e, d, DefaultObjectives(), c)
+				_, err = NewProblem(e, d, DefaultObjectives(), c)
 				p.merge("", err)
 			}
 			if len(p.list) != 1 {
@@ -92,7 +92,7 @@ func TestPlausibleRanges(t *testing.T) {
 // result.
 func TestEvaluateRefusesAbsurdSetup(t *testing.T) {
 	t.Parallel()
-	e, err := NewEvaluator(demoCar(), demoCases()[:1], Options{})
+	e, err := NewEvaluator(demoCar(), demoCases()[:1], EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

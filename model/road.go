@@ -139,6 +139,7 @@ func (rc *RoadCase) gd0() float64 {
 // Validate checks the road case and names every bad field.
 func (rc *RoadCase) Validate() error {
 	var p problems
+	p.text("name", rc.Name)
 	p.in("speed_m_per_s", rc.Speed, "RoadCase.speed_m_per_s")
 	p.in("weight", rc.Weight, "RoadCase.weight")
 	switch {

@@ -106,7 +106,7 @@ func (o TimeOptions) validate(v *Vehicle) error {
 	p.nonNegative("duration_s", o.Duration)
 	p.nonNegative("step_s", o.Step)
 	p.nonNegative("settle_s", o.Settle)
-	p.in("warn_threshold", o.WarnThreshold, "Options.warn_threshold")
+	p.in("warn_threshold", o.WarnThreshold, "EvaluatorOptions.warn_threshold")
 	for ax, b := range o.BumpStops {
 		if b == nil {
 			continue

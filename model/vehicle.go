@@ -220,6 +220,7 @@ func (v *Vehicle) symmetric() bool {
 // Limit and PlausibleRanges).
 func (v *Vehicle) Validate() error {
 	var p problems
+	p.text("name", v.Name)
 	p.in("sprung_mass_kg", v.SprungMass, "Vehicle.sprung_mass_kg")
 	p.in("pitch_inertia_kg_m2", v.PitchInertia, "Vehicle.pitch_inertia_kg_m2")
 	p.in("roll_inertia_kg_m2", v.RollInertia, "Vehicle.roll_inertia_kg_m2")
