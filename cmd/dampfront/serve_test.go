@@ -194,6 +194,12 @@ func TestServeClientCommands(t *testing.T) {
 			})
 		}
 		mustRun(t, exitUsage, nil, s.client("check", "0123456789abcdef01234567", "--setup", balanced)...)
+		// The README's day of work checks the candidate against this
+		// job (the demo spec, seed 7) and goes on when it passes.
+		args := readmeCommand(t, "check", id)
+		if r := dampfront(t, nil, s.client(args...)...); r.code != exitOK || !strings.HasPrefix(r.stdout, "PASS") {
+			t.Errorf("the README's example dampfront %s exits %d, want 0 and a PASS:\n%s%s", strings.Join(args, " "), r.code, r.stdout, r.stderr)
+		}
 	})
 
 	t.Run("eval", func(t *testing.T) {
