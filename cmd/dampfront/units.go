@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"math"
 	"strings"
 
@@ -74,6 +75,27 @@ func objectiveQuantity(k pb.ObjectiveKind) quantity {
 	}
 	name := strings.ToLower(strings.TrimPrefix(k.String(), "OBJECTIVE_KIND_"))
 	return quantity{name, "", 1, 4, name}
+}
+
+// hypervolumeQuantity is the hypervolume in the product of the
+// objectives' trade units, "% × mm" for grip and platform, as the
+// hypervolume chart (api/plot) shows it.
+func hypervolumeQuantity(objs []*pb.Objective) quantity {
+	q := quantity{"hypervolume", "", 1, 4, "hypervolume"}
+	units := make([]string, len(objs))
+	for j, o := range objs {
+		oq := objectiveQuantity(o.GetKind())
+		q.scale *= oq.scale
+		units[j] = strings.TrimSuffix(oq.unit, " static")
+	}
+	q.unit = strings.Join(units, " × ")
+	return q
+}
+
+// hypervolumeText is a hypervolume with its unit, four significant digits.
+func hypervolumeText(hv float64, objs []*pb.Objective) string {
+	q := hypervolumeQuantity(objs)
+	return strings.TrimSpace(fmt.Sprintf("%.4g %s", q.trade(hv), q.unit))
 }
 
 // constraintQuantity is how a constraint's limit and metric are shown.
