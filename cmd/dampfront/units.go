@@ -132,7 +132,7 @@ var (
 	qTravelSD    = quantity{"travel sd", "mm", mmPerM, 3, "travel_sd_m"}
 	qDamperVelSD = quantity{"damper vel sd", "mm/s", mmPerSPerM, 1, "damper_velocity_sd_m_per_s"}
 	qPitchSD     = quantity{"pitch sd", "deg", degPerRad, 4, "pitch_sd_rad"}
-	qHeaveSD     = quantity{"heave sd", "g", 1 / gravitySI, 4, "heave_accel_sd_m_per_s2"}
+	qHeaveSD     = quantity{"heave accel sd", "g", 1 / gravitySI, 4, "heave_accel_sd_m_per_s2"}
 	qProbability = quantity{"probability", "%", percent, 3, "probability"}
 	qSlope       = quantity{"slope", "N s/mm", 1 / nsPerMmSI, 2, "slope_n_s_per_m"}
 	qVelocity    = quantity{"velocity", "mm/s", mmPerSPerM, 0, "velocity_m_per_s"}

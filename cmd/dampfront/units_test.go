@@ -99,3 +99,19 @@ func TestHypervolumeInTradeUnits(t *testing.T) {
 		t.Errorf("get lacks the hypervolume %q (%v):\n%s", want, err, b.String())
 	}
 }
+
+// The eval table's heave column is an acceleration in g (the SD of the
+// CG's vertical acceleration): its header says so, not "heave sd", which
+// reads as a displacement.
+func TestEvalHeaveColumnIsAnAcceleration(t *testing.T) {
+	t.Parallel()
+	var b strings.Builder
+	s := &pb.Solution{Feasible: true, CaseMetrics: []*pb.CaseMetrics{{RoadCase: "Ashgrove Ring", HeaveAccelSdMPerS2: 9.80665 * 0.0333}}}
+	if err := writeEvaluation(&b, "x", s, nil, nil); err != nil {
+		t.Fatal(err)
+	}
+	header, row, _ := strings.Cut(strings.SplitN(b.String(), "\n\n", 2)[1], "\n")
+	if !strings.Contains(header, "heave accel sd g") || strings.Contains(header, "heave sd") || !strings.Contains(row, "0.0333") {
+		t.Errorf("eval's heave column:\n%s\n%s", header, row)
+	}
+}
