@@ -108,8 +108,8 @@ func (rq *riverQueue[TTx]) settle(ctx context.Context, j *Job, cause string) err
 			_, err := rq.client.InsertTx(ctx, tx, sliceArgs{JobID: j.ID, Slice: j.Slices + 1}, rq.insertOpts())
 			return err
 		default:
-			msg := fmt.Sprintf("%s; given up after %d fresh slices from the last checkpoint, each with %d attempts (the front is that checkpoint's)",
-				cause, j.Requeues, cfg.MaxAttempts)
+			msg := fmt.Sprintf("%s (the job's slices ran out of their %d attempts %d times; the front is that of the last checkpoint)",
+				cause, cfg.MaxAttempts, j.Requeues+1)
 			_, err := st.JobEnd(ctx, &JobEndParams{ID: j.ID, Requeues: j.Requeues, State: StateFailed, Error: msg, Now: cfg.Now()})
 			return err
 		}
