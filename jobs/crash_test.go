@@ -106,15 +106,7 @@ func testCrashResume(t *testing.T, path, childNode string, wantReleased int) {
 	ctx := context.Background()
 	spec := toySpec{Generations: 300, Size: 11, Seed: 5, StepDelay: time.Millisecond}
 
-	client, err := Open(ctx, testConfig(path), &toyOpener{}) // submits and reads; no workers started
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer client.Close()
-	j, err := client.Submit(ctx, &SubmitParams{Spec: spec.bytes(), Seed: spec.Seed})
-	if err != nil {
-		t.Fatal(err)
-	}
+	client, j := crashClient(t, testConfig(path), spec)
 
 	var out bytes.Buffer
 	child := exec.Command(os.Args[0], "-test.run=^TestCrashWorkerProcess$", "-test.count=1")
@@ -202,4 +194,20 @@ func testCrashResume(t *testing.T, path, childNode string, wantReleased int) {
 	sameFront(t, frontOf(t, e, j.ID).Solutions, toyFrontAt(spec, spec.Generations))
 	t.Logf("killed at generation %d, checkpoint at %d (%d generations lost); slice resumed %v after the new engine's Start, %v after its Open",
 		atKill.Progress.Generation, resumeFrom, atKill.Progress.Generation-resumeFrom, resumeDelay, sinceOpen)
+}
+
+// crashClient opens an engine with cfg that submits and reads but works
+// nothing (it is not started), and submits spec to it.
+func crashClient(t *testing.T, cfg Config, spec toySpec) (*Engine, *Job) {
+	t.Helper()
+	client, err := Open(context.Background(), cfg, &toyOpener{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { _ = client.Close() })
+	j, err := client.Submit(context.Background(), &SubmitParams{Spec: spec.bytes(), Seed: spec.Seed})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return client, j
 }

@@ -40,15 +40,7 @@ func testCrashUntilAttemptsRunOut(t *testing.T, url string) {
 	spec := toySpec{Generations: 1_000_000, Size: 7, Seed: 13, StepDelay: time.Millisecond}
 	cfg := testConfig(url)
 	cfg.MaxAttempts = attempts // of the first slice, which the client queues
-	client, err := Open(ctx, cfg, &toyOpener{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer client.Close()
-	j, err := client.Submit(ctx, &SubmitParams{Spec: spec.bytes(), Seed: spec.Seed})
-	if err != nil {
-		t.Fatal(err)
-	}
+	client, j := crashClient(t, cfg, spec)
 	wctx, cancel := context.WithTimeout(ctx, 5*time.Minute)
 	defer cancel()
 	watch, err := client.Watch(wctx, j.ID)

@@ -8,20 +8,27 @@ import (
 	"time"
 )
 
-// idleEngine opens an engine on url that queues slices but works none
-// (Workers 0), so that a test decides what happens to them; its clock
-// stands at now, and its slices get 2 attempts and 1 requeue.
-func idleEngine(t *testing.T, url string, now time.Time) *Engine {
-	t.Helper()
-	cfg := testConfig(url)
-	cfg.Workers, cfg.MaxAttempts, cfg.MaxRequeues = 0, 2, 1
-	cfg.Now = func() time.Time { return now }
-	e, err := Open(context.Background(), cfg, &toyOpener{})
-	if err != nil {
-		t.Fatal(err)
+// onIdleEngines runs test, in parallel, on each backend with an engine
+// that queues slices but works none (Workers 0), so that the test decides
+// what happens to them; the engine's clock stands at now, and its slices
+// get 2 attempts and 1 requeue.
+func onIdleEngines(t *testing.T, test func(t *testing.T, e *Engine, now time.Time)) {
+	t.Parallel()
+	now := time.Date(2026, 5, 2, 3, 4, 5, 6, time.UTC)
+	for _, be := range backends {
+		t.Run(be.name, func(t *testing.T) {
+			t.Parallel()
+			cfg := testConfig(be.url(t))
+			cfg.Workers, cfg.MaxAttempts, cfg.MaxRequeues = 0, 2, 1
+			cfg.Now = func() time.Time { return now }
+			e, err := Open(context.Background(), cfg, &toyOpener{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			t.Cleanup(func() { _ = e.Close() })
+			test(t, e, now)
+		})
 	}
-	t.Cleanup(func() { _ = e.Close() })
-	return e
 }
 
 // setSlices moves every slice of job id that is in one of the states
@@ -94,83 +101,77 @@ func startedJob(t *testing.T, e *Engine, spec toySpec) *Job {
 // too, the reaper fails the job with the reason, keeping the front of the
 // checkpoint, and Watch returns with the failed job.
 func TestReapStrandedJob(t *testing.T) {
-	t.Parallel()
-	for _, be := range backends {
-		t.Run(be.name, func(t *testing.T) {
-			t.Parallel()
-			ctx := context.Background()
-			now := time.Date(2026, 5, 2, 3, 4, 5, 6, time.UTC)
-			e := idleEngine(t, be.url(t), now)
-			spec := toySpec{Generations: 50, Size: 5, Seed: 9}
-			j := startedJob(t, e, spec)
-			stranded := func() int {
-				t.Helper()
-				js, err := e.store.JobListStranded(ctx, &JobListStrandedParams{})
-				if err != nil {
-					t.Fatal(err)
-				}
-				return len(js)
-			}
-			if n := stranded(); n != 0 {
-				t.Fatalf("%d stranded jobs while the slice is queued, want 0", n)
-			}
-			if n := setSlices(t, e, j.ID, "running", "available"); n != 1 {
-				t.Fatalf("%d slices fetched, want 1", n)
-			}
-			if n := stranded(); n != 0 {
-				t.Fatalf("%d stranded jobs while the slice runs, want 0", n)
-			}
-			setSlices(t, e, j.ID, "discarded", "running")
-			if n := stranded(); n != 1 {
-				t.Fatalf("%d stranded jobs after the discard, want 1", n)
-			}
-
-			if n, err := e.q.reap(ctx); err != nil || n != 1 {
-				t.Fatalf("first reap: %d jobs, %v; want 1", n, err)
-			}
-			got, err := e.Get(ctx, j.ID)
+	onIdleEngines(t, func(t *testing.T, e *Engine, now time.Time) {
+		ctx := context.Background()
+		spec := toySpec{Generations: 50, Size: 5, Seed: 9}
+		j := startedJob(t, e, spec)
+		stranded := func() int {
+			t.Helper()
+			js, err := e.store.JobListStranded(ctx, &JobListStrandedParams{})
 			if err != nil {
 				t.Fatal(err)
 			}
-			if got.State != StateRunning || got.Requeues != 1 || liveSlices(t, e, j.ID) != 1 {
-				t.Fatalf("after the first reap: %+v with %d live slices; want running, requeued once, one fresh slice", got, liveSlices(t, e, j.ID))
-			}
-			if err := e.store.ProgressPut(ctx, &ProgressPutParams{JobID: j.ID, Lease: "dead-run", Now: now}); !errors.Is(err, ErrFailedPrecondition) {
-				t.Errorf("progress under the lease of the run before the requeue: err = %v, want ErrFailedPrecondition", err)
-			}
+			return len(js)
+		}
+		if n := stranded(); n != 0 {
+			t.Fatalf("%d stranded jobs while the slice is queued, want 0", n)
+		}
+		if n := setSlices(t, e, j.ID, "running", "available"); n != 1 {
+			t.Fatalf("%d slices fetched, want 1", n)
+		}
+		if n := stranded(); n != 0 {
+			t.Fatalf("%d stranded jobs while the slice runs, want 0", n)
+		}
+		setSlices(t, e, j.ID, "discarded", "running")
+		if n := stranded(); n != 1 {
+			t.Fatalf("%d stranded jobs after the discard, want 1", n)
+		}
 
-			wctx, cancel := context.WithTimeout(ctx, testTimeout)
-			defer cancel()
-			watch, err := e.Watch(wctx, j.ID)
-			if err != nil {
-				t.Fatal(err)
-			}
-			setSlices(t, e, j.ID, "discarded", "available")
-			if n, err := e.q.reap(ctx); err != nil || n != 1 {
-				t.Fatalf("second reap: %d jobs, %v; want 1", n, err)
-			}
-			var last *Job
-			for s := range watch {
-				last = s
-			}
-			if wctx.Err() != nil || last == nil {
-				t.Fatal("Watch did not return after the job ended")
-			}
-			if last.State != StateFailed || !last.Partial || !last.FinishedAt.Equal(now) ||
-				!strings.Contains(last.Error, "discarded after 2 attempts") || !strings.Contains(last.Error, "ran out of their 2 attempts 2 times") {
-				t.Fatalf("last snapshot: %+v; want failed at %v, partial, with the reason", last, now)
-			}
-			f := frontOf(t, e, j.ID)
-			if !f.Partial {
-				t.Error("front of the failed job not marked partial")
-			}
-			sameFront(t, f.Solutions, toyFrontAt(spec, 7))
-			if n, err := e.q.reap(ctx); err != nil || n != 0 {
-				t.Errorf("reap after the end: %d jobs, %v; want none", n, err)
-			}
-			t.Logf("ended: %s", last.Error)
-		})
-	}
+		if n, err := e.q.reap(ctx); err != nil || n != 1 {
+			t.Fatalf("first reap: %d jobs, %v; want 1", n, err)
+		}
+		got, err := e.Get(ctx, j.ID)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got.State != StateRunning || got.Requeues != 1 || liveSlices(t, e, j.ID) != 1 {
+			t.Fatalf("after the first reap: %+v with %d live slices; want running, requeued once, one fresh slice", got, liveSlices(t, e, j.ID))
+		}
+		if err := e.store.ProgressPut(ctx, &ProgressPutParams{JobID: j.ID, Lease: "dead-run", Now: now}); !errors.Is(err, ErrFailedPrecondition) {
+			t.Errorf("progress under the lease of the run before the requeue: err = %v, want ErrFailedPrecondition", err)
+		}
+
+		wctx, cancel := context.WithTimeout(ctx, testTimeout)
+		defer cancel()
+		watch, err := e.Watch(wctx, j.ID)
+		if err != nil {
+			t.Fatal(err)
+		}
+		setSlices(t, e, j.ID, "discarded", "available")
+		if n, err := e.q.reap(ctx); err != nil || n != 1 {
+			t.Fatalf("second reap: %d jobs, %v; want 1", n, err)
+		}
+		var last *Job
+		for s := range watch {
+			last = s
+		}
+		if wctx.Err() != nil || last == nil {
+			t.Fatal("Watch did not return after the job ended")
+		}
+		if last.State != StateFailed || !last.Partial || !last.FinishedAt.Equal(now) ||
+			!strings.Contains(last.Error, "discarded after 2 attempts") || !strings.Contains(last.Error, "ran out of their 2 attempts 2 times") {
+			t.Fatalf("last snapshot: %+v; want failed at %v, partial, with the reason", last, now)
+		}
+		f := frontOf(t, e, j.ID)
+		if !f.Partial {
+			t.Error("front of the failed job not marked partial")
+		}
+		sameFront(t, f.Solutions, toyFrontAt(spec, 7))
+		if n, err := e.q.reap(ctx); err != nil || n != 0 {
+			t.Errorf("reap after the end: %d jobs, %v; want none", n, err)
+		}
+		t.Logf("ended: %s", last.Error)
+	})
 }
 
 // TestCancelWithoutRunningSlice: Cancel ends at once a job whose slice
@@ -178,51 +179,45 @@ func TestReapStrandedJob(t *testing.T) {
 // with a running slice keeps running until that slice (or, when the
 // slice is discarded, the reaper) ends it.
 func TestCancelWithoutRunningSlice(t *testing.T) {
-	t.Parallel()
-	for _, be := range backends {
-		t.Run(be.name, func(t *testing.T) {
-			t.Parallel()
-			ctx := context.Background()
-			now := time.Date(2026, 5, 2, 3, 4, 5, 6, time.UTC)
-			e := idleEngine(t, be.url(t), now)
-			spec := toySpec{Generations: 50, Size: 4, Seed: 2}
-			tests := []struct {
-				name     string
-				slice    string // what becomes of the job's slice before the cancel
-				endsAt   bool   // Cancel ends the job
-				discards bool   // the running slice is discarded after the cancel, then reaped
-			}{
-				{"slice queued", "available", true, false},
-				{"slice discarded", "discarded", true, false},
-				{"slice running, then discarded", "running", false, true},
+	onIdleEngines(t, func(t *testing.T, e *Engine, now time.Time) {
+		ctx := context.Background()
+		spec := toySpec{Generations: 50, Size: 4, Seed: 2}
+		tests := []struct {
+			name     string
+			slice    string // what becomes of the job's slice before the cancel
+			endsAt   bool   // Cancel ends the job
+			discards bool   // the running slice is discarded after the cancel, then reaped
+		}{
+			{"slice queued", "available", true, false},
+			{"slice discarded", "discarded", true, false},
+			{"slice running, then discarded", "running", false, true},
+		}
+		for _, tt := range tests {
+			j := startedJob(t, e, spec)
+			if tt.slice != "available" {
+				setSlices(t, e, j.ID, tt.slice, "available")
 			}
-			for _, tt := range tests {
-				j := startedJob(t, e, spec)
-				if tt.slice != "available" {
-					setSlices(t, e, j.ID, tt.slice, "available")
-				}
-				got, err := e.Cancel(ctx, j.ID)
-				if err != nil {
-					t.Fatalf("%s: %v", tt.name, err)
-				}
-				if tt.discards {
-					if got.State != StateRunning || !got.CancelRequested {
-						t.Fatalf("%s: after Cancel %+v, want running with the request flagged", tt.name, got)
-					}
-					setSlices(t, e, j.ID, "discarded", "running")
-					if _, err := e.q.reap(ctx); err != nil {
-						t.Fatal(err)
-					}
-					if got, err = e.Get(ctx, j.ID); err != nil {
-						t.Fatal(err)
-					}
-				}
-				if got.State != StateCancelled || !got.Partial || !got.FinishedAt.Equal(now) || liveSlices(t, e, j.ID) != 0 {
-					t.Errorf("%s: job %+v with %d live slices; want cancelled at %v, partial, no slice left", tt.name, got, liveSlices(t, e, j.ID), now)
-					continue
-				}
-				sameFront(t, frontOf(t, e, j.ID).Solutions, toyFrontAt(spec, 7))
+			got, err := e.Cancel(ctx, j.ID)
+			if err != nil {
+				t.Fatalf("%s: %v", tt.name, err)
 			}
-		})
-	}
+			if tt.discards {
+				if got.State != StateRunning || !got.CancelRequested {
+					t.Fatalf("%s: after Cancel %+v, want running with the request flagged", tt.name, got)
+				}
+				setSlices(t, e, j.ID, "discarded", "running")
+				if _, err := e.q.reap(ctx); err != nil {
+					t.Fatal(err)
+				}
+				if got, err = e.Get(ctx, j.ID); err != nil {
+					t.Fatal(err)
+				}
+			}
+			if got.State != StateCancelled || !got.Partial || !got.FinishedAt.Equal(now) || liveSlices(t, e, j.ID) != 0 {
+				t.Errorf("%s: job %+v with %d live slices; want cancelled at %v, partial, no slice left", tt.name, got, liveSlices(t, e, j.ID), now)
+				continue
+			}
+			sameFront(t, frontOf(t, e, j.ID).Solutions, toyFrontAt(spec, 7))
+		}
+	})
 }
