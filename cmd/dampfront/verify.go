@@ -372,7 +372,7 @@ func verifyVerdict(rows []shownRow) (holds bool, line string) {
 }
 
 func writeVerifyTable(w io.Writer, rep *model.VerifyReport, in *api.ModelInputs, setup *pb.Setup, source string) error {
-	fmt.Fprintf(w, "Time-domain check of %s on %s: %s\n", source, in.Vehicle.Name, setupText(setup))
+	fmt.Fprintf(w, "Time-domain check of %s on %s: %s\n", source, plain(in.Vehicle.Name), setupText(setup))
 	fmt.Fprintf(w, "Road seed %d. Frequency domain: statistically linearised model; time domain: nonlinear dampers, tyres may leave the road.\n", rep.Seed)
 	for i := range rep.Cases {
 		c := &rep.Cases[i]
@@ -399,7 +399,7 @@ func writeVerifyTable(w io.Writer, rep *model.VerifyReport, in *api.ModelInputs,
 			return err
 		}
 		for _, wn := range timeWarnings(tm) {
-			fmt.Fprintf(w, "  warning: %s\n", wn)
+			fmt.Fprintf(w, "  warning: %s\n", plain(wn))
 		}
 		_, line := verifyVerdict(rows)
 		fmt.Fprintf(w, "  verdict: %s\n", line)
