@@ -189,15 +189,23 @@ func (e *Engine) Cancel(ctx context.Context, id string) (*Job, error) {
 // FrontPage is one page of a job's front.
 type FrontPage struct {
 	Job           *Job
-	Partial       bool // the job was cancelled or failed: the front is the best so far, not a finished run's
+	Partial       bool // the job runs, was cancelled or failed: the front is the best so far, not a finished run's
 	Solutions     []Solution
 	Total         int
 	NextPageToken string
 }
 
+// TokenAfter is the page token of the page that starts after the
+// solution with this index: for a caller that returns fewer solutions
+// than the page holds (AIP-158 allows it) and must say where to go on.
+func (p *FrontPage) TokenAfter(index int) string {
+	return pageToken{Query: frontQueryHash(p.Job.ID), Index: index}.encode()
+}
+
 // Front returns a page of the stored front of a finished job (succeeded,
-// cancelled or failed, the last two marked partial); a queued or running
-// job gives a *PreconditionError.
+// cancelled or failed, the last two marked partial), or of a running
+// job's front at its last checkpoint (partial; empty before the first);
+// a queued job gives a *PreconditionError.
 func (e *Engine) Front(ctx context.Context, p *FrontGetParams) (*FrontPage, error) {
 	if p.JobID == "" {
 		return nil, &InvalidArgumentError{Violations: []FieldError{{Field: "job_id", Reason: "is required"}}}
@@ -206,14 +214,15 @@ func (e *Engine) Front(ctx context.Context, p *FrontGetParams) (*FrontPage, erro
 	if err != nil {
 		return nil, err
 	}
-	if !j.State.Terminal() {
-		return nil, &PreconditionError{ID: j.ID, State: j.State, Reason: "the front is available once the job has finished or been cancelled; watch the job until then"}
+	if j.State == StateQueued {
+		return nil, &PreconditionError{ID: j.ID, State: j.State, Reason: "the front is available once a worker has started the job; watch the job until then"}
 	}
 	res, err := e.store.FrontGet(ctx, p)
 	if err != nil {
 		return nil, err
 	}
-	return &FrontPage{Job: j, Partial: j.Partial, Solutions: res.Solutions, Total: res.Total, NextPageToken: res.NextPageToken}, nil
+	partial := j.Partial || !j.State.Terminal()
+	return &FrontPage{Job: j, Partial: partial, Solutions: res.Solutions, Total: res.Total, NextPageToken: res.NextPageToken}, nil
 }
 
 // errors that end a slice's context, told apart with context.Cause.
