@@ -175,33 +175,20 @@ func (d *textDecoder) field(n *yaml.Node, fd protoreflect.FieldDescriptor, path 
 	d.pos[path] = TextPosition{n.Line, n.Column}
 	switch {
 	case fd.IsList():
-		if n.Kind != yaml.SequenceNode {
-			d.bad(n, path, "must be a list, got %s", kindName(n))
-			buf.WriteString("[]")
+		if !d.shaped(n, yaml.SequenceNode, path, buf) {
 			return
 		}
-		buf.WriteByte('[')
-		for i, e := range n.Content {
-			if e = d.resolve(e); e == nil {
-				return
-			}
-			if i > 0 {
-				buf.WriteByte(',')
-			}
-			ep := fmt.Sprintf("%s[%d]", path, i)
+		d.list(n, path, buf, func(e *yaml.Node, ep string) {
 			if isNull(e) {
 				d.bad(e, ep, "a list element must not be null")
 				buf.WriteString("null")
-				continue
+				return
 			}
 			d.pos[ep] = TextPosition{e.Line, e.Column}
 			d.single(e, fd, ep, buf)
-		}
-		buf.WriteByte(']')
+		})
 	case fd.IsMap():
-		if n.Kind != yaml.MappingNode {
-			d.bad(n, path, "must be a mapping, got %s", kindName(n))
-			buf.WriteString("{}")
+		if !d.shaped(n, yaml.MappingNode, path, buf) {
 			return
 		}
 		buf.WriteByte('{')
@@ -233,6 +220,38 @@ func (d *textDecoder) field(n *yaml.Node, fd protoreflect.FieldDescriptor, path 
 	default:
 		d.single(n, fd, path, buf)
 	}
+}
+
+// list writes the JSON array of sequence n, each element (aliases
+// followed) by write with its path.
+func (d *textDecoder) list(n *yaml.Node, path string, buf *bytes.Buffer, write func(e *yaml.Node, path string)) {
+	buf.WriteByte('[')
+	for i, e := range n.Content {
+		if e = d.resolve(e); e == nil {
+			return
+		}
+		if i > 0 {
+			buf.WriteByte(',')
+		}
+		write(e, fmt.Sprintf("%s[%d]", path, i))
+	}
+	buf.WriteByte(']')
+}
+
+// shaped reports whether n is a list or a mapping as kind asks; if not it
+// records the problem and writes an empty one.
+func (d *textDecoder) shaped(n *yaml.Node, kind yaml.Kind, path string, buf *bytes.Buffer) bool {
+	if n.Kind == kind {
+		return true
+	}
+	if kind == yaml.SequenceNode {
+		d.bad(n, path, "must be a list, got %s", kindName(n))
+		buf.WriteString("[]")
+	} else {
+		d.bad(n, path, "must be a mapping, got %s", kindName(n))
+		buf.WriteString("{}")
+	}
+	return false
 }
 
 // single writes one value of fd's kind.
@@ -369,17 +388,7 @@ func (d *textDecoder) generic(n *yaml.Node, path string, buf *bytes.Buffer) {
 		}
 		buf.WriteByte('}')
 	case yaml.SequenceNode:
-		buf.WriteByte('[')
-		for i, e := range n.Content {
-			if e = d.resolve(e); e == nil {
-				return
-			}
-			if i > 0 {
-				buf.WriteByte(',')
-			}
-			d.generic(e, fmt.Sprintf("%s[%d]", path, i), buf)
-		}
-		buf.WriteByte(']')
+		d.list(n, path, buf, func(e *yaml.Node, ep string) { d.generic(e, ep, buf) })
 	default:
 		switch n.ShortTag() {
 		case "!!null":
