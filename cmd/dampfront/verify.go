@@ -4,7 +4,6 @@ import (
 	"context"
 	"dampfront/api"
 	"errors"
-	"flag"
 	"fmt"
 	"math"
 	"runtime"
@@ -104,13 +103,7 @@ func (f *verifyFlags) options() model.VerifyOptions {
 func (f *verifyFlags) check(pos []string) error {
 	fs := f.fs
 	local := *f.specPath != "" || f.sf.vehicle != "" || f.sf.roads != ""
-	targets := 0
-	fs.Visit(func(fl *flag.Flag) {
-		switch fl.Name {
-		case "solution", "balanced", "setup":
-			targets++
-		}
-	})
+	targets := countSet(fs, "solution", "balanced", "setup")
 	switch {
 	case len(pos) == 0 && !local:
 		return usagef("verify", "give --spec FILE --setup FILE, or a JOB")
