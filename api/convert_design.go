@@ -103,7 +103,7 @@ var (
 // objectivesFromProto converts the objectives under path
 // ("spec.objectives"). The count, the kinds and repeats are checked here
 // so that they are reported together with every other problem of a spec;
-// model.NewStudy checks the same again.
+// model.NewProblem checks the same again.
 func objectivesFromProto(objs []*pb.Objective, path string, p *problems) []model.Objective {
 	if len(objs) < 1 || len(objs) > 3 {
 		p.add(path, "needs 1 to 3 objectives, got %d", len(objs))
@@ -144,7 +144,7 @@ func objectiveToProto(o model.Objective) *pb.Objective {
 }
 
 // constraintsFromProto converts the constraints under path
-// ("spec.constraints"); as with objectives, model.NewStudy checks the
+// ("spec.constraints"); as with objectives, model.NewProblem checks the
 // limits again.
 func constraintsFromProto(cons []*pb.Constraint, path string, p *problems) []model.Constraint {
 	out := make([]model.Constraint, len(cons))

@@ -8,7 +8,7 @@
 //	proto/dampfront/v1/*.proto   the API (buf lint clean, STANDARD rules)
 //	gen/dampfront/v1/            generated code, committed; ./generate.sh
 //	convert*.go                  protobuf <-> model, field paths of errors
-//	study*.go                    JobSpec -> model.Study + optimizer study
+//	study*.go                    JobSpec -> model.Problem + optimizer study
 //	server*.go                   the service over a jobs engine
 //
 // # Wiring

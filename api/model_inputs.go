@@ -10,7 +10,7 @@ import (
 type ModelInputs struct {
 	Vehicle     model.Vehicle
 	RoadCases   []model.RoadCase
-	Options     model.Options // the spec's grid
+	Options     model.EvaluatorOptions // the spec's grid
 	Design      model.DesignSpace
 	Objectives  []model.Objective
 	Constraints []model.Constraint
@@ -29,7 +29,7 @@ func SpecToModel(spec *pb.JobSpec) (*ModelInputs, error) {
 	}
 	in := &ModelInputs{
 		Vehicle:     *pl.eval.Vehicle(),
-		Options:     model.Options{Grid: gridFromProto(pl.spec.GetGrid())},
+		Options:     model.EvaluatorOptions{Grid: gridFromProto(pl.spec.GetGrid())},
 		Design:      *pl.study.Design(),
 		Objectives:  pl.study.Objectives(),
 		Constraints: pl.study.Constraints(),

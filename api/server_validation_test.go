@@ -91,6 +91,17 @@ var badSpecs = []struct {
 		[]string{"spec.curves.points"}},
 	{"bad label key", func(s *pb.JobSpec) { s.Labels = map[string]string{"Bad Key": "x"} },
 		[]string{`spec.labels["Bad Key"]`}},
+	// Names and label values are shown on terminals and pages: control
+	// characters (ESC starts an ECMA-48 escape sequence; U+202E reorders
+	// the text after it, Unicode Standard Annex #9) are refused.
+	{"escape in the display name", func(s *pb.JobSpec) { s.DisplayName = "GT\x1b]0;owned\x07" },
+		[]string{"spec.display_name"}},
+	{"right-to-left override in the car's name", func(s *pb.JobSpec) { s.Vehicle.Name = "GT\u202e" },
+		[]string{"spec.vehicle.name"}},
+	{"tab in a road case's name", func(s *pb.JobSpec) { s.RoadCases[1].Name = "kerbs\there" },
+		[]string{"spec.road_cases[1].name"}},
+	{"CSI in a label value", func(s *pb.JobSpec) { s.Labels = map[string]string{"car": "gt\u009b2J"} },
+		[]string{`spec.labels["car"]`}},
 	// Found only once every part is valid on its own: an aero stiffness
 	// above the suspension's makes the car unstable at speed, on every
 	// road case; each is reported.

@@ -66,7 +66,7 @@ func (s *Server) VerifySetup(ctx context.Context, req *pb.VerifySetupRequest) (*
 	}
 	opt := model.VerifyOptions{
 		Time:  model.TimeOptions{Duration: duration, WarnThreshold: ev.WarnThreshold()},
-		Model: model.Options{Grid: gridFromProto(pl.spec.GetGrid())},
+		Model: model.EvaluatorOptions{Grid: gridFromProto(pl.spec.GetGrid())},
 		Seed:  seed,
 	}
 	type result struct {

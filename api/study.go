@@ -19,7 +19,7 @@ import (
 // Opener builds the job engine's studies from stored specs: the spec
 // bytes are a deterministic protobuf encoding of a JobSpec with its
 // defaults filled in (see MarshalSpec), the checkpoint is the optimiser's.
-// It implements jobs.StudyOpener and jobs.SpecValidator.
+// It implements jobs.RunOpener and jobs.SpecValidator.
 type Opener struct {
 	// Workers is the number of evaluations a study runs at once; 0 means
 	// GOMAXPROCS. The front does not depend on it.
@@ -32,9 +32,9 @@ type Opener struct {
 }
 
 var (
-	_ jobs.StudyOpener   = (*Opener)(nil)
+	_ jobs.RunOpener     = (*Opener)(nil)
 	_ jobs.SpecValidator = (*Opener)(nil)
-	_ jobs.Study         = (*jobStudy)(nil)
+	_ jobs.Run           = (*jobStudy)(nil)
 )
 
 // MarshalSpec returns the bytes the engine stores for a spec: its
@@ -68,7 +68,7 @@ func (o *Opener) ValidateSpec(spec []byte) error {
 
 // Open returns the study of a stored spec, fresh when checkpoint is nil
 // and restored from it otherwise.
-func (o *Opener) Open(spec, checkpoint []byte) (jobs.Study, error) {
+func (o *Opener) Open(spec, checkpoint []byte) (jobs.Run, error) {
 	s, err := unmarshalSpec(spec)
 	if err != nil {
 		return nil, err
@@ -115,7 +115,7 @@ func openStudy(pl *plan, workers int, checkpoint []byte) (*jobStudy, error) {
 // jobStudy is one job's search as the engine drives it.
 type jobStudy struct {
 	plan *plan
-	opt  *optimizer.Study
+	opt  *optimizer.Search
 
 	mu   sync.Mutex
 	last optimizer.Progress // after the last completed generation

@@ -17,7 +17,7 @@ import (
 type plan struct {
 	spec        *pb.JobSpec // with defaults filled in
 	eval        *model.Evaluator
-	study       *model.Study
+	study       *model.Problem
 	settings    optimizer.Settings // without Workers and Progress
 	adjustment  model.Adjustment
 	curveMax    float64 // m/s
@@ -33,6 +33,9 @@ func compile(spec *pb.JobSpec, prefix string) (*plan, error) {
 	s := withDefaults(spec)
 	var p problems
 	at := under(prefix)
+	if why := model.TextProblem(s.GetDisplayName()); why != "" {
+		p.add(at("display_name"), "%s", why)
+	}
 
 	v := vehicleFromProto(s.GetVehicle(), at("vehicle"), &p)
 	if len(s.GetRoadCases()) == 0 {
@@ -66,11 +69,11 @@ func compile(spec *pb.JobSpec, prefix string) (*plan, error) {
 
 	// With every part valid on its own, what is left is the system: the
 	// car's stability at each speed and the objectives together.
-	eval, err := model.NewEvaluator(v, cases, model.Options{Grid: grid})
+	eval, err := model.NewEvaluator(v, cases, model.EvaluatorOptions{Grid: grid})
 	if err != nil {
 		return nil, specStatus(prefix, err)
 	}
-	study, err := model.NewStudy(eval, design, objectives, constraints)
+	study, err := model.NewProblem(eval, design, objectives, constraints)
 	if err != nil {
 		return nil, specStatus(prefix, err)
 	}
@@ -181,10 +184,10 @@ func (pl *plan) optimizerSettings(workers int, progress func(optimizer.Progress)
 // problem is the plan's search problem as the optimiser sees it.
 func (pl *plan) problem() optimizer.Problem { return searchProblem{pl.study} }
 
-// searchProblem adapts a model.Study to optimizer.Problem: the genes'
-// box, the objectives and the constraint violations. model.Study is safe
+// searchProblem adapts a model.Problem to optimizer.Problem: the genes'
+// box, the objectives and the constraint violations. model.Problem is safe
 // for concurrent use and pure, as the optimiser requires.
-type searchProblem struct{ study *model.Study }
+type searchProblem struct{ study *model.Problem }
 
 func (q searchProblem) Bounds() []optimizer.Bound {
 	genes := q.study.Genes()

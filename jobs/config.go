@@ -48,7 +48,7 @@ type Config struct {
 	CancelPollInterval time.Duration
 	// WatchInterval is how often Watch polls the store. Default 250 ms.
 	WatchInterval time.Duration
-	// StepGenerations is the maxGenerations passed to Study.Step; the
+	// StepGenerations is the maxGenerations passed to Run.Step; the
 	// engine checks the clock and the flags between calls. Default 1.
 	StepGenerations int
 
@@ -88,7 +88,7 @@ type Config struct {
 	NewID func() string
 
 	// OnSlice, when set, is called at the end of every slice this process
-	// drives (from the opened study to the slice's last transaction), on
+	// drives (from the opened run to the slice's last transaction), on
 	// the worker's goroutine, for metrics; it must return quickly.
 	OnSlice func(SliceStats)
 
@@ -99,11 +99,11 @@ type Config struct {
 // SliceStats describe one slice that a worker drove, for Config.OnSlice.
 type SliceStats struct {
 	JobID string
-	// Duration is the wall time from the opened study to the end of the
+	// Duration is the wall time from the opened run to the end of the
 	// slice's last transaction.
 	Duration time.Duration
 	// Generations and Evaluations are those the slice completed: the
-	// study's progress at the end less that at its opening (from the
+	// run's progress at the end less that at its opening (from the
 	// last checkpoint, so work redone after a crash counts again).
 	Generations int
 	Evaluations int64
@@ -113,8 +113,8 @@ type SliceStats struct {
 
 // Outcomes of a slice, in SliceStats.
 const (
-	SliceSucceeded  = "succeeded"   // the study reached its end; the job succeeded
-	SliceFailed     = "failed"      // the study failed; so did the job
+	SliceSucceeded  = "succeeded"   // the run reached its end; the job succeeded
+	SliceFailed     = "failed"      // the run failed; so did the job
 	SliceCancelled  = "cancelled"   // a cancel was seen; the job is cancelled
 	SliceHandedOver = "handed_over" // time up or engine stopping: checkpointed, next slice queued
 	SliceError      = "error"       // a database error; River retries the slice

@@ -1,10 +1,10 @@
 // Package jobs is dampfront's durable job engine: it stores job specs,
-// runs their optimisation studies as chains of bounded slices on River,
+// runs their optimisation runs as chains of bounded slices on River,
 // checkpoints them, and keeps their progress and Pareto fronts, in the
 // embedded SQLite file (default) or in PostgreSQL (many workers on many
 // hosts sharing one database).
 //
-// The package knows the optimiser only through Study and StudyOpener, and
+// The package knows the optimiser only through Run and RunOpener, and
 // the API only through opaque spec and detail bytes; the wiring code
 // implements those. It imports neither dampfront/api nor dampfront/model.
 //
@@ -15,7 +15,7 @@
 //
 //	a worker fetches slice n (River)
 //	  JobStart: job -> running, lease := client/river-job/attempt/snoozes
-//	  Open(spec, last checkpoint or nil) -> Study
+//	  Open(spec, last checkpoint or nil) -> Run
 //	  loop Step(ctx, StepGenerations) until
 //	      done | SliceDuration elapsed | cancel flag seen | engine stopping
 //	    every ProgressInterval:   progress (lease-checked)
@@ -43,8 +43,8 @@
 // runs it again without spending one of MaxAttempts, so a database
 // outage of any length delays jobs and fails none.
 //
-// Determinism: the engine hands the study exactly the bytes its last
-// Checkpoint returned and never keeps a half-run generation (Study.Step
+// Determinism: the engine hands the run exactly the bytes its last
+// Checkpoint returned and never keeps a half-run generation (Run.Step
 // must stop at a generation boundary), so a seeded job ends with the same
 // front, bit for bit, in one slice, in many, or across a kill and resume.
 // Floats are stored as IEEE 754 bits, not decimals.

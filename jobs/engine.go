@@ -14,7 +14,7 @@ import (
 // Config.Workers > 0, works them. All methods are safe for concurrent use.
 type Engine struct {
 	cfg    Config
-	opener StudyOpener
+	opener RunOpener
 	store  *sqlStore
 	q      queue
 
@@ -41,8 +41,8 @@ type queue interface {
 
 // Open connects to cfg.DatabaseURL, migrates its tables (River's and the
 // project's) and returns an engine that is not yet working; Start begins
-// that. opener builds studies from stored specs and checkpoints.
-func Open(ctx context.Context, cfg Config, opener StudyOpener) (*Engine, error) {
+// that. opener builds runs from stored specs and checkpoints.
+func Open(ctx context.Context, cfg Config, opener RunOpener) (*Engine, error) {
 	cfg, err := cfg.withDefaults()
 	if err != nil {
 		return nil, err

@@ -13,7 +13,7 @@ import (
 	"dampfront/jobs"
 )
 
-// countStudy is the smallest Study: it counts generations up to n.
+// countStudy is the smallest Run: it counts generations up to n.
 type countStudy struct{ gen, n int }
 
 func (s *countStudy) Step(ctx context.Context, max int) (bool, error) {
@@ -40,7 +40,7 @@ func (s *countStudy) Front() ([]jobs.Solution, error) {
 
 type countOpener struct{}
 
-func (countOpener) Open(spec, checkpoint []byte) (jobs.Study, error) {
+func (countOpener) Open(spec, checkpoint []byte) (jobs.Run, error) {
 	n, _ := binary.Uvarint(spec)
 	s := &countStudy{n: int(n)}
 	if checkpoint != nil {

@@ -123,7 +123,7 @@ func (rq *riverQueue[TTx]) runSlice(ctx context.Context, rj *river.Job[sliceArgs
 }
 
 // drive steps the study for one slice and ends it.
-func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Study) (err error) {
+func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Run) (err error) {
 	cfg, st, id := rq.e.cfg, rq.db.store, rj.Args.JobID
 	outcome := SliceError
 	if cfg.OnSlice != nil {
@@ -212,7 +212,7 @@ func (rq *riverQueue[TTx]) pollCancel(ctx context.Context, cancel context.Cancel
 }
 
 // saveState writes the study's checkpoint, progress and front.
-func (rq *riverQueue[TTx]) saveState(ctx context.Context, tx *sqlStore, id, lease string, study Study) error {
+func (rq *riverQueue[TTx]) saveState(ctx context.Context, tx *sqlStore, id, lease string, study Run) error {
 	data, err := study.Checkpoint()
 	if err != nil {
 		return fmt.Errorf("study checkpoint: %w", err)
@@ -239,7 +239,7 @@ func (rq *riverQueue[TTx]) finalContext(ctx context.Context) (context.Context, c
 
 // handOver checkpoints (when study is not nil), queues the job's next
 // slice and completes this one, in one transaction.
-func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Study) error {
+func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs], lease string, study Run) error {
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
 	return finishedElsewhere(rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
@@ -263,7 +263,7 @@ func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs
 // finish moves the job to a terminal state, saving the study's final
 // state and front first when study is not nil (otherwise the front of the
 // last checkpoint stays), and completes this slice, in one transaction.
-func (rq *riverQueue[TTx]) finish(ctx context.Context, rj *river.Job[sliceArgs], lease string, state State, msg string, study Study) error {
+func (rq *riverQueue[TTx]) finish(ctx context.Context, rj *river.Job[sliceArgs], lease string, state State, msg string, study Run) error {
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
 	return finishedElsewhere(rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {

@@ -7,6 +7,8 @@ import (
 	"fmt"
 	"strings"
 	"unicode/utf8"
+
+	"dampfront/model"
 )
 
 // sqlStore implements Store with portable SQL over a querier. The SQLite
@@ -92,6 +94,8 @@ func checkLabels(v *violations, field string, labels map[string]string) {
 		}
 		if len(val) > maxLabelValueLen || !utf8.ValidString(val) {
 			v.add(f, "label value must be valid UTF-8 of at most %d bytes", maxLabelValueLen)
+		} else if why := model.TextProblem(val); why != "" {
+			v.add(f, "label value %s", why)
 		}
 	}
 }

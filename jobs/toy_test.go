@@ -46,7 +46,7 @@ type toyOpener struct {
 
 var errToySpec = errors.New("toy: bad spec")
 
-func (o *toyOpener) Open(spec, checkpoint []byte) (Study, error) {
+func (o *toyOpener) Open(spec, checkpoint []byte) (Run, error) {
 	var s toySpec
 	if err := json.Unmarshal(spec, &s); err != nil || s.Generations <= 0 || s.Size <= 0 {
 		return nil, fmt.Errorf("%w: %s", errToySpec, spec)

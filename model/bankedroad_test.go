@@ -53,7 +53,7 @@ func TestRigidPlaneRoad(t *testing.T) {
 				}
 				// Outputs: evaluate the output geometry at ω = 0 on the
 				// rigid motion.
-				ev, err := NewEvaluator(v, []RoadCase{{Name: "x", Speed: 60, Gd0: 1e-6}}, Options{})
+				ev, err := NewEvaluator(v, []RoadCase{{Name: "x", Speed: 60, Gd0: 1e-6}}, EvaluatorOptions{})
 				if err != nil {
 					t.Fatal(err)
 				}
@@ -107,7 +107,7 @@ func TestIndependentTracksOffsetCG(t *testing.T) {
 	v.TrackRear = v.TrackFront
 	rc := RoadCase{Name: "independent tracks", Speed: 50, Gd0: 3e-6,
 		Coherence: Coherence{Kind: CoherenceTable, N: []float64{1}, Gamma: []float64{0}}}
-	ev, err := NewEvaluator(v, []RoadCase{rc}, Options{})
+	ev, err := NewEvaluator(v, []RoadCase{rc}, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -7,8 +7,8 @@ import (
 	"sync"
 )
 
-// Options tune an Evaluator. The zero value gives the defaults.
-type Options struct {
+// EvaluatorOptions tune an Evaluator. The zero value gives the defaults.
+type EvaluatorOptions struct {
 	Grid Grid // frequency grid; zero value means DefaultGrid
 
 	// Tolerance is the relative change of every equivalent damping below
@@ -23,7 +23,7 @@ type Options struct {
 	General bool
 }
 
-func (o Options) withDefaults() Options {
+func (o EvaluatorOptions) withDefaults() EvaluatorOptions {
 	if o.Grid == (Grid{}) {
 		o.Grid = DefaultGrid
 	}
@@ -44,7 +44,7 @@ func (o Options) withDefaults() Options {
 // when dst has room for the cases.
 type Evaluator struct {
 	v     Vehicle
-	opt   Options
+	opt   EvaluatorOptions
 	f     []float64    // grid frequencies (Hz)
 	omega []float64    // 2πf
 	wts   []float64    // Simpson weights in f
@@ -69,7 +69,7 @@ type workspace struct {
 }
 
 // NewEvaluator validates its inputs and prepares the road cases on the grid.
-func NewEvaluator(v Vehicle, cases []RoadCase, opt Options) (*Evaluator, error) {
+func NewEvaluator(v Vehicle, cases []RoadCase, opt EvaluatorOptions) (*Evaluator, error) {
 	opt = opt.withDefaults()
 	var p problems
 	p.merge("vehicle.", v.Validate())

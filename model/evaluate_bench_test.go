@@ -18,7 +18,7 @@ func BenchmarkEvaluate(b *testing.B) {
 	}{{"symmetric", demoCar()}, {"asymmetric", asymmetricCar()}} {
 		for _, n := range []int{1, 3} {
 			b.Run(fmt.Sprintf("%s/cases=%d", car.name, n), func(b *testing.B) {
-				ev, err := NewEvaluator(car.v, three[:n], Options{})
+				ev, err := NewEvaluator(car.v, three[:n], EvaluatorOptions{})
 				if err != nil {
 					b.Fatal(err)
 				}

@@ -40,11 +40,11 @@ func TestGridTruncation(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
 			cases := demoCases()
-			coarse, err := NewEvaluator(tc.v, cases, Options{})
+			coarse, err := NewEvaluator(tc.v, cases, EvaluatorOptions{})
 			if err != nil {
 				t.Fatal(err)
 			}
-			fine, err := NewEvaluator(tc.v, cases, Options{Grid: fineGrid})
+			fine, err := NewEvaluator(tc.v, cases, EvaluatorOptions{Grid: fineGrid})
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -228,7 +228,7 @@ func TestLinearisationFixedPoint(t *testing.T) {
 	v := demoCar()
 	s := demoSetup()
 	cases := demoCases()
-	ev, err := NewEvaluator(v, cases, Options{})
+	ev, err := NewEvaluator(v, cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -249,7 +249,7 @@ func TestLinearisationFixedPoint(t *testing.T) {
 			z := m.EquivalentDamping[2*ax] / cw[2*ax]
 			lin.Axles[ax] = AxleDamping{BumpRatio: z, ReboundRatio: z}
 		}
-		one, err := NewEvaluator(v, cases[ci:ci+1], Options{})
+		one, err := NewEvaluator(v, cases[ci:ci+1], EvaluatorOptions{})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -303,7 +303,7 @@ func TestLinearisationFixedPoint(t *testing.T) {
 // with a clear error).
 func TestLinearisationNoConvergence(t *testing.T) {
 	t.Parallel()
-	ev, err := NewEvaluator(demoCar(), demoCases(), Options{MaxIterations: 1})
+	ev, err := NewEvaluator(demoCar(), demoCases(), EvaluatorOptions{MaxIterations: 1})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -547,7 +547,7 @@ func TestLyapunovCovariance(t *testing.T) {
 			if v.Corners[FL].TyreEnvelopeLength > 0 {
 				grid = envelopeGrid
 			}
-			ev, err := NewEvaluator(v, []RoadCase{rc}, Options{Grid: grid, General: tc.general})
+			ev, err := NewEvaluator(v, []RoadCase{rc}, EvaluatorOptions{Grid: grid, General: tc.general})
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -157,10 +157,10 @@ func caseConstraint(c *Constraint, m *CaseMetrics) float64 {
 	return worst
 }
 
-// Study is the search problem: genes to setup, setup to objectives and
+// Problem is the search problem: genes to setup, setup to objectives and
 // constraint violations. It is safe for concurrent use and allocates
 // nothing per evaluation once warm.
-type Study struct {
+type Problem struct {
 	eval        *Evaluator
 	design      DesignSpace
 	genes       []Gene
@@ -169,8 +169,8 @@ type Study struct {
 	pool        sync.Pool
 }
 
-// NewStudy checks the design space, objectives and constraints.
-func NewStudy(e *Evaluator, d DesignSpace, objectives []Objective, constraints []Constraint) (*Study, error) {
+// NewProblem checks the design space, objectives and constraints.
+func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints []Constraint) (*Problem, error) {
 	var p problems
 	p.merge("design.", d.Validate())
 	if len(objectives) < 1 || len(objectives) > 3 {
@@ -202,36 +202,36 @@ func NewStudy(e *Evaluator, d DesignSpace, objectives []Objective, constraints [
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	s := &Study{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
+	s := &Problem{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
 	s.pool.New = func() any { return &Result{Cases: make([]CaseMetrics, e.Cases())} }
 	return s, nil
 }
 
 // Genes lists the searched variables.
-func (s *Study) Genes() []Gene { return s.genes }
+func (s *Problem) Genes() []Gene { return s.genes }
 
 // Design returns the design space.
-func (s *Study) Design() *DesignSpace { return &s.design }
+func (s *Problem) Design() *DesignSpace { return &s.design }
 
-// Evaluator returns the study's evaluator.
-func (s *Study) Evaluator() *Evaluator { return s.eval }
+// Evaluator returns the problem's evaluator.
+func (s *Problem) Evaluator() *Evaluator { return s.eval }
 
 // Objectives returns the objectives.
-func (s *Study) Objectives() []Objective { return s.objectives }
+func (s *Problem) Objectives() []Objective { return s.objectives }
 
 // Constraints returns the constraints.
-func (s *Study) Constraints() []Constraint { return s.constraints }
+func (s *Problem) Constraints() []Constraint { return s.constraints }
 
 // NumObjectives is len(Objectives()).
-func (s *Study) NumObjectives() int { return len(s.objectives) }
+func (s *Problem) NumObjectives() int { return len(s.objectives) }
 
 // NumConstraints is len(Constraints()).
-func (s *Study) NumConstraints() int { return len(s.constraints) }
+func (s *Problem) NumConstraints() int { return len(s.constraints) }
 
 // EvaluateGenes evaluates the setup decoded from x and writes the
 // objective values to obj and the constraint violations to viol
 // (max(0, value/limit - 1), 0 when satisfied).
-func (s *Study) EvaluateGenes(x, obj, viol []float64) error {
+func (s *Problem) EvaluateGenes(x, obj, viol []float64) error {
 	r := s.pool.Get().(*Result)
 	defer s.pool.Put(r)
 	if err := s.eval.Evaluate(s.design.Decode(x), r); err != nil {
@@ -242,7 +242,7 @@ func (s *Study) EvaluateGenes(x, obj, viol []float64) error {
 }
 
 // Score computes objectives and violations of an evaluated result.
-func (s *Study) Score(r *Result, obj, viol []float64) {
+func (s *Problem) Score(r *Result, obj, viol []float64) {
 	for j := range s.objectives {
 		obj[j] = Aggregate(s.eval, s.objectives[j].Aggregation, r, func(m *CaseMetrics) float64 {
 			return caseObjective(&s.objectives[j], m)
@@ -278,7 +278,7 @@ func Aggregate(e *Evaluator, a Aggregation, r *Result, g func(*CaseMetrics) floa
 }
 
 // ObjectiveValue returns one objective's value for an evaluated result.
-func (s *Study) ObjectiveValue(j int, r *Result) float64 {
+func (s *Problem) ObjectiveValue(j int, r *Result) float64 {
 	return Aggregate(s.eval, s.objectives[j].Aggregation, r, func(m *CaseMetrics) float64 {
 		return caseObjective(&s.objectives[j], m)
 	})

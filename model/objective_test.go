@@ -16,7 +16,7 @@ func TestSameSumSplitsDifferOnlyInPlatform(t *testing.T) {
 	// relTol: the two evaluations solve the same linear system up to the
 	// rounding of c_b + c_r and of the fixed point (tolerance 1e-12).
 	const relTol = 1e-9
-	e, err := NewEvaluator(demoCar(), demoCases(), Options{Tolerance: 1e-12})
+	e, err := NewEvaluator(demoCar(), demoCases(), EvaluatorOptions{Tolerance: 1e-12})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -36,7 +36,7 @@ func TestSameSumSplitsDifferOnlyInPlatform(t *testing.T) {
 	if err := e.Evaluate(mk(0.7, 0.7), &rb); err != nil {
 		t.Fatal(err)
 	}
-	study, err := NewStudy(e, DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}}, DefaultObjectives(), nil)
+	study, err := NewProblem(e, DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}}, DefaultObjectives(), nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -79,7 +79,7 @@ func TestAggregation(t *testing.T) {
 	// mean square sqrt((1*9 + 3*1)/4) = sqrt(3); worst 3.
 	cases := demoCases()
 	cases[0].Weight, cases[1].Weight = 1, 3
-	e, err := NewEvaluator(demoCar(), cases, Options{})
+	e, err := NewEvaluator(demoCar(), cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -95,14 +95,14 @@ func TestAggregation(t *testing.T) {
 
 func TestStudyConstraintsAndValidation(t *testing.T) {
 	t.Parallel()
-	e, err := NewEvaluator(demoCar(), demoCases(), Options{})
+	e, err := NewEvaluator(demoCar(), demoCases(), EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	d := DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}, Base: demoSetup()}
 	// A travel limit of 0.1 mm is certainly violated (travel sd is about
 	// 1 mm on these cases); a jacking limit of 1 m certainly holds.
-	s, err := NewStudy(e, d, DefaultObjectives(), []Constraint{{ConstraintTravel, 1e-4}, {ConstraintJacking, 1}})
+	s, err := NewProblem(e, d, DefaultObjectives(), []Constraint{{ConstraintTravel, 1e-4}, {ConstraintJacking, 1}})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -113,7 +113,7 @@ func TestStudyConstraintsAndValidation(t *testing.T) {
 	if !(viol[0] > 1) || viol[1] != 0 {
 		t.Errorf("violations %v, want [>1, 0]", viol)
 	}
-	_, err = NewStudy(e, DesignSpace{Ratios: [4]Range{{-1, 1}, {0.2, 0.1}, {0.2, 1}, {0.2, 1}}},
+	_, err = NewProblem(e, DesignSpace{Ratios: [4]Range{{-1, 1}, {0.2, 0.1}, {0.2, 1}, {0.2, 1}}},
 		[]Objective{{Kind: 99}, {Kind: ObjectiveGrip}, {Kind: ObjectiveGrip}, {Kind: ObjectivePitch}},
 		[]Constraint{{Kind: ConstraintLiftOff, Limit: 0}})
 	want := []string{"design.ratios.front_bump.min", "design.ratios.front_rebound.max", "objectives",

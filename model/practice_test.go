@@ -26,7 +26,7 @@ func TestCriticalDampingAtWheel(t *testing.T) {
 				t.Errorf("%s %s: ζ·CriticalDamping = %.12g, 2ζ sqrt(k m) = %.12g", v.Name, CornerNames[i], zeta[i/2]*cc[i], want[i])
 			}
 		}
-		ev, err := NewEvaluator(v, demoCases()[:1], Options{})
+		ev, err := NewEvaluator(v, demoCases()[:1], EvaluatorOptions{})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -108,11 +108,11 @@ func TestMotionRatioInvariance(t *testing.T) {
 		s2.Axles[ax].KneeRebound *= ratio[ax]
 	}
 	cases := demoCases()
-	e1, err := NewEvaluator(v1, cases, Options{})
+	e1, err := NewEvaluator(v1, cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	e2, err := NewEvaluator(v2, cases, Options{})
+	e2, err := NewEvaluator(v2, cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -152,7 +152,7 @@ func TestGripOptimumBelowPlatformOptimum(t *testing.T) {
 	t.Parallel()
 	v := demoCar()
 	cases := demoCases()
-	ev, err := NewEvaluator(v, cases, Options{})
+	ev, err := NewEvaluator(v, cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

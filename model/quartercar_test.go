@@ -273,7 +273,7 @@ func TestQuarterCarLimit(t *testing.T) {
 				{BumpRatio: tc.zf, ReboundRatio: rb},
 				{BumpRatio: tc.zr, ReboundRatio: tc.zr},
 			}}
-			e, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, speed)}, Options{Grid: fineGrid, General: tc.general})
+			e, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, speed)}, EvaluatorOptions{Grid: fineGrid, General: tc.general})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -410,7 +410,7 @@ func TestQuarterCarBodyAcceleration(t *testing.T) {
 		}
 		v := quarterCarVehicle(q, q, 0.8)
 		s := Setup{Axles: [2]AxleDamping{{BumpRatio: tc.zeta, ReboundRatio: tc.zeta}, {BumpRatio: tc.zeta, ReboundRatio: tc.zeta}}}
-		ev, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, tc.speed)}, Options{Grid: fineGrid})
+		ev, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, tc.speed)}, EvaluatorOptions{Grid: fineGrid})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -445,7 +445,7 @@ func TestQuarterCarTyreLoadOptimum(t *testing.T) {
 	q := quarterCar{m: 260, mu: 38, k: 42e3, kt: 290e3}
 	const gv = 6e-5
 	v := quarterCarVehicle(q, q, 1)
-	e, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, 40)}, Options{Grid: fineGrid})
+	e, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, 40)}, EvaluatorOptions{Grid: fineGrid})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -495,7 +495,7 @@ func TestQuarterCarJacking(t *testing.T) {
 	const mr = 0.8
 	v := quarterCarVehicle(qf, qr, mr)
 	s := Setup{Axles: [2]AxleDamping{{BumpRatio: 0.25, ReboundRatio: 0.75}, {BumpRatio: 0.6, ReboundRatio: 0.3}}}
-	e, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, 40)}, Options{Grid: fineGrid})
+	e, err := NewEvaluator(v, []RoadCase{whiteVelocityCase(gv, 40)}, EvaluatorOptions{Grid: fineGrid})
 	if err != nil {
 		t.Fatal(err)
 	}

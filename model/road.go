@@ -139,6 +139,7 @@ func (rc *RoadCase) gd0() float64 {
 // Validate checks the road case and names every bad field.
 func (rc *RoadCase) Validate() error {
 	var p problems
+	p.text("name", rc.Name)
 	p.positive("speed_m_per_s", rc.Speed)
 	p.nonNegative("weight", rc.Weight)
 	switch {

@@ -13,7 +13,7 @@ import (
 // trapezoid-vs-Simpson difference.
 func TestSpectraIntegrateToMetrics(t *testing.T) {
 	t.Parallel()
-	e, err := NewEvaluator(demoCar(), demoCases(), Options{})
+	e, err := NewEvaluator(demoCar(), demoCases(), EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

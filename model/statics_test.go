@@ -24,7 +24,7 @@ func TestStaticLoadsAndExceedance(t *testing.T) {
 		// negligible (a kerb-like case).
 		{Name: "rough", Speed: 45, Class: "C"},
 	}
-	ev, err := NewEvaluator(v, cases, Options{})
+	ev, err := NewEvaluator(v, cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -92,7 +92,7 @@ func symmetrySetups() []Setup {
 
 // TestSymmetricPathMatchesGeneral checks that the in-phase/anti-phase
 // split of a left-right symmetric car gives the same metrics as the full
-// 7-DOF path (Options.General), for every metric, setup and case. The two
+// 7-DOF path (EvaluatorOptions.General), for every metric, setup and case. The two
 // are algebraically identical (an orthogonal change of basis of the
 // equations, and of the sources); tolerance relative 1e-10 (the issue's
 // figure), leaving room for the rounding of two different elimination
@@ -102,16 +102,16 @@ func TestSymmetricPathMatchesGeneral(t *testing.T) {
 	const tol = 1e-10
 	v := demoCar()
 	cases := symmetryCases()
-	fast, err := NewEvaluator(v, cases, Options{})
+	fast, err := NewEvaluator(v, cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	general, err := NewEvaluator(v, cases, Options{General: true})
+	general, err := NewEvaluator(v, cases, EvaluatorOptions{General: true})
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !fast.cases[0].sym || general.cases[0].sym {
-		t.Fatal("expected the symmetric path on the demo car and the general one with Options.General")
+		t.Fatal("expected the symmetric path on the demo car and the general one with EvaluatorOptions.General")
 	}
 	worst := 0.0
 	for si, s := range symmetrySetups() {
@@ -142,11 +142,11 @@ func TestGeneralPathFullCoherence(t *testing.T) {
 	v := demoCar()
 	cases := []RoadCase{{Name: "fully coherent", Speed: 45, Gd0: 3e-6, Coherence: Coherence{Kind: CoherenceFull}}}
 	for _, g := range []Grid{DefaultGrid, fineGrid} {
-		fast, err := NewEvaluator(v, cases, Options{Grid: g})
+		fast, err := NewEvaluator(v, cases, EvaluatorOptions{Grid: g})
 		if err != nil {
 			t.Fatal(err)
 		}
-		general, err := NewEvaluator(v, cases, Options{Grid: g, General: true})
+		general, err := NewEvaluator(v, cases, EvaluatorOptions{Grid: g, General: true})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -199,11 +199,11 @@ func TestMirrorSymmetry(t *testing.T) {
 	unevenM.Measured = &um
 	casesM := append(append([]RoadCase(nil), cases...), unevenM)
 	cases = append(cases, uneven)
-	ev, err := NewEvaluator(v, cases, Options{})
+	ev, err := NewEvaluator(v, cases, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	evM, err := NewEvaluator(m, casesM, Options{})
+	evM, err := NewEvaluator(m, casesM, EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -219,6 +219,7 @@ func (v *Vehicle) symmetric() bool {
 // bad field, or nil.
 func (v *Vehicle) Validate() error {
 	var p problems
+	p.text("name", v.Name)
 	// Out-of-scale guards, far beyond any car (common practice, no
 	// source): a mistyped exponent is caught here with its field named.
 	const maxMass, maxInertia, maxLength, maxRate, maxDamping = 1e5, 1e6, 100.0, 1e9, 1e7

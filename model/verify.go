@@ -9,8 +9,8 @@ import (
 
 // VerifyOptions tune Verify. The zero value gives the defaults.
 type VerifyOptions struct {
-	Time  TimeOptions // the time-domain runs (duration, step, bump stops)
-	Model Options     // the frequency-domain evaluator
+	Time  TimeOptions      // the time-domain runs (duration, step, bump stops)
+	Model EvaluatorOptions // the frequency-domain evaluator
 	// Seed seeds the road realisations: case i draws its phases from
 	// rand.New(rand.NewPCG(Seed, i)). It is stored in the report.
 	Seed uint64

@@ -9,7 +9,7 @@ import (
 )
 
 // Checkpoint format. All integers little-endian, floats as their IEEE-754
-// bits (math.Float64bits), so a restored study continues bit for bit:
+// bits (math.Float64bits), so a restored search continues bit for bit:
 //
 //	magic "dfnsga2\n", version u32 (= checkpointVersion)
 //	settings:  Settings.fingerprint, u64 each;
@@ -33,10 +33,10 @@ const (
 	checkpointVersion = 1
 )
 
-// Checkpoint returns the full state of the study: populations, archive,
+// Checkpoint returns the full state of the search: populations, archive,
 // generation, counters, reference point, history and the settings that
 // fix the run. Restore continues from it bit for bit.
-func (s *Study) Checkpoint() ([]byte, error) {
+func (s *Search) Checkpoint() ([]byte, error) {
 	var e encoder
 	e.buf = append(e.buf, checkpointMagic...)
 	e.u32(checkpointVersion)
@@ -94,12 +94,12 @@ func (s *Study) Checkpoint() ([]byte, error) {
 	return e.buf, nil
 }
 
-// Restore returns a study of p with settings s in the state of checkpoint,
+// Restore returns a search of p with settings s in the state of checkpoint,
 // which Checkpoint wrote for the same problem and settings. Workers,
 // Generations and Progress may differ; every other setting and the
 // problem's shape must match, or the error is a *FieldError naming the
 // field. Unreadable bytes give an error wrapping ErrCheckpoint.
-func Restore(p Problem, s Settings, checkpoint []byte) (*Study, error) {
+func Restore(p Problem, s Settings, checkpoint []byte) (*Search, error) {
 	st, err := New(p, s)
 	if err != nil {
 		return nil, err
@@ -131,8 +131,8 @@ func Restore(p Problem, s Settings, checkpoint []byte) (*Study, error) {
 }
 
 // readSettings compares the stored settings and problem shape with the
-// study's.
-func (s *Study) readSettings(d *decoder) error {
+// search's.
+func (s *Search) readSettings(d *decoder) error {
 	st := &s.settings
 	mismatch := func(field string, stored, given any) error {
 		return &FieldError{Field: field, Msg: fmt.Sprintf("checkpoint was written with %v, given %v", stored, given)}
@@ -165,7 +165,7 @@ func (s *Study) readSettings(d *decoder) error {
 }
 
 // readState reads the state part of a checkpoint into s.
-func (s *Study) readState(d *decoder) error {
+func (s *Search) readState(d *decoder) error {
 	n, m, c := len(s.shape.bounds), s.shape.nObj, s.shape.nCon
 	s.started = d.bool()
 	s.generation = d.int()
@@ -177,7 +177,7 @@ func (s *Study) readState(d *decoder) error {
 		d.fail("%d islands stored, %d in the settings", islands, s.settings.Islands)
 	}
 	if d.err == nil && s.started && islands == 0 {
-		d.fail("started study without a population")
+		d.fail("started search without a population")
 	}
 	s.pops = make([][]record, 0, islands)
 	for i := 0; i < islands && d.err == nil; i++ {

@@ -36,7 +36,7 @@ func determinismCases() []struct {
 }
 
 // finish runs a study to its end and returns its checkpoint.
-func finish(t *testing.T, st *Study) []byte {
+func finish(t *testing.T, st *Search) []byte {
 	t.Helper()
 	if err := st.Run(context.Background()); err != nil {
 		t.Fatal(err)
@@ -48,7 +48,7 @@ func finish(t *testing.T, st *Study) []byte {
 	return cp
 }
 
-func mustNew(t *testing.T, p Problem, s Settings) *Study {
+func mustNew(t *testing.T, p Problem, s Settings) *Search {
 	t.Helper()
 	st, err := New(p, s)
 	if err != nil {

@@ -147,7 +147,7 @@ func TestCancellation(t *testing.T) {
 			cp := &countingProblem{Problem: p, cancelAt: int64(tc.cancelEval), cancel: cancel}
 			s := base
 			s.Workers = tc.workers
-			var st *Study
+			var st *Search
 			s.Progress = func(pr Progress) {
 				if pr.Generation == tc.cancelGen {
 					cancel()

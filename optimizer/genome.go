@@ -10,7 +10,7 @@ import (
 	"github.com/MaxHalford/eaopt"
 )
 
-// evalEnv is what every genome of a study shares: the problem, the
+// evalEnv is what every genome of a search shares: the problem, the
 // operator settings and the evaluation gate. It is written only between
 // Steps, when no genome is being evaluated.
 type evalEnv struct {
@@ -26,7 +26,7 @@ type evalEnv struct {
 // genome is one individual's decision vector with its evaluation. It
 // implements eaopt.Genome. Once evaluated it is never modified: genomes are
 // shared between the live eaopt population and the committed state of the
-// study, and only fresh clones are recombined and mutated.
+// search, and only fresh clones are recombined and mutated.
 type genome struct {
 	env   *evalEnv
 	genes []float64
@@ -61,7 +61,7 @@ func newGenome(env *evalEnv, genes []float64, born int, fitness float64) *genome
 }
 
 // Evaluate implements eaopt.Genome. It calls Problem.Evaluate unless the
-// genome is already evaluated, at most Workers at once across the study,
+// genome is already evaluated, at most Workers at once across the search,
 // and returns the genome's eaopt fitness. Its only error is the
 // cancellation of the Step's context, checked before and after waiting for
 // a worker; problem errors make the genome infeasible instead.

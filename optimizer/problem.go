@@ -16,7 +16,7 @@ type Bound struct{ Lo, Hi float64 }
 // whatever order. Evaluate must not modify or retain x, obj or viol.
 type Problem interface {
 	// Bounds returns the box of the genes; its length is the number of
-	// genes. It is read once, when a Study is made.
+	// genes. It is read once, when a Search is made.
 	Bounds() []Bound
 	// NumObjectives returns the number of minimised objectives, 1 to 3.
 	NumObjectives() int
@@ -33,7 +33,7 @@ type Problem interface {
 // the hypervolume is exact up to it.
 const MaxObjectives = 3
 
-// problemShape is what a Study reads from a Problem once and keeps.
+// problemShape is what a Search reads from a Problem once and keeps.
 type problemShape struct {
 	bounds []Bound
 	nObj   int

@@ -3,7 +3,7 @@ package optimizer
 import "math"
 
 // referenceMargin is the fraction of each objective's range added beyond
-// its worst value when the study fixes its own reference point, so that
+// its worst value when the search fixes its own reference point, so that
 // the extreme points of a front still add volume (common practice; the
 // figure 0.1 has no published source).
 const referenceMargin = 0.1

@@ -5,9 +5,9 @@ import (
 	"math"
 )
 
-// Settings configure a Study. Every field is read when the study is made;
-// Workers, Generations and Progress may differ between a study and the
-// study restored from its checkpoint, every other field must match.
+// Settings configure a Search. Every field is read when the search is made;
+// Workers, Generations and Progress may differ between a search and the
+// search restored from its checkpoint, every other field must match.
 type Settings struct {
 	// PopulationSize is N, the number of survivors per island and per
 	// generation; each generation breeds N children per island. At
@@ -48,13 +48,13 @@ type Settings struct {
 	// not depend on it.
 	Workers int
 	// ReferencePoint is the hypervolume reference point, one value per
-	// objective in the objectives' units. When nil the study fixes one
+	// objective in the objectives' units. When nil the search fixes one
 	// from the first generation with a feasible point (see
 	// autoReference) and keeps it in its state.
 	ReferencePoint []float64
 	// Progress, when not nil, is called on the stepping goroutine after
 	// each completed generation, the initial one included. It may read the
-	// study but must not step it.
+	// search but must not step it.
 	Progress func(Progress)
 }
 

@@ -18,7 +18,7 @@ type Solution struct {
 	Reason string
 }
 
-// Progress is the state of a study after one generation.
+// Progress is the state of a search after one generation.
 type Progress struct {
 	// Generation is the number of generations completed; 0 is the
 	// initial population.

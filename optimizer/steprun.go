@@ -10,7 +10,7 @@ import (
 
 // stepRun is the glue between one Step and eaopt's GA.Minimize.
 type stepRun struct {
-	study  *Study
+	search *Search
 	target int
 	ctx    context.Context
 	// made counts the genomes handed to eaopt at start-up.
@@ -20,11 +20,11 @@ type stepRun struct {
 }
 
 // newGenome is eaopt's genome factory. eaopt calls it 2N times per island,
-// island after island, at the start of Minimize. A started study gets its
+// island after island, at the start of Minimize. A started search gets its
 // committed individuals back, evaluated, reporting their committed Fitness;
 // a new one gets uniform random genes, Fitness = slot.
 func (r *stepRun) newGenome(rng *rand.Rand) eaopt.Genome {
-	s := r.study
+	s := r.search
 	size := 2 * s.settings.PopulationSize
 	island, slot := r.made/size, r.made%size
 	r.made++
@@ -43,14 +43,14 @@ func (r *stepRun) newGenome(rng *rand.Rand) eaopt.Genome {
 
 // earlyStop is eaopt's EarlyStop, asked before each generation.
 func (r *stepRun) earlyStop(*eaopt.GA) bool {
-	return r.study.generation >= r.target || r.ctx.Err() != nil
+	return r.search.generation >= r.target || r.ctx.Err() != nil
 }
 
 // callback is eaopt's Callback, called after start-up and after each
-// generation. After the start-up of a started study it only aligns eaopt's
+// generation. After the start-up of a started search it only aligns eaopt's
 // counters and streams; otherwise it commits the generation.
 func (r *stepRun) callback(ga *eaopt.GA) {
-	s := r.study
+	s := r.search
 	if !r.initialised {
 		r.initialised = true
 		if s.started {
@@ -67,7 +67,7 @@ func (r *stepRun) callback(ga *eaopt.GA) {
 // sets eaopt's counters to absolute generations, so migration falls on
 // the same generations however a run is cut into Steps.
 func (r *stepRun) prepare(ga *eaopt.GA) {
-	s := r.study
+	s := r.search
 	next := s.generation + 1
 	for i := range ga.Populations {
 		ga.Populations[i].RNG = streamRand(s.settings.Seed, next, streamIsland, i)
@@ -77,11 +77,11 @@ func (r *stepRun) prepare(ga *eaopt.GA) {
 	ga.RNG = streamRand(s.settings.Seed, next, streamMigration, 0)
 }
 
-// commit makes generation g of ga the study's state: the populations, the
+// commit makes generation g of ga the search's state: the populations, the
 // children born in g offered to the archive, the evaluation count, the
 // reference point if none is fixed yet, and the progress, which goes to
 // the history and the callback.
-func (s *Study) commit(ga *eaopt.GA, g int) {
+func (s *Search) commit(ga *eaopt.GA, g int) {
 	pops := make([][]record, len(ga.Populations))
 	var born []Solution
 	evals := 0

@@ -41,7 +41,7 @@ func testSpectra(t testing.TB, asymmetric bool) (*model.Spectra, []model.Mode) {
 	t.Helper()
 	v := testCar(asymmetric)
 	rc := model.RoadCase{Name: "Ashgrove Ring, fast sweepers", Speed: 55, Gd0: 2e-6}
-	e, err := model.NewEvaluator(v, []model.RoadCase{rc}, model.Options{})
+	e, err := model.NewEvaluator(v, []model.RoadCase{rc}, model.EvaluatorOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -44,13 +44,7 @@ func withToken(ctx context.Context, token string) context.Context {
 // cookieSafe reports whether s can be a cookie value as it is (RFC 6265
 // section 4.1.1): the tokens the API makes are base64url, which is.
 func cookieSafe(s string) bool {
-	for i := 0; i < len(s); i++ {
-		c := s[i]
-		if c <= 0x20 || c >= 0x7f || c == '"' || c == ',' || c == ';' || c == '\\' {
-			return false
-		}
-	}
-	return s != ""
+	return s != "" && printableNoBackslash(s) && !strings.ContainsAny(s, `",;`)
 }
 
 // sameOrigin refuses a form posted from another site: a browser sends
@@ -67,10 +61,44 @@ func sameOrigin(r *http.Request) bool {
 // localPath returns next when it is a path of this site, "/" otherwise,
 // so that the login form cannot send its reader elsewhere.
 func localPath(next string) string {
-	if !strings.HasPrefix(next, "/") || strings.HasPrefix(next, "//") || strings.HasPrefix(next, "/\\") {
+	if !sitePath(next) {
 		return "/"
 	}
 	return next
+}
+
+// sitePath reports whether next is a path of this site and nothing a
+// browser could read as another host. A browser drops tabs and newlines
+// from a URL, strips leading and trailing control characters and spaces,
+// and reads a backslash as a slash (WHATWG URL Standard, "basic URL
+// parser"), so "/\t/host" and "/\host" both become "//host", a
+// scheme-relative URL to another site. So: printable ASCII only, no
+// backslash, no scheme or host, and a path that starts with one slash and
+// has no empty segment or backslash or control character, also once
+// percent-decoded. The page's own URLs (RequestURI, escaped) all pass.
+func sitePath(next string) bool {
+	if !printableNoBackslash(next) {
+		return false
+	}
+	u, err := url.Parse(next)
+	if err != nil || u.Scheme != "" || u.Host != "" || u.User != nil || u.Opaque != "" {
+		return false
+	}
+	return strings.HasPrefix(next, "/") && strings.HasPrefix(u.Path, "/") &&
+		!strings.Contains(u.Path, "//") && !strings.ContainsFunc(u.Path, func(r rune) bool {
+		return r < 0x20 || r == 0x7f || r == '\\'
+	})
+}
+
+// printableNoBackslash reports whether s is all printable ASCII other
+// than the space and the backslash.
+func printableNoBackslash(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if c := s[i]; c <= 0x20 || c >= 0x7f || c == '\\' {
+			return false
+		}
+	}
+	return true
 }
 
 type loginView struct {

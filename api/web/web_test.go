@@ -422,7 +422,7 @@ func TestAuth(t *testing.T) {
 		if c == nil || c.Value != reader || !c.HttpOnly || c.SameSite != http.SameSiteStrictMode || c.Path != "/" {
 			t.Errorf("login cookie %+v", c)
 		}
-		for _, next := range []string{"//elsewhere.example/x", "https://elsewhere.example/", `/\elsewhere.example`} {
+		for _, next := range []string{"//elsewhere.example/x", "https://elsewhere.example/", `/\elsewhere.example`, "/\t/elsewhere.example", "/\v/elsewhere.example", "/%5Celsewhere.example"} {
 			res, _ = post(t, b, "/login", url.Values{"token": {reader}, "next": {next}})
 			if loc := res.Header.Get("Location"); loc != "/" {
 				t.Errorf("login with next=%q sends to %q, want /", next, loc)

@@ -99,17 +99,17 @@ func finish(e *env, name string, err error) int {
 	}
 	var ue *usageError
 	if errors.As(err, &ue) {
-		fmt.Fprintf(e.stderr, "dampfront %s: %s\nUsage: dampfront %s %s\nRun 'dampfront %s --help' for the flags.\n", name, ue.msg, name, synopses[name], name)
+		fmt.Fprintf(e.stderr, "dampfront %s: %s\nUsage: dampfront %s %s\nRun 'dampfront %s --help' for the flags.\n", name, plainLines(ue.msg), name, synopses[name], name)
 		return exitUsage
 	}
 	var xe *exitError
 	if errors.As(err, &xe) {
 		if xe.msg != "" {
-			fmt.Fprintf(e.stderr, "dampfront %s: %s\n", name, xe.msg)
+			fmt.Fprintf(e.stderr, "dampfront %s: %s\n", name, plainLines(xe.msg))
 		}
 		return xe.code
 	}
-	fmt.Fprintf(e.stderr, "dampfront %s: %s\n", name, describeError(err))
+	fmt.Fprintf(e.stderr, "dampfront %s: %s\n", name, plainLines(describeError(err)))
 	var fe *inputFileError
 	if errors.As(err, &fe) || inputError(err) {
 		return exitUsage

@@ -115,7 +115,7 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 	if s.GetFeasible() {
 		fmt.Fprintln(w, "  constraints: all met")
 	} else {
-		fmt.Fprintf(w, "  constraints: NOT met: %s\n", s.GetInfeasibleReason())
+		fmt.Fprintf(w, "  constraints: NOT met: %s\n", plain(s.GetInfeasibleReason()))
 	}
 	for k, c := range constraints {
 		if k < len(s.GetViolations()) && s.GetViolations()[k] > 0 {
@@ -124,7 +124,7 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 		}
 	}
 	for _, wn := range s.GetWarnings() {
-		fmt.Fprintf(w, "  warning: %s\n", wn)
+		fmt.Fprintf(w, "  warning: %s\n", plain(wn))
 	}
 	if len(s.GetCaseMetrics()) == 0 {
 		return nil

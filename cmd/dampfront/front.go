@@ -122,9 +122,9 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 	spec := j.GetSpec()
 	var cases []string
 	for _, rc := range spec.GetRoadCases() {
-		cases = append(cases, rc.GetName())
+		cases = append(cases, plain(rc.GetName()))
 	}
-	fmt.Fprintf(w, "Car: %s. Road cases: %s. Seed %d.\n", spec.GetVehicle().GetName(), strings.Join(cases, "; "), j.GetSeed())
+	fmt.Fprintf(w, "Car: %s. Road cases: %s. Seed %d.\n", plain(spec.GetVehicle().GetName()), strings.Join(cases, "; "), j.GetSeed())
 	fmt.Fprintln(w, "Ratios are low-speed slope over critical damping at the wheel; slopes are at the damper.")
 	sols := f.GetSolutions()
 	if len(sols) == 0 {

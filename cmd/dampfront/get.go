@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"strings"
 	"time"
 
@@ -50,8 +51,13 @@ in) included.`)
 		fmt.Fprintf(e.stdout, "%s\n", b)
 		return nil
 	}
+	return writeJob(e.stdout, j)
+}
+
+// writeJob prints a job as a table of its fields, one a line.
+func writeJob(w io.Writer, j *pb.Job) error {
 	p := j.GetProgress()
-	t := newTable(e.stdout, false)
+	t := newTable(w, false)
 	t.row("job", j.GetName())
 	t.row("name", j.GetDisplayName())
 	t.row("state", stateName(j.GetState())+flagText(j.GetCancelRequested() && !terminal(j.GetState()), ", cancel requested")+flagText(j.GetPartial(), ", front partial"))

@@ -3,6 +3,7 @@ package main
 import (
 	"context"
 	"fmt"
+	"io"
 	"sort"
 	"strings"
 	"time"
@@ -76,12 +77,21 @@ per line).`)
 		}
 		return nil
 	}
-	t := newTable(e.stdout, false)
+	return writeJobList(e.stdout, jobs)
+}
+
+// listTime is the layout of the list's times: local time with its offset
+// from UTC, so that a list read elsewhere is not off by a time zone.
+const listTime = time.DateTime + " -07:00"
+
+// writeJobList prints jobs as a table, one row each.
+func writeJobList(w io.Writer, jobs []*pb.Job) error {
+	t := newTable(w, false)
 	t.row("JOB", "STATE", "GENERATION", "CREATED", "NAME", "LABELS")
 	for _, j := range jobs {
 		p := j.GetProgress()
 		t.row(j.GetJobId(), stateName(j.GetState()), fmt.Sprintf("%d/%d", p.GetGeneration(), p.GetGenerations()),
-			j.GetCreateTime().AsTime().Local().Format(time.DateTime), j.GetDisplayName(), formatLabels(j.GetLabels()))
+			j.GetCreateTime().AsTime().Local().Format(listTime), j.GetDisplayName(), formatLabels(j.GetLabels()))
 	}
 	return t.flush()
 }

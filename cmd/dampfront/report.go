@@ -61,7 +61,41 @@ func (t *table) row(cells ...string) {
 	if t.numeric {
 		end = "\t"
 	}
-	fmt.Fprintln(t.tw, strings.Join(cells, "\t")+end)
+	safe := make([]string, len(cells))
+	for i, c := range cells {
+		safe[i] = plain(c)
+	}
+	fmt.Fprintln(t.tw, strings.Join(safe, "\t")+end)
+}
+
+// plainLines is plain for each line of a message of several lines.
+func plainLines(s string) string {
+	lines := strings.Split(s, "\n")
+	for i, l := range lines {
+		lines[i] = plain(l)
+	}
+	return strings.Join(lines, "\n")
+}
+
+// plain writes every model.ControlRune of s as a Go escape (\t, \x1b,
+// \u202e), so that a name, label or message from a spec or the server
+// cannot move the cursor, recolour or retitle the terminal, reorder the
+// line or break a table's columns. Every table cell goes through it, and
+// so does every other printed text that comes from stored or user data.
+func plain(s string) string {
+	if !strings.ContainsFunc(s, model.ControlRune) {
+		return s
+	}
+	var b strings.Builder
+	for _, r := range s {
+		if model.ControlRune(r) {
+			q := strconv.QuoteRuneToASCII(r)
+			b.WriteString(q[1 : len(q)-1])
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
 }
 
 func (t *table) flush() error { return t.tw.Flush() }

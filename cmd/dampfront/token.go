@@ -20,8 +20,10 @@ Makes a new random bearer token (256 bits from the system's cryptographic
 source) and prints two lines on standard output: the token, for its user
 to set as $DAMPFRONT_TOKEN, and the entry of the server's tokens file
 (serve --tokens), which holds the token's SHA-256 only. The token is
-stored nowhere and cannot be shown again; to revoke it, delete its entry
-and restart the server.
+stored nowhere and cannot be shown again. To revoke it, delete its entry
+from the tokens file and send the server SIGHUP (kill -HUP PID): it reads
+the file again and refuses the token from its next call on, without a
+restart.
 
 Roles: reader reads jobs, fronts and watches; submitter also submits,
 evaluates, compares, draws curves and cancels the jobs it submitted; admin

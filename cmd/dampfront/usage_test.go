@@ -103,3 +103,13 @@ func TestNoServer(t *testing.T) {
 	}
 	mustRun(t, exitUsage, nil, "check", "a", "--setup", testdataPath("candidate-setup.yaml"), addr, "--timeout", "2s")
 }
+
+// token new --help tells how to revoke a token as the server does it: a
+// SIGHUP reloads the tokens file (TestServeReloadsOnSIGHUP), no restart.
+func TestTokenHelpRevokesWithSIGHUP(t *testing.T) {
+	t.Parallel()
+	r := mustRun(t, exitOK, nil, "token", "new", "--help")
+	if !strings.Contains(r.stdout, "SIGHUP") || strings.Contains(r.stdout, "restart the server") {
+		t.Errorf("token new --help does not say that SIGHUP revokes a deleted token:\n%s", r.stdout)
+	}
+}

@@ -119,7 +119,7 @@ var verdictWidth = len(model.VerdictDiffers.String())
 func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelInputs, fd *frontData, opt model.VerifyOptions) error {
 	f, j := fd.front, fd.job
 	sols := f.GetSolutions()
-	fmt.Fprintf(w, "Time-domain check of every solution of the front of %s %q on %s: %d solutions", j.GetName(), j.GetDisplayName(), in.Vehicle.Name, len(sols))
+	fmt.Fprintf(w, "Time-domain check of every solution of the front of %s %q on %s: %d solutions", j.GetName(), j.GetDisplayName(), plain(in.Vehicle.Name), len(sols))
 	if f.GetPartial() {
 		fmt.Fprintf(w, " (partial: the job %s before its end)", stateName(j.GetState()))
 	}
@@ -128,7 +128,7 @@ func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelI
 	fmt.Fprintln(w, "Frequency domain: statistically linearised model; time domain: nonlinear dampers, tyres may leave the road.")
 	fmt.Fprintln(w, "Road cases:")
 	for i, rc := range in.RoadCases {
-		fmt.Fprintf(w, "  %d  %s at %g m/s\n", i, rc.Name, rc.Speed)
+		fmt.Fprintf(w, "  %d  %s at %g m/s\n", i, plain(rc.Name), rc.Speed)
 	}
 	if len(sols) == 0 {
 		fmt.Fprintln(w, "\nThe front is empty: there is no solution to check.")

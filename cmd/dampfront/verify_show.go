@@ -166,7 +166,7 @@ func verdictLine(rows []shownRow) string {
 }
 
 func writeVerifyTable(w io.Writer, rep *model.VerifyReport, in *api.ModelInputs, setup *pb.Setup, source string) error {
-	fmt.Fprintf(w, "Time-domain check of %s on %s: %s\n", source, in.Vehicle.Name, setupText(setup))
+	fmt.Fprintf(w, "Time-domain check of %s on %s: %s\n", source, plain(in.Vehicle.Name), setupText(setup))
 	fmt.Fprintf(w, "Road seed %d. Frequency domain: statistically linearised model; time domain: nonlinear dampers, tyres may leave the road.\n", rep.Seed)
 	for i := range rep.Cases {
 		c := &rep.Cases[i]
@@ -193,7 +193,7 @@ func writeVerifyTable(w io.Writer, rep *model.VerifyReport, in *api.ModelInputs,
 			return err
 		}
 		for _, wn := range timeWarnings(tm) {
-			fmt.Fprintf(w, "  warning: %s\n", wn)
+			fmt.Fprintf(w, "  warning: %s\n", plain(wn))
 		}
 		fmt.Fprintf(w, "  verdict: %s\n", verdictLine(rows))
 	}

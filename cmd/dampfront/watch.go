@@ -172,7 +172,7 @@ func finalLine(j *pb.Job) string {
 		s += ", front partial"
 	}
 	if j.GetErrorMessage() != "" {
-		s += ": " + j.GetErrorMessage()
+		s += ": " + plain(j.GetErrorMessage())
 	}
 	return s
 }

@@ -9,16 +9,16 @@ import (
 	"github.com/MaxHalford/eaopt"
 )
 
-// Study is one resumable NSGA-II run on a Problem. Its methods must not be
+// Search is one resumable NSGA-II run on a Problem. Its methods must not be
 // called concurrently; the Progress callback runs on the goroutine that
 // steps and may call the read-only methods.
-type Study struct {
+type Search struct {
 	settings Settings
 	shape    problemShape
 	env      *evalEnv
 	model    *nsga2
 
-	// Committed state: the study after its last completed generation.
+	// Committed state: the search after its last completed generation.
 	started     bool       // the initial population exists
 	generation  int        // generations completed
 	evaluations int        // calls of Problem.Evaluate
@@ -34,9 +34,9 @@ type record struct {
 	fitness float64 // eaopt Fitness at the commit
 }
 
-// New returns a study of p with settings s, before its initial population.
+// New returns a search of p with settings s, before its initial population.
 // Input problems are *FieldError values naming the field.
-func New(p Problem, s Settings) (*Study, error) {
+func New(p Problem, s Settings) (*Search, error) {
 	shape, err := readProblem(p)
 	if err != nil {
 		return nil, err
@@ -45,7 +45,7 @@ func New(p Problem, s Settings) (*Study, error) {
 		return nil, err
 	}
 	s.ReferencePoint = slices.Clone(s.ReferencePoint)
-	st := &Study{
+	st := &Search{
 		settings: s,
 		shape:    shape,
 		env: &evalEnv{
@@ -69,27 +69,27 @@ func New(p Problem, s Settings) (*Study, error) {
 
 // Generation returns the number of generations completed; 0 also before
 // the initial population exists (see Started).
-func (s *Study) Generation() int { return s.generation }
+func (s *Search) Generation() int { return s.generation }
 
 // Started reports whether the initial population has been evaluated.
-func (s *Study) Started() bool { return s.started }
+func (s *Search) Started() bool { return s.started }
 
 // Evaluations returns the number of calls of Problem.Evaluate so far. A
 // child whose genes equal its parent's inherits the evaluation and is not
 // counted.
-func (s *Study) Evaluations() int { return s.evaluations }
+func (s *Search) Evaluations() int { return s.evaluations }
 
-// Done reports whether the study has run all of Settings.Generations.
-func (s *Study) Done() bool { return s.started && s.generation >= s.settings.Generations }
+// Done reports whether the search has run all of Settings.Generations.
+func (s *Search) Done() bool { return s.started && s.generation >= s.settings.Generations }
 
 // ReferencePoint returns the hypervolume reference point, nil while none
 // is fixed.
-func (s *Study) ReferencePoint() []float64 { return slices.Clone(s.ref) }
+func (s *Search) ReferencePoint() []float64 { return slices.Clone(s.ref) }
 
 // Front returns a copy of the archive: every feasible point seen that no
 // other feasible point seen dominates, one per objective vector, sorted by
 // objectives and then genes lexicographically.
-func (s *Study) Front() []Solution {
+func (s *Search) Front() []Solution {
 	out := make([]Solution, len(s.front.sols))
 	for i, sol := range s.front.sols {
 		out[i] = sol.clone()
@@ -99,7 +99,7 @@ func (s *Study) Front() []Solution {
 
 // Population returns a copy of the current survivors and children of every
 // island, islands in order.
-func (s *Study) Population() []Solution {
+func (s *Search) Population() []Solution {
 	var out []Solution
 	for _, pop := range s.pops {
 		for _, r := range pop {
@@ -111,7 +111,7 @@ func (s *Study) Population() []Solution {
 
 // Progress returns the progress of the last completed generation, the
 // zero Progress before the initial population.
-func (s *Study) Progress() Progress {
+func (s *Search) Progress() Progress {
 	if len(s.history) == 0 {
 		return Progress{}
 	}
@@ -120,7 +120,7 @@ func (s *Study) Progress() Progress {
 
 // History returns the progress of every completed generation, the initial
 // population first.
-func (s *Study) History() []Progress {
+func (s *Search) History() []Progress {
 	out := make([]Progress, len(s.history))
 	for i, p := range s.history {
 		out[i] = p.clone()
@@ -128,19 +128,19 @@ func (s *Study) History() []Progress {
 	return out
 }
 
-// Run steps the study to the end of Settings.Generations.
-func (s *Study) Run(ctx context.Context) error {
+// Run steps the search to the end of Settings.Generations.
+func (s *Search) Run(ctx context.Context) error {
 	_, err := s.Step(ctx, max(0, s.settings.Generations-s.generation))
 	return err
 }
 
 // Step evaluates the initial population if there is none yet, then runs at
 // most n more generations, stopping at Settings.Generations, and reports
-// whether the study is done. Step(ctx, 0) only makes the initial
+// whether the search is done. Step(ctx, 0) only makes the initial
 // population.
 //
 // ctx is checked between generations and before each evaluation. When it
-// is done Step returns its error and the study stays at its last completed
+// is done Step returns its error and the search stays at its last completed
 // generation: a generation in progress is dropped whole, so a later Step
 // continues exactly as an uninterrupted run would.
 //
@@ -148,7 +148,7 @@ func (s *Study) Run(ctx context.Context) error {
 // genome factory restores the committed populations, its callback commits
 // each generation and re-seeds the random streams, its EarlyStop ends the
 // Step.
-func (s *Study) Step(ctx context.Context, n int) (done bool, err error) {
+func (s *Search) Step(ctx context.Context, n int) (done bool, err error) {
 	if n < 0 {
 		return s.Done(), &FieldError{Field: "Step.n", Msg: fmt.Sprintf("must not be negative, got %d", n)}
 	}
@@ -162,7 +162,7 @@ func (s *Study) Step(ctx context.Context, n int) (done bool, err error) {
 	s.env.ctx = ctx
 	defer func() { s.env.ctx = context.Background() }()
 
-	run := &stepRun{study: s, target: target, ctx: ctx}
+	run := &stepRun{search: s, target: target, ctx: ctx}
 	conf := eaopt.GAConfig{
 		NPops:        uint(s.settings.Islands),
 		PopSize:      uint(2 * s.settings.PopulationSize),

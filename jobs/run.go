@@ -5,20 +5,21 @@ import (
 	"time"
 )
 
-// Study is one resumable optimisation run, as the engine drives it. The
-// optimiser package provides the real one; the engine knows only this.
+// Run is one resumable optimisation run, as the engine drives it. The
+// study package (jobs/study) provides the real one, an NSGA-II search of
+// a job spec; the engine knows only this.
 //
-// A Study is used by one goroutine at a time.
-type Study interface {
+// A Run is used by one goroutine at a time.
+type Run interface {
 	// Step runs at most maxGenerations generations and reports whether the
-	// study has reached its end. When ctx is done before that, Step returns
-	// early, with ctx's error or nil, and the study is left at the boundary
+	// run has reached its end. When ctx is done before that, Step returns
+	// early, with ctx's error or nil, and the run is left at the boundary
 	// of its last completed generation: a generation in progress is
 	// discarded, never half applied, so Checkpoint stays exact.
 	Step(ctx context.Context, maxGenerations int) (done bool, err error)
 
 	// Checkpoint returns the full state. Opening the same spec with it must
-	// give a study that continues bit for bit as this one would, and equal
+	// give a run that continues bit for bit as this one would, and equal
 	// states must give equal bytes.
 	Checkpoint() ([]byte, error)
 
@@ -29,14 +30,14 @@ type Study interface {
 	Front() ([]Solution, error)
 }
 
-// StudyOpener builds a Study from a stored spec and a checkpoint, which is
+// RunOpener builds a Run from a stored spec and a checkpoint, which is
 // nil for a job that has not run yet. An error from Open is final: the job
 // fails with its message.
-type StudyOpener interface {
-	Open(spec []byte, checkpoint []byte) (Study, error)
+type RunOpener interface {
+	Open(spec []byte, checkpoint []byte) (Run, error)
 }
 
-// SpecValidator may be implemented by a StudyOpener; Submit then rejects a
+// SpecValidator may be implemented by a RunOpener; Submit then rejects a
 // spec that it refuses. The error should be an *InvalidArgumentError naming
 // the spec's fields.
 type SpecValidator interface {
