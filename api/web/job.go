@@ -12,6 +12,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/plot"
+	"dampfront/model/tradeunit"
 )
 
 type header struct {
@@ -98,7 +99,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 		v.Title = j.GetName()
 	}
 	for _, rc := range spec.GetRoadCases() {
-		v.RoadCases = append(v.RoadCases, fmt.Sprintf("%s at %.0f km/h", rc.GetName(), rc.GetSpeedMPerS()*kmhPerMPerS))
+		v.RoadCases = append(v.RoadCases, fmt.Sprintf("%s at %.0f km/h", rc.GetName(), tradeunit.KilometrePerHour.Of(rc.GetSpeedMPerS())))
 	}
 	objs := spec.GetObjectives()
 	for k, o := range objs {
