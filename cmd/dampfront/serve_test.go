@@ -93,7 +93,7 @@ func TestServeClientCommands(t *testing.T) {
 		if strings.Join(front.GeneNames, ",") != strings.Join(want, ",") {
 			t.Errorf("gene names %v, want %v", front.GeneNames, want)
 		}
-		for _, col := range []string{"grip_rel", "platform_m", "front_bump_slope_n_s_per_m", "ride_height_shift_m_violation", "feasible"} {
+		for _, col := range []string{"grip_rel", "platform_m", "front_bump_slope_n_s_per_m", "jacking_violation", "feasible"} {
 			if _, ok := front.Solutions[0][col]; !ok {
 				t.Errorf("front json solution lacks column %s: %v", col, front.Solutions[0])
 			}
