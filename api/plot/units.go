@@ -1,10 +1,9 @@
 package plot
 
 import (
-	"strings"
-
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
 	"dampfront/model/tradeunit"
 )
 
@@ -77,16 +76,10 @@ func hypervolumeQuantity(objs []*pb.Objective) quantity {
 	if len(objs) == 0 {
 		return quantity{"Hypervolume", "product of SI units", 1}
 	}
-	q := quantity{"Hypervolume", "", 1}
-	units := make([]string, len(objs))
+	kinds := make([]model.ObjectiveKind, len(objs))
 	for j, o := range objs {
-		oq := objectiveQuantity(o)
-		q.scale *= oq.scale
-		units[j] = oq.unit
-		if oq.unit == tradeunit.PercentStatic.AxisSymbol() {
-			units[j] = tradeunit.Percent.Symbol
-		}
+		kinds[j] = api.ModelObjectiveKind(o.GetKind())
 	}
-	q.unit = strings.Join(units, " × ")
-	return q
+	u := tradeunit.Hypervolume(kinds)
+	return quantity{"Hypervolume", u.Symbol, u.Scale}
 }

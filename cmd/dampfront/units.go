@@ -1,8 +1,12 @@
 package main
 
 import (
+	"fmt"
+	"strings"
+
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
 	"dampfront/model/tradeunit"
 )
 
@@ -52,6 +56,29 @@ func objectiveQuantity(k pb.ObjectiveKind) quantity {
 	return shown(tradeunit.Objective(api.ModelObjectiveKind(k)))
 }
 
+// hypervolumeQuantity is the hypervolume in the product of the
+// objectives' trade units, "% × mm" for grip and platform, as the
+// hypervolume chart (api/plot) shows it.
+func hypervolumeQuantity(objs []*pb.Objective) quantity {
+	u := tradeunit.Hypervolume(modelKinds(objs))
+	return quantity{"hypervolume", u.Symbol, u.Scale, 4, "hypervolume"}
+}
+
+// modelKinds are the model's kinds of the objectives.
+func modelKinds(objs []*pb.Objective) []model.ObjectiveKind {
+	kinds := make([]model.ObjectiveKind, len(objs))
+	for j, o := range objs {
+		kinds[j] = api.ModelObjectiveKind(o.GetKind())
+	}
+	return kinds
+}
+
+// hypervolumeText is a hypervolume with its unit, four significant digits.
+func hypervolumeText(hv float64, objs []*pb.Objective) string {
+	q := hypervolumeQuantity(objs)
+	return strings.TrimSpace(fmt.Sprintf("%.4g %s", q.trade(hv), q.unit))
+}
+
 // constraintQuantity is how a constraint's limit and metric are shown.
 func constraintQuantity(k pb.ConstraintKind) quantity {
 	return shown(tradeunit.Constraint(api.ModelConstraintKind(k)))
@@ -69,7 +96,7 @@ var (
 	qTravelSD    = newQuantity("travel sd", tradeunit.Millimetre, 3, "travel_sd_m")
 	qDamperVelSD = newQuantity("damper vel sd", tradeunit.MillimetrePerSecond, 1, "damper_velocity_sd_m_per_s")
 	qPitchSD     = newQuantity("pitch sd", tradeunit.Degree, 4, "pitch_sd_rad")
-	qHeaveSD     = newQuantity("heave sd", tradeunit.Gravity, 4, "heave_accel_sd_m_per_s2")
+	qHeaveSD     = newQuantity("heave accel sd", tradeunit.Gravity, 4, "heave_accel_sd_m_per_s2")
 	qProbability = newQuantity("probability", tradeunit.Percent, 3, "probability")
 	qSlope       = newQuantity("slope", tradeunit.NewtonSecondPerMM, 2, "slope_n_s_per_m")
 	qVelocity    = newQuantity("velocity", tradeunit.MillimetrePerSecond, 0, "velocity_m_per_s")

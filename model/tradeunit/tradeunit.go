@@ -101,6 +101,24 @@ func Objective(k model.ObjectiveKind) Quantity {
 	return Quantity{label, capitalise(label), Unit{Symbol: "SI", Scale: 1}, 4, name}
 }
 
+// Hypervolume is the unit of a hypervolume of objectives of these kinds:
+// the product of their units ("% × mm" for grip and platform, grip in
+// plain per cent) and of their scales.
+func Hypervolume(kinds []model.ObjectiveKind) Unit {
+	u := Unit{Scale: 1}
+	symbols := make([]string, len(kinds))
+	for j, k := range kinds {
+		q := Objective(k)
+		u.Scale *= q.Unit.Scale
+		symbols[j] = q.Unit.Symbol
+		if q.Unit == PercentStatic {
+			symbols[j] = Percent.Symbol
+		}
+	}
+	u.Symbol = strings.Join(symbols, " × ")
+	return u
+}
+
 // Constraint is how a constraint's limit and metric are shown.
 func Constraint(k model.ConstraintKind) Quantity {
 	switch k {
