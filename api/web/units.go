@@ -65,9 +65,3 @@ var qSlope = quantity{"slope", tradeunit.NewtonSecondPerMM.Symbol, tradeunit.New
 // siText formats an SI value for CSV: the shortest text that reads back
 // to the same float64.
 func siText(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-
-// constraintColumn is the CSV column of a constraint's violation, named
-// after the model's constraint ("lift_off_violation").
-func constraintColumn(c *pb.Constraint) string {
-	return api.ModelConstraintKind(c.GetKind()).String() + "_violation"
-}

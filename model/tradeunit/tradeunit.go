@@ -13,7 +13,6 @@
 //	angle (pitch, roll)         rad    -> deg             x 180/π
 //	acceleration                m/s²   -> g               / 9.80665
 //	force                       N      -> N
-//	road speed                  m/s    -> km/h            x 3.6
 //	ride-height PSD             m²/Hz  -> mm²/Hz          x 10⁶
 package tradeunit
 
@@ -63,7 +62,6 @@ var (
 	Degree              = Unit{Symbol: "deg", Scale: 180 / math.Pi}
 	Gravity             = Unit{Symbol: "g", Scale: 1 / StandardGravity}
 	Newton              = Unit{Symbol: "N", Scale: 1}
-	KilometrePerHour    = Unit{Symbol: "km/h", Scale: 3.6}
 	// MillimetreSquaredPerHertz is a ride-height PSD's unit (m²/Hz in SI).
 	MillimetreSquaredPerHertz = Unit{Symbol: "mm²/Hz", Scale: 1000 * 1000}
 )
