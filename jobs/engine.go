@@ -36,6 +36,12 @@ type queue interface {
 	releaseOrphans(ctx context.Context) (int, error)
 	// interrupt cancels this process's running slice of job id, if any.
 	interrupt(id string, cause error)
+	// reap ends or requeues the stranded jobs (strand.go) and returns how
+	// many it found.
+	reap(ctx context.Context) (int, error)
+	// cancelIdle ends job id, whose cancel was requested, when no slice
+	// of it is running, and returns the job.
+	cancelIdle(ctx context.Context, id string) (*Job, error)
 	close() error
 }
 
@@ -91,8 +97,9 @@ func (e *Engine) Backend() string { return e.q.backend() }
 
 // Start releases slices that dead processes of this node left running
 // (so that a restarted single-process server resumes its jobs at once,
-// without waiting for River's rescuer) and, with Workers > 0, starts
-// working. It returns how many slices it released.
+// without waiting for River's rescuer) and, with Workers > 0, settles the
+// stranded jobs (see Config.ReapInterval) and starts working. It returns
+// how many slices it released.
 func (e *Engine) Start(ctx context.Context) (released int, err error) {
 	released, err = e.q.releaseOrphans(ctx)
 	if err != nil {
@@ -104,6 +111,9 @@ func (e *Engine) Start(ctx context.Context) (released int, err error) {
 	}
 	if e.cfg.Workers == 0 {
 		return released, nil
+	}
+	if _, err := e.q.reap(ctx); err != nil {
+		return released, fmt.Errorf("jobs: settle stranded jobs: %w", err)
 	}
 	return released, e.q.start(ctx)
 }
@@ -161,17 +171,19 @@ func (e *Engine) List(ctx context.Context, p *JobListParams) (*JobListResult, er
 	return e.store.JobList(ctx, p)
 }
 
-// Cancel requests cancellation. A queued job is cancelled at once; a
-// running one within about Config.CancelPollInterval, wherever its slice
-// runs, keeping its front so far (marked partial). A finished job gives a
-// *PreconditionError.
+// Cancel requests cancellation. A job with no slice running (queued,
+// between slices, or stranded) is cancelled at once, keeping the front of
+// its last checkpoint; a running one within about
+// Config.CancelPollInterval, wherever its slice runs, keeping its front
+// so far. Either front is marked partial. A slice whose worker died is
+// run again, or discarded and reaped, by River's rescuer, and the job is
+// cancelled then. A finished job gives a *PreconditionError.
 func (e *Engine) Cancel(ctx context.Context, id string) (*Job, error) {
-	j, err := e.store.JobCancelRequest(ctx, &JobCancelRequestParams{ID: id, Now: e.cfg.Now()})
-	if err != nil {
+	if _, err := e.store.JobCancelRequest(ctx, &JobCancelRequestParams{ID: id, Now: e.cfg.Now()}); err != nil {
 		return nil, err
 	}
 	e.q.interrupt(id, errCancelRequested)
-	return j, nil
+	return e.q.cancelIdle(ctx, id)
 }
 
 // FrontPage is one page of a job's front.
