@@ -48,22 +48,7 @@ func TestArchiveClosestOrderFree(t *testing.T) {
 		for _, s := range sols {
 			least = min(least, TotalViolation(s.Violations))
 		}
-		var want []Solution
-		for _, s := range sols {
-			if TotalViolation(s.Violations) != least || slices.ContainsFunc(sols, func(o Solution) bool {
-				return TotalViolation(o.Violations) == least && Dominates(o.Objectives, s.Objectives)
-			}) {
-				continue
-			}
-			i := slices.IndexFunc(want, func(o Solution) bool { return slices.Equal(o.Objectives, s.Objectives) })
-			switch {
-			case i < 0:
-				want = append(want, s)
-			case lexicographic(s.Genes, want[i].Genes) < 0:
-				want[i] = s
-			}
-		}
-		slices.SortFunc(want, func(a, b Solution) int { return solutionOrder(&a, &b) })
+		want := bruteArchive(sols, func(s Solution) bool { return TotalViolation(s.Violations) == least })
 		for range 3 {
 			rng.Shuffle(len(sols), func(i, j int) { sols[i], sols[j] = sols[j], sols[i] })
 			var a archive
