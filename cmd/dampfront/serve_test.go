@@ -204,7 +204,7 @@ func TestServeClientCommands(t *testing.T) {
 
 	t.Run("eval", func(t *testing.T) {
 		r := mustRun(t, exitOK, nil, s.client("eval", "--job", id, "--setup", testdataPath("candidate-setup.yaml"), "--setup", testdataPath("setup-jacking.yaml"))...)
-		for _, want := range []string{"Ashgrove Ring, fast sweepers", "Kessock Hill, rough slow section", "constraints: all met", "constraints: NOT met", cautionText} {
+		for _, want := range []string{"Ashgrove Ring, fast sweepers", "Tolvane Hill, rough slow section", "constraints: all met", "constraints: NOT met", cautionText} {
 			if !strings.Contains(r.stdout, want) {
 				t.Errorf("eval lacks %q:\n%s", want, r.stdout)
 			}
