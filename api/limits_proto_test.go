@@ -39,7 +39,7 @@ var protoLimits = map[string]string{
 	"Adjustment.bump_softest_ratio": "Adjustment.ratio", "Adjustment.bump_stiffest_ratio": "Adjustment.ratio",
 	"Adjustment.rebound_softest_ratio": "Adjustment.ratio", "Adjustment.rebound_stiffest_ratio": "Adjustment.ratio",
 	"CurveSettings.max_velocity_m_per_s": "Curves.max_velocity_m_per_s",
-	"Constraint.limit": "Constraint.probability Constraint.travel_m Constraint.jacking_m",
+	"Constraint.limit":                   "Constraint.probability Constraint.travel_m Constraint.jacking_m",
 }
 
 // TestProtoCommentsStateTheRanges: the comment of every physical field in
