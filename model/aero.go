@@ -166,27 +166,29 @@ func (a *Aero) validate(p *problems, prefix string, rest [2]float64) {
 		p.add(prefix+"reference_speed_m_per_s", "must be > 0 when downforce or an aero map is given")
 	}
 	if !a.linear() && (rest[0] <= 0 || rest[1] <= 0) {
-		p.add("rest_ride_height_m", "a ride-height aero map needs the rest ride heights front and rear (> 0), got %g and %g m", rest[0], rest[1])
+		for ax := 0; ax < 2; ax++ {
+			if rest[ax] <= 0 {
+				p.add(fmt.Sprintf("rest_ride_height_m[%d]", ax), "a ride-height aero map needs the rest ride heights front and rear (> 0), got %g m", rest[ax])
+			}
+		}
 	}
 }
 
 func (p *AeroPolynomial) validate(pr *problems, prefix string) {
-	for ax := 0; ax < 2; ax++ {
-		pr.finite(fmt.Sprintf("%sorigin_m[%d]", prefix, ax), p.Origin[ax])
-	}
+	pr.finite(prefix+"front_origin_m", p.Origin[0])
+	pr.finite(prefix+"rear_origin_m", p.Origin[1])
 	if len(p.Terms) == 0 {
 		pr.add(prefix+"terms", "needs at least one term")
 	}
 	for k, t := range p.Terms {
 		f := fmt.Sprintf("%sterms[%d].", prefix, k)
 		if t.PowerFront < 0 || t.PowerFront > maxAeroPower {
-			pr.add(f+"power_front", "must be in [0, %d], got %d", maxAeroPower, t.PowerFront)
+			pr.add(f+"front_power", "must be in [0, %d], got %d", maxAeroPower, t.PowerFront)
 		}
 		if t.PowerRear < 0 || t.PowerRear > maxAeroPower {
-			pr.add(f+"power_rear", "must be in [0, %d], got %d", maxAeroPower, t.PowerRear)
+			pr.add(f+"rear_power", "must be in [0, %d], got %d", maxAeroPower, t.PowerRear)
 		}
-		for ax := 0; ax < 2; ax++ {
-			pr.finite(fmt.Sprintf("%scoefficient[%d]", f, ax), t.Coefficient[ax])
-		}
+		pr.finite(f+"front_coefficient", t.Coefficient[0])
+		pr.finite(f+"rear_coefficient", t.Coefficient[1])
 	}
 }

@@ -70,8 +70,8 @@ func (t *AeroTable) validate(p *problems, prefix string, maxForce float64) {
 		}
 		return true
 	}
-	okF := grid("ride_height_front_m", t.RideHeightFront)
-	okR := grid("ride_height_rear_m", t.RideHeightRear)
+	okF := grid("front_ride_height_m", t.RideHeightFront)
+	okR := grid("rear_ride_height_m", t.RideHeightRear)
 	if !okF || !okR {
 		return
 	}
