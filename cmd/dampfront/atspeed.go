@@ -5,16 +5,17 @@ import (
 	"strings"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model/tradeunit"
 )
 
 // Quantities of the car-at-speed table.
 var (
-	qRideHeight = quantity{"ride height at speed", "mm", mmPerM, 1, "ride_height_m"}
-	qRideChange = quantity{"ride change", "mm", mmPerM, 2, "ride_height_change_m"}
-	qGapLeft    = quantity{"bump-stop gap left", "mm", mmPerM, 2, "bump_stop_gap_at_speed_m"}
-	qCompress   = quantity{"compression", "mm", mmPerM, 2, "compression_at_speed_m"}
-	qPitch      = quantity{"pitch at speed", "deg", degPerRad, 3, "pitch_rad"}
-	qDownforce  = quantity{"downforce", "N", 1, 0, "downforce_n"}
+	qRideHeight = newQuantity("ride height at speed", tradeunit.Millimetre, 1, "ride_height_m")
+	qRideChange = newQuantity("ride change", tradeunit.Millimetre, 2, "ride_height_change_m")
+	qGapLeft    = newQuantity("bump-stop gap left", tradeunit.Millimetre, 2, "bump_stop_gap_at_speed_m")
+	qCompress   = newQuantity("compression", tradeunit.Millimetre, 2, "compression_at_speed_m")
+	qPitch      = newQuantity("pitch at speed", tradeunit.Degree, 3, "pitch_rad")
+	qDownforce  = newQuantity("downforce", tradeunit.Newton, 0, "downforce_n")
 )
 
 // writeAtSpeed prints the car at each road case's speed: the operating
