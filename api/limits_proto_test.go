@@ -17,6 +17,7 @@ var protoLimits = map[string]string{
 	"Vehicle.roll_inertia_kg_m2": "Vehicle.roll_inertia_kg_m2", "Vehicle.cg_to_front_axle_m": "Vehicle.cg_to_axle_m",
 	"Vehicle.cg_to_rear_axle_m": "Vehicle.cg_to_axle_m", "Vehicle.cg_lateral_m": "Vehicle.cg_lateral_m",
 	"Vehicle.track_front_m": "Vehicle.track_m", "Vehicle.track_rear_m": "Vehicle.track_m",
+	"Vehicle.front_rest_ride_height_m": "Vehicle.rest_ride_height_m", "Vehicle.rear_rest_ride_height_m": "Vehicle.rest_ride_height_m",
 	"Corner.spring_rate_n_per_m": "Corner.spring_rate_n_per_m", "Corner.spring_motion_ratio": "Corner.motion_ratio",
 	"Corner.wheel_rate_n_per_m": "Corner.wheel_rate_n_per_m", "Corner.damper_motion_ratio": "Corner.motion_ratio",
 	"Corner.unsprung_mass_kg": "Corner.unsprung_mass_kg", "Corner.tyre_rate_n_per_m": "Corner.tyre_rate_n_per_m",

@@ -91,6 +91,7 @@ var plausible = map[string]Limit{
 	"Vehicle.roll_inertia_kg_m2":  {Min: 5, Max: 5000, Unit: "kg m^2"},
 	"Vehicle.cg_to_axle_m":        {Min: 0.2, Max: 5, Unit: "m", Slips: slipMm},
 	"Vehicle.cg_lateral_m":        {Min: -0.5, Max: 0.5, Unit: "m", Slips: slipMm},
+	"Vehicle.rest_ride_height_m":  {Min: 0.005, Max: 0.5, Unit: "m", Slips: slipMm},
 	"Vehicle.track_m":             {Min: 0.5, Max: 3, Unit: "m", Slips: slipMm},
 
 	"Corner.spring_rate_n_per_m":    {Min: 1e3, Max: 1e7, Unit: "N/m", Slips: slipNPerMm},
