@@ -3,9 +3,8 @@ package api
 import (
 	"context"
 	"crypto/tls"
-	"dampfront/model"
+
 	"errors"
-	"fmt"
 	"log/slog"
 	"net"
 	"runtime"
@@ -50,11 +49,17 @@ type Options struct {
 	// spec (the cost of one evaluation grows with it); more is
 	// ResourceExhausted. Default 2001, eight times the model's default.
 	MaxGridPoints int
+	// MaxRoadCases limits the road cases of a submitted or evaluated
+	// spec; more is ResourceExhausted naming spec.road_cases, refused
+	// before the spec is checked or compiled (both grow with the cases).
+	// Default 64.
+	MaxRoadCases int
 	// MaxSyncWork limits setups × road cases of one EvaluateSetups call.
 	// Default 4096.
 	MaxSyncWork int
-	// MaxConcurrentEvaluations limits the EvaluateSetups, CompareSetup
-	// and VerifySetup calls running at once (a VerifySetup holds its slot
+	// MaxConcurrentEvaluations limits the SubmitJob, EvaluateSetups,
+	// CompareSetup and VerifySetup calls running at once (each compiles a
+	// spec) (a VerifySetup holds its slot
 	// until its check ends, also when the call has ended before); one more
 	// is ResourceExhausted at once, not queued. Default GOMAXPROCS.
 	MaxConcurrentEvaluations int
@@ -81,6 +86,7 @@ const (
 	DefaultMaxJobWork      = 50_000_000
 	DefaultMaxGridPoints   = 2001
 	DefaultMaxSyncWork     = 4096
+	DefaultMaxRoadCases    = 64
 	DefaultStopTimeout     = 10 * time.Second
 )
 
@@ -93,6 +99,9 @@ func (o Options) withDefaults() Options {
 	}
 	if o.MaxGridPoints <= 0 {
 		o.MaxGridPoints = DefaultMaxGridPoints
+	}
+	if o.MaxRoadCases <= 0 {
+		o.MaxRoadCases = DefaultMaxRoadCases
 	}
 	if o.MaxSyncWork <= 0 {
 		o.MaxSyncWork = DefaultMaxSyncWork
@@ -117,7 +126,11 @@ type Server struct {
 	engine Engine
 	opt    Options
 	health *health.Server
-	slots  chan struct{} // one per synchronous evaluation running
+	slots  chan struct{} // one per synchronous evaluation or submit running
+
+	// onCompile, when set (by tests), is called before each compile of
+	// a spec.
+	onCompile func()
 
 	stopping chan struct{} // closed when shutdown begins
 	stopOnce sync.Once
@@ -236,15 +249,4 @@ func (s *Server) acquire() (release func(), err error) {
 			"too many synchronous evaluations are running; retry in a second",
 			map[string]string{"limit": strconv.Itoa(s.opt.MaxConcurrentEvaluations)}, time.Second)
 	}
-}
-
-// checkGrid refuses a spec whose frequency grid is over the limit.
-func (s *Server) checkGrid(pl *plan) error {
-	n := len(pl.eval.Frequencies())
-	if n <= s.opt.MaxGridPoints {
-		return nil
-	}
-	return resourceExhausted(ReasonGridTooFine,
-		fmt.Sprintf("spec.grid.points = %d is over the server's %d; the default grid (%d points, tails added analytically) is accurate to 0.5 %%", n, s.opt.MaxGridPoints, model.DefaultGrid.Points),
-		map[string]string{"points": strconv.Itoa(n), "limit": strconv.Itoa(s.opt.MaxGridPoints)}, 0)
 }
