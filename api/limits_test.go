@@ -98,28 +98,41 @@ func TestJobWorkLimitDoesNotOverflow(t *testing.T) {
 	}
 }
 
-// SubmitJob compiles the spec in one of the synchronous slots, like the
-// evaluations: with every slot taken it is ResourceExhausted at once and
-// compiles nothing; with a slot free it goes through.
+// SubmitJob checks and compiles the spec in a submit slot: with every
+// slot taken a submit waits, and one whose call ends while it waits
+// compiles nothing; with a slot free it goes through. The evaluations'
+// slots are not the submits'.
 func TestSubmitTakesASlot(t *testing.T) {
 	t.Parallel()
-	b := setup(t, Options{MaxConcurrentEvaluations: 1})
+	b := setup(t, Options{MaxConcurrentSubmits: 1, MaxConcurrentEvaluations: 1})
 	compiles := compileCounter(b.server)
-	release, err := b.server.acquire()
+	release, err := b.server.acquireSubmit(testContext(t))
 	if err != nil {
 		t.Fatal(err)
 	}
-	_, err = b.server.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: testSpec(2)})
-	wantCode(t, "submit with no slot free", err, codes.ResourceExhausted, ReasonServerBusy)
+	ctx, cancel := context.WithCancel(testContext(t))
+	cancel()
+	_, err = b.server.SubmitJob(ctx, &pb.SubmitJobRequest{Spec: testSpec(2)})
+	if status.Code(err) != codes.Canceled {
+		t.Fatalf("submit ended while waiting for a slot: %v, want Canceled", err)
+	}
 	if n := compiles.Load(); n != 0 {
-		t.Errorf("%d compiles while busy, want 0", n)
+		t.Errorf("%d compiles while every submit slot was taken, want 0", n)
 	}
 	release()
+	evalRelease, err := b.server.acquire()
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer evalRelease()
 	if _, err := b.server.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: testSpec(2)}); err != nil {
-		t.Fatalf("submit with a slot free: %v", err)
+		t.Fatalf("submit with a submit slot free and the evaluations' slot taken: %v", err)
+	}
+	if n := compiles.Load(); n != 1 {
+		t.Errorf("%d compiles for one submit, want 1", n)
 	}
 	// The slot is back once the call has returned.
-	release, err = b.server.acquire()
+	release, err = b.server.acquireSubmit(testContext(t))
 	if err != nil {
 		t.Fatalf("slot after a submit: %v", err)
 	}

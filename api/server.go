@@ -57,12 +57,18 @@ type Options struct {
 	// MaxSyncWork limits setups × road cases of one EvaluateSetups call.
 	// Default 4096.
 	MaxSyncWork int
-	// MaxConcurrentEvaluations limits the SubmitJob, EvaluateSetups,
-	// CompareSetup and VerifySetup calls running at once (each compiles a
-	// spec) (a VerifySetup holds its slot
+	// MaxConcurrentEvaluations limits the EvaluateSetups, CompareSetup
+	// and VerifySetup calls running at once (a VerifySetup holds its slot
 	// until its check ends, also when the call has ended before); one more
 	// is ResourceExhausted at once, not queued. Default GOMAXPROCS.
 	MaxConcurrentEvaluations int
+	// MaxConcurrentSubmits limits the SubmitJob calls that check and
+	// compile a spec at once (the compile grows with the road cases and
+	// the grid); the others wait for a slot of their own, under their
+	// call's deadline, and a call that ends while waiting compiles
+	// nothing. Submits never take the evaluations' slots. Default
+	// GOMAXPROCS.
+	MaxConcurrentSubmits int
 	// StopTimeout bounds the graceful part of Serve's shutdown; then open
 	// calls are cut. Default 10 s.
 	StopTimeout time.Duration
@@ -109,6 +115,9 @@ func (o Options) withDefaults() Options {
 	if o.MaxConcurrentEvaluations <= 0 {
 		o.MaxConcurrentEvaluations = runtime.GOMAXPROCS(0)
 	}
+	if o.MaxConcurrentSubmits <= 0 {
+		o.MaxConcurrentSubmits = runtime.GOMAXPROCS(0)
+	}
 	if o.StopTimeout <= 0 {
 		o.StopTimeout = DefaultStopTimeout
 	}
@@ -126,7 +135,9 @@ type Server struct {
 	engine Engine
 	opt    Options
 	health *health.Server
-	slots  chan struct{} // one per synchronous evaluation or submit running
+	slots  chan struct{} // one per synchronous evaluation running
+	// submitSlots has one per SubmitJob checking and compiling a spec.
+	submitSlots chan struct{}
 
 	// onCompile, when set (by tests), is called before each compile of
 	// a spec.
@@ -143,11 +154,13 @@ func NewServer(engine Engine, opt Options) (*Server, error) {
 	}
 	opt = opt.withDefaults()
 	return &Server{
-		engine:   engine,
-		opt:      opt,
-		health:   health.NewServer(),
-		slots:    make(chan struct{}, opt.MaxConcurrentEvaluations),
-		stopping: make(chan struct{}),
+		engine: engine,
+		opt:    opt,
+		health: health.NewServer(),
+		slots:  make(chan struct{}, opt.MaxConcurrentEvaluations),
+
+		submitSlots: make(chan struct{}, opt.MaxConcurrentSubmits),
+		stopping:    make(chan struct{}),
 	}, nil
 }
 
@@ -248,5 +261,16 @@ func (s *Server) acquire() (release func(), err error) {
 		return nil, resourceExhausted(ReasonServerBusy,
 			"too many synchronous evaluations are running; retry in a second",
 			map[string]string{"limit": strconv.Itoa(s.opt.MaxConcurrentEvaluations)}, time.Second)
+	}
+}
+
+// acquireSubmit waits for a submit slot, or returns the status of ctx's
+// error when ctx ends first; release gives the slot back.
+func (s *Server) acquireSubmit(ctx context.Context) (release func(), err error) {
+	select {
+	case s.submitSlots <- struct{}{}:
+		return func() { <-s.submitSlots }, nil
+	case <-ctx.Done():
+		return nil, toStatus(ctx.Err(), nil)
 	}
 }

@@ -27,8 +27,8 @@ func listPaths(p string) string { return strings.TrimPrefix(p, "filter.") }
 // SubmitJob checks the spec in full, fills in its defaults, checks the
 // job's size against the limits, compiles it once (the car's stability
 // at each speed) and stores it. The size is checked before anything that
-// grows with it, and the checks and the compile run in one of the
-// synchronous slots, under the call's context.
+// grows with it, and the checks and the compile run in a submit slot
+// (Options.MaxConcurrentSubmits), under the call's context.
 func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.SubmitJobResponse, error) {
 	if req.GetSpec() == nil {
 		return nil, invalidArgument(problems{{Field: "spec", Reason: "is required"}})
@@ -36,7 +36,7 @@ func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.S
 	if err := s.checkCases(req.GetSpec()); err != nil {
 		return nil, err
 	}
-	release, err := s.acquire()
+	release, err := s.acquireSubmit(ctx)
 	if err != nil {
 		return nil, err
 	}
@@ -60,7 +60,7 @@ func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.S
 	if err != nil {
 		return nil, toStatus(err, nil)
 	}
-	j, err := s.engine.Submit(ctx, &jobs.SubmitParams{Spec: spec, Labels: c.msg.GetLabels(), Seed: int64(c.Spec().Seed())})
+	j, err := s.engine.Submit(ctx, &jobs.SubmitParams{Spec: spec, Labels: c.msg.GetLabels()})
 	if err != nil {
 		return nil, toStatus(err, submitPaths)
 	}

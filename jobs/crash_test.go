@@ -90,7 +90,7 @@ func testCrashResume(t *testing.T, path, childNode string, wantReleased int) {
 		t.Fatal(err)
 	}
 	defer client.Close()
-	j, err := client.Submit(ctx, &SubmitParams{Spec: spec.bytes(), Seed: spec.Seed})
+	j, err := client.Submit(ctx, &SubmitParams{Spec: spec.bytes()})
 	if err != nil {
 		t.Fatal(err)
 	}

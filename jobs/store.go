@@ -63,7 +63,6 @@ type Job struct {
 	ID     string
 	State  State
 	Labels map[string]string
-	Seed   int64  // the optimiser's seed, stored with the result
 	Spec   []byte // opaque; the API layer's serialised job spec
 
 	CreatedAt  time.Time
@@ -85,7 +84,6 @@ type JobInsertParams struct {
 	ID     string // required; unique
 	Spec   []byte // required
 	Labels map[string]string
-	Seed   int64
 	Now    time.Time // required; creation time
 }
 

@@ -60,12 +60,3 @@ type Search struct {
 	// objective in its SI unit; nil lets the search fix its own.
 	ReferencePoint []float64
 }
-
-// Seed is the seed of a spec with its defaults filled in: the one seed of
-// a job, stored in its spec and nowhere else.
-func (s *Spec) Seed() uint64 {
-	if s.Search.Seed == nil {
-		return DefaultSeed
-	}
-	return *s.Search.Seed
-}

@@ -100,7 +100,7 @@ func TestWithDefaultsIsIdempotent(t *testing.T) {
 	}
 	if len(d.Objectives) != 2 || *d.Design.Ratios[3] != (model.Range{Min: DefaultRatioMin, Max: DefaultRatioMax}) ||
 		*d.Design.Base[1] != DefaultAxle() || d.Curves.Points != DefaultCurvePoints || d.RoadCases[0].Weight != 1 ||
-		*d.Search.MutationProbability != 0.25 || d.Seed() != 7 || d.Search.Islands != 1 {
+		*d.Search.MutationProbability != 0.25 || *d.Search.Seed != 7 || d.Search.Islands != 1 {
 		t.Errorf("defaults %+v", d)
 	}
 	dd := WithDefaults(d)
