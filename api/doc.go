@@ -16,7 +16,7 @@
 // A serve command opens the job engine with an Opener (which builds the
 // studies from stored specs), starts it, and serves a Server over it:
 //
-//	engine, _ := jobs.Open(ctx, cfg, &api.Opener{})
+//	engine, _ := jobs.Open(ctx, cfg, api.NewOpener(0))
 //	engine.Start(ctx)
 //	srv, _ := api.NewServer(engine, api.Options{})
 //	srv.Serve(ctx, lis) // until ctx ends; then GracefulStop, Stop after Options.StopTimeout

@@ -23,36 +23,71 @@ func frontPaths(p string) string {
 	return p
 }
 
-// GetFront returns a page of a finished job's front. Solutions come from
+// frontPageBytes bounds the encoded solutions of one GetFront page: half
+// of gRPC's default 4 MiB receive limit, so that a client that never
+// raised it reads every page. A page holds at least one solution.
+const frontPageBytes = 2 << 20
+
+// frontChunk is how many stored solutions GetFront reads at a time while
+// it fills a page, so that a page cut by size reads little it drops.
+const frontChunk = 100
+
+// GetFront returns a page of a job's front: a finished job's, or a
+// running job's at its last checkpoint (partial). Solutions come from
 // the stored details; genes, objectives and violations are the stored
-// ones, bit for bit.
+// ones, bit for bit. A page ends at page_size solutions or before its
+// solutions' encoding passes frontPageBytes (or half the server's message
+// limit), whichever comes first; next_page_token says where to go on.
 func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.GetFrontResponse, error) {
 	var p problems
 	id := parseJobName(req.GetJob(), "job", &p)
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	page, err := s.engine.Front(ctx, &jobs.FrontGetParams{JobID: id, PageSize: int(req.GetPageSize()), PageToken: req.GetPageToken()})
-	if err != nil {
-		return nil, toStatus(err, frontPaths)
+	want := int(req.GetPageSize())
+	switch {
+	case want <= 0:
+		want = jobs.DefaultPageSize
+	case want > jobs.MaxPageSize:
+		want = jobs.MaxPageSize
 	}
-	spec, err := unmarshalSpec(page.Job.Spec)
-	if err != nil {
-		return nil, toStatus(err, nil)
-	}
-	front := frontHeader(id, spec, page.Total, page.Partial)
+	budget := min(frontPageBytes, s.opt.MaxMessageBytes/2)
 	basic := req.GetView() == pb.SolutionView_SOLUTION_VIEW_BASIC
-	for _, js := range page.Solutions {
-		sol, err := solutionFromStore(js)
+	var front *pb.Front
+	token, size := req.GetPageToken(), 0
+	for {
+		page, err := s.engine.Front(ctx, &jobs.FrontGetParams{JobID: id, PageSize: min(want-len(front.GetSolutions()), frontChunk), PageToken: token})
 		if err != nil {
-			return nil, toStatus(err, nil)
+			return nil, toStatus(err, frontPaths)
 		}
-		if basic {
-			sol.CaseMetrics, sol.DamperCurves = nil, nil
+		if front == nil {
+			spec, err := unmarshalSpec(page.Job.Spec)
+			if err != nil {
+				return nil, toStatus(err, nil)
+			}
+			front = frontHeader(id, spec, page.Total, page.Partial)
 		}
-		front.Solutions = append(front.Solutions, sol)
+		token = page.NextPageToken
+		for _, js := range page.Solutions {
+			sol, err := solutionFromStore(js)
+			if err != nil {
+				return nil, toStatus(err, nil)
+			}
+			if basic {
+				sol.CaseMetrics, sol.DamperCurves = nil, nil
+			}
+			n := proto.Size(sol)
+			if len(front.Solutions) > 0 && size+n > budget {
+				last := front.Solutions[len(front.Solutions)-1].GetIndex()
+				return &pb.GetFrontResponse{Front: front, NextPageToken: page.TokenAfter(int(last))}, nil
+			}
+			size += n
+			front.Solutions = append(front.Solutions, sol)
+		}
+		if token == "" || len(front.Solutions) >= want || len(page.Solutions) == 0 {
+			return &pb.GetFrontResponse{Front: front, NextPageToken: token}, nil
+		}
 	}
-	return &pb.GetFrontResponse{Front: front, NextPageToken: page.NextPageToken}, nil
 }
 
 // frontHeader is a Front without solutions: the job, gene names,
@@ -78,7 +113,8 @@ func solutionFromStore(js jobs.Solution) (*pb.Solution, error) {
 	return sol, nil
 }
 
-// wholeFront reads every page of a finished job's front.
+// wholeFront reads every page of a finished job's front; a running
+// job's gives a *jobs.PreconditionError.
 func (s *Server) wholeFront(ctx context.Context, id string) (*jobs.FrontPage, error) {
 	var all *jobs.FrontPage
 	token := ""
@@ -86,6 +122,9 @@ func (s *Server) wholeFront(ctx context.Context, id string) (*jobs.FrontPage, er
 		page, err := s.engine.Front(ctx, &jobs.FrontGetParams{JobID: id, PageSize: jobs.MaxPageSize, PageToken: token})
 		if err != nil {
 			return nil, err
+		}
+		if !page.Job.State.Terminal() {
+			return nil, &jobs.PreconditionError{ID: id, State: page.Job.State, Reason: "the front is final once the job has finished or been cancelled; watch the job until then"}
 		}
 		if all == nil {
 			all = page

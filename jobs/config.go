@@ -67,6 +67,18 @@ type Config struct {
 	// the slice waits RetryDelay and runs again, as often as it takes.
 	// Default 10.
 	MaxAttempts int
+	// MaxRequeues is how often a job whose slice ran out of its
+	// MaxAttempts (its workers killed mid-slice again and again, or
+	// failing) goes on with a fresh slice from its last checkpoint; the
+	// next time, the job fails with the reason, keeping the front of its
+	// last checkpoint. Default 2.
+	MaxRequeues int
+	// ReapInterval is how often a working engine looks for stranded jobs:
+	// queued or running with no slice left in River's queue (a slice
+	// River discarded, e.g. after a worker died on its last attempt).
+	// Each is given a fresh slice, failed or, when a cancel was requested,
+	// cancelled (see MaxRequeues). Default 30 s, River's rescue interval.
+	ReapInterval time.Duration
 	// FetchPollInterval is how often idle workers look for queued slices
 	// (River's; SQLite has no LISTEN/NOTIFY). Default 1 s.
 	FetchPollInterval time.Duration
@@ -133,6 +145,8 @@ const (
 	DefaultFinalizeTimeout    = 30 * time.Second
 	DefaultRetryDelay         = 5 * time.Second
 	DefaultMaxAttempts        = 10
+	DefaultMaxRequeues        = 2
+	DefaultReapInterval       = 30 * time.Second
 	DefaultFetchPollInterval  = time.Second
 	DefaultMaxSpecBytes       = 1 << 20
 )
@@ -155,6 +169,7 @@ func (c Config) withDefaults() (Config, error) {
 		{"finalize_timeout", &c.FinalizeTimeout, DefaultFinalizeTimeout},
 		{"retry_delay", &c.RetryDelay, DefaultRetryDelay},
 		{"fetch_poll_interval", &c.FetchPollInterval, DefaultFetchPollInterval},
+		{"reap_interval", &c.ReapInterval, DefaultReapInterval},
 	}
 	for _, d := range durations {
 		switch {
@@ -178,6 +193,7 @@ func (c Config) withDefaults() (Config, error) {
 		{"workers", &c.Workers, 0},
 		{"step_generations", &c.StepGenerations, 1},
 		{"max_attempts", &c.MaxAttempts, DefaultMaxAttempts},
+		{"max_requeues", &c.MaxRequeues, DefaultMaxRequeues},
 		{"max_spec_bytes", &c.MaxSpecBytes, DefaultMaxSpecBytes},
 	}
 	for _, n := range ints {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"fmt"
 	"os"
 	"os/exec"
 	"testing"
@@ -17,13 +18,18 @@ const crashChildEnv = "DAMPFRONT_JOBS_CRASH_CHILD_DB"
 // crashChildNodeEnv, when set, is the child's Config.NodeID.
 const crashChildNodeEnv = "DAMPFRONT_JOBS_CRASH_CHILD_NODE"
 
+// crashChildLimitsEnv, when set to "attempts/requeues", is the child's
+// Config.MaxAttempts and MaxRequeues, and makes it reap every 100 ms in
+// 5 s slices.
+const crashChildLimitsEnv = "DAMPFRONT_JOBS_CRASH_CHILD_LIMITS"
+
 // slowTestEnv enables the tests that wait for River's own rescuer, whose
 // run interval (30 s) River does not let a client shorten.
 const slowTestEnv = "DAMPFRONT_TEST_SLOW"
 
 // TestCrashWorkerProcess is not a test of its own: run by TestCrashResume
 // as a child process, it works the database named by crashChildEnv until
-// it is killed (or, bounded, until testTimeout passes).
+// it is killed (or, bounded, until crashChildLife passes).
 func TestCrashWorkerProcess(t *testing.T) {
 	url := os.Getenv(crashChildEnv)
 	if url == "" {
@@ -34,6 +40,16 @@ func TestCrashWorkerProcess(t *testing.T) {
 	cfg.Workers = 1
 	cfg.SliceDuration = time.Minute // one long slice, so the kill lands inside it
 	cfg.CheckpointInterval = 50 * time.Millisecond
+	if limits := os.Getenv(crashChildLimitsEnv); limits != "" {
+		if _, err := fmt.Sscanf(limits, "%d/%d", &cfg.MaxAttempts, &cfg.MaxRequeues); err != nil {
+			t.Fatalf("%s=%q: %v", crashChildLimitsEnv, limits, err)
+		}
+		cfg.ReapInterval = 100 * time.Millisecond
+		// River's rescuer takes a slice of a dead worker on another node
+		// after SliceDuration + SliceGrace + RescueMargin: about 11 s,
+		// while a kill lands well inside 5 s.
+		cfg.SliceDuration = 5 * time.Second
+	}
 	e, err := Open(context.Background(), cfg, &toyOpener{})
 	if err != nil {
 		t.Fatal(err)
@@ -41,8 +57,13 @@ func TestCrashWorkerProcess(t *testing.T) {
 	if _, err := e.Start(context.Background()); err != nil {
 		t.Fatal(err)
 	}
-	time.Sleep(testTimeout)
+	time.Sleep(crashChildLife)
 }
+
+// crashChildLife bounds a worker process of the crash tests, which kill
+// it long before: it outlasts the longest wait of a parent (River's
+// rescue, up to 3 min).
+const crashChildLife = 5 * time.Minute
 
 // TestCrashResume kills a worker process with SIGKILL in the middle of a
 // slice, after a checkpoint and with work done since, then starts a new
@@ -85,15 +106,7 @@ func testCrashResume(t *testing.T, path, childNode string, wantReleased int) {
 	ctx := context.Background()
 	spec := toySpec{Generations: 300, Size: 11, Seed: 5, StepDelay: time.Millisecond}
 
-	client, err := Open(ctx, testConfig(path), &toyOpener{}) // submits and reads; no workers started
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer client.Close()
-	j, err := client.Submit(ctx, &SubmitParams{Spec: spec.bytes()})
-	if err != nil {
-		t.Fatal(err)
-	}
+	client, j := crashClient(t, testConfig(path), spec)
 
 	var out bytes.Buffer
 	child := exec.Command(os.Args[0], "-test.run=^TestCrashWorkerProcess$", "-test.count=1")
@@ -181,4 +194,20 @@ func testCrashResume(t *testing.T, path, childNode string, wantReleased int) {
 	sameFront(t, frontOf(t, e, j.ID).Solutions, toyFrontAt(spec, spec.Generations))
 	t.Logf("killed at generation %d, checkpoint at %d (%d generations lost); slice resumed %v after the new engine's Start, %v after its Open",
 		atKill.Progress.Generation, resumeFrom, atKill.Progress.Generation-resumeFrom, resumeDelay, sinceOpen)
+}
+
+// crashClient opens an engine with cfg that submits and reads but works
+// nothing (it is not started), and submits spec to it.
+func crashClient(t *testing.T, cfg Config, spec toySpec) (*Engine, *Job) {
+	t.Helper()
+	client, err := Open(context.Background(), cfg, &toyOpener{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { _ = client.Close() })
+	j, err := client.Submit(context.Background(), &SubmitParams{Spec: spec.bytes()})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return client, j
 }

@@ -38,6 +38,18 @@
 // superseded by a rescued one gets ErrFailedPrecondition and writes
 // nothing, so the stored checkpoint always belongs to one run.
 //
+// A slice whose attempts run out (MaxAttempts: its workers killed
+// mid-slice again and again, or its runs failing) is discarded by River.
+// Its job then goes on with a fresh slice from its last checkpoint, at
+// most MaxRequeues times, and then fails with the reason, keeping the
+// front of that checkpoint (partial). The worker of a failing last
+// attempt settles the job itself; when no worker saw the end (the last
+// attempt's worker was killed, and River's rescuer or a restart of its
+// node discarded the slice), the job is stranded: queued or running with
+// no slice in River's queue. Every working engine reaps stranded jobs at
+// Start and every ReapInterval (strand.go); a fence on the job's requeue
+// count keeps two engines from settling one job twice.
+//
 // A slice run that fails because the database is unreachable or full
 // (IsUnavailable) is snoozed for RetryDelay rather than retried: River
 // runs it again without spending one of MaxAttempts, so a database
@@ -52,7 +64,10 @@
 // Cancellation sets a flag in dampfront_job; the running slice polls it
 // every CancelPollInterval (and a Cancel in the same process interrupts
 // it directly). The cancelled job keeps the front of its last generation,
-// marked partial. Stop (for SIGTERM) makes every running slice stop after
+// marked partial. A job with no slice running (queued, between slices,
+// or stranded) is cancelled by Cancel itself, with the front of its last
+// checkpoint, and its queued slice is cancelled in River; a stranded job
+// with the flag set is cancelled by the reaper. Stop (for SIGTERM) makes every running slice stop after
 // its current generation, checkpoint and queue its next slice, within
 // StopTimeout; then their contexts are cancelled.
 //

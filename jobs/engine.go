@@ -36,6 +36,12 @@ type queue interface {
 	releaseOrphans(ctx context.Context) (int, error)
 	// interrupt cancels this process's running slice of job id, if any.
 	interrupt(id string, cause error)
+	// reap ends or requeues the stranded jobs (strand.go) and returns how
+	// many it found.
+	reap(ctx context.Context) (int, error)
+	// cancelIdle ends job id, whose cancel was requested, when no slice
+	// of it is running, and returns the job.
+	cancelIdle(ctx context.Context, id string) (*Job, error)
 	close() error
 }
 
@@ -91,8 +97,9 @@ func (e *Engine) Backend() string { return e.q.backend() }
 
 // Start releases slices that dead processes of this node left running
 // (so that a restarted single-process server resumes its jobs at once,
-// without waiting for River's rescuer) and, with Workers > 0, starts
-// working. It returns how many slices it released.
+// without waiting for River's rescuer) and, with Workers > 0, settles the
+// stranded jobs (see Config.ReapInterval) and starts working. It returns
+// how many slices it released.
 func (e *Engine) Start(ctx context.Context) (released int, err error) {
 	released, err = e.q.releaseOrphans(ctx)
 	if err != nil {
@@ -104,6 +111,9 @@ func (e *Engine) Start(ctx context.Context) (released int, err error) {
 	}
 	if e.cfg.Workers == 0 {
 		return released, nil
+	}
+	if _, err := e.q.reap(ctx); err != nil {
+		return released, fmt.Errorf("jobs: settle stranded jobs: %w", err)
 	}
 	return released, e.q.start(ctx)
 }
@@ -157,31 +167,41 @@ func (e *Engine) List(ctx context.Context, p *JobListParams) (*JobListResult, er
 	return e.store.JobList(ctx, p)
 }
 
-// Cancel requests cancellation. A queued job is cancelled at once; a
-// running one within about Config.CancelPollInterval, wherever its slice
-// runs, keeping its front so far (marked partial). A finished job gives a
-// *PreconditionError.
+// Cancel requests cancellation. A job with no slice running (queued,
+// between slices, or stranded) is cancelled at once, keeping the front of
+// its last checkpoint; a running one within about
+// Config.CancelPollInterval, wherever its slice runs, keeping its front
+// so far. Either front is marked partial. A slice whose worker died is
+// run again, or discarded and reaped, by River's rescuer, and the job is
+// cancelled then. A finished job gives a *PreconditionError.
 func (e *Engine) Cancel(ctx context.Context, id string) (*Job, error) {
-	j, err := e.store.JobCancelRequest(ctx, &JobCancelRequestParams{ID: id, Now: e.cfg.Now()})
-	if err != nil {
+	if _, err := e.store.JobCancelRequest(ctx, &JobCancelRequestParams{ID: id, Now: e.cfg.Now()}); err != nil {
 		return nil, err
 	}
 	e.q.interrupt(id, errCancelRequested)
-	return j, nil
+	return e.q.cancelIdle(ctx, id)
 }
 
 // FrontPage is one page of a job's front.
 type FrontPage struct {
 	Job           *Job
-	Partial       bool // the job was cancelled or failed: the front is the best so far, not a finished run's
+	Partial       bool // the job runs, was cancelled or failed: the front is the best so far, not a finished run's
 	Solutions     []Solution
 	Total         int
 	NextPageToken string
 }
 
+// TokenAfter is the page token of the page that starts after the
+// solution with this index: for a caller that returns fewer solutions
+// than the page holds (AIP-158 allows it) and must say where to go on.
+func (p *FrontPage) TokenAfter(index int) string {
+	return pageToken{Query: frontQueryHash(p.Job.ID), Index: index}.encode()
+}
+
 // Front returns a page of the stored front of a finished job (succeeded,
-// cancelled or failed, the last two marked partial); a queued or running
-// job gives a *PreconditionError.
+// cancelled or failed, the last two marked partial), or of a running
+// job's front at its last checkpoint (partial; empty before the first);
+// a queued job gives a *PreconditionError.
 func (e *Engine) Front(ctx context.Context, p *FrontGetParams) (*FrontPage, error) {
 	if p.JobID == "" {
 		return nil, &InvalidArgumentError{Violations: []FieldError{{Field: "job_id", Reason: "is required"}}}
@@ -190,14 +210,15 @@ func (e *Engine) Front(ctx context.Context, p *FrontGetParams) (*FrontPage, erro
 	if err != nil {
 		return nil, err
 	}
-	if !j.State.Terminal() {
-		return nil, &PreconditionError{ID: j.ID, State: j.State, Reason: "the front is available once the job has finished or been cancelled; watch the job until then"}
+	if j.State == StateQueued {
+		return nil, &PreconditionError{ID: j.ID, State: j.State, Reason: "the front is available once a worker has started the job; watch the job until then"}
 	}
 	res, err := e.store.FrontGet(ctx, p)
 	if err != nil {
 		return nil, err
 	}
-	return &FrontPage{Job: j, Partial: j.Partial, Solutions: res.Solutions, Total: res.Total, NextPageToken: res.NextPageToken}, nil
+	partial := j.Partial || !j.State.Terminal()
+	return &FrontPage{Job: j, Partial: partial, Solutions: res.Solutions, Total: res.Total, NextPageToken: res.NextPageToken}, nil
 }
 
 // errors that end a slice's context, told apart with context.Cause.

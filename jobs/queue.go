@@ -36,6 +36,9 @@ type riverQueue[TTx any] struct {
 
 	mu      sync.Mutex
 	running map[string]context.CancelCauseFunc // job ID -> its slice here
+
+	stopReap func()        // ends reapLoop; nil until start
+	reaped   chan struct{} // closed when reapLoop has returned
 }
 
 var _ queue = (*riverQueue[any])(nil)
@@ -105,13 +108,26 @@ func (rq *riverQueue[TTx]) insert(ctx context.Context, p *JobInsertParams) (*Job
 func (rq *riverQueue[TTx]) start(ctx context.Context) error {
 	// River's work context must outlive the caller's start-up context;
 	// Stop ends it.
-	return rq.client.Start(context.WithoutCancel(ctx))
+	if err := rq.client.Start(context.WithoutCancel(ctx)); err != nil {
+		return err
+	}
+	reapCtx, cancel := context.WithCancel(context.WithoutCancel(ctx))
+	rq.stopReap, rq.reaped = cancel, make(chan struct{})
+	go func() {
+		defer close(rq.reaped)
+		rq.reapLoop(reapCtx)
+	}()
+	return nil
 }
 
 // stop asks every running slice to hand over (they watch e.stopping),
 // waits for them up to StopTimeout, then cancels their contexts and waits
 // up to FinalizeTimeout more for their last writes.
 func (rq *riverQueue[TTx]) stop(ctx context.Context) error {
+	if rq.stopReap != nil {
+		rq.stopReap()
+		<-rq.reaped
+	}
 	rq.mu.Lock()
 	for _, cancel := range rq.running {
 		cancel(errStopping)

@@ -48,6 +48,9 @@ const orphanBatch = 1000
 // own rescuer would pick them up only after RescueStuckJobsAfter; on
 // restart of a single-process server that is needless waiting. Slices of
 // other nodes, or of live processes here, are left to River's rescuer.
+// As River's rescuer does, a slice whose attempts are all spent is
+// discarded instead; Start then reaps its job (strand.go), so a worker
+// killed mid-slice again and again cannot keep a job alive forever.
 func (rq *riverQueue[TTx]) releaseOrphans(ctx context.Context) (int, error) {
 	_, _, ownNonce, _ := parseClientID(rq.id)
 	res, err := rq.client.JobList(ctx, river.NewJobListParams().
@@ -69,18 +72,21 @@ func (rq *riverQueue[TTx]) releaseOrphans(ctx context.Context) (int, error) {
 		if !dead {
 			continue
 		}
-		errData, err := json.Marshal(rivertype.AttemptError{
-			At: now, Attempt: j.Attempt,
-			Error: "released at start-up: the process of this node that ran the slice is gone",
-		})
+		msg, state, finalized := "released at start-up: the process of this node that ran the slice is gone",
+			rivertype.JobStateAvailable, (*time.Time)(nil)
+		if j.Attempt >= j.MaxAttempts {
+			msg, state, finalized = "discarded at start-up: the process of this node that ran the slice's last attempt is gone",
+				rivertype.JobStateDiscarded, &now
+		}
+		errData, err := json.Marshal(rivertype.AttemptError{At: now, Attempt: j.Attempt, Error: msg})
 		if err != nil {
 			return 0, err
 		}
 		p.ID = append(p.ID, j.ID)
 		p.Error = append(p.Error, errData)
-		p.FinalizedAt = append(p.FinalizedAt, nil)
+		p.FinalizedAt = append(p.FinalizedAt, finalized)
 		p.ScheduledAt = append(p.ScheduledAt, now)
-		p.State = append(p.State, string(rivertype.JobStateAvailable))
+		p.State = append(p.State, string(state))
 	}
 	if len(p.ID) == 0 {
 		return 0, nil

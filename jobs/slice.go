@@ -52,14 +52,14 @@ func (w *sliceWorker[TTx]) Work(ctx context.Context, rj *river.Job[sliceArgs]) e
 		return river.JobSnooze(w.rq.e.cfg.RetryDelay)
 	}
 	if err != nil && rj.Attempt >= rj.MaxAttempts {
-		// River discards the slice after this attempt; fail the job with
-		// it rather than leave it running forever. If even that cannot be
-		// written, keep the slice (snoozed, so this stays the last
-		// attempt) until it can: a discarded slice under a running job
-		// would leave the job running with nothing to end it.
-		if ferr := w.rq.failJob(ctx, rj, fmt.Errorf("slice %d failed %d times, last: %w", rj.Args.Slice, rj.Attempt, err)); ferr != nil {
-			w.rq.e.cfg.Logger.ErrorContext(ctx, "jobs: could not fail job after its last slice attempt; trying again",
-				"job", rj.Args.JobID, "retry_in", w.rq.e.cfg.RetryDelay, "error", ferr)
+		// River discards the slice after this attempt; settle the job
+		// (a fresh slice, or failed) rather than leave it stranded. If
+		// even that cannot be written, keep the slice (snoozed, so this
+		// stays the last attempt) until it can; the reaper would settle
+		// the job too, once the slice is gone.
+		if serr := w.rq.outOfAttempts(ctx, rj, err); serr != nil {
+			w.rq.e.cfg.Logger.ErrorContext(ctx, "jobs: could not settle job after its last slice attempt; trying again",
+				"job", rj.Args.JobID, "retry_in", w.rq.e.cfg.RetryDelay, "error", serr)
 			return river.JobSnooze(w.rq.e.cfg.RetryDelay)
 		}
 	}
@@ -293,20 +293,19 @@ func finishedElsewhere(err error) error {
 	return err
 }
 
-// failJob fails a job whose slice River is about to discard. A job that
-// has ended meanwhile is left as it is.
-func (rq *riverQueue[TTx]) failJob(ctx context.Context, rj *river.Job[sliceArgs], cause error) error {
+// outOfAttempts settles the job of a slice whose last attempt failed with
+// cause and which River is about to discard.
+func (rq *riverQueue[TTx]) outOfAttempts(ctx context.Context, rj *river.Job[sliceArgs], cause error) error {
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
-	st := rq.db.store
-	lease := runLease(rq.id, rj) + "/final"
-	_, err := st.JobStart(ctx, &JobStartParams{ID: rj.Args.JobID, Lease: lease, Now: rq.e.cfg.Now()})
-	if err == nil {
-		_, err = st.JobFinish(ctx, &JobFinishParams{ID: rj.Args.JobID, Lease: lease, State: StateFailed,
-			Error: cause.Error(), Partial: true, Now: rq.e.cfg.Now()})
+	j, err := rq.db.store.jobGet(ctx, rj.Args.JobID)
+	switch {
+	case errors.Is(err, ErrNotFound):
+		return nil
+	case err != nil:
+		return err
+	case j.State.Terminal():
+		return nil
 	}
-	if errors.Is(err, ErrFailedPrecondition) || errors.Is(err, ErrNotFound) {
-		return nil // ended meanwhile, or gone
-	}
-	return err
+	return rq.settle(ctx, j, fmt.Sprintf("slice %d failed %d times, last: %v", rj.Args.Slice, rj.Attempt, cause))
 }

@@ -36,6 +36,23 @@ type Store interface {
 	// JobFinish moves a job held by the given lease to a terminal state.
 	JobFinish(ctx context.Context, params *JobFinishParams) (*Job, error)
 
+	// JobListStranded lists, oldest first, the jobs that are queued or
+	// running but have no slice in River's queue (available, pending,
+	// scheduled, retryable or running): their last slice was discarded
+	// or cancelled, and nothing would ever end them.
+	JobListStranded(ctx context.Context, params *JobListStrandedParams) ([]*Job, error)
+	// JobRequeue counts one more fresh slice for a queued or running job
+	// and clears its lease, so that no earlier slice run writes again;
+	// the caller queues the slice in the same transaction. Fenced by
+	// Requeues: a job requeued or ended since it was read gives a
+	// *PreconditionError.
+	JobRequeue(ctx context.Context, params *JobRequeueParams) (*Job, error)
+	// JobEnd moves a queued or running job that no slice run will end
+	// (stranded, or cancelled with no slice running) to failed or
+	// cancelled, partial, keeping the front of its last checkpoint.
+	// Fenced by Requeues as JobRequeue is.
+	JobEnd(ctx context.Context, params *JobEndParams) (*Job, error)
+
 	// CheckpointSave stores the optimiser state and its progress in one
 	// transaction, if the lease still holds the job.
 	CheckpointSave(ctx context.Context, params *CheckpointSaveParams) error
@@ -73,6 +90,9 @@ type Job struct {
 	Partial         bool   // the stored front is not that of a finished run (cancelled or failed)
 	CancelRequested bool
 	Slices          int // slice runs started so far, retries and resumes included
+	// Requeues counts the fresh slices queued after one of the job's
+	// slices ran out of attempts (at most Config.MaxRequeues).
+	Requeues int
 
 	Progress Progress
 
@@ -155,6 +175,27 @@ type JobFinishParams struct {
 	Error   string
 	Partial bool
 	Now     time.Time
+}
+
+// JobListStrandedParams are the inputs of Store.JobListStranded.
+type JobListStrandedParams struct {
+	Limit int // at most this many jobs; 0 means DefaultPageSize
+}
+
+// JobRequeueParams are the inputs of Store.JobRequeue.
+type JobRequeueParams struct {
+	ID       string
+	Requeues int // the job's Requeues when it was read
+	Now      time.Time
+}
+
+// JobEndParams are the inputs of Store.JobEnd.
+type JobEndParams struct {
+	ID       string
+	Requeues int   // the job's Requeues when it was read
+	State    State // failed or cancelled
+	Error    string
+	Now      time.Time
 }
 
 // CheckpointSaveParams are the inputs of Store.CheckpointSave.

@@ -439,6 +439,11 @@ func runStoreConformance(t *testing.T, newStore func(t testing.TB) Store) {
 		testJobCounts(t, newStore, t0)
 	})
 
+	t.Run("StrandedRequeueEnd", func(t *testing.T) {
+		t.Parallel()
+		testStrandedRequeueEnd(t, newStore(t), t0)
+	})
+
 	t.Run("TxRollback", func(t *testing.T) {
 		t.Parallel()
 		s := newStore(t)

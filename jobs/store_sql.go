@@ -24,7 +24,7 @@ type sqlStore struct {
 var _ Store = (*sqlStore)(nil)
 
 const jobColumns = `id, state, labels, spec, created_at, started_at, finished_at, updated_at,
-	error, partial, cancel_requested, lease, slices,
+	error, partial, cancel_requested, lease, slices, requeues,
 	generation, generations, evaluations, hypervolume, best`
 
 // Limits on labels, in the spirit of Kubernetes label syntax.
@@ -40,11 +40,12 @@ func scanJob(r rowScanner) (*Job, error) {
 		state, labels                        string
 		created, started, finished, updated  int64
 		partial, cancelRequested, slices     int64
+		requeues                             int64
 		generation, generations, evaluations int64
 		best                                 []byte
 	)
 	if err := r.Scan(&j.ID, &state, &labels, &j.Spec, &created, &started, &finished, &updated,
-		&j.Error, &partial, &cancelRequested, &j.lease, &slices,
+		&j.Error, &partial, &cancelRequested, &j.lease, &slices, &requeues,
 		&generation, &generations, &evaluations, &j.Progress.Hypervolume, &best); err != nil {
 		return nil, err
 	}
@@ -53,7 +54,7 @@ func scanJob(r rowScanner) (*Job, error) {
 		return nil, fmt.Errorf("jobs: stored labels of job %q: %w", j.ID, err)
 	}
 	j.CreatedAt, j.StartedAt, j.FinishedAt = timeFromDB(created), timeFromDB(started), timeFromDB(finished)
-	j.Partial, j.CancelRequested, j.Slices = partial != 0, cancelRequested != 0, int(slices)
+	j.Partial, j.CancelRequested, j.Slices, j.Requeues = partial != 0, cancelRequested != 0, int(slices), int(requeues)
 	j.Progress.Generation, j.Progress.Generations, j.Progress.Evaluations = int(generation), int(generations), evaluations
 	j.Progress.UpdatedAt = timeFromDB(updated)
 	var err error

@@ -2,14 +2,12 @@ package web
 
 import (
 	"bytes"
-	"encoding/csv"
 	"fmt"
 	"mime"
 	"net/http"
 	"strconv"
 
-	"google.golang.org/protobuf/encoding/protojson"
-
+	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/plot"
 )
@@ -27,98 +25,44 @@ func download(w http.ResponseWriter, contentType, name string, body []byte, atta
 // fileStem names a job's downloads: "dampfront-ID".
 func fileStem(id string) string { return "dampfront-" + id }
 
-// frontCSV is the front with one row per solution, SI values with the
-// unit in each column's name, floats written so that they read back bit
-// for bit: index, the genes, the objectives, the low-speed slopes at the
-// damper of the front-left and rear-left corners, each constraint's
-// violation, feasible and balanced.
+// frontCSV is the front in the schema of package frontfile (one row per
+// solution, SI, the unit in each column's name), as the command line's
+// front --format csv writes it.
 func (h *Handler) frontCSV(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
 	front, ok := h.requestFront(w, r, id)
 	if !ok {
 		return
 	}
-	b, err := frontCSVBytes(front)
+	var b bytes.Buffer
+	if err := frontfile.WriteCSV(&b, front); err != nil {
+		h.serviceError(w, r, err, false)
+		return
+	}
+	download(w, "text/csv; charset=utf-8", fileStem(id)+"-front.csv", b.Bytes(), true)
+}
+
+// frontJSON is the front and its job's header in the schema of package
+// frontfile, as the command line's front --format json writes it.
+func (h *Handler) frontJSON(w http.ResponseWriter, r *http.Request) {
+	id := r.PathValue("id")
+	ctx, cancel := h.callContext(r)
+	defer cancel()
+	jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(id), View: pb.JobView_JOB_VIEW_BASIC})
 	if err != nil {
 		h.serviceError(w, r, err, false)
 		return
 	}
-	download(w, "text/csv; charset=utf-8", fileStem(id)+"-front.csv", b, true)
-}
-
-func frontCSVBytes(front *pb.Front) ([]byte, error) {
-	cols := []string{"index"}
-	cols = append(cols, front.GetGeneNames()...)
-	for _, o := range front.GetObjectives() {
-		cols = append(cols, objectiveQuantity(o).column)
-	}
-	for _, c := range slopeCorners {
-		axle := map[string]string{"F": "front", "R": "rear"}[c.label]
-		cols = append(cols, axle+"_bump_"+qSlope.column, axle+"_rebound_"+qSlope.column)
-	}
-	for _, c := range front.GetConstraints() {
-		cols = append(cols, constraintColumn(c))
-	}
-	cols = append(cols, "feasible", "balanced")
-	bal := -1
-	if k, err := plot.BalancedSolution(front.GetSolutions()); err == nil {
-		bal = k
-	}
-	var buf bytes.Buffer
-	cw := csv.NewWriter(&buf)
-	if err := cw.Write(cols); err != nil {
-		return nil, err
-	}
-	for i, s := range front.GetSolutions() {
-		row := []string{strconv.Itoa(int(s.GetIndex()))}
-		for _, g := range s.GetGenes() {
-			row = append(row, siText(g))
-		}
-		for _, o := range s.GetObjectives() {
-			row = append(row, siText(o))
-		}
-		for _, c := range slopeCorners {
-			bump, rebound := "", ""
-			for _, dc := range s.GetDamperCurves() {
-				if dc.GetCorner() == c.corner {
-					bump, rebound = siText(dc.GetBumpSlopeNSPerM()), siText(dc.GetReboundSlopeNSPerM())
-				}
-			}
-			row = append(row, bump, rebound)
-		}
-		for k := range front.GetConstraints() {
-			v := 0.0
-			if k < len(s.GetViolations()) {
-				v = s.GetViolations()[k]
-			}
-			row = append(row, siText(v))
-		}
-		row = append(row, strconv.FormatBool(s.GetFeasible()), strconv.FormatBool(i == bal))
-		if len(row) != len(cols) {
-			return nil, fmt.Errorf("solution %d has %d values for %d columns", s.GetIndex(), len(row), len(cols))
-		}
-		if err := cw.Write(row); err != nil {
-			return nil, err
-		}
-	}
-	cw.Flush()
-	return buf.Bytes(), cw.Error()
-}
-
-// frontJSON is the whole front as GetFront returns it, every page joined,
-// in the protobuf JSON mapping (field names as in the .proto files).
-func (h *Handler) frontJSON(w http.ResponseWriter, r *http.Request) {
-	id := r.PathValue("id")
 	front, ok := h.requestFront(w, r, id)
 	if !ok {
 		return
 	}
-	b, err := protojson.MarshalOptions{Multiline: true, Indent: "  ", UseProtoNames: true}.Marshal(front)
-	if err != nil {
+	var b bytes.Buffer
+	if err := frontfile.WriteJSON(&b, jr.GetJob(), front); err != nil {
 		h.serviceError(w, r, err, false)
 		return
 	}
-	download(w, "application/json", fileStem(id)+"-front.json", append(b, '\n'), true)
+	download(w, "application/json", fileStem(id)+"-front.json", b.Bytes(), true)
 }
 
 // frontSVG is the front chart as a file.

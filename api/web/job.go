@@ -137,7 +137,7 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 	base := "/jobs/" + url.PathEscape(id)
 	v.Downloads = []link{
 		{"Front CSV (SI)", base + "/front.csv"},
-		{"Front JSON (SI, every metric)", base + "/front.json"},
+		{"Front JSON (SI)", base + "/front.json"},
 		{"Front chart SVG", base + "/front.svg"},
 	}
 	if len(sols) == 0 {

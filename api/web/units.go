@@ -72,12 +72,6 @@ func objectiveQuantity(o *pb.Objective) quantity {
 	return q
 }
 
-// constraintColumn is the CSV column of a constraint's violation.
-func constraintColumn(c *pb.Constraint) string {
-	name := strings.ToLower(strings.TrimPrefix(c.GetKind().String(), "CONSTRAINT_KIND_"))
-	return name + "_violation"
-}
-
 // geneQuantity is how a searched variable is shown: knees (names ending
 // in _m_per_s) in mm/s, damping ratios (_ratio) and factors as they are.
 func geneQuantity(name string) quantity {

@@ -1,14 +1,12 @@
 package main
 
 import (
-	"bytes"
 	"context"
-	"encoding/csv"
-	"encoding/json"
 	"fmt"
 	"io"
 	"strings"
 
+	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
@@ -26,7 +24,8 @@ load standard deviation in % of static load, platform in mm, low-speed
 damper slopes in N s/mm at the component; the balanced point (nearest the
 middle of the front with each objective normalised over it) is marked *.
 CSV and JSON are SI, with the unit in each column's name, one row per
-solution, floats written so that they read back bit for bit.`)
+solution, floats written so that they read back bit for bit: the schema
+of the job page's downloads and the Python client, listed in the README.`)
 	cf := addClientFlags(fs, e)
 	format := newFormat("table", "table", "csv", "json")
 	fs.Var(format, "format", "output `format`: table, csv or json")
@@ -49,9 +48,9 @@ solution, floats written so that they read back bit for bit.`)
 	}
 	switch format.value {
 	case "csv":
-		return writeFrontCSV(e.stdout, fd)
+		return frontfile.WriteCSV(e.stdout, fd.front)
 	case "json":
-		return writeFrontJSON(e.stdout, fd)
+		return frontfile.WriteJSON(e.stdout, fd.job, fd.front)
 	}
 	if err := writeFrontTable(e.stdout, fd, *rows, "--rows 0 shows all"); err != nil {
 		return err
@@ -174,150 +173,6 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 		fmt.Fprintf(w, "%d solutions carry validity warnings (lift-off or bump-stop contact); see --format json.\n", warned)
 	}
 	return nil
-}
-
-// frontColumns are the SI columns of one solution, shared by CSV and JSON.
-func frontColumns(f *pb.Front) []string {
-	cols := []string{"index"}
-	cols = append(cols, f.GetGeneNames()...)
-	for _, o := range f.GetObjectives() {
-		cols = append(cols, objectiveQuantity(o.GetKind()).column)
-	}
-	for _, h := range []string{"front_bump", "front_rebound", "rear_bump", "rear_rebound"} {
-		cols = append(cols, h+"_slope_n_s_per_m")
-	}
-	for _, c := range f.GetConstraints() {
-		cols = append(cols, constraintQuantity(c.GetKind()).column+"_violation")
-	}
-	return append(cols, "feasible", "balanced")
-}
-
-// frontRow is one solution's values in the order of frontColumns.
-func frontRow(f *pb.Front, s *pb.Solution, balanced bool) []any {
-	row := []any{int(s.GetIndex())}
-	for _, g := range s.GetGenes() {
-		row = append(row, g)
-	}
-	for _, o := range s.GetObjectives() {
-		row = append(row, o)
-	}
-	sl, _ := slopes(s)
-	for _, v := range sl {
-		row = append(row, v)
-	}
-	for k := range f.GetConstraints() {
-		v := 0.0
-		if k < len(s.GetViolations()) {
-			v = s.GetViolations()[k]
-		}
-		row = append(row, v)
-	}
-	return append(row, s.GetFeasible(), balanced)
-}
-
-func writeFrontCSV(w io.Writer, fd *frontData) error {
-	f := fd.front
-	cw := csv.NewWriter(w)
-	if err := cw.Write(frontColumns(f)); err != nil {
-		return err
-	}
-	bal := balancedIndex(f.GetSolutions())
-	for i, s := range f.GetSolutions() {
-		row := frontRow(f, s, i == bal)
-		cells := make([]string, len(row))
-		for k, v := range row {
-			switch v := v.(type) {
-			case float64:
-				cells[k] = siNum(v)
-			default:
-				cells[k] = fmt.Sprint(v)
-			}
-		}
-		if err := cw.Write(cells); err != nil {
-			return err
-		}
-	}
-	cw.Flush()
-	return cw.Error()
-}
-
-// record is a JSON object whose keys keep their order.
-type record struct {
-	keys   []string
-	values []any
-}
-
-func (r record) MarshalJSON() ([]byte, error) {
-	var b bytes.Buffer
-	b.WriteByte('{')
-	for i, k := range r.keys {
-		if i > 0 {
-			b.WriteByte(',')
-		}
-		kb, _ := json.Marshal(k)
-		vb, err := json.Marshal(r.values[i])
-		if err != nil {
-			return nil, fmt.Errorf("field %s: %w", k, err)
-		}
-		b.Write(kb)
-		b.WriteByte(':')
-		b.Write(vb)
-	}
-	b.WriteByte('}')
-	return b.Bytes(), nil
-}
-
-func writeFrontJSON(w io.Writer, fd *frontData) error {
-	f, j := fd.front, fd.job
-	cols := frontColumns(f)
-	bal := balancedIndex(f.GetSolutions())
-	rows := make([]record, len(f.GetSolutions()))
-	for i, s := range f.GetSolutions() {
-		r := record{keys: cols, values: frontRow(f, s, i == bal)}
-		if ws := s.GetWarnings(); len(ws) > 0 {
-			r.keys = append(append([]string(nil), cols...), "warnings")
-			r.values = append(r.values, ws)
-		}
-		rows[i] = r
-	}
-	var objs, cons []record
-	for _, o := range f.GetObjectives() {
-		q := objectiveQuantity(o.GetKind())
-		objs = append(objs, record{keys: []string{"column", "kind", "aggregation"},
-			values: []any{q.column, o.GetKind().String(), o.GetAggregation().String()}})
-	}
-	for _, c := range f.GetConstraints() {
-		cons = append(cons, record{keys: []string{"kind", "limit"}, values: []any{c.GetKind().String(), c.GetLimit()}})
-	}
-	balIndex := -1
-	if bal >= 0 {
-		balIndex = int(f.GetSolutions()[bal].GetIndex())
-	}
-	out := record{
-		keys: []string{"job", "display_name", "state", "seed", "partial", "total_size", "gene_names", "objectives", "constraints", "balanced_index", "solutions"},
-		values: []any{f.GetJob(), j.GetDisplayName(), stateName(j.GetState()), j.GetSeed(), f.GetPartial(), int(f.GetTotalSize()),
-			nonNil(f.GetGeneNames()), nonNilRecords(objs), nonNilRecords(cons), balIndex, nonNilRecords(rows)},
-	}
-	b, err := json.MarshalIndent(out, "", "  ")
-	if err != nil {
-		return err
-	}
-	_, err = fmt.Fprintf(w, "%s\n", b)
-	return err
-}
-
-func nonNil(s []string) []string {
-	if s == nil {
-		return []string{}
-	}
-	return s
-}
-
-func nonNilRecords(r []record) []record {
-	if r == nil {
-		return []record{}
-	}
-	return r
 }
 
 // solutionColumns are the leading columns of a table of front solutions:

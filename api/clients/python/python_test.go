@@ -1,22 +1,21 @@
 // Package pyclient holds the tests of the Python client script
-// dampfront_front_csv.py: they run it with Debian's /usr/bin/python3
+// dampfront_front.py: they run it with Debian's /usr/bin/python3
 // against a server on 127.0.0.1.
 package pyclient
 
 import (
 	"bytes"
 	"context"
-	"encoding/csv"
 	"errors"
 	"fmt"
 	"io/fs"
 	"log/slog"
+	"math"
 	"math/rand/v2"
 	"net"
 	"os"
 	"os/exec"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -29,6 +28,7 @@ import (
 	"sigs.k8s.io/yaml"
 
 	"dampfront/api"
+	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
 )
@@ -154,12 +154,12 @@ func runJob(t *testing.T, ctx context.Context, c pb.DampfrontServiceClient, spec
 	}
 }
 
-// script runs dampfront_front_csv.py with args and extra environment
+// script runs dampfront_front.py with args and extra environment
 // "K=V" pairs; it returns the exit code and standard error.
 func script(t *testing.T, env []string, args ...string) (int, string) {
 	t.Helper()
 	ctx := testContext(t)
-	cmd := exec.CommandContext(ctx, python, append([]string{"dampfront_front_csv.py"}, args...)...)
+	cmd := exec.CommandContext(ctx, python, append([]string{"dampfront_front.py"}, args...)...)
 	for _, kv := range os.Environ() {
 		if !strings.HasPrefix(kv, "DAMPFRONT_") && !strings.HasPrefix(kv, "PYTHON") {
 			cmd.Env = append(cmd.Env, kv)
@@ -177,14 +177,14 @@ func script(t *testing.T, env []string, args ...string) (int, string) {
 	case errors.As(err, &ee) && ctx.Err() == nil:
 		return ee.ExitCode(), stderr.String()
 	}
-	t.Fatalf("python3 dampfront_front_csv.py %s: %v\n%s", strings.Join(args, " "), err, stderr.String())
+	t.Fatalf("python3 dampfront_front.py %s: %v\n%s", strings.Join(args, " "), err, stderr.String())
 	return 0, ""
 }
 
 // wholeFront reads a job's front through the Go client.
 func wholeFront(t *testing.T, ctx context.Context, c pb.DampfrontServiceClient, name string) *pb.Front {
 	t.Helper()
-	req := &pb.GetFrontRequest{Job: name, PageSize: 7, View: pb.SolutionView_SOLUTION_VIEW_BASIC}
+	req := &pb.GetFrontRequest{Job: name, PageSize: 7, View: pb.SolutionView_SOLUTION_VIEW_FULL}
 	var front *pb.Front
 	for {
 		res, err := c.GetFront(ctx, req)
@@ -204,9 +204,8 @@ func wholeFront(t *testing.T, ctx context.Context, c pb.DampfrontServiceClient, 
 
 // TestFrontCSV runs the script against a server with two finished jobs
 // of different labels: it picks the one with the label and writes its
-// front, every float the same double the Go client reads (Python's
-// repr() is the shortest text that reads back to the same double, as is
-// strconv's 'g' with precision -1).
+// front byte for byte as package frontfile (the command line's and the
+// page's writer) writes the front the Go client reads.
 func TestFrontCSV(t *testing.T) {
 	t.Parallel()
 	needPython(t)
@@ -218,6 +217,10 @@ func TestFrontCSV(t *testing.T) {
 		t.Fatalf("jobs ended %v and %v", want.GetState(), other.GetState())
 	}
 	front := wholeFront(t, ctx, c, want.GetName())
+	var wantCSV bytes.Buffer
+	if err := frontfile.WriteCSV(&wantCSV, front); err != nil {
+		t.Fatal(err)
+	}
 
 	out := filepath.Join(t.TempDir(), "front.csv")
 	code, stderr := script(t, nil, "--addr", addr, "--label", "suite=python", "-o", out)
@@ -231,37 +234,8 @@ func TestFrontCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	rows, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
-	genes := front.GetGeneNames()
-	wantHeader := append(append([]string{"index"}, genes...), "grip_rel", "platform_m")
-	for i := range front.GetConstraints() {
-		wantHeader = append(wantHeader, fmt.Sprintf("violation_%d", i))
-	}
-	wantHeader = append(wantHeader, "feasible")
-	if len(rows) == 0 || strings.Join(rows[0], ",") != strings.Join(wantHeader, ",") {
-		t.Fatalf("header %v, want %v", rows[0], wantHeader)
-	}
-	if len(rows)-1 != len(front.GetSolutions()) || len(rows) < 2 {
-		t.Fatalf("%d CSV rows for %d solutions", len(rows)-1, len(front.GetSolutions()))
-	}
-	for i, s := range front.GetSolutions() {
-		row := rows[i+1]
-		if row[0] != strconv.Itoa(int(s.GetIndex())) {
-			t.Errorf("row %d has index %s, want %d", i, row[0], s.GetIndex())
-		}
-		values := append(append(append([]float64(nil), s.GetGenes()...), s.GetObjectives()...), s.GetViolations()...)
-		for k, v := range values {
-			got, err := strconv.ParseFloat(row[1+k], 64)
-			if err != nil || got != v {
-				t.Errorf("row %d column %s: %q, want %v", i, wantHeader[1+k], row[1+k], v)
-			}
-		}
-		if row[len(row)-1] != strconv.FormatBool(s.GetFeasible()) {
-			t.Errorf("row %d feasible %q, want %v", i, row[len(row)-1], s.GetFeasible())
-		}
+	if len(front.GetSolutions()) < 2 || !bytes.Equal(b, wantCSV.Bytes()) {
+		t.Errorf("the script's CSV differs from frontfile.WriteCSV of the same %d solutions:\n%s\nwant:\n%s", len(front.GetSolutions()), b, wantCSV.Bytes())
 	}
 
 	code, stderr = script(t, nil, "--addr", addr, "--label", "suite=none")
@@ -337,6 +311,57 @@ func TestGeneratedCodeIsCurrent(t *testing.T) {
 			t.Errorf("%s is committed but no longer generated", name)
 		case !bytes.Equal(a, b):
 			t.Errorf("%s differs from what generate.sh makes; run api/clients/python/generate.sh", name)
+		}
+	}
+}
+
+// TestNumberMatchesGo holds the script's number() to Go's
+// strconv.FormatFloat(x, 'g', -1, 64), the reference the command line's
+// files are written with: on edge values (the switch to exponents at
+// 1e-4 and 1e6, subnormals, signed zero, infinities) and on 20,000
+// random bit patterns and 20,000 random magnitudes from 1e-20 to 1e20.
+// The text must be equal, character for character.
+func TestNumberMatchesGo(t *testing.T) {
+	t.Parallel()
+	needPython(t)
+	r := rand.New(rand.NewPCG(1, 2))
+	vals := []float64{0, math.Copysign(0, -1), 1, -1, 0.0001, 0.000099999, 1e-5, 123456, 999999.9999, 1e6, 1234567, 1e21,
+		5e-324, math.SmallestNonzeroFloat64 * 3, math.MaxFloat64, -math.MaxFloat64, math.Inf(1), math.Inf(-1), 1.0 / 3, 0.1}
+	for i := 0; i < 20000; i++ {
+		if v := math.Float64frombits(r.Uint64()); !math.IsNaN(v) {
+			vals = append(vals, v)
+		}
+		vals = append(vals, r.Float64()*math.Pow(10, float64(r.IntN(40)-20)))
+	}
+	var in, want bytes.Buffer
+	for _, v := range vals {
+		fmt.Fprintln(&in, math.Float64bits(v))
+		fmt.Fprintln(&want, frontfile.Number(v))
+	}
+	const prog = `import importlib.util, struct, sys
+spec = importlib.util.spec_from_file_location("m", "dampfront_front.py")
+m = importlib.util.module_from_spec(spec)
+spec.loader.exec_module(m)
+for line in sys.stdin:
+    print(m.number(struct.unpack("<d", struct.pack("<Q", int(line)))[0]))
+`
+	cmd := exec.CommandContext(testContext(t), python, "-c", prog)
+	cmd.Env = append(os.Environ(), "PYTHONDONTWRITEBYTECODE=1")
+	cmd.Stdin = &in
+	got, err := cmd.Output()
+	if err != nil {
+		t.Fatal(err)
+	}
+	g, w := strings.Split(string(got), "\n"), strings.Split(want.String(), "\n")
+	if len(g) != len(w) {
+		t.Fatalf("%d lines from python, want %d", len(g), len(w))
+	}
+	bad := 0
+	for i := range w {
+		if g[i] != w[i] {
+			if bad++; bad <= 5 {
+				t.Errorf("%v: python writes %q, Go %q", vals[i], g[i], w[i])
+			}
 		}
 	}
 }

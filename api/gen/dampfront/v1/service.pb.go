@@ -582,7 +582,9 @@ type GetFrontRequest struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// "jobs/{job_id}" (a bare job_id is accepted too).
 	Job string `protobuf:"bytes,1,opt,name=job,proto3" json:"job,omitempty"`
-	// Largest number of solutions returned; 0 means 50, more than 1000 means 1000.
+	// Largest number of solutions returned; 0 means 50, more than 1000 means
+	// 1000. A page also ends before its solutions pass 2 MiB encoded, so a
+	// page may hold fewer; follow next_page_token to the end.
 	PageSize int32 `protobuf:"varint,2,opt,name=page_size,json=pageSize,proto3" json:"page_size,omitempty"`
 	// next_page_token of the previous page of the same job.
 	PageToken string `protobuf:"bytes,3,opt,name=page_token,json=pageToken,proto3" json:"page_token,omitempty"`

@@ -57,7 +57,8 @@ type DampfrontServiceClient interface {
 	// Streams a job's progress as it changes, then the job in its terminal
 	// state, then ends.
 	WatchJob(ctx context.Context, in *WatchJobRequest, opts ...grpc.CallOption) (grpc.ServerStreamingClient[WatchJobResponse], error)
-	// Pages through the front of a finished job.
+	// Pages through the front of a finished job, or the front so far of a
+	// running one (partial, as of its last checkpoint).
 	GetFront(ctx context.Context, in *GetFrontRequest, opts ...grpc.CallOption) (*GetFrontResponse, error)
 	// Evaluates setups synchronously on a spec's car and road cases.
 	EvaluateSetups(ctx context.Context, in *EvaluateSetupsRequest, opts ...grpc.CallOption) (*EvaluateSetupsResponse, error)
@@ -217,7 +218,8 @@ type DampfrontServiceServer interface {
 	// Streams a job's progress as it changes, then the job in its terminal
 	// state, then ends.
 	WatchJob(*WatchJobRequest, grpc.ServerStreamingServer[WatchJobResponse]) error
-	// Pages through the front of a finished job.
+	// Pages through the front of a finished job, or the front so far of a
+	// running one (partial, as of its last checkpoint).
 	GetFront(context.Context, *GetFrontRequest) (*GetFrontResponse, error)
 	// Evaluates setups synchronously on a spec's car and road cases.
 	EvaluateSetups(context.Context, *EvaluateSetupsRequest) (*EvaluateSetupsResponse, error)

@@ -1,0 +1,114 @@
+// Package frontfile writes a job's Pareto front in the one file schema
+// that the command line (front --format csv|json), the job page's
+// downloads and the Python client all produce: one row per solution, SI
+// values with the unit in each column's name, floats as the shortest
+// text that reads back to the same double. README.md ("The front as a
+// file") lists every column with its unit; api/clients/python writes the
+// same schema, and a test holds the three to it byte for byte.
+package frontfile
+
+import (
+	"strconv"
+	"strings"
+
+	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/api/plot"
+)
+
+// objectiveColumns names each objective's column, its SI unit suffixed.
+var objectiveColumns = map[pb.ObjectiveKind]string{
+	pb.ObjectiveKind_OBJECTIVE_KIND_GRIP:           "grip_rel",
+	pb.ObjectiveKind_OBJECTIVE_KIND_PLATFORM:       "platform_m",
+	pb.ObjectiveKind_OBJECTIVE_KIND_FRONT_PLATFORM: "front_platform_m",
+	pb.ObjectiveKind_OBJECTIVE_KIND_REAR_PLATFORM:  "rear_platform_m",
+	pb.ObjectiveKind_OBJECTIVE_KIND_PITCH:          "pitch_rad",
+	pb.ObjectiveKind_OBJECTIVE_KIND_ROLL:           "roll_rad",
+	pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:    "heave_accel_m_per_s2",
+}
+
+// ObjectiveColumn is the column of an objective of kind k; a kind this
+// version does not know gets its enum name in lower case.
+func ObjectiveColumn(k pb.ObjectiveKind) string {
+	if c, ok := objectiveColumns[k]; ok {
+		return c
+	}
+	return strings.ToLower(strings.TrimPrefix(k.String(), "OBJECTIVE_KIND_"))
+}
+
+// ConstraintColumn is the column of a constraint's violation,
+// max(0, worst / limit - 1), dimensionless: "lift_off_violation".
+func ConstraintColumn(k pb.ConstraintKind) string {
+	return strings.ToLower(strings.TrimPrefix(k.String(), "CONSTRAINT_KIND_")) + "_violation"
+}
+
+// slopeColumns are the low-speed slopes at the damper (N s/m) of the
+// front-left and rear-left corners, one corner per axle.
+var slopeColumns = []struct {
+	corner        pb.CornerPosition
+	bump, rebound string
+}{
+	{pb.CornerPosition_CORNER_POSITION_FRONT_LEFT, "front_bump_slope_n_s_per_m", "front_rebound_slope_n_s_per_m"},
+	{pb.CornerPosition_CORNER_POSITION_REAR_LEFT, "rear_bump_slope_n_s_per_m", "rear_rebound_slope_n_s_per_m"},
+}
+
+// Columns are the columns of front's rows, in order: index, the genes,
+// the objectives, the four slopes, each constraint's violation, feasible
+// and balanced.
+func Columns(f *pb.Front) []string {
+	cols := []string{"index"}
+	cols = append(cols, f.GetGeneNames()...)
+	for _, o := range f.GetObjectives() {
+		cols = append(cols, ObjectiveColumn(o.GetKind()))
+	}
+	for _, s := range slopeColumns {
+		cols = append(cols, s.bump, s.rebound)
+	}
+	for _, c := range f.GetConstraints() {
+		cols = append(cols, ConstraintColumn(c.GetKind()))
+	}
+	return append(cols, "feasible", "balanced")
+}
+
+// Balanced is the position in f's solutions of the balanced point
+// (plot.Balanced), -1 for an empty front or objectives it cannot scale.
+func Balanced(f *pb.Front) int {
+	k, err := plot.BalancedSolution(f.GetSolutions())
+	if err != nil {
+		return -1
+	}
+	return k
+}
+
+// row is one solution's values under Columns: int for the index, float64
+// for numbers, nil for a slope the solution does not carry (the basic
+// view has no curves), bool for the flags.
+func row(f *pb.Front, s *pb.Solution, balanced bool) []any {
+	out := []any{int(s.GetIndex())}
+	for _, g := range s.GetGenes() {
+		out = append(out, g)
+	}
+	for _, o := range s.GetObjectives() {
+		out = append(out, o)
+	}
+	for _, c := range slopeColumns {
+		var bump, rebound any
+		for _, dc := range s.GetDamperCurves() {
+			if dc.GetCorner() == c.corner {
+				bump, rebound = dc.GetBumpSlopeNSPerM(), dc.GetReboundSlopeNSPerM()
+			}
+		}
+		out = append(out, bump, rebound)
+	}
+	for k := range f.GetConstraints() {
+		v := 0.0
+		if k < len(s.GetViolations()) {
+			v = s.GetViolations()[k]
+		}
+		out = append(out, v)
+	}
+	return append(out, s.GetFeasible(), balanced)
+}
+
+// Number is the text of an SI value in CSV: the shortest that reads back
+// to the same float64 (strconv's 'g' with precision -1).
+func Number(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }

@@ -1,0 +1,3 @@
+-- requeues counts the fresh slices queued for a job after one of its
+-- slices ran out of attempts (see Config.MaxRequeues).
+ALTER TABLE dampfront_job ADD COLUMN requeues BIGINT NOT NULL DEFAULT 0;
