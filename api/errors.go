@@ -110,16 +110,11 @@ func joinPath(prefix, path string) string {
 
 // String lists the problems: "field: reason; field: reason".
 func (p problems) String() string {
-	var b strings.Builder
+	parts := make([]string, len(p))
 	for i, q := range p {
-		if i > 0 {
-			b.WriteString("; ")
-		}
-		b.WriteString(q.Field)
-		b.WriteString(": ")
-		b.WriteString(q.Reason)
+		parts[i] = q.Field + ": " + q.Reason
 	}
-	return b.String()
+	return strings.Join(parts, "; ")
 }
 
 // validationError is the problems as a *model.ValidationError, for
