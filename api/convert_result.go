@@ -42,6 +42,7 @@ func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
 		Iterations:         int32(m.Iterations),
 		Warnings:           c.Warnings,
 		Modes:              modesToProto(c.Modes),
+		AtSpeed:            operatingPointToProto(&m.AtSpeed),
 	}
 	for i := 0; i < 4; i++ {
 		out.Corners = append(out.Corners, &pb.CornerMetrics{
@@ -56,9 +57,30 @@ func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
 			EquivalentDampingNSPerM: m.EquivalentDamping[i],
 			MeanDamperForceN:        m.MeanDamperForce[i],
 			TravelShiftM:            m.TravelShift[i],
+			CompressionAtSpeedM:     m.AtSpeed.Compression[i],
+			BumpStopGapAtSpeedM:     m.AtSpeed.BumpStopGap[i],
 		})
 	}
 	return out
+}
+
+// operatingPointToProto converts the car at a case's speed (the per-corner
+// figures go to CornerMetrics).
+func operatingPointToProto(op *model.OperatingPoint) *pb.OperatingPoint {
+	return &pb.OperatingPoint{
+		FrontRideHeightM:             op.RideHeight[model.Front],
+		RearRideHeightM:              op.RideHeight[model.Rear],
+		FrontRideHeightChangeM:       op.RideHeightChange[model.Front],
+		RearRideHeightChangeM:        op.RideHeightChange[model.Rear],
+		PitchRad:                     op.Pitch,
+		FrontDownforceN:              op.Downforce[model.Front],
+		RearDownforceN:               op.Downforce[model.Rear],
+		FrontFrontAeroStiffnessNPerM: op.AeroStiffness[model.Front][model.Front],
+		FrontRearAeroStiffnessNPerM:  op.AeroStiffness[model.Front][model.Rear],
+		RearFrontAeroStiffnessNPerM:  op.AeroStiffness[model.Rear][model.Front],
+		RearRearAeroStiffnessNPerM:   op.AeroStiffness[model.Rear][model.Rear],
+		NewtonIterations:             int32(op.Iterations),
+	}
 }
 
 func modesToProto(modes []model.Mode) []*pb.Mode {
