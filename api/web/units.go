@@ -65,8 +65,11 @@ func objectiveQuantity(o *pb.Objective) quantity {
 		name := strings.ToLower(strings.TrimPrefix(o.GetKind().String(), "OBJECTIVE_KIND_"))
 		q = quantity{strings.ReplaceAll(name, "_", " "), "SI", 1, 4, name}
 	}
-	if o.GetAggregation() == pb.Aggregation_AGGREGATION_WORST {
+	switch o.GetAggregation() {
+	case pb.Aggregation_AGGREGATION_WORST:
 		q.label += ", worst"
+	case pb.Aggregation_AGGREGATION_NORMALISED:
+		q.label += ", normalised"
 	}
 	return q
 }
@@ -93,3 +96,19 @@ var qSlope = quantity{"slope", "N s/mm", 1 / nsPerMmSI, 2, "slope_n_s_per_m"}
 // siText formats an SI value for CSV: the shortest text that reads back
 // to the same float64.
 func siText(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// constraintQuantity is how a constraint's limit and metric are shown.
+func constraintQuantity(k pb.ConstraintKind) quantity {
+	switch k {
+	case pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:
+		return quantity{"lift-off probability", "%", percent, 3, "lift_off_probability"}
+	case pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP:
+		return quantity{"bump-stop probability", "%", percent, 3, "bump_stop_probability"}
+	case pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:
+		return quantity{"travel sd", "mm", mmPerM, 2, "travel_sd_m"}
+	case pb.ConstraintKind_CONSTRAINT_KIND_JACKING:
+		return quantity{"ride-height shift", "mm", mmPerM, 2, "ride_height_shift_m"}
+	}
+	name := strings.ToLower(strings.TrimPrefix(k.String(), "CONSTRAINT_KIND_"))
+	return quantity{name, "", 1, 4, name}
+}
