@@ -221,6 +221,7 @@ func ValidateProblem(d DesignSpace, objectives []Objective, constraints []Constr
 		f := fmt.Sprintf("constraints[%d]", i)
 		if _, ok := constraintNames[c.Kind]; !ok {
 			p.add(f+".kind", "unknown constraint %d", int(c.Kind))
+			p.positive(f+".limit", c.Limit) // its range depends on the kind
 			continue
 		}
 		p.in(f+".limit", c.Limit, c.Kind.limitName())
