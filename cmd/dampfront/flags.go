@@ -22,14 +22,9 @@ type flagSet struct {
 	out      io.Writer
 }
 
-// synopses holds the synopsis of each subcommand whose flags were made,
-// for the usage line of a usage error.
-var synopses = map[string]string{}
-
 // newFlagSet makes the flags of subcommand name; synopsis follows
 // "dampfront name", about is the paragraph under it.
 func newFlagSet(e *env, name, synopsis, about string) *flagSet {
-	synopses[name] = synopsis
 	fs := &flagSet{FlagSet: flag.NewFlagSet(name, flag.ContinueOnError), name: name, synopsis: synopsis, about: about, out: e.stdout}
 	fs.SetOutput(io.Discard) // parse errors are reported by finish, usage by printUsage
 	return fs
