@@ -50,10 +50,11 @@ func ModalAnalysis(v *Vehicle, s *Setup, speed float64) ([]Mode, error) {
 	for i := range c {
 		c[i] = (d[i].cb + d[i].cr) / 2
 	}
-	base := newSystem(v, speed)
-	if err := base.checkStable(fmt.Sprintf("speed %g m/s", speed)); err != nil {
+	op, err := v.operatingPoint(speed)
+	if err != nil {
 		return nil, err
 	}
+	base := newSystem(v, &op.AeroStiffness)
 	sys := base.withDamping(c)
 	return modes(&sys)
 }
