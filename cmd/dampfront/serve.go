@@ -145,36 +145,16 @@ type limitFlags struct {
 
 func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 	l := &limitFlags{}
-	jobWork, err := envInt(e, fs.name, "DAMPFRONT_MAX_JOB_WORK", api.DefaultMaxJobWork)
-	if err != nil {
-		return nil, err
+	d := &envDefaults{e: e, cmd: fs.name}
+	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(d.int("DAMPFRONT_MAX_JOB_WORK", api.DefaultMaxJobWork)), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
+	fs.IntVar(&l.maxGridPoints, "max-grid-points", d.int("DAMPFRONT_MAX_GRID_POINTS", api.DefaultMaxGridPoints), "finest frequency grid of a spec, in points ($DAMPFRONT_MAX_GRID_POINTS)")
+	fs.IntVar(&l.maxSyncWork, "max-sync-work", d.int("DAMPFRONT_MAX_SYNC_WORK", api.DefaultMaxSyncWork), "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
+	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", d.int("DAMPFRONT_MAX_CONCURRENT_EVALUATIONS", 0), "EvaluateSetups, CompareSetup and VerifySetup calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
+	fs.IntVar(&l.maxMessage, "max-message-bytes", d.int("DAMPFRONT_MAX_MESSAGE_BYTES", api.DefaultMaxMessageBytes), "largest gRPC request or response ($DAMPFRONT_MAX_MESSAGE_BYTES)")
+	fs.DurationVar(&l.rpcTimeout, "rpc-timeout", d.duration("DAMPFRONT_RPC_TIMEOUT", api.DefaultRPCTimeout), "longest a call other than watch may run on the server, whatever the client's deadline; 0 for no limit ($DAMPFRONT_RPC_TIMEOUT)")
+	if d.err != nil {
+		return nil, d.err
 	}
-	gridPoints, err := envInt(e, fs.name, "DAMPFRONT_MAX_GRID_POINTS", api.DefaultMaxGridPoints)
-	if err != nil {
-		return nil, err
-	}
-	syncWork, err := envInt(e, fs.name, "DAMPFRONT_MAX_SYNC_WORK", api.DefaultMaxSyncWork)
-	if err != nil {
-		return nil, err
-	}
-	evals, err := envInt(e, fs.name, "DAMPFRONT_MAX_CONCURRENT_EVALUATIONS", 0)
-	if err != nil {
-		return nil, err
-	}
-	msg, err := envInt(e, fs.name, "DAMPFRONT_MAX_MESSAGE_BYTES", api.DefaultMaxMessageBytes)
-	if err != nil {
-		return nil, err
-	}
-	rpcTimeout, err := envDuration(e, fs.name, "DAMPFRONT_RPC_TIMEOUT", api.DefaultRPCTimeout)
-	if err != nil {
-		return nil, err
-	}
-	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(jobWork), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
-	fs.IntVar(&l.maxGridPoints, "max-grid-points", gridPoints, "finest frequency grid of a spec, in points ($DAMPFRONT_MAX_GRID_POINTS)")
-	fs.IntVar(&l.maxSyncWork, "max-sync-work", syncWork, "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
-	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", evals, "EvaluateSetups, CompareSetup and VerifySetup calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
-	fs.IntVar(&l.maxMessage, "max-message-bytes", msg, "largest gRPC request or response ($DAMPFRONT_MAX_MESSAGE_BYTES)")
-	fs.DurationVar(&l.rpcTimeout, "rpc-timeout", rpcTimeout, "longest a call other than watch may run on the server, whatever the client's deadline; 0 for no limit ($DAMPFRONT_RPC_TIMEOUT)")
 	return l, nil
 }
 
