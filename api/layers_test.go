@@ -15,6 +15,7 @@ var layerRules = []struct {
 	forbidden []string // import path prefixes
 }{
 	{"dampfront/model", []string{"dampfront/", "google.golang.org/protobuf", "google.golang.org/grpc"}},
+	{"dampfront/model/tradeunit", []string{"dampfront/optimizer", "dampfront/jobs", "dampfront/api", "dampfront/cmd", "google.golang.org/protobuf", "google.golang.org/grpc"}},
 	{"dampfront/optimizer", []string{"dampfront/", "google.golang.org/protobuf", "google.golang.org/grpc"}},
 	{"dampfront/jobs", []string{"dampfront/optimizer", "dampfront/jobs/study", "dampfront/api", "dampfront/cmd", "google.golang.org/protobuf", "google.golang.org/grpc"}},
 	{"dampfront/jobs/study", []string{"dampfront/api", "dampfront/cmd", "google.golang.org/protobuf", "google.golang.org/grpc"}},
