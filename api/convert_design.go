@@ -89,6 +89,7 @@ var (
 		pb.Aggregation_AGGREGATION_UNSPECIFIED: model.AggregateMeanSquare,
 		pb.Aggregation_AGGREGATION_MEAN_SQUARE: model.AggregateMeanSquare,
 		pb.Aggregation_AGGREGATION_WORST:       model.AggregateWorst,
+		pb.Aggregation_AGGREGATION_NORMALISED:  model.AggregateNormalised,
 	}
 	constraintKinds = map[pb.ConstraintKind]model.ConstraintKind{
 		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:  model.ConstraintLiftOff,
@@ -126,10 +127,23 @@ func objectiveToProto(o model.Objective) *pb.Objective {
 		}
 	}
 	out.Aggregation = pb.Aggregation_AGGREGATION_MEAN_SQUARE
-	if o.Aggregation == model.AggregateWorst {
+	switch o.Aggregation {
+	case model.AggregateWorst:
 		out.Aggregation = pb.Aggregation_AGGREGATION_WORST
+	case model.AggregateNormalised:
+		out.Aggregation = pb.Aggregation_AGGREGATION_NORMALISED
 	}
 	return out
+}
+
+// constraintKindToProto is the API's kind of a model's constraint kind.
+func constraintKindToProto(k model.ConstraintKind) pb.ConstraintKind {
+	for pk, mk := range constraintKinds {
+		if mk == k {
+			return pk
+		}
+	}
+	return pb.ConstraintKind_CONSTRAINT_KIND_UNSPECIFIED
 }
 
 // constraintsFromProto converts the constraints under path
