@@ -73,9 +73,8 @@ func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.S
 
 // GetJob returns a job, with its spec unless the basic view is asked for.
 func (s *Server) GetJob(ctx context.Context, req *pb.GetJobRequest) (*pb.GetJobResponse, error) {
-	var p problems
-	id := parseJobName(req.GetName(), "name", &p)
-	if err := p.err(); err != nil {
+	id, err := jobNameArgument(req.GetName())
+	if err != nil {
 		return nil, err
 	}
 	j, err := s.engine.Get(ctx, id)
@@ -129,9 +128,8 @@ func (s *Server) ListJobs(ctx context.Context, req *pb.ListJobsRequest) (*pb.Lis
 
 // CancelJob requests cancellation of a queued or running job.
 func (s *Server) CancelJob(ctx context.Context, req *pb.CancelJobRequest) (*pb.CancelJobResponse, error) {
-	var p problems
-	id := parseJobName(req.GetName(), "name", &p)
-	if err := p.err(); err != nil {
+	id, err := jobNameArgument(req.GetName())
+	if err != nil {
 		return nil, err
 	}
 	j, err := s.engine.Cancel(ctx, id)
@@ -150,9 +148,8 @@ func (s *Server) CancelJob(ctx context.Context, req *pb.CancelJobRequest) (*pb.C
 // once. When the server shuts down the stream ends with Unavailable, and
 // the client watches again elsewhere or later.
 func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingServer[pb.WatchJobResponse]) error {
-	var p problems
-	id := parseJobName(req.GetName(), "name", &p)
-	if err := p.err(); err != nil {
+	id, err := jobNameArgument(req.GetName())
+	if err != nil {
 		return err
 	}
 	ctx, cancel := context.WithCancel(stream.Context())
@@ -200,4 +197,11 @@ func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingSe
 // progressChanged reports whether b is news after a.
 func progressChanged(a, b *jobs.Progress) bool {
 	return a.Generation != b.Generation || a.Evaluations != b.Evaluations || !a.UpdatedAt.Equal(b.UpdatedAt)
+}
+
+// jobNameArgument parses a request's job name (field "name").
+func jobNameArgument(name string) (string, error) {
+	var p problems
+	id := parseJobName(name, "name", &p)
+	return id, p.err()
 }
