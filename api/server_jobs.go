@@ -61,12 +61,9 @@ func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.S
 		return nil, toStatus(err, nil)
 	}
 	j, err := s.engine.Submit(ctx, &jobs.SubmitParams{Spec: spec, Labels: c.msg.GetLabels()})
+	job, err := engineJob(j, err, submitPaths, true)
 	if err != nil {
-		return nil, toStatus(err, submitPaths)
-	}
-	job, err := jobToProto(j, true)
-	if err != nil {
-		return nil, toStatus(err, nil)
+		return nil, err
 	}
 	return &pb.SubmitJobResponse{Job: job}, nil
 }
@@ -78,13 +75,10 @@ func (s *Server) GetJob(ctx context.Context, req *pb.GetJobRequest) (*pb.GetJobR
 		return nil, err
 	}
 	j, err := s.engine.Get(ctx, id)
-	if err != nil {
-		return nil, toStatus(err, nil)
-	}
 	full := req.GetView() != pb.JobView_JOB_VIEW_BASIC
-	job, err := jobToProto(j, full)
+	job, err := engineJob(j, err, nil, full)
 	if err != nil {
-		return nil, toStatus(err, nil)
+		return nil, err
 	}
 	if err := s.markInfeasible(ctx, job); err != nil {
 		return nil, toStatus(err, nil)
@@ -133,12 +127,9 @@ func (s *Server) CancelJob(ctx context.Context, req *pb.CancelJobRequest) (*pb.C
 		return nil, err
 	}
 	j, err := s.engine.Cancel(ctx, id)
+	job, err := engineJob(j, err, nil, false)
 	if err != nil {
-		return nil, toStatus(err, nil)
-	}
-	job, err := jobToProto(j, false)
-	if err != nil {
-		return nil, toStatus(err, nil)
+		return nil, err
 	}
 	return &pb.CancelJobResponse{Job: job}, nil
 }
@@ -204,4 +195,17 @@ func jobNameArgument(name string) (string, error) {
 	var p problems
 	id := parseJobName(name, "name", &p)
 	return id, p.err()
+}
+
+// engineJob is the engine's answer j, err as a reply's job: err as a
+// status (its field paths mapped by paths), j in the full or basic view.
+func engineJob(j *jobs.Job, err error, paths pathMapper, full bool) (*pb.Job, error) {
+	if err != nil {
+		return nil, toStatus(err, paths)
+	}
+	job, err := jobToProto(j, full)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	return job, nil
 }

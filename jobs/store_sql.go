@@ -281,12 +281,7 @@ func (s *sqlStore) JobList(ctx context.Context, p *JobListParams) (*JobListResul
 func (s *sqlStore) JobCancelRequest(ctx context.Context, p *JobCancelRequestParams) (*Job, error) {
 	var v violations
 	checkID(&v, "id", p.ID)
-	checkNow(&v, p.Now)
-	if err := v.err(); err != nil {
-		return nil, err
-	}
-	now := timeToDB(p.Now)
-	return s.jobTx(ctx, p.ID, func(tx *sqlStore, j *Job) error {
+	return s.jobTx(ctx, &v, p.ID, p.Now, func(tx *sqlStore, j *Job, now int64) error {
 		var err error
 		switch {
 		case j.State.Terminal():
@@ -305,12 +300,7 @@ func (s *sqlStore) JobStart(ctx context.Context, p *JobStartParams) (*Job, error
 	var v violations
 	checkID(&v, "id", p.ID)
 	checkID(&v, "lease", p.Lease)
-	checkNow(&v, p.Now)
-	if err := v.err(); err != nil {
-		return nil, err
-	}
-	now := timeToDB(p.Now)
-	return s.jobTx(ctx, p.ID, func(tx *sqlStore, j *Job) error {
+	return s.jobTx(ctx, &v, p.ID, p.Now, func(tx *sqlStore, j *Job, now int64) error {
 		if j.State.Terminal() {
 			return &PreconditionError{ID: j.ID, State: j.State, Reason: "a finished job cannot start another slice"}
 		}
@@ -321,16 +311,22 @@ func (s *sqlStore) JobStart(ctx context.Context, p *JobStartParams) (*Job, error
 	})
 }
 
-// jobTx runs change on job id in a transaction and returns the job as it
-// is afterwards.
-func (s *sqlStore) jobTx(ctx context.Context, id string, change func(tx *sqlStore, j *Job) error) (*Job, error) {
+// jobTx checks the time of the write after the checks already in v, then
+// runs change on job id in a transaction (now is at in the database's
+// form) and returns the job as it is afterwards.
+func (s *sqlStore) jobTx(ctx context.Context, v *violations, id string, at time.Time, change func(tx *sqlStore, j *Job, now int64) error) (*Job, error) {
+	checkNow(v, at)
+	if err := v.err(); err != nil {
+		return nil, err
+	}
+	now := timeToDB(at)
 	var job *Job
 	err := s.inTx(ctx, func(tx *sqlStore) error {
 		j, err := tx.jobGet(ctx, id)
 		if err != nil {
 			return err
 		}
-		if err := change(tx, j); err != nil {
+		if err := change(tx, j, now); err != nil {
 			return err
 		}
 		job, err = tx.jobGet(ctx, id)
