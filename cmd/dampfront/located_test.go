@@ -30,19 +30,15 @@ func TestSubmitShowsWhereBadFieldsWereWritten(t *testing.T) {
 
 	// A road list given with --roads: its two bad fields are at its own
 	// lines; the spec's own road cases are replaced.
-	roads := filepath.Join(t.TempDir(), "roads.yaml")
-	text := "# two bad road cases\n" +
-		"- name: slow\n" +
-		"  speed_m_per_s: 0\n" +
-		"  weight: 1\n" +
-		"  power_law: {gd0_m3: 2.0e-6, waviness: 2}\n" +
-		"- name: light\n" +
-		"  speed_m_per_s: 30\n" +
-		"  weight: -2\n" +
-		"  power_law: {gd0_m3: 2.0e-6, waviness: 2}\n"
-	if err := os.WriteFile(roads, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	roads := writeRoads(t, "# two bad road cases\n"+
+		"- name: slow\n"+
+		"  speed_m_per_s: 0\n"+
+		"  weight: 1\n"+
+		"  power_law: {gd0_m3: 2.0e-6, waviness: 2}\n"+
+		"- name: light\n"+
+		"  speed_m_per_s: 30\n"+
+		"  weight: -2\n"+
+		"  power_law: {gd0_m3: 2.0e-6, waviness: 2}\n")
 	r = mustRun(t, exitUsage, nil, s.client("submit", "--roads", roads, testdataPath("demo-job.yaml"))...)
 	for _, want := range []string{
 		roads + ":3:18: spec.road_cases[0].speed_m_per_s: ",
@@ -57,16 +53,12 @@ func TestSubmitShowsWhereBadFieldsWereWritten(t *testing.T) {
 // A road list file goes through the same checks as a spec: every problem
 // at once, each at its line and column.
 func TestReadRoadCasesReportsEveryProblemWithItsPosition(t *testing.T) {
-	p := filepath.Join(t.TempDir(), "roads.yaml")
-	text := "- name: a\n" +
-		"  speed_m_per_s: .nan\n" +
-		"  weight: 1\n" +
-		"  weight: 2\n" +
-		"- name: b\n" +
-		"  sped_m_per_s: 20\n"
-	if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	p := writeRoads(t, "- name: a\n"+
+		"  speed_m_per_s: .nan\n"+
+		"  weight: 1\n"+
+		"  weight: 2\n"+
+		"- name: b\n"+
+		"  sped_m_per_s: 20\n")
 	_, err := readRoadCases(&env{}, p)
 	if err == nil {
 		t.Fatal("a road list with three problems is accepted")
@@ -80,10 +72,18 @@ func TestReadRoadCasesReportsEveryProblemWithItsPosition(t *testing.T) {
 			t.Errorf("the error does not hold %q:\n%v", want, err)
 		}
 	}
-	if err := os.WriteFile(p, []byte("name: a\nspeed_m_per_s: 20\n"), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	p = writeRoads(t, "name: a\nspeed_m_per_s: 20\n")
 	if _, err := readRoadCases(&env{}, p); err == nil || !strings.Contains(err.Error(), "line 1, column 1: must be a list of RoadCase") {
 		t.Errorf("a single road case, not a list: %v", err)
 	}
+}
+
+// writeRoads writes text to a temporary road list file and returns its path.
+func writeRoads(t *testing.T, text string) string {
+	t.Helper()
+	p := filepath.Join(t.TempDir(), "roads.yaml")
+	if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
 }
