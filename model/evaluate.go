@@ -62,6 +62,7 @@ type caseData struct {
 	grid   *caseGrid
 	geo    outputGeometry
 	static [4]float64
+	modal  modalRatios
 }
 
 type workspace struct {
@@ -118,6 +119,11 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt EvaluatorOptions) (*Evaluator
 				cd.kinv[b][a] = col[b]
 			}
 		}
+		modal, err := newModalRatios(cd.base)
+		if err != nil {
+			return nil, err
+		}
+		cd.modal = modal
 		cd.grid = newCaseGrid(&e.v, &cd.rc, e.f, sym)
 		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, yc: -v.CGLateral}
 		for c := 0; c < 4; c++ {
@@ -258,6 +264,7 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 		m.TyreLoadSDRel[i] = m.TyreLoadSD[i] / cd.static[i]
 		m.TravelSD[i] = math.Sqrt(v[outTravel+i])
 	}
+	cd.modal.fill(&m.EquivalentDamping, &m.ModalDampingRatio)
 	// Jacking: K x̄ = -Dᵀ F̄ (the mean damper force pushes body up, wheel down).
 	var f, xbar [nDOF]float64
 	for a := 0; a < nDOF; a++ {

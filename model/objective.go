@@ -89,10 +89,15 @@ const (
 	ConstraintTravel
 	// ConstraintJacking limits |mean ride-height shift| at each axle (m).
 	ConstraintJacking
+	// ConstraintModalRatio keeps one mode's modal damping ratio at the
+	// equivalent slopes (CaseMetrics.ModalDampingRatio) within a band
+	// [Lower, Limit] on every case (-): a band, not only an upper limit.
+	ConstraintModalRatio
 )
 
 var constraintNames = map[ConstraintKind]string{
 	ConstraintLiftOff: "lift_off", ConstraintBumpStop: "bump_stop", ConstraintTravel: "travel", ConstraintJacking: "jacking",
+	ConstraintModalRatio: "modal_ratio",
 }
 
 func (k ConstraintKind) String() string {
@@ -102,10 +107,35 @@ func (k ConstraintKind) String() string {
 	return fmt.Sprintf("constraint(%d)", int(k))
 }
 
-// Constraint is an upper limit on a metric, over every case and corner.
+// Constraint is an upper limit on a metric, over every case and corner;
+// a modal-ratio constraint is a band on one mode.
 type Constraint struct {
 	Kind  ConstraintKind
-	Limit float64 // > 0, SI
+	Limit float64 // > 0, SI; the band's upper end for ConstraintModalRatio
+	// Mode is the mode of a ConstraintModalRatio (index into ModeNames).
+	Mode int
+	// Lower is the band's lower end for ConstraintModalRatio (-), in
+	// [0, Limit); 0 leaves only the upper end.
+	Lower float64
+}
+
+// String names the constraint: its kind, and the mode of a band.
+func (c Constraint) String() string {
+	if c.Kind == ConstraintModalRatio && c.Mode >= 0 && c.Mode < nDOF {
+		return fmt.Sprintf("%s ratio", ModeNames[c.Mode])
+	}
+	return c.Kind.String()
+}
+
+// bandViolation is a modal-ratio band's violation on one case:
+// max(ζ/limit - 1, lower/ζ - 1), <= 0 inside the band.
+func (c *Constraint) bandViolation(m *CaseMetrics) float64 {
+	z := m.ModalDampingRatio[c.Mode]
+	v := z/c.Limit - 1
+	if c.Lower > 0 {
+		v = math.Max(v, c.Lower/z-1)
+	}
+	return v
 }
 
 // caseObjective is the per-case value of an objective.
@@ -198,6 +228,16 @@ func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints
 			p.add(f+".kind", "unknown constraint %d", int(c.Kind))
 		}
 		p.positive(f+".limit", c.Limit)
+		if c.Kind == ConstraintModalRatio {
+			if c.Mode < 0 || c.Mode >= nDOF {
+				p.add(f+".mode", "unknown mode %d", c.Mode)
+			}
+			if !(c.Lower >= 0) || c.Lower >= c.Limit {
+				p.add(f+".lower", "must be in [0, limit %g), got %g", c.Limit, c.Lower)
+			}
+		} else if c.Lower != 0 {
+			p.add(f+".lower", "is for a modal-ratio band only, got %g on %s", c.Lower, c.Kind)
+		}
 	}
 	if err := p.err(); err != nil {
 		return nil, err
@@ -250,6 +290,14 @@ func (s *Problem) Score(r *Result, obj, viol []float64) {
 	}
 	for j := range s.constraints {
 		c := &s.constraints[j]
+		if c.Kind == ConstraintModalRatio {
+			worst := 0.0
+			for i := range r.Cases {
+				worst = math.Max(worst, c.bandViolation(&r.Cases[i]))
+			}
+			viol[j] = worst
+			continue
+		}
 		worst := 0.0
 		for i := range r.Cases {
 			worst = math.Max(worst, caseConstraint(c, &r.Cases[i]))
