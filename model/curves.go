@@ -40,20 +40,11 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	if points < 3 || points > 10001 {
 		p.add("points", "must be in [3, 10001], got %d", points)
 	}
-	for name, r := range map[string]float64{"bump_softest": adj.BumpSoftest, "bump_stiffest": adj.BumpStiffest,
-		"rebound_softest": adj.ReboundSoftest, "rebound_stiffest": adj.ReboundStiffest} {
-		p.nonNegative("adjustment."+name, r)
-	}
-	if adj.BumpStiffest < adj.BumpSoftest {
-		p.add("adjustment.bump_stiffest", "must be >= bump_softest (%g), got %g", adj.BumpSoftest, adj.BumpStiffest)
-	}
-	if adj.ReboundStiffest < adj.ReboundSoftest {
-		p.add("adjustment.rebound_stiffest", "must be >= rebound_softest (%g), got %g", adj.ReboundSoftest, adj.ReboundStiffest)
-	}
+	p.merge("adjustment.", adj.validate())
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	band := adj.BumpStiffest > 0 && adj.ReboundStiffest > 0
+	band := adj.band()
 	cc := v.CriticalDamping()
 	out := make([]DamperCurve, 4)
 	for i := range out {
