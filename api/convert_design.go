@@ -93,10 +93,11 @@ var (
 		pb.Aggregation_AGGREGATION_WORST:       model.AggregateWorst,
 	}
 	constraintKinds = map[pb.ConstraintKind]model.ConstraintKind{
-		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:  model.ConstraintLiftOff,
-		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP: model.ConstraintBumpStop,
-		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:    model.ConstraintTravel,
-		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:   model.ConstraintJacking,
+		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:    model.ConstraintLiftOff,
+		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP:   model.ConstraintBumpStop,
+		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:      model.ConstraintTravel,
+		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:     model.ConstraintJacking,
+		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO: model.ConstraintModalRatio,
 	}
 )
 
@@ -157,7 +158,13 @@ func constraintsFromProto(cons []*pb.Constraint, path string, p *problems) []mod
 		if l := c.GetLimit(); !(l > 0) || math.IsInf(l, 1) {
 			p.add(f+".limit", "must be a finite number > 0, got %g", l)
 		}
-		out[i] = model.Constraint{Kind: kind, Limit: c.GetLimit()}
+		out[i] = model.Constraint{Kind: kind, Limit: c.GetLimit(), Lower: c.GetLower(), Mode: int(c.GetMode()) - 1}
+		switch {
+		case kind == model.ConstraintModalRatio && c.GetMode() == pb.ModeName_MODE_NAME_UNSPECIFIED:
+			p.add(f+".mode", "must name the mode of a modal-ratio band (MODE_NAME_HEAVE, ...)")
+		case kind != model.ConstraintModalRatio && c.GetMode() != pb.ModeName_MODE_NAME_UNSPECIFIED:
+			p.add(f+".mode", "is for CONSTRAINT_KIND_MODAL_RATIO only, got %v on %v", c.GetMode(), c.GetKind())
+		}
 	}
 	return out
 }

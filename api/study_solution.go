@@ -36,7 +36,7 @@ func (pl *plan) describe(sol *pb.Solution, s model.Setup, r *model.Result) {
 	v := pl.eval.Vehicle()
 	threshold := pl.eval.WarnThreshold()
 	for i := range r.Cases {
-		modes, err := model.ModalAnalysis(v, &s, pl.eval.Case(i).Speed)
+		modes, err := model.ModesAt(v, pl.eval.Case(i).Speed, r.Cases[i].EquivalentDamping)
 		cm := caseMetricsToProto(&r.Cases[i], modes, threshold)
 		if err != nil {
 			cm.Warnings = append(cm.Warnings, fmt.Sprintf("%s: modal analysis failed: %v", r.Cases[i].Case, err))

@@ -40,7 +40,7 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	if points < 3 || points > 10001 {
 		p.add("points", "must be in [3, 10001], got %d", points)
 	}
-	p.merge("adjustment.", adj.validate())
+	p.merge("adjustment.", adj.Validate())
 	if err := p.err(); err != nil {
 		return nil, err
 	}

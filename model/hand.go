@@ -113,7 +113,7 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 	var p problems
 	p.merge("vehicle.", v.Validate())
 	p.merge("targets.setup.", t.Setup.Validate())
-	p.merge("targets.adjustment.", t.Adjustment.validate())
+	p.merge("targets.adjustment.", t.Adjustment.Validate())
 	p.nonNegative("targets.speed_m_per_s", t.Speed)
 	if err := p.err(); err != nil {
 		return nil, err
@@ -199,8 +199,8 @@ func handReason(h *HandMode) string {
 	return why
 }
 
-// validate checks an adjuster band.
-func (a Adjustment) validate() error {
+// Validate checks an adjuster band and names every bad field.
+func (a Adjustment) Validate() error {
 	var p problems
 	for name, r := range map[string]float64{"bump_softest": a.BumpSoftest, "bump_stiffest": a.BumpStiffest,
 		"rebound_softest": a.ReboundSoftest, "rebound_stiffest": a.ReboundStiffest} {

@@ -1617,7 +1617,7 @@ var File_dampfront_v1_service_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/result.proto\"=\n" +
+	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/hand.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/result.proto\"=\n" +
 	"\x10SubmitJobRequest\x12)\n" +
 	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecR\x04spec\"8\n" +
 	"\x11SubmitJobResponse\x12#\n" +
@@ -1735,7 +1735,7 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"difference\x18\x04 \x01(\x01R\n" +
 	"difference\x12/\n" +
 	"\x13relative_difference\x18\x05 \x01(\x01R\x12relativeDifference\x12+\n" +
-	"\x11statistical_error\x18\x06 \x01(\x01R\x10statisticalError2\xbe\x06\n" +
+	"\x11statistical_error\x18\x06 \x01(\x01R\x10statisticalError2\x9b\a\n" +
 	"\x10DampfrontService\x12L\n" +
 	"\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12C\n" +
 	"\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n" +
@@ -1746,7 +1746,8 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\x0eEvaluateSetups\x12#.dampfront.v1.EvaluateSetupsRequest\x1a$.dampfront.v1.EvaluateSetupsResponse\x12U\n" +
 	"\fCompareSetup\x12!.dampfront.v1.CompareSetupRequest\x1a\".dampfront.v1.CompareSetupResponse\x12^\n" +
 	"\x0fGetDamperCurves\x12$.dampfront.v1.GetDamperCurvesRequest\x1a%.dampfront.v1.GetDamperCurvesResponse\x12R\n" +
-	"\vVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\vVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponse\x12[\n" +
+	"\x0eEstimateByHand\x12#.dampfront.v1.EstimateByHandRequest\x1a$.dampfront.v1.EstimateByHandResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_service_proto_rawDescOnce sync.Once
@@ -1799,6 +1800,8 @@ var file_dampfront_v1_service_proto_goTypes = []any{
 	(*Adjustment)(nil),              // 34: dampfront.v1.Adjustment
 	(*CurveSettings)(nil),           // 35: dampfront.v1.CurveSettings
 	(*DamperCurve)(nil),             // 36: dampfront.v1.DamperCurve
+	(*EstimateByHandRequest)(nil),   // 37: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil),  // 38: dampfront.v1.EstimateByHandResponse
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
 	23, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
@@ -1843,18 +1846,20 @@ var file_dampfront_v1_service_proto_depIdxs = []int32{
 	14, // 39: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
 	16, // 40: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
 	18, // 41: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
-	1,  // 42: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	3,  // 43: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	5,  // 44: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	7,  // 45: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	9,  // 46: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	11, // 47: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	13, // 48: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	15, // 49: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	17, // 50: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	19, // 51: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
-	42, // [42:52] is the sub-list for method output_type
-	32, // [32:42] is the sub-list for method input_type
+	37, // 42: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
+	1,  // 43: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	3,  // 44: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	5,  // 45: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	7,  // 46: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	9,  // 47: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	11, // 48: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	13, // 49: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	15, // 50: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	17, // 51: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	19, // 52: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	38, // 53: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
+	43, // [43:54] is the sub-list for method output_type
+	32, // [32:43] is the sub-list for method input_type
 	32, // [32:32] is the sub-list for extension type_name
 	32, // [32:32] is the sub-list for extension extendee
 	0,  // [0:32] is the sub-list for field type_name
@@ -1866,6 +1871,7 @@ func file_dampfront_v1_service_proto_init() {
 		return
 	}
 	file_dampfront_v1_design_proto_init()
+	file_dampfront_v1_hand_proto_init()
 	file_dampfront_v1_job_proto_init()
 	file_dampfront_v1_result_proto_init()
 	file_dampfront_v1_service_proto_msgTypes[9].OneofWrappers = []any{
