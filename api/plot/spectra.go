@@ -117,7 +117,7 @@ func Spectra(sp *model.Spectra, modes []model.Mode, opt SpectraOptions) (*Figure
 	}
 	fig := &Figure{Width: w, Height: h, Title: title, Panels: [][]*plot.Plot{{tyre}, {ride}}}
 	note := "One-sided PSDs at the linearisation's fixed point; the area under a curve is the variance over the grid. " +
-		"Grey lines: undamped natural frequencies of the modes, dampers at their equivalent slopes on this road, dotted when overdamped."
+		"Grey lines: undamped natural frequencies of the modes, dotted when overdamped at the equivalent slopes."
 	if asym {
 		note += " Dashed: right side."
 	}

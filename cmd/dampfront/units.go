@@ -14,6 +14,7 @@ import (
 //	length, ride height, travel   m     -> mm       x 1000
 //	velocity (damper, knee)       m/s   -> mm/s     x 1000
 //	damper slope                  N s/m -> N s/mm   / 1000
+//	rate (spring, wheel, tyre)    N/m   -> N/mm     / 1000
 //	relative load, probability    -     -> %        x 100
 //	angle                         rad   -> deg      x 180/pi
 //	acceleration                  m/s^2 -> g        / 9.80665
@@ -24,6 +25,7 @@ const (
 	degPerRad  = 180 / math.Pi
 	gravitySI  = 9.80665 // standard acceleration of gravity, m/s^2 (3rd CGPM, 1901)
 	nsPerMmSI  = 1000.0  // N s/m per N s/mm
+	nPerMmSI   = 1000.0  // N/m per N/mm
 	mmPerSPerM = 1000.0  // mm/s per m/s
 )
 
@@ -116,4 +118,22 @@ var (
 	qVelocity    = quantity{"velocity", "mm/s", mmPerSPerM, 0, "velocity_m_per_s"}
 	qKnee        = quantity{"knee", "mm/s", mmPerSPerM, 0, "knee_m_per_s"}
 	qForce       = quantity{"force", "N", 1, 0, "force_n"}
+
+	// The hand method's per-corner table.
+	qWheelRate    = quantity{"wheel rate", "N/mm", 1 / nPerMmSI, 1, "wheel_rate_n_per_m"}
+	qTyreRate     = quantity{"tyre rate", "N/mm", 1 / nPerMmSI, 1, "tyre_rate_n_per_m"}
+	qRideRate     = quantity{"ride rate", "N/mm", 1 / nPerMmSI, 1, "ride_rate_n_per_m"}
+	qSprungMass   = quantity{"sprung mass", "kg", 1, 1, "sprung_mass_kg"}
+	qMotionRatio  = quantity{"damper motion ratio", "", 1, 3, "damper_motion_ratio"}
+	qRideFreq     = quantity{"ride frequency, no tyre", "Hz", 1, 2, "ride_frequency_hz"}
+	qRideFreqTyre = quantity{"ride frequency, tyre", "Hz", 1, 2, "ride_frequency_with_tyre_hz"}
+	qCritWheel    = quantity{"critical damping, wheel", "N s/mm", 1 / nsPerMmSI, 2, "critical_damping_wheel_n_s_per_m"}
+	qCritDamper   = quantity{"critical damping, damper", "N s/mm", 1 / nsPerMmSI, 2, "critical_damping_damper_n_s_per_m"}
+	qBranchSlope  = quantity{"slope", "N s/mm", 1 / nsPerMmSI, 2, "slope_n_s_per_m"}
 )
+
+// cornerShort are the corners' short names in table headers.
+var cornerShort = map[pb.CornerPosition]string{
+	pb.CornerPosition_CORNER_POSITION_FRONT_LEFT: "FL", pb.CornerPosition_CORNER_POSITION_FRONT_RIGHT: "FR",
+	pb.CornerPosition_CORNER_POSITION_REAR_LEFT: "RL", pb.CornerPosition_CORNER_POSITION_REAR_RIGHT: "RR",
+}
