@@ -113,7 +113,7 @@ func judge(r *pb.CompareSetupResponse, epsilon float64) *verdict {
 	for k, g := range r.GetObjectiveGaps() {
 		if k < len(r.GetObjectives()) {
 			q := objectiveQuantity(r.GetObjectives()[k].GetKind())
-			gaps = append(gaps, fmt.Sprintf("%s %+.*f %s", q.label, q.prec, q.trade(g), q.unit))
+			gaps = append(gaps, fmt.Sprintf("%s %s %s", q.label, signedNum(q.trade(g), q.prec), q.unit))
 		}
 	}
 	gapText := strings.Join(gaps, ", ")
@@ -122,8 +122,8 @@ func judge(r *pb.CompareSetupResponse, epsilon float64) *verdict {
 			r.GetNearestIndex(), against, pct(eps), pct(epsilon), gapText)}
 	}
 	if eps <= 0 {
-		return &verdict{true, fmt.Sprintf("PASS: constraints met; no solution of the %s dominates it (epsilon %.2f %% of the extent; nearest solution %d: %s)",
-			against, pct(eps), r.GetNearestIndex(), gapText)}
+		return &verdict{true, fmt.Sprintf("PASS: constraints met; no solution of the %s dominates it (epsilon %s %% of the extent; nearest solution %d: %s)",
+			against, num(pct(eps), 2), r.GetNearestIndex(), gapText)}
 	}
 	return &verdict{true, fmt.Sprintf("PASS: constraints met; solution %d of the %s is better in every objective, by at least %.2f %% of the front's extent (allowed %.2f %%); candidate vs it: %s",
 		r.GetNearestIndex(), against, pct(eps), pct(epsilon), gapText)}

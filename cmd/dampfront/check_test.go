@@ -52,6 +52,14 @@ func TestJudge(t *testing.T) {
 			}
 		})
 	}
+	// Values that round to zero print without a sign: "-0.00 %" reads
+	// as a loss where there is none.
+	tie := cmp(true, 0, -2e-5)
+	tie.ObjectiveGaps = []float64{-1e-6, -3e-7}
+	if v := judge(tie, 0.02); strings.Contains(v.line, "-0.0") || !strings.Contains(v.line, "epsilon 0.00 %") ||
+		!strings.Contains(v.line, "grip 0.00 % static, platform 0.000 mm") {
+		t.Errorf("a tie shows a signed zero: %s", v.line)
+	}
 	r := cmp(true, 0, -0.1)
 	r.Partial = true
 	if v := judge(r, 0); !strings.Contains(v.line, "partial front") {

@@ -103,6 +103,10 @@ func describeError(err error) string {
 	switch {
 	case st.Code() == codes.Unavailable:
 		fmt.Fprintf(&b, "server unavailable: %s", st.Message())
+		if strings.Contains(st.Message(), "server preface") {
+			// A TLS server closes a plaintext connection before its preface.
+			b.WriteString("\n  if the server serves TLS, connect with --tls-ca FILE (its CA certificate) or --tls (the system's CAs)")
+		}
 	case len(fields) > 0 && strings.Contains(st.Message(), fields[0].GetDescription()):
 		// The message repeats the violations listed below.
 		fmt.Fprintf(&b, "%s: %d bad fields", codeName(st.Code()), len(fields))

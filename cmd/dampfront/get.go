@@ -71,7 +71,7 @@ func writeJob(w io.Writer, j *pb.Job) error {
 	t.row("road cases", strings.Join(cases, "; "))
 	t.row("generation", fmt.Sprintf("%d of %d", p.GetGeneration(), p.GetGenerations()))
 	t.row("evaluations", fmt.Sprint(p.GetEvaluations()))
-	t.row("hypervolume", fmt.Sprintf("%.6g", p.GetHypervolume()))
+	t.row("hypervolume", hypervolumeText(p.GetHypervolume(), j.GetSpec().GetObjectives()))
 	for i, v := range p.GetBestObjectives() {
 		if obj := j.GetSpec().GetObjectives(); i < len(obj) {
 			q := objectiveQuantity(obj[i].GetKind())

@@ -112,7 +112,7 @@ func TestPlotLocal(t *testing.T) {
 
 	road := filepath.Join(dir, "road.svg")
 	mustRun(t, exitOK, nil, "plot", "road", "--spec", spec, "--svg", road, "--title", "Demo roads")
-	checkSVG(t, road, "Demo roads", "Ashgrove Ring, fast sweepers, 55 m/s", "Kessock Hill, chicane kerbs, 20 m/s")
+	checkSVG(t, road, "Demo roads", "Ashgrove Ring, fast sweepers, 55 m/s", "Tolvane Hill, rough slow section, 20 m/s")
 }
 
 // Usage errors end with exit code 2 and write no file.
@@ -186,7 +186,7 @@ func TestPlotServer(t *testing.T) {
 	// Spectra of the job's balanced point (the default), of a solution,
 	// and of a setup file on the job's car and roads.
 	mustRun(t, exitOK, nil, s.client("plot", "spectra", id, "--case", "2", "--svg", at("spectra-balanced.svg"))...)
-	checkSVG(t, at("spectra-balanced.svg"), "Output spectra, Kessock Hill, chicane kerbs", "Balanced point, solution", "of jobs/"+id, "at 20 m/s")
+	checkSVG(t, at("spectra-balanced.svg"), "Output spectra, Tolvane Hill, rough slow section", "Balanced point, solution", "of jobs/"+id, "at 20 m/s")
 	mustRun(t, exitOK, nil, s.client("plot", "spectra", id, "--solution", "0", "--svg", at("spectra-0.svg"))...)
 	checkSVG(t, at("spectra-0.svg"), "Output spectra, Ashgrove Ring, fast sweepers", "Solution 0 of jobs/"+id)
 	mustRun(t, exitOK, nil, s.client("plot", "spectra", id, "--setup", testdataPath("candidate-setup.yaml"), "--svg", at("spectra-setup.svg"))...)

@@ -100,9 +100,14 @@ func plain(s string) string {
 
 func (t *table) flush() error { return t.tw.Flush() }
 
-// num formats a table value with fixed decimals.
+// num formats a table value with fixed decimals; a value that rounds to
+// zero has no sign ("0.00", never "-0.00").
 func num(v float64, prec int) string {
-	return strconv.FormatFloat(v, 'f', prec, 64)
+	s := strconv.FormatFloat(v, 'f', prec, 64)
+	if s[0] == '-' && strings.Trim(s, "-0.") == "" {
+		return s[1:]
+	}
+	return s
 }
 
 // tradeNum formats the trade value of an SI value.

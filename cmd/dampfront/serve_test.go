@@ -194,11 +194,17 @@ func TestServeClientCommands(t *testing.T) {
 			})
 		}
 		mustRun(t, exitUsage, nil, s.client("check", "0123456789abcdef01234567", "--setup", balanced)...)
+		// The README's day of work checks the candidate against this
+		// job (the demo spec, seed 7) and goes on when it passes.
+		args := readmeCommand(t, "check", id)
+		if r := dampfront(t, nil, s.client(args...)...); r.code != exitOK || !strings.HasPrefix(r.stdout, "PASS") {
+			t.Errorf("the README's example dampfront %s exits %d, want 0 and a PASS:\n%s%s", strings.Join(args, " "), r.code, r.stdout, r.stderr)
+		}
 	})
 
 	t.Run("eval", func(t *testing.T) {
 		r := mustRun(t, exitOK, nil, s.client("eval", "--job", id, "--setup", testdataPath("candidate-setup.yaml"), "--setup", testdataPath("setup-jacking.yaml"))...)
-		for _, want := range []string{"Ashgrove Ring, fast sweepers", "Kessock Hill, chicane kerbs", "constraints: all met", "constraints: NOT met", cautionText} {
+		for _, want := range []string{"Ashgrove Ring, fast sweepers", "Tolvane Hill, rough slow section", "constraints: all met", "constraints: NOT met", cautionText} {
 			if !strings.Contains(r.stdout, want) {
 				t.Errorf("eval lacks %q:\n%s", want, r.stdout)
 			}
@@ -217,6 +223,15 @@ func TestServeClientCommands(t *testing.T) {
 		}
 		if ga, gb := a.GetEvaluations()[0].GetObjectives(), b.GetEvaluations()[0].GetObjectives(); len(ga) != 2 || ga[0] != gb[0] || ga[1] != gb[1] {
 			t.Errorf("eval from the job %v and from the files %v differ", ga, gb)
+		}
+		// candidate-setup.yaml says its rebound, stiffer than bump, makes
+		// the car jack down: the mean force of Caughey's linearisation,
+		// E[f] = sigma (m_bump - m_rebound) (model/linearise.go), pulls body
+		// and wheel together, so every case's ride shift is negative.
+		for _, m := range a.GetEvaluations()[0].GetCaseMetrics() {
+			if f, r := m.GetFront().GetRideHeightShiftM(), m.GetRear().GetRideHeightShiftM(); !(f < 0 && r < 0) {
+				t.Errorf("%s: the candidate's ride shift is %g/%g m, not down as its comment says", m.GetRoadCase(), f, r)
+			}
 		}
 	})
 

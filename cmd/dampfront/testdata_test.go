@@ -56,7 +56,7 @@ func TestDemoDataConsistent(t *testing.T) {
 
 // The road cases are track-like: every racing-surface case is smoother
 // than the mean of ISO 8608 class A (Gd(n0) = 16e-6 m^3, ISO 8608:1995
-// Table 1), the kerb case at most class B's mean (64e-6 m^3).
+// Table 1), the rough slow section at most class B's mean (64e-6 m^3).
 func TestRoadCasesTrackLike(t *testing.T) {
 	t.Parallel()
 	const classA, classB = 16e-6, 64e-6 // m^3 at n0 = 0.1 cycles/m, ISO 8608:1995 Table 1
@@ -67,7 +67,7 @@ func TestRoadCasesTrackLike(t *testing.T) {
 	for i, rc := range roads {
 		limit := classA
 		if i == len(roads)-1 {
-			limit = classB // the kerb case
+			limit = classB // the rough slow section
 		}
 		if g := rc.GetPowerLaw().GetGd0M3(); !(g > 0 && g < limit) {
 			t.Errorf("%s: Gd(n0) = %g m^3, want in (0, %g)", rc.GetName(), g, limit)

@@ -166,7 +166,7 @@ func TestTLSWithTokens(t *testing.T) {
 	}{
 		{"another CA", []string{"DAMPFRONT_TOKEN=" + ciToken, "DAMPFRONT_TLS_CA=" + otherCA}, []string{"list"}, exitFailure, "certificate signed by unknown authority"},
 		{"system CAs", []string{"DAMPFRONT_TOKEN=" + ciToken, "DAMPFRONT_TLS=true"}, []string{"list"}, exitFailure, "x509: "},
-		{"no TLS", []string{"DAMPFRONT_TOKEN=" + ciToken}, []string{"list"}, exitFailure, "server unavailable"},
+		{"no TLS", []string{"DAMPFRONT_TOKEN=" + ciToken}, []string{"list"}, exitFailure, "server unavailable: connection error: desc = \"error reading server preface: EOF\"\n  if the server serves TLS, connect with --tls-ca FILE"},
 		{"no token", []string{"DAMPFRONT_TLS_CA=" + caFile}, []string{"list"}, exitFailure, "unauthenticated: no bearer token"},
 		{"unknown token", []string{"DAMPFRONT_TOKEN=" + api.TokenPrefix + "not-one-of-the-file", "DAMPFRONT_TLS_CA=" + caFile}, []string{"list"}, exitFailure, "unauthenticated: the bearer token is not valid"},
 		{"reader submits", []string{"DAMPFRONT_TOKEN=" + readToken, "DAMPFRONT_TLS_CA=" + caFile}, []string{"submit", testdataPath("demo-job.yaml")}, exitFailure, `permission denied: token "viewer" has role reader; SubmitJob needs submitter`},

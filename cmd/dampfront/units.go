@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"math"
 	"strings"
 
@@ -78,6 +79,27 @@ func objectiveQuantity(k pb.ObjectiveKind) quantity {
 	return quantity{name, "", 1, 4, name}
 }
 
+// hypervolumeQuantity is the hypervolume in the product of the
+// objectives' trade units, "% × mm" for grip and platform, as the
+// hypervolume chart (api/plot) shows it.
+func hypervolumeQuantity(objs []*pb.Objective) quantity {
+	q := quantity{"hypervolume", "", 1, 4, "hypervolume"}
+	units := make([]string, len(objs))
+	for j, o := range objs {
+		oq := objectiveQuantity(o.GetKind())
+		q.scale *= oq.scale
+		units[j] = strings.TrimSuffix(oq.unit, " static")
+	}
+	q.unit = strings.Join(units, " × ")
+	return q
+}
+
+// hypervolumeText is a hypervolume with its unit, four significant digits.
+func hypervolumeText(hv float64, objs []*pb.Objective) string {
+	q := hypervolumeQuantity(objs)
+	return strings.TrimSpace(fmt.Sprintf("%.4g %s", q.trade(hv), q.unit))
+}
+
 // constraintQuantity is how a constraint's limit and metric are shown.
 func constraintQuantity(k pb.ConstraintKind) quantity {
 	switch k {
@@ -112,7 +134,7 @@ var (
 	qTravelSD    = quantity{"travel sd", "mm", mmPerM, 3, "travel_sd_m"}
 	qDamperVelSD = quantity{"damper vel sd", "mm/s", mmPerSPerM, 1, "damper_velocity_sd_m_per_s"}
 	qPitchSD     = quantity{"pitch sd", "deg", degPerRad, 4, "pitch_sd_rad"}
-	qHeaveSD     = quantity{"heave sd", "g", 1 / gravitySI, 4, "heave_accel_sd_m_per_s2"}
+	qHeaveSD     = quantity{"heave accel sd", "g", 1 / gravitySI, 4, "heave_accel_sd_m_per_s2"}
 	qProbability = quantity{"probability", "%", percent, 3, "probability"}
 	qSlope       = quantity{"slope", "N s/mm", 1 / nsPerMmSI, 2, "slope_n_s_per_m"}
 	qVelocity    = quantity{"velocity", "mm/s", mmPerSPerM, 0, "velocity_m_per_s"}

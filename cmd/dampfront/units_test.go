@@ -2,6 +2,7 @@ package main
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	pb "dampfront/api/gen/dampfront/v1"
@@ -15,6 +16,7 @@ import (
 // multiplication or division of float64 values.
 func TestTradeUnits(t *testing.T) {
 	t.Parallel()
+	gripPlatform := []*pb.Objective{{Kind: pb.ObjectiveKind_OBJECTIVE_KIND_GRIP}, {Kind: pb.ObjectiveKind_OBJECTIVE_KIND_PLATFORM}}
 	const tol = 1e-15
 	tests := []struct {
 		name     string
@@ -37,6 +39,7 @@ func TestTradeUnits(t *testing.T) {
 		{"jacking limit 0.003 m in mm", constraintQuantity(pb.ConstraintKind_CONSTRAINT_KIND_JACKING).trade(0.003), 3, "milli"},
 		{"knee gene 0.05 m/s in mm/s", geneQuantity("front_knee_m_per_s").trade(0.05), 50, "milli"},
 		{"ratio gene unchanged", geneQuantity("front_bump_ratio").trade(0.73), 0.73, "dimensionless"},
+		{"hypervolume 2e-5 (fraction m) is 2 % mm", hypervolumeQuantity(gripPlatform).trade(2e-5), 2, "per cent times milli"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -74,5 +77,41 @@ func TestQuantityNamesComplete(t *testing.T) {
 		if q := constraintQuantity(pb.ConstraintKind(v)); q.unit == "" || q.column == "" {
 			t.Errorf("%s has no trade unit or column: %+v", name, q)
 		}
+	}
+}
+
+// The hypervolume is printed in the unit the hypervolume chart draws it
+// in (api/plot: "% × mm" for grip and platform), by get and watch alike.
+func TestHypervolumeInTradeUnits(t *testing.T) {
+	t.Parallel()
+	objs := []*pb.Objective{{Kind: pb.ObjectiveKind_OBJECTIVE_KIND_GRIP}, {Kind: pb.ObjectiveKind_OBJECTIVE_KIND_PLATFORM}}
+	p := &pb.Progress{Hypervolume: 1.234e-5, Generation: 3, Generations: 30}
+	const want = "1.234 % × mm"
+	if got := hypervolumeText(p.Hypervolume, objs); got != want {
+		t.Errorf("hypervolumeText = %q, want %q", got, want)
+	}
+	if got := progressText(p, objs); !strings.Contains(got, "hv "+want) {
+		t.Errorf("watch's progress %q lacks %q", got, want)
+	}
+	var b strings.Builder
+	j := &pb.Job{Name: "jobs/x", Progress: p, Spec: &pb.JobSpec{Objectives: objs}}
+	if err := writeJob(&b, j); err != nil || !strings.Contains(b.String(), "hypervolume  "+want) {
+		t.Errorf("get lacks the hypervolume %q (%v):\n%s", want, err, b.String())
+	}
+}
+
+// The eval table's heave column is an acceleration in g (the SD of the
+// CG's vertical acceleration): its header says so, not "heave sd", which
+// reads as a displacement.
+func TestEvalHeaveColumnIsAnAcceleration(t *testing.T) {
+	t.Parallel()
+	var b strings.Builder
+	s := &pb.Solution{Feasible: true, CaseMetrics: []*pb.CaseMetrics{{RoadCase: "Ashgrove Ring", HeaveAccelSdMPerS2: 9.80665 * 0.0333}}}
+	if err := writeEvaluation(&b, "x", s, nil, nil); err != nil {
+		t.Fatal(err)
+	}
+	header, row, _ := strings.Cut(strings.SplitN(b.String(), "\n\n", 2)[1], "\n")
+	if !strings.Contains(header, "heave accel sd g") || strings.Contains(header, "heave sd") || !strings.Contains(row, "0.0333") {
+		t.Errorf("eval's heave column:\n%s\n%s", header, row)
 	}
 }

@@ -42,7 +42,7 @@ func TestVerifyDemoCandidate(t *testing.T) {
 		"Time-domain check of setup " + testdataPath("candidate-setup.yaml") + " on Quillon GT (invented demo car): front bump 0.550 rebound 0.850",
 		`Road case "Ashgrove Ring, fast sweepers" at 55 m/s: 20 s of road`,
 		`Road case "Port Vellan streets, bumpy braking zone" at 30 m/s`,
-		`Road case "Kessock Hill, chicane kerbs" at 20 m/s`,
+		`Road case "Tolvane Hill, rough slow section" at 20 m/s`,
 		"metric", "frequency domain", "time domain", "difference %", "statistical error %",
 		"tyre load sd FL", "% static", "ride sd front", "mm", "damper vel sd RR", "mm/s", "lift-off time FL", "bump-stop time RR",
 		"peaks of the time history:", "highest damper speed in rebound", "largest heave acceleration",
@@ -421,7 +421,7 @@ func TestVerifyAllFront(t *testing.T) {
 	for _, want := range []string{
 		fmt.Sprintf("Time-domain check of every solution of the front of jobs/%s ", id),
 		"Road seed 3, 20 s of road per case after settling",
-		"  2  Kessock Hill, chicane kerbs at 20 m/s",
+		"  2  Tolvane Hill, rough slow section at 20 m/s",
 		fmt.Sprintf("The linear answer holds on every road case for %d of %d solutions.", held, len(points)),
 		cautionText,
 	} {

@@ -238,7 +238,7 @@ func (b *progressBar) abandon() {
 func progressText(p *pb.Progress, objectives []*pb.Objective) string {
 	var parts []string
 	if hv := p.GetHypervolume(); hv > 0 {
-		parts = append(parts, fmt.Sprintf("hv %.3g", hv))
+		parts = append(parts, "hv "+hypervolumeText(hv, objectives))
 	}
 	for i, v := range p.GetBestObjectives() {
 		if i < len(objectives) {
