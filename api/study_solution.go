@@ -64,7 +64,11 @@ func (pl *plan) feasibility(obj, viol []float64) (bool, string) {
 	}
 	cons := pl.study.Constraints()
 	for j, x := range viol {
-		if x > 0 || math.IsNaN(x) {
+		switch {
+		case !(x > 0 || math.IsNaN(x)):
+		case cons[j].Kind == model.ConstraintModalRatio:
+			why = append(why, fmt.Sprintf("%s leaves its band [%g, %g] by %.3g%%", cons[j], cons[j].Lower, cons[j].Limit, 100*x))
+		default:
 			why = append(why, fmt.Sprintf("%s exceeds its limit %g by %.3g%%", cons[j].Kind, cons[j].Limit, 100*x))
 		}
 	}

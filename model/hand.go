@@ -150,13 +150,13 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 	if err != nil {
 		return nil, err
 	}
-	r.Modes = handModes(v, &t.Setup, modal)
+	r.Modes = handModes(v, &t.Setup, t.Speed, modal)
 	return r, nil
 }
 
 // handModes works out heave, pitch and roll alone (tyres rigid) and with
 // the tyres in series, beside the full car's modes.
-func handModes(v *Vehicle, s *Setup, modal []Mode) [3]HandMode {
+func handModes(v *Vehicle, s *Setup, speed float64, modal []Mode) [3]HandMode {
 	d := v.wheelDampers(s)
 	inertia := [3]float64{v.SprungMass, v.PitchInertia, v.RollInertia}
 	var susp, tyre, damp [3]float64
@@ -175,6 +175,12 @@ func handModes(v *Vehicle, s *Setup, modal []Mode) [3]HandMode {
 		// Energy ½ (k_bar/2)(s_L - s_R)² with s_L - s_R = t φ in roll.
 		susp[ModeRoll] += v.AntiRoll[ax].WheelRateOf() * track[ax] * track[ax] / 2
 	}
+	// The aero stiffness at the speed, a negative spring the hand figures
+	// leave out: per axle on heave and, at its lever, on pitch.
+	var aero [3]float64
+	_, ka := v.AeroAt(speed)
+	aero[ModeHeave] = ka[Front] + ka[Rear]
+	aero[ModePitch] = ka[Front]*v.CGToFrontAxle*v.CGToFrontAxle + ka[Rear]*v.CGToRearAxle*v.CGToRearAxle
 	var out [3]HandMode
 	for j := range out {
 		k, c, m := susp[j], damp[j], inertia[j]
@@ -182,7 +188,7 @@ func handModes(v *Vehicle, s *Setup, modal []Mode) [3]HandMode {
 		hm := HandMode{Name: ModeNames[j], HandFrequencyHz: math.Sqrt(k/m) / (2 * math.Pi), HandRatio: c / (2 * math.Sqrt(k*m)),
 			TyreShare: share, Modal: modal[j]}
 		hm.TyreRatio = hm.HandRatio * math.Pow(share, 1.5)
-		hm.Reason = handReason(&hm)
+		hm.Reason = handReason(&hm, aero[j]/susp[j], speed)
 		out[j] = hm
 	}
 	return out
@@ -190,11 +196,14 @@ func handModes(v *Vehicle, s *Setup, modal []Mode) [3]HandMode {
 
 // handReason says in one line why the full car's modal ratio differs from
 // the hand figure.
-func handReason(h *HandMode) string {
+func handReason(h *HandMode, aero, speed float64) string {
 	why := fmt.Sprintf("the tyres in series leave the dampers %.0f%% of the body's motion (hand ratio x share^1.5 = %.2f)", 100*h.TyreShare, h.TyreRatio)
+	if aero != 0 {
+		why += fmt.Sprintf("; the aero at %g m/s takes %.0f%% off the suspension's stiffness here (not in the hand figure)", speed, 100*aero)
+	}
 	rest := h.Modal.DampingRatio - h.TyreRatio
 	if math.Abs(rest) > 0.1*h.Modal.DampingRatio {
-		why += fmt.Sprintf("; coupling with the other modes and the wheels moves it %+.2f more", rest)
+		why += fmt.Sprintf("; coupling with the other modes, the wheels and the aero moves it %+.2f more", rest)
 	}
 	return why
 }

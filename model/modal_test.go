@@ -115,14 +115,7 @@ func TestModesProportionalTwoMass(t *testing.T) {
 func TestUndampedFrequencyIsNotAbsLambda(t *testing.T) {
 	t.Parallel()
 	const tol = 1e-9
-	const m = 250.0
-	golden := quarterCar{m: m, mu: iriMu * m, k: iriK2 * m, kt: iriK1 * m}
-	rear := quarterCar{m: m, mu: iriMu * m, k: 1.6 * iriK2 * m, kt: iriK1 * m}
-	v := quarterCarVehicle(golden, rear, 0.85)
-	zf := iriC * m / golden.criticalWheelDamping()
-	zr := 1.3 * iriC * m / rear.criticalWheelDamping()
-	s := Setup{Axles: [2]AxleDamping{{BumpRatio: zf, ReboundRatio: zf}, {BumpRatio: zr, ReboundRatio: zr}}}
-	modes, err := ModalAnalysis(&v, &s, 30)
+	golden, _, modes, err := goldenCarModes()
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -6,8 +6,6 @@ import (
 	"fmt"
 	"io"
 
-	"google.golang.org/protobuf/encoding/protojson"
-
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/model"
@@ -79,12 +77,7 @@ func runHand(_ context.Context, e *env, args []string) error {
 	}
 	switch h.format.value {
 	case "json":
-		b, err := protojson.MarshalOptions{Multiline: true}.Marshal(resp)
-		if err != nil {
-			return err
-		}
-		fmt.Fprintf(e.stdout, "%s\n", b)
-		return nil
+		return printProtoJSON(e.stdout, resp)
 	case "csv":
 		return writeHandCSV(e.stdout, resp)
 	}
