@@ -208,6 +208,15 @@ func TestModalRatioBandConstraint(t *testing.T) {
 		if math.Abs(viol[0]-c.want) > 1e-9*math.Max(1, c.want) {
 			t.Errorf("band [%.4f, %.4f] on ζ %.6f: violation %.12g, want %.12g", c.lower, c.upper, zeta, viol[0], c.want)
 		}
+		var r Result
+		if err := e.Evaluate(d.Decode([]float64{z, z, z, z}), &r); err != nil {
+			t.Fatal(err)
+		}
+		sf := p.Shortfalls(&r)[0]
+		if relErr(sf.Worst, zeta) > 1e-9 || math.Abs(sf.Violation-c.want) > 1e-9*math.Max(1, c.want) ||
+			math.Abs(sf.Over-math.Max(zeta-c.upper, c.lower-zeta)) > 1e-9 {
+			t.Errorf("band [%.4f, %.4f]: shortfall %+v, want ratio %.6f", c.lower, c.upper, sf, zeta)
+		}
 	}
 	_, err = NewProblem(e, d, DefaultObjectives(), []Constraint{{Kind: ConstraintModalRatio, Mode: 9, Lower: 0.5, Limit: 0.4}, {Kind: ConstraintTravel, Limit: 0.01, Lower: 0.001}})
 	for _, f := range []string{"constraints[0].mode", "constraints[0].lower", "constraints[1].lower"} {

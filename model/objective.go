@@ -58,16 +58,6 @@ func (k ObjectiveKind) Unit() string {
 	}
 }
 
-// Aggregation combines a metric over road cases with their weights w_c.
-type Aggregation int
-
-const (
-	// AggregateMeanSquare is sqrt(Σ w_c g_c² / Σ w_c).
-	AggregateMeanSquare Aggregation = iota
-	// AggregateWorst is max_c g_c.
-	AggregateWorst
-)
-
 // Objective is one minimised quantity.
 type Objective struct {
 	Kind        ObjectiveKind
@@ -125,6 +115,26 @@ func (c Constraint) String() string {
 		return fmt.Sprintf("%s ratio", ModeNames[c.Mode])
 	}
 	return c.Kind.String()
+}
+
+// bandWorst is a modal-ratio band's violation over the cases of r,
+// max(0, worst case's bandViolation), with the ratio and the first case
+// where it is reached.
+func bandWorst(c *Constraint, r *Result) (viol, ratio float64, at int) {
+	worst := math.Inf(-1)
+	for i := range r.Cases {
+		v := c.bandViolation(&r.Cases[i])
+		if math.IsNaN(v) {
+			return v, r.Cases[i].ModalDampingRatio[c.Mode], i
+		}
+		if v > worst {
+			worst, at = v, i
+		}
+	}
+	if len(r.Cases) > 0 {
+		ratio = r.Cases[at].ModalDampingRatio[c.Mode]
+	}
+	return math.Max(0, worst), ratio, at
 }
 
 // bandViolation is a modal-ratio band's violation on one case:
@@ -197,6 +207,9 @@ type Problem struct {
 	objectives  []Objective
 	constraints []Constraint
 	pool        sync.Pool
+	// reference holds, per objective, its value on every road case for
+	// the reference setup; nil for objectives not normalised.
+	reference [][]float64
 }
 
 // NewProblem checks the design space, objectives and constraints.
@@ -216,7 +229,7 @@ func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints
 			p.add(f+".kind", "objective %s given twice", o.Kind)
 		}
 		seen[o.Kind] = true
-		if o.Aggregation != AggregateMeanSquare && o.Aggregation != AggregateWorst {
+		if o.Aggregation < AggregateMeanSquare || o.Aggregation > AggregateNormalised {
 			p.add(f+".aggregation", "unknown aggregation %d", int(o.Aggregation))
 		}
 		p.finite(f+".target_shift_m[0]", o.TargetShift[0])
@@ -244,6 +257,11 @@ func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints
 	}
 	s := &Problem{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
 	s.pool.New = func() any { return &Result{Cases: make([]CaseMetrics, e.Cases())} }
+	if s.normalises() {
+		if err := s.SetReference(d.Middle()); err != nil {
+			return nil, err
+		}
+	}
 	return s, nil
 }
 
@@ -284,52 +302,33 @@ func (s *Problem) EvaluateGenes(x, obj, viol []float64) error {
 // Score computes objectives and violations of an evaluated result.
 func (s *Problem) Score(r *Result, obj, viol []float64) {
 	for j := range s.objectives {
-		obj[j] = Aggregate(s.eval, s.objectives[j].Aggregation, r, func(m *CaseMetrics) float64 {
-			return caseObjective(&s.objectives[j], m)
-		})
+		obj[j] = s.ObjectiveValue(j, r)
 	}
 	for j := range s.constraints {
 		c := &s.constraints[j]
 		if c.Kind == ConstraintModalRatio {
-			worst := 0.0
-			for i := range r.Cases {
-				worst = math.Max(worst, c.bandViolation(&r.Cases[i]))
-			}
-			viol[j] = worst
+			viol[j], _, _ = bandWorst(c, r)
 			continue
 		}
-		worst := 0.0
-		for i := range r.Cases {
-			worst = math.Max(worst, caseConstraint(c, &r.Cases[i]))
-		}
+		worst, _ := constraintWorst(c, r)
 		viol[j] = math.Max(0, worst/c.Limit-1)
 	}
 }
 
-// Aggregate combines a per-case value over the evaluator's road cases.
-func Aggregate(e *Evaluator, a Aggregation, r *Result, g func(*CaseMetrics) float64) float64 {
-	if a == AggregateWorst {
-		worst := math.Inf(-1)
-		for i := range r.Cases {
-			worst = math.Max(worst, g(&r.Cases[i]))
-		}
-		return worst
-	}
-	var sum, wsum float64
+// constraintWorst is the largest value c limits over every case and
+// corner of r, and the first case where it is reached; NaN, and its case,
+// when a value is NaN.
+func constraintWorst(c *Constraint, r *Result) (worst float64, at int) {
 	for i := range r.Cases {
-		w := e.cases[i].rc.weight()
-		v := g(&r.Cases[i])
-		sum += w * v * v
-		wsum += w
+		v := caseConstraint(c, &r.Cases[i])
+		if math.IsNaN(v) {
+			return v, i
+		}
+		if v > worst {
+			worst, at = v, i
+		}
 	}
-	return math.Sqrt(sum / wsum)
-}
-
-// ObjectiveValue returns one objective's value for an evaluated result.
-func (s *Problem) ObjectiveValue(j int, r *Result) float64 {
-	return Aggregate(s.eval, s.objectives[j].Aggregation, r, func(m *CaseMetrics) float64 {
-		return caseObjective(&s.objectives[j], m)
-	})
+	return worst, at
 }
 
 // DefaultObjectives are grip and platform, mean square over the cases.

@@ -73,26 +73,6 @@ func TestSameSumSplitsDifferOnlyInPlatform(t *testing.T) {
 	}
 }
 
-func TestAggregation(t *testing.T) {
-	t.Parallel()
-	// Hand-computed: weights 1 and 3, per-case values 3 and 1:
-	// mean square sqrt((1*9 + 3*1)/4) = sqrt(3); worst 3.
-	cases := demoCases()
-	cases[0].Weight, cases[1].Weight = 1, 3
-	e, err := NewEvaluator(demoCar(), cases, EvaluatorOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	r := Result{Cases: []CaseMetrics{{PitchSD: 3}, {PitchSD: 1}}}
-	g := func(m *CaseMetrics) float64 { return m.PitchSD }
-	if got := Aggregate(e, AggregateMeanSquare, &r, g); math.Abs(got-math.Sqrt(3)) > 1e-15 {
-		t.Errorf("mean square = %v, want sqrt(3)", got)
-	}
-	if got := Aggregate(e, AggregateWorst, &r, g); got != 3 {
-		t.Errorf("worst = %v, want 3", got)
-	}
-}
-
 func TestStudyConstraintsAndValidation(t *testing.T) {
 	t.Parallel()
 	e, err := NewEvaluator(demoCar(), demoCases(), EvaluatorOptions{})

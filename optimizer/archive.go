@@ -13,10 +13,21 @@ import (
 // on their order, and it is kept sorted by (objectives, genes)
 // lexicographically.
 //
+// While no feasible point has been seen it keeps instead the least
+// violating ones, by constrained domination (Deb 2000, §3): the evaluated
+// infeasible points of the smallest total violation, and of those the ones
+// that no other dominates in the objectives, one per objective vector as
+// above. A failed evaluation (total violation +Inf) never enters. The
+// first feasible point empties that set for good, so a job whose
+// constraints cannot be met still ends with the setups that came closest.
+//
 // Solutions in the archive share their slices with immutable genomes or
 // own them; they are never modified.
 type archive struct {
-	sols []*Solution // pointers: insertion moves 8 bytes per member
+	sols []*Solution // feasible; pointers: insertion moves 8 bytes per member
+	// closest holds the least violating infeasible points while sols is
+	// empty, sorted like sols; all have the same total violation.
+	closest []*Solution
 }
 
 // solutionOrder sorts by objectives, then genes.
@@ -27,21 +38,47 @@ func solutionOrder(a, b *Solution) int {
 	return lexicographic(a.Genes, b.Genes)
 }
 
-// add offers s to the archive and reports whether it entered. Infeasible
-// solutions never enter. With two objectives the archive, sorted by f1, has
-// f2 strictly falling, so a binary search finds both the one member that
+// add offers s to the archive and reports whether it entered. An
+// infeasible solution enters only the closest set (see archive). With two
+// objectives the archive, sorted by f1, has f2 strictly falling, so a binary search finds both the one member that
 // could dominate s and the run of members s dominates: O(log n) plus the
 // move of the tail. Otherwise it scans the archive, O(n M).
 func (a *archive) add(sol Solution) bool {
 	if !sol.Feasible {
-		return false
+		return a.addInfeasible(sol)
 	}
+	a.closest = nil
 	s := &sol
 	if len(s.Objectives) == 2 {
 		return a.add2(s)
 	}
+	return addNonDominated(&a.sols, s)
+}
+
+// addInfeasible offers an infeasible s to the closest set, which exists
+// only while no feasible point does.
+func (a *archive) addInfeasible(sol Solution) bool {
+	v := TotalViolation(sol.Violations)
+	if len(a.sols) > 0 || math.IsInf(v, 0) || math.IsNaN(v) || v == 0 {
+		return false
+	}
+	if len(a.closest) > 0 {
+		switch held := TotalViolation(a.closest[0].Violations); {
+		case v > held:
+			return false
+		case v < held:
+			a.closest = a.closest[:0]
+		}
+	}
+	return addNonDominated(&a.closest, &sol)
+}
+
+// addNonDominated offers s to the sorted mutually non-dominated set *set,
+// by a scan of O(n M).
+func addNonDominated(set *[]*Solution, s *Solution) bool {
+	sols := *set
 	dominated := 0
-	for i, t := range a.sols {
+	for i, t := range sols {
 		if Dominates(t.Objectives, s.Objectives) {
 			return false
 		}
@@ -50,8 +87,8 @@ func (a *archive) add(sol Solution) bool {
 				return false
 			}
 			// Same objectives, smaller genes: s takes t's place, and as t
-			// dominated nothing in the archive neither does s.
-			a.sols[i] = s
+			// dominated nothing in the set neither does s.
+			sols[i] = s
 			return true
 		}
 		if Dominates(s.Objectives, t.Objectives) {
@@ -59,11 +96,20 @@ func (a *archive) add(sol Solution) bool {
 		}
 	}
 	if dominated > 0 {
-		a.sols = slices.DeleteFunc(a.sols, func(t *Solution) bool { return Dominates(s.Objectives, t.Objectives) })
+		sols = slices.DeleteFunc(sols, func(t *Solution) bool { return Dominates(s.Objectives, t.Objectives) })
 	}
-	i, _ := slices.BinarySearchFunc(a.sols, s, solutionOrder)
-	a.sols = slices.Insert(a.sols, i, s)
+	i, _ := slices.BinarySearchFunc(sols, s, solutionOrder)
+	*set = slices.Insert(sols, i, s)
 	return true
+}
+
+// members returns the feasible archive, or the closest infeasible points
+// while there is no feasible one.
+func (a *archive) members() []*Solution {
+	if len(a.sols) == 0 {
+		return a.closest
+	}
+	return a.sols
 }
 
 // add2 is add for two objectives.

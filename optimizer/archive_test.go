@@ -23,20 +23,7 @@ func TestArchiveOrderFree(t *testing.T) {
 		for i, p := range pts {
 			sols[i] = Solution{Genes: []float64{float64(rng.IntN(5))}, Objectives: p, Feasible: rng.IntN(5) > 0}
 		}
-		var want []Solution
-		for _, s := range sols {
-			if !s.Feasible || slices.ContainsFunc(sols, func(o Solution) bool { return o.Feasible && Dominates(o.Objectives, s.Objectives) }) {
-				continue
-			}
-			i := slices.IndexFunc(want, func(o Solution) bool { return slices.Equal(o.Objectives, s.Objectives) })
-			switch {
-			case i < 0:
-				want = append(want, s)
-			case lexicographic(s.Genes, want[i].Genes) < 0:
-				want[i] = s
-			}
-		}
-		slices.SortFunc(want, func(a, b Solution) int { return solutionOrder(&a, &b) })
+		want := bruteArchive(sols, func(s Solution) bool { return s.Feasible })
 		for range 3 {
 			rng.Shuffle(len(sols), func(i, j int) { sols[i], sols[j] = sols[j], sols[i] })
 			var a archive
@@ -52,6 +39,27 @@ func TestArchiveOrderFree(t *testing.T) {
 			}
 		}
 	}
+}
+
+// bruteArchive is the archive of the members of sols that keep says, by
+// brute force: those no other kept member dominates, one per objective
+// vector with the smallest genes, in the archive's order.
+func bruteArchive(sols []Solution, keep func(Solution) bool) []Solution {
+	var want []Solution
+	for _, s := range sols {
+		if !keep(s) || slices.ContainsFunc(sols, func(o Solution) bool { return keep(o) && Dominates(o.Objectives, s.Objectives) }) {
+			continue
+		}
+		i := slices.IndexFunc(want, func(o Solution) bool { return slices.Equal(o.Objectives, s.Objectives) })
+		switch {
+		case i < 0:
+			want = append(want, s)
+		case lexicographic(s.Genes, want[i].Genes) < 0:
+			want[i] = s
+		}
+	}
+	slices.SortFunc(want, func(a, b Solution) int { return solutionOrder(&a, &b) })
+	return want
 }
 
 // freeGene has two genes, objectives f1 = x1 and f2 = 1 − √x1 (the front

@@ -21,6 +21,8 @@ import (
 //	           genes, objectives, violations f64…, total f64, reason str,
 //	           evaluated u8, fresh u8, born u64, fitness f64
 //	archive:   count u32; per solution genes, objectives, violations f64…
+//	closest:   count u32; per solution genes, objectives, violations f64…,
+//	           reason str (version 2 on; version 1 has no such part)
 //	history:   count u32; per entry generation u64, evaluations u64,
 //	           hypervolume f64, best: present u8 [+ M f64]
 //	checksum   CRC-32 (IEEE) of everything before it, u32
@@ -28,9 +30,12 @@ import (
 // where str is a u32 length and the bytes. The settings and problem shape
 // are stored in clear, so a mismatch on restore names the field. Equal
 // states give equal bytes.
+// Version 1 had no closest part; it restores with an empty one (a search
+// that has found no feasible point yet fills it again from the next
+// generation on).
 const (
 	checkpointMagic   = "dfnsga2\n"
-	checkpointVersion = 1
+	checkpointVersion = 2
 )
 
 // Checkpoint returns the full state of the search: populations, archive,
@@ -82,6 +87,13 @@ func (s *Search) Checkpoint() ([]byte, error) {
 		e.f64s(sol.Objectives)
 		e.f64s(sol.Violations)
 	}
+	e.u32(uint32(len(s.front.closest)))
+	for _, sol := range s.front.closest {
+		e.f64s(sol.Genes)
+		e.f64s(sol.Objectives)
+		e.f64s(sol.Violations)
+		e.str(sol.Reason)
+	}
 
 	e.u32(uint32(len(s.history)))
 	for _, p := range s.history {
@@ -112,13 +124,14 @@ func Restore(p Problem, s Settings, checkpoint []byte) (*Search, error) {
 		return nil, fmt.Errorf("%w: checksum mismatch", ErrCheckpoint)
 	}
 	d := decoder{buf: body[len(checkpointMagic):]}
-	if v := d.u32(); v != checkpointVersion {
-		return nil, fmt.Errorf("%w: version %d, this package reads %d", ErrCheckpoint, v, checkpointVersion)
+	v := d.u32()
+	if v < 1 || v > checkpointVersion {
+		return nil, fmt.Errorf("%w: version %d, this package reads 1 to %d", ErrCheckpoint, v, checkpointVersion)
 	}
 	if err := st.readSettings(&d); err != nil {
 		return nil, err
 	}
-	if err := st.readState(&d); err != nil {
+	if err := st.readState(&d, v); err != nil {
 		return nil, err
 	}
 	if d.err == nil && len(d.buf) != 0 {
@@ -164,8 +177,9 @@ func (s *Search) readSettings(d *decoder) error {
 	return d.err
 }
 
-// readState reads the state part of a checkpoint into s.
-func (s *Search) readState(d *decoder) error {
+// readState reads the state part of a checkpoint of the given version
+// into s.
+func (s *Search) readState(d *decoder, version uint32) error {
 	n, m, c := len(s.shape.bounds), s.shape.nObj, s.shape.nCon
 	s.started = d.bool()
 	s.generation = d.int()
@@ -212,6 +226,13 @@ func (s *Search) readState(d *decoder) error {
 		}
 		s.front.sols = append(s.front.sols, sol)
 	}
+	s.front.closest = nil
+	if version >= 2 {
+		s.front.closest = readClosest(d, n, m, c)
+	}
+	if d.err == nil && len(s.front.sols) > 0 && len(s.front.closest) > 0 {
+		d.fail("closest points beside a feasible archive")
+	}
 
 	count = int(d.u32())
 	s.history = nil
@@ -223,6 +244,22 @@ func (s *Search) readState(d *decoder) error {
 		d.fail("%d history entries for generation %d", len(s.history), s.generation)
 	}
 	return d.err
+}
+
+// readClosest reads the closest part of a checkpoint: infeasible points
+// in the archive's order.
+func readClosest(d *decoder, n, m, c int) []*Solution {
+	var out []*Solution
+	count := int(d.u32())
+	for k := 0; k < count && d.err == nil; k++ {
+		sol := &Solution{Genes: d.f64s(n), Objectives: d.f64s(m), Violations: d.f64s(c)}
+		sol.Reason = d.str()
+		if d.err == nil && k > 0 && solutionOrder(out[k-1], sol) >= 0 {
+			d.fail("closest points not in order at solution %d", k)
+		}
+		out = append(out, sol)
+	}
+	return out
 }
 
 func sameBits(a, b []float64) bool {

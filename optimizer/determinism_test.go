@@ -32,6 +32,7 @@ func determinismCases() []struct {
 		{"CONSTR", constr{}, base(2)},
 		{"DTLZ2 odd population", dtlz2{n: 12}, odd},
 		{"faulty", faulty{}, base(10)},
+		{"no feasible point", unreachable{}, base(2)},
 	}
 }
 

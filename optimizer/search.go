@@ -88,14 +88,21 @@ func (s *Search) ReferencePoint() []float64 { return slices.Clone(s.ref) }
 
 // Front returns a copy of the archive: every feasible point seen that no
 // other feasible point seen dominates, one per objective vector, sorted by
-// objectives and then genes lexicographically.
+// objectives and then genes lexicographically. While no feasible point has
+// been seen it returns the least violating points instead (Feasible false,
+// see Feasible), so it is empty only before any evaluation succeeded.
 func (s *Search) Front() []Solution {
-	out := make([]Solution, len(s.front.sols))
-	for i, sol := range s.front.sols {
+	members := s.front.members()
+	out := make([]Solution, len(members))
+	for i, sol := range members {
 		out[i] = sol.clone()
 	}
 	return out
 }
+
+// Feasible reports whether any feasible point has been seen, that is
+// whether Front holds feasible points.
+func (s *Search) Feasible() bool { return len(s.front.sols) > 0 }
 
 // Population returns a copy of the current survivors and children of every
 // island, islands in order.

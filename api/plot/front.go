@@ -2,6 +2,7 @@ package plot
 
 import (
 	"fmt"
+	"image/color"
 	"math"
 	"slices"
 
@@ -260,8 +261,9 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 	if err != nil {
 		return nil, nil, err
 	}
+	alpha, radius := dotAlpha(len(sols))
 	dots.GlyphStyleFunc = func(i int) draw.GlyphStyle {
-		return draw.GlyphStyle{Color: fr.scale.at(fr.values[i]), Radius: vg.Points(3.2), Shape: draw.CircleGlyph{}}
+		return draw.GlyphStyle{Color: translucent(fr.scale.at(fr.values[i]), alpha), Radius: radius, Shape: draw.CircleGlyph{}}
 	}
 	dots.GlyphStyle = draw.GlyphStyle{Color: fr.scale.at((fr.scale.lo + fr.scale.hi) / 2), Radius: vg.Points(3.2), Shape: draw.CircleGlyph{}}
 	rims, err := plotter.NewScatter(pts)
@@ -269,7 +271,12 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 		return nil, nil, err
 	}
 	rims.GlyphStyle = draw.GlyphStyle{Color: colOutline, Radius: vg.Points(3.2), Shape: draw.RingGlyph{}}
-	p.Add(dots, rims)
+	p.Add(dots)
+	if alpha == 1 {
+		// Outlines only on a sparse front: on a dense one they merge
+		// into a grey mass that hides the colours and the density.
+		p.Add(rims)
+	}
 
 	var leg *plot.Legend
 	if legend {
@@ -336,14 +343,65 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 			leg.Add("candidate setup", thumb(sc))
 		}
 	}
-	if len(labels) > 0 {
-		l, err := newLabels(labelPts, labels, vg.Point{X: vg.Points(8), Y: vg.Points(3)})
+	for k, off := range labelOffsets(labelPts, pts) {
+		l, err := newLabels(labelPts[k:k+1], labels[k:k+1], off)
 		if err != nil {
 			return nil, nil, err
 		}
 		p.Add(l)
 	}
 	return p, leg, nil
+}
+
+// sparseFront is the most solutions a panel draws as opaque outlined
+// dots; more are drawn translucent, so that overlap shows as density.
+const sparseFront = 150
+
+// dotAlpha is the opacity and radius of the dots of a front of n
+// solutions: opaque up to sparseFront, then sparseFront/n (about as much
+// ink in all as a sparse front's), but not below 0.2 so that a lone
+// dot stays visible.
+func dotAlpha(n int) (float64, vg.Length) {
+	if n <= sparseFront {
+		return 1, vg.Points(3.2)
+	}
+	return max(0.2, float64(sparseFront)/float64(n)), vg.Points(2.6)
+}
+
+// translucent is c with opacity alpha.
+func translucent(c color.Color, alpha float64) color.Color {
+	if alpha >= 1 {
+		return c
+	}
+	n := color.NRGBAModel.Convert(c).(color.NRGBA)
+	n.A = uint8(math.Round(float64(n.A) * alpha))
+	return n
+}
+
+// labelOffsets places the labels of the highlighted points (balanced,
+// marked, candidates) apart: a label whose point lies within 6 % of the
+// panel's span of an earlier label's point (in both x and y) goes one
+// text line lower than that one, so that no two labels print over each
+// other. all are the panel's points, which set the span.
+func labelOffsets(at plotter.XYs, all plotter.XYs) []vg.Point {
+	xlo, xhi, ylo, yhi := plotter.XYRange(all)
+	for _, p := range at {
+		xlo, xhi, ylo, yhi = min(xlo, p.X), max(xhi, p.X), min(ylo, p.Y), max(yhi, p.Y)
+	}
+	near := func(a, b plotter.XY) bool {
+		return math.Abs(a.X-b.X) <= 0.06*(xhi-xlo) && math.Abs(a.Y-b.Y) <= 0.06*(yhi-ylo)
+	}
+	off := make([]vg.Point, len(at))
+	line := make([]int, len(at))
+	for k := range at {
+		for j := range k {
+			if near(at[k], at[j]) && line[k] <= line[j] {
+				line[k] = line[j] + 1
+			}
+		}
+		off[k] = vg.Point{X: vg.Points(8), Y: vg.Points(3 - 11*float64(line[k]))}
+	}
+	return off
 }
 
 // notes are the footnote lines of a front chart.
@@ -354,7 +412,7 @@ func (fr *frontData) notes() []string {
 		n = append(n, fmt.Sprintf("Showing %d of the %d solutions of the front.", len(fr.f.GetSolutions()), total))
 	}
 	if fr.f.GetPartial() {
-		n = append(n, "Partial front: the job was cancelled or failed; this is its best so far.")
+		n = append(n, "Partial front: the job runs, was cancelled or failed; this is its best so far.")
 	}
 	return n
 }

@@ -76,7 +76,13 @@ func (h *Handler) frontSVG(w http.ResponseWriter, r *http.Request) {
 		http.Error(w, "the front is empty: there is nothing to draw", http.StatusNotFound)
 		return
 	}
-	h.writeFigure(w, fileStem(id)+"-front.svg", true, func() (*plot.Figure, error) { return frontFigure(front) })
+	title := ""
+	ctx, cancel := h.callContext(r)
+	defer cancel()
+	if jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(id), View: pb.JobView_JOB_VIEW_BASIC}); err == nil {
+		title = jr.GetJob().GetDisplayName()
+	}
+	h.writeFigure(w, fileStem(id)+"-front.svg", true, func() (*plot.Figure, error) { return frontFigure(front, title, -1) })
 }
 
 // curvesSVG is the damper curve chart of one solution: inline for the job

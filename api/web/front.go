@@ -51,11 +51,19 @@ func solutionAt(front *pb.Front, k int) *pb.Solution {
 }
 
 // frontFigure is the chart of a front: two or three objectives (the
-// first three of more), coloured by the front/rear balance.
-func frontFigure(front *pb.Front) (*plot.Figure, error) {
-	var opt plot.FrontOptions
+// first three of more), coloured by the front/rear balance, titled with
+// the job's display name (its resource name when it has none), the
+// selected solution (a Solution.index; -1 for none) boxed.
+func frontFigure(front *pb.Front, title string, selected int32) (*plot.Figure, error) {
+	if title == "" {
+		title = front.GetJob()
+	}
+	opt := plot.FrontOptions{Title: "Pareto front, " + title}
 	if n := len(front.GetObjectives()); n > 3 {
 		opt.Objectives = []int{0, 1, 2}
+	}
+	if selected >= 0 {
+		opt.Marked = []int32{selected}
 	}
 	return plot.Front(front, opt)
 }

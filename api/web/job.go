@@ -62,6 +62,8 @@ type jobView struct {
 	PollMS          int64
 
 	HypervolumeSVG template.HTML
+	ShowFront      bool // a front section: the job has finished, or runs and has checkpointed a front
+	WideFront      bool // the front chart has three panels and takes the page's width
 	FrontSVG       template.HTML
 	FrontProblem   string
 	FrontNote      string
@@ -98,7 +100,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 		v.Title = j.GetName()
 	}
 	for _, rc := range spec.GetRoadCases() {
-		v.RoadCases = append(v.RoadCases, fmt.Sprintf("%s at %.0f km/h", rc.GetName(), rc.GetSpeedMPerS()*kmhPerMPerS))
+		v.RoadCases = append(v.RoadCases, fmt.Sprintf("%s at %g m/s", rc.GetName(), rc.GetSpeedMPerS()))
 	}
 	objs := spec.GetObjectives()
 	for k, o := range objs {
@@ -118,13 +120,21 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 			}
 		}
 	}
-	if v.Terminal {
+	switch {
+	case v.Terminal:
 		front, err := h.wholeFront(ctx, j.GetName())
 		if err != nil {
 			h.serviceError(w, r, err, true)
 			return
 		}
 		h.frontSection(v, id, front, r.URL.Query().Get("solution"))
+	case j.GetState() == pb.JobState_JOB_STATE_RUNNING:
+		// The front so far, as of the last checkpoint; none yet is no
+		// error, the page shows its progress alone.
+		if front, err := h.wholeFront(ctx, j.GetName()); err == nil && len(front.GetSolutions()) > 0 {
+			h.frontSection(v, id, front, r.URL.Query().Get("solution"))
+			v.FrontNote = "The front so far, as of the job's last checkpoint; it grows until the job ends."
+		}
 	}
 	h.render(w, r, http.StatusOK, "job", v)
 }
@@ -133,6 +143,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 // selected solution.
 func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected string) {
 	sols := front.GetSolutions()
+	v.ShowFront, v.WideFront = true, len(front.GetObjectives()) >= 3
 	v.Total = front.GetTotalSize()
 	base := "/jobs/" + url.PathEscape(id)
 	v.Downloads = []link{
@@ -144,13 +155,6 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 		v.FrontNote = "The front is empty: no feasible setup was found. Loosen the constraints or widen the bounds."
 		return
 	}
-	if fig, err := frontFigure(front); err != nil {
-		v.FrontProblem = "The front chart cannot be drawn: " + err.Error()
-	} else if b, err := svgBytes(fig); err != nil {
-		v.FrontProblem = "The front chart cannot be drawn: " + err.Error()
-	} else {
-		v.FrontSVG = inlineSVG(b)
-	}
 	bal, err := plot.BalancedSolution(sols)
 	if err == nil && bal >= 0 {
 		v.Balanced = sols[bal].GetIndex()
@@ -158,6 +162,13 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 	pick := v.Balanced
 	if k, err := strconv.Atoi(selected); err == nil && solutionAt(front, k) != nil {
 		pick = int32(k)
+	}
+	if fig, err := frontFigure(front, v.Title, pick); err != nil {
+		v.FrontProblem = "The front chart cannot be drawn: " + err.Error()
+	} else if b, err := svgBytes(fig); err != nil {
+		v.FrontProblem = "The front chart cannot be drawn: " + err.Error()
+	} else {
+		v.FrontSVG = inlineSVG(b)
 	}
 	v.Headers, v.Rows = solutionTable(id, front, v.Balanced, pick)
 	if s := solutionAt(front, int(pick)); s != nil {

@@ -18,14 +18,13 @@ import (
 //	damper slope              N s/m  -> N s/mm         / 1000
 //	angle                     rad    -> deg            x 180/π
 //	acceleration              m/s²   -> g              / 9.80665
-//	road speed                m/s    -> km/h           x 3.6
+//	road speed                m/s    (as the spec and the command line)
 const (
-	mmPerM      = 1000.0
-	percent     = 100.0
-	degPerRad   = 180 / math.Pi
-	gravitySI   = 9.80665 // standard acceleration of gravity, m/s² (3rd CGPM, 1901)
-	nsPerMmSI   = 1000.0  // N s/m per N s/mm
-	kmhPerMPerS = 3.6     // km/h per m/s
+	mmPerM    = 1000.0
+	percent   = 100.0
+	degPerRad = 180 / math.Pi
+	gravitySI = 9.80665 // standard acceleration of gravity, m/s² (3rd CGPM, 1901)
+	nsPerMmSI = 1000.0  // N s/m per N s/mm
 )
 
 // quantity says how a value is named and shown: in the table (label,
