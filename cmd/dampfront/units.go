@@ -112,7 +112,7 @@ func constraintQuantity(k pb.ConstraintKind) quantity {
 	case pb.ConstraintKind_CONSTRAINT_KIND_JACKING:
 		return quantity{"ride-height shift", "mm", mmPerM, 2, "ride_height_shift_m"}
 	case pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO:
-		return quantity{"modal ratio", "", 1, 3, "modal_damping_ratio"}
+		return quantity{"modal ratio", "-", 1, 3, "modal_damping_ratio"}
 	}
 	name := strings.ToLower(strings.TrimPrefix(k.String(), "CONSTRAINT_KIND_"))
 	return quantity{name, "", 1, 4, name}
