@@ -100,20 +100,35 @@ func (s *Server) VerifySetup(ctx context.Context, req *pb.VerifySetupRequest) (*
 
 // verifyReportToProto converts a Verify report.
 func verifyReportToProto(rep *model.VerifyReport, duration, threshold float64) *pb.VerifySetupResponse {
-	out := &pb.VerifySetupResponse{Seed: rep.Seed, DurationS: duration, Caution: model.Caution}
+	out := &pb.VerifySetupResponse{Seed: rep.Seed, DurationS: duration, Caution: model.Caution,
+		Verdict: verdictToProto(rep.Verdict()), VerdictSigmas: model.VerdictSigmas}
 	for i := range rep.Cases {
 		c := &rep.Cases[i]
 		vc := &pb.VerifiedCase{RoadCase: c.Case, StepS: c.Time.Step, SettleS: c.Time.Settle,
-			Warnings: c.Frequency.WarningStrings(threshold)}
+			Warnings: c.Frequency.WarningStrings(threshold), Verdict: verdictToProto(c.Verdict())}
 		for _, r := range c.Rows {
 			se := r.StatError
 			if math.IsInf(se, 0) || math.IsNaN(se) {
 				se = 0
 			}
 			vc.Metrics = append(vc.Metrics, &pb.VerifiedMetric{Metric: r.Metric, FrequencyDomain: r.Frequency,
-				TimeDomain: r.Time, Difference: r.Diff, RelativeDifference: r.RelDiff, StatisticalError: se})
+				TimeDomain: r.Time, Difference: r.Diff, RelativeDifference: r.RelDiff, StatisticalError: se,
+				Verdict: verdictToProto(r.Verdict())})
 		}
 		out.Cases = append(out.Cases, vc)
 	}
 	return out
+}
+
+// verdictToProto converts a verdict of the time-domain check.
+func verdictToProto(v model.Verdict) pb.Verdict {
+	switch v {
+	case model.VerdictHolds:
+		return pb.Verdict_VERDICT_HOLDS
+	case model.VerdictDiffers:
+		return pb.Verdict_VERDICT_DIFFERS
+	case model.VerdictNotJudged:
+		return pb.Verdict_VERDICT_NOT_JUDGED
+	}
+	return pb.Verdict_VERDICT_UNSPECIFIED
 }

@@ -15,8 +15,9 @@ import (
 
 // VerifySetup carries model.Verify's report unchanged: the same spec,
 // setup, seed and record length give the same figures in-process as
-// through the call, bit for bit (one code path), with the caution; a
-// stored job's spec gives the same as the spec itself.
+// through the call, bit for bit (one code path), with the caution and
+// the model's verdict of every metric, case and the report; a stored
+// job's spec gives the same as the spec itself.
 func TestVerifySetupMatchesTheModel(t *testing.T) {
 	t.Parallel()
 	b := setup2(t)
@@ -43,15 +44,21 @@ func TestVerifySetupMatchesTheModel(t *testing.T) {
 	if got.GetSeed() != seed || got.GetDurationS() != duration || got.GetCaution() != model.Caution || len(got.GetCases()) != len(want.Cases) {
 		t.Fatalf("response seed %d, duration %g, %d cases, caution %q", got.GetSeed(), got.GetDurationS(), len(got.GetCases()), got.GetCaution())
 	}
+	if got.GetVerdict() != verdictWant[want.Verdict()] || got.GetVerdictSigmas() != model.VerdictSigmas {
+		t.Errorf("response verdict %v over %g errors; the model's is %v over %d", got.GetVerdict(), got.GetVerdictSigmas(), want.Verdict(), model.VerdictSigmas)
+	}
 	for i, wc := range want.Cases {
 		gc := got.GetCases()[i]
 		if gc.GetRoadCase() != wc.Case || gc.GetStepS() != wc.Time.Step || len(gc.GetMetrics()) != len(wc.Rows) {
 			t.Fatalf("case %d: %q, step %g, %d metrics; want %q, %g, %d", i, gc.GetRoadCase(), gc.GetStepS(), len(gc.GetMetrics()), wc.Case, wc.Time.Step, len(wc.Rows))
 		}
+		if gc.GetVerdict() != verdictWant[wc.Verdict()] {
+			t.Errorf("case %d: verdict %v, the model's %v", i, gc.GetVerdict(), wc.Verdict())
+		}
 		for k, r := range wc.Rows {
 			m := gc.GetMetrics()[k]
 			if m.GetMetric() != r.Metric || m.GetFrequencyDomain() != r.Frequency || m.GetTimeDomain() != r.Time ||
-				m.GetDifference() != r.Diff || m.GetStatisticalError() != r.StatError {
+				m.GetDifference() != r.Diff || m.GetStatisticalError() != r.StatError || m.GetVerdict() != verdictWant[r.Verdict()] {
 				t.Errorf("case %d, %s: got %v; want %+v", i, r.Metric, m, r)
 			}
 		}
@@ -67,6 +74,14 @@ func TestVerifySetupMatchesTheModel(t *testing.T) {
 	if !proto.Equal(fromJob, got) {
 		t.Error("VerifySetup on the job's stored spec differs from the same on the spec")
 	}
+}
+
+// verdictWant is the message's verdict for each of the model's, written
+// out here rather than taken from the conversion under test.
+var verdictWant = map[model.Verdict]pb.Verdict{
+	model.VerdictHolds:     pb.Verdict_VERDICT_HOLDS,
+	model.VerdictDiffers:   pb.Verdict_VERDICT_DIFFERS,
+	model.VerdictNotJudged: pb.Verdict_VERDICT_NOT_JUDGED,
 }
 
 // Every bad field is named; an unknown job is NotFound.

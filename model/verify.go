@@ -220,3 +220,121 @@ func (c *VerifyCase) Row(metric string) (VerifyRow, bool) {
 	}
 	return VerifyRow{}, false
 }
+
+// VerdictSigmas is how many statistical errors a time-domain value may lie
+// from the frequency-domain one before the check says the linear answer
+// differs: for a Gaussian estimate, |z| > 3 has probability 0.27 %
+// (common practice for a significance bound). The errors are upper bounds
+// for the standard deviations of a linear car (see Verify), so the bound
+// errs towards "holds".
+const VerdictSigmas = 3
+
+// Verdict is the time-domain check's judgement of the linear answer.
+type Verdict int
+
+const (
+	// VerdictNotJudged: the row has no statistical error to judge by
+	// (equivalent damping, mean damper force).
+	VerdictNotJudged Verdict = iota
+	// VerdictHolds: within VerdictSigmas statistical errors (for a case
+	// or a report: no row differs).
+	VerdictHolds
+	// VerdictDiffers: more than VerdictSigmas statistical errors off (for
+	// a case or a report: some row differs).
+	VerdictDiffers
+)
+
+func (v Verdict) String() string {
+	switch v {
+	case VerdictHolds:
+		return "holds"
+	case VerdictDiffers:
+		return "differs"
+	case VerdictNotJudged:
+		return "not judged"
+	}
+	return fmt.Sprintf("verdict(%d)", int(v))
+}
+
+// Judged reports whether the row has a statistical error to judge it by:
+// finite and above 0.
+func (r VerifyRow) Judged() bool {
+	return r.StatError > 0 && !math.IsInf(r.StatError, 0)
+}
+
+// Sigmas is |Diff|/StatError, the difference in statistical errors; NaN
+// when the row is not judged.
+func (r VerifyRow) Sigmas() float64 {
+	if !r.Judged() {
+		return math.NaN()
+	}
+	return math.Abs(r.Diff) / r.StatError
+}
+
+// Verdict judges the row: VerdictDiffers beyond VerdictSigmas
+// statistical errors.
+func (r VerifyRow) Verdict() Verdict {
+	switch {
+	case !r.Judged():
+		return VerdictNotJudged
+	case r.Sigmas() > VerdictSigmas:
+		return VerdictDiffers
+	}
+	return VerdictHolds
+}
+
+// Verdict judges the case: VerdictDiffers when any row does, else
+// VerdictHolds.
+func (c *VerifyCase) Verdict() Verdict {
+	for _, r := range c.Rows {
+		if r.Verdict() == VerdictDiffers {
+			return VerdictDiffers
+		}
+	}
+	return VerdictHolds
+}
+
+// Verdict judges the report: VerdictDiffers when any case does, else
+// VerdictHolds.
+func (rep *VerifyReport) Verdict() Verdict {
+	for i := range rep.Cases {
+		if rep.Cases[i].Verdict() == VerdictDiffers {
+			return VerdictDiffers
+		}
+	}
+	return VerdictHolds
+}
+
+// VerifySummary is a report in a few figures, for comparing the checks of
+// many setups.
+type VerifySummary struct {
+	Verdict Verdict // of the whole report
+	// Worst is the largest Sigmas over the cases' judged rows, NaN when
+	// no row is judged; WorstMetric and WorstCase name its row (the first
+	// of equal ones in case and row order).
+	Worst       float64
+	WorstMetric string
+	WorstCase   int
+	// LiftOff and BumpStop are the largest time fractions of any corner
+	// on any case off the road and beyond the bump-stop gap (-).
+	LiftOff, BumpStop float64
+}
+
+// Summary reduces the report to its summary.
+func (rep *VerifyReport) Summary() VerifySummary {
+	s := VerifySummary{Verdict: rep.Verdict(), Worst: math.NaN()}
+	judged := false
+	for ci := range rep.Cases {
+		c := &rep.Cases[ci]
+		for _, r := range c.Rows {
+			if r.Judged() && (!judged || r.Sigmas() > s.Worst) {
+				s.Worst, s.WorstMetric, s.WorstCase, judged = r.Sigmas(), r.Metric, ci, true
+			}
+		}
+		for i := range 4 {
+			s.LiftOff = math.Max(s.LiftOff, c.Time.LiftOffProbability[i])
+			s.BumpStop = math.Max(s.BumpStop, c.Time.BumpStopProbability[i])
+		}
+	}
+	return s
+}

@@ -1,21 +1,14 @@
 package plot
 
 import (
-	"math"
-	"strings"
-
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
+	"dampfront/model/tradeunit"
 )
 
-// Every conversion from the SI values of the API to the trade units on the
-// axes is in this file; the table is in the package doc.
-const (
-	mmPerM    = 1000.0        // mm per m; also mm/s per m/s
-	percent   = 100.0         // % per unit fraction
-	degPerRad = 180 / math.Pi // deg per rad
-	gravitySI = 9.80665       // standard acceleration of gravity, m/s² (3rd CGPM, 1901)
-	nsPerMmSI = 1000.0        // N s/m per N s/mm
-)
+// The axes show trade units, all of the one table of package tradeunit
+// (the command line's and the page's); the package doc lists them.
 
 // quantity names a plotted value and converts it from SI to its trade unit.
 type quantity struct {
@@ -23,6 +16,14 @@ type quantity struct {
 	unit  string  // trade unit; empty when dimensionless
 	scale float64 // trade value = SI value × scale
 }
+
+// axis is a quantity of the charts' own under name in the unit u.
+func axis(name string, u tradeunit.Unit) quantity {
+	return quantity{name, u.AxisSymbol(), u.Scale}
+}
+
+// si is a unit in which a chart shows SI values as they are.
+func si(symbol string) tradeunit.Unit { return tradeunit.Unit{Symbol: symbol, Scale: 1} }
 
 // of converts an SI value to the trade unit.
 func (q quantity) of(si float64) float64 { return si * q.scale }
@@ -37,42 +38,24 @@ func (q quantity) label() string {
 
 // Fixed quantities of the charts.
 var (
-	qDamperVelocity = quantity{"Damper velocity, bump positive", "mm/s", mmPerM}
-	qDamperForce    = quantity{"Damper force, bump positive", "N", 1}
-	qKnee           = quantity{"knee", "mm/s", mmPerM}
-	qSlope          = quantity{"slope", "N s/mm", 1 / nsPerMmSI}
-	qSpatialFreq    = quantity{"Spatial frequency n", "cycles/m", 1}
-	qRoadPSD        = quantity{"Displacement PSD Gd(n)", "m³", 1}
-	qGeneration     = quantity{"Generation", "", 1}
-	qBalance        = quantity{"Front/rear mean damping ratio", "", 1}
-	qFrequency      = quantity{"Frequency", "Hz", 1}
-	qTyreLoadPSD    = quantity{"Tyre load PSD", "N²/Hz", 1}
-	qRideHeightPSD  = quantity{"Ride-height PSD", "mm²/Hz", mmPerM * mmPerM}
+	qDamperVelocity = axis("Damper velocity, bump positive", tradeunit.MillimetrePerSecond)
+	qDamperForce    = axis("Damper force, bump positive", tradeunit.Newton)
+	qKnee           = axis("knee", tradeunit.MillimetrePerSecond)
+	qSlope          = axis("slope", tradeunit.NewtonSecondPerMM)
+	qSpatialFreq    = axis("Spatial frequency n", si("cycles/m"))
+	qRoadPSD        = axis("Displacement PSD Gd(n)", si("m³"))
+	qGeneration     = axis("Generation", tradeunit.None)
+	qBalance        = axis("Front/rear mean damping ratio", tradeunit.None)
+	qFrequency      = axis("Frequency", si("Hz"))
+	qTyreLoadPSD    = axis("Tyre load PSD", si("N²/Hz"))
+	qRideHeightPSD  = axis("Ride-height PSD", tradeunit.MillimetreSquaredPerHertz)
 )
 
 // objectiveQuantity is how an objective is named and scaled on an axis;
 // a worst-case aggregation says so in the name.
 func objectiveQuantity(o *pb.Objective) quantity {
-	var q quantity
-	switch o.GetKind() {
-	case pb.ObjectiveKind_OBJECTIVE_KIND_GRIP:
-		q = quantity{"Grip: tyre load variation", "% of static load", percent}
-	case pb.ObjectiveKind_OBJECTIVE_KIND_PLATFORM:
-		q = quantity{"Platform: ride-height variation", "mm", mmPerM}
-	case pb.ObjectiveKind_OBJECTIVE_KIND_FRONT_PLATFORM:
-		q = quantity{"Front platform: ride-height variation", "mm", mmPerM}
-	case pb.ObjectiveKind_OBJECTIVE_KIND_REAR_PLATFORM:
-		q = quantity{"Rear platform: ride-height variation", "mm", mmPerM}
-	case pb.ObjectiveKind_OBJECTIVE_KIND_PITCH:
-		q = quantity{"Pitch variation", "deg", degPerRad}
-	case pb.ObjectiveKind_OBJECTIVE_KIND_ROLL:
-		q = quantity{"Roll variation", "deg", degPerRad}
-	case pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:
-		q = quantity{"Heave acceleration", "g", 1 / gravitySI}
-	default:
-		name := strings.ToLower(strings.TrimPrefix(o.GetKind().String(), "OBJECTIVE_KIND_"))
-		q = quantity{strings.ReplaceAll(name, "_", " "), "SI", 1}
-	}
+	t := tradeunit.Objective(api.ModelObjectiveKind(o.GetKind()))
+	q := axis(t.Title, t.Unit)
 	if o.GetAggregation() == pb.Aggregation_AGGREGATION_WORST {
 		q.name += ", worst case"
 	}
@@ -82,32 +65,21 @@ func objectiveQuantity(o *pb.Objective) quantity {
 // geneQuantity is how a searched variable is named and scaled: knees
 // (names ending in _m_per_s) in mm/s, ratios and factors as they are.
 func geneQuantity(name string) quantity {
-	label := strings.ReplaceAll(name, "_", " ")
-	if label != "" {
-		label = strings.ToUpper(label[:1]) + label[1:]
-	}
-	if strings.HasSuffix(name, "_m_per_s") {
-		return quantity{strings.TrimSuffix(label, " m per s"), "mm/s", mmPerM}
-	}
-	return quantity{label, "", 1}
+	t := tradeunit.Gene(name)
+	return axis(t.Title, t.Unit)
 }
 
 // hypervolumeQuantity is the hypervolume in the product of the
-// objectives' trade units; without objectives it stays in SI.
+// objectives' trade units (grip in plain %); without objectives it stays
+// in SI.
 func hypervolumeQuantity(objs []*pb.Objective) quantity {
 	if len(objs) == 0 {
 		return quantity{"Hypervolume", "product of SI units", 1}
 	}
-	q := quantity{"Hypervolume", "", 1}
-	units := make([]string, len(objs))
+	kinds := make([]model.ObjectiveKind, len(objs))
 	for j, o := range objs {
-		oq := objectiveQuantity(o)
-		q.scale *= oq.scale
-		units[j] = oq.unit
-		if oq.unit == "% of static load" {
-			units[j] = "%"
-		}
+		kinds[j] = api.ModelObjectiveKind(o.GetKind())
 	}
-	q.unit = strings.Join(units, " × ")
-	return q
+	u := tradeunit.Hypervolume(kinds)
+	return quantity{"Hypervolume", u.Symbol, u.Scale}
 }

@@ -19,8 +19,8 @@ var curvesCommand = &command{
 	run:     runCurves,
 }
 
-func runCurves(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "curves", "[flags] JOB", `
+// curvesAbout is the help text of curves.
+const curvesAbout = `
 Prints the damper force-velocity curves at the component (damper velocity
 and force, not wheel) of one setup on a job's car: a solution of the
 job's front (--solution, or the balanced point by default) or a setup
@@ -28,7 +28,10 @@ file (--setup). Per corner, at each damper speed, the force of the setting
 in bump and in rebound (velocity positive in bump, rebound forces
 negative) and, when an adjuster range is known (the spec's, or --adjust-*),
 the forces at its softest and stiffest clicks. Corners with equal curves
-are printed once.`)
+are printed once.`
+
+func runCurves(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "curves", "[flags] JOB", curvesAbout)
 	cf := addClientFlags(fs, e)
 	solution := fs.Int("solution", -1, "`index` of a solution of the job's front")
 	fs.Bool("balanced", false, "the balanced point of the front (the default without --solution or --setup)")
@@ -44,14 +47,7 @@ are printed once.`)
 	if err != nil {
 		return err
 	}
-	given := 0
-	fs.Visit(func(f *flag.Flag) {
-		switch f.Name {
-		case "solution", "balanced", "setup":
-			given++
-		}
-	})
-	if given > 1 {
+	if countSet(fs, "solution", "balanced", "setup") > 1 {
 		return usagef("curves", "give at most one of --solution, --balanced and --setup")
 	}
 	if isFlagSet(fs, "solution") && *solution < 0 {
@@ -69,30 +65,9 @@ are printed once.`)
 	}
 	defer c.Close()
 	req := &pb.GetDamperCurvesRequest{Job: jobName(pos[0])}
-	title := ""
-	switch {
-	case *setupPath != "":
-		setups, err := readSetups(e, []string{*setupPath})
-		if err != nil {
-			return err
-		}
-		req.Target = &pb.GetDamperCurvesRequest_Setup{Setup: setups[0]}
-		title = "setup " + *setupPath
-	case *solution >= 0:
-		req.Target = &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: int32(*solution)}
-		title = fmt.Sprintf("solution %d", *solution)
-	default:
-		fd, err := fetchFront(ctx, c, req.Job, pb.SolutionView_SOLUTION_VIEW_BASIC)
-		if err != nil {
-			return err
-		}
-		b := balancedIndex(fd.front.GetSolutions())
-		if b < 0 {
-			return &exitError{code: exitFailure, msg: "the front of " + req.Job + " is empty: no balanced point"}
-		}
-		idx := fd.front.GetSolutions()[b].GetIndex()
-		req.Target = &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: idx}
-		title = fmt.Sprintf("balanced point, solution %d", idx)
+	title, err := curvesTarget(ctx, e, c, req, *setupPath, *solution)
+	if err != nil {
+		return err
 	}
 	if bump.set {
 		req.Adjustment = &pb.Adjustment{BumpSoftestRatio: bump.min, BumpStiffestRatio: bump.max,
@@ -124,6 +99,45 @@ are printed once.`)
 	}
 	printCaution(e.stdout)
 	return nil
+}
+
+// curvesTarget sets the request's setup: a setup file, a solution, or
+// the balanced point of the job's front; it returns its name.
+func curvesTarget(ctx context.Context, e *env, c *client, req *pb.GetDamperCurvesRequest, setupPath string, solution int) (string, error) {
+	switch {
+	case setupPath != "":
+		setups, err := readSetups(e, []string{setupPath})
+		if err != nil {
+			return "", err
+		}
+		req.Target = &pb.GetDamperCurvesRequest_Setup{Setup: setups[0]}
+		return "setup " + setupPath, nil
+	case solution >= 0:
+		req.Target = &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: int32(solution)}
+		return fmt.Sprintf("solution %d", solution), nil
+	}
+	fd, err := fetchFront(ctx, c, req.Job, pb.SolutionView_SOLUTION_VIEW_BASIC)
+	if err != nil {
+		return "", err
+	}
+	b := balancedIndex(fd.front.GetSolutions())
+	if b < 0 {
+		return "", &exitError{code: exitFailure, msg: "the front of " + req.Job + " is empty: no balanced point"}
+	}
+	idx := fd.front.GetSolutions()[b].GetIndex()
+	req.Target = &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: idx}
+	return fmt.Sprintf("balanced point, solution %d", idx), nil
+}
+
+// countSet is how many of the named flags are set.
+func countSet(fs *flagSet, names ...string) int {
+	n := 0
+	fs.Visit(func(f *flag.Flag) {
+		if slices.Contains(names, f.Name) {
+			n++
+		}
+	})
+	return n
 }
 
 func isFlagSet(fs *flagSet, name string) bool {

@@ -30,8 +30,8 @@ var demoCommand = &command{
 	run:     runDemo,
 }
 
-func runDemo(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "demo", "[flags]", `
+// demoAbout is the help text of demo.
+const demoAbout = `
 Starts a server with an embedded worker on a temporary SQLite file and a
 free port of 127.0.0.1, submits the demo job (testdata/demo-job.yaml: the
 invented Quillon GT on three invented road cases), watches it with a
@@ -39,7 +39,10 @@ progress bar, prints the Pareto front and the damper curves of its
 balanced point, stops the server and removes the temporary files. While
 it runs, the job page (live progress, the front chart, the solutions and
 their damper curves) is served at the address printed; --serve-page
-keeps it open after the demo, until interrupted.`)
+keeps it open after the demo, until interrupted.`
+
+func runDemo(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "demo", "[flags]", demoAbout)
 	keep := fs.Bool("keep", false, "keep the temporary directory with the database and print how to serve it")
 	specPath := fs.String("spec", "", "run this job spec `file` instead of the demo's")
 	workers := fs.Int("eval-workers", 0, "evaluations run at once; 0 means one per CPU")
@@ -53,12 +56,8 @@ keeps it open after the demo, until interrupted.`)
 		return usagef("demo", "--eval-workers must not be negative")
 	}
 	start := time.Now()
-	spec := &pb.JobSpec{}
-	if *specPath != "" {
-		if err := readMessage(e, *specPath, spec); err != nil {
-			return err
-		}
-	} else if err := decodeMessage("testdata/demo-job.yaml", demoJob, spec); err != nil {
+	spec, err := demoSpec(e, *specPath)
+	if err != nil {
 		return err
 	}
 
@@ -73,23 +72,8 @@ keeps it open after the demo, until interrupted.`)
 		}
 	}()
 
-	ef := &engineFlags{logLevel: "warn", logFormat: "text"}
-	if *verbose {
-		ef.logLevel = "info"
-	}
-	log := ef.logger(e.stderr)
-	cfg := jobs.Config{
-		DatabaseURL: db,
-		Workers:     1,
-		// The demo's job is short: poll the queue often so that it starts
-		// and its progress shows at once.
-		FetchPollInterval: 50 * time.Millisecond,
-		ProgressInterval:  100 * time.Millisecond,
-		WatchInterval:     100 * time.Millisecond,
-		StopTimeout:       10 * time.Second,
-		NodeID:            fmt.Sprintf("demo-%d", os.Getpid()),
-		Logger:            log,
-	}
+	cfg := demoConfig(e, db, *verbose)
+	log := cfg.Logger
 	wf.configure(&cfg, log)
 	eng, err := openEngine(ctx, cfg, *workers)
 	if err != nil {
@@ -127,6 +111,37 @@ keeps it open after the demo, until interrupted.`)
 	}
 	printCaution(e.stdout)
 	return nil
+}
+
+// demoSpec is the job spec of the demo: the file's, or the embedded one.
+func demoSpec(e *env, path string) (*pb.JobSpec, error) {
+	spec := &pb.JobSpec{}
+	if path != "" {
+		return spec, readMessage(e, path, spec)
+	}
+	return spec, decodeMessage("testdata/demo-job.yaml", demoJob, spec)
+}
+
+// demoConfig is the engine's configuration of the demo on the SQLite file db.
+func demoConfig(e *env, db string, verbose bool) jobs.Config {
+	ef := &engineFlags{logLevel: "warn", logFormat: "text"}
+	if verbose {
+		ef.logLevel = "info"
+	}
+	log := ef.logger(e.stderr)
+	cfg := jobs.Config{
+		DatabaseURL: db,
+		Workers:     1,
+		// The demo's job is short: poll the queue often so that it starts
+		// and its progress shows at once.
+		FetchPollInterval: 50 * time.Millisecond,
+		ProgressInterval:  100 * time.Millisecond,
+		WatchInterval:     100 * time.Millisecond,
+		StopTimeout:       10 * time.Second,
+		NodeID:            fmt.Sprintf("demo-%d", os.Getpid()),
+		Logger:            log,
+	}
+	return cfg
 }
 
 // demo is the client side of the demo, over the loopback port; pageURL

@@ -9,6 +9,7 @@ import (
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/model"
+	"dampfront/model/tradeunit"
 )
 
 var handCommand = &command{
@@ -52,7 +53,7 @@ func runHand(_ context.Context, e *env, args []string) error {
 	fs.StringVar(&h.spec, "spec", "", "the car, adjuster range and base knees of a job spec `file`")
 	fs.Float64Var(&h.bump, "bump", model.HandBumpRatio, "target bump `ratio` at the wheel (common practice)")
 	fs.Float64Var(&h.rebound, "rebound", model.HandReboundRatio, "target rebound `ratio` at the wheel (common practice)")
-	fs.Float64Var(&h.knee, "knee", model.HandKnee*mmPerSPerM, "knee velocity at the damper, `mm/s` (common practice)")
+	fs.Float64Var(&h.knee, "knee", tradeunit.MillimetrePerSecond.Of(model.HandKnee), "knee velocity at the damper, `mm/s` (common practice)")
 	fs.Float64Var(&h.highSpeed, "high-speed", model.HandHighSpeedFactor, "high-speed slope over the low-speed one, a `factor` (common practice)")
 	fs.Var(&h.adjust, "adjust", fmt.Sprintf("adjuster band as ratios at the wheel, `SOFTEST,STIFFEST` (common practice %g,%g; 0,0 leaves it out)", model.HandSoftestRatio, model.HandStiffestRatio))
 	fs.Float64Var(&h.speed, "speed", 0, "speed of the modal figures, `m/s` (sets the aero stiffness; 0 standing)")
@@ -149,15 +150,15 @@ var handBranchRows = []struct {
 	q   quantity
 	get func(*pb.HandBranch) float64
 }{
-	{quantity{"ratio", "", 1, 2, "ratio"}, (*pb.HandBranch).GetRatio},
-	{qBranchSlope, (*pb.HandBranch).GetSlopeNSPerM},
-	{quantity{"knee", "mm/s", mmPerSPerM, 0, "knee_m_per_s"}, (*pb.HandBranch).GetKneeMPerS},
-	{quantity{"force at knee", "N", 1, 0, "knee_force_n"}, (*pb.HandBranch).GetKneeForceN},
-	{quantity{"high-speed slope", "N s/mm", 1 / nsPerMmSI, 2, "high_speed_slope_n_s_per_m"}, (*pb.HandBranch).GetHighSpeedSlopeNSPerM},
-	{quantity{"softest slope", "N s/mm", 1 / nsPerMmSI, 2, "softest_slope_n_s_per_m"}, (*pb.HandBranch).GetSoftestSlopeNSPerM},
-	{quantity{"stiffest slope", "N s/mm", 1 / nsPerMmSI, 2, "stiffest_slope_n_s_per_m"}, (*pb.HandBranch).GetStiffestSlopeNSPerM},
-	{quantity{"softest at knee", "N", 1, 0, "softest_knee_force_n"}, (*pb.HandBranch).GetSoftestKneeForceN},
-	{quantity{"stiffest at knee", "N", 1, 0, "stiffest_knee_force_n"}, (*pb.HandBranch).GetStiffestKneeForceN},
+	{newQuantity("ratio", tradeunit.None, 2, "ratio"), (*pb.HandBranch).GetRatio},
+	{qSlope, (*pb.HandBranch).GetSlopeNSPerM},
+	{qKnee, (*pb.HandBranch).GetKneeMPerS},
+	{newQuantity("force at knee", tradeunit.Newton, 0, "knee_force_n"), (*pb.HandBranch).GetKneeForceN},
+	{newQuantity("high-speed slope", tradeunit.NewtonSecondPerMM, 2, "high_speed_slope_n_s_per_m"), (*pb.HandBranch).GetHighSpeedSlopeNSPerM},
+	{newQuantity("softest slope", tradeunit.NewtonSecondPerMM, 2, "softest_slope_n_s_per_m"), (*pb.HandBranch).GetSoftestSlopeNSPerM},
+	{newQuantity("stiffest slope", tradeunit.NewtonSecondPerMM, 2, "stiffest_slope_n_s_per_m"), (*pb.HandBranch).GetStiffestSlopeNSPerM},
+	{newQuantity("softest at knee", tradeunit.Newton, 0, "softest_knee_force_n"), (*pb.HandBranch).GetSoftestKneeForceN},
+	{newQuantity("stiffest at knee", tradeunit.Newton, 0, "stiffest_knee_force_n"), (*pb.HandBranch).GetStiffestKneeForceN},
 }
 
 func writeHandTable(w io.Writer, name string, r *pb.EstimateByHandResponse) error {

@@ -37,8 +37,8 @@ var plotCharts = map[string][]string{
 	"spectra":     {"spec", "setup", "case", "solution", "balanced"},
 }
 
-func runPlot(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "plot", "CHART [flags] [JOB] (--svg FILE | --png FILE)", `
+// plotAbout is the help text of plot.
+const plotAbout = `
 Writes one chart to --svg FILE, --png FILE or both. Charts:
 
   front JOB          the Pareto front: each pair of objectives in trade
@@ -61,7 +61,10 @@ Writes one chart to --svg FILE, --png FILE or both. Charts:
                      file's, with no server. Computed here.
 
 The page is --width by --height in mm (0: the chart's own size), PNGs at
---dpi. Every chart carries the model's caution in its footnote.`)
+--dpi. Every chart carries the model's caution in its footnote.`
+
+func runPlot(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "plot", "CHART [flags] [JOB] (--svg FILE | --png FILE)", plotAbout)
 	cf := addClientFlags(fs, e)
 	svgPath := fs.String("svg", "", "write the chart as SVG to this `file`")
 	pngPath := fs.String("png", "", "write the chart as PNG to this `file`")
@@ -90,37 +93,20 @@ The page is --width by --height in mm (0: the chart's own size), PNGs at
 	if !ok {
 		return usagef("plot", "unknown chart %q (want front, curves, hypervolume, road or spectra)", chart)
 	}
-	var wrong []string
-	fs.Visit(func(f *flag.Flag) {
-		for c, names := range plotCharts {
-			if c != chart && slices.Contains(names, f.Name) && !slices.Contains(own, f.Name) && !slices.Contains(wrong, f.Name) {
-				wrong = append(wrong, f.Name)
-			}
-		}
-	})
-	if len(wrong) > 0 {
-		slices.Sort(wrong)
-		return usagef("plot", "--%s: not a flag of the %s chart", strings.Join(wrong, ", --"), chart)
+	if err := checkChartFlags(fs, chart, own); err != nil {
+		return err
 	}
 	job := ""
 	if len(pos) == 2 {
 		job = jobName(pos[1])
 	}
-	switch {
-	case *svgPath == "" && *pngPath == "":
+	if *svgPath == "" && *pngPath == "" {
 		return usagef("plot", "give --svg FILE, --png FILE or both")
-	case (chart == "front" || chart == "curves" || chart == "hypervolume") && job == "":
-		return usagef("plot", "the %s chart needs a JOB", chart)
-	case chart == "road" && (job == "") == (*specPath == ""):
-		return usagef("plot", "the road chart needs a JOB or --spec FILE, not both")
-	case chart == "spectra" && job == "" && (*specPath == "" || *setupPath == ""):
-		return usagef("plot", "the spectra chart needs a JOB, or --spec FILE and --setup FILE")
-	case chart == "spectra" && job != "" && *specPath != "":
-		return usagef("plot", "the spectra chart takes a JOB or --spec FILE, not both")
-	case chart == "spectra" && job == "" && (isFlagSet(fs, "solution") || isFlagSet(fs, "balanced")):
-		return usagef("plot", "--solution and --balanced need a JOB")
-	case isFlagSet(fs, "solution") && isFlagSet(fs, "balanced"), isFlagSet(fs, "setup") && (isFlagSet(fs, "solution") || isFlagSet(fs, "balanced")):
-		return usagef("plot", "give at most one of --solution, --balanced and --setup")
+	}
+	if err := checkPlotSource(fs, chart, job, *specPath, *setupPath); err != nil {
+		return err
+	}
+	switch {
 	case isFlagSet(fs, "solution") && *solution < 0:
 		return usagef("plot", "--solution must be a front index >= 0")
 	case *roadCase < 0:
@@ -144,31 +130,80 @@ The page is --width by --height in mm (0: the chart's own size), PNGs at
 		}
 		fallthrough
 	default:
-		var c *client
-		if c, err = cf.dial(); err != nil {
-			return err
-		}
-		defer c.Close()
-		switch chart {
-		case "front":
-			fig, err = plotFront(ctx, c, job, plot.FrontOptions{Objectives: objectives, ColourGene: *colour, Marked: int32s(marked)}, page)
-		case "curves":
-			fig, err = plotCurves(ctx, c, job, *solution, page)
-		case "hypervolume", "road":
-			fig, err = plotFromJob(ctx, c, job, chart, page)
-		}
+		fig, err = plotOfJob(ctx, cf, chart, job, plot.FrontOptions{Objectives: objectives, ColourGene: *colour, Marked: int32s(marked)}, *solution, page)
 	}
 	if err != nil {
 		return figureError(err)
 	}
 	fig.DPI = *dpi
-	// Both formats are rendered before either file is written, so that a
-	// page the PNG refuses leaves no SVG behind either.
+	return writeFigure(e, fig, chart, *svgPath, *pngPath)
+}
+
+// plotOfJob draws a chart of a job from the server: front (with opt),
+// curves (of the solution, or the balanced point when < 0), hypervolume
+// or road.
+func plotOfJob(ctx context.Context, cf *clientFlags, chart, job string, opt plot.FrontOptions, solution int, page plotPage) (*plot.Figure, error) {
+	c, err := cf.dial()
+	if err != nil {
+		return nil, err
+	}
+	defer c.Close()
+	switch chart {
+	case "front":
+		return plotFront(ctx, c, job, opt, page)
+	case "curves":
+		return plotCurves(ctx, c, job, solution, page)
+	}
+	return plotFromJob(ctx, c, job, chart, page)
+}
+
+// checkPlotSource refuses a chart without its JOB or spec file, or with
+// more than one of the setups to draw.
+func checkPlotSource(fs *flagSet, chart, job, specPath, setupPath string) error {
+	switch {
+	case (chart == "front" || chart == "curves" || chart == "hypervolume") && job == "":
+		return usagef("plot", "the %s chart needs a JOB", chart)
+	case chart == "road" && (job == "") == (specPath == ""):
+		return usagef("plot", "the road chart needs a JOB or --spec FILE, not both")
+	case chart == "spectra" && job == "" && (specPath == "" || setupPath == ""):
+		return usagef("plot", "the spectra chart needs a JOB, or --spec FILE and --setup FILE")
+	case chart == "spectra" && job != "" && specPath != "":
+		return usagef("plot", "the spectra chart takes a JOB or --spec FILE, not both")
+	case chart == "spectra" && job == "" && (isFlagSet(fs, "solution") || isFlagSet(fs, "balanced")):
+		return usagef("plot", "--solution and --balanced need a JOB")
+	case countSet(fs, "solution", "balanced", "setup") > 1:
+		return usagef("plot", "give at most one of --solution, --balanced and --setup")
+	}
+	return nil
+}
+
+// checkChartFlags refuses the flags of other charts than chart, whose
+// own flags are own.
+func checkChartFlags(fs *flagSet, chart string, own []string) error {
+	var wrong []string
+	fs.Visit(func(f *flag.Flag) {
+		for c, names := range plotCharts {
+			if c != chart && slices.Contains(names, f.Name) && !slices.Contains(own, f.Name) && !slices.Contains(wrong, f.Name) {
+				wrong = append(wrong, f.Name)
+			}
+		}
+	})
+	if len(wrong) > 0 {
+		slices.Sort(wrong)
+		return usagef("plot", "--%s: not a flag of the %s chart", strings.Join(wrong, ", --"), chart)
+	}
+	return nil
+}
+
+// writeFigure writes the chart as SVG to svgPath and PNG to pngPath
+// (each when not empty). Both formats are rendered before either file is
+// written, so that a page the PNG refuses leaves no SVG behind either.
+func writeFigure(e *env, fig *plot.Figure, chart, svgPath, pngPath string) error {
 	outs := []struct {
 		path   string
 		format plot.Format
 		b      bytes.Buffer
-	}{{path: *svgPath, format: plot.SVG}, {path: *pngPath, format: plot.PNG}}
+	}{{path: svgPath, format: plot.SVG}, {path: pngPath, format: plot.PNG}}
 	for i := range outs {
 		if outs[i].path != "" {
 			if err := fig.Write(&outs[i].b, outs[i].format); err != nil {
@@ -343,11 +378,7 @@ func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, se
 	if err != nil {
 		return nil, err
 	}
-	ev, err := model.NewEvaluator(in.Vehicle, in.RoadCases, in.Options)
-	if err != nil {
-		return nil, err
-	}
-	sp, cm, err := ev.Spectra(s, ci)
+	sp, cm, err := in.Evaluator.Spectra(s, ci)
 	if err != nil {
 		return nil, err
 	}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"log/slog"
 	"net"
 	"os"
 	"os/signal"
@@ -19,8 +20,8 @@ var serveCommand = &command{
 	run:     runServe,
 }
 
-func runServe(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "serve", "[flags]", `
+// serveAbout is the help text of serve.
+const serveAbout = `
 Runs the DampfrontService (gRPC, with the standard health service and
 server reflection) and, unless --workers is 0, works jobs in the same
 process. The database is a SQLite file by default, created and migrated
@@ -41,7 +42,10 @@ ones in use stay).
 --http-addr also serves a read-only job page (jobs, progress, fronts,
 damper curves; the same tokens, as a bearer header or a login form's
 cookie) and Prometheus metrics at /metrics (job counts, slice and call
-times; no token needed), off by default.`)
+times; no token needed), off by default.`
+
+func runServe(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "serve", "[flags]", serveAbout)
 	addr := fs.String("addr", envOr(e, "DAMPFRONT_ADDR", defaultAddr), "listen address host:port; port 0 picks a free one ($DAMPFRONT_ADDR)")
 	addrFile := fs.String("addr-file", "", "write the address actually listened on to this `file`")
 	ef, err := addEngineFlags(fs, e, true)
@@ -105,29 +109,33 @@ times; no token needed), off by default.`)
 		_ = svc.shutdown()
 		return err
 	}
-	// SIGHUP reads the tokens file and the certificate again.
-	hup := make(chan os.Signal, 1)
-	signal.Notify(hup, syscall.SIGHUP)
-	defer signal.Stop(hup)
-wait:
-	for {
-		select {
-		case <-hup:
-			sf.reload(sec, log)
-		case <-ctx.Done():
-			log.Info("stopping: running jobs checkpoint and are handed back", "timeout", ef.stopTimeout)
-			break wait
-		case err := <-svc.served:
-			svc.served <- err // shutdown reads it again
-			log.Error("serving ended", "error", err)
-			break wait
-		}
-	}
+	waitServing(ctx, svc, func() { sf.reload(sec, log) }, log, ef.stopTimeout)
 	if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil {
 		return err
 	}
 	log.Info("stopped")
 	return nil
+}
+
+// waitServing waits until ctx ends or the service stops serving; each
+// SIGHUP meanwhile calls reload (the tokens file and the certificate).
+func waitServing(ctx context.Context, svc *service, reload func(), log *slog.Logger, stopTimeout time.Duration) {
+	hup := make(chan os.Signal, 1)
+	signal.Notify(hup, syscall.SIGHUP)
+	defer signal.Stop(hup)
+	for {
+		select {
+		case <-hup:
+			reload()
+		case <-ctx.Done():
+			log.Info("stopping: running jobs checkpoint and are handed back", "timeout", stopTimeout)
+			return
+		case err := <-svc.served:
+			svc.served <- err // shutdown reads it again
+			log.Error("serving ended", "error", err)
+			return
+		}
+	}
 }
 
 // limitFlags are the API server's limits.

@@ -21,27 +21,14 @@ var spectrumCommand = &command{
 	run:     runSpectrum,
 }
 
-// Default fit band. The upper end is 2.83 cycles/m, the top of the band
-// over which ISO 8608:1995 reports road spectra (0.011-2.83 cycles/m;
-// from memory), or half the record's Nyquist frequency when that is lower
-// (a profiler's anti-alias filter works near Nyquist: common practice).
-// The lower end is the fifth Welch bin, 5/L_s, below which the
-// per-segment detrend and the window's resolution bias distort the
-// estimate (see model.Spectrum.Measured), and not below 0.011 cycles/m.
-const (
-	isoBandTop    = 2.83  // cycles/m
-	isoBandBottom = 0.011 // cycles/m
-	firstGoodBin  = 5
-)
-
 // bodyModeHz is the frequency below which a road case's measured table
 // should reach: race-car heave and pitch modes lie at about 1.5-3 Hz
 // (common practice, no source), so a table that starts above 1 Hz at the
 // case's speed leaves them to extrapolation.
 const bodyModeHz = 1.0
 
-func runSpectrum(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "spectrum", "[flags] PROFILE.csv", `
+// spectrumAbout is the help text of spectrum.
+const spectrumAbout = `
 Reads a road profile (CSV: distance_m,left_m,right_m, or
 distance_m,elevation_m for one track; metres; lines starting with # are
 comments; "-" reads standard input), warns of what it changed or suspects
@@ -61,7 +48,10 @@ a job spec's road_cases (a one-item list, so that it also serves as a
 means of the mean of both tracks, used for each, with the isotropic
 coherence model), or with --fitted the fitted power law. It goes to --out
 FILE, or to standard output, which then carries nothing else (the summary
-goes to standard error).`)
+goes to standard error).`
+
+func runSpectrum(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "spectrum", "[flags] PROFILE.csv", spectrumAbout)
 	segment := fs.Float64("segment", 0, "Welch segment length, `m` (0: an eighth of the record); the resolution is its inverse")
 	bandMin := fs.Float64("band-min", 0, "lowest spatial frequency of the fit and of the road case's table, `cycles/m` (0: the fifth bin, at least 0.011)")
 	bandMax := fs.Float64("band-max", 0, "highest spatial frequency, `cycles/m` (0: 2.83, or half the Nyquist frequency when lower)")
@@ -88,51 +78,19 @@ goes to standard error).`)
 		return usagef("spectrum", "--road-case needs --speed, a speed in m/s > 0")
 	}
 
-	path := pos[0]
-	b, err := readInput(e, path)
+	est, err := estimateProfile(e, pos[0], *segment, *bandMin, *bandMax)
 	if err != nil {
-		return &inputFileError{path: path, err: err}
+		return err
 	}
-	opt := model.ProfileOptions{}
-	if *segment > 0 {
-		opt.Resolution = 1 / *segment
-	}
-	p, err := model.ReadProfile(bytes.NewReader(b), opt)
-	if err != nil {
-		return &inputFileError{path: path, err: err}
-	}
-	for _, w := range p.Warnings {
-		fmt.Fprintf(e.stderr, "dampfront spectrum: warning: %s: %s\n", path, w)
-	}
-	s, err := model.EstimateSpectrum(p, model.WelchOptions{SegmentLength: *segment})
-	if err != nil {
-		return &inputFileError{path: path, err: err}
-	}
-	lo, hi := spectrumBand(s, *bandMin, *bandMax)
-	fit, err := s.FitISO(lo, hi)
-	if err != nil {
-		return usagef("spectrum", "the fit band [%.4g, %.4g] cycles/m: %v", lo, hi, err)
-	}
-	est := &estimate{path: path, profile: p, spectrum: s, fit: fit, lo: lo, hi: hi}
+	lo := est.lo
 
 	summary, data := e.stdout, e.stdout
 	if *caseName != "" && *outPath == "" {
 		summary, data = e.stderr, nil // stdout carries only the road case
 	}
 	if data != nil {
-		switch format.value {
-		case "csv":
-			if err := writeSpectrumCSV(data, s); err != nil {
-				return err
-			}
-		case "json":
-			if err := writeSpectrumJSON(data, est); err != nil {
-				return err
-			}
-		default:
-			if err := writeSpectrumTable(data, est); err != nil {
-				return err
-			}
+		if err := writeSpectrum(data, format.value, est); err != nil {
+			return err
 		}
 	} else if format.value == "table" {
 		writeSpectrumSummary(summary, est)
@@ -159,6 +117,47 @@ goes to standard error).`)
 	return nil
 }
 
+// estimateProfile reads a profile, estimates its spectrum and fits the
+// ISO 8608 law over the band (zero ends: model.Spectrum.FitBand's).
+func estimateProfile(e *env, path string, segment, bandMin, bandMax float64) (*estimate, error) {
+	b, err := readInput(e, path)
+	if err != nil {
+		return nil, &inputFileError{path: path, err: err}
+	}
+	opt := model.ProfileOptions{}
+	if segment > 0 {
+		opt.Resolution = 1 / segment
+	}
+	p, err := model.ReadProfile(bytes.NewReader(b), opt)
+	if err != nil {
+		return nil, &inputFileError{path: path, err: err}
+	}
+	for _, w := range p.Warnings {
+		fmt.Fprintf(e.stderr, "dampfront spectrum: warning: %s: %s\n", path, w)
+	}
+	s, err := model.EstimateSpectrum(p, model.WelchOptions{SegmentLength: segment})
+	if err != nil {
+		return nil, &inputFileError{path: path, err: err}
+	}
+	lo, hi := s.FitBand(bandMin, bandMax)
+	fit, err := s.FitISO(lo, hi)
+	if err != nil {
+		return nil, usagef("spectrum", "the fit band [%.4g, %.4g] cycles/m: %v", lo, hi, err)
+	}
+	return &estimate{path: path, profile: p, spectrum: s, fit: fit, lo: lo, hi: hi}, nil
+}
+
+// writeSpectrum writes the estimate in a format: table, csv or json.
+func writeSpectrum(w io.Writer, format string, est *estimate) error {
+	switch format {
+	case "csv":
+		return writeSpectrumCSV(w, est.spectrum)
+	case "json":
+		return writeSpectrumJSON(w, est)
+	}
+	return writeSpectrumTable(w, est)
+}
+
 // estimate is a profile with its spectrum and fit.
 type estimate struct {
 	path     string
@@ -166,20 +165,6 @@ type estimate struct {
 	spectrum *model.Spectrum
 	fit      model.ISOFit
 	lo, hi   float64 // band (cycles/m)
-}
-
-// spectrumBand fills in the default ends of the band (see isoBandTop).
-func spectrumBand(s *model.Spectrum, lo, hi float64) (float64, float64) {
-	if lo == 0 {
-		lo = isoBandBottom
-		if len(s.N) > firstGoodBin {
-			lo = math.Max(lo, s.N[firstGoodBin])
-		}
-	}
-	if hi == 0 {
-		hi = math.Min(isoBandTop, 0.25/s.Spacing) // half of Nyquist 1/(2Δx)
-	}
-	return lo, hi
 }
 
 func tracksText(p *model.Profile) string {
@@ -203,95 +188,6 @@ func writeSpectrumSummary(w io.Writer, est *estimate) {
 		f.MinN, f.MaxN, f.Points, of, f.Gd0, pct(f.StdErrLogGd0), f.Waviness, f.StdErrWaviness, f.Class, f.ResidualRMS)
 }
 
-// band is one third-octave band of the spectrum.
-type band struct {
-	centre      float64 // nominal centre n0·2^(j/3) (cycles/m)
-	mean        float64 // mean spatial frequency of the bins averaged (cycles/m)
-	bins        int
-	left, right float64 // mean PSDs (m³)
-	coherence   float64 // Re of the summed cross-spectrum over the root of the product of the summed PSDs
-}
-
-// thirdOctaves averages the Welch bins k >= 1 with lo <= n_k <= hi in
-// third-octave bands centred on n0·2^(j/3), n0 = 0.1 cycles/m, from
-// n_c·2^(-1/6) up to n_c·2^(1/6) (the base-2 third octaves of ISO 266,
-// referred to n0; from memory). hi = 0 means no upper limit.
-//
-// A band mean has the variance of one bin over the number of bins it
-// holds (times the Hann window's bin correlation, see model.FitISO),
-// and for G ∝ n^-w it stands for G at the bins' mean frequency with a
-// bias of about w(w+1)/2 times the relative variance of n over a third
-// octave (1/3 of (2^(1/6) - 1)², 0.4 %): 1.3 % at w = 2, well inside
-// its scatter.
-func thirdOctaves(s *model.Spectrum, lo, hi float64) []band {
-	var out []band
-	if len(s.N) < 2 {
-		return nil
-	}
-	if hi == 0 {
-		hi = math.Inf(1)
-	}
-	j0 := int(math.Floor(3 * math.Log2(s.N[1]/model.ISO8608N0)))
-	j1 := int(math.Ceil(3 * math.Log2(s.N[len(s.N)-1]/model.ISO8608N0)))
-	for j := j0; j <= j1; j++ {
-		c := model.ISO8608N0 * math.Pow(2, float64(j)/3)
-		bl, bh := c*math.Pow(2, -1.0/6), c*math.Pow(2, 1.0/6)
-		b := band{centre: c}
-		var cross complex128
-		for k := 1; k < len(s.N); k++ {
-			if n := s.N[k]; n < bl || n >= bh || n < lo || n > hi {
-				continue
-			}
-			b.bins++
-			b.mean += s.N[k]
-			b.left += s.Left[k]
-			if s.Right != nil {
-				b.right += s.Right[k]
-				cross += s.Cross[k]
-			}
-		}
-		if b.bins == 0 {
-			continue
-		}
-		if b.left > 0 && b.right > 0 {
-			b.coherence = math.Max(-1, math.Min(1, real(cross)/math.Sqrt(b.left*b.right)))
-		}
-		nb := float64(b.bins)
-		b.mean, b.left, b.right = b.mean/nb, b.left/nb, b.right/nb
-		out = append(out, b)
-	}
-	return out
-}
-
-// measuredBands is the road case's table: the third-octave band means of
-// the bins in [lo, hi] of the mean PSD of the tracks, ½(G_L + G_R), for
-// both tracks, with no coherence of its own (so the model's isotropic
-// coherence, which tends to 1 at long wavelengths).
-//
-// Why band means: the model extends a table beyond its first and last
-// points with the slope of its end segments, and between two adjacent
-// Welch bins, 1/L_s apart, that slope is mostly scatter (at 2.8
-// cycles/m, bins 0.6 % apart with 10-30 % scatter give slopes of ±20);
-// between band means a third octave apart it is within a few tenths of
-// the road's. Why one PSD and no measured coherence: below the table the
-// model holds the coherence at its first value and extends each track's
-// PSD with its own slope, so the left-right difference of the tracks, and
-// with it the warp input and the tyre loads, would grow without bound
-// at long wavelengths, and the frequency-domain variance would not be
-// finite (the model says so and refuses the case).
-func measuredBands(s *model.Spectrum, lo, hi float64) *model.MeasuredSpectrum {
-	m := &model.MeasuredSpectrum{}
-	for _, b := range thirdOctaves(s, lo, hi) {
-		g := b.left
-		if s.Right != nil {
-			g = (b.left + b.right) / 2
-		}
-		m.N = append(m.N, b.mean)
-		m.Left = append(m.Left, g)
-	}
-	return m
-}
-
 // psd formats a PSD in m³ with four significant digits.
 func psd(v float64) string { return strconv.FormatFloat(v, 'e', 3, 64) }
 
@@ -306,23 +202,23 @@ func writeSpectrumTable(w io.Writer, est *estimate) error {
 		t.row("n cycles/m", "bins", "Gd m³", "ISO fit m³")
 	}
 	f := est.fit
-	for _, b := range thirdOctaves(est.spectrum, 0, 0) {
+	for _, b := range est.spectrum.ThirdOctaves(0, 0) {
 		fitted := "-"
-		if b.centre >= f.MinN && b.centre <= f.MaxN {
-			fitted = psd(f.Gd0 * math.Pow(b.centre/model.ISO8608N0, -f.Waviness))
+		if b.Centre >= f.MinN && b.Centre <= f.MaxN {
+			fitted = psd(f.Gd0 * math.Pow(b.Centre/model.ISO8608N0, -f.Waviness))
 		}
-		n := strconv.FormatFloat(b.centre, 'g', 3, 64)
+		n := strconv.FormatFloat(b.Centre, 'g', 3, 64)
 		if two {
-			t.row(n, strconv.Itoa(b.bins), psd(b.left), psd(b.right), num(b.coherence, 3), fitted)
+			t.row(n, strconv.Itoa(b.Bins), psd(b.Left), psd(b.Right), num(b.Coherence, 3), fitted)
 		} else {
-			t.row(n, strconv.Itoa(b.bins), psd(b.left), fitted)
+			t.row(n, strconv.Itoa(b.Bins), psd(b.Left), fitted)
 		}
 	}
 	if err := t.flush(); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "Third-octave band means of the Welch bins; the bins below %.3g cycles/m (the fifth) are biased low by the detrend.\n",
-		est.spectrum.N[min(firstGoodBin, len(est.spectrum.N)-1)])
+		est.spectrum.N[min(model.FirstGoodBin, len(est.spectrum.N)-1)])
 	return nil
 }
 
@@ -416,7 +312,7 @@ func writeSpectrumJSON(w io.Writer, est *estimate) error {
 
 // writeRoadCaseYAML writes a one-item list of dampfront.v1.RoadCase in
 // the YAML of a job spec (proto field names, SI): the measured spectrum
-// over the band (measuredBands), or the fitted power law. Values keep six
+// over the band (model.Spectrum.MeasuredBands), or the fitted power law. Values keep six
 // significant digits, far finer than the estimate's own scatter (a bin's
 // standard error is 1/sqrt(K_eff) of it, tens of per cent).
 func writeRoadCaseYAML(w io.Writer, est *estimate, name string, speed float64, fitted bool) error {
@@ -445,7 +341,7 @@ func writeRoadCaseYAML(w io.Writer, est *estimate, name string, speed float64, f
 		_, err := io.WriteString(w, b.String())
 		return err
 	}
-	m := measuredBands(est.spectrum, est.lo, est.hi)
+	m := est.spectrum.MeasuredBands(est.lo, est.hi)
 	rc := model.RoadCase{Name: name, Speed: speed, Measured: m}
 	if err := rc.Validate(); err != nil {
 		return &inputFileError{path: est.path, err: fmt.Errorf("the measured table over [%.4g, %.4g] cycles/m: %w", est.lo, est.hi, err)}

@@ -150,7 +150,7 @@ func TestSpectrumRecoversTheInventedTrack(t *testing.T) {
 	}
 	// Default band: the fifth bin, 5/62.5 m = 0.08 cycles/m, to 2.83 cycles/m.
 	f := s.Fit
-	if math.Abs(f.MinN-0.08) > 1e-12 || f.MaxN > isoBandTop || f.MaxN < isoBandTop-1/62.5 {
+	if math.Abs(f.MinN-0.08) > 1e-12 || f.MaxN > model.ISOBandTop || f.MaxN < model.ISOBandTop-1/62.5 {
 		t.Errorf("fit band [%g, %g] cycles/m, want [0.08, 2.83]", f.MinN, f.MaxN)
 	}
 	dlog := math.Log(f.Gd0 / g.road.Gd0)

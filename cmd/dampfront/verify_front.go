@@ -8,8 +8,6 @@ import (
 	"io"
 	"math"
 	"strings"
-	"sync"
-	"sync/atomic"
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -92,16 +90,13 @@ func runVerifyAll(ctx context.Context, e *env, cf *clientFlags, sf *specFlags, n
 		done = func() { _ = bar.Add(1) }
 		defer func() { _ = bar.Exit(); fmt.Fprintln(e.stderr) }()
 	}
-	reps, at, err := verifyPoints(ctx, in, setups, o.opt, o.parallel, done)
+	reps, err := model.VerifySetups(ctx, in.Vehicle, in.RoadCases, setups, o.opt, o.parallel, done)
 	if err != nil {
-		if at >= 0 {
-			err = fmt.Errorf("%s: %w", solutionSource(sols[at], name), err)
+		var se *model.SetupError
+		if errors.As(err, &se) {
+			err = fmt.Errorf("%s: %w", solutionSource(sols[se.Index], name), err)
 		}
-		var ve *model.ValidationError
-		if errors.As(err, &ve) {
-			return &exitError{code: exitUsage, msg: err.Error()}
-		}
-		return err
+		return verifyError(err)
 	}
 	if o.json {
 		return writeVerifyAllJSON(e.stdout, reps, in, fd, name)
@@ -118,97 +113,8 @@ func solutionSource(s *pb.Solution, job string) string {
 	return fmt.Sprintf("solution %d of %s", s.GetIndex(), job)
 }
 
-// verifyPoints runs model.Verify for each setup, at most parallel at a
-// time, and returns the reports in the order of setups. Each report
-// depends only on its setup and opt (case i of every setup draws its road
-// from the stream (opt.Seed, i)), never on which goroutine ran it or
-// when; done is called as each ends (from its goroutine). After an error
-// no further setup is started, and the error of the
-// first failed setup in order is returned with its position (-1 for an
-// interrupt). model.Verify cannot be
-// cancelled, so an interrupt returns at once and leaves the running
-// checks to the end of the process.
-func verifyPoints(ctx context.Context, in *api.ModelInputs, setups []model.Setup, opt model.VerifyOptions, parallel int, done func()) ([]*model.VerifyReport, int, error) {
-	reps := make([]*model.VerifyReport, len(setups))
-	errs := make([]error, len(setups))
-	var next atomic.Int64 // index of the next setup to start
-	var failed atomic.Bool
-	var wg sync.WaitGroup
-	for range min(parallel, len(setups)) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for !failed.Load() && ctx.Err() == nil {
-				i := int(next.Add(1) - 1)
-				if i >= len(setups) {
-					return
-				}
-				reps[i], errs[i] = model.Verify(in.Vehicle, in.RoadCases, setups[i], opt)
-				done()
-				if errs[i] != nil {
-					failed.Store(true)
-				}
-			}
-		}()
-	}
-	all := make(chan struct{})
-	go func() { wg.Wait(); close(all) }()
-	select {
-	case <-all:
-	case <-ctx.Done():
-		return nil, -1, fmt.Errorf("interrupted: %w", ctx.Err())
-	}
-	if err := ctx.Err(); err != nil {
-		return nil, -1, fmt.Errorf("interrupted: %w", err)
-	}
-	for i, err := range errs {
-		if err != nil {
-			return nil, i, err
-		}
-	}
-	return reps, -1, nil
-}
-
-// pointSummary is one solution's check in a row.
-type pointSummary struct {
-	holds     bool    // the linear answer holds on every case
-	worst     float64 // largest |Diff|/StatError over the cases and judged rows; NaN when none is judged
-	metric    string  // its metric as the single-setup table labels it
-	roadCase  int     // and its road case
-	liftOff   float64 // largest time fraction off the road, over cases and corners
-	bumpStop  float64 // largest time fraction beyond the bump-stop gap
-	judgedAny bool
-}
-
-// summarise reduces a report to its row; the first of equal worst rows,
-// in case and row order, is named.
-func summarise(rep *model.VerifyReport) pointSummary {
-	p := pointSummary{holds: true, worst: math.NaN()}
-	for ci := range rep.Cases {
-		c := &rep.Cases[ci]
-		rows := make([]shownRow, len(c.Rows))
-		for k, r := range c.Rows {
-			rows[k] = showRow(r, c.Frequency.StaticTyreLoad)
-			if rows[k].judged && (!p.judgedAny || rows[k].sigmas > p.worst) {
-				p.worst, p.metric, p.roadCase, p.judgedAny = rows[k].sigmas, rows[k].label, ci, true
-			}
-		}
-		if holds, _ := verifyVerdict(rows); !holds {
-			p.holds = false
-		}
-		for i := 0; i < 4; i++ {
-			p.liftOff = math.Max(p.liftOff, c.Time.LiftOffProbability[i])
-			p.bumpStop = math.Max(p.bumpStop, c.Time.BumpStopProbability[i])
-		}
-	}
-	return p
-}
-
-// Verdict words of the summary table.
-const (
-	verdictHolds   = "holds"
-	verdictDiffers = "differs"
-)
+// verdictWidth is the width of the verdict column.
+var verdictWidth = len(model.VerdictDiffers.String())
 
 func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelInputs, fd *frontData, opt model.VerifyOptions) error {
 	f, j := fd.front, fd.job
@@ -230,18 +136,22 @@ func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelI
 	}
 	bal := balancedIndex(sols)
 	cols := newSolutionColumns(f)
-	sums := make([]pointSummary, len(reps))
+	sums := make([]model.VerifySummary, len(reps))
+	labels := make([]string, len(reps))
 	mw := len("metric")
 	for i, rep := range reps {
-		sums[i] = summarise(rep)
-		mw = max(mw, len(sums[i].metric))
+		sums[i] = rep.Summary()
+		if !math.IsNaN(sums[i].Worst) {
+			labels[i] = metricLabel(sums[i].WorstMetric)
+		}
+		mw = max(mw, len(labels[i]))
 	}
 
 	fmt.Fprintln(w)
 	t := newTable(w, true)
 	h1, h2 := cols.headers()
 	h1 = append(h1, "worst", fmt.Sprintf("%-*s", mw, "metric"), "case", "off road", "bump stop", "verdict")
-	h2 = append(h2, "errors", fmt.Sprintf("%-*s", mw, ""), "", "% time", "% time", fmt.Sprintf("%-*s", len(verdictDiffers), ""))
+	h2 = append(h2, "errors", fmt.Sprintf("%-*s", mw, ""), "", "% time", "% time", fmt.Sprintf("%-*s", verdictWidth, ""))
 	t.row(h1...)
 	t.row(h2...)
 	held := 0
@@ -249,23 +159,21 @@ func writeVerifyAllTable(w io.Writer, reps []*model.VerifyReport, in *api.ModelI
 		p := sums[i]
 		row := cols.cells(s, i == bal)
 		worst, metric, rc := "-", "-", "-"
-		if p.judgedAny {
-			worst, metric, rc = num(p.worst, 1), p.metric, fmt.Sprint(p.roadCase)
+		if !math.IsNaN(p.Worst) {
+			worst, metric, rc = num(p.Worst, 1), labels[i], fmt.Sprint(p.WorstCase)
 		}
-		verdict := verdictDiffers
-		if p.holds {
-			verdict = verdictHolds
+		if p.Verdict == model.VerdictHolds {
 			held++
 		}
 		row = append(row, worst, fmt.Sprintf("%-*s", mw, metric), rc,
-			tradeNum(qProbability, p.liftOff), tradeNum(qProbability, p.bumpStop), fmt.Sprintf("%-*s", len(verdictDiffers), verdict))
+			tradeNum(qProbability, p.LiftOff), tradeNum(qProbability, p.BumpStop), fmt.Sprintf("%-*s", verdictWidth, p.Verdict))
 		t.row(row...)
 	}
 	if err := t.flush(); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "\nworst: the largest |time domain - frequency domain| over the road cases and judged metrics, in statistical\n"+
-		"errors of the record; a solution differs when a metric is more than %d statistical errors off on any case.\n", verifySigmas)
+		"errors of the record; a solution differs when a metric is more than %d statistical errors off on any case.\n", model.VerdictSigmas)
 	fmt.Fprintln(w, "off road, bump stop: the largest time fraction of any corner on any case; verify JOB --solution N shows one in full.")
 	fmt.Fprintf(w, "* balanced point: solution %d.\n", sols[bal].GetIndex())
 	fmt.Fprintf(w, "\nThe linear answer holds on every road case for %d of %d solutions.\n", held, len(sols))

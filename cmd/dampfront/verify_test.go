@@ -14,6 +14,7 @@ import (
 	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
 )
 
 // testDuration is the recorded road per case in these tests (s): short,
@@ -69,8 +70,8 @@ func TestVerifyJSONSeededAndConsistent(t *testing.T) {
 	t.Parallel()
 	args := []string{"--spec", testdataPath("demo-job.yaml"), "--setup", testdataPath("candidate-setup.yaml")}
 	v, text := verifyOf(t, append(args, "--seed", "5")...)
-	if v.Seed != 5 || len(v.Cases) != 3 || v.Sigmas != verifySigmas {
-		t.Fatalf("report seed %d, %d cases, %g sigmas; want 5, 3, %d", v.Seed, len(v.Cases), v.Sigmas, verifySigmas)
+	if v.Seed != 5 || len(v.Cases) != 3 || v.Sigmas != model.VerdictSigmas {
+		t.Fatalf("report seed %d, %d cases, %g sigmas; want 5, 3, %d", v.Seed, len(v.Cases), v.Sigmas, model.VerdictSigmas)
 	}
 	setup := &pb.Setup{}
 	if err := protojson.Unmarshal(v.Setup, setup); err != nil {
@@ -89,7 +90,7 @@ func TestVerifyJSONSeededAndConsistent(t *testing.T) {
 		}
 		var off []string
 		for _, r := range c.Rows {
-			if r.StatError > 0 && math.Abs(r.Diff) > verifySigmas*r.StatError {
+			if r.StatError > 0 && math.Abs(r.Diff) > model.VerdictSigmas*r.StatError {
 				off = append(off, r.Metric)
 			}
 			if r.Diff != r.Time-r.Frequency {

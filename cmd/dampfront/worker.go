@@ -13,8 +13,8 @@ var workerCommand = &command{
 	run:     runWorker,
 }
 
-func runWorker(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "worker", "[flags]", `
+// workerAbout is the help text of worker.
+const workerAbout = `
 Works jobs queued in the database, without the API: start any number of
 workers on any number of hosts against one postgres:// database (each with
 its own --node-id), or beside a serve --workers 0 on the same SQLite file.
@@ -26,7 +26,10 @@ within --stop-timeout.
 liveness probe: SERVING while the worker works, NOT_SERVING from the
 signal on. It says the process is alive, not that the database is.
 --metrics-addr serves Prometheus /metrics of this worker's slices
-(generations, evaluations, slice times by outcome).`)
+(generations, evaluations, slice times by outcome).`
+
+func runWorker(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, "worker", "[flags]", workerAbout)
 	ef, err := addEngineFlags(fs, e, true)
 	if err != nil {
 		return err

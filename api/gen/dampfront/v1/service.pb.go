@@ -21,6 +21,65 @@ const (
 	_ = protoimpl.EnforceVersion(protoimpl.MaxVersion - 20)
 )
 
+// Verdict is the time-domain check's judgement of the linear answer.
+type Verdict int32
+
+const (
+	Verdict_VERDICT_UNSPECIFIED Verdict = 0
+	// Within verdict_sigmas statistical errors (a case or a report: no
+	// metric differs).
+	Verdict_VERDICT_HOLDS Verdict = 1
+	// More than verdict_sigmas statistical errors off (a case or a report:
+	// some metric differs).
+	Verdict_VERDICT_DIFFERS Verdict = 2
+	// A metric without a statistical error (equivalent damping, mean
+	// damper force) is shown, not judged.
+	Verdict_VERDICT_NOT_JUDGED Verdict = 3
+)
+
+// Enum value maps for Verdict.
+var (
+	Verdict_name = map[int32]string{
+		0: "VERDICT_UNSPECIFIED",
+		1: "VERDICT_HOLDS",
+		2: "VERDICT_DIFFERS",
+		3: "VERDICT_NOT_JUDGED",
+	}
+	Verdict_value = map[string]int32{
+		"VERDICT_UNSPECIFIED": 0,
+		"VERDICT_HOLDS":       1,
+		"VERDICT_DIFFERS":     2,
+		"VERDICT_NOT_JUDGED":  3,
+	}
+)
+
+func (x Verdict) Enum() *Verdict {
+	p := new(Verdict)
+	*p = x
+	return p
+}
+
+func (x Verdict) String() string {
+	return protoimpl.X.EnumStringOf(x.Descriptor(), protoreflect.EnumNumber(x))
+}
+
+func (Verdict) Descriptor() protoreflect.EnumDescriptor {
+	return file_dampfront_v1_service_proto_enumTypes[0].Descriptor()
+}
+
+func (Verdict) Type() protoreflect.EnumType {
+	return &file_dampfront_v1_service_proto_enumTypes[0]
+}
+
+func (x Verdict) Number() protoreflect.EnumNumber {
+	return protoreflect.EnumNumber(x)
+}
+
+// Deprecated: Use Verdict.Descriptor instead.
+func (Verdict) EnumDescriptor() ([]byte, []int) {
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{0}
+}
+
 // SubmitJobRequest is the input of SubmitJob.
 type SubmitJobRequest struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -1375,7 +1434,11 @@ type VerifySetupResponse struct {
 	Seed      uint64  `protobuf:"varint,2,opt,name=seed,proto3" json:"seed,omitempty"`
 	DurationS float64 `protobuf:"fixed64,3,opt,name=duration_s,json=durationS,proto3" json:"duration_s,omitempty"`
 	// The model's caution, to be shown with any report of these figures.
-	Caution       string `protobuf:"bytes,4,opt,name=caution,proto3" json:"caution,omitempty"`
+	Caution string `protobuf:"bytes,4,opt,name=caution,proto3" json:"caution,omitempty"`
+	// VERDICT_HOLDS when every case holds, else VERDICT_DIFFERS.
+	Verdict Verdict `protobuf:"varint,5,opt,name=verdict,proto3,enum=dampfront.v1.Verdict" json:"verdict,omitempty"`
+	// How many statistical errors a metric may be off and still hold (3).
+	VerdictSigmas float64 `protobuf:"fixed64,6,opt,name=verdict_sigmas,json=verdictSigmas,proto3" json:"verdict_sigmas,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -1438,6 +1501,20 @@ func (x *VerifySetupResponse) GetCaution() string {
 	return ""
 }
 
+func (x *VerifySetupResponse) GetVerdict() Verdict {
+	if x != nil {
+		return x.Verdict
+	}
+	return Verdict_VERDICT_UNSPECIFIED
+}
+
+func (x *VerifySetupResponse) GetVerdictSigmas() float64 {
+	if x != nil {
+		return x.VerdictSigmas
+	}
+	return 0
+}
+
 // VerifiedCase is the check on one road case.
 type VerifiedCase struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -1449,7 +1526,9 @@ type VerifiedCase struct {
 	StepS   float64 `protobuf:"fixed64,3,opt,name=step_s,json=stepS,proto3" json:"step_s,omitempty"`
 	SettleS float64 `protobuf:"fixed64,4,opt,name=settle_s,json=settleS,proto3" json:"settle_s,omitempty"`
 	// Frequency-domain warnings (lift-off, bump-stop contact, ...).
-	Warnings      []string `protobuf:"bytes,5,rep,name=warnings,proto3" json:"warnings,omitempty"`
+	Warnings []string `protobuf:"bytes,5,rep,name=warnings,proto3" json:"warnings,omitempty"`
+	// VERDICT_HOLDS when no metric differs, else VERDICT_DIFFERS.
+	Verdict       Verdict `protobuf:"varint,6,opt,name=verdict,proto3,enum=dampfront.v1.Verdict" json:"verdict,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -1519,6 +1598,13 @@ func (x *VerifiedCase) GetWarnings() []string {
 	return nil
 }
 
+func (x *VerifiedCase) GetVerdict() Verdict {
+	if x != nil {
+		return x.Verdict
+	}
+	return Verdict_VERDICT_UNSPECIFIED
+}
+
 // VerifiedMetric is one metric in both models, in SI units as its name
 // says (e.g. "tyre_load_sd_n[FL]", "ride_height_shift_m[front]").
 type VerifiedMetric struct {
@@ -1537,8 +1623,11 @@ type VerifiedMetric struct {
 	// (equivalent damping, mean damper force). A difference of more than
 	// about 3 of these is more than sampling error.
 	StatisticalError float64 `protobuf:"fixed64,6,opt,name=statistical_error,json=statisticalError,proto3" json:"statistical_error,omitempty"`
-	unknownFields    protoimpl.UnknownFields
-	sizeCache        protoimpl.SizeCache
+	// The metric's verdict: VERDICT_NOT_JUDGED without a statistical
+	// error, else whether |difference| is within verdict_sigmas of them.
+	Verdict       Verdict `protobuf:"varint,7,opt,name=verdict,proto3,enum=dampfront.v1.Verdict" json:"verdict,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *VerifiedMetric) Reset() {
@@ -1611,6 +1700,13 @@ func (x *VerifiedMetric) GetStatisticalError() float64 {
 		return x.StatisticalError
 	}
 	return 0
+}
+
+func (x *VerifiedMetric) GetVerdict() Verdict {
+	if x != nil {
+		return x.Verdict
+	}
+	return Verdict_VERDICT_UNSPECIFIED
 }
 
 var File_dampfront_v1_service_proto protoreflect.FileDescriptor
@@ -1713,19 +1809,22 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\n" +
 	"duration_s\x18\x05 \x01(\x01R\tdurationSB\b\n" +
 	"\x06sourceB\a\n" +
-	"\x05_seed\"\x94\x01\n" +
+	"\x05_seed\"\xec\x01\n" +
 	"\x13VerifySetupResponse\x120\n" +
 	"\x05cases\x18\x01 \x03(\v2\x1a.dampfront.v1.VerifiedCaseR\x05cases\x12\x12\n" +
 	"\x04seed\x18\x02 \x01(\x04R\x04seed\x12\x1d\n" +
 	"\n" +
 	"duration_s\x18\x03 \x01(\x01R\tdurationS\x12\x18\n" +
-	"\acaution\x18\x04 \x01(\tR\acaution\"\xb1\x01\n" +
+	"\acaution\x18\x04 \x01(\tR\acaution\x12/\n" +
+	"\averdict\x18\x05 \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict\x12%\n" +
+	"\x0everdict_sigmas\x18\x06 \x01(\x01R\rverdictSigmas\"\xe2\x01\n" +
 	"\fVerifiedCase\x12\x1b\n" +
 	"\troad_case\x18\x01 \x01(\tR\broadCase\x126\n" +
 	"\ametrics\x18\x02 \x03(\v2\x1c.dampfront.v1.VerifiedMetricR\ametrics\x12\x15\n" +
 	"\x06step_s\x18\x03 \x01(\x01R\x05stepS\x12\x19\n" +
 	"\bsettle_s\x18\x04 \x01(\x01R\asettleS\x12\x1a\n" +
-	"\bwarnings\x18\x05 \x03(\tR\bwarnings\"\xf2\x01\n" +
+	"\bwarnings\x18\x05 \x03(\tR\bwarnings\x12/\n" +
+	"\averdict\x18\x06 \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict\"\xa3\x02\n" +
 	"\x0eVerifiedMetric\x12\x16\n" +
 	"\x06metric\x18\x01 \x01(\tR\x06metric\x12)\n" +
 	"\x10frequency_domain\x18\x02 \x01(\x01R\x0ffrequencyDomain\x12\x1f\n" +
@@ -1735,7 +1834,13 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"difference\x18\x04 \x01(\x01R\n" +
 	"difference\x12/\n" +
 	"\x13relative_difference\x18\x05 \x01(\x01R\x12relativeDifference\x12+\n" +
-	"\x11statistical_error\x18\x06 \x01(\x01R\x10statisticalError2\x9b\a\n" +
+	"\x11statistical_error\x18\x06 \x01(\x01R\x10statisticalError\x12/\n" +
+	"\averdict\x18\a \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict*b\n" +
+	"\aVerdict\x12\x17\n" +
+	"\x13VERDICT_UNSPECIFIED\x10\x00\x12\x11\n" +
+	"\rVERDICT_HOLDS\x10\x01\x12\x13\n" +
+	"\x0fVERDICT_DIFFERS\x10\x02\x12\x16\n" +
+	"\x12VERDICT_NOT_JUDGED\x10\x032\x9b\a\n" +
 	"\x10DampfrontService\x12L\n" +
 	"\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12C\n" +
 	"\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n" +
@@ -1761,108 +1866,113 @@ func file_dampfront_v1_service_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_service_proto_rawDescData
 }
 
+var file_dampfront_v1_service_proto_enumTypes = make([]protoimpl.EnumInfo, 1)
 var file_dampfront_v1_service_proto_msgTypes = make([]protoimpl.MessageInfo, 23)
 var file_dampfront_v1_service_proto_goTypes = []any{
-	(*SubmitJobRequest)(nil),        // 0: dampfront.v1.SubmitJobRequest
-	(*SubmitJobResponse)(nil),       // 1: dampfront.v1.SubmitJobResponse
-	(*GetJobRequest)(nil),           // 2: dampfront.v1.GetJobRequest
-	(*GetJobResponse)(nil),          // 3: dampfront.v1.GetJobResponse
-	(*ListJobsRequest)(nil),         // 4: dampfront.v1.ListJobsRequest
-	(*ListJobsResponse)(nil),        // 5: dampfront.v1.ListJobsResponse
-	(*CancelJobRequest)(nil),        // 6: dampfront.v1.CancelJobRequest
-	(*CancelJobResponse)(nil),       // 7: dampfront.v1.CancelJobResponse
-	(*WatchJobRequest)(nil),         // 8: dampfront.v1.WatchJobRequest
-	(*WatchJobResponse)(nil),        // 9: dampfront.v1.WatchJobResponse
-	(*GetFrontRequest)(nil),         // 10: dampfront.v1.GetFrontRequest
-	(*GetFrontResponse)(nil),        // 11: dampfront.v1.GetFrontResponse
-	(*EvaluateSetupsRequest)(nil),   // 12: dampfront.v1.EvaluateSetupsRequest
-	(*EvaluateSetupsResponse)(nil),  // 13: dampfront.v1.EvaluateSetupsResponse
-	(*CompareSetupRequest)(nil),     // 14: dampfront.v1.CompareSetupRequest
-	(*CompareSetupResponse)(nil),    // 15: dampfront.v1.CompareSetupResponse
-	(*GetDamperCurvesRequest)(nil),  // 16: dampfront.v1.GetDamperCurvesRequest
-	(*GetDamperCurvesResponse)(nil), // 17: dampfront.v1.GetDamperCurvesResponse
-	(*VerifySetupRequest)(nil),      // 18: dampfront.v1.VerifySetupRequest
-	(*VerifySetupResponse)(nil),     // 19: dampfront.v1.VerifySetupResponse
-	(*VerifiedCase)(nil),            // 20: dampfront.v1.VerifiedCase
-	(*VerifiedMetric)(nil),          // 21: dampfront.v1.VerifiedMetric
-	nil,                             // 22: dampfront.v1.ListJobsRequest.LabelsEntry
-	(*JobSpec)(nil),                 // 23: dampfront.v1.JobSpec
-	(*Job)(nil),                     // 24: dampfront.v1.Job
-	(JobView)(0),                    // 25: dampfront.v1.JobView
-	(JobState)(0),                   // 26: dampfront.v1.JobState
-	(*Progress)(nil),                // 27: dampfront.v1.Progress
-	(SolutionView)(0),               // 28: dampfront.v1.SolutionView
-	(*Front)(nil),                   // 29: dampfront.v1.Front
-	(*Setup)(nil),                   // 30: dampfront.v1.Setup
-	(*Solution)(nil),                // 31: dampfront.v1.Solution
-	(*Objective)(nil),               // 32: dampfront.v1.Objective
-	(*Constraint)(nil),              // 33: dampfront.v1.Constraint
-	(*Adjustment)(nil),              // 34: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),           // 35: dampfront.v1.CurveSettings
-	(*DamperCurve)(nil),             // 36: dampfront.v1.DamperCurve
-	(*EstimateByHandRequest)(nil),   // 37: dampfront.v1.EstimateByHandRequest
-	(*EstimateByHandResponse)(nil),  // 38: dampfront.v1.EstimateByHandResponse
+	(Verdict)(0),                    // 0: dampfront.v1.Verdict
+	(*SubmitJobRequest)(nil),        // 1: dampfront.v1.SubmitJobRequest
+	(*SubmitJobResponse)(nil),       // 2: dampfront.v1.SubmitJobResponse
+	(*GetJobRequest)(nil),           // 3: dampfront.v1.GetJobRequest
+	(*GetJobResponse)(nil),          // 4: dampfront.v1.GetJobResponse
+	(*ListJobsRequest)(nil),         // 5: dampfront.v1.ListJobsRequest
+	(*ListJobsResponse)(nil),        // 6: dampfront.v1.ListJobsResponse
+	(*CancelJobRequest)(nil),        // 7: dampfront.v1.CancelJobRequest
+	(*CancelJobResponse)(nil),       // 8: dampfront.v1.CancelJobResponse
+	(*WatchJobRequest)(nil),         // 9: dampfront.v1.WatchJobRequest
+	(*WatchJobResponse)(nil),        // 10: dampfront.v1.WatchJobResponse
+	(*GetFrontRequest)(nil),         // 11: dampfront.v1.GetFrontRequest
+	(*GetFrontResponse)(nil),        // 12: dampfront.v1.GetFrontResponse
+	(*EvaluateSetupsRequest)(nil),   // 13: dampfront.v1.EvaluateSetupsRequest
+	(*EvaluateSetupsResponse)(nil),  // 14: dampfront.v1.EvaluateSetupsResponse
+	(*CompareSetupRequest)(nil),     // 15: dampfront.v1.CompareSetupRequest
+	(*CompareSetupResponse)(nil),    // 16: dampfront.v1.CompareSetupResponse
+	(*GetDamperCurvesRequest)(nil),  // 17: dampfront.v1.GetDamperCurvesRequest
+	(*GetDamperCurvesResponse)(nil), // 18: dampfront.v1.GetDamperCurvesResponse
+	(*VerifySetupRequest)(nil),      // 19: dampfront.v1.VerifySetupRequest
+	(*VerifySetupResponse)(nil),     // 20: dampfront.v1.VerifySetupResponse
+	(*VerifiedCase)(nil),            // 21: dampfront.v1.VerifiedCase
+	(*VerifiedMetric)(nil),          // 22: dampfront.v1.VerifiedMetric
+	nil,                             // 23: dampfront.v1.ListJobsRequest.LabelsEntry
+	(*JobSpec)(nil),                 // 24: dampfront.v1.JobSpec
+	(*Job)(nil),                     // 25: dampfront.v1.Job
+	(JobView)(0),                    // 26: dampfront.v1.JobView
+	(JobState)(0),                   // 27: dampfront.v1.JobState
+	(*Progress)(nil),                // 28: dampfront.v1.Progress
+	(SolutionView)(0),               // 29: dampfront.v1.SolutionView
+	(*Front)(nil),                   // 30: dampfront.v1.Front
+	(*Setup)(nil),                   // 31: dampfront.v1.Setup
+	(*Solution)(nil),                // 32: dampfront.v1.Solution
+	(*Objective)(nil),               // 33: dampfront.v1.Objective
+	(*Constraint)(nil),              // 34: dampfront.v1.Constraint
+	(*Adjustment)(nil),              // 35: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),           // 36: dampfront.v1.CurveSettings
+	(*DamperCurve)(nil),             // 37: dampfront.v1.DamperCurve
+	(*EstimateByHandRequest)(nil),   // 38: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil),  // 39: dampfront.v1.EstimateByHandResponse
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
-	23, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
-	24, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
-	25, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
-	24, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
-	26, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
-	22, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
-	25, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
-	24, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
-	24, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
-	27, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
-	24, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
-	28, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
-	29, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
-	23, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
-	30, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
-	28, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
-	31, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
-	32, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
-	33, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
-	30, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
-	31, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
-	32, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
-	33, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
-	30, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
-	34, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
-	35, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
-	30, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
-	36, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
-	23, // 28: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
-	30, // 29: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
-	20, // 30: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
-	21, // 31: dampfront.v1.VerifiedCase.metrics:type_name -> dampfront.v1.VerifiedMetric
-	0,  // 32: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
-	2,  // 33: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
-	4,  // 34: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
-	6,  // 35: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
-	8,  // 36: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
-	10, // 37: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
-	12, // 38: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
-	14, // 39: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
-	16, // 40: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
-	18, // 41: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
-	37, // 42: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
-	1,  // 43: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	3,  // 44: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	5,  // 45: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	7,  // 46: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	9,  // 47: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	11, // 48: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	13, // 49: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	15, // 50: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	17, // 51: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	19, // 52: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
-	38, // 53: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
-	43, // [43:54] is the sub-list for method output_type
-	32, // [32:43] is the sub-list for method input_type
-	32, // [32:32] is the sub-list for extension type_name
-	32, // [32:32] is the sub-list for extension extendee
-	0,  // [0:32] is the sub-list for field type_name
+	24, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
+	25, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
+	26, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
+	25, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
+	27, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
+	23, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
+	26, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
+	25, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
+	25, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
+	28, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
+	25, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
+	29, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
+	30, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
+	24, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
+	31, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
+	29, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
+	32, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
+	33, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
+	34, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
+	31, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
+	32, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
+	33, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
+	34, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
+	31, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
+	35, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
+	36, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
+	31, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
+	37, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
+	24, // 28: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
+	31, // 29: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
+	21, // 30: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
+	0,  // 31: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
+	22, // 32: dampfront.v1.VerifiedCase.metrics:type_name -> dampfront.v1.VerifiedMetric
+	0,  // 33: dampfront.v1.VerifiedCase.verdict:type_name -> dampfront.v1.Verdict
+	0,  // 34: dampfront.v1.VerifiedMetric.verdict:type_name -> dampfront.v1.Verdict
+	1,  // 35: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
+	3,  // 36: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
+	5,  // 37: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
+	7,  // 38: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
+	9,  // 39: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
+	11, // 40: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
+	13, // 41: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
+	15, // 42: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
+	17, // 43: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
+	19, // 44: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
+	38, // 45: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
+	2,  // 46: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	4,  // 47: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	6,  // 48: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	8,  // 49: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	10, // 50: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	12, // 51: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	14, // 52: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	16, // 53: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	18, // 54: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	20, // 55: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	39, // 56: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
+	46, // [46:57] is the sub-list for method output_type
+	35, // [35:46] is the sub-list for method input_type
+	35, // [35:35] is the sub-list for extension type_name
+	35, // [35:35] is the sub-list for extension extendee
+	0,  // [0:35] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_service_proto_init() }
@@ -1895,13 +2005,14 @@ func file_dampfront_v1_service_proto_init() {
 		File: protoimpl.DescBuilder{
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_service_proto_rawDesc), len(file_dampfront_v1_service_proto_rawDesc)),
-			NumEnums:      0,
+			NumEnums:      1,
 			NumMessages:   23,
 			NumExtensions: 0,
 			NumServices:   1,
 		},
 		GoTypes:           file_dampfront_v1_service_proto_goTypes,
 		DependencyIndexes: file_dampfront_v1_service_proto_depIdxs,
+		EnumInfos:         file_dampfront_v1_service_proto_enumTypes,
 		MessageInfos:      file_dampfront_v1_service_proto_msgTypes,
 	}.Build()
 	File_dampfront_v1_service_proto = out.File

@@ -1,9 +1,9 @@
-package plot_test
+package model_test
 
 import (
 	"fmt"
 
-	"dampfront/api/plot"
+	"dampfront/model"
 )
 
 // The balanced point of a small two-objective front (grip in % of static
@@ -11,7 +11,7 @@ import (
 // at scaled (0.375, 0.25), is nearest the middle (0.5, 0.5).
 func ExampleBalanced() {
 	front := [][]float64{{1, 9}, {2, 5}, {4, 3}, {7, 2}, {9, 1}}
-	i, err := plot.Balanced(front)
+	i, err := model.Balanced(front)
 	if err != nil {
 		fmt.Println(err)
 		return
