@@ -26,6 +26,8 @@ var pathRules = []struct {
 	{regexp.MustCompile(`(^|\.)downforce_n\[1\]`), "${1}rear_downforce_n"},
 	{regexp.MustCompile(`(^|\.)stiffness_n_per_m\[0\]`), "${1}front_stiffness_n_per_m"},
 	{regexp.MustCompile(`(^|\.)stiffness_n_per_m\[1\]`), "${1}rear_stiffness_n_per_m"},
+	{regexp.MustCompile(`(^|\.)rest_ride_height_m\[0\]`), "${1}front_rest_ride_height_m"},
+	{regexp.MustCompile(`(^|\.)rest_ride_height_m\[1\]`), "${1}rear_rest_ride_height_m"},
 	// "give all four sprung loads or none" concerns the corner list.
 	{regexp.MustCompile(`(^|\.)corners\.sprung_load_n$`), "${1}corners"},
 	// Road case: the power law is a sub-message of the spectrum oneof.

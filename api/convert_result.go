@@ -27,6 +27,7 @@ func caseMetricsToProto(m *model.CaseMetrics, modes []model.Mode, threshold floa
 		Iterations:         int32(m.Iterations),
 		Warnings:           m.WarningStrings(threshold),
 		Modes:              modesToProto(modes),
+		AtSpeed:            operatingPointToProto(&m.AtSpeed),
 	}
 	for i := 0; i < 4; i++ {
 		out.Corners = append(out.Corners, &pb.CornerMetrics{
@@ -41,9 +42,30 @@ func caseMetricsToProto(m *model.CaseMetrics, modes []model.Mode, threshold floa
 			EquivalentDampingNSPerM: m.EquivalentDamping[i],
 			MeanDamperForceN:        m.MeanDamperForce[i],
 			TravelShiftM:            m.TravelShift[i],
+			CompressionAtSpeedM:     m.AtSpeed.Compression[i],
+			BumpStopGapAtSpeedM:     m.AtSpeed.BumpStopGap[i],
 		})
 	}
 	return out
+}
+
+// operatingPointToProto converts the car at a case's speed (the per-corner
+// figures go to CornerMetrics).
+func operatingPointToProto(op *model.OperatingPoint) *pb.OperatingPoint {
+	return &pb.OperatingPoint{
+		FrontRideHeightM:             op.RideHeight[model.Front],
+		RearRideHeightM:              op.RideHeight[model.Rear],
+		FrontRideHeightChangeM:       op.RideHeightChange[model.Front],
+		RearRideHeightChangeM:        op.RideHeightChange[model.Rear],
+		PitchRad:                     op.Pitch,
+		FrontDownforceN:              op.Downforce[model.Front],
+		RearDownforceN:               op.Downforce[model.Rear],
+		FrontFrontAeroStiffnessNPerM: op.AeroStiffness[model.Front][model.Front],
+		FrontRearAeroStiffnessNPerM:  op.AeroStiffness[model.Front][model.Rear],
+		RearFrontAeroStiffnessNPerM:  op.AeroStiffness[model.Rear][model.Front],
+		RearRearAeroStiffnessNPerM:   op.AeroStiffness[model.Rear][model.Rear],
+		NewtonIterations:             int32(op.Iterations),
+	}
 }
 
 func modesToProto(modes []model.Mode) []*pb.Mode {

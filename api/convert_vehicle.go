@@ -16,16 +16,17 @@ func vehicleFromProto(v *pb.Vehicle, path string, p *problems) model.Vehicle {
 		return model.Vehicle{}
 	}
 	out := model.Vehicle{
-		Name:          v.GetName(),
-		SprungMass:    v.GetSprungMassKg(),
-		PitchInertia:  v.GetPitchInertiaKgM2(),
-		RollInertia:   v.GetRollInertiaKgM2(),
-		CGToFrontAxle: v.GetCgToFrontAxleM(),
-		CGToRearAxle:  v.GetCgToRearAxleM(),
-		CGLateral:     v.GetCgLateralM(),
-		TrackFront:    v.GetTrackFrontM(),
-		TrackRear:     v.GetTrackRearM(),
-		AntiRoll:      [2]model.AntiRollBar{antiRollFromProto(v.GetFrontAntiRollBar()), antiRollFromProto(v.GetRearAntiRollBar())},
+		Name:           v.GetName(),
+		SprungMass:     v.GetSprungMassKg(),
+		PitchInertia:   v.GetPitchInertiaKgM2(),
+		RollInertia:    v.GetRollInertiaKgM2(),
+		CGToFrontAxle:  v.GetCgToFrontAxleM(),
+		CGToRearAxle:   v.GetCgToRearAxleM(),
+		CGLateral:      v.GetCgLateralM(),
+		TrackFront:     v.GetTrackFrontM(),
+		TrackRear:      v.GetTrackRearM(),
+		AntiRoll:       [2]model.AntiRollBar{antiRollFromProto(v.GetFrontAntiRollBar()), antiRollFromProto(v.GetRearAntiRollBar())},
+		RestRideHeight: [2]float64{v.GetFrontRestRideHeightM(), v.GetRearRestRideHeightM()},
 	}
 	if n := len(v.GetCorners()); n != 4 {
 		p.add(path+".corners", "needs exactly 4 corners (front left, front right, rear left, rear right), got %d", n)
@@ -52,6 +53,22 @@ func vehicleFromProto(v *pb.Vehicle, path string, p *problems) model.Vehicle {
 			ReferenceSpeed: a.GetReferenceSpeedMPerS(),
 			Downforce:      [2]float64{a.GetFrontDownforceN(), a.GetRearDownforceN()},
 			Stiffness:      [2]float64{a.GetFrontStiffnessNPerM(), a.GetRearStiffnessNPerM()},
+		}
+		if t := a.GetTable(); t != nil {
+			out.Aero.Table = &model.AeroTable{
+				RideHeightFront: cloneOrNil(t.GetFrontRideHeightM()), RideHeightRear: cloneOrNil(t.GetRearRideHeightM()),
+				Front: cloneOrNil(t.GetFrontDownforceN()), Rear: cloneOrNil(t.GetRearDownforceN()),
+			}
+		}
+		if pm := a.GetPolynomial(); pm != nil {
+			out.Aero.Polynomial = &model.AeroPolynomial{Origin: [2]float64{pm.GetFrontOriginM(), pm.GetRearOriginM()}}
+			for _, t := range pm.GetTerms() {
+				// uint32 fits an int; the model refuses powers above 6.
+				out.Aero.Polynomial.Terms = append(out.Aero.Polynomial.Terms, model.AeroTerm{
+					PowerFront: int(t.GetFrontPower()), PowerRear: int(t.GetRearPower()),
+					Coefficient: [2]float64{t.GetFrontCoefficient(), t.GetRearCoefficient()},
+				})
+			}
 		}
 	}
 	return out

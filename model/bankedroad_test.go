@@ -28,7 +28,7 @@ func TestRigidPlaneRoad(t *testing.T) {
 		}{{"raised", 0.01, 0, 0}, {"pitched", 0, 0.004, 0}, {"banked", 0, 0, 0.03}} {
 			t.Run(fmt.Sprintf("%s, %s", name, pl.name), func(t *testing.T) {
 				t.Parallel()
-				sys := newSystem(&v, 60)
+				sys := systemAt(t, &v, 60)
 				var x [nDOF]float64
 				var w [nIn]float64
 				x[dofHeave], x[dofPitch], x[dofRoll] = pl.h, pl.p, pl.r

@@ -40,6 +40,14 @@
 //
 //	(K - ω² M + iω C) H(ω) = Bk + iω Bc.
 //
+// # The car at speed
+//
+// States are displacements from the car at rest on a flat road (gravity
+// balanced by the static loads). At each case's speed the downforce
+// presses the car down to its operating point (see OperatingPoint): the
+// dynamic model is linearised about it, and the bump-stop gap, the tyre
+// load and every probability are taken from it.
+//
 // # Motion ratios (common practice, no single source)
 //
 // The motion ratio MR is damper (or spring) travel per wheel travel. A

@@ -55,14 +55,14 @@ type Evaluator struct {
 
 // caseData is one road case prepared on the grid.
 type caseData struct {
-	rc     RoadCase
-	sym    bool
-	base   *system // undamped suspension (tyre damping only)
-	kinv   [nDOF][nDOF]float64
-	grid   *caseGrid
-	geo    outputGeometry
-	static [4]float64
-	modal  modalRatios
+	rc    RoadCase
+	sym   bool
+	base  *system // undamped suspension (tyre damping only)
+	kinv  [nDOF][nDOF]float64
+	grid  *caseGrid
+	geo   outputGeometry
+	op    OperatingPoint // the car at the case's speed
+	modal modalRatios
 }
 
 type workspace struct {
@@ -102,11 +102,12 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt EvaluatorOptions) (*Evaluator
 	for i := range cases {
 		rc := cases[i]
 		sym := vsym && (rc.Measured == nil || rc.Measured.Right == nil)
-		cd := caseData{rc: rc, sym: sym, base: newSystem(&e.v, rc.Speed)}
-		if err := cd.base.checkStable(rc.Name); err != nil {
-			p.add(fmt.Sprintf("road_cases[%d].speed_m_per_s", i), "%v", err)
+		op, err := e.v.operatingPoint(rc.Speed)
+		if err != nil {
+			p.add(fmt.Sprintf("road_cases[%d].speed_m_per_s", i), "road case %q: %v", rc.Name, err)
 			continue
 		}
+		cd := caseData{rc: rc, sym: sym, op: op, base: newSystem(&e.v, &op.AeroStiffness)}
 		for a := 0; a < nDOF; a++ {
 			var unit [nDOF]float64
 			unit[a] = 1
@@ -130,7 +131,6 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt EvaluatorOptions) (*Evaluator
 			cd.geo.kt[c] = v.Corners[c].TyreRate
 			cd.geo.ct[c] = v.Corners[c].TyreDamping
 		}
-		cd.static = v.StaticTyreLoads(rc.Speed)
 		e.cases = append(e.cases, cd)
 	}
 	if err := p.err(); err != nil {
@@ -148,6 +148,9 @@ func (e *Evaluator) Cases() int { return len(e.cases) }
 
 // Case returns road case i.
 func (e *Evaluator) Case(i int) *RoadCase { return &e.cases[i].rc }
+
+// OperatingPoint returns the car's operating point on road case i.
+func (e *Evaluator) OperatingPoint(i int) OperatingPoint { return e.cases[i].op }
 
 // Frequencies returns the grid frequencies (Hz); do not modify.
 func (e *Evaluator) Frequencies() []float64 { return e.f }
@@ -250,7 +253,7 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 
 // fillMetrics turns variances into metrics and solves the jacking.
 func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]float64, m *CaseMetrics) {
-	*m = CaseMetrics{Case: cd.rc.Name, StaticTyreLoad: cd.static}
+	*m = CaseMetrics{Case: cd.rc.Name, StaticTyreLoad: cd.op.TyreLoad, AtSpeed: cd.op}
 	var fbar [4]float64
 	for i := 0; i < 4; i++ {
 		mr := e.v.Corners[i].DamperMotionRatio
@@ -261,7 +264,7 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 		m.MeanDamperForce[i] = mean / mr
 		m.DamperVelocitySD[i] = mr * sv
 		m.TyreLoadSD[i] = math.Sqrt(v[outTyre+i])
-		m.TyreLoadSDRel[i] = m.TyreLoadSD[i] / cd.static[i]
+		m.TyreLoadSDRel[i] = m.TyreLoadSD[i] / cd.op.TyreLoad[i]
 		m.TravelSD[i] = math.Sqrt(v[outTravel+i])
 	}
 	cd.modal.fill(&m.EquivalentDamping, &m.ModalDampingRatio)
@@ -286,9 +289,11 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 			s += cd.base.d[i][a] * xbar[a]
 		}
 		m.TravelShift[i] = s
-		load := cd.static[i] - e.v.Corners[i].TyreRate*xbar[dofWheel+i]
+		// Both tails start from the operating point at the case's speed:
+		// the tyre load and the bump-stop gap left under downforce.
+		load := cd.op.TyreLoad[i] - e.v.Corners[i].TyreRate*xbar[dofWheel+i]
 		m.LiftOffProbability[i] = tailProb(load, m.TyreLoadSD[i])
-		if gap := e.v.Corners[i].BumpStopGap; gap > 0 {
+		if gap := cd.op.BumpStopGap[i]; gap > 0 {
 			m.BumpStopProbability[i] = tailProb(gap-s, m.TravelSD[i])
 		}
 		if m.LiftOffProbability[i] > e.opt.WarnThreshold {

@@ -38,3 +38,50 @@ func BenchmarkEvaluate(b *testing.B) {
 		}
 	}
 }
+
+// BenchmarkEvaluateAeroMap compares one evaluation of the demo setup on
+// the demo cases for the per-axle linear aero (today's), a polynomial
+// ride-height map with cross terms and a table map: the map enters only
+// through the operating point and the stiffness matrix built once per
+// case, so the evaluation itself should cost the same and allocate
+// nothing. The "prepare" runs measure NewEvaluator, where the operating
+// point is solved (Newton on the map).
+func BenchmarkEvaluateAeroMap(b *testing.B) {
+	table := crossAeroCar()
+	tb := &AeroTable{RideHeightFront: []float64{0.01, 0.02, 0.03, 0.04, 0.05, 0.06, 0.07}, RideHeightRear: []float64{0.03, 0.04, 0.05, 0.06, 0.07, 0.08, 0.09}}
+	for _, hf := range tb.RideHeightFront {
+		for _, hr := range tb.RideHeightRear {
+			f, _ := table.Aero.Polynomial.at([2]float64{hf, hr})
+			tb.Front, tb.Rear = append(tb.Front, f[0]+2e5*(hf-0.04)*(hf-0.04)), append(tb.Rear, f[1])
+		}
+	}
+	table.Aero = Aero{ReferenceSpeed: 50, Table: tb}
+	for _, car := range []struct {
+		name string
+		v    Vehicle
+	}{{"linear", demoCar()}, {"polynomial", crossAeroCar()}, {"table", table}} {
+		b.Run(car.name+"/evaluate", func(b *testing.B) {
+			ev, err := NewEvaluator(car.v, demoCases(), EvaluatorOptions{})
+			if err != nil {
+				b.Fatal(err)
+			}
+			s := demoSetup()
+			var r Result
+			b.ReportAllocs()
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				if err := ev.Evaluate(s, &r); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+		b.Run(car.name+"/prepare", func(b *testing.B) {
+			b.ReportAllocs()
+			for i := 0; i < b.N; i++ {
+				if _, err := NewEvaluator(car.v, demoCases(), EvaluatorOptions{}); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}

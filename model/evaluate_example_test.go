@@ -26,7 +26,7 @@ func ExampleEvaluator_Evaluate() {
 	fmt.Printf("ride height sd front/rear: %.2f/%.2f mm\n", 1000*m.RideHeightSD[0], 1000*m.RideHeightSD[1])
 	fmt.Printf("front ride-height shift (jacking): %+.2f mm\n", 1000*m.RideHeightShift[0])
 	// Output:
-	// front-left tyre load sd: 196 N (4.2 % of static)
+	// front-left tyre load sd: 196 N (3.6 % of static)
 	// ride height sd front/rear: 0.90/0.98 mm
 	// front ride-height shift (jacking): -0.37 mm
 }

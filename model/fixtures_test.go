@@ -1,5 +1,7 @@
 package model
 
+import "testing"
+
 // Test fixtures. demoCar is the invented GT-style car of the demo
 // (testdata/), used only where a test needs "a plausible car"; expected
 // values never come from it, they come from the sources named at each check.
@@ -40,5 +42,48 @@ func asymmetricCar() Vehicle {
 	v := demoCar()
 	v.CGLateral = 0.02
 	v.Corners[RR].SpringRate = 190e3
+	return v
+}
+
+// systemAt builds the undamped system of v about its operating point at
+// speed.
+func systemAt(t testing.TB, v *Vehicle, speed float64) *system {
+	t.Helper()
+	op, err := v.operatingPoint(speed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return newSystem(v, &op.AeroStiffness)
+}
+
+// timeModelAt builds the time-domain model of v about its operating point
+// at speed.
+func timeModelAt(t testing.TB, v *Vehicle, s *Setup, speed float64, stops [2]*BumpStop) *timeModel {
+	t.Helper()
+	op, err := v.operatingPoint(speed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := newTimeModel(v, s, &op, stops)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// crossAeroCar is the demo car with a first-order ride-height aero map
+// that has cross terms: each axle's downforce depends on both ride
+// heights (raising the rear loads the front, as a rake change does).
+func crossAeroCar() Vehicle {
+	v := demoCar()
+	v.RestRideHeight = [2]float64{0.055, 0.075}
+	v.Aero = Aero{ReferenceSpeed: 50, Polynomial: &AeroPolynomial{
+		Origin: v.RestRideHeight,
+		Terms: []AeroTerm{
+			{Coefficient: [2]float64{2600, 3400}},
+			{PowerFront: 1, Coefficient: [2]float64{-36e3, 9e3}},
+			{PowerRear: 1, Coefficient: [2]float64{6e3, -26e3}},
+		},
+	}}
 	return v
 }

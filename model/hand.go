@@ -150,13 +150,17 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 	if err != nil {
 		return nil, err
 	}
-	r.Modes = handModes(v, &t.Setup, t.Speed, modal)
+	op, err := v.operatingPoint(t.Speed)
+	if err != nil {
+		return nil, err
+	}
+	r.Modes = handModes(v, &t.Setup, &op, modal)
 	return r, nil
 }
 
 // handModes works out heave, pitch and roll alone (tyres rigid) and with
 // the tyres in series, beside the full car's modes.
-func handModes(v *Vehicle, s *Setup, speed float64, modal []Mode) [3]HandMode {
+func handModes(v *Vehicle, s *Setup, op *OperatingPoint, modal []Mode) [3]HandMode {
 	d := v.wheelDampers(s)
 	inertia := [3]float64{v.SprungMass, v.PitchInertia, v.RollInertia}
 	var susp, tyre, damp [3]float64
@@ -175,12 +179,17 @@ func handModes(v *Vehicle, s *Setup, speed float64, modal []Mode) [3]HandMode {
 		// Energy ½ (k_bar/2)(s_L - s_R)² with s_L - s_R = t φ in roll.
 		susp[ModeRoll] += v.AntiRoll[ax].WheelRateOf() * track[ax] * track[ax] / 2
 	}
-	// The aero stiffness at the speed, a negative spring the hand figures
-	// leave out: per axle on heave and, at its lever, on pitch.
+	// The aero stiffness at the operating point, a negative spring the
+	// hand figures leave out: on heave, and at the axles' levers on pitch.
 	var aero [3]float64
-	_, ka := v.AeroAt(speed)
-	aero[ModeHeave] = ka[Front] + ka[Rear]
-	aero[ModePitch] = ka[Front]*v.CGToFrontAxle*v.CGToFrontAxle + ka[Rear]*v.CGToRearAxle*v.CGToRearAxle
+	lever := [2]float64{v.CGToFrontAxle, -v.CGToRearAxle}
+	for a := 0; a < 2; a++ {
+		for b := 0; b < 2; b++ {
+			aero[ModeHeave] += op.AeroStiffness[a][b]
+			aero[ModePitch] += op.AeroStiffness[a][b] * lever[a] * lever[b]
+		}
+	}
+	speed := op.Speed
 	var out [3]HandMode
 	for j := range out {
 		k, c, m := susp[j], damp[j], inertia[j]

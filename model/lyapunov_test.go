@@ -129,16 +129,46 @@ func referenceModel(v *Vehicle, cw [4]float64, speed, yRide float64) *refModel {
 		wl := (yRide - ys[rr]) / (ys[l] - ys[rr])
 		r.ride[ax] = [7]float64{1, xs[l], yRide}
 		r.rideW[ax][l], r.rideW[ax][rr] = wl, 1-wl
-		// Aero: downforce grows by ka per metre the ride height falls, so
-		// the body feels an upward force ka·h at that point.
-		var ka float64
-		if v.Aero.ReferenceSpeed > 0 {
-			ka = v.Aero.Stiffness[ax] * (speed / v.Aero.ReferenceSpeed) * (speed / v.Aero.ReferenceSpeed)
+	}
+	// Aero: downforce on axle a grows by ka[a][b] per metre axle b's ride
+	// height falls, so the body feels an upward force Σ_b ka[a][b]·h_b at
+	// axle a.
+	ka := refAeroStiffness(v, speed)
+	for ax := 0; ax < 2; ax++ {
+		for bx := 0; bx < 2; bx++ {
+			addOuter(r.k, -ka[ax][bx], r.ride[ax][:], r.ride[bx][:])
+			addOuter(r.bk, -ka[ax][bx], r.ride[ax][:], r.rideW[bx][:])
 		}
-		addOuter(r.k, -ka, r.ride[ax][:], r.ride[ax][:])
-		addOuter(r.bk, -ka, r.ride[ax][:], r.rideW[ax][:])
 	}
 	return r
+}
+
+// refAeroStiffness is the aero stiffness -∂F/∂h at speed of a map whose
+// slope does not depend on the ride heights, read from its own
+// definition: the per-axle linear map, or a polynomial of first order in
+// each ride height with no product term.
+func refAeroStiffness(v *Vehicle, speed float64) (ka [2][2]float64) {
+	if v.Aero.ReferenceSpeed == 0 {
+		return ka
+	}
+	q := (speed / v.Aero.ReferenceSpeed) * (speed / v.Aero.ReferenceSpeed)
+	if p := v.Aero.Polynomial; p != nil {
+		for _, t := range p.Terms {
+			switch {
+			case t.PowerFront == 1 && t.PowerRear == 0:
+				ka[0][0], ka[1][0] = -q*t.Coefficient[0], -q*t.Coefficient[1]
+			case t.PowerFront == 0 && t.PowerRear == 1:
+				ka[0][1], ka[1][1] = -q*t.Coefficient[0], -q*t.Coefficient[1]
+			case t.PowerFront != 0 || t.PowerRear != 0:
+				panic("refAeroStiffness: the reference takes first-order maps only")
+			}
+		}
+		return ka
+	}
+	for ax := 0; ax < 2; ax++ {
+		ka[ax][ax] = q * v.Aero.Stiffness[ax]
+	}
+	return ka
 }
 
 // outputRow is an output as y = cx·x + cv·ẋ + cw·w̃ + cwd·dw̃/dt + ca·ẍ.
@@ -518,6 +548,7 @@ func TestLyapunovCovariance(t *testing.T) {
 	}
 	asym := asymmetricCar()
 	sym := demoCar()
+	cross := crossAeroCar()
 	for _, tc := range []struct {
 		name    string
 		v       Vehicle
@@ -533,6 +564,9 @@ func TestLyapunovCovariance(t *testing.T) {
 		{"asymmetric springs, independent tracks", warpable(asym), [2]float64{0.5, 0.65}, 50, 0, false},
 		{"asymmetric springs, coherence 0.6", warpable(asym), [2]float64{0.3, 0.8}, 50, 0.6, false},
 		{"demo car, equal tracks, coherence 0.3, symmetric path", warpable(sym), [2]float64{0.6, 0.6}, 40, 0.3, false},
+		// An aero map with cross terms: K and Bk are not symmetric.
+		{"aero map with cross terms, symmetric path", cross, [2]float64{0.5, 0.7}, 50, 1, false},
+		{"aero map with cross terms, general path", cross, [2]float64{0.5, 0.7}, 50, 1, true},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()

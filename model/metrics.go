@@ -4,12 +4,18 @@ import "fmt"
 
 // CaseMetrics are the ride metrics of one setup on one road case. Standard
 // deviations are of the dynamic part about the mean; shifts are the mean
-// changes from static caused by asymmetric dampers ("jacking").
+// changes from the operating point at speed (AtSpeed) caused by
+// asymmetric dampers ("jacking").
 type CaseMetrics struct {
 	Case string // road case name
 
+	// AtSpeed is the car's operating point at the case's speed: ride
+	// heights, pitch, compression and bump-stop gaps left under
+	// downforce. The probabilities below start from it.
+	AtSpeed OperatingPoint
+
 	TyreLoadSD         [4]float64 // dynamic tyre load standard deviation (N)
-	StaticTyreLoad     [4]float64 // static tyre load incl. unsprung weight and downforce (N)
+	StaticTyreLoad     [4]float64 // static tyre load at the operating point, weight and downforce (N)
 	TyreLoadSDRel      [4]float64 // TyreLoadSD / StaticTyreLoad (-)
 	LiftOffProbability [4]float64 // P(dynamic load < -static load), Gaussian (-)
 
@@ -19,7 +25,7 @@ type CaseMetrics struct {
 	HeaveAccelSD float64    // heave acceleration of the sprung CG (m/s²)
 
 	TravelSD            [4]float64 // suspension travel at the wheel (m)
-	BumpStopProbability [4]float64 // P(travel > bump-stop gap), Gaussian, incl. mean shift; 0 when no gap given (-)
+	BumpStopProbability [4]float64 // P(travel > bump-stop gap left at speed), Gaussian, incl. mean shift; 0 when no gap given (-)
 
 	DamperVelocitySD  [4]float64 // damper velocity at the damper (m/s)
 	EquivalentDamping [4]float64 // c_eq at the wheel at the fixed point (N s/m)

@@ -86,10 +86,11 @@ func ModesAt(v *Vehicle, speed float64, c [4]float64) ([]Mode, error) {
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	base := newSystem(v, speed)
-	if err := base.checkStable(fmt.Sprintf("speed %g m/s", speed)); err != nil {
+	op, err := v.operatingPoint(speed)
+	if err != nil {
 		return nil, err
 	}
+	base := newSystem(v, &op.AeroStiffness)
 	sys := base.withDamping(c)
 	um, err := undampedModes(base)
 	if err != nil {

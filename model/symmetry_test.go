@@ -68,7 +68,7 @@ func symmetryCases() []RoadCase {
 	cases := demoCases()
 	cases = append(cases,
 		RoadCase{Name: "waviness 2.8, isotropic", Speed: 42, Gd0: 6e-6, Waviness: 2.8},
-		RoadCase{Name: "waviness 1.6, table coherence", Speed: 65, Gd0: 1.5e-6, Waviness: 1.6,
+		RoadCase{Name: "waviness 1.6, table coherence", Speed: 58, Gd0: 1.5e-6, Waviness: 1.6,
 			Coherence: Coherence{Kind: CoherenceTable, N: []float64{0.05, 0.3, 1, 4}, Gamma: []float64{0.95, 0.7, 0.2, -0.05}}},
 		RoadCase{Name: "measured, own coherence", Speed: 38, Measured: &MeasuredSpectrum{
 			N:         []float64{0.01, 0.05, 0.2, 1, 5},

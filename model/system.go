@@ -21,17 +21,19 @@ const (
 // With s = D x the suspension travel (D_i = [-1, -x_i, -y_i, e_i]) and
 // E x the wheel displacements:
 //
-//	K  = Dᵀ Ks D + Eᵀ Kt E - Σ_axles k_aero Tᵀ T
+//	K  = Dᵀ Ks D + Eᵀ Kt E - Σ_(a,b) K_a[a][b] T_aᵀ T_b
 //	C  = Dᵀ Cs D + Eᵀ Ct E
-//	Bk = Eᵀ Kt - Σ_axles k_aero Tᵀ [½ ½] (on that axle's inputs)
+//	Bk = Eᵀ Kt - Σ_(a,b) K_a[a][b] T_aᵀ [½ ½] (on axle b's inputs)
 //	Bc = Eᵀ Ct
 //
 // where Ks is diagonal in the wheel rates plus each axle's bar coupling
 // (k_bar/2)[[1,-1],[-1,1]], Cs = diag(c_i) the dampers at the wheel, Kt
-// and Ct the tyres, and T = [1, x_axle, -y_cg] the body point on an
-// axle's centre line. The
-// aero term is the force k_aero·h on the body at the axle, h its ride
-// height above the road (downforce grows as h falls).
+// and Ct the tyres, and T_a = [1, x_a, -y_cg] the body point on axle a's
+// centre line. The aero term is the linearised downforce at the operating
+// point: K_a = -∂F/∂h (2×2, see Aero) gives the upward force
+// Σ_b K_a[a][b]·h_b on the body at axle a, h_b axle b's ride height above
+// the road (downforce grows as h falls). With cross terms K is not
+// symmetric (the aero force is not conservative).
 type system struct {
 	m      [nDOF]float64 // diagonal mass matrix
 	k, c   [nDOF][nDOF]float64
@@ -40,9 +42,10 @@ type system struct {
 	d [nIn][nDOF]float64
 }
 
-// newSystem builds the system at the given speed with no suspension
-// damping; setDamping adds it.
-func newSystem(v *Vehicle, speed float64) *system {
+// newSystem builds the system with the aero stiffness ka (N/m at the
+// case's speed, see OperatingPoint.AeroStiffness) and no suspension
+// damping; withDamping adds it.
+func newSystem(v *Vehicle, ka *[2][2]float64) *system {
 	s := &system{}
 	s.m[dofHeave] = v.SprungMass
 	s.m[dofPitch] = v.PitchInertia
@@ -84,21 +87,30 @@ func newSystem(v *Vehicle, speed float64) *system {
 		s.bk[dofWheel+i][i] = kt
 		s.bc[dofWheel+i][i] = ct
 	}
-	_, ka := v.AeroAt(speed)
-	xAxle := [2]float64{v.CGToFrontAxle, -v.CGToRearAxle}
+	t := v.axleRows()
 	for ax := 0; ax < 2; ax++ {
-		// The axle's centre line, where the aero load acts and ride height
-		// is measured: y = -CGLateral from the sprung CG.
-		t := [3]float64{1, xAxle[ax], -v.CGLateral}
-		for a := 0; a < 3; a++ {
-			for b := 0; b < 3; b++ {
-				s.k[a][b] -= ka[ax] * t[a] * t[b]
+		for bx := 0; bx < 2; bx++ {
+			k := ka[ax][bx]
+			if k == 0 {
+				continue
 			}
-			s.bk[a][2*ax] -= ka[ax] * t[a] / 2
-			s.bk[a][2*ax+1] -= ka[ax] * t[a] / 2
+			for a := 0; a < 3; a++ {
+				for b := 0; b < 3; b++ {
+					s.k[a][b] -= k * t[ax][a] * t[bx][b]
+				}
+				s.bk[a][2*bx] -= k * t[ax][a] / 2
+				s.bk[a][2*bx+1] -= k * t[ax][a] / 2
+			}
 		}
 	}
 	return s
+}
+
+// axleRows returns T_a, the body point on each axle's centre line (where
+// the aero load acts and ride height is measured: y = -CGLateral from
+// the sprung CG), as rows of the state: its rise is T_a·x.
+func (v *Vehicle) axleRows() [2][nDOF]float64 {
+	return [2][nDOF]float64{{1, v.CGToFrontAxle, -v.CGLateral}, {1, -v.CGToRearAxle, -v.CGLateral}}
 }
 
 // withDamping returns a copy of s with suspension dampers c (N s/m at the
@@ -120,20 +132,23 @@ func (s *system) withDamping(c [4]float64) system {
 	return out
 }
 
-// checkStable returns an error wrapping ErrUnstable when K is not positive
-// definite (an aero stiffness larger than the suspension can hold).
-func (s *system) checkStable(caseName string) error {
+// stiffEnough reports whether the symmetric part of K, (K + Kᵀ)/2, is
+// positive definite (Cholesky): then xᵀK x > 0 for every displacement,
+// every static load has one equilibrium and the car does not diverge
+// statically. For a symmetric K (a per-axle linear map) it is the usual
+// test; the circulatory part of an aero map's cross terms can in
+// principle make a damped car flutter, which the time-domain check's
+// eigenvalues catch (common practice, no single source: a sufficient
+// test for divergence, not for flutter).
+func (s *system) stiffEnough() bool {
 	k := mat.NewSymDense(nDOF, nil)
 	for a := 0; a < nDOF; a++ {
 		for b := a; b < nDOF; b++ {
-			k.SetSym(a, b, s.k[a][b])
+			k.SetSym(a, b, (s.k[a][b]+s.k[b][a])/2)
 		}
 	}
 	var ch mat.Cholesky
-	if !ch.Factorize(k) {
-		return fmt.Errorf("%w: road case %q: the stiffness matrix is not positive definite (aero stiffness too large for the springs at this speed)", ErrUnstable, caseName)
-	}
-	return nil
+	return ch.Factorize(k)
 }
 
 // staticSolve solves K x = f for the mean displacement under mean forces.

@@ -13,8 +13,9 @@ import (
 // the wheel: a force that pushes body and wheel apart once the travel in
 // bump exceeds the gap.
 type BumpStop struct {
-	// Gap is the wheel travel in bump from static ride height to contact
-	// (m); 0 means each corner's Corner.BumpStopGap.
+	// Gap is the wheel travel in bump from the rest ride height to
+	// contact (m); 0 means each corner's Corner.BumpStopGap. The time
+	// domain starts from the operating point, with the gap left there.
 	Gap float64
 	// Deflection (m, increasing, the first > 0) and Force (N, >= 0,
 	// non-decreasing) tabulate the force at the wheel against the
@@ -128,25 +129,27 @@ func (o TimeOptions) validate(v *Vehicle) error {
 	return p.err()
 }
 
-// timeModel is the nonlinear 7-DOF car: the linear system of newSystem
-// (springs, bars, tyres, aero, tyre damping: the same matrices as the
-// frequency-domain model) plus the piecewise dampers, the bump stops and
-// a tyre that cannot pull.
+// timeModel is the nonlinear 7-DOF car about its operating point at the
+// case's speed: the linear system of newSystem (springs, bars, tyres, the
+// aero map linearised at the point, tyre damping: the same matrices as
+// the frequency-domain model) plus the piecewise dampers, the bump stops
+// (at the gap left at speed) and a tyre that cannot pull (from its load
+// at speed).
 type timeModel struct {
 	sys    *system
 	minv   [nDOF]float64
 	damp   [4]wheelDamper
 	stop   [4]*BumpStop
-	gap    [4]float64 // bump-stop gap per corner (m), 0 = none
-	static [4]float64 // static tyre load (N)
+	gap    [4]float64 // bump-stop gap left at the operating point per corner (m), 0 = none
+	static [4]float64 // tyre load at the operating point (N)
 	kt, ct [4]float64
 	mr     [4]float64
 	a, b   float64
 	tf, tr float64
 }
 
-func newTimeModel(v *Vehicle, s *Setup, speed float64, stops [2]*BumpStop) *timeModel {
-	m := &timeModel{sys: newSystem(v, speed), damp: v.wheelDampers(s), static: v.StaticTyreLoads(speed),
+func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) (*timeModel, error) {
+	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.wheelDampers(s), static: op.TyreLoad,
 		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear}
 	for i := range m.minv {
 		m.minv[i] = 1 / m.sys.m[i]
@@ -154,15 +157,19 @@ func newTimeModel(v *Vehicle, s *Setup, speed float64, stops [2]*BumpStop) *time
 	for i := 0; i < 4; i++ {
 		m.kt[i], m.ct[i] = v.Corners[i].TyreRate, v.Corners[i].TyreDamping
 		m.mr[i] = v.Corners[i].DamperMotionRatio
-		m.gap[i] = v.Corners[i].BumpStopGap
+		m.gap[i] = op.BumpStopGap[i]
 		if b := stops[i/2]; b != nil {
 			m.stop[i] = b
 			if b.Gap > 0 {
-				m.gap[i] = b.Gap
+				m.gap[i] = b.Gap - op.Compression[i]
+				if m.gap[i] <= 0 {
+					return nil, fmt.Errorf("%w: at %g m/s the downforce compresses corner %s by %.4g mm, onto its bump stop (gap %.4g mm)",
+						ErrNoEquilibrium, op.Speed, CornerNames[i], op.Compression[i]*1e3, b.Gap*1e3)
+				}
 			}
 		}
 	}
-	return m
+	return m, nil
 }
 
 // timeSample is what one evaluation of the equations of motion yields
@@ -404,9 +411,13 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	if rnd == nil {
 		return nil, &ValidationError{Problems: []FieldError{{Field: "seed", Reason: "a seeded random source is needed"}}}
 	}
-	m := newTimeModel(v, s, rc.Speed, opt.BumpStops)
-	if err := m.sys.checkStable(rc.Name); err != nil {
-		return nil, err
+	op, err := v.operatingPoint(rc.Speed)
+	if err != nil {
+		return nil, fmt.Errorf("road case %q: %w", rc.Name, err)
+	}
+	m, err := newTimeModel(v, s, &op, opt.BumpStops)
+	if err != nil {
+		return nil, fmt.Errorf("road case %q: %w", rc.Name, err)
 	}
 	hRule, settle, rho, err := m.timing()
 	if err != nil {

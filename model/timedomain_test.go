@@ -76,8 +76,14 @@ func TestAccelForces(t *testing.T) {
 	const rounding = 1e-9
 	v := demoCar()
 	s := demoSetup()
-	stop := &BumpStop{Gap: 0.01, Deflection: []float64{0.005}, Force: []float64{1000}}
-	m := newTimeModel(&v, &s, 50, [2]*BumpStop{stop, nil})
+	// The rubber's gap at rest is set to leave 10 mm at the operating
+	// point at 50 m/s, where the model starts.
+	op, err := v.OperatingPoint(50)
+	if err != nil {
+		t.Fatal(err)
+	}
+	stop := &BumpStop{Gap: 0.01 + op.Compression[FL], Deflection: []float64{0.005}, Force: []float64{1000}}
+	m := timeModelAt(t, &v, &s, 50, [2]*BumpStop{stop, nil})
 	in := []float64{0.001, -0.002, 0.0005, 0, 0.01, 0.02, -0.01, 0}
 	xi, yi := v.cornerPosition(FL)
 	tests := []struct {
@@ -123,7 +129,7 @@ func TestAccelForces(t *testing.T) {
 			nonlinear: func(f *[nDOF]float64) {
 				tyre := m.kt[FL]*(in[FL]-0.02) + m.ct[FL]*in[4+FL]
 				f[dofWheel+FL] += -(m.static[FL] + tyre)
-				g := stop.force(0.02 - 0.01)
+				g := 1000 * 0.01 / 0.005
 				f[0] += g
 				f[1] += xi * g
 				f[2] += yi * g
@@ -230,7 +236,7 @@ func TestRK4IsFourthOrder(t *testing.T) {
 	const f, amp = 15.0, 1e-3
 	v := demoCar()
 	s := tdLinearSetup(0.6)
-	m := newTimeModel(&v, &s, 50, [2]*BumpStop{})
+	m := timeModelAt(t, &v, &s, 50, [2]*BumpStop{})
 	var c [4]float64
 	for i := range c {
 		c[i] = m.damp[i].cb
@@ -330,15 +336,20 @@ func TestTyreLiftOffIsClipped(t *testing.T) {
 
 func TestBumpStopsLimitTravel(t *testing.T) {
 	t.Parallel()
-	// With rubbers 6 mm from static on a bumpy road the travel beyond the
-	// gap is counted with or without them; with them the peak travel is
-	// smaller, and since the force curve rises monotonically the largest
-	// stop force is the curve at the largest travel, exactly.
+	// With rubbers 8 mm from rest (about 3 mm left at 30 m/s under
+	// downforce) on a bumpy road the travel beyond the gap is counted with
+	// or without them; with them the peak travel is smaller, and since the
+	// force curve rises monotonically the largest stop force is the curve
+	// at the largest travel from the operating point, exactly.
 	v := demoCar()
 	s := tdLinearSetup(0.5)
 	rc := RoadCase{Name: "bumpy", Speed: 30, Class: "B"}
-	stop := &BumpStop{Gap: 0.003, Deflection: []float64{0.004, 0.008}, Force: []float64{800, 4000}}
-	free, err := SimulateCase(&v, &rc, &s, TimeOptions{Duration: 20, BumpStops: [2]*BumpStop{{Gap: 0.003, Deflection: []float64{1}, Force: []float64{0}}, nil}}, rand.New(rand.NewPCG(3, 3)))
+	op, err := v.OperatingPoint(rc.Speed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	stop := &BumpStop{Gap: 0.008, Deflection: []float64{0.004, 0.008}, Force: []float64{800, 4000}}
+	free, err := SimulateCase(&v, &rc, &s, TimeOptions{Duration: 20, BumpStops: [2]*BumpStop{{Gap: 0.008, Deflection: []float64{1}, Force: []float64{0}}, nil}}, rand.New(rand.NewPCG(3, 3)))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -351,7 +362,7 @@ func TestBumpStopsLimitTravel(t *testing.T) {
 			t.Errorf("%s: beyond the gap %.3g / %.3g of the time, peak travel %.4g m with stops, %.4g without",
 				CornerNames[i], held.BumpStopProbability[i], free.BumpStopProbability[i], held.Peaks.TravelMax[i], free.Peaks.TravelMax[i])
 		}
-		want := stop.force(held.Peaks.TravelMax[i] - 0.003)
+		want := stop.force(held.Peaks.TravelMax[i] - (stop.Gap - op.Compression[i]))
 		if !scalar.EqualWithinRel(held.Peaks.BumpStopForceMax[i], want, 1e-12) {
 			t.Errorf("%s: peak stop force %g, curve at peak travel %g", CornerNames[i], held.Peaks.BumpStopForceMax[i], want)
 		}
@@ -359,7 +370,8 @@ func TestBumpStopsLimitTravel(t *testing.T) {
 			t.Errorf("%s: a zero-force rubber gave %g N", CornerNames[i], free.Peaks.BumpStopForceMax[i])
 		}
 	}
-	// The rear corners have no rubber and their gap is the corner's 35 mm.
+	// The rear corners have no rubber and their gap is the corner's 35 mm
+	// less the compression at speed.
 	if held.BumpStopProbability[RL] != 0 || held.Peaks.BumpStopForceMax[RL] != 0 {
 		t.Errorf("rear: %g of the time beyond 35 mm, stop force %g", held.BumpStopProbability[RL], held.Peaks.BumpStopForceMax[RL])
 	}
@@ -423,7 +435,7 @@ func BenchmarkSimulateCase(b *testing.B) {
 func BenchmarkIntegrate(b *testing.B) {
 	v := demoCar()
 	s := demoSetup()
-	m := newTimeModel(&v, &s, 50, [2]*BumpStop{})
+	m := timeModelAt(b, &v, &s, 50, [2]*BumpStop{})
 	const steps, h = 1000, 1e-3
 	in := tdHarmonic(steps, h, 12, 1e-3, [4]float64{0, 1, 2, 3})
 	st := newTimeStats(m.gap, steps)

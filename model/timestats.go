@@ -46,8 +46,8 @@ type TimeMetrics struct {
 type Peaks struct {
 	TyreLoadMin       [4]float64 // lowest tyre load (N); 0 when it lifted
 	TyreLoadMax       [4]float64 // highest tyre load (N)
-	TravelMax         [4]float64 // most travel in bump from static (m)
-	TravelMin         [4]float64 // most travel in rebound from static, negative (m)
+	TravelMax         [4]float64 // most travel in bump from the operating point at speed (m)
+	TravelMin         [4]float64 // most travel in rebound from the operating point at speed, negative (m)
 	DamperVelocityMax [4]float64 // highest bump velocity at the damper (m/s)
 	DamperVelocityMin [4]float64 // highest rebound velocity at the damper, negative (m/s)
 	BumpStopForceMax  [4]float64 // highest bump-stop force at the wheel (N)

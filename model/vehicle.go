@@ -45,7 +45,13 @@ type Vehicle struct {
 
 	Corners  [4]Corner      // FL, FR, RL, RR
 	AntiRoll [2]AntiRollBar // front, rear
-	Aero     Aero           // optional linear aero
+	Aero     Aero           // optional aero map (see Aero)
+
+	// RestRideHeight is the ride height of the car at rest, front and
+	// rear, at each axle's centre line (m): the body's reference (floor,
+	// plank) above the ground. Needed by a ride-height aero map; 0 = not
+	// given, and ride heights are then reported as changes from rest.
+	RestRideHeight [2]float64
 }
 
 // Corner is one wheel station.
@@ -70,9 +76,10 @@ type Corner struct {
 	// an ISO 8608 road with waviness 2 the term ct·ẇ has a white spectrum).
 	TyreEnvelopeLength float64
 
-	// BumpStopGap is the wheel travel in bump from static ride height to
+	// BumpStopGap is the wheel travel in bump from the car at rest to
 	// bump-stop contact (m); 0 means not given, and no contact probability
-	// is reported for the corner.
+	// is reported for the corner. At speed the downforce uses part of it
+	// (see OperatingPoint).
 	BumpStopGap float64
 
 	// SprungLoad optionally gives the static sprung load on this corner (N)
@@ -91,18 +98,6 @@ type AntiRollBar struct {
 	// travel per wheel travel, giving k_bar = BarRate·MotionRatio².
 	BarRate     float64
 	MotionRatio float64
-}
-
-// Aero is linear aerodynamics per axle, given at a reference speed and
-// scaled by (V/V_ref)² to each road case's speed.
-type Aero struct {
-	ReferenceSpeed float64    // speed at which the figures hold (m/s); 0 = no aero
-	Downforce      [2]float64 // downforce per axle at the reference speed (N), front, rear
-	// Stiffness is the increase of an axle's downforce per metre of drop
-	// of that axle's ride height (N/m) at the reference speed; positive for
-	// a car that gains downforce nearer the ground. It acts as a negative
-	// spring on the body.
-	Stiffness [2]float64
 }
 
 // WheelRateOf returns the corner's wheel rate (N/m).
@@ -160,26 +155,12 @@ func (v *Vehicle) SprungCornerLoads() [4]float64 {
 	return out
 }
 
-// AeroAt returns downforce and aero stiffness per axle at speed (N, N/m).
-func (v *Vehicle) AeroAt(speed float64) (downforce, stiffness [2]float64) {
-	if v.Aero.ReferenceSpeed <= 0 {
-		return
-	}
-	s := (speed / v.Aero.ReferenceSpeed) * (speed / v.Aero.ReferenceSpeed)
-	for ax := 0; ax < 2; ax++ {
-		downforce[ax] = v.Aero.Downforce[ax] * s
-		stiffness[ax] = v.Aero.Stiffness[ax] * s
-	}
-	return
-}
-
-// StaticTyreLoads returns the static vertical load on each tyre at speed
-// (N): sprung corner load, unsprung weight and half the axle's downforce.
-func (v *Vehicle) StaticTyreLoads(speed float64) [4]float64 {
+// restTyreLoads returns the static vertical load on each tyre at rest
+// (N): sprung corner load and unsprung weight.
+func (v *Vehicle) restTyreLoads() [4]float64 {
 	out := v.SprungCornerLoads()
-	df, _ := v.AeroAt(speed)
 	for i := range out {
-		out[i] += v.Corners[i].UnsprungMass*Gravity + df[i/2]/2
+		out[i] += v.Corners[i].UnsprungMass * Gravity
 	}
 	return out
 }
@@ -246,11 +227,6 @@ func (v *Vehicle) Validate() error {
 		p.atMost(f+"wheel_rate_n_per_m", b.WheelRate, maxRate)
 		p.atMost(f+"bar_rate_n_per_m", b.BarRate, maxRate)
 	}
-	p.atMost("aero.reference_speed_m_per_s", v.Aero.ReferenceSpeed, 1e3)
-	for ax := 0; ax < 2; ax++ {
-		p.atMost(fmt.Sprintf("aero.downforce_n[%d]", ax), v.Aero.Downforce[ax], 1e6)
-		p.atMost(fmt.Sprintf("aero.stiffness_n_per_m[%d]", ax), math.Abs(v.Aero.Stiffness[ax]), maxRate)
-	}
 	p.positive("sprung_mass_kg", v.SprungMass)
 	p.positive("pitch_inertia_kg_m2", v.PitchInertia)
 	p.positive("roll_inertia_kg_m2", v.RollInertia)
@@ -304,13 +280,11 @@ func (v *Vehicle) Validate() error {
 			p.nonNegative(f+"wheel_rate_n_per_m", b.WheelRate)
 		}
 	}
-	p.nonNegative("aero.reference_speed_m_per_s", v.Aero.ReferenceSpeed)
 	for ax := 0; ax < 2; ax++ {
-		p.nonNegative(fmt.Sprintf("aero.downforce_n[%d]", ax), v.Aero.Downforce[ax])
-		p.finite(fmt.Sprintf("aero.stiffness_n_per_m[%d]", ax), v.Aero.Stiffness[ax])
+		f := fmt.Sprintf("rest_ride_height_m[%d]", ax)
+		p.nonNegative(f, v.RestRideHeight[ax])
+		p.atMost(f, v.RestRideHeight[ax], 1)
 	}
-	if v.Aero.ReferenceSpeed == 0 && (v.Aero.Downforce != [2]float64{} || v.Aero.Stiffness != [2]float64{}) {
-		p.add("aero.reference_speed_m_per_s", "must be > 0 when downforce or aero stiffness is given")
-	}
+	v.Aero.validate(&p, "aero.", v.RestRideHeight)
 	return p.err()
 }

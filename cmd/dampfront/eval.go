@@ -163,5 +163,9 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 			tradeNum(qProbability, maxOf((*pb.CornerMetrics).GetLiftOffProbability)),
 			tradeNum(qProbability, maxOf((*pb.CornerMetrics).GetBumpStopProbability)))
 	}
-	return t.flush()
+	if err := t.flush(); err != nil {
+		return err
+	}
+	fmt.Fprintln(w)
+	return writeAtSpeed(w, s.GetCaseMetrics())
 }

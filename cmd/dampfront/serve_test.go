@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/csv"
 	"encoding/json"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -244,7 +245,8 @@ func TestServeClientCommands(t *testing.T) {
 
 	t.Run("eval", func(t *testing.T) {
 		r := mustRun(t, exitOK, nil, s.client("eval", "--job", id, "--setup", testdataPath("candidate-setup.yaml"), "--setup", testdataPath("setup-jacking.yaml"))...)
-		for _, want := range []string{"Ashgrove Ring, fast sweepers", "Tolvane Hill, rough slow section", "constraints: all met", "constraints: NOT met", cautionText} {
+		for _, want := range []string{"Ashgrove Ring, fast sweepers", "Tolvane Hill, rough slow section", "constraints: all met", "constraints: NOT met", cautionText,
+			"car at speed", "ride height at speed mm F/R", "bump-stop gap left mm FL/FR/RL/RR"} {
 			if !strings.Contains(r.stdout, want) {
 				t.Errorf("eval lacks %q:\n%s", want, r.stdout)
 			}
@@ -263,6 +265,15 @@ func TestServeClientCommands(t *testing.T) {
 		}
 		if ga, gb := a.GetEvaluations()[0].GetObjectives(), b.GetEvaluations()[0].GetObjectives(); len(ga) != 2 || ga[0] != gb[0] || ga[1] != gb[1] {
 			t.Errorf("eval from the job %v and from the files %v differ", ga, gb)
+		}
+		// The car at 55 m/s: the demo car's downforce compresses the front
+		// about 22 mm (statics, see model.TestOperatingPointClosedForm) and
+		// the JSON carries the gap left, 30 mm less that.
+		fast := a.GetEvaluations()[0].GetCaseMetrics()[0]
+		fl := fast.GetCorners()[0]
+		if c := fl.GetCompressionAtSpeedM(); c < 0.021 || c > 0.023 || math.Abs(fl.GetBumpStopGapAtSpeedM()-(0.030-c)) > 1e-12 || fast.GetAtSpeed().GetFrontRideHeightChangeM() >= -0.02 {
+			t.Errorf("%s: front compression %g m, gap left %g m, ride change %g m; want about 0.022, 0.030 less it, below -0.02",
+				fast.GetRoadCase(), c, fl.GetBumpStopGapAtSpeedM(), fast.GetAtSpeed().GetFrontRideHeightChangeM())
 		}
 		// candidate-setup.yaml says its rebound, stiffer than bump, makes
 		// the car jack down: the mean force of Caughey's linearisation,

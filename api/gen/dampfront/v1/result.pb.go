@@ -291,7 +291,10 @@ type CaseMetrics struct {
 	Warnings []string `protobuf:"bytes,10,rep,name=warnings,proto3" json:"warnings,omitempty"`
 	// Vibration modes at this case's speed with each damper at its
 	// equivalent slope on this case.
-	Modes         []*Mode `protobuf:"bytes,11,rep,name=modes,proto3" json:"modes,omitempty"`
+	Modes []*Mode `protobuf:"bytes,11,rep,name=modes,proto3" json:"modes,omitempty"`
+	// The car at this case's speed: the static equilibrium under downforce
+	// that every probability starts from.
+	AtSpeed       *OperatingPoint `protobuf:"bytes,12,opt,name=at_speed,json=atSpeed,proto3" json:"at_speed,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -403,6 +406,162 @@ func (x *CaseMetrics) GetModes() []*Mode {
 	return nil
 }
 
+func (x *CaseMetrics) GetAtSpeed() *OperatingPoint {
+	if x != nil {
+		return x.AtSpeed
+	}
+	return nil
+}
+
+// OperatingPoint is the car's static equilibrium under downforce at a
+// road case's speed, on a flat road. Changes are from the car at rest.
+// Per-corner figures (compression, gap left, tyre load) are in
+// CornerMetrics.
+type OperatingPoint struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Front ride height at speed: the rest ride height plus the change (the
+	// change alone when the vehicle gives no rest ride height).
+	FrontRideHeightM float64 `protobuf:"fixed64,1,opt,name=front_ride_height_m,json=frontRideHeightM,proto3" json:"front_ride_height_m,omitempty"`
+	// Rear ride height at speed, as front_ride_height_m.
+	RearRideHeightM float64 `protobuf:"fixed64,2,opt,name=rear_ride_height_m,json=rearRideHeightM,proto3" json:"rear_ride_height_m,omitempty"`
+	// Front ride height at speed minus at rest, up positive.
+	FrontRideHeightChangeM float64 `protobuf:"fixed64,3,opt,name=front_ride_height_change_m,json=frontRideHeightChangeM,proto3" json:"front_ride_height_change_m,omitempty"`
+	// Rear ride height at speed minus at rest, up positive.
+	RearRideHeightChangeM float64 `protobuf:"fixed64,4,opt,name=rear_ride_height_change_m,json=rearRideHeightChangeM,proto3" json:"rear_ride_height_change_m,omitempty"`
+	// Pitch at speed from rest, nose up positive.
+	PitchRad float64 `protobuf:"fixed64,5,opt,name=pitch_rad,json=pitchRad,proto3" json:"pitch_rad,omitempty"`
+	// Front axle downforce at this point and speed.
+	FrontDownforceN float64 `protobuf:"fixed64,6,opt,name=front_downforce_n,json=frontDownforceN,proto3" json:"front_downforce_n,omitempty"`
+	// Rear axle downforce at this point and speed.
+	RearDownforceN float64 `protobuf:"fixed64,7,opt,name=rear_downforce_n,json=rearDownforceN,proto3" json:"rear_downforce_n,omitempty"`
+	// Aero stiffness -dF_front/dh_front at this point and speed.
+	FrontFrontAeroStiffnessNPerM float64 `protobuf:"fixed64,8,opt,name=front_front_aero_stiffness_n_per_m,json=frontFrontAeroStiffnessNPerM,proto3" json:"front_front_aero_stiffness_n_per_m,omitempty"`
+	// Aero stiffness -dF_front/dh_rear (a cross term).
+	FrontRearAeroStiffnessNPerM float64 `protobuf:"fixed64,9,opt,name=front_rear_aero_stiffness_n_per_m,json=frontRearAeroStiffnessNPerM,proto3" json:"front_rear_aero_stiffness_n_per_m,omitempty"`
+	// Aero stiffness -dF_rear/dh_front (a cross term).
+	RearFrontAeroStiffnessNPerM float64 `protobuf:"fixed64,10,opt,name=rear_front_aero_stiffness_n_per_m,json=rearFrontAeroStiffnessNPerM,proto3" json:"rear_front_aero_stiffness_n_per_m,omitempty"`
+	// Aero stiffness -dF_rear/dh_rear.
+	RearRearAeroStiffnessNPerM float64 `protobuf:"fixed64,11,opt,name=rear_rear_aero_stiffness_n_per_m,json=rearRearAeroStiffnessNPerM,proto3" json:"rear_rear_aero_stiffness_n_per_m,omitempty"`
+	// Newton iterations of the equilibrium (1 for a linear map, 0 without aero).
+	NewtonIterations int32 `protobuf:"varint,12,opt,name=newton_iterations,json=newtonIterations,proto3" json:"newton_iterations,omitempty"`
+	unknownFields    protoimpl.UnknownFields
+	sizeCache        protoimpl.SizeCache
+}
+
+func (x *OperatingPoint) Reset() {
+	*x = OperatingPoint{}
+	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *OperatingPoint) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*OperatingPoint) ProtoMessage() {}
+
+func (x *OperatingPoint) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use OperatingPoint.ProtoReflect.Descriptor instead.
+func (*OperatingPoint) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{2}
+}
+
+func (x *OperatingPoint) GetFrontRideHeightM() float64 {
+	if x != nil {
+		return x.FrontRideHeightM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetRearRideHeightM() float64 {
+	if x != nil {
+		return x.RearRideHeightM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetFrontRideHeightChangeM() float64 {
+	if x != nil {
+		return x.FrontRideHeightChangeM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetRearRideHeightChangeM() float64 {
+	if x != nil {
+		return x.RearRideHeightChangeM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetPitchRad() float64 {
+	if x != nil {
+		return x.PitchRad
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetFrontDownforceN() float64 {
+	if x != nil {
+		return x.FrontDownforceN
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetRearDownforceN() float64 {
+	if x != nil {
+		return x.RearDownforceN
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetFrontFrontAeroStiffnessNPerM() float64 {
+	if x != nil {
+		return x.FrontFrontAeroStiffnessNPerM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetFrontRearAeroStiffnessNPerM() float64 {
+	if x != nil {
+		return x.FrontRearAeroStiffnessNPerM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetRearFrontAeroStiffnessNPerM() float64 {
+	if x != nil {
+		return x.RearFrontAeroStiffnessNPerM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetRearRearAeroStiffnessNPerM() float64 {
+	if x != nil {
+		return x.RearRearAeroStiffnessNPerM
+	}
+	return 0
+}
+
+func (x *OperatingPoint) GetNewtonIterations() int32 {
+	if x != nil {
+		return x.NewtonIterations
+	}
+	return 0
+}
+
 // CornerMetrics are one corner's metrics on one road case.
 type CornerMetrics struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -410,7 +569,8 @@ type CornerMetrics struct {
 	Corner CornerPosition `protobuf:"varint,1,opt,name=corner,proto3,enum=dampfront.v1.CornerPosition" json:"corner,omitempty"`
 	// Dynamic tyre load standard deviation.
 	TyreLoadSdN float64 `protobuf:"fixed64,2,opt,name=tyre_load_sd_n,json=tyreLoadSdN,proto3" json:"tyre_load_sd_n,omitempty"`
-	// Static tyre load with unsprung weight and downforce.
+	// Static tyre load at the operating point: weight and the downforce at
+	// the ride heights at speed.
 	StaticTyreLoadN float64 `protobuf:"fixed64,3,opt,name=static_tyre_load_n,json=staticTyreLoadN,proto3" json:"static_tyre_load_n,omitempty"`
 	// tyre_load_sd_n / static_tyre_load_n (dimensionless).
 	RelativeTyreLoadSd float64 `protobuf:"fixed64,4,opt,name=relative_tyre_load_sd,json=relativeTyreLoadSd,proto3" json:"relative_tyre_load_sd,omitempty"`
@@ -418,7 +578,8 @@ type CornerMetrics struct {
 	LiftOffProbability float64 `protobuf:"fixed64,5,opt,name=lift_off_probability,json=liftOffProbability,proto3" json:"lift_off_probability,omitempty"`
 	// Suspension travel standard deviation at the wheel.
 	TravelSdM float64 `protobuf:"fixed64,6,opt,name=travel_sd_m,json=travelSdM,proto3" json:"travel_sd_m,omitempty"`
-	// Probability of reaching the bump stop; 0 when no gap is given.
+	// Probability of reaching the bump stop from the operating point at
+	// speed; 0 when no gap is given.
 	BumpStopProbability float64 `protobuf:"fixed64,7,opt,name=bump_stop_probability,json=bumpStopProbability,proto3" json:"bump_stop_probability,omitempty"`
 	// Damper velocity standard deviation at the damper.
 	DamperVelocitySdMPerS float64 `protobuf:"fixed64,8,opt,name=damper_velocity_sd_m_per_s,json=damperVelocitySdMPerS,proto3" json:"damper_velocity_sd_m_per_s,omitempty"`
@@ -427,14 +588,19 @@ type CornerMetrics struct {
 	// Mean damper force at the damper, positive pushing apart.
 	MeanDamperForceN float64 `protobuf:"fixed64,10,opt,name=mean_damper_force_n,json=meanDamperForceN,proto3" json:"mean_damper_force_n,omitempty"`
 	// Mean travel change, bump positive.
-	TravelShiftM  float64 `protobuf:"fixed64,11,opt,name=travel_shift_m,json=travelShiftM,proto3" json:"travel_shift_m,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	TravelShiftM float64 `protobuf:"fixed64,11,opt,name=travel_shift_m,json=travelShiftM,proto3" json:"travel_shift_m,omitempty"`
+	// Suspension compression at the operating point from rest, bump positive.
+	CompressionAtSpeedM float64 `protobuf:"fixed64,12,opt,name=compression_at_speed_m,json=compressionAtSpeedM,proto3" json:"compression_at_speed_m,omitempty"`
+	// Bump-stop gap left at the operating point (the gap at rest minus the
+	// compression); 0 when no gap is given.
+	BumpStopGapAtSpeedM float64 `protobuf:"fixed64,13,opt,name=bump_stop_gap_at_speed_m,json=bumpStopGapAtSpeedM,proto3" json:"bump_stop_gap_at_speed_m,omitempty"`
+	unknownFields       protoimpl.UnknownFields
+	sizeCache           protoimpl.SizeCache
 }
 
 func (x *CornerMetrics) Reset() {
 	*x = CornerMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	mi := &file_dampfront_v1_result_proto_msgTypes[3]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -446,7 +612,7 @@ func (x *CornerMetrics) String() string {
 func (*CornerMetrics) ProtoMessage() {}
 
 func (x *CornerMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	mi := &file_dampfront_v1_result_proto_msgTypes[3]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -459,7 +625,7 @@ func (x *CornerMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use CornerMetrics.ProtoReflect.Descriptor instead.
 func (*CornerMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{2}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{3}
 }
 
 func (x *CornerMetrics) GetCorner() CornerPosition {
@@ -539,6 +705,20 @@ func (x *CornerMetrics) GetTravelShiftM() float64 {
 	return 0
 }
 
+func (x *CornerMetrics) GetCompressionAtSpeedM() float64 {
+	if x != nil {
+		return x.CompressionAtSpeedM
+	}
+	return 0
+}
+
+func (x *CornerMetrics) GetBumpStopGapAtSpeedM() float64 {
+	if x != nil {
+		return x.BumpStopGapAtSpeedM
+	}
+	return 0
+}
+
 // AxleMetrics are one axle's platform metrics on one road case.
 type AxleMetrics struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -552,7 +732,7 @@ type AxleMetrics struct {
 
 func (x *AxleMetrics) Reset() {
 	*x = AxleMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	mi := &file_dampfront_v1_result_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -564,7 +744,7 @@ func (x *AxleMetrics) String() string {
 func (*AxleMetrics) ProtoMessage() {}
 
 func (x *AxleMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	mi := &file_dampfront_v1_result_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -577,7 +757,7 @@ func (x *AxleMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AxleMetrics.ProtoReflect.Descriptor instead.
 func (*AxleMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *AxleMetrics) GetRideHeightSdM() float64 {
@@ -623,7 +803,7 @@ type Mode struct {
 
 func (x *Mode) Reset() {
 	*x = Mode{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[4]
+	mi := &file_dampfront_v1_result_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -635,7 +815,7 @@ func (x *Mode) String() string {
 func (*Mode) ProtoMessage() {}
 
 func (x *Mode) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[4]
+	mi := &file_dampfront_v1_result_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -648,7 +828,7 @@ func (x *Mode) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Mode.ProtoReflect.Descriptor instead.
 func (*Mode) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *Mode) GetName() string {
@@ -732,7 +912,7 @@ type DamperCurve struct {
 
 func (x *DamperCurve) Reset() {
 	*x = DamperCurve{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[5]
+	mi := &file_dampfront_v1_result_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -744,7 +924,7 @@ func (x *DamperCurve) String() string {
 func (*DamperCurve) ProtoMessage() {}
 
 func (x *DamperCurve) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[5]
+	mi := &file_dampfront_v1_result_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -757,7 +937,7 @@ func (x *DamperCurve) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use DamperCurve.ProtoReflect.Descriptor instead.
 func (*DamperCurve) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *DamperCurve) GetCorner() CornerPosition {
@@ -861,7 +1041,7 @@ type Front struct {
 
 func (x *Front) Reset() {
 	*x = Front{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[6]
+	mi := &file_dampfront_v1_result_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -873,7 +1053,7 @@ func (x *Front) String() string {
 func (*Front) ProtoMessage() {}
 
 func (x *Front) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[6]
+	mi := &file_dampfront_v1_result_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -886,7 +1066,7 @@ func (x *Front) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Front.ProtoReflect.Descriptor instead.
 func (*Front) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *Front) GetJob() string {
@@ -958,7 +1138,7 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\fcase_metrics\x18\b \x03(\v2\x19.dampfront.v1.CaseMetricsR\vcaseMetrics\x12>\n" +
 	"\rdamper_curves\x18\t \x03(\v2\x19.dampfront.v1.DamperCurveR\fdamperCurves\x12\x1a\n" +
 	"\bwarnings\x18\n" +
-	" \x03(\tR\bwarnings\"\xc6\x03\n" +
+	" \x03(\tR\bwarnings\"\xff\x03\n" +
 	"\vCaseMetrics\x12\x1b\n" +
 	"\troad_case\x18\x01 \x01(\tR\broadCase\x125\n" +
 	"\acorners\x18\x02 \x03(\v2\x1b.dampfront.v1.CornerMetricsR\acorners\x12/\n" +
@@ -974,7 +1154,22 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"iterations\x12\x1a\n" +
 	"\bwarnings\x18\n" +
 	" \x03(\tR\bwarnings\x12(\n" +
-	"\x05modes\x18\v \x03(\v2\x12.dampfront.v1.ModeR\x05modes\"\x9f\x04\n" +
+	"\x05modes\x18\v \x03(\v2\x12.dampfront.v1.ModeR\x05modes\x127\n" +
+	"\bat_speed\x18\f \x01(\v2\x1c.dampfront.v1.OperatingPointR\aatSpeed\"\xa2\x05\n" +
+	"\x0eOperatingPoint\x12-\n" +
+	"\x13front_ride_height_m\x18\x01 \x01(\x01R\x10frontRideHeightM\x12+\n" +
+	"\x12rear_ride_height_m\x18\x02 \x01(\x01R\x0frearRideHeightM\x12:\n" +
+	"\x1afront_ride_height_change_m\x18\x03 \x01(\x01R\x16frontRideHeightChangeM\x128\n" +
+	"\x19rear_ride_height_change_m\x18\x04 \x01(\x01R\x15rearRideHeightChangeM\x12\x1b\n" +
+	"\tpitch_rad\x18\x05 \x01(\x01R\bpitchRad\x12*\n" +
+	"\x11front_downforce_n\x18\x06 \x01(\x01R\x0ffrontDownforceN\x12(\n" +
+	"\x10rear_downforce_n\x18\a \x01(\x01R\x0erearDownforceN\x12H\n" +
+	"\"front_front_aero_stiffness_n_per_m\x18\b \x01(\x01R\x1cfrontFrontAeroStiffnessNPerM\x12F\n" +
+	"!front_rear_aero_stiffness_n_per_m\x18\t \x01(\x01R\x1bfrontRearAeroStiffnessNPerM\x12F\n" +
+	"!rear_front_aero_stiffness_n_per_m\x18\n" +
+	" \x01(\x01R\x1brearFrontAeroStiffnessNPerM\x12D\n" +
+	" rear_rear_aero_stiffness_n_per_m\x18\v \x01(\x01R\x1arearRearAeroStiffnessNPerM\x12+\n" +
+	"\x11newton_iterations\x18\f \x01(\x05R\x10newtonIterations\"\x8b\x05\n" +
 	"\rCornerMetrics\x124\n" +
 	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12#\n" +
 	"\x0etyre_load_sd_n\x18\x02 \x01(\x01R\vtyreLoadSdN\x12+\n" +
@@ -987,7 +1182,9 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x1cequivalent_damping_n_s_per_m\x18\t \x01(\x01R\x17equivalentDampingNSPerM\x12-\n" +
 	"\x13mean_damper_force_n\x18\n" +
 	" \x01(\x01R\x10meanDamperForceN\x12$\n" +
-	"\x0etravel_shift_m\x18\v \x01(\x01R\ftravelShiftM\"e\n" +
+	"\x0etravel_shift_m\x18\v \x01(\x01R\ftravelShiftM\x123\n" +
+	"\x16compression_at_speed_m\x18\f \x01(\x01R\x13compressionAtSpeedM\x125\n" +
+	"\x18bump_stop_gap_at_speed_m\x18\r \x01(\x01R\x13bumpStopGapAtSpeedM\"e\n" +
 	"\vAxleMetrics\x12'\n" +
 	"\x10ride_height_sd_m\x18\x01 \x01(\x01R\rrideHeightSdM\x12-\n" +
 	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\"\xd0\x02\n" +
@@ -1050,39 +1247,41 @@ func file_dampfront_v1_result_proto_rawDescGZIP() []byte {
 }
 
 var file_dampfront_v1_result_proto_enumTypes = make([]protoimpl.EnumInfo, 2)
-var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 7)
+var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 8)
 var file_dampfront_v1_result_proto_goTypes = []any{
-	(SolutionView)(0),     // 0: dampfront.v1.SolutionView
-	(CornerPosition)(0),   // 1: dampfront.v1.CornerPosition
-	(*Solution)(nil),      // 2: dampfront.v1.Solution
-	(*CaseMetrics)(nil),   // 3: dampfront.v1.CaseMetrics
-	(*CornerMetrics)(nil), // 4: dampfront.v1.CornerMetrics
-	(*AxleMetrics)(nil),   // 5: dampfront.v1.AxleMetrics
-	(*Mode)(nil),          // 6: dampfront.v1.Mode
-	(*DamperCurve)(nil),   // 7: dampfront.v1.DamperCurve
-	(*Front)(nil),         // 8: dampfront.v1.Front
-	(*Setup)(nil),         // 9: dampfront.v1.Setup
-	(*Objective)(nil),     // 10: dampfront.v1.Objective
-	(*Constraint)(nil),    // 11: dampfront.v1.Constraint
+	(SolutionView)(0),      // 0: dampfront.v1.SolutionView
+	(CornerPosition)(0),    // 1: dampfront.v1.CornerPosition
+	(*Solution)(nil),       // 2: dampfront.v1.Solution
+	(*CaseMetrics)(nil),    // 3: dampfront.v1.CaseMetrics
+	(*OperatingPoint)(nil), // 4: dampfront.v1.OperatingPoint
+	(*CornerMetrics)(nil),  // 5: dampfront.v1.CornerMetrics
+	(*AxleMetrics)(nil),    // 6: dampfront.v1.AxleMetrics
+	(*Mode)(nil),           // 7: dampfront.v1.Mode
+	(*DamperCurve)(nil),    // 8: dampfront.v1.DamperCurve
+	(*Front)(nil),          // 9: dampfront.v1.Front
+	(*Setup)(nil),          // 10: dampfront.v1.Setup
+	(*Objective)(nil),      // 11: dampfront.v1.Objective
+	(*Constraint)(nil),     // 12: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
-	9,  // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
+	10, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
 	3,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
-	7,  // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
-	4,  // 3: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	5,  // 4: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	5,  // 5: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	6,  // 6: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	1,  // 7: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 8: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	10, // 9: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	11, // 10: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 11: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	12, // [12:12] is the sub-list for method output_type
-	12, // [12:12] is the sub-list for method input_type
-	12, // [12:12] is the sub-list for extension type_name
-	12, // [12:12] is the sub-list for extension extendee
-	0,  // [0:12] is the sub-list for field type_name
+	8,  // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
+	5,  // 3: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	6,  // 4: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	6,  // 5: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	7,  // 6: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	4,  // 7: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	1,  // 8: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 9: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
+	11, // 10: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	12, // 11: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	2,  // 12: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	13, // [13:13] is the sub-list for method output_type
+	13, // [13:13] is the sub-list for method input_type
+	13, // [13:13] is the sub-list for extension type_name
+	13, // [13:13] is the sub-list for extension extendee
+	0,  // [0:13] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }
@@ -1097,7 +1296,7 @@ func file_dampfront_v1_result_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_result_proto_rawDesc), len(file_dampfront_v1_result_proto_rawDesc)),
 			NumEnums:      2,
-			NumMessages:   7,
+			NumMessages:   8,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

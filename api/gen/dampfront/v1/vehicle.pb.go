@@ -51,10 +51,16 @@ type Vehicle struct {
 	FrontAntiRollBar *AntiRollBar `protobuf:"bytes,11,opt,name=front_anti_roll_bar,json=frontAntiRollBar,proto3" json:"front_anti_roll_bar,omitempty"`
 	// Rear anti-roll bar; absent means no bar.
 	RearAntiRollBar *AntiRollBar `protobuf:"bytes,12,opt,name=rear_anti_roll_bar,json=rearAntiRollBar,proto3" json:"rear_anti_roll_bar,omitempty"`
-	// Linear aerodynamics; absent means none.
-	Aero          *Aero `protobuf:"bytes,13,opt,name=aero,proto3" json:"aero,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	// Aerodynamics (a ride-height map); absent means none.
+	Aero *Aero `protobuf:"bytes,13,opt,name=aero,proto3" json:"aero,omitempty"`
+	// Front ride height of the car at rest at the axle's centre line (the
+	// body's reference, e.g. floor or plank, above the ground); needed by a
+	// ride-height aero map, 0 = not given. Plausible 0.02 to 0.2, at most 1.
+	FrontRestRideHeightM float64 `protobuf:"fixed64,14,opt,name=front_rest_ride_height_m,json=frontRestRideHeightM,proto3" json:"front_rest_ride_height_m,omitempty"`
+	// Rear ride height of the car at rest, as front_rest_ride_height_m.
+	RearRestRideHeightM float64 `protobuf:"fixed64,15,opt,name=rear_rest_ride_height_m,json=rearRestRideHeightM,proto3" json:"rear_rest_ride_height_m,omitempty"`
+	unknownFields       protoimpl.UnknownFields
+	sizeCache           protoimpl.SizeCache
 }
 
 func (x *Vehicle) Reset() {
@@ -178,6 +184,20 @@ func (x *Vehicle) GetAero() *Aero {
 	return nil
 }
 
+func (x *Vehicle) GetFrontRestRideHeightM() float64 {
+	if x != nil {
+		return x.FrontRestRideHeightM
+	}
+	return 0
+}
+
+func (x *Vehicle) GetRearRestRideHeightM() float64 {
+	if x != nil {
+		return x.RearRestRideHeightM
+	}
+	return 0
+}
+
 // Corner is one wheel station. Give either spring_rate_n_per_m with
 // spring_motion_ratio (wheel rate k MR^2) or wheel_rate_n_per_m directly.
 type Corner struct {
@@ -198,7 +218,8 @@ type Corner struct {
 	TyreDampingNSPerM float64 `protobuf:"fixed64,7,opt,name=tyre_damping_n_s_per_m,json=tyreDampingNSPerM,proto3" json:"tyre_damping_n_s_per_m,omitempty"`
 	// Length of the first-order road envelope of the contact patch; 0 turns it off.
 	TyreEnvelopeLengthM float64 `protobuf:"fixed64,8,opt,name=tyre_envelope_length_m,json=tyreEnvelopeLengthM,proto3" json:"tyre_envelope_length_m,omitempty"`
-	// Wheel travel in bump from static ride height to bump-stop contact; 0 = not given.
+	// Wheel travel in bump from the car at rest to bump-stop contact; 0 = not
+	// given. At speed the downforce uses part of it (see OperatingPoint).
 	BumpStopGapM float64 `protobuf:"fixed64,9,opt,name=bump_stop_gap_m,json=bumpStopGapM,proto3" json:"bump_stop_gap_m,omitempty"`
 	// Static sprung load on this corner; 0 derives it from the centre of
 	// gravity. Give all four or none.
@@ -372,22 +393,31 @@ func (x *AntiRollBar) GetMotionRatio() float64 {
 	return 0
 }
 
-// Aero is linear aerodynamics per axle at a reference speed, scaled with
-// the square of each road case's speed.
+// Aero is the downforce per axle as a function of the front and rear
+// ride height at a reference speed, scaled with the square of each road
+// case's speed. Give one map: the per-axle linear one (the four downforce
+// and stiffness fields), a table or a polynomial.
 type Aero struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
-	// Speed at which the figures hold; 0 means no aero.
+	// Speed at which the figures hold; 0 means no aero. At most 1000.
 	ReferenceSpeedMPerS float64 `protobuf:"fixed64,1,opt,name=reference_speed_m_per_s,json=referenceSpeedMPerS,proto3" json:"reference_speed_m_per_s,omitempty"`
-	// Front axle downforce at the reference speed.
+	// Linear map: front axle downforce at the reference speed with the car
+	// at its rest ride heights. Plausible 0 to 2e4, at most 1e6.
 	FrontDownforceN float64 `protobuf:"fixed64,2,opt,name=front_downforce_n,json=frontDownforceN,proto3" json:"front_downforce_n,omitempty"`
-	// Rear axle downforce at the reference speed.
+	// Linear map: rear axle downforce, as front_downforce_n.
 	RearDownforceN float64 `protobuf:"fixed64,3,opt,name=rear_downforce_n,json=rearDownforceN,proto3" json:"rear_downforce_n,omitempty"`
-	// Increase of the front downforce per metre of front ride-height drop.
+	// Linear map: increase of the front downforce per metre of front
+	// ride-height drop. Plausible 0 to 2e5, at most 1e9 in size.
 	FrontStiffnessNPerM float64 `protobuf:"fixed64,4,opt,name=front_stiffness_n_per_m,json=frontStiffnessNPerM,proto3" json:"front_stiffness_n_per_m,omitempty"`
-	// Increase of the rear downforce per metre of rear ride-height drop.
+	// Linear map: increase of the rear downforce per metre of rear
+	// ride-height drop, as front_stiffness_n_per_m.
 	RearStiffnessNPerM float64 `protobuf:"fixed64,5,opt,name=rear_stiffness_n_per_m,json=rearStiffnessNPerM,proto3" json:"rear_stiffness_n_per_m,omitempty"`
-	unknownFields      protoimpl.UnknownFields
-	sizeCache          protoimpl.SizeCache
+	// Downforce on a ride-height grid; needs the rest ride heights.
+	Table *AeroTable `protobuf:"bytes,6,opt,name=table,proto3" json:"table,omitempty"`
+	// Downforce as a polynomial in the ride heights; needs the rest ride heights.
+	Polynomial    *AeroPolynomial `protobuf:"bytes,7,opt,name=polynomial,proto3" json:"polynomial,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *Aero) Reset() {
@@ -455,11 +485,242 @@ func (x *Aero) GetRearStiffnessNPerM() float64 {
 	return 0
 }
 
+func (x *Aero) GetTable() *AeroTable {
+	if x != nil {
+		return x.Table
+	}
+	return nil
+}
+
+func (x *Aero) GetPolynomial() *AeroPolynomial {
+	if x != nil {
+		return x.Polynomial
+	}
+	return nil
+}
+
+// AeroTable is downforce per axle on a grid of front and rear ride heights
+// at the reference speed, interpolated by a tensor-product natural cubic
+// spline and continued linearly outside the grid (an operating point
+// outside it is refused).
+type AeroTable struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Front ride-height grid, increasing, at least 2 points, each in (0, 1].
+	FrontRideHeightM []float64 `protobuf:"fixed64,1,rep,packed,name=front_ride_height_m,json=frontRideHeightM,proto3" json:"front_ride_height_m,omitempty"`
+	// Rear ride-height grid, increasing, at least 2 points, each in (0, 1].
+	RearRideHeightM []float64 `protobuf:"fixed64,2,rep,packed,name=rear_ride_height_m,json=rearRideHeightM,proto3" json:"rear_ride_height_m,omitempty"`
+	// Front axle downforce at the grid points, front index major: value
+	// [i * len(rear_ride_height_m) + j] is at (front i, rear j). At most 1e6
+	// in size.
+	FrontDownforceN []float64 `protobuf:"fixed64,3,rep,packed,name=front_downforce_n,json=frontDownforceN,proto3" json:"front_downforce_n,omitempty"`
+	// Rear axle downforce at the grid points, as front_downforce_n.
+	RearDownforceN []float64 `protobuf:"fixed64,4,rep,packed,name=rear_downforce_n,json=rearDownforceN,proto3" json:"rear_downforce_n,omitempty"`
+	unknownFields  protoimpl.UnknownFields
+	sizeCache      protoimpl.SizeCache
+}
+
+func (x *AeroTable) Reset() {
+	*x = AeroTable{}
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *AeroTable) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*AeroTable) ProtoMessage() {}
+
+func (x *AeroTable) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use AeroTable.ProtoReflect.Descriptor instead.
+func (*AeroTable) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
+}
+
+func (x *AeroTable) GetFrontRideHeightM() []float64 {
+	if x != nil {
+		return x.FrontRideHeightM
+	}
+	return nil
+}
+
+func (x *AeroTable) GetRearRideHeightM() []float64 {
+	if x != nil {
+		return x.RearRideHeightM
+	}
+	return nil
+}
+
+func (x *AeroTable) GetFrontDownforceN() []float64 {
+	if x != nil {
+		return x.FrontDownforceN
+	}
+	return nil
+}
+
+func (x *AeroTable) GetRearDownforceN() []float64 {
+	if x != nil {
+		return x.RearDownforceN
+	}
+	return nil
+}
+
+// AeroPolynomial is downforce per axle at the reference speed as
+// sum over terms of c (h_f - front_origin_m)^p (h_r - rear_origin_m)^q.
+type AeroPolynomial struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Front ride height the powers are taken about.
+	FrontOriginM float64 `protobuf:"fixed64,1,opt,name=front_origin_m,json=frontOriginM,proto3" json:"front_origin_m,omitempty"`
+	// Rear ride height the powers are taken about.
+	RearOriginM float64 `protobuf:"fixed64,2,opt,name=rear_origin_m,json=rearOriginM,proto3" json:"rear_origin_m,omitempty"`
+	// The terms; at least one.
+	Terms         []*AeroTerm `protobuf:"bytes,3,rep,name=terms,proto3" json:"terms,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *AeroPolynomial) Reset() {
+	*x = AeroPolynomial{}
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *AeroPolynomial) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*AeroPolynomial) ProtoMessage() {}
+
+func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use AeroPolynomial.ProtoReflect.Descriptor instead.
+func (*AeroPolynomial) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
+}
+
+func (x *AeroPolynomial) GetFrontOriginM() float64 {
+	if x != nil {
+		return x.FrontOriginM
+	}
+	return 0
+}
+
+func (x *AeroPolynomial) GetRearOriginM() float64 {
+	if x != nil {
+		return x.RearOriginM
+	}
+	return 0
+}
+
+func (x *AeroPolynomial) GetTerms() []*AeroTerm {
+	if x != nil {
+		return x.Terms
+	}
+	return nil
+}
+
+// AeroTerm is one term c (h_f - o_f)^p (h_r - o_r)^q of an AeroPolynomial.
+// The coefficients are in N per metre to the power p + q.
+type AeroTerm struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// p, in [0, 6].
+	FrontPower uint32 `protobuf:"varint,1,opt,name=front_power,json=frontPower,proto3" json:"front_power,omitempty"`
+	// q, in [0, 6].
+	RearPower uint32 `protobuf:"varint,2,opt,name=rear_power,json=rearPower,proto3" json:"rear_power,omitempty"`
+	// c of the front axle's downforce (N/m^(p+q)).
+	FrontCoefficient float64 `protobuf:"fixed64,3,opt,name=front_coefficient,json=frontCoefficient,proto3" json:"front_coefficient,omitempty"`
+	// c of the rear axle's downforce (N/m^(p+q)).
+	RearCoefficient float64 `protobuf:"fixed64,4,opt,name=rear_coefficient,json=rearCoefficient,proto3" json:"rear_coefficient,omitempty"`
+	unknownFields   protoimpl.UnknownFields
+	sizeCache       protoimpl.SizeCache
+}
+
+func (x *AeroTerm) Reset() {
+	*x = AeroTerm{}
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *AeroTerm) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*AeroTerm) ProtoMessage() {}
+
+func (x *AeroTerm) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use AeroTerm.ProtoReflect.Descriptor instead.
+func (*AeroTerm) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
+}
+
+func (x *AeroTerm) GetFrontPower() uint32 {
+	if x != nil {
+		return x.FrontPower
+	}
+	return 0
+}
+
+func (x *AeroTerm) GetRearPower() uint32 {
+	if x != nil {
+		return x.RearPower
+	}
+	return 0
+}
+
+func (x *AeroTerm) GetFrontCoefficient() float64 {
+	if x != nil {
+		return x.FrontCoefficient
+	}
+	return 0
+}
+
+func (x *AeroTerm) GetRearCoefficient() float64 {
+	if x != nil {
+		return x.RearCoefficient
+	}
+	return 0
+}
+
 var File_dampfront_v1_vehicle_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\"\xc7\x04\n" +
+	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\"\xb5\x05\n" +
 	"\aVehicle\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12$\n" +
 	"\x0esprung_mass_kg\x18\x02 \x01(\x01R\fsprungMassKg\x12-\n" +
@@ -476,7 +737,9 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	" \x03(\v2\x14.dampfront.v1.CornerR\acorners\x12H\n" +
 	"\x13front_anti_roll_bar\x18\v \x01(\v2\x19.dampfront.v1.AntiRollBarR\x10frontAntiRollBar\x12F\n" +
 	"\x12rear_anti_roll_bar\x18\f \x01(\v2\x19.dampfront.v1.AntiRollBarR\x0frearAntiRollBar\x12&\n" +
-	"\x04aero\x18\r \x01(\v2\x12.dampfront.v1.AeroR\x04aero\"\xc9\x03\n" +
+	"\x04aero\x18\r \x01(\v2\x12.dampfront.v1.AeroR\x04aero\x126\n" +
+	"\x18front_rest_ride_height_m\x18\x0e \x01(\x01R\x14frontRestRideHeightM\x124\n" +
+	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\"\xc9\x03\n" +
 	"\x06Corner\x12,\n" +
 	"\x13spring_rate_n_per_m\x18\x01 \x01(\x01R\x0fspringRateNPerM\x12.\n" +
 	"\x13spring_motion_ratio\x18\x02 \x01(\x01R\x11springMotionRatio\x12*\n" +
@@ -492,13 +755,33 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\vAntiRollBar\x12*\n" +
 	"\x12wheel_rate_n_per_m\x18\x01 \x01(\x01R\x0ewheelRateNPerM\x12&\n" +
 	"\x10bar_rate_n_per_m\x18\x02 \x01(\x01R\fbarRateNPerM\x12!\n" +
-	"\fmotion_ratio\x18\x03 \x01(\x01R\vmotionRatio\"\xfc\x01\n" +
+	"\fmotion_ratio\x18\x03 \x01(\x01R\vmotionRatio\"\xe9\x02\n" +
 	"\x04Aero\x124\n" +
 	"\x17reference_speed_m_per_s\x18\x01 \x01(\x01R\x13referenceSpeedMPerS\x12*\n" +
 	"\x11front_downforce_n\x18\x02 \x01(\x01R\x0ffrontDownforceN\x12(\n" +
 	"\x10rear_downforce_n\x18\x03 \x01(\x01R\x0erearDownforceN\x124\n" +
 	"\x17front_stiffness_n_per_m\x18\x04 \x01(\x01R\x13frontStiffnessNPerM\x122\n" +
-	"\x16rear_stiffness_n_per_m\x18\x05 \x01(\x01R\x12rearStiffnessNPerMB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\x16rear_stiffness_n_per_m\x18\x05 \x01(\x01R\x12rearStiffnessNPerM\x12-\n" +
+	"\x05table\x18\x06 \x01(\v2\x17.dampfront.v1.AeroTableR\x05table\x12<\n" +
+	"\n" +
+	"polynomial\x18\a \x01(\v2\x1c.dampfront.v1.AeroPolynomialR\n" +
+	"polynomial\"\xbd\x01\n" +
+	"\tAeroTable\x12-\n" +
+	"\x13front_ride_height_m\x18\x01 \x03(\x01R\x10frontRideHeightM\x12+\n" +
+	"\x12rear_ride_height_m\x18\x02 \x03(\x01R\x0frearRideHeightM\x12*\n" +
+	"\x11front_downforce_n\x18\x03 \x03(\x01R\x0ffrontDownforceN\x12(\n" +
+	"\x10rear_downforce_n\x18\x04 \x03(\x01R\x0erearDownforceN\"\x88\x01\n" +
+	"\x0eAeroPolynomial\x12$\n" +
+	"\x0efront_origin_m\x18\x01 \x01(\x01R\ffrontOriginM\x12\"\n" +
+	"\rrear_origin_m\x18\x02 \x01(\x01R\vrearOriginM\x12,\n" +
+	"\x05terms\x18\x03 \x03(\v2\x16.dampfront.v1.AeroTermR\x05terms\"\xa2\x01\n" +
+	"\bAeroTerm\x12\x1f\n" +
+	"\vfront_power\x18\x01 \x01(\rR\n" +
+	"frontPower\x12\x1d\n" +
+	"\n" +
+	"rear_power\x18\x02 \x01(\rR\trearPower\x12+\n" +
+	"\x11front_coefficient\x18\x03 \x01(\x01R\x10frontCoefficient\x12)\n" +
+	"\x10rear_coefficient\x18\x04 \x01(\x01R\x0frearCoefficientB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_vehicle_proto_rawDescOnce sync.Once
@@ -512,23 +795,29 @@ func file_dampfront_v1_vehicle_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_vehicle_proto_rawDescData
 }
 
-var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 4)
+var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 7)
 var file_dampfront_v1_vehicle_proto_goTypes = []any{
-	(*Vehicle)(nil),     // 0: dampfront.v1.Vehicle
-	(*Corner)(nil),      // 1: dampfront.v1.Corner
-	(*AntiRollBar)(nil), // 2: dampfront.v1.AntiRollBar
-	(*Aero)(nil),        // 3: dampfront.v1.Aero
+	(*Vehicle)(nil),        // 0: dampfront.v1.Vehicle
+	(*Corner)(nil),         // 1: dampfront.v1.Corner
+	(*AntiRollBar)(nil),    // 2: dampfront.v1.AntiRollBar
+	(*Aero)(nil),           // 3: dampfront.v1.Aero
+	(*AeroTable)(nil),      // 4: dampfront.v1.AeroTable
+	(*AeroPolynomial)(nil), // 5: dampfront.v1.AeroPolynomial
+	(*AeroTerm)(nil),       // 6: dampfront.v1.AeroTerm
 }
 var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
 	1, // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
 	2, // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
 	2, // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
 	3, // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
-	4, // [4:4] is the sub-list for method output_type
-	4, // [4:4] is the sub-list for method input_type
-	4, // [4:4] is the sub-list for extension type_name
-	4, // [4:4] is the sub-list for extension extendee
-	0, // [0:4] is the sub-list for field type_name
+	4, // 4: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
+	5, // 5: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
+	6, // 6: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
+	7, // [7:7] is the sub-list for method output_type
+	7, // [7:7] is the sub-list for method input_type
+	7, // [7:7] is the sub-list for extension type_name
+	7, // [7:7] is the sub-list for extension extendee
+	0, // [0:7] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_vehicle_proto_init() }
@@ -542,7 +831,7 @@ func file_dampfront_v1_vehicle_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_vehicle_proto_rawDesc), len(file_dampfront_v1_vehicle_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   4,
+			NumMessages:   7,
 			NumExtensions: 0,
 			NumServices:   0,
 		},
