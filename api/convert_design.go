@@ -2,9 +2,9 @@ package api
 
 import (
 	"fmt"
-	"math"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs/study"
 	"dampfront/model"
 )
 
@@ -33,34 +33,32 @@ func axleFromProto(a *pb.AxleDamping) model.AxleDamping {
 	}
 }
 
-func setupToProto(s model.Setup) *pb.Setup {
-	ax := func(a model.AxleDamping) *pb.AxleDamping {
-		return &pb.AxleDamping{
-			BumpRatio: a.BumpRatio, ReboundRatio: a.ReboundRatio,
-			KneeBumpMPerS: a.KneeBump, KneeReboundMPerS: a.KneeRebound,
-			HighSpeedBumpFactor: a.HighSpeedBump, HighSpeedReboundFactor: a.HighSpeedRebound,
-		}
+func axleToProto(a model.AxleDamping) *pb.AxleDamping {
+	return &pb.AxleDamping{
+		BumpRatio: a.BumpRatio, ReboundRatio: a.ReboundRatio,
+		KneeBumpMPerS: a.KneeBump, KneeReboundMPerS: a.KneeRebound,
+		HighSpeedBumpFactor: a.HighSpeedBump, HighSpeedReboundFactor: a.HighSpeedRebound,
 	}
-	return &pb.Setup{Front: ax(s.Axles[model.Front]), Rear: ax(s.Axles[model.Rear])}
 }
 
-// designFromProto converts a design space whose defaults are filled in
-// (see withDefaults); path is "spec.design_space".
-func designFromProto(d *pb.DesignSpace, path string, p *problems) model.DesignSpace {
+func setupToProto(s model.Setup) *pb.Setup {
+	return &pb.Setup{Front: axleToProto(s.Axles[model.Front]), Rear: axleToProto(s.Axles[model.Rear])}
+}
+
+// designFromProto converts a design space; a nil range or base axle
+// stays nil, for the study's defaults.
+func designFromProto(d *pb.DesignSpace) study.Design {
 	r := d.GetRatios()
-	out := model.DesignSpace{
-		Ratios:    [4]model.Range{rangeFromProto(r.GetFrontBump()), rangeFromProto(r.GetFrontRebound()), rangeFromProto(r.GetRearBump()), rangeFromProto(r.GetRearRebound())},
+	out := study.Design{
+		Ratios:    [4]*model.Range{rangeOrNil(r.GetFrontBump()), rangeOrNil(r.GetFrontRebound()), rangeOrNil(r.GetRearBump()), rangeOrNil(r.GetRearRebound())},
 		Symmetric: d.GetSymmetric(),
 		Knee:      [2]*model.Range{rangeOrNil(d.GetFrontKneeMPerS()), rangeOrNil(d.GetRearKneeMPerS())},
 		HighSpeed: [2]*model.Range{rangeOrNil(d.GetFrontHighSpeedFactor()), rangeOrNil(d.GetRearHighSpeedFactor())},
 	}
-	if b := d.GetBase(); b != nil {
-		// The base's ratios are genes and never used; a missing axle
-		// means no knee and a linear damper there.
-		for ax, a := range [2]*pb.AxleDamping{b.GetFront(), b.GetRear()} {
-			if a != nil {
-				out.Base.Axles[ax] = axleFromProto(a)
-			}
+	for ax, a := range [2]*pb.AxleDamping{d.GetBase().GetFront(), d.GetBase().GetRear()} {
+		if a != nil {
+			b := axleFromProto(a)
+			out.Base[ax] = &b
 		}
 	}
 	return out
@@ -102,25 +100,16 @@ var (
 )
 
 // objectivesFromProto converts the objectives under path
-// ("spec.objectives"). The count, the kinds and repeats are checked here
-// so that they are reported together with every other problem of a spec;
-// model.NewProblem checks the same again.
+// ("spec.objectives"), recording enum values out of range; the count,
+// repeats and target shifts are the study's to check.
 func objectivesFromProto(objs []*pb.Objective, path string, p *problems) []model.Objective {
-	if len(objs) < 1 || len(objs) > 3 {
-		p.add(path, "needs 1 to 3 objectives, got %d", len(objs))
-	}
 	out := make([]model.Objective, len(objs))
-	seen := map[pb.ObjectiveKind]bool{}
 	for i, o := range objs {
 		f := fmt.Sprintf("%s[%d]", path, i)
 		kind, ok := objectiveKinds[o.GetKind()]
-		switch {
-		case !ok:
+		if !ok {
 			p.add(f+".kind", "must be one of the OBJECTIVE_KIND_ values other than UNSPECIFIED, got %v", o.GetKind())
-		case seen[o.GetKind()]:
-			p.add(f+".kind", "objective %v is given twice", o.GetKind())
 		}
-		seen[o.GetKind()] = true
 		agg, ok := aggregations[o.GetAggregation()]
 		if !ok {
 			p.add(f+".aggregation", "unknown aggregation %d", int32(o.GetAggregation()))
@@ -145,25 +134,21 @@ func objectiveToProto(o model.Objective) *pb.Objective {
 }
 
 // constraintsFromProto converts the constraints under path
-// ("spec.constraints"); as with objectives, model.NewProblem checks the
-// limits again.
+// ("spec.constraints"), recording kinds out of range; the limits are the
+// study's to check.
 func constraintsFromProto(cons []*pb.Constraint, path string, p *problems) []model.Constraint {
 	out := make([]model.Constraint, len(cons))
 	for i, c := range cons {
-		f := fmt.Sprintf("%s[%d]", path, i)
 		kind, ok := constraintKinds[c.GetKind()]
 		if !ok {
-			p.add(f+".kind", "must be one of the CONSTRAINT_KIND_ values other than UNSPECIFIED, got %v", c.GetKind())
-		}
-		if l := c.GetLimit(); !(l > 0) || math.IsInf(l, 1) {
-			p.add(f+".limit", "must be a finite number > 0, got %g", l)
+			p.add(fmt.Sprintf("%s[%d].kind", path, i), "must be one of the CONSTRAINT_KIND_ values other than UNSPECIFIED, got %v", c.GetKind())
 		}
 		out[i] = model.Constraint{Kind: kind, Limit: c.GetLimit(), Lower: c.GetLower(), Mode: int(c.GetMode()) - 1}
 		switch {
 		case kind == model.ConstraintModalRatio && c.GetMode() == pb.ModeName_MODE_NAME_UNSPECIFIED:
-			p.add(f+".mode", "must name the mode of a modal-ratio band (MODE_NAME_HEAVE, ...)")
+			p.add(fmt.Sprintf("%s[%d].mode", path, i), "must name the mode of a modal-ratio band (MODE_NAME_HEAVE, ...)")
 		case kind != model.ConstraintModalRatio && c.GetMode() != pb.ModeName_MODE_NAME_UNSPECIFIED:
-			p.add(f+".mode", "is for CONSTRAINT_KIND_MODAL_RATIO only, got %v on %v", c.GetMode(), c.GetKind())
+			p.add(fmt.Sprintf("%s[%d].mode", path, i), "is for CONSTRAINT_KIND_MODAL_RATIO only, got %v on %v", c.GetMode(), c.GetKind())
 		}
 	}
 	return out

@@ -71,7 +71,7 @@ func jobToProto(j *jobs.Job, full bool) (*pb.Job, error) {
 		DisplayName:     spec.GetDisplayName(),
 		State:           jobStates[j.State],
 		Labels:          j.Labels,
-		Seed:            uint64(j.Seed),
+		Seed:            spec.GetSearch().GetSeed(), // the one seed of a job, in its stored spec
 		CreateTime:      timestamp(j.CreatedAt),
 		StartTime:       timestamp(j.StartedAt),
 		FinishTime:      timestamp(j.FinishedAt),

@@ -1,10 +1,6 @@
 package api
 
-import (
-	"regexp"
-	"strings"
-	"unicode"
-)
+import "regexp"
 
 // The model names the fields of its validation errors in the API's
 // lower_snake_case, but its structs are not shaped quite like the
@@ -56,35 +52,4 @@ func protoPath(modelPath string) string {
 		p = r.re.ReplaceAllString(p, r.repl)
 	}
 	return p
-}
-
-// optimizerPath translates an optimizer *FieldError path, which names Go
-// fields ("Settings.PopulationSize", "Settings.ReferencePoint[1]",
-// "Problem.Bounds[2]"), to the JobSpec's: search settings live in
-// "search", the gene bounds come from "design_space".
-func optimizerPath(p string) string {
-	switch {
-	case strings.HasPrefix(p, "Settings."):
-		return "search." + snake(strings.TrimPrefix(p, "Settings."))
-	case strings.HasPrefix(p, "Problem"):
-		return "design_space"
-	}
-	return snake(p)
-}
-
-// snake turns Go's CamelCase names into lower_snake_case, leaving index
-// suffixes alone: "ReferencePoint[1]" -> "reference_point[1]".
-func snake(s string) string {
-	var b strings.Builder
-	for i, r := range s {
-		if unicode.IsUpper(r) {
-			if i > 0 && s[i-1] != '.' && s[i-1] != '[' {
-				b.WriteByte('_')
-			}
-			b.WriteRune(unicode.ToLower(r))
-			continue
-		}
-		b.WriteRune(r)
-	}
-	return b.String()
 }

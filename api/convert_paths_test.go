@@ -45,17 +45,3 @@ func TestProtoPath(t *testing.T) {
 		}
 	}
 }
-
-func TestOptimizerPath(t *testing.T) {
-	t.Parallel()
-	for _, c := range []struct{ in, want string }{
-		{"Settings.PopulationSize", "search.population_size"},
-		{"Settings.ReferencePoint[1]", "search.reference_point[1]"},
-		{"Settings.MutationEta", "search.mutation_eta"},
-		{"Problem.Bounds[2]", "design_space"},
-	} {
-		if got := optimizerPath(c.in); got != c.want {
-			t.Errorf("optimizerPath(%q) = %q, want %q", c.in, got, c.want)
-		}
-	}
-}

@@ -2,6 +2,7 @@ package api
 
 import (
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs/study"
 	"dampfront/model"
 )
 
@@ -13,9 +14,23 @@ var cornerPositions = [4]pb.CornerPosition{
 	model.RR: pb.CornerPosition_CORNER_POSITION_REAR_RIGHT,
 }
 
+// solutionToProto converts a solution's detail.
+func solutionToProto(s *study.Solution) *pb.Solution {
+	out := &pb.Solution{Genes: s.Genes, Setup: setupToProto(s.Setup), Objectives: s.Objectives, Violations: s.Violations,
+		Feasible: s.Feasible, InfeasibleReason: s.InfeasibleReason, Warnings: s.Warnings}
+	for i := range s.Cases {
+		out.CaseMetrics = append(out.CaseMetrics, caseMetricsToProto(&s.Cases[i]))
+	}
+	if s.Curves != nil {
+		out.DamperCurves = damperCurvesToProto(s.Curves)
+	}
+	return out
+}
+
 // caseMetricsToProto converts one road case's metrics, with the modes at
-// its speed and its warnings above the evaluator's threshold.
-func caseMetricsToProto(m *model.CaseMetrics, modes []model.Mode, threshold float64) *pb.CaseMetrics {
+// its speed and its warnings.
+func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
+	m := &c.Metrics
 	out := &pb.CaseMetrics{
 		RoadCase:           m.Case,
 		Front:              &pb.AxleMetrics{RideHeightSdM: m.RideHeightSD[model.Front], RideHeightShiftM: m.RideHeightShift[model.Front]},
@@ -25,8 +40,8 @@ func caseMetricsToProto(m *model.CaseMetrics, modes []model.Mode, threshold floa
 		HeaveAccelSdMPerS2: m.HeaveAccelSD,
 		PitchShiftRad:      m.PitchShift,
 		Iterations:         int32(m.Iterations),
-		Warnings:           m.WarningStrings(threshold),
-		Modes:              modesToProto(modes),
+		Warnings:           c.Warnings,
+		Modes:              modesToProto(c.Modes),
 		AtSpeed:            operatingPointToProto(&m.AtSpeed),
 	}
 	for i := 0; i < 4; i++ {

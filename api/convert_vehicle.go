@@ -138,19 +138,10 @@ func roadCasesFromProto(cases []*pb.RoadCase, path string, p *problems) []model.
 	return out
 }
 
-// gridFromProto converts a grid; zero fields take model.DefaultGrid's.
+// gridFromProto converts a grid; zero fields are left for the study's
+// defaults.
 func gridFromProto(g *pb.Grid) model.Grid {
-	out := model.Grid{MinHz: g.GetMinHz(), MaxHz: g.GetMaxHz(), Points: int(g.GetPoints())}
-	if out.MinHz == 0 {
-		out.MinHz = model.DefaultGrid.MinHz
-	}
-	if out.MaxHz == 0 {
-		out.MaxHz = model.DefaultGrid.MaxHz
-	}
-	if out.Points == 0 {
-		out.Points = model.DefaultGrid.Points
-	}
-	return out
+	return model.Grid{MinHz: g.GetMinHz(), MaxHz: g.GetMaxHz(), Points: int(g.GetPoints())}
 }
 
 func cloneOrNil(x []float64) []float64 {

@@ -1,22 +1,25 @@
 // Package api is the gRPC face of dampfront: the protobuf definitions of
 // package dampfront.v1 (proto/, generated Go code in gen/dampfront/v1),
-// the conversion between those messages and the model's Go types, the
-// study adapter the job engine runs, and the DampfrontService handlers.
+// the conversion between those messages and the Go types of the study
+// (dampfront/jobs/study) and the model, the encoding of what the job
+// engine stores, and the DampfrontService handlers.
 //
 // # Layout
 //
 //	proto/dampfront/v1/*.proto   the API (buf lint clean, STANDARD rules)
 //	gen/dampfront/v1/            generated code, committed; ./generate.sh
-//	convert*.go                  protobuf <-> model, field paths of errors
-//	study*.go                    JobSpec -> model.Problem + optimizer study
+//	convert*.go                  protobuf <-> study and model, field paths of errors
+//	codec.go                     the stored spec and solution bytes; NewOpener
+//	spec_plan.go                 a request's spec checked, limited, compiled
 //	server*.go                   the service over a jobs engine
 //
 // # Wiring
 //
-// A serve command opens the job engine with an Opener (which builds the
-// studies from stored specs), starts it, and serves a Server over it:
+// A serve command opens the job engine with the study package's opener
+// over the stored encoding (NewOpener, which builds the runs from stored
+// specs), starts it, and serves a Server over it:
 //
-//	engine, _ := jobs.Open(ctx, cfg, &api.Opener{})
+//	engine, _ := jobs.Open(ctx, cfg, api.NewOpener(0))
 //	engine.Start(ctx)
 //	srv, _ := api.NewServer(engine, api.Options{})
 //	srv.Serve(ctx, lis) // until ctx ends; then GracefulStop, Stop after Options.StopTimeout
@@ -39,7 +42,9 @@
 // BadRequest holding one field violation per bad field; its path is the
 // field's path in the request, such as
 // "spec.vehicle.corners[2].tyre_rate_n_per_m", whichever layer (this
-// package, the model, the optimiser or the job engine) found the problem.
+// package, the study, the model, the optimiser or the job engine) found
+// the problem. Limits are ResourceExhausted, checked before the work they
+// bound.
 package api
 
 //go:generate ./generate.sh

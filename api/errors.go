@@ -15,7 +15,6 @@ import (
 
 	"dampfront/jobs"
 	"dampfront/model"
-	"dampfront/optimizer"
 )
 
 // ErrorDomain is the ErrorInfo domain of every error the service returns
@@ -33,6 +32,7 @@ const (
 	ReasonJobTooLarge      = "JOB_TOO_LARGE"        // population × islands × generations × cases over the limit
 	ReasonTooManySetups    = "TOO_MANY_SETUPS"      // setups × cases of one synchronous call over the limit
 	ReasonGridTooFine      = "GRID_TOO_FINE"        // a spec's frequency grid over the limit
+	ReasonTooManyRoadCases = "TOO_MANY_ROAD_CASES"  // a spec's road cases over the limit
 	ReasonServerBusy       = "SERVER_BUSY"          // too many synchronous evaluations at once
 	ReasonShuttingDown     = "SHUTTING_DOWN"        // the server is stopping
 	ReasonInternal         = "INTERNAL"             // a bug or a storage failure
@@ -108,27 +108,41 @@ func joinPath(prefix, path string) string {
 	return prefix + path
 }
 
+// String lists the problems: "field: reason; field: reason".
+func (p problems) String() string {
+	parts := make([]string, len(p))
+	for i, q := range p {
+		parts[i] = q.Field + ": " + q.Reason
+	}
+	return strings.Join(parts, "; ")
+}
+
+// validationError is the problems as a *model.ValidationError, for
+// callers in the same process that want no status.
+func (p problems) validationError() error {
+	if len(p) == 0 {
+		return nil
+	}
+	ve := &model.ValidationError{}
+	for _, q := range p {
+		ve.Problems = append(ve.Problems, model.FieldError{Field: q.Field, Reason: q.Reason})
+	}
+	return ve
+}
+
 // invalidArgument is the InvalidArgument status of AIP-193: the message
 // lists the problems so that a command-line user sees them, and the
 // details are an ErrorInfo and a BadRequest with one violation per field.
 func invalidArgument(p problems) error {
-	var b strings.Builder
-	if len(p) == 1 {
-		b.WriteString("invalid request: ")
-	} else {
-		fmt.Fprintf(&b, "invalid request, %d problems: ", len(p))
+	msg := "invalid request: "
+	if len(p) > 1 {
+		msg = fmt.Sprintf("invalid request, %d problems: ", len(p))
 	}
 	br := &errdetails.BadRequest{}
-	for i, q := range p {
-		if i > 0 {
-			b.WriteString("; ")
-		}
-		b.WriteString(q.Field)
-		b.WriteString(": ")
-		b.WriteString(q.Reason)
+	for _, q := range p {
 		br.FieldViolations = append(br.FieldViolations, &errdetails.BadRequest_FieldViolation{Field: q.Field, Description: q.Reason})
 	}
-	return withDetails(codes.InvalidArgument, b.String(), ReasonInvalidArgument, nil, br)
+	return withDetails(codes.InvalidArgument, msg+p.String(), ReasonInvalidArgument, nil, br)
 }
 
 // statusError returns a status with the given code and message and an
@@ -179,7 +193,6 @@ func toStatus(err error, paths pathMapper) error {
 		nf *jobs.NotFoundError
 		pe *jobs.PreconditionError
 		ve *model.ValidationError
-		oe *optimizer.FieldError
 	)
 	switch {
 	case errors.As(err, &ia):
@@ -194,8 +207,6 @@ func toStatus(err error, paths pathMapper) error {
 			p.add(paths(protoPath(q.Field)), "%s", q.Reason)
 		}
 		return invalidArgument(p)
-	case errors.As(err, &oe):
-		return invalidArgument(problems{{Field: paths(optimizerPath(oe.Field)), Reason: oe.Msg}})
 	case errors.As(err, &nf):
 		return statusError(codes.NotFound,
 			fmt.Sprintf("%s %q not found; list the jobs to see their IDs", nf.Resource, nf.ID),
@@ -224,26 +235,4 @@ func toStatus(err error, paths pathMapper) error {
 			ReasonDatabaseDown, nil)
 	}
 	return statusError(codes.Internal, "internal error: "+err.Error(), ReasonInternal, nil)
-}
-
-// statusToJobsError turns an InvalidArgument status back into the job
-// engine's *InvalidArgumentError, one field error per BadRequest
-// violation; other errors pass through.
-func statusToJobsError(err error) error {
-	st, ok := status.FromError(err)
-	if !ok || st.Code() != codes.InvalidArgument {
-		return err
-	}
-	out := &jobs.InvalidArgumentError{}
-	for _, d := range st.Details() {
-		if br, ok := d.(*errdetails.BadRequest); ok {
-			for _, v := range br.GetFieldViolations() {
-				out.Violations = append(out.Violations, jobs.FieldError{Field: v.GetField(), Reason: v.GetDescription()})
-			}
-		}
-	}
-	if len(out.Violations) == 0 {
-		out.Violations = []jobs.FieldError{{Field: "spec", Reason: st.Message()}}
-	}
-	return out
 }

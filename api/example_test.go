@@ -20,7 +20,7 @@ func Example_serve() {
 	ctx, stop := signal.NotifyContext(context.Background(), syscall.SIGTERM, syscall.SIGINT)
 	defer stop()
 
-	engine, err := jobs.Open(ctx, jobs.Config{DatabaseURL: "dampfront.db", Workers: 1}, &api.Opener{})
+	engine, err := jobs.Open(ctx, jobs.Config{DatabaseURL: "dampfront.db", Workers: 1}, api.NewOpener(0))
 	if err != nil {
 		log.Fatal(err)
 	}

@@ -1,6 +1,9 @@
 package api
 
 import (
+	"encoding/binary"
+	"math"
+
 	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
@@ -66,4 +69,14 @@ func testSetup() *pb.Setup {
 			HighSpeedBumpFactor: 0.5, HighSpeedReboundFactor: 0.5}
 	}
 	return &pb.Setup{Front: ax(0.5, 0.8), Rear: ax(0.55, 0.9)}
+}
+
+// geneKey identifies a vector of floats by its bits, for comparisons bit
+// for bit.
+func geneKey(x []float64) string {
+	b := make([]byte, 8*len(x))
+	for i, v := range x {
+		binary.LittleEndian.PutUint64(b[8*i:], math.Float64bits(v))
+	}
+	return string(b)
 }

@@ -37,7 +37,7 @@ func TestGetFrontPagesBySize(t *testing.T) {
 		t.Fatal(err)
 	}
 	quiet := slog.New(slog.DiscardHandler)
-	e, err := jobs.Open(ctx, jobs.Config{DatabaseURL: filepath.Join(t.TempDir(), "jobs.db"), Logger: quiet}, &api.Opener{})
+	e, err := jobs.Open(ctx, jobs.Config{DatabaseURL: filepath.Join(t.TempDir(), "jobs.db"), Logger: quiet}, api.NewOpener(0))
 	if err != nil {
 		t.Fatal(err)
 	}

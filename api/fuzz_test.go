@@ -2,7 +2,7 @@ package api
 
 import (
 	"bytes"
-	"errors"
+	"context"
 	"os"
 	"path/filepath"
 	"strings"
@@ -16,6 +16,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
+	"dampfront/jobs/study"
 )
 
 // The fuzz targets of spec input. Their property, from issue 6 and
@@ -23,7 +24,7 @@ import (
 // with a field violation naming a field under "spec" and saying what is
 // wrong, or a decoding error with a message — or a valid job, and a
 // valid job re-validates where the engine checks it again (the stored,
-// defaulted bytes through Opener.ValidateSpec). Never a panic.
+// defaulted bytes through validateSpecBytes). Never a panic.
 //
 //	go test -run '^$' -fuzz '^FuzzCompileSpecText$' -fuzztime 60s ./api/
 //	go test -run '^$' -fuzz '^FuzzValidateSpecBytes$' -fuzztime 60s ./api/
@@ -111,20 +112,20 @@ func FuzzValidateSpecBytes(f *testing.F) {
 		if len(b) > fuzzMaxSpecBytes {
 			t.Skip("over the spec size limit")
 		}
-		o := &Opener{Workers: 1}
-		err := o.ValidateSpec(b)
+		o := NewOpener(1)
+		err := validateSpecBytes(b)
 		if err != nil {
-			checkJobsInvalidArgument(t, err)
+			checkSpecInvalidArgument(t, err)
 			return
 		}
 		spec := new(pb.JobSpec)
 		if err := proto.Unmarshal(b, spec); err != nil {
-			t.Fatalf("ValidateSpec accepted bytes that do not decode: %v", err)
+			t.Fatalf("validateSpecBytes accepted bytes that do not decode: %v", err)
 		}
 		checkCompiledSpec(t, spec)
-		// The engine opens what it accepted.
+		// The engine opens what the server accepts.
 		if _, err := o.Open(b, nil); err != nil {
-			t.Fatalf("Open of a spec ValidateSpec accepted: %v", err)
+			t.Fatalf("Open of a spec validateSpecBytes accepted: %v", err)
 		}
 	})
 }
@@ -133,18 +134,18 @@ func FuzzValidateSpecBytes(f *testing.F) {
 // clear InvalidArgument or a valid plan that re-validates.
 func checkCompiledSpec(t *testing.T, spec *pb.JobSpec) {
 	t.Helper()
-	pl, err := compile(spec, "spec.")
+	pl, err := compileSpec(spec)
 	if err != nil {
 		checkSpecInvalidArgument(t, err)
-		if verr := (&Opener{}).ValidateSpec(mustMarshal(t, spec)); verr == nil {
-			t.Fatalf("compile refused the spec (%v), the engine's ValidateSpec accepts it", err)
+		if verr := validateSpecBytes(mustMarshal(t, spec)); verr == nil {
+			t.Fatalf("compile refused the spec (%v), validateSpecBytes accepts it", err)
 		}
 		return
 	}
-	if pl.work() <= 0 {
-		t.Fatalf("a valid plan of work %d", pl.work())
+	if w := pl.size.Work; w <= 0 {
+		t.Fatalf("a valid plan of work %d", w)
 	}
-	stored, err := MarshalSpec(pl.spec)
+	stored, err := MarshalSpec(pl.msg)
 	if err != nil {
 		t.Fatalf("MarshalSpec of a valid spec: %v", err)
 	}
@@ -153,7 +154,7 @@ func checkCompiledSpec(t *testing.T, spec *pb.JobSpec) {
 	if direct, err := MarshalSpec(spec); err != nil || !bytes.Equal(direct, stored) {
 		t.Fatalf("MarshalSpec(spec) and MarshalSpec(withDefaults(spec)) differ (err %v)", err)
 	}
-	if err := (&Opener{}).ValidateSpec(stored); err != nil {
+	if err := validateSpecBytes(stored); err != nil {
 		t.Fatalf("a compiled spec does not re-validate from its stored bytes: %v", err)
 	}
 }
@@ -192,20 +193,37 @@ func checkSpecInvalidArgument(t *testing.T, err error) {
 	}
 }
 
-// checkJobsInvalidArgument is checkSpecInvalidArgument for the engine's
-// error type, which ValidateSpec returns.
-func checkJobsInvalidArgument(t *testing.T, err error) {
-	t.Helper()
-	var ia *jobs.InvalidArgumentError
-	if !errors.As(err, &ia) {
-		t.Fatalf("ValidateSpec error %v (%T) is not a *jobs.InvalidArgumentError", err, err)
+// compiledSpec is a spec compiled as the server does, with its size.
+type compiledSpec struct {
+	*specPlan
+	size study.Size
+}
+
+// compileSpec converts, checks and compiles spec as the server does;
+// problems are an InvalidArgument status.
+func compileSpec(spec *pb.JobSpec) (*compiledSpec, error) {
+	var p problems
+	c, err := checkSpec(spec, "spec.", &p)
+	if err != nil {
+		return nil, err
 	}
-	if len(ia.Violations) == 0 {
-		t.Fatalf("ValidateSpec error without violations: %v", err)
+	pl, err := compileChecked(context.Background(), c)
+	if err != nil {
+		return nil, err
 	}
-	for _, v := range ia.Violations {
-		checkViolation(t, v.Field, v.Reason)
+	return &compiledSpec{specPlan: pl, size: c.Size()}, nil
+}
+
+// validateSpecBytes does with spec bytes what the server does with a
+// stored spec before it runs: decode, check and compile. Problems are an
+// InvalidArgument status under "spec".
+func validateSpecBytes(b []byte) error {
+	spec, err := unmarshalSpec(b)
+	if err != nil {
+		return invalidArgument(problems{{Field: "spec", Reason: err.Error()}})
 	}
+	_, err = compileSpec(spec)
+	return err
 }
 
 func checkViolation(t *testing.T, field, reason string) {

@@ -16,7 +16,7 @@ import (
 // same setup on the demo car (testdata/demo-job.yaml): per corner the
 // low-speed slopes, the force at the knee (50 mm/s, a table point every
 // 25 mm/s) and the adjuster band's forces there. The solution comes from
-// the path every front point takes (plan.evaluate). Tolerance relative
+// the path every front point takes (study.Plan.Evaluate). Tolerance relative
 // 1e-12: the same products in another order.
 func TestEstimateByHandAgreesWithJobCurves(t *testing.T) {
 	t.Parallel()
@@ -28,12 +28,12 @@ func TestEstimateByHandAgreesWithJobCurves(t *testing.T) {
 	if err := DecodeText(b, spec); err != nil {
 		t.Fatal(err)
 	}
-	pl, err := compile(withDefaults(proto.Clone(spec).(*pb.JobSpec)), "spec.")
+	pl, err := compileSpec(proto.Clone(spec).(*pb.JobSpec))
 	if err != nil {
 		t.Fatal(err)
 	}
-	s := model.Setup{Axles: pl.study.Design().Decode([]float64{0.62, 0.91, 0.48, 0.77}).Axles}
-	sol := pl.evaluate(s)
+	s := model.Setup{Axles: pl.Problem().Design().Decode([]float64{0.62, 0.91, 0.48, 0.77}).Axles}
+	sol := solutionToProto(pl.Evaluate(s))
 	resp, err := EstimateByHand(&pb.EstimateByHandRequest{Vehicle: spec.GetVehicle(), Targets: sol.GetSetup(), Adjustment: spec.GetAdjustment()})
 	if err != nil {
 		t.Fatal(err)

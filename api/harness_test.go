@@ -76,12 +76,18 @@ func shortSlices(c *jobs.Config) {
 // change the configuration first.
 func startEngine(t *testing.T, mods ...func(*jobs.Config)) *jobs.Engine {
 	t.Helper()
+	return startEngineWith(t, NewOpener(1), mods...)
+}
+
+// startEngineWith is startEngine with the given opener.
+func startEngineWith(t *testing.T, opener jobs.RunOpener, mods ...func(*jobs.Config)) *jobs.Engine {
+	t.Helper()
 	ctx := context.Background()
 	cfg := engineConfig(t.TempDir())
 	for _, m := range mods {
 		m(&cfg)
 	}
-	e, err := jobs.Open(ctx, cfg, &Opener{Workers: 1})
+	e, err := jobs.Open(ctx, cfg, opener)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -302,7 +302,7 @@ func TestStoreCollector(t *testing.T) {
 func TestStoreCollectorOnStore(t *testing.T) {
 	t.Parallel()
 	ctx := testContext(t)
-	e, err := jobs.Open(ctx, engineConfig(t.TempDir()), &Opener{Workers: 1}) // never started: no slice runs
+	e, err := jobs.Open(ctx, engineConfig(t.TempDir()), NewOpener(1)) // never started: no slice runs
 	if err != nil {
 		t.Fatal(err)
 	}

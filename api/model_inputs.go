@@ -1,7 +1,10 @@
 package api
 
 import (
+	"context"
+
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs/study"
 	"dampfront/model"
 )
 
@@ -20,36 +23,40 @@ type ModelInputs struct {
 }
 
 // SpecToModel fills in the defaults of spec, checks all of it as
-// SubmitJob does (an InvalidArgument status whose BadRequest paths start
-// with "spec.") and returns it in the model's types.
+// SubmitJob does and returns it in the model's types, for a command that
+// runs the model in its own process. Problems are a *model.ValidationError
+// whose paths are the request's ("spec.vehicle.sprung_mass_kg"), not a
+// status: no server is involved.
 func SpecToModel(spec *pb.JobSpec) (*ModelInputs, error) {
-	pl, err := compile(spec, "spec.")
-	if err != nil {
+	var p problems
+	s := specFromProto(spec, "spec.", &p)
+	c, err := study.Check(s)
+	p.mergeModel(under("spec."), err)
+	if err := p.validationError(); err != nil {
 		return nil, err
 	}
-	in := &ModelInputs{
-		Vehicle:     *pl.eval.Vehicle(),
-		Options:     model.EvaluatorOptions{Grid: gridFromProto(pl.spec.GetGrid())},
-		Design:      *pl.study.Design(),
-		Objectives:  pl.study.Objectives(),
-		Constraints: pl.study.Constraints(),
-		Adjustment:  pl.adjustment,
-		Evaluator:   pl.eval,
+	pl, err := c.Compile(context.Background())
+	if err != nil {
+		p.mergeModel(under("spec."), err)
+		return nil, p.validationError()
 	}
-	for i := 0; i < pl.eval.Cases(); i++ {
-		in.RoadCases = append(in.RoadCases, *pl.eval.Case(i))
+	in := &ModelInputs{
+		Vehicle:     *pl.Evaluator().Vehicle(),
+		RoadCases:   pl.RoadCases(),
+		Options:     pl.EvaluatorOptions(),
+		Design:      *pl.Problem().Design(),
+		Objectives:  pl.Problem().Objectives(),
+		Constraints: pl.Problem().Constraints(),
+		Adjustment:  pl.Spec().Adjustment,
+		Evaluator:   pl.Evaluator(),
 	}
 	return in, nil
 }
 
-// SetupToModel converts and checks a setup; problems are an
-// InvalidArgument status whose paths start with prefix (e.g. "setup").
+// SetupToModel converts and checks a setup; problems are a
+// *model.ValidationError whose paths start with prefix (e.g. "setup").
 func SetupToModel(s *pb.Setup, prefix string) (model.Setup, error) {
 	var p problems
-	out := setupFromProto(s, prefix, &p)
-	if err := p.err(); err != nil {
-		return out, err
-	}
-	p.mergeModel(under(prefix+"."), out.Validate())
-	return out, p.err()
+	out := setupArgument(s, prefix, &p)
+	return out, p.validationError()
 }

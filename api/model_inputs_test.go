@@ -1,11 +1,13 @@
 package api
 
 import (
+	"errors"
 	"testing"
 
-	"google.golang.org/grpc/codes"
+	"google.golang.org/grpc/status"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs/study"
 	"dampfront/model"
 )
 
@@ -22,7 +24,7 @@ func TestSpecToModelMatchesTheServer(t *testing.T) {
 	if in.Vehicle.Corners[model.RL].TyreRate != 330e3 || len(in.RoadCases) != 2 || in.Options.Grid.Points != 121 {
 		t.Errorf("converted %+v", in)
 	}
-	setup := &pb.Setup{Front: defaultAxle(), Rear: defaultAxle()}
+	setup := &pb.Setup{Front: axleToProto(study.DefaultAxle()), Rear: axleToProto(study.DefaultAxle())}
 	setup.Front.BumpRatio, setup.Front.ReboundRatio = 0.5, 0.8
 	setup.Rear.BumpRatio, setup.Rear.ReboundRatio = 0.6, 0.9
 	s, err := SetupToModel(setup, "setup")
@@ -43,16 +45,37 @@ func TestSpecToModelMatchesTheServer(t *testing.T) {
 		t.Errorf("EvaluateSetups FL tyre load sd %v, in-process %v", got, r.Cases[1].TyreLoadSD[model.FL])
 	}
 
+	// A command in the user's process gets the problems with the
+	// request's paths, and no status: no server is involved.
 	spec.Vehicle.SprungMassKg = -1
 	_, err = SpecToModel(spec)
-	wantCode(t, "bad spec", err, codes.InvalidArgument, "INVALID_ARGUMENT")
-	if v := violations(t, "bad spec", err); len(v) != 1 || v[0] != "spec.vehicle.sprung_mass_kg" {
+	if _, ok := status.FromError(err); ok {
+		t.Errorf("SpecToModel of a bad spec gave a status: %v", err)
+	}
+	if v := modelViolations(t, "bad spec", err); len(v) != 1 || v[0] != "spec.vehicle.sprung_mass_kg" {
 		t.Errorf("violations %v", v)
 	}
 	_, err = SetupToModel(&pb.Setup{Front: setup.Front}, "setup")
-	if v := violations(t, "no rear", err); len(v) != 1 || v[0] != "setup.rear" {
+	if v := modelViolations(t, "no rear", err); len(v) != 1 || v[0] != "setup.rear" {
 		t.Errorf("violations %v", v)
 	}
+}
+
+// modelViolations returns the field paths of a *model.ValidationError.
+func modelViolations(t *testing.T, what string, err error) []string {
+	t.Helper()
+	var ve *model.ValidationError
+	if !errors.As(err, &ve) {
+		t.Fatalf("%s: error %v (%T) is not a *model.ValidationError", what, err, err)
+	}
+	var out []string
+	for _, q := range ve.Problems {
+		if q.Reason == "" {
+			t.Errorf("%s: problem at %s has no reason", what, q.Field)
+		}
+		out = append(out, q.Field)
+	}
+	return out
 }
 
 func setup2(t *testing.T) *testBundle { return setup(t, Options{}) }

@@ -15,7 +15,7 @@ import (
 // demoPlan compiles testdata/demo-job.yaml, keeping its first nCases
 // road cases and dropping its constraints (a dense grid sweep, the
 // engineer's alternative, knows no constraint handling either).
-func demoPlan(tb testing.TB, nCases int) *plan {
+func demoPlan(tb testing.TB, nCases int) *compiledSpec {
 	tb.Helper()
 	b, err := os.ReadFile("../testdata/demo-job.yaml")
 	if err != nil {
@@ -27,7 +27,7 @@ func demoPlan(tb testing.TB, nCases int) *plan {
 	}
 	spec.RoadCases = spec.RoadCases[:nCases]
 	spec.Constraints = nil
-	pl, err := compile(withDefaults(spec), "spec.")
+	pl, err := compileSpec(spec)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -44,7 +44,7 @@ func demoPlan(tb testing.TB, nCases int) *plan {
 //	go test -run xxx -bench SearchVsGrid -benchtime 1x ./api/
 func BenchmarkSearchVsGrid(b *testing.B) {
 	pl := demoPlan(b, 2)
-	prob := pl.problem()
+	prob := pl.SearchProblem()
 	bounds := prob.Bounds()
 	const levels = 14 // 14⁴ = 38416 evaluations
 	var mu sync.Mutex
@@ -100,7 +100,7 @@ func BenchmarkSearchVsGrid(b *testing.B) {
 		worst := math.Inf(1)
 		evals := 0
 		for seed := uint64(1); seed <= 5; seed++ {
-			s := pl.optimizerSettings(workers, nil)
+			s := pl.Settings(workers, nil)
 			s.PopulationSize, s.Generations, s.Seed = 32, 34, seed
 			s.ReferencePoint = ref
 			st, err := optimizer.New(prob, s)
@@ -131,9 +131,9 @@ func BenchmarkStudyEvaluations(b *testing.B) {
 		b.Run(map[int]string{1: "workers=1", 2: "workers=2"}[workers], func(b *testing.B) {
 			evals := 0
 			for n := 0; n < b.N; n++ {
-				s := pl.optimizerSettings(workers, nil)
+				s := pl.Settings(workers, nil)
 				s.PopulationSize, s.Generations, s.Seed = 32, 10, 1
-				st, err := optimizer.New(pl.problem(), s)
+				st, err := optimizer.New(pl.SearchProblem(), s)
 				if err != nil {
 					b.Fatal(err)
 				}

@@ -3,9 +3,8 @@ package api
 import (
 	"context"
 	"crypto/tls"
-	"dampfront/model"
+
 	"errors"
-	"fmt"
 	"log/slog"
 	"net"
 	"runtime"
@@ -50,6 +49,11 @@ type Options struct {
 	// spec (the cost of one evaluation grows with it); more is
 	// ResourceExhausted. Default 2001, eight times the model's default.
 	MaxGridPoints int
+	// MaxRoadCases limits the road cases of a submitted or evaluated
+	// spec; more is ResourceExhausted naming spec.road_cases, refused
+	// before the spec is checked or compiled (both grow with the cases).
+	// Default 64.
+	MaxRoadCases int
 	// MaxSyncWork limits setups × road cases of one EvaluateSetups call.
 	// Default 4096.
 	MaxSyncWork int
@@ -58,6 +62,13 @@ type Options struct {
 	// until its check ends, also when the call has ended before); one more
 	// is ResourceExhausted at once, not queued. Default GOMAXPROCS.
 	MaxConcurrentEvaluations int
+	// MaxConcurrentSubmits limits the SubmitJob calls that check and
+	// compile a spec at once (the compile grows with the road cases and
+	// the grid); the others wait for a slot of their own, under their
+	// call's deadline, and a call that ends while waiting compiles
+	// nothing. Submits never take the evaluations' slots. Default
+	// GOMAXPROCS.
+	MaxConcurrentSubmits int
 	// StopTimeout bounds the graceful part of Serve's shutdown; then open
 	// calls are cut. Default 10 s.
 	StopTimeout time.Duration
@@ -81,6 +92,7 @@ const (
 	DefaultMaxJobWork      = 50_000_000
 	DefaultMaxGridPoints   = 2001
 	DefaultMaxSyncWork     = 4096
+	DefaultMaxRoadCases    = 64
 	DefaultStopTimeout     = 10 * time.Second
 )
 
@@ -94,11 +106,17 @@ func (o Options) withDefaults() Options {
 	if o.MaxGridPoints <= 0 {
 		o.MaxGridPoints = DefaultMaxGridPoints
 	}
+	if o.MaxRoadCases <= 0 {
+		o.MaxRoadCases = DefaultMaxRoadCases
+	}
 	if o.MaxSyncWork <= 0 {
 		o.MaxSyncWork = DefaultMaxSyncWork
 	}
 	if o.MaxConcurrentEvaluations <= 0 {
 		o.MaxConcurrentEvaluations = runtime.GOMAXPROCS(0)
+	}
+	if o.MaxConcurrentSubmits <= 0 {
+		o.MaxConcurrentSubmits = runtime.GOMAXPROCS(0)
 	}
 	if o.StopTimeout <= 0 {
 		o.StopTimeout = DefaultStopTimeout
@@ -118,6 +136,12 @@ type Server struct {
 	opt    Options
 	health *health.Server
 	slots  chan struct{} // one per synchronous evaluation running
+	// submitSlots has one per SubmitJob checking and compiling a spec.
+	submitSlots chan struct{}
+
+	// onCompile, when set (by tests), is called before each compile of
+	// a spec.
+	onCompile func()
 
 	stopping chan struct{} // closed when shutdown begins
 	stopOnce sync.Once
@@ -130,11 +154,13 @@ func NewServer(engine Engine, opt Options) (*Server, error) {
 	}
 	opt = opt.withDefaults()
 	return &Server{
-		engine:   engine,
-		opt:      opt,
-		health:   health.NewServer(),
-		slots:    make(chan struct{}, opt.MaxConcurrentEvaluations),
-		stopping: make(chan struct{}),
+		engine: engine,
+		opt:    opt,
+		health: health.NewServer(),
+		slots:  make(chan struct{}, opt.MaxConcurrentEvaluations),
+
+		submitSlots: make(chan struct{}, opt.MaxConcurrentSubmits),
+		stopping:    make(chan struct{}),
 	}, nil
 }
 
@@ -238,13 +264,13 @@ func (s *Server) acquire() (release func(), err error) {
 	}
 }
 
-// checkGrid refuses a spec whose frequency grid is over the limit.
-func (s *Server) checkGrid(pl *plan) error {
-	n := len(pl.eval.Frequencies())
-	if n <= s.opt.MaxGridPoints {
-		return nil
+// acquireSubmit waits for a submit slot, or returns the status of ctx's
+// error when ctx ends first; release gives the slot back.
+func (s *Server) acquireSubmit(ctx context.Context) (release func(), err error) {
+	select {
+	case s.submitSlots <- struct{}{}:
+		return func() { <-s.submitSlots }, nil
+	case <-ctx.Done():
+		return nil, toStatus(ctx.Err(), nil)
 	}
-	return resourceExhausted(ReasonGridTooFine,
-		fmt.Sprintf("spec.grid.points = %d is over the server's %d; the default grid (%d points, tails added analytically) is accurate to 0.5 %%", n, s.opt.MaxGridPoints, model.DefaultGrid.Points),
-		map[string]string{"points": strconv.Itoa(n), "limit": strconv.Itoa(s.opt.MaxGridPoints)}, 0)
 }

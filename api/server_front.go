@@ -11,6 +11,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
+	"dampfront/jobs/study"
 	"dampfront/model"
 )
 
@@ -92,12 +93,8 @@ func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.Get
 // frontHeader is a Front without solutions: the job, gene names,
 // objectives and constraints of a stored spec.
 func frontHeader(id string, spec *pb.JobSpec, total int, partial bool) *pb.Front {
-	var p problems
-	design := designFromProto(spec.GetDesignSpace(), "design_space", &p)
-	var names []string
-	for _, g := range design.Genes() {
-		names = append(names, g.Name)
-	}
+	design := designFromProto(spec.GetDesignSpace())
+	names := design.GeneNames()
 	return &pb.Front{
 		Job: jobName(id), GeneNames: names, Objectives: spec.GetObjectives(), Constraints: spec.GetConstraints(),
 		TotalSize: int32(total), Partial: partial,
@@ -142,23 +139,6 @@ func (s *Server) wholeFront(ctx context.Context, id string) (*jobs.FrontPage, er
 	}
 }
 
-// storedPlan returns a job and the plan of its stored spec.
-func (s *Server) storedPlan(ctx context.Context, id string) (*jobs.Job, *plan, error) {
-	j, err := s.engine.Get(ctx, id)
-	if err != nil {
-		return nil, nil, toStatus(err, nil)
-	}
-	spec, err := unmarshalSpec(j.Spec)
-	if err != nil {
-		return nil, nil, toStatus(err, nil)
-	}
-	pl, err := compile(spec, "spec.")
-	if err != nil {
-		return nil, nil, statusError(codes.Internal, fmt.Sprintf("the stored spec of job %q no longer compiles: %v", id, err), ReasonInternal, nil)
-	}
-	return j, pl, nil
-}
-
 // setupArgument converts and checks a setup given in a request at path.
 func setupArgument(s *pb.Setup, path string, p *problems) model.Setup {
 	n := len(*p)
@@ -197,7 +177,7 @@ func (s *Server) CompareSetup(ctx context.Context, req *pb.CompareSetupRequest) 
 	if err != nil {
 		return nil, err
 	}
-	sol := pl.evaluate(setup)
+	sol := solutionToProto(pl.Evaluate(setup))
 	if len(sol.Objectives) == 0 {
 		return nil, invalidArgument(problems{{Field: "setup", Reason: "the model cannot evaluate this setup on the job's car: " + sol.InfeasibleReason}})
 	}
@@ -265,9 +245,14 @@ func (s *Server) GetDamperCurves(ctx context.Context, req *pb.GetDamperCurvesReq
 				fmt.Sprintf("job %q has %d solutions in its front; solution_index %d is not one of them", id, len(front.Solutions), k),
 				ReasonSolutionNotFound, map[string]string{"job_id": id, "front_size": strconv.Itoa(len(front.Solutions))})
 		}
-		setup = pl.study.Design().Decode(front.Solutions[k].Genes)
+		setup = pl.Problem().Design().Decode(front.Solutions[k].Genes)
 	}
-	curves, err := pl.curves(setup, req.GetAdjustment(), req.GetCurves())
+	var adj *model.Adjustment
+	if req.GetAdjustment() != nil {
+		a := adjustmentFromProto(req.GetAdjustment())
+		adj = &a
+	}
+	curves, err := pl.Curves(setup, adj, &study.Curves{MaxVelocity: req.GetCurves().GetMaxVelocityMPerS(), Points: int(req.GetCurves().GetPoints())})
 	if err != nil {
 		return nil, toStatus(err, curvesPaths)
 	}

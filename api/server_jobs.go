@@ -3,7 +3,6 @@ package api
 import (
 	"context"
 	"fmt"
-	"strconv"
 	"strings"
 
 	"google.golang.org/grpc"
@@ -26,28 +25,42 @@ func submitPaths(p string) string {
 func listPaths(p string) string { return strings.TrimPrefix(p, "filter.") }
 
 // SubmitJob checks the spec in full, fills in its defaults, checks the
-// job's size against the limit and stores it.
+// job's size against the limits, compiles it once (the car's stability
+// at each speed) and stores it. The size is checked before anything that
+// grows with it, and the checks and the compile run in a submit slot
+// (Options.MaxConcurrentSubmits), under the call's context.
 func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.SubmitJobResponse, error) {
 	if req.GetSpec() == nil {
 		return nil, invalidArgument(problems{{Field: "spec", Reason: "is required"}})
 	}
-	pl, err := compile(req.GetSpec(), "spec.")
+	if err := s.checkCases(req.GetSpec()); err != nil {
+		return nil, err
+	}
+	release, err := s.acquireSubmit(ctx)
 	if err != nil {
 		return nil, err
 	}
-	if err := s.checkGrid(pl); err != nil {
+	defer release()
+	var p problems
+	c, err := checkSpec(req.GetSpec(), "spec.", &p)
+	if err != nil {
 		return nil, err
 	}
-	if w := pl.work(); w > s.opt.MaxJobWork {
-		return nil, resourceExhausted(ReasonJobTooLarge,
-			fmt.Sprintf("the job is too large: population_size × islands × generations × road cases = %d, the server allows %d; reduce the population or the generations, or split the road cases over jobs", w, s.opt.MaxJobWork),
-			map[string]string{"work": strconv.FormatInt(w, 10), "limit": strconv.FormatInt(s.opt.MaxJobWork, 10)}, 0)
+	size := c.Size()
+	if err := s.checkGrid(size); err != nil {
+		return nil, err
 	}
-	spec, err := MarshalSpec(pl.spec)
+	if err := s.checkJobWork(size); err != nil {
+		return nil, err
+	}
+	if _, err := s.compile(ctx, c); err != nil {
+		return nil, err
+	}
+	spec, err := marshalSpec(c.msg)
 	if err != nil {
 		return nil, toStatus(err, nil)
 	}
-	j, err := s.engine.Submit(ctx, &jobs.SubmitParams{Spec: spec, Labels: pl.spec.GetLabels(), Seed: int64(pl.settings.Seed)})
+	j, err := s.engine.Submit(ctx, &jobs.SubmitParams{Spec: spec, Labels: c.msg.GetLabels()})
 	if err != nil {
 		return nil, toStatus(err, submitPaths)
 	}

@@ -55,18 +55,15 @@ func (s *Server) VerifySetup(ctx context.Context, req *pb.VerifySetupRequest) (*
 	case *pb.VerifySetupRequest_Job:
 		job = &src.Job
 	}
-	pl, err := s.sourcePlan(ctx, spec, job, &p)
+	pl, err := s.sourcePlan(ctx, spec, job, 0, &p)
 	if err != nil {
 		return nil, err
 	}
-	ev := pl.eval
-	cases := make([]model.RoadCase, ev.Cases())
-	for i := range cases {
-		cases[i] = *ev.Case(i)
-	}
+	ev := pl.Evaluator()
+	cases := pl.RoadCases()
 	opt := model.VerifyOptions{
 		Time:  model.TimeOptions{Duration: duration, WarnThreshold: ev.WarnThreshold()},
-		Model: model.EvaluatorOptions{Grid: gridFromProto(pl.spec.GetGrid())},
+		Model: pl.EvaluatorOptions(),
 		Seed:  seed,
 	}
 	type result struct {

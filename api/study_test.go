@@ -10,6 +10,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
+	"dampfront/jobs/study"
 	"dampfront/model"
 )
 
@@ -26,18 +27,18 @@ func TestWithDefaultsFillsAndIsIdempotent(t *testing.T) {
 		name      string
 		got, want float64
 	}{
-		{"population_size", float64(q.GetPopulationSize()), DefaultPopulationSize},
-		{"generations", float64(q.GetGenerations()), DefaultGenerations},
-		{"seed", float64(q.GetSeed()), DefaultSeed},
+		{"population_size", float64(q.GetPopulationSize()), study.DefaultPopulationSize},
+		{"generations", float64(q.GetGenerations()), study.DefaultGenerations},
+		{"seed", float64(q.GetSeed()), study.DefaultSeed},
 		{"islands", float64(q.GetIslands()), 1},
-		{"crossover_probability", q.GetCrossoverProbability(), DefaultCrossoverProbability},
+		{"crossover_probability", q.GetCrossoverProbability(), study.DefaultCrossoverProbability},
 		{"mutation_probability (1/4 genes)", q.GetMutationProbability(), 0.25},
-		{"ratios.front_bump.min", s.GetDesignSpace().GetRatios().GetFrontBump().GetMin(), DefaultRatioMin},
-		{"ratios.rear_rebound.max", s.GetDesignSpace().GetRatios().GetRearRebound().GetMax(), DefaultRatioMax},
-		{"base.front.knee_bump_m_per_s", s.GetDesignSpace().GetBase().GetFront().GetKneeBumpMPerS(), DefaultKnee},
-		{"base.rear.high_speed_rebound_factor", s.GetDesignSpace().GetBase().GetRear().GetHighSpeedReboundFactor(), DefaultHighSpeedFactor},
+		{"ratios.front_bump.min", s.GetDesignSpace().GetRatios().GetFrontBump().GetMin(), study.DefaultRatioMin},
+		{"ratios.rear_rebound.max", s.GetDesignSpace().GetRatios().GetRearRebound().GetMax(), study.DefaultRatioMax},
+		{"base.front.knee_bump_m_per_s", s.GetDesignSpace().GetBase().GetFront().GetKneeBumpMPerS(), study.DefaultKnee},
+		{"base.rear.high_speed_rebound_factor", s.GetDesignSpace().GetBase().GetRear().GetHighSpeedReboundFactor(), study.DefaultHighSpeedFactor},
 		{"grid.points", float64(s.GetGrid().GetPoints()), float64(model.DefaultGrid.Points)},
-		{"curves.points", float64(s.GetCurves().GetPoints()), DefaultCurvePoints},
+		{"curves.points", float64(s.GetCurves().GetPoints()), study.DefaultCurvePoints},
 		{"road_cases[0].weight", s.GetRoadCases()[0].GetWeight(), 1},
 		{"road_cases[1].weight (given)", s.GetRoadCases()[1].GetWeight(), 0.5},
 		{"objectives", float64(len(s.GetObjectives())), 2},
@@ -61,7 +62,7 @@ func TestWithDefaultsFillsAndIsIdempotent(t *testing.T) {
 // resume is set, and returns its front.
 func frontOf(t *testing.T, spec []byte, step int, resume bool) []jobs.Solution {
 	t.Helper()
-	o := &Opener{Workers: 2}
+	o := NewOpener(2)
 	st, err := o.Open(spec, nil)
 	if err != nil {
 		t.Fatal(err)
@@ -192,7 +193,7 @@ func TestOpenRejectsForeignCheckpoint(t *testing.T) {
 	b.Search.Seed = proto.Uint64(8)
 	sa, _ := MarshalSpec(a)
 	sb, _ := MarshalSpec(b)
-	o := &Opener{Workers: 1}
+	o := NewOpener(1)
 	st, err := o.Open(sa, nil)
 	if err != nil {
 		t.Fatal(err)

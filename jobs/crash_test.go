@@ -205,7 +205,7 @@ func crashClient(t *testing.T, cfg Config, spec toySpec) (*Engine, *Job) {
 		t.Fatal(err)
 	}
 	t.Cleanup(func() { _ = client.Close() })
-	j, err := client.Submit(context.Background(), &SubmitParams{Spec: spec.bytes(), Seed: spec.Seed})
+	j, err := client.Submit(context.Background(), &SubmitParams{Spec: spec.bytes()})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -10,7 +10,7 @@
 //
 // # Data flow
 //
-//	Submit(spec, labels, seed)
+//	Submit(spec, labels)
 //	  tx { dampfront_job row (queued) + labels; River job "dampfront_slice" #1 }
 //
 //	a worker fetches slice n (River)

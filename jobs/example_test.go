@@ -76,7 +76,7 @@ func Example() {
 	}
 	defer e.Stop(ctx)
 
-	job, err := e.Submit(ctx, &jobs.SubmitParams{Spec: binary.AppendUvarint(nil, 1000), Labels: map[string]string{"car": "demo"}, Seed: 1})
+	job, err := e.Submit(ctx, &jobs.SubmitParams{Spec: binary.AppendUvarint(nil, 1000), Labels: map[string]string{"car": "demo"}})
 	if err != nil {
 		log.Fatal(err)
 	}

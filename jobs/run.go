@@ -37,13 +37,6 @@ type RunOpener interface {
 	Open(spec []byte, checkpoint []byte) (Run, error)
 }
 
-// SpecValidator may be implemented by a RunOpener; Submit then rejects a
-// spec that it refuses. The error should be an *InvalidArgumentError naming
-// the spec's fields.
-type SpecValidator interface {
-	ValidateSpec(spec []byte) error
-}
-
 // Progress is how far a job has got.
 type Progress struct {
 	Generation  int       // generations completed

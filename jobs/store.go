@@ -80,7 +80,6 @@ type Job struct {
 	ID     string
 	State  State
 	Labels map[string]string
-	Seed   int64  // the optimiser's seed, stored with the result
 	Spec   []byte // opaque; the API layer's serialised job spec
 
 	CreatedAt  time.Time
@@ -105,7 +104,6 @@ type JobInsertParams struct {
 	ID     string // required; unique
 	Spec   []byte // required
 	Labels map[string]string
-	Seed   int64
 	Now    time.Time // required; creation time
 }
 

@@ -25,7 +25,7 @@ type jobLife struct {
 // live applies l to a new job in s; the job is created at t0 + created.
 func (l jobLife) live(ctx context.Context, t *testing.T, s Store, t0 time.Time, created time.Duration) {
 	t.Helper()
-	if _, err := s.JobInsert(ctx, &JobInsertParams{ID: l.id, Spec: []byte(`{"spec":"` + l.id + `"}`), Seed: 1, Now: t0.Add(created)}); err != nil {
+	if _, err := s.JobInsert(ctx, &JobInsertParams{ID: l.id, Spec: []byte(`{"spec":"` + l.id + `"}`), Now: t0.Add(created)}); err != nil {
 		t.Fatalf("JobInsert(%s): %v", l.id, err)
 	}
 	lease := ""

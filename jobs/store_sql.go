@@ -23,7 +23,7 @@ type sqlStore struct {
 
 var _ Store = (*sqlStore)(nil)
 
-const jobColumns = `id, state, labels, seed, spec, created_at, started_at, finished_at, updated_at,
+const jobColumns = `id, state, labels, spec, created_at, started_at, finished_at, updated_at,
 	error, partial, cancel_requested, lease, slices, requeues,
 	generation, generations, evaluations, hypervolume, best`
 
@@ -44,7 +44,7 @@ func scanJob(r rowScanner) (*Job, error) {
 		generation, generations, evaluations int64
 		best                                 []byte
 	)
-	if err := r.Scan(&j.ID, &state, &labels, &j.Seed, &j.Spec, &created, &started, &finished, &updated,
+	if err := r.Scan(&j.ID, &state, &labels, &j.Spec, &created, &started, &finished, &updated,
 		&j.Error, &partial, &cancelRequested, &j.lease, &slices, &requeues,
 		&generation, &generations, &evaluations, &j.Progress.Hypervolume, &best); err != nil {
 		return nil, err
@@ -159,8 +159,11 @@ func (s *sqlStore) JobInsert(ctx context.Context, p *JobInsertParams) (*Job, err
 	now := timeToDB(p.Now)
 	var job *Job
 	err = s.inTx(ctx, func(tx *sqlStore) error {
+		// The seed column of the first migration is not used: a job's
+		// seed is in its spec, the one place for it. It is written as 0
+		// so that the schema stays that of every earlier version.
 		_, err := tx.q.exec(ctx, `INSERT INTO dampfront_job (id, state, labels, seed, spec, created_at, updated_at)
-			VALUES (?, ?, ?, ?, ?, ?, ?)`, p.ID, string(StateQueued), string(labelJSON), p.Seed, p.Spec, now, now)
+			VALUES (?, ?, ?, 0, ?, ?, ?)`, p.ID, string(StateQueued), string(labelJSON), p.Spec, now, now)
 		if isUniqueViolation(err) {
 			return fmt.Errorf("%w: job %q", ErrAlreadyExists, p.ID)
 		}

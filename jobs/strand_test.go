@@ -70,7 +70,7 @@ func liveSlices(t *testing.T, e *Engine, id string) int64 {
 func startedJob(t *testing.T, e *Engine, spec toySpec) *Job {
 	t.Helper()
 	ctx := context.Background()
-	j, err := e.Submit(ctx, &SubmitParams{Spec: spec.bytes(), Seed: spec.Seed})
+	j, err := e.Submit(ctx, &SubmitParams{Spec: spec.bytes()})
 	if err != nil {
 		t.Fatal(err)
 	}

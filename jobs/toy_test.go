@@ -72,22 +72,6 @@ func (o *toyOpener) Open(spec, checkpoint []byte) (Run, error) {
 	return st, nil
 }
 
-// ValidateSpec lets Submit reject what Open would.
-func (o *toyOpener) ValidateSpec(spec []byte) error {
-	var s toySpec
-	if err := json.Unmarshal(spec, &s); err != nil {
-		return &InvalidArgumentError{Violations: []FieldError{{Field: "spec", Reason: "not JSON: " + err.Error()}}}
-	}
-	var v violations
-	if s.Generations <= 0 {
-		v.add("spec.generations", "must be positive, got %d", s.Generations)
-	}
-	if s.Size <= 0 {
-		v.add("spec.size", "must be positive, got %d", s.Size)
-	}
-	return v.err()
-}
-
 type toyStudy struct {
 	spec   toySpec
 	opener *toyOpener

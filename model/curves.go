@@ -10,6 +10,34 @@ type Adjustment struct {
 	ReboundSoftest, ReboundStiffest float64
 }
 
+// Validate checks that every ratio is finite and not negative and that
+// each stiffest click is at least its softest.
+func (adj Adjustment) Validate() error {
+	var p problems
+	for name, r := range map[string]float64{"bump_softest": adj.BumpSoftest, "bump_stiffest": adj.BumpStiffest,
+		"rebound_softest": adj.ReboundSoftest, "rebound_stiffest": adj.ReboundStiffest} {
+		p.nonNegative(name, r)
+	}
+	if adj.BumpStiffest < adj.BumpSoftest {
+		p.add("bump_stiffest", "must be >= bump_softest (%g), got %g", adj.BumpSoftest, adj.BumpStiffest)
+	}
+	if adj.ReboundStiffest < adj.ReboundSoftest {
+		p.add("rebound_stiffest", "must be >= rebound_softest (%g), got %g", adj.ReboundSoftest, adj.ReboundStiffest)
+	}
+	return p.err()
+}
+
+// ValidateCurveRange checks the tabulation of DamperCurves: vmax (m/s)
+// finite and > 0, points in [3, 10001].
+func ValidateCurveRange(vmax float64, points int) error {
+	var p problems
+	p.positive("max_velocity_m_per_s", vmax)
+	if points < 3 || points > 10001 {
+		p.add("points", "must be in [3, 10001], got %d", points)
+	}
+	return p.err()
+}
+
 // DamperCurve is the force-velocity table of one corner's damper at the
 // component (damper velocity and force, not wheel), velocity positive in
 // bump, force positive resisting bump (rebound forces are negative).
@@ -36,10 +64,7 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	var p problems
 	p.merge("vehicle.", v.Validate())
 	p.merge("setup.", s.Validate())
-	p.positive("max_velocity_m_per_s", vmax)
-	if points < 3 || points > 10001 {
-		p.add("points", "must be in [3, 10001], got %d", points)
-	}
+	p.merge("", ValidateCurveRange(vmax, points))
 	p.merge("adjustment.", adj.Validate())
 	if err := p.err(); err != nil {
 		return nil, err

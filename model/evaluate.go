@@ -1,6 +1,7 @@
 package model
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math"
@@ -71,6 +72,13 @@ type workspace struct {
 
 // NewEvaluator validates its inputs and prepares the road cases on the grid.
 func NewEvaluator(v Vehicle, cases []RoadCase, opt EvaluatorOptions) (*Evaluator, error) {
+	return NewEvaluatorContext(context.Background(), v, cases, opt)
+}
+
+// NewEvaluatorContext is NewEvaluator that stops preparing road cases
+// when ctx is done, returning ctx's error: the preparation grows with the
+// cases and the grid, and a caller that has gone should not pay for it.
+func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt EvaluatorOptions) (*Evaluator, error) {
 	opt = opt.withDefaults()
 	var p problems
 	p.merge("vehicle.", v.Validate())
@@ -100,6 +108,9 @@ func NewEvaluator(v Vehicle, cases []RoadCase, opt EvaluatorOptions) (*Evaluator
 	}
 	vsym := v.symmetric() && !opt.General
 	for i := range cases {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
 		rc := cases[i]
 		sym := vsym && (rc.Measured == nil || rc.Measured.Right == nil)
 		op, err := e.v.operatingPoint(rc.Speed)

@@ -217,21 +217,5 @@ func handReason(h *HandMode, aero, speed float64) string {
 	return why
 }
 
-// Validate checks an adjuster band and names every bad field.
-func (a Adjustment) Validate() error {
-	var p problems
-	for name, r := range map[string]float64{"bump_softest": a.BumpSoftest, "bump_stiffest": a.BumpStiffest,
-		"rebound_softest": a.ReboundSoftest, "rebound_stiffest": a.ReboundStiffest} {
-		p.nonNegative(name, r)
-	}
-	if a.BumpStiffest < a.BumpSoftest {
-		p.add("bump_stiffest", "must be >= bump_softest (%g), got %g", a.BumpSoftest, a.BumpStiffest)
-	}
-	if a.ReboundStiffest < a.ReboundSoftest {
-		p.add("rebound_stiffest", "must be >= rebound_softest (%g), got %g", a.ReboundSoftest, a.ReboundStiffest)
-	}
-	return p.err()
-}
-
 // band reports whether the adjustment gives a band in both directions.
 func (a Adjustment) band() bool { return a.BumpStiffest > 0 && a.ReboundStiffest > 0 }

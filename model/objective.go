@@ -212,8 +212,27 @@ type Problem struct {
 	reference [][]float64
 }
 
-// NewProblem checks the design space, objectives and constraints.
+// NewProblem checks the design space, objectives and constraints (see
+// ValidateProblem).
 func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints []Constraint) (*Problem, error) {
+	if err := ValidateProblem(d, objectives, constraints); err != nil {
+		return nil, err
+	}
+	s := &Problem{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
+	s.pool.New = func() any { return &Result{Cases: make([]CaseMetrics, e.Cases())} }
+	if s.normalises() {
+		if err := s.SetReference(d.Middle()); err != nil {
+			return nil, err
+		}
+	}
+	return s, nil
+}
+
+// ValidateProblem checks what NewProblem is given besides the evaluator:
+// the design space (paths under "design."), one to three distinct known
+// objectives with finite target shifts, and known constraints with
+// limits > 0.
+func ValidateProblem(d DesignSpace, objectives []Objective, constraints []Constraint) error {
 	var p problems
 	p.merge("design.", d.Validate())
 	if len(objectives) < 1 || len(objectives) > 3 {
@@ -252,17 +271,7 @@ func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints
 			p.add(f+".lower", "is for a modal-ratio band only, got %g on %s", c.Lower, c.Kind)
 		}
 	}
-	if err := p.err(); err != nil {
-		return nil, err
-	}
-	s := &Problem{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
-	s.pool.New = func() any { return &Result{Cases: make([]CaseMetrics, e.Cases())} }
-	if s.normalises() {
-		if err := s.SetReference(d.Middle()); err != nil {
-			return nil, err
-		}
-	}
-	return s, nil
+	return p.err()
 }
 
 // Genes lists the searched variables.

@@ -41,7 +41,7 @@ func New(p Problem, s Settings) (*Search, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := s.validate(shape.nObj); err != nil {
+	if err := s.Validate(shape.nObj); err != nil {
 		return nil, err
 	}
 	s.ReferencePoint = slices.Clone(s.ReferencePoint)

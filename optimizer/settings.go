@@ -1,6 +1,7 @@
 package optimizer
 
 import (
+	"errors"
 	"fmt"
 	"math"
 )
@@ -84,55 +85,67 @@ func DefaultSettings(nGenes int) Settings {
 // (eaopt's SelTournament draws without replacement).
 const minPopulation = 4
 
-// validate checks s against a problem with nObj objectives.
-func (s *Settings) validate(nObj int) error {
-	bad := func(field, format string, args ...any) error {
-		return &FieldError{Field: "Settings." + field, Msg: fmt.Sprintf(format, args...)}
+// Validate checks s against a problem with nObj objectives and returns
+// every problem found, not only the first: nil, or an error that wraps one
+// *FieldError per bad field, in the order of the fields above (errors.As
+// finds the first). These are the only checks of the settings; callers
+// that take settings from users (a job spec) call Validate and map the
+// fields.
+func (s Settings) Validate(nObj int) error {
+	var errs []error
+	bad := func(field, format string, args ...any) {
+		errs = append(errs, &FieldError{Field: "Settings." + field, Msg: fmt.Sprintf(format, args...)})
 	}
 	if s.PopulationSize < minPopulation {
-		return bad("PopulationSize", "must be at least %d, got %d", minPopulation, s.PopulationSize)
+		bad("PopulationSize", "must be at least %d, got %d", minPopulation, s.PopulationSize)
 	}
 	if s.Generations < 0 {
-		return bad("Generations", "must not be negative, got %d", s.Generations)
+		bad("Generations", "must not be negative, got %d", s.Generations)
 	}
 	if s.Islands < 1 {
-		return bad("Islands", "must be at least 1, got %d", s.Islands)
+		bad("Islands", "must be at least 1, got %d", s.Islands)
 	}
 	if s.MigrationEvery < 0 {
-		return bad("MigrationEvery", "must not be negative, got %d", s.MigrationEvery)
+		bad("MigrationEvery", "must not be negative, got %d", s.MigrationEvery)
 	}
-	if s.migrates() && (s.Migrants < 1 || s.Migrants > 2*s.PopulationSize) {
-		return bad("Migrants", "must be 1 to 2×PopulationSize = %d when islands migrate, got %d", 2*s.PopulationSize, s.Migrants)
-	}
-	if s.Migrants < 0 {
-		return bad("Migrants", "must not be negative, got %d", s.Migrants)
+	switch {
+	case s.migrates() && (s.Migrants < 1 || s.Migrants > 2*s.PopulationSize):
+		bad("Migrants", "must be 1 to 2×PopulationSize = %d when islands migrate, got %d", 2*s.PopulationSize, s.Migrants)
+	case s.Migrants < 0:
+		bad("Migrants", "must not be negative, got %d", s.Migrants)
 	}
 	if !(s.CrossoverProbability >= 0 && s.CrossoverProbability <= 1) {
-		return bad("CrossoverProbability", "must be in [0, 1], got %g", s.CrossoverProbability)
+		bad("CrossoverProbability", "must be in [0, 1], got %g", s.CrossoverProbability)
 	}
 	if !(s.CrossoverEta >= 0) || math.IsInf(s.CrossoverEta, 0) {
-		return bad("CrossoverEta", "must be finite and not negative, got %g", s.CrossoverEta)
+		bad("CrossoverEta", "must be finite and not negative, got %g", s.CrossoverEta)
 	}
 	if !(s.MutationProbability >= 0 && s.MutationProbability <= 1) {
-		return bad("MutationProbability", "must be in [0, 1], got %g", s.MutationProbability)
+		bad("MutationProbability", "must be in [0, 1], got %g", s.MutationProbability)
 	}
 	if !(s.MutationEta >= 0) || math.IsInf(s.MutationEta, 0) {
-		return bad("MutationEta", "must be finite and not negative, got %g", s.MutationEta)
+		bad("MutationEta", "must be finite and not negative, got %g", s.MutationEta)
 	}
 	if s.Workers < 1 {
-		return bad("Workers", "must be at least 1, got %d", s.Workers)
+		bad("Workers", "must be at least 1, got %d", s.Workers)
 	}
 	if s.ReferencePoint != nil {
 		if len(s.ReferencePoint) != nObj {
-			return bad("ReferencePoint", "has %d values for %d objectives", len(s.ReferencePoint), nObj)
+			bad("ReferencePoint", "has %d values for %d objectives", len(s.ReferencePoint), nObj)
 		}
 		for j, r := range s.ReferencePoint {
 			if math.IsNaN(r) || math.IsInf(r, 0) {
-				return bad(fmt.Sprintf("ReferencePoint[%d]", j), "must be finite, got %g", r)
+				bad(fmt.Sprintf("ReferencePoint[%d]", j), "must be finite, got %g", r)
 			}
 		}
 	}
-	return nil
+	switch len(errs) {
+	case 0:
+		return nil
+	case 1:
+		return errs[0]
+	}
+	return errors.Join(errs...)
 }
 
 // migrates reports whether islands exchange individuals.

@@ -98,7 +98,7 @@ func drawSetups(spec *pb.JobSpec, n int, seed uint64) []*pb.Setup {
 // a PostgreSQL URL) through an engine of its own without workers, closed
 // again before it returns: the database is then ready for a server.
 func SeedDatabase(ctx context.Context, url string, spec *pb.JobSpec, n int, seed uint64) (string, error) {
-	e, err := jobs.Open(ctx, jobs.Config{DatabaseURL: url, Workers: 0, Logger: slog.New(slog.DiscardHandler)}, &api.Opener{})
+	e, err := jobs.Open(ctx, jobs.Config{DatabaseURL: url, Workers: 0, Logger: slog.New(slog.DiscardHandler)}, api.NewOpener(0))
 	if err != nil {
 		return "", err
 	}

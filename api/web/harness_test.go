@@ -46,7 +46,7 @@ func engineConfig(db string, workers int) jobs.Config {
 func startEngine(t *testing.T, cfg jobs.Config) *jobs.Engine {
 	t.Helper()
 	ctx := context.Background()
-	e, err := jobs.Open(ctx, cfg, &api.Opener{Workers: 1})
+	e, err := jobs.Open(ctx, cfg, api.NewOpener(1))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -59,7 +59,7 @@ type progressView struct {
 func newProgressView(j *pb.Job) progressView {
 	p := j.GetProgress()
 	v := progressView{
-		State: stateName(j.GetState()), Terminal: terminal(j.GetState()),
+		State: badge(j), Terminal: terminal(j.GetState()),
 		Generation: p.GetGeneration(), Generations: p.GetGenerations(), Evaluations: p.GetEvaluations(),
 		Updated: timeText(p.GetUpdateTime()),
 	}
@@ -95,10 +95,20 @@ type jobRow struct {
 	Error       string
 }
 
+// badge is the word of a job's state badge: its state, or "infeasible"
+// for a finished job no setup of which met every constraint, so that such
+// a job never shows the green of success.
+func badge(j *pb.Job) string {
+	if j.GetInfeasible() && terminal(j.GetState()) {
+		return "infeasible"
+	}
+	return stateName(j.GetState())
+}
+
 func newJobRow(j *pb.Job) jobRow {
 	r := jobRow{
 		ID: j.GetJobId(), Name: j.GetName(), URL: "/jobs/" + url.PathEscape(j.GetJobId()),
-		DisplayName: j.GetDisplayName(), State: stateName(j.GetState()), Progress: newProgressView(j),
+		DisplayName: j.GetDisplayName(), State: badge(j), Progress: newProgressView(j),
 		Created: timeText(j.GetCreateTime()), Started: timeText(j.GetStartTime()), Finished: timeText(j.GetFinishTime()),
 		Error: j.GetErrorMessage(),
 	}

@@ -42,8 +42,11 @@ func (q quantity) text(si float64) string {
 // aggregation says so in the label.
 func objectiveQuantity(o *pb.Objective) quantity {
 	q := shown(tradeunit.Objective(api.ModelObjectiveKind(o.GetKind())))
-	if o.GetAggregation() == pb.Aggregation_AGGREGATION_WORST {
+	switch o.GetAggregation() {
+	case pb.Aggregation_AGGREGATION_WORST:
 		q.label += ", worst"
+	case pb.Aggregation_AGGREGATION_NORMALISED:
+		q.label += ", normalised"
 	}
 	return q
 }
@@ -65,3 +68,9 @@ var qSlope = quantity{"slope", tradeunit.NewtonSecondPerMM.Symbol, tradeunit.New
 // siText formats an SI value for CSV: the shortest text that reads back
 // to the same float64.
 func siText(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// constraintQuantity is how a constraint's limit and metric are shown.
+func constraintQuantity(k pb.ConstraintKind) quantity {
+	t := tradeunit.Constraint(api.ModelConstraintKind(k))
+	return quantity{t.Label, t.Unit.Symbol, t.Unit.Scale, t.Prec, t.Column}
+}

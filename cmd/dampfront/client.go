@@ -15,6 +15,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
+	"dampfront/model"
 )
 
 // defaultAddr is where serve listens and clients connect unless told.
@@ -158,6 +159,10 @@ func inputError(err error) bool {
 	var ia *jobs.InvalidArgumentError
 	if errors.As(err, &ia) {
 		return true // a bad engine setting, such as the database URL
+	}
+	var ve *model.ValidationError
+	if errors.As(err, &ve) {
+		return true // a bad spec or setup checked in this process
 	}
 	for _, c := range []codes.Code{codes.InvalidArgument, codes.NotFound, codes.FailedPrecondition, codes.OutOfRange} {
 		if isCode(err, c) {

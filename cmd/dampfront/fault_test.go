@@ -243,7 +243,7 @@ func openStore(t *testing.T, url string) jobs.Store {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), serverStart)
 	defer cancel()
-	eng, err := jobs.Open(ctx, jobs.Config{DatabaseURL: url}, &api.Opener{})
+	eng, err := jobs.Open(ctx, jobs.Config{DatabaseURL: url}, api.NewOpener(0))
 	if err != nil {
 		t.Fatal(err)
 	}

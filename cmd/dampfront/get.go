@@ -11,6 +11,7 @@ import (
 	"google.golang.org/protobuf/types/known/timestamppb"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/api/web"
 )
 
 var getCommand = &command{
@@ -60,7 +61,7 @@ func writeJob(w io.Writer, j *pb.Job) error {
 	t := newTable(w, false)
 	t.row("job", j.GetName())
 	t.row("name", j.GetDisplayName())
-	t.row("state", stateName(j.GetState())+flagText(j.GetCancelRequested() && !terminal(j.GetState()), ", cancel requested")+flagText(j.GetPartial(), ", front partial"))
+	t.row("state", stateName(j.GetState())+flagText(j.GetCancelRequested() && !terminal(j.GetState()), ", cancel requested")+flagText(j.GetPartial(), ", front partial")+flagText(j.GetInfeasible(), ", infeasible"))
 	t.row("labels", formatLabels(j.GetLabels()))
 	t.row("seed", fmt.Sprint(j.GetSeed()))
 	t.row("car", j.GetSpec().GetVehicle().GetName())
@@ -83,6 +84,9 @@ func writeJob(w io.Writer, j *pb.Job) error {
 	t.row("finished", formatTime(j.GetFinishTime()))
 	if j.GetErrorMessage() != "" {
 		t.row("error", j.GetErrorMessage())
+	}
+	if v := web.InfeasibleText(j); v != "" {
+		t.row("verdict", v)
 	}
 	return t.flush()
 }

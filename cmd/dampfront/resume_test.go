@@ -106,7 +106,7 @@ func readCheckpoint(t *testing.T, db, id string) *jobs.Checkpoint {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), serverStart)
 	defer cancel()
-	eng, err := jobs.Open(ctx, jobs.Config{DatabaseURL: db}, &api.Opener{})
+	eng, err := jobs.Open(ctx, jobs.Config{DatabaseURL: db}, api.NewOpener(0))
 	if err != nil {
 		t.Fatal(err)
 	}

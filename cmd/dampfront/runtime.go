@@ -141,7 +141,7 @@ func (f *engineFlags) jobsConfig(log *slog.Logger) jobs.Config {
 // openEngine opens (and migrates) the database and returns the engine,
 // not yet started.
 func openEngine(ctx context.Context, cfg jobs.Config, evalWorkers int) (*jobs.Engine, error) {
-	eng, err := jobs.Open(ctx, cfg, &api.Opener{Workers: evalWorkers})
+	eng, err := jobs.Open(ctx, cfg, api.NewOpener(evalWorkers))
 	if err != nil {
 		return nil, fmt.Errorf("open database %s: %w", redactURL(cfg.DatabaseURL), err)
 	}

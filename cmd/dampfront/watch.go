@@ -12,6 +12,7 @@ import (
 	"google.golang.org/protobuf/encoding/protojson"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/api/web"
 )
 
 var watchCommand = &command{
@@ -173,6 +174,9 @@ func finalLine(j *pb.Job) string {
 	}
 	if j.GetErrorMessage() != "" {
 		s += ": " + plain(j.GetErrorMessage())
+	}
+	if v := web.InfeasibleText(j); v != "" {
+		s += "\n" + v
 	}
 	return s
 }

@@ -70,7 +70,7 @@ func serve(t *testing.T, opt api.Options) (string, pb.DampfrontServiceClient) {
 		DatabaseURL: filepath.Join(t.TempDir(), "jobs.db"), Workers: 1,
 		ProgressInterval: 50 * time.Millisecond, FetchPollInterval: 20 * time.Millisecond,
 		StopTimeout: 10 * time.Second, Logger: quiet,
-	}, &api.Opener{Workers: 1})
+	}, api.NewOpener(1))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -104,6 +104,11 @@ const (
 	Aggregation_AGGREGATION_MEAN_SQUARE Aggregation = 1
 	// max_c g_c.
 	Aggregation_AGGREGATION_WORST Aggregation = 2
+	// Each case relative to the job's reference setup, whose value on case c
+	// is r_c: F_ref * sqrt(sum w_c (g_c / r_c)^2 / sum w_c), with
+	// F_ref = sqrt(sum w_c r_c^2 / sum w_c), so every case counts by its
+	// relative change and the value keeps the objective's unit.
+	Aggregation_AGGREGATION_NORMALISED Aggregation = 3
 )
 
 // Enum value maps for Aggregation.
@@ -112,11 +117,13 @@ var (
 		0: "AGGREGATION_UNSPECIFIED",
 		1: "AGGREGATION_MEAN_SQUARE",
 		2: "AGGREGATION_WORST",
+		3: "AGGREGATION_NORMALISED",
 	}
 	Aggregation_value = map[string]int32{
 		"AGGREGATION_UNSPECIFIED": 0,
 		"AGGREGATION_MEAN_SQUARE": 1,
 		"AGGREGATION_WORST":       2,
+		"AGGREGATION_NORMALISED":  3,
 	}
 )
 
@@ -742,6 +749,97 @@ func (x *Objective) GetRearTargetShiftM() float64 {
 	return 0
 }
 
+// ConstraintShortfall is how far one setup is from meeting one constraint.
+type ConstraintShortfall struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// The limited metric.
+	Kind ConstraintKind `protobuf:"varint,1,opt,name=kind,proto3,enum=dampfront.v1.ConstraintKind" json:"kind,omitempty"`
+	// The constraint's limit, in the SI unit of the kind.
+	Limit float64 `protobuf:"fixed64,2,opt,name=limit,proto3" json:"limit,omitempty"`
+	// The largest value over every road case and corner, in the SI unit of the kind.
+	Worst float64 `protobuf:"fixed64,3,opt,name=worst,proto3" json:"worst,omitempty"`
+	// The name of the road case where the worst value is reached.
+	RoadCase string `protobuf:"bytes,4,opt,name=road_case,json=roadCase,proto3" json:"road_case,omitempty"`
+	// worst - limit, in the SI unit of the kind; > 0 when violated.
+	Over float64 `protobuf:"fixed64,5,opt,name=over,proto3" json:"over,omitempty"`
+	// max(0, worst / limit - 1), the violation the search minimises.
+	Violation     float64 `protobuf:"fixed64,6,opt,name=violation,proto3" json:"violation,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *ConstraintShortfall) Reset() {
+	*x = ConstraintShortfall{}
+	mi := &file_dampfront_v1_design_proto_msgTypes[6]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *ConstraintShortfall) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*ConstraintShortfall) ProtoMessage() {}
+
+func (x *ConstraintShortfall) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_design_proto_msgTypes[6]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use ConstraintShortfall.ProtoReflect.Descriptor instead.
+func (*ConstraintShortfall) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{6}
+}
+
+func (x *ConstraintShortfall) GetKind() ConstraintKind {
+	if x != nil {
+		return x.Kind
+	}
+	return ConstraintKind_CONSTRAINT_KIND_UNSPECIFIED
+}
+
+func (x *ConstraintShortfall) GetLimit() float64 {
+	if x != nil {
+		return x.Limit
+	}
+	return 0
+}
+
+func (x *ConstraintShortfall) GetWorst() float64 {
+	if x != nil {
+		return x.Worst
+	}
+	return 0
+}
+
+func (x *ConstraintShortfall) GetRoadCase() string {
+	if x != nil {
+		return x.RoadCase
+	}
+	return ""
+}
+
+func (x *ConstraintShortfall) GetOver() float64 {
+	if x != nil {
+		return x.Over
+	}
+	return 0
+}
+
+func (x *ConstraintShortfall) GetViolation() float64 {
+	if x != nil {
+		return x.Violation
+	}
+	return 0
+}
+
 // Constraint is an upper limit; a solution violating it is infeasible.
 // Its violation is max(0, worst / limit - 1); for a modal-ratio band also
 // lower / ratio - 1 where that is larger.
@@ -763,7 +861,7 @@ type Constraint struct {
 
 func (x *Constraint) Reset() {
 	*x = Constraint{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[6]
+	mi := &file_dampfront_v1_design_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -775,7 +873,7 @@ func (x *Constraint) String() string {
 func (*Constraint) ProtoMessage() {}
 
 func (x *Constraint) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[6]
+	mi := &file_dampfront_v1_design_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -788,7 +886,7 @@ func (x *Constraint) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Constraint.ProtoReflect.Descriptor instead.
 func (*Constraint) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *Constraint) GetKind() ConstraintKind {
@@ -838,7 +936,7 @@ type Adjustment struct {
 
 func (x *Adjustment) Reset() {
 	*x = Adjustment{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[7]
+	mi := &file_dampfront_v1_design_proto_msgTypes[8]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -850,7 +948,7 @@ func (x *Adjustment) String() string {
 func (*Adjustment) ProtoMessage() {}
 
 func (x *Adjustment) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[7]
+	mi := &file_dampfront_v1_design_proto_msgTypes[8]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -863,7 +961,7 @@ func (x *Adjustment) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Adjustment.ProtoReflect.Descriptor instead.
 func (*Adjustment) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{7}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{8}
 }
 
 func (x *Adjustment) GetBumpSoftestRatio() float64 {
@@ -907,7 +1005,7 @@ type CurveSettings struct {
 
 func (x *CurveSettings) Reset() {
 	*x = CurveSettings{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[8]
+	mi := &file_dampfront_v1_design_proto_msgTypes[9]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -919,7 +1017,7 @@ func (x *CurveSettings) String() string {
 func (*CurveSettings) ProtoMessage() {}
 
 func (x *CurveSettings) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[8]
+	mi := &file_dampfront_v1_design_proto_msgTypes[9]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -932,7 +1030,7 @@ func (x *CurveSettings) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use CurveSettings.ProtoReflect.Descriptor instead.
 func (*CurveSettings) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{8}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{9}
 }
 
 func (x *CurveSettings) GetMaxVelocityMPerS() float64 {
@@ -986,7 +1084,14 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x04kind\x18\x01 \x01(\x0e2\x1b.dampfront.v1.ObjectiveKindR\x04kind\x12;\n" +
 	"\vaggregation\x18\x02 \x01(\x0e2\x19.dampfront.v1.AggregationR\vaggregation\x12/\n" +
 	"\x14front_target_shift_m\x18\x03 \x01(\x01R\x11frontTargetShiftM\x12-\n" +
-	"\x13rear_target_shift_m\x18\x04 \x01(\x01R\x10rearTargetShiftM\"\x96\x01\n" +
+	"\x13rear_target_shift_m\x18\x04 \x01(\x01R\x10rearTargetShiftM\"\xc2\x01\n" +
+	"\x13ConstraintShortfall\x120\n" +
+	"\x04kind\x18\x01 \x01(\x0e2\x1c.dampfront.v1.ConstraintKindR\x04kind\x12\x14\n" +
+	"\x05limit\x18\x02 \x01(\x01R\x05limit\x12\x14\n" +
+	"\x05worst\x18\x03 \x01(\x01R\x05worst\x12\x1b\n" +
+	"\troad_case\x18\x04 \x01(\tR\broadCase\x12\x12\n" +
+	"\x04over\x18\x05 \x01(\x01R\x04over\x12\x1c\n" +
+	"\tviolation\x18\x06 \x01(\x01R\tviolation\"\x96\x01\n" +
 	"\n" +
 	"Constraint\x120\n" +
 	"\x04kind\x18\x01 \x01(\x0e2\x1c.dampfront.v1.ConstraintKindR\x04kind\x12\x14\n" +
@@ -1010,11 +1115,12 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x1cOBJECTIVE_KIND_REAR_PLATFORM\x10\x04\x12\x18\n" +
 	"\x14OBJECTIVE_KIND_PITCH\x10\x05\x12\x17\n" +
 	"\x13OBJECTIVE_KIND_ROLL\x10\x06\x12\x1e\n" +
-	"\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\a*^\n" +
+	"\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\a*z\n" +
 	"\vAggregation\x12\x1b\n" +
 	"\x17AGGREGATION_UNSPECIFIED\x10\x00\x12\x1b\n" +
 	"\x17AGGREGATION_MEAN_SQUARE\x10\x01\x12\x15\n" +
-	"\x11AGGREGATION_WORST\x10\x02*\xc8\x01\n" +
+	"\x11AGGREGATION_WORST\x10\x02\x12\x1a\n" +
+	"\x16AGGREGATION_NORMALISED\x10\x03*\xc8\x01\n" +
 	"\x0eConstraintKind\x12\x1f\n" +
 	"\x1bCONSTRAINT_KIND_UNSPECIFIED\x10\x00\x12\x1c\n" +
 	"\x18CONSTRAINT_KIND_LIFT_OFF\x10\x01\x12\x1d\n" +
@@ -1045,21 +1151,22 @@ func file_dampfront_v1_design_proto_rawDescGZIP() []byte {
 }
 
 var file_dampfront_v1_design_proto_enumTypes = make([]protoimpl.EnumInfo, 4)
-var file_dampfront_v1_design_proto_msgTypes = make([]protoimpl.MessageInfo, 9)
+var file_dampfront_v1_design_proto_msgTypes = make([]protoimpl.MessageInfo, 10)
 var file_dampfront_v1_design_proto_goTypes = []any{
-	(ObjectiveKind)(0),    // 0: dampfront.v1.ObjectiveKind
-	(Aggregation)(0),      // 1: dampfront.v1.Aggregation
-	(ConstraintKind)(0),   // 2: dampfront.v1.ConstraintKind
-	(ModeName)(0),         // 3: dampfront.v1.ModeName
-	(*Range)(nil),         // 4: dampfront.v1.Range
-	(*RatioBounds)(nil),   // 5: dampfront.v1.RatioBounds
-	(*DesignSpace)(nil),   // 6: dampfront.v1.DesignSpace
-	(*AxleDamping)(nil),   // 7: dampfront.v1.AxleDamping
-	(*Setup)(nil),         // 8: dampfront.v1.Setup
-	(*Objective)(nil),     // 9: dampfront.v1.Objective
-	(*Constraint)(nil),    // 10: dampfront.v1.Constraint
-	(*Adjustment)(nil),    // 11: dampfront.v1.Adjustment
-	(*CurveSettings)(nil), // 12: dampfront.v1.CurveSettings
+	(ObjectiveKind)(0),          // 0: dampfront.v1.ObjectiveKind
+	(Aggregation)(0),            // 1: dampfront.v1.Aggregation
+	(ConstraintKind)(0),         // 2: dampfront.v1.ConstraintKind
+	(ModeName)(0),               // 3: dampfront.v1.ModeName
+	(*Range)(nil),               // 4: dampfront.v1.Range
+	(*RatioBounds)(nil),         // 5: dampfront.v1.RatioBounds
+	(*DesignSpace)(nil),         // 6: dampfront.v1.DesignSpace
+	(*AxleDamping)(nil),         // 7: dampfront.v1.AxleDamping
+	(*Setup)(nil),               // 8: dampfront.v1.Setup
+	(*Objective)(nil),           // 9: dampfront.v1.Objective
+	(*ConstraintShortfall)(nil), // 10: dampfront.v1.ConstraintShortfall
+	(*Constraint)(nil),          // 11: dampfront.v1.Constraint
+	(*Adjustment)(nil),          // 12: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),       // 13: dampfront.v1.CurveSettings
 }
 var file_dampfront_v1_design_proto_depIdxs = []int32{
 	4,  // 0: dampfront.v1.RatioBounds.front_bump:type_name -> dampfront.v1.Range
@@ -1076,13 +1183,14 @@ var file_dampfront_v1_design_proto_depIdxs = []int32{
 	7,  // 11: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
 	0,  // 12: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
 	1,  // 13: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
-	2,  // 14: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
-	3,  // 15: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
-	16, // [16:16] is the sub-list for method output_type
-	16, // [16:16] is the sub-list for method input_type
-	16, // [16:16] is the sub-list for extension type_name
-	16, // [16:16] is the sub-list for extension extendee
-	0,  // [0:16] is the sub-list for field type_name
+	2,  // 14: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
+	2,  // 15: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
+	3,  // 16: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
+	17, // [17:17] is the sub-list for method output_type
+	17, // [17:17] is the sub-list for method input_type
+	17, // [17:17] is the sub-list for extension type_name
+	17, // [17:17] is the sub-list for extension extendee
+	0,  // [0:17] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_design_proto_init() }
@@ -1096,7 +1204,7 @@ func file_dampfront_v1_design_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_design_proto_rawDesc), len(file_dampfront_v1_design_proto_rawDesc)),
 			NumEnums:      4,
-			NumMessages:   9,
+			NumMessages:   10,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

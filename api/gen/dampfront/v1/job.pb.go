@@ -304,9 +304,12 @@ type JobSpec struct {
 	// Adjuster range shown on the damper curves.
 	Adjustment *Adjustment `protobuf:"bytes,10,opt,name=adjustment,proto3" json:"adjustment,omitempty"`
 	// How the damper curves are tabulated.
-	Curves        *CurveSettings `protobuf:"bytes,11,opt,name=curves,proto3" json:"curves,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	Curves *CurveSettings `protobuf:"bytes,11,opt,name=curves,proto3" json:"curves,omitempty"`
+	// The setup that objectives with AGGREGATION_NORMALISED are taken
+	// relative to; absent means the middle of the design space's bounds.
+	ReferenceSetup *Setup `protobuf:"bytes,12,opt,name=reference_setup,json=referenceSetup,proto3" json:"reference_setup,omitempty"`
+	unknownFields  protoimpl.UnknownFields
+	sizeCache      protoimpl.SizeCache
 }
 
 func (x *JobSpec) Reset() {
@@ -416,6 +419,13 @@ func (x *JobSpec) GetCurves() *CurveSettings {
 	return nil
 }
 
+func (x *JobSpec) GetReferenceSetup() *Setup {
+	if x != nil {
+		return x.ReferenceSetup
+	}
+	return nil
+}
+
 // Job is one optimisation run, a resource named "jobs/{job_id}".
 type Job struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -449,7 +459,15 @@ type Job struct {
 	Spec *JobSpec `protobuf:"bytes,14,opt,name=spec,proto3" json:"spec,omitempty"`
 	// Progress after every generation up to the last checkpoint, oldest
 	// first (JOB_VIEW_FULL in GetJob only): the hypervolume history.
-	History       []*Progress `protobuf:"bytes,15,rep,name=history,proto3" json:"history,omitempty"`
+	History []*Progress `protobuf:"bytes,15,rep,name=history,proto3" json:"history,omitempty"`
+	// No setup seen so far meets every constraint: the front holds the least
+	// violating setups instead (by constrained domination), each infeasible,
+	// and a succeeded job ended so. Set once the search has evaluated.
+	Infeasible bool `protobuf:"varint,16,opt,name=infeasible,proto3" json:"infeasible,omitempty"`
+	// When infeasible (GetJob and the final WatchJob message): per violated
+	// constraint, in the job's order, the smallest shortfall among the front's
+	// setups, with its road case.
+	Closest       []*ConstraintShortfall `protobuf:"bytes,17,rep,name=closest,proto3" json:"closest,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -589,6 +607,20 @@ func (x *Job) GetHistory() []*Progress {
 	return nil
 }
 
+func (x *Job) GetInfeasible() bool {
+	if x != nil {
+		return x.Infeasible
+	}
+	return false
+}
+
+func (x *Job) GetClosest() []*ConstraintShortfall {
+	if x != nil {
+		return x.Closest
+	}
+	return nil
+}
+
 // Progress is the state of a search after a generation.
 type Progress struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -703,7 +735,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\x8a\x05\n" +
+	"\r_mutation_eta\"\xc8\x05\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -721,10 +753,11 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"adjustment\x18\n" +
 	" \x01(\v2\x18.dampfront.v1.AdjustmentR\n" +
 	"adjustment\x123\n" +
-	"\x06curves\x18\v \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curves\x1a9\n" +
+	"\x06curves\x18\v \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curves\x12<\n" +
+	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xb7\x05\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\x94\x06\n" +
 	"\x03Job\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12\x15\n" +
 	"\x06job_id\x18\x02 \x01(\tR\x05jobId\x12!\n" +
@@ -744,7 +777,11 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\apartial\x18\f \x01(\bR\apartial\x12)\n" +
 	"\x10cancel_requested\x18\r \x01(\bR\x0fcancelRequested\x12)\n" +
 	"\x04spec\x18\x0e \x01(\v2\x15.dampfront.v1.JobSpecR\x04spec\x120\n" +
-	"\ahistory\x18\x0f \x03(\v2\x16.dampfront.v1.ProgressR\ahistory\x1a9\n" +
+	"\ahistory\x18\x0f \x03(\v2\x16.dampfront.v1.ProgressR\ahistory\x12\x1e\n" +
+	"\n" +
+	"infeasible\x18\x10 \x01(\bR\n" +
+	"infeasible\x12;\n" +
+	"\aclosest\x18\x11 \x03(\v2!.dampfront.v1.ConstraintShortfallR\aclosest\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x01\n" +
@@ -801,7 +838,9 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Constraint)(nil),            // 13: dampfront.v1.Constraint
 	(*Adjustment)(nil),            // 14: dampfront.v1.Adjustment
 	(*CurveSettings)(nil),         // 15: dampfront.v1.CurveSettings
-	(*timestamppb.Timestamp)(nil), // 16: google.protobuf.Timestamp
+	(*Setup)(nil),                 // 16: dampfront.v1.Setup
+	(*timestamppb.Timestamp)(nil), // 17: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 18: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	6,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -814,20 +853,22 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	2,  // 7: dampfront.v1.JobSpec.search:type_name -> dampfront.v1.SearchSettings
 	14, // 8: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
 	15, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
-	0,  // 10: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	7,  // 11: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	16, // 12: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	16, // 13: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	16, // 14: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	5,  // 15: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 16: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	5,  // 17: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	16, // 18: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	19, // [19:19] is the sub-list for method output_type
-	19, // [19:19] is the sub-list for method input_type
-	19, // [19:19] is the sub-list for extension type_name
-	19, // [19:19] is the sub-list for extension extendee
-	0,  // [0:19] is the sub-list for field type_name
+	16, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
+	0,  // 11: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	7,  // 12: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	17, // 13: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	17, // 14: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	17, // 15: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	5,  // 16: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 17: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	5,  // 18: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	18, // 19: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	17, // 20: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	21, // [21:21] is the sub-list for method output_type
+	21, // [21:21] is the sub-list for method input_type
+	21, // [21:21] is the sub-list for extension type_name
+	21, // [21:21] is the sub-list for extension extendee
+	0,  // [0:21] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }

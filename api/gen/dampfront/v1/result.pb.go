@@ -159,7 +159,10 @@ type Solution struct {
 	// Damper force-velocity curves at the component, per corner (absent in SOLUTION_VIEW_BASIC).
 	DamperCurves []*DamperCurve `protobuf:"bytes,9,rep,name=damper_curves,json=damperCurves,proto3" json:"damper_curves,omitempty"`
 	// Where the linear model is stretched (lift-off, bump-stop contact).
-	Warnings      []string `protobuf:"bytes,10,rep,name=warnings,proto3" json:"warnings,omitempty"`
+	Warnings []string `protobuf:"bytes,10,rep,name=warnings,proto3" json:"warnings,omitempty"`
+	// Every violated constraint, in the job's order, with its worst value and
+	// road case; empty when every constraint is met.
+	Shortfalls    []*ConstraintShortfall `protobuf:"bytes,11,rep,name=shortfalls,proto3" json:"shortfalls,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -260,6 +263,13 @@ func (x *Solution) GetDamperCurves() []*DamperCurve {
 func (x *Solution) GetWarnings() []string {
 	if x != nil {
 		return x.Warnings
+	}
+	return nil
+}
+
+func (x *Solution) GetShortfalls() []*ConstraintShortfall {
+	if x != nil {
+		return x.Shortfalls
 	}
 	return nil
 }
@@ -1122,7 +1132,7 @@ var File_dampfront_v1_result_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\n" +
-	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\"\x84\x03\n" +
+	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\"\xc7\x03\n" +
 	"\bSolution\x12\x14\n" +
 	"\x05index\x18\x01 \x01(\x05R\x05index\x12\x14\n" +
 	"\x05genes\x18\x02 \x03(\x01R\x05genes\x12)\n" +
@@ -1138,7 +1148,10 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\fcase_metrics\x18\b \x03(\v2\x19.dampfront.v1.CaseMetricsR\vcaseMetrics\x12>\n" +
 	"\rdamper_curves\x18\t \x03(\v2\x19.dampfront.v1.DamperCurveR\fdamperCurves\x12\x1a\n" +
 	"\bwarnings\x18\n" +
-	" \x03(\tR\bwarnings\"\xff\x03\n" +
+	" \x03(\tR\bwarnings\x12A\n" +
+	"\n" +
+	"shortfalls\x18\v \x03(\v2!.dampfront.v1.ConstraintShortfallR\n" +
+	"shortfalls\"\xff\x03\n" +
 	"\vCaseMetrics\x12\x1b\n" +
 	"\troad_case\x18\x01 \x01(\tR\broadCase\x125\n" +
 	"\acorners\x18\x02 \x03(\v2\x1b.dampfront.v1.CornerMetricsR\acorners\x12/\n" +
@@ -1249,39 +1262,41 @@ func file_dampfront_v1_result_proto_rawDescGZIP() []byte {
 var file_dampfront_v1_result_proto_enumTypes = make([]protoimpl.EnumInfo, 2)
 var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 8)
 var file_dampfront_v1_result_proto_goTypes = []any{
-	(SolutionView)(0),      // 0: dampfront.v1.SolutionView
-	(CornerPosition)(0),    // 1: dampfront.v1.CornerPosition
-	(*Solution)(nil),       // 2: dampfront.v1.Solution
-	(*CaseMetrics)(nil),    // 3: dampfront.v1.CaseMetrics
-	(*OperatingPoint)(nil), // 4: dampfront.v1.OperatingPoint
-	(*CornerMetrics)(nil),  // 5: dampfront.v1.CornerMetrics
-	(*AxleMetrics)(nil),    // 6: dampfront.v1.AxleMetrics
-	(*Mode)(nil),           // 7: dampfront.v1.Mode
-	(*DamperCurve)(nil),    // 8: dampfront.v1.DamperCurve
-	(*Front)(nil),          // 9: dampfront.v1.Front
-	(*Setup)(nil),          // 10: dampfront.v1.Setup
-	(*Objective)(nil),      // 11: dampfront.v1.Objective
-	(*Constraint)(nil),     // 12: dampfront.v1.Constraint
+	(SolutionView)(0),           // 0: dampfront.v1.SolutionView
+	(CornerPosition)(0),         // 1: dampfront.v1.CornerPosition
+	(*Solution)(nil),            // 2: dampfront.v1.Solution
+	(*CaseMetrics)(nil),         // 3: dampfront.v1.CaseMetrics
+	(*OperatingPoint)(nil),      // 4: dampfront.v1.OperatingPoint
+	(*CornerMetrics)(nil),       // 5: dampfront.v1.CornerMetrics
+	(*AxleMetrics)(nil),         // 6: dampfront.v1.AxleMetrics
+	(*Mode)(nil),                // 7: dampfront.v1.Mode
+	(*DamperCurve)(nil),         // 8: dampfront.v1.DamperCurve
+	(*Front)(nil),               // 9: dampfront.v1.Front
+	(*Setup)(nil),               // 10: dampfront.v1.Setup
+	(*ConstraintShortfall)(nil), // 11: dampfront.v1.ConstraintShortfall
+	(*Objective)(nil),           // 12: dampfront.v1.Objective
+	(*Constraint)(nil),          // 13: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
 	10, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
 	3,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
 	8,  // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
-	5,  // 3: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	6,  // 4: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	6,  // 5: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	7,  // 6: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	4,  // 7: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
-	1,  // 8: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 9: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	11, // 10: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	12, // 11: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 12: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	13, // [13:13] is the sub-list for method output_type
-	13, // [13:13] is the sub-list for method input_type
-	13, // [13:13] is the sub-list for extension type_name
-	13, // [13:13] is the sub-list for extension extendee
-	0,  // [0:13] is the sub-list for field type_name
+	11, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 4: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	6,  // 5: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	6,  // 6: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	7,  // 7: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	4,  // 8: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	1,  // 9: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 10: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
+	12, // 11: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	13, // 12: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	2,  // 13: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	14, // [14:14] is the sub-list for method output_type
+	14, // [14:14] is the sub-list for method input_type
+	14, // [14:14] is the sub-list for extension type_name
+	14, // [14:14] is the sub-list for extension extendee
+	0,  // [0:14] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }

@@ -1,0 +1,241 @@
+package study
+
+import (
+	"errors"
+	"fmt"
+	"strings"
+	"unicode"
+
+	"dampfront/model"
+	"dampfront/optimizer"
+)
+
+// Checked is a spec with its defaults filled in that has passed every
+// check that needs no compiling: what Size counts and Compile builds.
+type Checked struct {
+	spec     *Spec
+	design   model.DesignSpace
+	settings optimizer.Settings // Workers 1, no Progress
+}
+
+// Check fills in the defaults of s and checks all of it at once: the
+// display name, the vehicle, every road case, the grid, the design space, the objectives
+// and constraints, the base setup, the adjustment and curve settings, and
+// the search settings. Every problem found comes back in one
+// *model.ValidationError (paths as in the package doc). What Check does
+// not know is the car's stability at each speed: Compile finds that.
+//
+// Check does work in proportion to the size of s (its road cases and
+// tables) and never compiles; see Size for what compiling will cost.
+func Check(s *Spec) (*Checked, error) {
+	spec := WithDefaults(s)
+	c := &Checked{spec: spec, design: spec.Design.model()}
+	var p problems
+	if why := model.TextProblem(spec.DisplayName); why != "" {
+		p.add("display_name", "%s", why)
+	}
+	p.merge("vehicle.", spec.Vehicle.Validate())
+	if len(spec.RoadCases) == 0 {
+		p.add("road_cases", "needs at least one road case")
+	}
+	for i := range spec.RoadCases {
+		p.merge(fmt.Sprintf("road_cases[%d].", i), spec.RoadCases[i].Validate())
+	}
+	p.merge("grid.", spec.Grid.Validate())
+	p.mergeMapped(problemPath, model.ValidateProblem(c.design, spec.Objectives, spec.Constraints))
+	// The base setup with valid placeholder ratios, which are genes.
+	base := c.design.Base
+	for ax := range base.Axles {
+		base.Axles[ax].BumpRatio, base.Axles[ax].ReboundRatio = 1, 1
+	}
+	p.merge("design_space.base.", base.Validate())
+	p.merge("adjustment.", spec.Adjustment.Validate())
+	p.merge("curves.", model.ValidateCurveRange(spec.Curves.MaxVelocity, spec.Curves.Points))
+	c.settings = searchSettings(&spec.Search)
+	p.mergeMapped(settingsPath, c.settings.Validate(len(spec.Objectives)))
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	return c, nil
+}
+
+// Spec returns the spec with its defaults filled in. It must not be
+// changed.
+func (c *Checked) Spec() *Spec { return c.spec }
+
+// Size is the work a checked spec asks for, counted without compiling.
+type Size struct {
+	// Cases is the number of road cases.
+	Cases int
+	// GridPoints is the number of frequencies of each evaluation.
+	GridPoints int
+	// Work is population × islands × generations × road cases, the number
+	// of case evaluations the search makes (to within its initial
+	// population), saturating at the largest int64.
+	Work int64
+}
+
+// Size counts the work of the checked spec.
+func (c *Checked) Size() Size {
+	q := &c.spec.Search
+	work := int64(1)
+	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations, len(c.spec.RoadCases)} {
+		work = mulSat(work, int64(n))
+	}
+	return Size{Cases: len(c.spec.RoadCases), GridPoints: c.spec.Grid.Points, Work: work}
+}
+
+// mulSat is a×b for a, b >= 0, or the largest int64 when that overflows.
+func mulSat(a, b int64) int64 {
+	const maxInt64 = 1<<63 - 1
+	if a != 0 && b > maxInt64/a {
+		return maxInt64
+	}
+	return a * b
+}
+
+// searchSettings converts search settings with defaults filled in. A
+// migrant count without migration has no effect and is stored as 0 in
+// the optimiser's checkpoint.
+func searchSettings(q *Search) optimizer.Settings {
+	s := optimizer.Settings{
+		PopulationSize:       q.PopulationSize,
+		Generations:          q.Generations,
+		Seed:                 *q.Seed,
+		Islands:              q.Islands,
+		MigrationEvery:       q.MigrationEvery,
+		Migrants:             q.Migrants,
+		CrossoverProbability: *q.CrossoverProbability,
+		CrossoverEta:         *q.CrossoverEta,
+		MutationProbability:  *q.MutationProbability,
+		MutationEta:          *q.MutationEta,
+		ReferencePoint:       q.ReferencePoint,
+		Workers:              1,
+	}
+	if !(s.Islands > 1 && s.MigrationEvery > 0) {
+		s.Migrants = 0
+	}
+	return s
+}
+
+// problemPath maps the paths of model.ValidateProblem to the spec's: its
+// design space is "design_space".
+func problemPath(p string) string {
+	if rest, ok := strings.CutPrefix(p, "design."); ok {
+		return "design_space." + rest
+	}
+	return p
+}
+
+// settingsPath maps an optimizer *FieldError path, which names Go fields
+// ("Settings.PopulationSize", "Settings.ReferencePoint[1]",
+// "Problem.Bounds[2]"), to the spec's: search settings live in "search",
+// the gene bounds come from "design_space".
+func settingsPath(p string) string {
+	switch {
+	case strings.HasPrefix(p, "Settings."):
+		return "search." + snake(strings.TrimPrefix(p, "Settings."))
+	case strings.HasPrefix(p, "Problem"):
+		return "design_space"
+	}
+	return snake(p)
+}
+
+// snake turns Go's CamelCase names into lower_snake_case, leaving index
+// suffixes alone: "ReferencePoint[1]" -> "reference_point[1]".
+func snake(s string) string {
+	var b strings.Builder
+	for i, r := range s {
+		if unicode.IsUpper(r) {
+			if i > 0 && s[i-1] != '.' && s[i-1] != '[' {
+				b.WriteByte('_')
+			}
+			b.WriteRune(unicode.ToLower(r))
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// problems collects the field problems of a spec.
+type problems []model.FieldError
+
+func (p *problems) add(field, format string, args ...any) {
+	*p = append(*p, model.FieldError{Field: field, Reason: fmt.Sprintf(format, args...)})
+}
+
+// merge adds the problems of a model *ValidationError under prefix;
+// another error is added at the prefix itself.
+func (p *problems) merge(prefix string, err error) {
+	p.mergeMapped(func(f string) string { return prefix + f }, err)
+}
+
+// mergeMapped adds the problems of err with their paths mapped: a model
+// *ValidationError's, every optimizer *FieldError's it wraps, or err
+// itself at path(""), trimmed of a trailing dot.
+func (p *problems) mergeMapped(path func(string) string, err error) {
+	if err == nil {
+		return
+	}
+	var ve *model.ValidationError
+	if errors.As(err, &ve) {
+		for _, q := range ve.Problems {
+			*p = append(*p, model.FieldError{Field: path(q.Field), Reason: q.Reason})
+		}
+		return
+	}
+	if fes := fieldErrors(err); len(fes) > 0 {
+		for _, fe := range fes {
+			*p = append(*p, model.FieldError{Field: path(fe.Field), Reason: fe.Msg})
+		}
+		return
+	}
+	p.add(strings.TrimSuffix(path(""), "."), "%v", err)
+}
+
+// fieldErrors lists the optimizer *FieldErrors in err (one, or those an
+// errors.Join holds).
+func fieldErrors(err error) []*optimizer.FieldError {
+	var out []*optimizer.FieldError
+	var fe *optimizer.FieldError
+	if j, ok := err.(interface{ Unwrap() []error }); ok {
+		for _, e := range j.Unwrap() {
+			out = append(out, fieldErrors(e)...)
+		}
+	} else if errors.As(err, &fe) {
+		out = append(out, fe)
+	}
+	return out
+}
+
+func (p problems) err() error {
+	if len(p) == 0 {
+		return nil
+	}
+	return &model.ValidationError{Problems: p}
+}
+
+// History returns the progress of every generation recorded in a
+// checkpoint of the checked spec's run, read back without compiling the
+// spec: restoring a search needs only the problem's shape.
+func (c *Checked) History(checkpoint []byte) ([]optimizer.Progress, error) {
+	s, err := optimizer.Restore(shapeOnly{c}, c.settings, checkpoint)
+	if err != nil {
+		return nil, err
+	}
+	return s.History(), nil
+}
+
+// shapeOnly is the shape of a checked spec's problem (genes, objectives,
+// constraints) with no evaluator behind it.
+type shapeOnly struct{ c *Checked }
+
+func (q shapeOnly) Bounds() []optimizer.Bound { return bounds(q.c.design.Genes()) }
+
+func (q shapeOnly) NumObjectives() int  { return len(q.c.spec.Objectives) }
+func (q shapeOnly) NumConstraints() int { return len(q.c.spec.Constraints) }
+
+func (q shapeOnly) Evaluate(x, obj, viol []float64) error {
+	return errors.New("study: the spec is not compiled; open its run to evaluate")
+}

@@ -1,0 +1,222 @@
+package study
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/binary"
+	"math"
+	"runtime"
+	"sync"
+
+	"dampfront/jobs"
+	"dampfront/optimizer"
+)
+
+// Codec reads and writes the bytes the job engine stores for a study: the
+// spec (with its defaults filled in) and the detail of each front member.
+// The API gives the encoding in use, so that jobs stored by any version
+// keep their meaning.
+type Codec interface {
+	DecodeSpec(b []byte) (*Spec, error)
+	EncodeSolution(s *Solution) ([]byte, error)
+}
+
+// Opener opens the job engine's runs from stored specs and checkpoints:
+// each Open decodes the spec, compiles it once and makes the optimiser's
+// search, fresh or restored from the checkpoint. It implements
+// jobs.RunOpener.
+type Opener struct {
+	// Codec decodes stored specs and encodes solution details; required.
+	Codec Codec
+	// Workers is the number of evaluations a run makes at once; 0 means
+	// GOMAXPROCS. The front does not depend on it.
+	Workers int
+	// OnCompile, when set, is called once for every spec Open compiles.
+	OnCompile func()
+
+	// details keeps the encoded details of front members across the runs
+	// this opener makes, so that a job resumed in its next slice does not
+	// evaluate its whole front again.
+	details detailCache
+}
+
+var (
+	_ jobs.RunOpener = (*Opener)(nil)
+	_ jobs.Run       = (*run)(nil)
+)
+
+// Open returns the run of a stored spec, fresh when checkpoint is nil and
+// restored from it otherwise.
+func (o *Opener) Open(spec, checkpoint []byte) (jobs.Run, error) {
+	s, err := o.Codec.DecodeSpec(spec)
+	if err != nil {
+		return nil, err
+	}
+	if o.OnCompile != nil {
+		o.OnCompile()
+	}
+	pl, err := Compile(context.Background(), s)
+	if err != nil {
+		return nil, err
+	}
+	r, err := OpenRun(pl, o.workers(), checkpoint)
+	if err != nil {
+		return nil, err
+	}
+	r.codec, r.cache, r.specKey = o.Codec, &o.details, specKey(spec)
+	return r, nil
+}
+
+func (o *Opener) workers() int {
+	if o.Workers > 0 {
+		return o.Workers
+	}
+	return runtime.GOMAXPROCS(0)
+}
+
+// OpenRun makes the search of a plan, restored from checkpoint unless it
+// is nil. Its Front needs a codec: use Opener.Open for the engine's runs.
+func OpenRun(pl *Plan, workers int, checkpoint []byte) (*run, error) {
+	r := &run{plan: pl}
+	settings := pl.Settings(workers, r.record)
+	var err error
+	if checkpoint == nil {
+		r.search, err = optimizer.New(pl.SearchProblem(), settings)
+	} else {
+		r.search, err = optimizer.Restore(pl.SearchProblem(), settings, checkpoint)
+	}
+	if err != nil {
+		return nil, err
+	}
+	if h := r.search.History(); len(h) > 0 {
+		r.last = h[len(h)-1]
+	}
+	return r, nil
+}
+
+// run is one job's search as the engine drives it.
+type run struct {
+	plan   *Plan
+	search *optimizer.Search
+	codec  Codec
+
+	mu   sync.Mutex
+	last optimizer.Progress // after the last completed generation
+
+	// cache holds the encoded details of front members by spec and genes:
+	// a member's detail never changes, and the front is asked for at
+	// every checkpoint. nil caches nothing.
+	cache   *detailCache
+	specKey string
+}
+
+// record is the optimiser's progress callback.
+func (r *run) record(p optimizer.Progress) {
+	r.mu.Lock()
+	r.last = p
+	r.mu.Unlock()
+}
+
+func (r *run) Step(ctx context.Context, maxGenerations int) (bool, error) {
+	return r.search.Step(ctx, maxGenerations)
+}
+
+func (r *run) Checkpoint() ([]byte, error) { return r.search.Checkpoint() }
+
+func (r *run) Progress() jobs.Progress {
+	r.mu.Lock()
+	p := r.last
+	r.mu.Unlock()
+	return jobs.Progress{
+		Generation:  p.Generation,
+		Generations: r.plan.settings.Generations,
+		Evaluations: int64(p.Evaluations),
+		Hypervolume: p.Hypervolume,
+		Best:        append([]float64(nil), p.Best...),
+	}
+}
+
+// Front returns the optimiser's archive with each member's detail (see
+// Solution), encoded by the codec. Genes, objectives and violations are
+// the optimiser's, bit for bit.
+func (r *run) Front() ([]jobs.Solution, error) {
+	front := r.search.Front()
+	out := make([]jobs.Solution, len(front))
+	for i, s := range front {
+		key := r.specKey + geneKey(s.Genes)
+		detail, ok := r.cache.get(key)
+		if !ok {
+			var err error
+			if detail, err = r.codec.EncodeSolution(r.detail(s)); err != nil {
+				return nil, err
+			}
+			r.cache.put(key, detail)
+		}
+		out[i] = jobs.Solution{Index: i, Genes: s.Genes, Objectives: s.Objectives, Violations: s.Violations, Feasible: s.Feasible, Detail: detail}
+	}
+	return out, nil
+}
+
+// detail evaluates a front member in full.
+func (r *run) detail(s optimizer.Solution) *Solution {
+	sol := r.plan.Evaluate(r.plan.problem.Design().Decode(s.Genes))
+	// The optimiser's values are the stored ones; a fresh evaluation
+	// gives the same bits, and this keeps it so by construction.
+	sol.Genes, sol.Objectives, sol.Violations, sol.Feasible = s.Genes, s.Objectives, s.Violations, s.Feasible
+	if s.Feasible {
+		sol.InfeasibleReason = ""
+	} else if s.Reason != "" {
+		sol.InfeasibleReason = s.Reason
+	}
+	return sol
+}
+
+// geneKey identifies a gene vector by its bits.
+func geneKey(x []float64) string {
+	b := make([]byte, 8*len(x))
+	for i, v := range x {
+		binary.LittleEndian.PutUint64(b[8*i:], math.Float64bits(v))
+	}
+	return string(b)
+}
+
+// specKey identifies spec bytes in the detail cache.
+func specKey(spec []byte) string {
+	h := sha256.Sum256(spec)
+	return string(h[:])
+}
+
+// maxCachedDetails bounds the detail cache: about 10 kB each with the
+// default curve tabulation, so some 20 MB at most.
+const maxCachedDetails = 2048
+
+// detailCache maps spec and genes to an encoded solution detail. It is
+// safe for concurrent use; a nil *detailCache caches nothing. When full
+// it is emptied: the members of the fronts being run come back at the
+// next checkpoint.
+type detailCache struct {
+	mu sync.Mutex
+	m  map[string][]byte
+}
+
+func (c *detailCache) get(key string) ([]byte, bool) {
+	if c == nil {
+		return nil, false
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	b, ok := c.m[key]
+	return b, ok
+}
+
+func (c *detailCache) put(key string, b []byte) {
+	if c == nil {
+		return
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if c.m == nil || len(c.m) >= maxCachedDetails {
+		c.m = make(map[string][]byte)
+	}
+	c.m[key] = b
+}

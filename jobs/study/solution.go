@@ -1,0 +1,100 @@
+package study
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"dampfront/model"
+)
+
+// Solution is everything a solution reports: its genes and setup, the
+// objectives and constraint violations as the search scores them, the
+// metrics on every road case with the modes at its speed, the damper
+// curves at the component, and the validity warnings.
+type Solution struct {
+	Genes      []float64
+	Setup      model.Setup
+	Objectives []float64 // nil when the model cannot evaluate the setup
+	Violations []float64
+	Feasible   bool
+	// InfeasibleReason says why a solution is not feasible: every
+	// violated constraint, or why the model could not evaluate it.
+	InfeasibleReason string
+	Cases            []CaseDetail
+	Curves           []model.DamperCurve // nil when they cannot be drawn (see Warnings)
+	Warnings         []string            // every case's warnings, then the curves'
+}
+
+// CaseDetail is one road case of a solution.
+type CaseDetail struct {
+	Metrics  model.CaseMetrics
+	Modes    []model.Mode // at the case's speed
+	Warnings []string     // above the evaluator's threshold, and a failed modal analysis
+}
+
+// Evaluate computes everything a solution reports for setup s. A setup
+// the model cannot evaluate (no fixed point, an unstable system) gives an
+// infeasible solution with the reason, not an error.
+func (pl *Plan) Evaluate(s model.Setup) *Solution {
+	sol := &Solution{Genes: pl.problem.Design().Encode(s), Setup: s}
+	var r model.Result
+	if err := pl.eval.Evaluate(s, &r); err != nil {
+		sol.InfeasibleReason = "evaluation failed: " + err.Error()
+		return sol
+	}
+	sol.Objectives = make([]float64, pl.problem.NumObjectives())
+	sol.Violations = make([]float64, pl.problem.NumConstraints())
+	pl.problem.Score(&r, sol.Objectives, sol.Violations)
+	sol.Feasible, sol.InfeasibleReason = pl.feasibility(sol.Objectives, sol.Violations)
+	pl.describe(sol, s, &r)
+	return sol
+}
+
+// describe adds the metrics, modes, curves and warnings of an evaluated
+// result to sol.
+func (pl *Plan) describe(sol *Solution, s model.Setup, r *model.Result) {
+	v := pl.eval.Vehicle()
+	threshold := pl.eval.WarnThreshold()
+	for i := range r.Cases {
+		modes, err := model.ModesAt(v, pl.eval.Case(i).Speed, r.Cases[i].EquivalentDamping)
+		c := CaseDetail{Metrics: r.Cases[i], Modes: modes, Warnings: r.Cases[i].WarningStrings(threshold)}
+		if err != nil {
+			c.Warnings = append(c.Warnings, fmt.Sprintf("%s: modal analysis failed: %v", r.Cases[i].Case, err))
+		}
+		sol.Cases = append(sol.Cases, c)
+		sol.Warnings = append(sol.Warnings, c.Warnings...)
+	}
+	curves, err := pl.Curves(s, nil, nil)
+	if err != nil {
+		sol.Warnings = append(sol.Warnings, "damper curves: "+err.Error())
+		return
+	}
+	sol.Curves = curves
+}
+
+// feasibility says whether objectives and violations make a feasible
+// solution, and if not, why: every violated constraint with its
+// violation max(0, worst/limit - 1).
+func (pl *Plan) feasibility(obj, viol []float64) (bool, string) {
+	var why []string
+	for j, f := range obj {
+		if math.IsNaN(f) || math.IsInf(f, 0) {
+			why = append(why, fmt.Sprintf("objective %s is %g", pl.problem.Objectives()[j].Kind, f))
+		}
+	}
+	cons := pl.problem.Constraints()
+	for j, x := range viol {
+		switch {
+		case !(x > 0 || math.IsNaN(x)):
+		case cons[j].Kind == model.ConstraintModalRatio:
+			why = append(why, fmt.Sprintf("%s leaves its band [%g, %g] by %.3g%%", cons[j], cons[j].Lower, cons[j].Limit, 100*x))
+		default:
+			why = append(why, fmt.Sprintf("%s exceeds its limit %g by %.3g%%", cons[j].Kind, cons[j].Limit, 100*x))
+		}
+	}
+	if len(why) == 0 {
+		return true, ""
+	}
+	return false, strings.Join(why, "; ")
+}

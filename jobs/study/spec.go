@@ -1,0 +1,62 @@
+package study
+
+import "dampfront/model"
+
+// Spec is a job: the car, its road cases, what is searched and how. Zero
+// and nil fields take the defaults of WithDefaults; a stored spec has
+// them filled in, so that it keeps its meaning when a default changes.
+type Spec struct {
+	DisplayName string            // free text naming the job
+	Labels      map[string]string // for filtering; checked by the job engine
+	Vehicle     model.Vehicle
+	RoadCases   []model.RoadCase // weight 0 means 1
+	Grid        model.Grid       // zero fields take model.DefaultGrid's
+	Design      Design
+	Objectives  []model.Objective // empty means DefaultObjectives
+	Constraints []model.Constraint
+	Adjustment  model.Adjustment // adjuster range shown on the damper curves
+	Curves      Curves
+	Search      Search
+}
+
+// Design is the design space as a spec gives it: model.DesignSpace with
+// a nil for every range or base axle left to its default.
+type Design struct {
+	// Ratios bounds front bump, front rebound, rear bump and rear rebound
+	// damping ratios (-); nil is [DefaultRatioMin, DefaultRatioMax].
+	Ratios [4]*model.Range
+	// Symmetric makes bump = rebound per axle (two ratio genes).
+	Symmetric bool
+	// Knee and HighSpeed, per axle, search a knee velocity at the damper
+	// (m/s) and a high-speed factor (-); nil keeps the base's.
+	Knee, HighSpeed [2]*model.Range
+	// Base gives every value that is not a gene, per axle; nil is
+	// DefaultAxle. Its ratios are genes and never used.
+	Base [2]*model.AxleDamping
+}
+
+// Curves is how the damper curves of a solution are tabulated.
+type Curves struct {
+	MaxVelocity float64 // m/s at the damper; 0 means DefaultCurveMaxVelocity
+	Points      int     // 0 means DefaultCurvePoints
+}
+
+// Search is the optimiser's settings as a spec gives them (see
+// optimizer.Settings for each); zero or nil takes the default.
+type Search struct {
+	PopulationSize int
+	Generations    int
+	Seed           *uint64
+	Islands        int
+	MigrationEvery int
+	Migrants       int // 0 with migration means max(1, PopulationSize/8)
+
+	CrossoverProbability *float64
+	CrossoverEta         *float64
+	MutationProbability  *float64 // nil means 1/genes
+	MutationEta          *float64
+
+	// ReferencePoint is the hypervolume reference point, one value per
+	// objective in its SI unit; nil lets the search fix its own.
+	ReferencePoint []float64
+}
