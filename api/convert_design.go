@@ -133,6 +133,16 @@ func objectiveToProto(o model.Objective) *pb.Objective {
 	return out
 }
 
+// constraintKindToProto is the API's kind of a model's constraint kind.
+func constraintKindToProto(k model.ConstraintKind) pb.ConstraintKind {
+	for pk, mk := range constraintKinds {
+		if mk == k {
+			return pk
+		}
+	}
+	return pb.ConstraintKind_CONSTRAINT_KIND_UNSPECIFIED
+}
+
 // constraintsFromProto converts the constraints under path
 // ("spec.constraints"), recording kinds out of range; the limits are the
 // study's to check.

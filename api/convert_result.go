@@ -24,7 +24,17 @@ func solutionToProto(s *study.Solution) *pb.Solution {
 	if s.Curves != nil {
 		out.DamperCurves = damperCurvesToProto(s.Curves)
 	}
+	for _, sf := range s.Shortfalls {
+		out.Shortfalls = append(out.Shortfalls, shortfallToProto(sf, s.Cases[sf.Case].Metrics.Case))
+	}
 	return out
+}
+
+// shortfallToProto converts a violated constraint's shortfall, reached on
+// the named road case.
+func shortfallToProto(sf model.Shortfall, roadCase string) *pb.ConstraintShortfall {
+	return &pb.ConstraintShortfall{Kind: constraintKindToProto(sf.Constraint.Kind), Limit: sf.Constraint.Limit,
+		Worst: sf.Worst, RoadCase: roadCase, Over: sf.Over, Violation: sf.Violation}
 }
 
 // caseMetricsToProto converts one road case's metrics, with the modes at

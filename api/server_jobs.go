@@ -87,6 +87,9 @@ func (s *Server) GetJob(ctx context.Context, req *pb.GetJobRequest) (*pb.GetJobR
 	if err != nil {
 		return nil, toStatus(err, nil)
 	}
+	if err := s.markInfeasible(ctx, job); err != nil {
+		return nil, toStatus(err, nil)
+	}
 	if full {
 		if job.History, err = s.history(ctx, j); err != nil {
 			return nil, toStatus(err, nil)
@@ -170,6 +173,9 @@ func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingSe
 		if j.State.Terminal() {
 			job, err := jobToProto(j, false)
 			if err != nil {
+				return toStatus(err, nil)
+			}
+			if err := s.markInfeasible(ctx, job); err != nil {
 				return toStatus(err, nil)
 			}
 			return stream.Send(&pb.WatchJobResponse{Event: &pb.WatchJobResponse_Job{Job: job}})

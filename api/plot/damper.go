@@ -73,21 +73,11 @@ func DamperCurves(curves []*pb.DamperCurve, opt CurveOptions) (*Figure, error) {
 		p.Y.Min, p.Y.Max = fmin, fmax
 		panels = append(panels, p)
 	}
-	w, h := opt.Width, opt.Height
-	if w == 0 {
-		w = 24 * vg.Centimeter
-		if len(panels) == 1 {
-			w = 15 * vg.Centimeter
-		}
+	def := page{title: "Damper curves at the component", width: 24 * vg.Centimeter, height: 11 * vg.Centimeter}
+	if len(panels) == 1 {
+		def.width = 15 * vg.Centimeter
 	}
-	if h == 0 {
-		h = 11 * vg.Centimeter
-	}
-	title := opt.Title
-	if title == "" {
-		title = "Damper curves at the component"
-	}
-	fig := newFigure(w, h, title, panels...)
+	fig := def.or(opt.Title, opt.Width, opt.Height).figure(panels...)
 	fig.Notes = []string{"At the damper, not the wheel: damper velocity = motion ratio × wheel velocity, " +
 		"damper force = wheel force / motion ratio. Rebound velocities and forces are negative."}
 	return fig, nil

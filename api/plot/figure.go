@@ -82,6 +82,33 @@ func newFigure(w, h vg.Length, title string, panels ...*plot.Plot) *Figure {
 	return &Figure{Width: w, Height: h, Title: title, Panels: [][]*plot.Plot{panels}}
 }
 
+// page is a chart's title and page size: the caller's where given, the
+// chart's own defaults where not (an empty title, a zero length).
+type page struct {
+	title         string
+	width, height vg.Length
+}
+
+// or is p with each of title, width and height that is set taking the
+// place of p's.
+func (p page) or(title string, width, height vg.Length) page {
+	if title != "" {
+		p.title = title
+	}
+	if width != 0 {
+		p.width = width
+	}
+	if height != 0 {
+		p.height = height
+	}
+	return p
+}
+
+// figure is a figure of one row of panels on p.
+func (p page) figure(panels ...*plot.Plot) *Figure {
+	return newFigure(p.width, p.height, p.title, panels...)
+}
+
 // Write renders the figure in a format to w.
 func (f *Figure) Write(w io.Writer, format Format) error {
 	switch format {

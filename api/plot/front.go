@@ -83,24 +83,14 @@ func Front(f *pb.Front, opt FrontOptions) (*Figure, error) {
 			leg = l
 		}
 	}
-	w, h := opt.Width, opt.Height
-	if w == 0 {
-		w = 17 * vg.Centimeter
-		if len(pairs) == 3 {
-			w = 30 * vg.Centimeter
-		}
+	def := page{title: "Pareto front", width: 17 * vg.Centimeter, height: 11 * vg.Centimeter}
+	if len(pairs) == 3 {
+		def.width = 30 * vg.Centimeter
 	}
-	if h == 0 {
-		h = 11 * vg.Centimeter
+	if f.GetJob() != "" {
+		def.title += ", " + f.GetJob()
 	}
-	title := opt.Title
-	if title == "" {
-		title = "Pareto front"
-		if f.GetJob() != "" {
-			title += ", " + f.GetJob()
-		}
-	}
-	fig := newFigure(w, h, title, panels...)
+	fig := def.or(opt.Title, opt.Width, opt.Height).figure(panels...)
 	fig.Legend = leg
 	fig.ColourBar = fr.scale.bar(fr.colour)
 	fig.Notes = fr.notes()
@@ -296,30 +286,20 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 			labelPts = append(labelPts, pts[pos])
 			labels = append(labels, fmt.Sprintf("#%d", sols[pos].GetIndex()))
 		}
-		sc, err := plotter.NewScatter(m)
-		if err != nil {
+		style := draw.GlyphStyle{Color: colVermilion, Radius: vg.Points(7.5), Shape: thickSquare(vg.Points(1.4))}
+		if err := addHighlight(p, leg, m, style, "marked"); err != nil {
 			return nil, nil, err
-		}
-		sc.GlyphStyle = draw.GlyphStyle{Color: colVermilion, Radius: vg.Points(7.5), Shape: thickSquare{width: vg.Points(1.4)}}
-		p.Add(sc)
-		if leg != nil {
-			leg.Add("marked", thumb(sc))
 		}
 	}
 	if fr.balanced >= 0 {
 		b := plotter.XYs{pts[fr.balanced]}
-		sc, err := plotter.NewScatter(b)
-		if err != nil {
+		style := draw.GlyphStyle{Color: colBlack, Radius: vg.Points(7), Shape: thickRing{width: vg.Points(1.6)}}
+		if err := addHighlight(p, leg, b, style, fmt.Sprintf("balanced, #%d", sols[fr.balanced].GetIndex())); err != nil {
 			return nil, nil, err
 		}
-		sc.GlyphStyle = draw.GlyphStyle{Color: colBlack, Radius: vg.Points(7), Shape: thickRing{width: vg.Points(1.6)}}
-		p.Add(sc)
 		if !slices.Contains(fr.marked, fr.balanced) {
 			labelPts = append(labelPts, b[0])
 			labels = append(labels, fmt.Sprintf("#%d", sols[fr.balanced].GetIndex()))
-		}
-		if leg != nil {
-			leg.Add(fmt.Sprintf("balanced, #%d", sols[fr.balanced].GetIndex()), thumb(sc))
 		}
 	}
 	if len(fr.opt.Candidates) > 0 {
@@ -333,14 +313,9 @@ func (fr *frontData) panel(jx, jy int, legend bool) (*plot.Plot, *plot.Legend, e
 			}
 			labels = append(labels, name)
 		}
-		sc, err := plotter.NewScatter(c)
-		if err != nil {
+		style := draw.GlyphStyle{Color: colBlue, Radius: vg.Points(5), Shape: thickCross(vg.Points(1.8))}
+		if err := addHighlight(p, leg, c, style, "candidate setup"); err != nil {
 			return nil, nil, err
-		}
-		sc.GlyphStyle = draw.GlyphStyle{Color: colBlue, Radius: vg.Points(5), Shape: thickCross{width: vg.Points(1.8)}}
-		p.Add(sc)
-		if leg != nil {
-			leg.Add("candidate setup", thumb(sc))
 		}
 	}
 	for k, off := range labelOffsets(labelPts, pts) {

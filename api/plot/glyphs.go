@@ -3,6 +3,7 @@ package plot
 import (
 	"math"
 
+	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
@@ -18,6 +19,21 @@ func thumb(sc *plotter.Scatter) *plotter.Scatter {
 	return &t
 }
 
+// addHighlight draws pts on p with a glyph of style and, with a legend,
+// names them in it.
+func addHighlight(p *plot.Plot, leg *plot.Legend, pts plotter.XYs, style draw.GlyphStyle, name string) error {
+	sc, err := plotter.NewScatter(pts)
+	if err != nil {
+		return err
+	}
+	sc.GlyphStyle = style
+	p.Add(sc)
+	if leg != nil {
+		leg.Add(name, thumb(sc))
+	}
+	return nil
+}
+
 // thickRing is a ring glyph with its own line width.
 type thickRing struct{ width vg.Length }
 
@@ -30,31 +46,41 @@ func (g thickRing) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 	c.Stroke(p)
 }
 
-// thickCross is an × glyph with its own line width.
-type thickCross struct{ width vg.Length }
+// thickStrokes is a glyph of straight strokes with its own line width.
+// Each stroke is a polyline through points in units of r, half the side
+// of the square inscribed in the glyph's circle.
+type thickStrokes struct {
+	width   vg.Length
+	strokes [][]vg.Point
+	closed  bool // each stroke ends back at its start
+}
 
-func (g thickCross) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
-	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: g.width})
-	r := sty.Radius * vg.Length(math.Sqrt2/2)
-	var p vg.Path
-	p.Move(vg.Point{X: pt.X - r, Y: pt.Y - r})
-	p.Line(vg.Point{X: pt.X + r, Y: pt.Y + r})
-	p.Move(vg.Point{X: pt.X - r, Y: pt.Y + r})
-	p.Line(vg.Point{X: pt.X + r, Y: pt.Y - r})
-	c.Stroke(p)
+// thickCross is an × glyph with its own line width.
+func thickCross(width vg.Length) thickStrokes {
+	return thickStrokes{width: width, strokes: [][]vg.Point{{{X: -1, Y: -1}, {X: 1, Y: 1}}, {{X: -1, Y: 1}, {X: 1, Y: -1}}}}
 }
 
 // thickSquare is a square outline glyph with its own line width.
-type thickSquare struct{ width vg.Length }
+func thickSquare(width vg.Length) thickStrokes {
+	return thickStrokes{width: width, strokes: [][]vg.Point{{{X: -1, Y: -1}, {X: 1, Y: -1}, {X: 1, Y: 1}, {X: -1, Y: 1}}}, closed: true}
+}
 
-func (g thickSquare) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+func (g thickStrokes) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 	c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: g.width})
 	r := sty.Radius * vg.Length(math.Sqrt2/2)
 	var p vg.Path
-	p.Move(vg.Point{X: pt.X - r, Y: pt.Y - r})
-	p.Line(vg.Point{X: pt.X + r, Y: pt.Y - r})
-	p.Line(vg.Point{X: pt.X + r, Y: pt.Y + r})
-	p.Line(vg.Point{X: pt.X - r, Y: pt.Y + r})
-	p.Close()
+	for _, stroke := range g.strokes {
+		for i, u := range stroke {
+			at := vg.Point{X: pt.X + u.X*r, Y: pt.Y + u.Y*r}
+			if i == 0 {
+				p.Move(at)
+			} else {
+				p.Line(at)
+			}
+		}
+		if g.closed {
+			p.Close()
+		}
+	}
 	c.Stroke(p)
 }

@@ -85,18 +85,8 @@ func Hypervolume(history []*pb.Progress, objectives []*pb.Objective, opt Hypervo
 		p.Y.Max = max(p.Y.Max, 1.05*pt.Y) // headroom above the last value
 	}
 
-	w, h := opt.Width, opt.Height
-	if w == 0 {
-		w = 17 * vg.Centimeter
-	}
-	if h == 0 {
-		h = 10 * vg.Centimeter
-	}
-	title := opt.Title
-	if title == "" {
-		title = "Hypervolume per generation"
-	}
-	fig := newFigure(w, h, title, p)
+	def := page{title: "Hypervolume per generation", width: 17 * vg.Centimeter, height: 10 * vg.Centimeter}
+	fig := def.or(opt.Title, opt.Width, opt.Height).figure(p)
 	done := pts[len(pts)-1]
 	at := fmt.Sprintf("Generation %.0f", done.X)
 	if planned > 0 {

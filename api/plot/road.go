@@ -106,18 +106,8 @@ func RoadInput(cases []model.RoadCase, opt RoadOptions) (*Figure, error) {
 	}
 	p.X.Min, p.X.Max = math.Log10(lo), math.Log10(hi)
 
-	w, h := opt.Width, opt.Height
-	if w == 0 {
-		w = 17 * vg.Centimeter
-	}
-	if h == 0 {
-		h = 14 * vg.Centimeter
-	}
-	title := opt.Title
-	if title == "" {
-		title = "Road input"
-	}
-	fig := newFigure(w, h, title, p)
+	def := page{title: "Road input", width: 17 * vg.Centimeter, height: 14 * vg.Centimeter}
+	fig := def.or(opt.Title, opt.Width, opt.Height).figure(p)
 	fig.Legend, fig.LegendBelow = leg, true
 	fig.Notes = []string{"Grey: upper limits of the ISO 8608 classes A to H (waviness 2). " +
 		"At speed V the tyres see the temporal PSD S(f) = Gd(f/V)/V."}

@@ -101,21 +101,12 @@ func Spectra(sp *model.Spectra, modes []model.Mode, opt SpectraOptions) (*Figure
 		p.X.Min, p.X.Max = math.Log10(f[0]), math.Log10(f[len(f)-1])
 	}
 
-	w, h := opt.Width, opt.Height
-	if w == 0 {
-		w = 17 * vg.Centimeter
+	def := page{title: "Output spectra", width: 17 * vg.Centimeter, height: 20 * vg.Centimeter}
+	if sp.Case != "" {
+		def.title += ", " + sp.Case
 	}
-	if h == 0 {
-		h = 20 * vg.Centimeter
-	}
-	title := opt.Title
-	if title == "" {
-		title = "Output spectra"
-		if sp.Case != "" {
-			title += ", " + sp.Case
-		}
-	}
-	fig := &Figure{Width: w, Height: h, Title: title, Panels: [][]*plot.Plot{{tyre}, {ride}}}
+	pg := def.or(opt.Title, opt.Width, opt.Height)
+	fig := &Figure{Width: pg.width, Height: pg.height, Title: pg.title, Panels: [][]*plot.Plot{{tyre}, {ride}}}
 	note := "One-sided PSDs at the linearisation's fixed point; the area under a curve is the variance over the grid. " +
 		"Grey lines: undamped natural frequencies of the modes, dotted when overdamped at the equivalent slopes."
 	if asym {

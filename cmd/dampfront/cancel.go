@@ -7,29 +7,23 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-var cancelCommand = &command{
-	name:    "cancel",
-	summary: "cancel jobs; a running job keeps its front so far, marked partial",
-	run:     runCancel,
-}
-
-func runCancel(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "cancel", "[flags] JOB...", `
+// cancelAbout is the help text of cancel.
+const cancelAbout = `
 Requests cancellation of each job. A queued job is cancelled at once; a
 running one stops within seconds, wherever its worker runs, and keeps its
-front so far, marked partial. Prints one line per job.`)
-	cf := addClientFlags(fs, e)
-	pos, err := fs.parse(args, 1, -1)
-	if err != nil {
-		return err
-	}
-	c, err := cf.dial()
+front so far, marked partial. Prints one line per job.`
+
+var cancelCommand = &command{name: "cancel", synopsis: "[flags] JOB...", minArgs: 1, maxArgs: -1, client: true,
+	summary: "cancel jobs; a running job keeps its front so far, marked partial", about: cancelAbout, run: runCancel}
+
+func runCancel(ctx context.Context, e *env, in *parsed) error {
+	c, err := in.client.dial()
 	if err != nil {
 		return err
 	}
 	defer c.Close()
 	var firstErr error
-	for _, id := range pos {
+	for _, id := range in.args {
 		cctx, cancel := c.call(ctx)
 		resp, err := c.svc.CancelJob(cctx, &pb.CancelJobRequest{Name: jobName(id)})
 		cancel()

@@ -9,14 +9,8 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-var checkCommand = &command{
-	name:    "check",
-	summary: "CI gate: does a setup meet a job's constraints and sit within epsilon of its front?",
-	run:     runCheck,
-}
-
-func runCheck(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "check", "[flags] JOB --setup FILE", `
+// checkAbout is the help text of check.
+const checkAbout = `
 Evaluates a candidate setup on a finished job's spec and compares it with
 the job's stored front, for CI pipelines. It prints one line, PASS or FAIL
 with the reason, then the caution, and exits with
@@ -30,21 +24,32 @@ with the reason, then the caution, and exits with
 The distance is the additive epsilon indicator with each objective divided
 by the front's extent (max - min over the front): the setup fails when
 some front solution is better in every objective by more than epsilon
-times that extent. 0 demands a setup no front solution dominates.`)
-	cf := addClientFlags(fs, e)
-	setupPath := fs.String("setup", "", "candidate setup `file` (a Setup message, YAML or JSON)")
-	epsilon := fs.Float64("epsilon", 0.02, "allowed distance to the front, as a `fraction` of its extent in each objective")
-	pos, err := fs.parse(args, 1, 1)
-	if err != nil {
-		return err
-	}
-	if *setupPath == "" {
+times that extent. 0 demands a setup no front solution dominates.`
+
+var checkCommand = &command{name: "check", synopsis: "[flags] JOB --setup FILE", minArgs: 1, maxArgs: 1, client: true,
+	summary: "CI gate: does a setup meet a job's constraints and sit within epsilon of its front?", about: checkAbout, flags: bindCheck}
+
+func bindCheck(fs *flagSet, _ *env) (runFunc, error) {
+	f := &checkFlags{}
+	fs.StringVar(&f.setupPath, "setup", "", "candidate setup `file` (a Setup message, YAML or JSON)")
+	fs.Float64Var(&f.epsilon, "epsilon", 0.02, "allowed distance to the front, as a `fraction` of its extent in each objective")
+	return f.run, nil
+}
+
+// checkFlags are check's own flags.
+type checkFlags struct {
+	setupPath string
+	epsilon   float64
+}
+
+func (f *checkFlags) run(ctx context.Context, e *env, in *parsed) error {
+	if f.setupPath == "" {
 		return usagef("check", "--setup is required")
 	}
-	if !(*epsilon >= 0) {
-		return usagef("check", "--epsilon must be >= 0, got %g", *epsilon)
+	if !(f.epsilon >= 0) {
+		return usagef("check", "--epsilon must be >= 0, got %g", f.epsilon)
 	}
-	verdict, err := check(ctx, e, cf, jobName(pos[0]), *setupPath, *epsilon)
+	verdict, err := check(ctx, e, in.client, jobName(in.args[0]), f.setupPath, f.epsilon)
 	if err != nil {
 		var ue *usageError
 		if errors.As(err, &ue) {

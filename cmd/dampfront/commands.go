@@ -17,12 +17,55 @@ type env struct {
 	getenv         func(string) string
 }
 
-// command is one subcommand: its flags are declared and parsed inside run,
-// next to the code that uses them.
+// command is one subcommand, declared: its help text, the bounds of its
+// positional arguments, whether it talks to a server, and its own flags.
+// The dispatcher (start) makes the flag set, adds the client flags,
+// parses, and runs it with what it parsed.
 type command struct {
-	name    string
-	summary string
-	run     func(ctx context.Context, e *env, args []string) error
+	name     string
+	summary  string // its line in "dampfront help"
+	synopsis string // follows "dampfront NAME" in the usage line
+	about    string // the paragraph under the usage line
+	// minArgs and maxArgs bound the positional arguments; maxArgs -1
+	// leaves them unbounded.
+	minArgs, maxArgs int
+	client           bool // adds the client flags (--addr, --timeout, TLS, token)
+	// flags declares the subcommand's own flags on fs and returns the run
+	// that reads them once parsed; without flags, run is used.
+	flags func(fs *flagSet, e *env) (runFunc, error)
+	run   runFunc
+}
+
+// runFunc runs a subcommand after its flags are parsed.
+type runFunc func(ctx context.Context, e *env, in *parsed) error
+
+// parsed is what the dispatcher parsed for a subcommand.
+type parsed struct {
+	fs     *flagSet     // the flag set, for the flags' Visit
+	client *clientFlags // the client flags, nil unless the command is a client
+	args   []string     // the positional arguments, within the command's bounds
+}
+
+// start makes c's flag set, parses args and runs c.
+func (c *command) start(ctx context.Context, e *env, args []string) error {
+	fs := newFlagSet(e, c.name, c.synopsis, c.about)
+	in := &parsed{fs: fs}
+	if c.client {
+		in.client = addClientFlags(fs, e)
+	}
+	run := c.run
+	if c.flags != nil {
+		var err error
+		if run, err = c.flags(fs, e); err != nil {
+			return err
+		}
+	}
+	pos, err := fs.parse(args, c.minArgs, c.maxArgs)
+	if err != nil {
+		return err
+	}
+	in.args = pos
+	return run(ctx, e, in)
 }
 
 // commands lists the subcommands in the order "help" shows them.
@@ -76,7 +119,7 @@ func run(ctx context.Context, args []string, e *env) int {
 	case "help", "-h", "-help", "--help":
 		if len(args) > 1 && name == "help" {
 			if c := lookup(args[1]); c != nil {
-				return finish(e, c.name, c.run(ctx, e, []string{"--help"}))
+				return finish(e, c.name, c.start(ctx, e, []string{"--help"}))
 			}
 			fmt.Fprintf(e.stderr, "dampfront: unknown subcommand %q\n", args[1])
 			return exitUsage
@@ -90,7 +133,7 @@ func run(ctx context.Context, args []string, e *env) int {
 		topUsage(e.stderr)
 		return exitUsage
 	}
-	return finish(e, c.name, c.run(ctx, e, args[1:]))
+	return finish(e, c.name, c.start(ctx, e, args[1:]))
 }
 
 func finish(e *env, name string, err error) int {
@@ -99,7 +142,11 @@ func finish(e *env, name string, err error) int {
 	}
 	var ue *usageError
 	if errors.As(err, &ue) {
-		fmt.Fprintf(e.stderr, "dampfront %s: %s\nUsage: dampfront %s %s\nRun 'dampfront %s --help' for the flags.\n", name, plainLines(ue.msg), name, synopses[name], name)
+		synopsis := ""
+		if c := lookup(name); c != nil {
+			synopsis = c.synopsis
+		}
+		fmt.Fprintf(e.stderr, "dampfront %s: %s\nUsage: dampfront %s %s\nRun 'dampfront %s --help' for the flags.\n", name, plainLines(ue.msg), name, synopsis, name)
 		return exitUsage
 	}
 	var xe *exitError

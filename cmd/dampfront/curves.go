@@ -13,11 +13,8 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-var curvesCommand = &command{
-	name:    "curves",
-	summary: "damper force-velocity tables at the component for a solution or a setup",
-	run:     runCurves,
-}
+var curvesCommand = &command{name: "curves", synopsis: "[flags] JOB", minArgs: 1, maxArgs: 1, client: true,
+	summary: "damper force-velocity tables at the component for a solution or a setup", about: curvesAbout, flags: bindCurves}
 
 // curvesAbout is the help text of curves.
 const curvesAbout = `
@@ -30,9 +27,7 @@ negative) and, when an adjuster range is known (the spec's, or --adjust-*),
 the forces at its softest and stiffest clicks. Corners with equal curves
 are printed once.`
 
-func runCurves(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "curves", "[flags] JOB", curvesAbout)
-	cf := addClientFlags(fs, e)
+func bindCurves(fs *flagSet, e *env) (runFunc, error) {
 	solution := fs.Int("solution", -1, "`index` of a solution of the job's front")
 	fs.Bool("balanced", false, "the balanced point of the front (the default without --solution or --setup)")
 	setupPath := fs.String("setup", "", "a setup `file` of your own instead of a solution")
@@ -43,62 +38,61 @@ func runCurves(ctx context.Context, e *env, args []string) error {
 	points := fs.Int("points", 0, "tabulated `points` from -max to +max, odd (0: the spec's)")
 	format := newFormat("table", "table", "csv", "json")
 	fs.Var(format, "format", "output `format`: table, csv (SI) or json (SI, GetDamperCurves response)")
-	pos, err := fs.parse(args, 1, 1)
-	if err != nil {
-		return err
-	}
-	if countSet(fs, "solution", "balanced", "setup") > 1 {
-		return usagef("curves", "give at most one of --solution, --balanced and --setup")
-	}
-	if isFlagSet(fs, "solution") && *solution < 0 {
-		return usagef("curves", "--solution must be a front index >= 0")
-	}
-	if bump.set != rebound.set {
-		return usagef("curves", "give both --adjust-bump and --adjust-rebound, or neither")
-	}
-	if *vmax < 0 || *points < 0 {
-		return usagef("curves", "--max-velocity and --points must not be negative")
-	}
-	c, err := cf.dial()
-	if err != nil {
-		return err
-	}
-	defer c.Close()
-	req := &pb.GetDamperCurvesRequest{Job: jobName(pos[0])}
-	title, err := curvesTarget(ctx, e, c, req, *setupPath, *solution)
-	if err != nil {
-		return err
-	}
-	if bump.set {
-		req.Adjustment = &pb.Adjustment{BumpSoftestRatio: bump.min, BumpStiffestRatio: bump.max,
-			ReboundSoftestRatio: rebound.min, ReboundStiffestRatio: rebound.max}
-	}
-	if *vmax > 0 || *points > 0 {
-		req.Curves = &pb.CurveSettings{MaxVelocityMPerS: fromMmPerS(*vmax), Points: int32(*points)}
-	}
-	cctx, cancel := c.call(ctx)
-	resp, err := c.svc.GetDamperCurves(cctx, req)
-	cancel()
-	if err != nil {
-		return err
-	}
-	switch format.value {
-	case "json":
-		b, err := protojson.MarshalOptions{Multiline: true}.Marshal(resp)
+	return func(ctx context.Context, e *env, in *parsed) error {
+		pos, cf := in.args, in.client
+		if countSet(fs, "solution", "balanced", "setup") > 1 {
+			return usagef("curves", "give at most one of --solution, --balanced and --setup")
+		}
+		if isFlagSet(fs, "solution") && *solution < 0 {
+			return usagef("curves", "--solution must be a front index >= 0")
+		}
+		if bump.set != rebound.set {
+			return usagef("curves", "give both --adjust-bump and --adjust-rebound, or neither")
+		}
+		if *vmax < 0 || *points < 0 {
+			return usagef("curves", "--max-velocity and --points must not be negative")
+		}
+		c, err := cf.dial()
 		if err != nil {
 			return err
 		}
-		fmt.Fprintf(e.stdout, "%s\n", b)
+		defer c.Close()
+		req := &pb.GetDamperCurvesRequest{Job: jobName(pos[0])}
+		title, err := curvesTarget(ctx, e, c, req, *setupPath, *solution)
+		if err != nil {
+			return err
+		}
+		if bump.set {
+			req.Adjustment = &pb.Adjustment{BumpSoftestRatio: bump.min, BumpStiffestRatio: bump.max,
+				ReboundSoftestRatio: rebound.min, ReboundStiffestRatio: rebound.max}
+		}
+		if *vmax > 0 || *points > 0 {
+			req.Curves = &pb.CurveSettings{MaxVelocityMPerS: fromMmPerS(*vmax), Points: int32(*points)}
+		}
+		cctx, cancel := c.call(ctx)
+		resp, err := c.svc.GetDamperCurves(cctx, req)
+		cancel()
+		if err != nil {
+			return err
+		}
+		switch format.value {
+		case "json":
+			b, err := protojson.MarshalOptions{Multiline: true}.Marshal(resp)
+			if err != nil {
+				return err
+			}
+			fmt.Fprintf(e.stdout, "%s\n", b)
+			return nil
+		case "csv":
+			return writeCurvesCSV(e.stdout, resp.GetCurves())
+		}
+		fmt.Fprintf(e.stdout, "Damper curves of %s of %s: %s\n", title, req.Job, setupText(resp.GetSetup()))
+		if err := writeCurvesTable(e.stdout, resp.GetCurves()); err != nil {
+			return err
+		}
+		printCaution(e.stdout)
 		return nil
-	case "csv":
-		return writeCurvesCSV(e.stdout, resp.GetCurves())
-	}
-	fmt.Fprintf(e.stdout, "Damper curves of %s of %s: %s\n", title, req.Job, setupText(resp.GetSetup()))
-	if err := writeCurvesTable(e.stdout, resp.GetCurves()); err != nil {
-		return err
-	}
-	printCaution(e.stdout)
-	return nil
+	}, nil
 }
 
 // curvesTarget sets the request's setup: a setup file, a solution, or

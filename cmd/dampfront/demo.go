@@ -24,11 +24,8 @@ var demoJob []byte
 // demoRows is how many solutions of the front the demo prints.
 const demoRows = 15
 
-var demoCommand = &command{
-	name:    "demo",
-	summary: "run the demo job on an embedded server and print its front and damper curves",
-	run:     runDemo,
-}
+var demoCommand = &command{name: "demo", synopsis: "[flags]",
+	summary: "run the demo job on an embedded server and print its front and damper curves", about: demoAbout, flags: bindDemo}
 
 // demoAbout is the help text of demo.
 const demoAbout = `
@@ -41,76 +38,74 @@ it runs, the job page (live progress, the front chart, the solutions and
 their damper curves) is served at the address printed; --serve-page
 keeps it open after the demo, until interrupted.`
 
-func runDemo(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "demo", "[flags]", demoAbout)
+func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 	keep := fs.Bool("keep", false, "keep the temporary directory with the database and print how to serve it")
 	specPath := fs.String("spec", "", "run this job spec `file` instead of the demo's")
 	workers := fs.Int("eval-workers", 0, "evaluations run at once; 0 means one per CPU")
 	verbose := fs.Bool("verbose", false, "log the server's and the engine's messages on standard error")
 	quiet := fs.Bool("quiet", false, "no progress bar")
 	wf := addDemoWebFlags(fs)
-	if _, err := fs.parse(args, 0, 0); err != nil {
-		return err
-	}
-	if *workers < 0 {
-		return usagef("demo", "--eval-workers must not be negative")
-	}
-	start := time.Now()
-	spec, err := demoSpec(e, *specPath)
-	if err != nil {
-		return err
-	}
-
-	dir, err := os.MkdirTemp("", "dampfront-demo-")
-	if err != nil {
-		return err
-	}
-	db := filepath.Join(dir, "demo.db")
-	defer func() {
-		if !*keep {
-			_ = os.RemoveAll(dir)
+	return func(ctx context.Context, e *env, in *parsed) error {
+		if *workers < 0 {
+			return usagef("demo", "--eval-workers must not be negative")
 		}
-	}()
+		start := time.Now()
+		spec, err := demoSpec(e, *specPath)
+		if err != nil {
+			return err
+		}
 
-	cfg := demoConfig(e, db, *verbose)
-	log := cfg.Logger
-	wf.configure(&cfg, log)
-	eng, err := openEngine(ctx, cfg, *workers)
-	if err != nil {
-		return err
-	}
-	lis, err := net.Listen("tcp", "127.0.0.1:0")
-	if err != nil {
-		_ = eng.Close()
-		return err
-	}
-	svc, err := startService(ctx, eng, lis, api.Options{Logger: log}, cfg.StopTimeout, log, wf.grpcOptions()...)
-	if err != nil {
-		_ = lis.Close()
-		_ = eng.Close()
-		return err
-	}
-	pg, err := wf.start(eng, api.Options{Logger: log}, nil, log)
-	if err != nil {
-		_ = svc.shutdown()
-		return err
-	}
-	runErr := demo(ctx, e, lis.Addr().String(), spec, *quiet, pg.jobURL)
-	if runErr == nil {
-		pg.linger(ctx, e.stdout, wf.servePage)
-	}
-	if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil && runErr == nil {
-		runErr = err
-	}
-	if runErr != nil {
-		return runErr
-	}
-	fmt.Fprintf(e.stdout, "\nDemo done in %.1f s. Next: dampfront serve, then submit, watch, front, curves, eval and check.\n", time.Since(start).Seconds())
-	if *keep {
-		fmt.Fprintf(e.stdout, "Kept %s; serve it with: dampfront serve --database %s\n", dir, db)
-	}
-	printCaution(e.stdout)
-	return nil
+		dir, err := os.MkdirTemp("", "dampfront-demo-")
+		if err != nil {
+			return err
+		}
+		db := filepath.Join(dir, "demo.db")
+		defer func() {
+			if !*keep {
+				_ = os.RemoveAll(dir)
+			}
+		}()
+
+		cfg := demoConfig(e, db, *verbose)
+		log := cfg.Logger
+		wf.configure(&cfg, log)
+		eng, err := openEngine(ctx, cfg, *workers)
+		if err != nil {
+			return err
+		}
+		lis, err := net.Listen("tcp", "127.0.0.1:0")
+		if err != nil {
+			_ = eng.Close()
+			return err
+		}
+		svc, err := startService(ctx, eng, lis, api.Options{Logger: log}, cfg.StopTimeout, log, wf.grpcOptions()...)
+		if err != nil {
+			_ = lis.Close()
+			_ = eng.Close()
+			return err
+		}
+		pg, err := wf.start(eng, api.Options{Logger: log}, nil, log)
+		if err != nil {
+			_ = svc.shutdown()
+			return err
+		}
+		runErr := demo(ctx, e, lis.Addr().String(), spec, *quiet, pg.jobURL)
+		if runErr == nil {
+			pg.linger(ctx, e.stdout, wf.servePage)
+		}
+		if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil && runErr == nil {
+			runErr = err
+		}
+		if runErr != nil {
+			return runErr
+		}
+		fmt.Fprintf(e.stdout, "\nDemo done in %.1f s. Next: dampfront serve, then submit, watch, front, curves, eval and check.\n", time.Since(start).Seconds())
+		if *keep {
+			fmt.Fprintf(e.stdout, "Kept %s; serve it with: dampfront serve --database %s\n", dir, db)
+		}
+		printCaution(e.stdout)
+		return nil
+	}, nil
 }
 
 // demoSpec is the job spec of the demo: the file's, or the embedded one.

@@ -11,53 +11,59 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-var evalCommand = &command{
-	name:    "eval",
-	summary: "evaluate setups on the road cases of a spec or a job",
-	run:     runEval,
-}
-
-func runEval(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "eval", "[flags] --setup FILE [--setup FILE...] (--spec FILE | --job JOB)", `
+// evalAbout is the help text of eval.
+const evalAbout = `
 Evaluates one or more damper setups (dampfront.v1 Setup messages in YAML or
 JSON, see testdata/candidate-setup.yaml) on the car, road cases, objectives
 and constraints of a job spec file or of a stored job, synchronously. The
 table shows per setup its objectives and constraints and per road case the
 ride metrics in trade units; --format json prints the EvaluateSetups
-response as protojson (SI, units in the field names).`)
-	cf := addClientFlags(fs, e)
-	sf := addSpecFlags(fs)
-	specPath := fs.String("spec", "", "job spec `file` giving the car, road cases, objectives and constraints")
-	job := fs.String("job", "", "a stored `job` whose spec to use instead of --spec")
-	var setupPaths stringList
-	fs.Var(&setupPaths, "setup", "setup `file` to evaluate (repeatable)")
-	format := newFormat("table", "table", "json")
-	fs.Var(format, "format", "output `format`: table or json")
-	if _, err := fs.parse(args, 0, 0); err != nil {
-		return err
-	}
-	if len(setupPaths) == 0 {
+response as protojson (SI, units in the field names).`
+
+var evalCommand = &command{name: "eval", synopsis: "[flags] --setup FILE [--setup FILE...] (--spec FILE | --job JOB)", client: true,
+	summary: "evaluate setups on the road cases of a spec or a job", about: evalAbout, flags: bindEval}
+
+func bindEval(fs *flagSet, _ *env) (runFunc, error) {
+	f := &evalFlags{sf: addSpecFlags(fs), format: newFormat("table", "table", "json")}
+	fs.StringVar(&f.specPath, "spec", "", "job spec `file` giving the car, road cases, objectives and constraints")
+	fs.StringVar(&f.job, "job", "", "a stored `job` whose spec to use instead of --spec")
+	fs.Var(&f.setupPaths, "setup", "setup `file` to evaluate (repeatable)")
+	fs.Var(f.format, "format", "output `format`: table or json")
+	return f.run, nil
+}
+
+// evalFlags are eval's own flags.
+type evalFlags struct {
+	sf         *specFlags
+	specPath   string
+	job        string
+	setupPaths stringList
+	format     *formatFlag
+}
+
+func (f *evalFlags) run(ctx context.Context, e *env, in *parsed) error {
+	if len(f.setupPaths) == 0 {
 		return usagef("eval", "--setup is required")
 	}
-	fromSpec := *specPath != "" || sf.vehicle != "" || sf.roads != ""
-	if fromSpec == (*job != "") {
+	fromSpec := f.specPath != "" || f.sf.vehicle != "" || f.sf.roads != ""
+	if fromSpec == (f.job != "") {
 		return usagef("eval", "give either --spec (optionally with --vehicle, --roads) or --job")
 	}
-	setups, err := readSetups(e, setupPaths)
+	setups, err := readSetups(e, f.setupPaths)
 	if err != nil {
 		return err
 	}
 	req := &pb.EvaluateSetupsRequest{Setups: setups, View: pb.SolutionView_SOLUTION_VIEW_FULL}
 	if fromSpec {
-		spec, err := sf.load(e, *specPath)
+		spec, err := f.sf.load(e, f.specPath)
 		if err != nil {
 			return err
 		}
 		req.Source = &pb.EvaluateSetupsRequest_Spec{Spec: spec}
 	} else {
-		req.Source = &pb.EvaluateSetupsRequest_Job{Job: jobName(*job)}
+		req.Source = &pb.EvaluateSetupsRequest_Job{Job: jobName(f.job)}
 	}
-	c, err := cf.dial()
+	c, err := in.client.dial()
 	if err != nil {
 		return err
 	}
@@ -68,7 +74,7 @@ response as protojson (SI, units in the field names).`)
 	if err != nil {
 		return err
 	}
-	if format.value == "json" {
+	if f.format.value == "json" {
 		b, err := protojson.MarshalOptions{Multiline: true}.Marshal(resp)
 		if err != nil {
 			return err
@@ -80,7 +86,7 @@ response as protojson (SI, units in the field names).`)
 		if i > 0 {
 			fmt.Fprintln(e.stdout)
 		}
-		if err := writeEvaluation(e.stdout, setupPaths[i], s, resp.GetObjectives(), resp.GetConstraints()); err != nil {
+		if err := writeEvaluation(e.stdout, f.setupPaths[i], s, resp.GetObjectives(), resp.GetConstraints()); err != nil {
 			return err
 		}
 	}

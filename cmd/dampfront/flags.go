@@ -22,14 +22,9 @@ type flagSet struct {
 	out      io.Writer
 }
 
-// synopses holds the synopsis of each subcommand whose flags were made,
-// for the usage line of a usage error.
-var synopses = map[string]string{}
-
 // newFlagSet makes the flags of subcommand name; synopsis follows
 // "dampfront name", about is the paragraph under it.
 func newFlagSet(e *env, name, synopsis, about string) *flagSet {
-	synopses[name] = synopsis
 	fs := &flagSet{FlagSet: flag.NewFlagSet(name, flag.ContinueOnError), name: name, synopsis: synopsis, about: about, out: e.stdout}
 	fs.SetOutput(io.Discard) // parse errors are reported by finish, usage by printUsage
 	return fs
@@ -91,43 +86,41 @@ func envOr(e *env, key, def string) string {
 	return def
 }
 
-// envInt is envOr for an integer; a malformed value is a usage error.
-func envInt(e *env, cmd, key string, def int) (int, error) {
-	v := e.getenv(key)
-	if v == "" {
-		return def, nil
-	}
-	n, err := strconv.Atoi(v)
-	if err != nil {
-		return 0, usagef(cmd, "$%s=%q is not an integer", key, v)
-	}
-	return n, nil
+// envDefaults reads flag defaults from $DAMPFRONT_* variables for
+// subcommand cmd; err keeps the first malformed value as a usage error.
+type envDefaults struct {
+	e   *env
+	cmd string
+	err error
 }
 
-// envBool is envOr for a boolean (true/false, 1/0).
-func envBool(e *env, cmd, key string, def bool) (bool, error) {
-	v := e.getenv(key)
+// envValue is envOr for a value that parse reads; a malformed one is a
+// usage error saying that it is not what.
+func envValue[T any](d *envDefaults, key string, def T, parse func(string) (T, error), what string) T {
+	v := d.e.getenv(key)
 	if v == "" {
-		return def, nil
+		return def
 	}
-	b, err := strconv.ParseBool(v)
+	x, err := parse(v)
 	if err != nil {
-		return false, usagef(cmd, "$%s=%q is not true or false", key, v)
+		if d.err == nil {
+			d.err = usagef(d.cmd, "$%s=%q is not %s", key, v, what)
+		}
+		return def
 	}
-	return b, nil
+	return x
 }
 
-// envDuration is envOr for a duration such as "90s".
-func envDuration(e *env, cmd, key string, def time.Duration) (time.Duration, error) {
-	v := e.getenv(key)
-	if v == "" {
-		return def, nil
-	}
-	d, err := time.ParseDuration(v)
-	if err != nil {
-		return 0, usagef(cmd, "$%s=%q is not a duration (e.g. 90s, 2m)", key, v)
-	}
-	return d, nil
+func (d *envDefaults) int(key string, def int) int {
+	return envValue(d, key, def, strconv.Atoi, "an integer")
+}
+
+func (d *envDefaults) bool(key string, def bool) bool {
+	return envValue(d, key, def, strconv.ParseBool, "true or false")
+}
+
+func (d *envDefaults) duration(key string, def time.Duration) time.Duration {
+	return envValue(d, key, def, time.ParseDuration, "a duration (e.g. 90s, 2m)")
 }
 
 // stringList is a flag that may be given several times.

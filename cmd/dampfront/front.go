@@ -11,14 +11,8 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-var frontCommand = &command{
-	name:    "front",
-	summary: "print a finished job's Pareto front (table in trade units, CSV or JSON in SI)",
-	run:     runFront,
-}
-
-func runFront(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "front", "[flags] JOB", `
+// frontAbout is the help text of front.
+const frontAbout = `
 Prints the Pareto front of a finished job, sorted by the first objective.
 The table is in trade units: damping ratios at the wheel, grip as tyre
 load standard deviation in % of static load, platform in mm, low-speed
@@ -28,40 +22,46 @@ CSV and JSON are SI, with the unit in each column's name, one row per
 solution, floats written so that they read back bit for bit: the schema
 of the job page's downloads and the Python client, listed in the README.
 --format setup --solution N prints solution N as a setup file (YAML, a
-Setup message) that eval --setup and check --setup read.`)
-	cf := addClientFlags(fs, e)
+Setup message) that eval --setup and check --setup read.`
+
+var frontCommand = &command{name: "front", synopsis: "[flags] JOB", minArgs: 1, maxArgs: 1, client: true,
+	summary: "print a finished job's Pareto front (table in trade units, CSV or JSON in SI)", about: frontAbout, flags: bindFront}
+
+func bindFront(fs *flagSet, _ *env) (runFunc, error) {
 	format := newFormat("table", "table", "csv", "json", "setup")
 	fs.Var(format, "format", "output `format`: table, csv, json, or setup (one solution as a setup file)")
 	solution := fs.Int("solution", -1, "with --format setup: the `index` of the solution in the front")
 	rows := fs.Int("rows", 0, "table only: show about this many `rows`, evenly spread along the front and the balanced point among them; 0 shows all")
-	pos, err := fs.parse(args, 1, 1)
-	if err != nil {
-		return err
-	}
-	if *rows < 0 {
+	return func(ctx context.Context, e *env, in *parsed) error {
+		if (format.value == "setup") != (*solution >= 0) || (isFlagSet(fs, "solution") && *solution < 0) {
+			return usagef("front", "--format setup needs --solution N (a front index >= 0), and --solution only goes with it")
+		}
+		return runFront(ctx, e, in, format.value, *rows, *solution)
+	}, nil
+}
+
+func runFront(ctx context.Context, e *env, in *parsed, format string, rows, solution int) error {
+	if rows < 0 {
 		return usagef("front", "--rows must not be negative")
 	}
-	if (format.value == "setup") != (*solution >= 0) || (isFlagSet(fs, "solution") && *solution < 0) {
-		return usagef("front", "--format setup needs --solution N (a front index >= 0), and --solution only goes with it")
-	}
-	c, err := cf.dial()
+	c, err := in.client.dial()
 	if err != nil {
 		return err
 	}
 	defer c.Close()
-	fd, err := fetchFront(ctx, c, jobName(pos[0]), pb.SolutionView_SOLUTION_VIEW_FULL)
+	fd, err := fetchFront(ctx, c, jobName(in.args[0]), pb.SolutionView_SOLUTION_VIEW_FULL)
 	if err != nil {
 		return err
 	}
-	switch format.value {
+	switch format {
 	case "csv":
 		return frontfile.WriteCSV(e.stdout, fd.front)
 	case "json":
 		return frontfile.WriteJSON(e.stdout, fd.job, fd.front)
 	case "setup":
-		return writeSetupFile(e.stdout, fd, *solution)
+		return writeSetupFile(e.stdout, fd, solution)
 	}
-	if err := writeFrontTable(e.stdout, fd, *rows, "--rows 0 shows all"); err != nil {
+	if err := writeFrontTable(e.stdout, fd, rows, "--rows 0 shows all"); err != nil {
 		return err
 	}
 	printCaution(e.stdout)

@@ -14,37 +14,35 @@ import (
 	"dampfront/api/web"
 )
 
-var getCommand = &command{
-	name:    "get",
-	summary: "show one job: state, progress, times",
-	run:     runGet,
-}
-
-func runGet(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "get", "[flags] JOB", `
+// getAbout is the help text of get.
+const getAbout = `
 Shows a job: its state, progress, times and error. --format json prints
 the Job message as protojson, the stored spec (with its defaults filled
-in) included.`)
-	cf := addClientFlags(fs, e)
+in) included.`
+
+var getCommand = &command{name: "get", synopsis: "[flags] JOB", minArgs: 1, maxArgs: 1, client: true,
+	summary: "show one job: state, progress, times", about: getAbout, flags: bindGet}
+
+func bindGet(fs *flagSet, _ *env) (runFunc, error) {
 	format := newFormat("text", "text", "json")
 	fs.Var(format, "format", "output `format`: text or json")
-	pos, err := fs.parse(args, 1, 1)
-	if err != nil {
-		return err
-	}
-	c, err := cf.dial()
+	return func(ctx context.Context, e *env, in *parsed) error { return runGet(ctx, e, in, format.value) }, nil
+}
+
+func runGet(ctx context.Context, e *env, in *parsed, format string) error {
+	c, err := in.client.dial()
 	if err != nil {
 		return err
 	}
 	defer c.Close()
 	cctx, cancel := c.call(ctx)
-	resp, err := c.svc.GetJob(cctx, &pb.GetJobRequest{Name: jobName(pos[0]), View: pb.JobView_JOB_VIEW_FULL})
+	resp, err := c.svc.GetJob(cctx, &pb.GetJobRequest{Name: jobName(in.args[0]), View: pb.JobView_JOB_VIEW_FULL})
 	cancel()
 	if err != nil {
 		return err
 	}
 	j := resp.GetJob()
-	if format.value == "json" {
+	if format == "json" {
 		b, err := protojson.MarshalOptions{Multiline: true}.Marshal(j)
 		if err != nil {
 			return err

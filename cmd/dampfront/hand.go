@@ -12,11 +12,9 @@ import (
 	"dampfront/model/tradeunit"
 )
 
-var handCommand = &command{
-	name:    "hand",
+var handCommand = &command{name: "hand", synopsis: "[flags] (--vehicle FILE | --spec FILE)", minArgs: 0, maxArgs: 0,
 	summary: "the hand method for a car: critical damping, ride frequencies, target slopes, knee forces, adjuster band (no server)",
-	run:     runHand,
-}
+	about:   handAbout, flags: bindHand}
 
 const handAbout = `
 Works out the hand method for a car, in this process (no server, no job,
@@ -46,8 +44,7 @@ type handFlags struct {
 	setFlags                       map[string]bool
 }
 
-func runHand(_ context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "hand", "[flags] (--vehicle FILE | --spec FILE)", handAbout)
+func bindHand(fs *flagSet, _ *env) (runFunc, error) {
 	h := &handFlags{format: newFormat("table", "table", "csv", "json")}
 	fs.StringVar(&h.vehicle, "vehicle", "", "the car: a Vehicle message in a YAML/JSON `file`")
 	fs.StringVar(&h.spec, "spec", "", "the car, adjuster range and base knees of a job spec `file`")
@@ -58,9 +55,11 @@ func runHand(_ context.Context, e *env, args []string) error {
 	fs.Var(&h.adjust, "adjust", fmt.Sprintf("adjuster band as ratios at the wheel, `SOFTEST,STIFFEST` (common practice %g,%g; 0,0 leaves it out)", model.HandSoftestRatio, model.HandStiffestRatio))
 	fs.Float64Var(&h.speed, "speed", 0, "speed of the modal figures, `m/s` (sets the aero stiffness; 0 standing)")
 	fs.Var(h.format, "format", "output `format`: table, csv or json")
-	if _, err := fs.parse(args, 0, 0); err != nil {
-		return err
-	}
+	return func(_ context.Context, e *env, in *parsed) error { return h.run(e, in.fs) }, nil
+}
+
+// run works the hand method out in this process and prints it.
+func (h *handFlags) run(e *env, fs *flagSet) error {
 	if (h.vehicle == "") == (h.spec == "") {
 		return usagef("hand", "give either --vehicle or --spec")
 	}

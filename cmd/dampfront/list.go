@@ -13,47 +13,52 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-var listCommand = &command{
-	name:    "list",
-	summary: "list jobs, newest first",
-	run:     runList,
+// listAbout is the help text of list.
+const listAbout = `
+Lists jobs, newest first, as a table or as JSON lines (one protojson Job
+per line).`
+
+var listCommand = &command{name: "list", synopsis: "[flags]", client: true,
+	summary: "list jobs, newest first", about: listAbout, flags: bindList}
+
+func bindList(fs *flagSet, _ *env) (runFunc, error) {
+	f := &listFlags{labels: labelFlag{}, format: newFormat("table", "table", "json")}
+	fs.Var(&f.states, "state", "keep jobs in this `state` (queued, running, succeeded, failed, cancelled; repeatable)")
+	fs.Var(f.labels, "label", "keep jobs carrying this label `key=value` (repeatable)")
+	fs.IntVar(&f.limit, "limit", 50, "largest number of jobs listed; 0 lists all")
+	fs.Var(f.format, "format", "output `format`: table or json")
+	return f.run, nil
 }
 
-func runList(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "list", "[flags]", `
-Lists jobs, newest first, as a table or as JSON lines (one protojson Job
-per line).`)
-	cf := addClientFlags(fs, e)
-	var states stringList
-	fs.Var(&states, "state", "keep jobs in this `state` (queued, running, succeeded, failed, cancelled; repeatable)")
-	labels := labelFlag{}
-	fs.Var(labels, "label", "keep jobs carrying this label `key=value` (repeatable)")
-	limit := fs.Int("limit", 50, "largest number of jobs listed; 0 lists all")
-	format := newFormat("table", "table", "json")
-	fs.Var(format, "format", "output `format`: table or json")
-	if _, err := fs.parse(args, 0, 0); err != nil {
-		return err
-	}
-	if *limit < 0 {
+// listFlags are list's own flags.
+type listFlags struct {
+	states stringList
+	labels labelFlag
+	limit  int
+	format *formatFlag
+}
+
+func (f *listFlags) run(ctx context.Context, e *env, in *parsed) error {
+	if f.limit < 0 {
 		return usagef("list", "--limit must not be negative")
 	}
-	req := &pb.ListJobsRequest{Labels: labels, View: pb.JobView_JOB_VIEW_BASIC}
-	for _, s := range states {
+	req := &pb.ListJobsRequest{Labels: f.labels, View: pb.JobView_JOB_VIEW_BASIC}
+	for _, s := range f.states {
 		st, ok := parseJobState(s)
 		if !ok {
 			return usagef("list", "--state %q is not one of queued, running, succeeded, failed, cancelled", s)
 		}
 		req.States = append(req.States, st)
 	}
-	c, err := cf.dial()
+	c, err := in.client.dial()
 	if err != nil {
 		return err
 	}
 	defer c.Close()
 	var jobs []*pb.Job
 	for {
-		if *limit > 0 {
-			req.PageSize = int32(min(*limit-len(jobs), 1000))
+		if f.limit > 0 {
+			req.PageSize = int32(min(f.limit-len(jobs), 1000))
 		}
 		cctx, cancel := c.call(ctx)
 		resp, err := c.svc.ListJobs(cctx, req)
@@ -62,12 +67,12 @@ per line).`)
 			return err
 		}
 		jobs = append(jobs, resp.GetJobs()...)
-		if resp.GetNextPageToken() == "" || (*limit > 0 && len(jobs) >= *limit) {
+		if resp.GetNextPageToken() == "" || (f.limit > 0 && len(jobs) >= f.limit) {
 			break
 		}
 		req.PageToken = resp.GetNextPageToken()
 	}
-	if format.value == "json" {
+	if f.format.value == "json" {
 		for _, j := range jobs {
 			b, err := protojson.Marshal(j)
 			if err != nil {

@@ -7,25 +7,22 @@ import (
 	"dampfront/jobs"
 )
 
-var migrateCommand = &command{
-	name:    "migrate",
-	summary: "create or upgrade the database tables, then exit",
-	run:     runMigrate,
-}
-
-func runMigrate(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "migrate", "[flags]", `
+// migrateAbout is the help text of migrate.
+const migrateAbout = `
 Creates the database (a SQLite file) or upgrades its tables, the queue's
 and dampfront's, to this binary's version, then exits. serve and worker
 do the same at start; run migrate first where several processes start at
-once or the serving account may not change the schema.`)
+once or the serving account may not change the schema.`
+
+var migrateCommand = &command{name: "migrate", synopsis: "[flags]",
+	summary: "create or upgrade the database tables, then exit", about: migrateAbout, flags: bindMigrate}
+
+func bindMigrate(fs *flagSet, e *env) (runFunc, error) {
 	ef, err := addEngineFlags(fs, e, false)
-	if err != nil {
-		return err
-	}
-	if _, err := fs.parse(args, 0, 0); err != nil {
-		return err
-	}
+	return func(ctx context.Context, e *env, _ *parsed) error { return runMigrate(ctx, e, ef) }, err
+}
+
+func runMigrate(ctx context.Context, e *env, ef *engineFlags) error {
 	if err := ef.check("migrate"); err != nil {
 		return err
 	}

@@ -20,11 +20,8 @@ import (
 	"dampfront/model"
 )
 
-var plotCommand = &command{
-	name:    "plot",
-	summary: "write a chart as SVG or PNG: front, damper curves, hypervolume, road input, output spectra",
-	run:     runPlot,
-}
+var plotCommand = &command{name: "plot", synopsis: "CHART [flags] [JOB] (--svg FILE | --png FILE)", maxArgs: 2, client: true,
+	summary: "write a chart as SVG or PNG: front, damper curves, hypervolume, road input, output spectra", about: plotAbout, flags: bindPlot}
 
 // plotCharts are the charts of "plot", each with the flags of its own;
 // the flags of the page and the files, and the client's, go with every
@@ -63,9 +60,7 @@ Writes one chart to --svg FILE, --png FILE or both. Charts:
 The page is --width by --height in mm (0: the chart's own size), PNGs at
 --dpi. Every chart carries the model's caution in its footnote.`
 
-func runPlot(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "plot", "CHART [flags] [JOB] (--svg FILE | --png FILE)", plotAbout)
-	cf := addClientFlags(fs, e)
+func bindPlot(fs *flagSet, e *env) (runFunc, error) {
 	svgPath := fs.String("svg", "", "write the chart as SVG to this `file`")
 	pngPath := fs.String("png", "", "write the chart as PNG to this `file`")
 	width := fs.Float64("width", 0, "page width, `mm` (0: the chart's default)")
@@ -81,62 +76,62 @@ func runPlot(ctx context.Context, e *env, args []string) error {
 	specPath := fs.String("spec", "", "road, spectra: job spec `file` giving the car and the road cases")
 	setupPath := fs.String("setup", "", "spectra: setup `file` whose spectra to draw (with --spec, or on a JOB's car and roads)")
 	roadCase := fs.Int("case", 0, "spectra: `index` of the road case in the spec, from 0")
-	pos, err := fs.parse(args, 0, 2)
-	if err != nil {
-		return err
-	}
-	if len(pos) == 0 {
-		return usagef("plot", "name a chart: front, curves, hypervolume, road or spectra")
-	}
-	chart := pos[0]
-	own, ok := plotCharts[chart]
-	if !ok {
-		return usagef("plot", "unknown chart %q (want front, curves, hypervolume, road or spectra)", chart)
-	}
-	if err := checkChartFlags(fs, chart, own); err != nil {
-		return err
-	}
-	job := ""
-	if len(pos) == 2 {
-		job = jobName(pos[1])
-	}
-	if *svgPath == "" && *pngPath == "" {
-		return usagef("plot", "give --svg FILE, --png FILE or both")
-	}
-	if err := checkPlotSource(fs, chart, job, *specPath, *setupPath); err != nil {
-		return err
-	}
-	switch {
-	case isFlagSet(fs, "solution") && *solution < 0:
-		return usagef("plot", "--solution must be a front index >= 0")
-	case *roadCase < 0:
-		return usagef("plot", "--case must be a road case index >= 0")
-	case !(*width >= 0) || !(*height >= 0) || math.IsInf(*width, 0) || math.IsInf(*height, 0) || *dpi < 0:
-		return usagef("plot", "--width, --height and --dpi must be numbers >= 0")
-	}
-
-	var fig *plot.Figure
-	page := plotPage{title: *title, width: vg.Length(*width) * vg.Millimeter, height: vg.Length(*height) * vg.Millimeter}
-	switch chart {
-	case "spectra":
-		fig, err = plotSpectra(ctx, e, cf, job, *specPath, *setupPath, *solution, *roadCase, page)
-	case "road":
-		if job == "" {
-			var spec *pb.JobSpec
-			if spec, err = readSpec(e, *specPath); err == nil {
-				fig, err = plotRoad(spec, page)
-			}
-			break
+	return func(ctx context.Context, e *env, in *parsed) error {
+		pos, cf := in.args, in.client
+		if len(pos) == 0 {
+			return usagef("plot", "name a chart: front, curves, hypervolume, road or spectra")
 		}
-		fallthrough
-	default:
-		fig, err = plotOfJob(ctx, cf, chart, job, plot.FrontOptions{Objectives: objectives, ColourGene: *colour, Marked: int32s(marked)}, *solution, page)
-	}
-	if err != nil {
-		return figureError(err)
-	}
-	fig.DPI = *dpi
-	return writeFigure(e, fig, chart, *svgPath, *pngPath)
+		chart := pos[0]
+		own, ok := plotCharts[chart]
+		if !ok {
+			return usagef("plot", "unknown chart %q (want front, curves, hypervolume, road or spectra)", chart)
+		}
+		if err := checkChartFlags(fs, chart, own); err != nil {
+			return err
+		}
+		job := ""
+		if len(pos) == 2 {
+			job = jobName(pos[1])
+		}
+		if *svgPath == "" && *pngPath == "" {
+			return usagef("plot", "give --svg FILE, --png FILE or both")
+		}
+		if err := checkPlotSource(fs, chart, job, *specPath, *setupPath); err != nil {
+			return err
+		}
+		switch {
+		case isFlagSet(fs, "solution") && *solution < 0:
+			return usagef("plot", "--solution must be a front index >= 0")
+		case *roadCase < 0:
+			return usagef("plot", "--case must be a road case index >= 0")
+		case !(*width >= 0) || !(*height >= 0) || math.IsInf(*width, 0) || math.IsInf(*height, 0) || *dpi < 0:
+			return usagef("plot", "--width, --height and --dpi must be numbers >= 0")
+		}
+
+		var fig *plot.Figure
+		var err error
+		page := plotPage{title: *title, width: vg.Length(*width) * vg.Millimeter, height: vg.Length(*height) * vg.Millimeter}
+		switch chart {
+		case "spectra":
+			fig, err = plotSpectra(ctx, e, cf, job, *specPath, *setupPath, *solution, *roadCase, page)
+		case "road":
+			if job == "" {
+				var spec *pb.JobSpec
+				if spec, err = readSpec(e, *specPath); err == nil {
+					fig, err = plotRoad(spec, page)
+				}
+				break
+			}
+			fallthrough
+		default:
+			fig, err = plotOfJob(ctx, cf, chart, job, plot.FrontOptions{Objectives: objectives, ColourGene: *colour, Marked: int32s(marked)}, *solution, page)
+		}
+		if err != nil {
+			return figureError(err)
+		}
+		fig.DPI = *dpi
+		return writeFigure(e, fig, chart, *svgPath, *pngPath)
+	}, nil
 }
 
 // plotOfJob draws a chart of a job from the server: front (with opt),

@@ -41,7 +41,6 @@ const defaultDatabase = "dampfront.db"
 // matter only to a process that works jobs.
 func addEngineFlags(fs *flagSet, e *env, withWorkers bool) (*engineFlags, error) {
 	f := &engineFlags{}
-	var err error
 	fs.StringVar(&f.database, "database", envOr(e, "DAMPFRONT_DATABASE", defaultDatabase),
 		"SQLite file `path` (or sqlite:PATH), or a postgres:// URL shared by several hosts ($DAMPFRONT_DATABASE)")
 	fs.StringVar(&f.logLevel, "log-level", envOr(e, "DAMPFRONT_LOG_LEVEL", "info"), "log `level`: debug, info, warn or error ($DAMPFRONT_LOG_LEVEL)")
@@ -50,42 +49,18 @@ func addEngineFlags(fs *flagSet, e *env, withWorkers bool) (*engineFlags, error)
 	if !withWorkers {
 		return f, nil
 	}
-	migrate, err := envBool(e, fs.name, "DAMPFRONT_MIGRATE", true)
-	if err != nil {
-		return nil, err
-	}
-	fs.BoolVar(&f.migrate, "migrate", migrate, "create or upgrade the tables at start; false (PostgreSQL only) checks that dampfront migrate has run, for a database role without DDL rights ($DAMPFRONT_MIGRATE)")
-	workers, err := envInt(e, fs.name, "DAMPFRONT_WORKERS", 1)
-	if err != nil {
-		return nil, err
-	}
-	evalWorkers, err := envInt(e, fs.name, "DAMPFRONT_EVAL_WORKERS", 0)
-	if err != nil {
-		return nil, err
-	}
-	slice, err := envDuration(e, fs.name, "DAMPFRONT_SLICE", jobs.DefaultSliceDuration)
-	if err != nil {
-		return nil, err
-	}
-	ckpt, err := envDuration(e, fs.name, "DAMPFRONT_CHECKPOINT_INTERVAL", jobs.DefaultCheckpointInterval)
-	if err != nil {
-		return nil, err
-	}
-	stop, err := envDuration(e, fs.name, "DAMPFRONT_STOP_TIMEOUT", jobs.DefaultStopTimeout)
-	if err != nil {
-		return nil, err
-	}
-	maxSpec, err := envInt(e, fs.name, "DAMPFRONT_MAX_SPEC_BYTES", jobs.DefaultMaxSpecBytes)
-	if err != nil {
-		return nil, err
-	}
-	fs.IntVar(&f.workers, "workers", workers, "jobs this process works at once; 0 serves the API only ($DAMPFRONT_WORKERS)")
-	fs.IntVar(&f.evalWorkers, "eval-workers", evalWorkers, "evaluations each job runs at once; 0 means one per CPU ($DAMPFRONT_EVAL_WORKERS)")
-	fs.DurationVar(&f.slice, "slice", slice, "wall time of one slice of a job before it checkpoints and requeues ($DAMPFRONT_SLICE)")
-	fs.DurationVar(&f.checkpointEvery, "checkpoint-interval", ckpt, "wall time between checkpoints inside a slice: the most work a crash loses ($DAMPFRONT_CHECKPOINT_INTERVAL)")
-	fs.DurationVar(&f.stopTimeout, "stop-timeout", stop, "on SIGTERM, time allowed to checkpoint and hand running jobs back ($DAMPFRONT_STOP_TIMEOUT)")
+	d := &envDefaults{e: e, cmd: fs.name}
+	fs.BoolVar(&f.migrate, "migrate", d.bool("DAMPFRONT_MIGRATE", true), "create or upgrade the tables at start; false (PostgreSQL only) checks that dampfront migrate has run, for a database role without DDL rights ($DAMPFRONT_MIGRATE)")
+	fs.IntVar(&f.workers, "workers", d.int("DAMPFRONT_WORKERS", 1), "jobs this process works at once; 0 serves the API only ($DAMPFRONT_WORKERS)")
+	fs.IntVar(&f.evalWorkers, "eval-workers", d.int("DAMPFRONT_EVAL_WORKERS", 0), "evaluations each job runs at once; 0 means one per CPU ($DAMPFRONT_EVAL_WORKERS)")
+	fs.DurationVar(&f.slice, "slice", d.duration("DAMPFRONT_SLICE", jobs.DefaultSliceDuration), "wall time of one slice of a job before it checkpoints and requeues ($DAMPFRONT_SLICE)")
+	fs.DurationVar(&f.checkpointEvery, "checkpoint-interval", d.duration("DAMPFRONT_CHECKPOINT_INTERVAL", jobs.DefaultCheckpointInterval), "wall time between checkpoints inside a slice: the most work a crash loses ($DAMPFRONT_CHECKPOINT_INTERVAL)")
+	fs.DurationVar(&f.stopTimeout, "stop-timeout", d.duration("DAMPFRONT_STOP_TIMEOUT", jobs.DefaultStopTimeout), "on SIGTERM, time allowed to checkpoint and hand running jobs back ($DAMPFRONT_STOP_TIMEOUT)")
 	fs.StringVar(&f.nodeID, "node-id", envOr(e, "DAMPFRONT_NODE_ID", ""), "`name` of this host or container, unique among the workers; default the host name ($DAMPFRONT_NODE_ID)")
-	fs.IntVar(&f.maxSpecBytes, "max-spec-bytes", maxSpec, "largest job spec accepted ($DAMPFRONT_MAX_SPEC_BYTES)")
+	fs.IntVar(&f.maxSpecBytes, "max-spec-bytes", d.int("DAMPFRONT_MAX_SPEC_BYTES", jobs.DefaultMaxSpecBytes), "largest job spec accepted ($DAMPFRONT_MAX_SPEC_BYTES)")
+	if d.err != nil {
+		return nil, d.err
+	}
 	return f, nil
 }
 

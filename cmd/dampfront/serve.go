@@ -14,11 +14,8 @@ import (
 	"dampfront/api"
 )
 
-var serveCommand = &command{
-	name:    "serve",
-	summary: "run the gRPC server with an embedded worker (SQLite file by default)",
-	run:     runServe,
-}
+var serveCommand = &command{name: "serve", synopsis: "[flags]",
+	summary: "run the gRPC server with an embedded worker (SQLite file by default)", about: serveAbout, flags: bindServe}
 
 // serveAbout is the help text of serve.
 const serveAbout = `
@@ -44,77 +41,75 @@ damper curves; the same tokens, as a bearer header or a login form's
 cookie) and Prometheus metrics at /metrics (job counts, slice and call
 times; no token needed), off by default.`
 
-func runServe(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "serve", "[flags]", serveAbout)
+func bindServe(fs *flagSet, e *env) (runFunc, error) {
 	addr := fs.String("addr", envOr(e, "DAMPFRONT_ADDR", defaultAddr), "listen address host:port; port 0 picks a free one ($DAMPFRONT_ADDR)")
 	addrFile := fs.String("addr-file", "", "write the address actually listened on to this `file`")
 	ef, err := addEngineFlags(fs, e, true)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	lf, err := addLimitFlags(fs, e)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	sf := addServerSecurityFlags(fs, e)
 	wf := addWebFlags(fs, e)
-	if _, err := fs.parse(args, 0, 0); err != nil {
-		return err
-	}
-	if err := ef.check("serve"); err != nil {
-		return err
-	}
-	if err := lf.check("serve"); err != nil {
-		return err
-	}
-	sec, err := sf.load("serve", *addr)
-	if err != nil {
-		return err
-	}
-	if err := wf.check(sec, sf.insecureNoAuth); err != nil {
-		return err
-	}
-	log := ef.logger(e.stderr)
-	cfg := ef.jobsConfig(log)
-	wf.configure(&cfg, log)
-	eng, err := openEngine(ctx, cfg, ef.evalWorkers)
-	if err != nil {
-		return err
-	}
-	lis, err := net.Listen("tcp", *addr)
-	if err != nil {
-		_ = eng.Close()
-		return fmt.Errorf("listen on %s: %w", *addr, err)
-	}
-	opt := lf.options()
-	opt.Logger = log
-	sec.apply(&opt)
-	svc, err := startService(ctx, eng, lis, opt, ef.stopTimeout, log, wf.grpcOptions()...)
-	if err != nil {
-		_ = lis.Close()
-		_ = eng.Close()
-		return err
-	}
-	bound := lis.Addr().String()
-	if *addrFile != "" {
-		if err := writeAddrFile(*addrFile, bound); err != nil {
-			_ = svc.shutdown()
-			return fmt.Errorf("write --addr-file: %w", err)
+	return func(ctx context.Context, e *env, in *parsed) error {
+		if err := ef.check("serve"); err != nil {
+			return err
 		}
-	}
-	log.Info("serving", "address", bound, "database", redactURL(ef.database), "backend", eng.Backend(), "workers", ef.workers)
-	sec.logStart(log, bound)
-	pg, err := wf.start(eng, opt, sec.tls, log)
-	if err != nil {
-		_ = svc.shutdown()
-		return err
-	}
-	waitServing(ctx, svc, func() { sf.reload(sec, log) }, log, ef.stopTimeout)
-	if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil {
-		return err
-	}
-	log.Info("stopped")
-	return nil
+		if err := lf.check("serve"); err != nil {
+			return err
+		}
+		sec, err := sf.load("serve", *addr)
+		if err != nil {
+			return err
+		}
+		if err := wf.check(sec, sf.insecureNoAuth); err != nil {
+			return err
+		}
+		log := ef.logger(e.stderr)
+		cfg := ef.jobsConfig(log)
+		wf.configure(&cfg, log)
+		eng, err := openEngine(ctx, cfg, ef.evalWorkers)
+		if err != nil {
+			return err
+		}
+		lis, err := net.Listen("tcp", *addr)
+		if err != nil {
+			_ = eng.Close()
+			return fmt.Errorf("listen on %s: %w", *addr, err)
+		}
+		opt := lf.options()
+		opt.Logger = log
+		sec.apply(&opt)
+		svc, err := startService(ctx, eng, lis, opt, ef.stopTimeout, log, wf.grpcOptions()...)
+		if err != nil {
+			_ = lis.Close()
+			_ = eng.Close()
+			return err
+		}
+		bound := lis.Addr().String()
+		if *addrFile != "" {
+			if err := writeAddrFile(*addrFile, bound); err != nil {
+				_ = svc.shutdown()
+				return fmt.Errorf("write --addr-file: %w", err)
+			}
+		}
+		log.Info("serving", "address", bound, "database", redactURL(ef.database), "backend", eng.Backend(), "workers", ef.workers)
+		sec.logStart(log, bound)
+		pg, err := wf.start(eng, opt, sec.tls, log)
+		if err != nil {
+			_ = svc.shutdown()
+			return err
+		}
+		waitServing(ctx, svc, func() { sf.reload(sec, log) }, log, ef.stopTimeout)
+		if err := errors.Join(pg.shutdown(pageStopTimeout), svc.shutdown()); err != nil {
+			return err
+		}
+		log.Info("stopped")
+		return nil
+	}, nil
 }
 
 // waitServing waits until ctx ends or the service stops serving; each
@@ -150,36 +145,16 @@ type limitFlags struct {
 
 func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 	l := &limitFlags{}
-	jobWork, err := envInt(e, fs.name, "DAMPFRONT_MAX_JOB_WORK", api.DefaultMaxJobWork)
-	if err != nil {
-		return nil, err
+	d := &envDefaults{e: e, cmd: fs.name}
+	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(d.int("DAMPFRONT_MAX_JOB_WORK", api.DefaultMaxJobWork)), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
+	fs.IntVar(&l.maxGridPoints, "max-grid-points", d.int("DAMPFRONT_MAX_GRID_POINTS", api.DefaultMaxGridPoints), "finest frequency grid of a spec, in points ($DAMPFRONT_MAX_GRID_POINTS)")
+	fs.IntVar(&l.maxSyncWork, "max-sync-work", d.int("DAMPFRONT_MAX_SYNC_WORK", api.DefaultMaxSyncWork), "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
+	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", d.int("DAMPFRONT_MAX_CONCURRENT_EVALUATIONS", 0), "EvaluateSetups, CompareSetup and VerifySetup calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
+	fs.IntVar(&l.maxMessage, "max-message-bytes", d.int("DAMPFRONT_MAX_MESSAGE_BYTES", api.DefaultMaxMessageBytes), "largest gRPC request or response ($DAMPFRONT_MAX_MESSAGE_BYTES)")
+	fs.DurationVar(&l.rpcTimeout, "rpc-timeout", d.duration("DAMPFRONT_RPC_TIMEOUT", api.DefaultRPCTimeout), "longest a call other than watch may run on the server, whatever the client's deadline; 0 for no limit ($DAMPFRONT_RPC_TIMEOUT)")
+	if d.err != nil {
+		return nil, d.err
 	}
-	gridPoints, err := envInt(e, fs.name, "DAMPFRONT_MAX_GRID_POINTS", api.DefaultMaxGridPoints)
-	if err != nil {
-		return nil, err
-	}
-	syncWork, err := envInt(e, fs.name, "DAMPFRONT_MAX_SYNC_WORK", api.DefaultMaxSyncWork)
-	if err != nil {
-		return nil, err
-	}
-	evals, err := envInt(e, fs.name, "DAMPFRONT_MAX_CONCURRENT_EVALUATIONS", 0)
-	if err != nil {
-		return nil, err
-	}
-	msg, err := envInt(e, fs.name, "DAMPFRONT_MAX_MESSAGE_BYTES", api.DefaultMaxMessageBytes)
-	if err != nil {
-		return nil, err
-	}
-	rpcTimeout, err := envDuration(e, fs.name, "DAMPFRONT_RPC_TIMEOUT", api.DefaultRPCTimeout)
-	if err != nil {
-		return nil, err
-	}
-	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(jobWork), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
-	fs.IntVar(&l.maxGridPoints, "max-grid-points", gridPoints, "finest frequency grid of a spec, in points ($DAMPFRONT_MAX_GRID_POINTS)")
-	fs.IntVar(&l.maxSyncWork, "max-sync-work", syncWork, "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
-	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", evals, "EvaluateSetups, CompareSetup and VerifySetup calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")
-	fs.IntVar(&l.maxMessage, "max-message-bytes", msg, "largest gRPC request or response ($DAMPFRONT_MAX_MESSAGE_BYTES)")
-	fs.DurationVar(&l.rpcTimeout, "rpc-timeout", rpcTimeout, "longest a call other than watch may run on the server, whatever the client's deadline; 0 for no limit ($DAMPFRONT_RPC_TIMEOUT)")
 	return l, nil
 }
 

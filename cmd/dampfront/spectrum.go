@@ -15,11 +15,8 @@ import (
 	"dampfront/model"
 )
 
-var spectrumCommand = &command{
-	name:    "spectrum",
-	summary: "road spectra of a measured profile, its ISO 8608 class, and a road case from it",
-	run:     runSpectrum,
-}
+var spectrumCommand = &command{name: "spectrum", synopsis: "[flags] PROFILE.csv", minArgs: 1, maxArgs: 1,
+	summary: "road spectra of a measured profile, its ISO 8608 class, and a road case from it", about: spectrumAbout, flags: bindSpectrum}
 
 // bodyModeHz is the frequency below which a road case's measured table
 // should reach: race-car heave and pitch modes lie at about 1.5-3 Hz
@@ -50,8 +47,7 @@ coherence model), or with --fitted the fitted power law. It goes to --out
 FILE, or to standard output, which then carries nothing else (the summary
 goes to standard error).`
 
-func runSpectrum(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "spectrum", "[flags] PROFILE.csv", spectrumAbout)
+func bindSpectrum(fs *flagSet, e *env) (runFunc, error) {
 	segment := fs.Float64("segment", 0, "Welch segment length, `m` (0: an eighth of the record); the resolution is its inverse")
 	bandMin := fs.Float64("band-min", 0, "lowest spatial frequency of the fit and of the road case's table, `cycles/m` (0: the fifth bin, at least 0.011)")
 	bandMax := fs.Float64("band-max", 0, "highest spatial frequency, `cycles/m` (0: 2.83, or half the Nyquist frequency when lower)")
@@ -61,60 +57,59 @@ func runSpectrum(ctx context.Context, e *env, args []string) error {
 	speed := fs.Float64("speed", 0, "speed of the road case, `m/s`")
 	fitted := fs.Bool("fitted", false, "the road case gets the fitted power law instead of the measured table")
 	outPath := fs.String("out", "", "write the road case to this `file` instead of standard output")
-	pos, err := fs.parse(args, 1, 1)
-	if err != nil {
-		return err
-	}
-	switch {
-	case *segment < 0 || math.IsNaN(*segment) || math.IsInf(*segment, 0):
-		return usagef("spectrum", "--segment must be a length in m >= 0, got %g", *segment)
-	case *bandMin < 0 || *bandMax < 0 || math.IsNaN(*bandMin) || math.IsNaN(*bandMax) || math.IsInf(*bandMin, 0) || math.IsInf(*bandMax, 0):
-		return usagef("spectrum", "--band-min and --band-max must be spatial frequencies >= 0")
-	case *bandMin > 0 && *bandMax > 0 && *bandMax <= *bandMin:
-		return usagef("spectrum", "--band-max (%g) must be above --band-min (%g)", *bandMax, *bandMin)
-	case *caseName == "" && (isFlagSet(fs, "speed") || *fitted || *outPath != ""):
-		return usagef("spectrum", "--speed, --fitted and --out need --road-case")
-	case *caseName != "" && !(*speed > 0 && !math.IsInf(*speed, 0)):
-		return usagef("spectrum", "--road-case needs --speed, a speed in m/s > 0")
-	}
+	return func(ctx context.Context, e *env, in *parsed) error {
+		pos := in.args
+		switch {
+		case *segment < 0 || math.IsNaN(*segment) || math.IsInf(*segment, 0):
+			return usagef("spectrum", "--segment must be a length in m >= 0, got %g", *segment)
+		case *bandMin < 0 || *bandMax < 0 || math.IsNaN(*bandMin) || math.IsNaN(*bandMax) || math.IsInf(*bandMin, 0) || math.IsInf(*bandMax, 0):
+			return usagef("spectrum", "--band-min and --band-max must be spatial frequencies >= 0")
+		case *bandMin > 0 && *bandMax > 0 && *bandMax <= *bandMin:
+			return usagef("spectrum", "--band-max (%g) must be above --band-min (%g)", *bandMax, *bandMin)
+		case *caseName == "" && (isFlagSet(fs, "speed") || *fitted || *outPath != ""):
+			return usagef("spectrum", "--speed, --fitted and --out need --road-case")
+		case *caseName != "" && !(*speed > 0 && !math.IsInf(*speed, 0)):
+			return usagef("spectrum", "--road-case needs --speed, a speed in m/s > 0")
+		}
 
-	est, err := estimateProfile(e, pos[0], *segment, *bandMin, *bandMax)
-	if err != nil {
-		return err
-	}
-	lo := est.lo
-
-	summary, data := e.stdout, e.stdout
-	if *caseName != "" && *outPath == "" {
-		summary, data = e.stderr, nil // stdout carries only the road case
-	}
-	if data != nil {
-		if err := writeSpectrum(data, format.value, est); err != nil {
+		est, err := estimateProfile(e, pos[0], *segment, *bandMin, *bandMax)
+		if err != nil {
 			return err
 		}
-	} else if format.value == "table" {
-		writeSpectrumSummary(summary, est)
-	}
-	if *caseName == "" {
+		lo := est.lo
+
+		summary, data := e.stdout, e.stdout
+		if *caseName != "" && *outPath == "" {
+			summary, data = e.stderr, nil // stdout carries only the road case
+		}
+		if data != nil {
+			if err := writeSpectrum(data, format.value, est); err != nil {
+				return err
+			}
+		} else if format.value == "table" {
+			writeSpectrumSummary(summary, est)
+		}
+		if *caseName == "" {
+			return nil
+		}
+		var rc bytes.Buffer
+		if err := writeRoadCaseYAML(&rc, est, *caseName, *speed, *fitted); err != nil {
+			return err
+		}
+		if !*fitted && lo**speed > bodyModeHz {
+			fmt.Fprintf(e.stderr, "dampfront spectrum: warning: the measured table starts at %.3g cycles/m, %.2g Hz at %g m/s: below that the road case extends the slope of its first segment, over the body modes (1.5-3 Hz); a longer record, a longer --segment or --fitted reaches lower\n",
+				lo, lo**speed, *speed)
+		}
+		if *outPath == "" {
+			_, err := e.stdout.Write(rc.Bytes())
+			return err
+		}
+		if err := os.WriteFile(*outPath, rc.Bytes(), 0o644); err != nil {
+			return err
+		}
+		fmt.Fprintf(summary, "Wrote road case %q to %s.\n", *caseName, *outPath)
 		return nil
-	}
-	var rc bytes.Buffer
-	if err := writeRoadCaseYAML(&rc, est, *caseName, *speed, *fitted); err != nil {
-		return err
-	}
-	if !*fitted && lo**speed > bodyModeHz {
-		fmt.Fprintf(e.stderr, "dampfront spectrum: warning: the measured table starts at %.3g cycles/m, %.2g Hz at %g m/s: below that the road case extends the slope of its first segment, over the body modes (1.5-3 Hz); a longer record, a longer --segment or --fitted reaches lower\n",
-			lo, lo**speed, *speed)
-	}
-	if *outPath == "" {
-		_, err := e.stdout.Write(rc.Bytes())
-		return err
-	}
-	if err := os.WriteFile(*outPath, rc.Bytes(), 0o644); err != nil {
-		return err
-	}
-	fmt.Fprintf(summary, "Wrote road case %q to %s.\n", *caseName, *outPath)
-	return nil
+	}, nil
 }
 
 // estimateProfile reads a profile, estimates its spectrum and fits the

@@ -9,52 +9,57 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-var submitCommand = &command{
-	name:    "submit",
-	summary: "queue a job from a YAML or JSON spec and print its ID",
-	run:     runSubmit,
-}
-
-func runSubmit(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "submit", "[flags] SPEC", `
+// submitAbout is the help text of submit.
+const submitAbout = `
 Reads a job spec (a dampfront.v1 JobSpec in YAML or JSON, "-" for standard
 input; see testdata/demo-job.yaml), queues it on the server and prints the
 job ID on standard output. With --watch it then follows the job as the
-watch subcommand does and exits with its exit code.`)
-	cf := addClientFlags(fs, e)
-	sf := addSpecFlags(fs)
-	labels := labelFlag{}
-	fs.Var(labels, "label", "add a label `key=value` (repeatable, or comma-separated)")
-	name := fs.String("name", "", "replace the spec's display name")
-	seed := fs.String("seed", "", "replace the spec's search seed (an unsigned integer)")
-	watch := fs.Bool("watch", false, "follow the job until it ends")
-	wf := addWatchModeFlags(fs)
-	pos, err := fs.parse(args, 1, 1)
+watch subcommand does and exits with its exit code.`
+
+var submitCommand = &command{name: "submit", synopsis: "[flags] SPEC", minArgs: 1, maxArgs: 1, client: true,
+	summary: "queue a job from a YAML or JSON spec and print its ID", about: submitAbout, flags: bindSubmit}
+
+func bindSubmit(fs *flagSet, _ *env) (runFunc, error) {
+	f := &submitFlags{sf: addSpecFlags(fs), labels: labelFlag{}, wf: addWatchModeFlags(fs)}
+	fs.Var(f.labels, "label", "add a label `key=value` (repeatable, or comma-separated)")
+	fs.StringVar(&f.name, "name", "", "replace the spec's display name")
+	fs.StringVar(&f.seed, "seed", "", "replace the spec's search seed (an unsigned integer)")
+	fs.BoolVar(&f.watch, "watch", false, "follow the job until it ends")
+	return f.run, nil
+}
+
+// submitFlags are submit's own flags.
+type submitFlags struct {
+	sf         *specFlags
+	labels     labelFlag
+	name, seed string
+	watch      bool
+	wf         *watchModes
+}
+
+func (f *submitFlags) run(ctx context.Context, e *env, in *parsed) error {
+	if err := f.wf.check("submit"); err != nil {
+		return err
+	}
+	spec, err := f.sf.load(e, in.args[0])
 	if err != nil {
 		return err
 	}
-	if err := wf.check("submit"); err != nil {
-		return err
+	if f.name != "" {
+		spec.DisplayName = f.name
 	}
-	spec, err := sf.load(e, pos[0])
-	if err != nil {
-		return err
-	}
-	if *name != "" {
-		spec.DisplayName = *name
-	}
-	if len(labels) > 0 && spec.Labels == nil {
+	if len(f.labels) > 0 && spec.Labels == nil {
 		spec.Labels = map[string]string{}
 	}
-	for k, v := range labels {
+	for k, v := range f.labels {
 		spec.Labels[k] = v
 	}
 	seedSet := false
-	fs.Visit(func(f *flag.Flag) { seedSet = seedSet || f.Name == "seed" })
+	in.fs.Visit(func(fl *flag.Flag) { seedSet = seedSet || fl.Name == "seed" })
 	if seedSet {
-		s, err := strconv.ParseUint(*seed, 10, 64)
+		s, err := strconv.ParseUint(f.seed, 10, 64)
 		if err != nil {
-			return usagef("submit", "--seed %q is not an unsigned integer", *seed)
+			return usagef("submit", "--seed %q is not an unsigned integer", f.seed)
 		}
 		if spec.Search == nil {
 			spec.Search = &pb.SearchSettings{}
@@ -62,7 +67,7 @@ watch subcommand does and exits with its exit code.`)
 		spec.Search.Seed = &s
 	}
 
-	c, err := cf.dial()
+	c, err := in.client.dial()
 	if err != nil {
 		return err
 	}
@@ -74,9 +79,9 @@ watch subcommand does and exits with its exit code.`)
 		return err
 	}
 	fmt.Fprintln(e.stdout, resp.GetJob().GetJobId())
-	if !*watch {
+	if !f.watch {
 		return nil
 	}
-	_, err = watchJob(ctx, e, c, resp.GetJob().GetName(), wf)
+	_, err = watchJob(ctx, e, c, resp.GetJob().GetName(), f.wf)
 	return err
 }

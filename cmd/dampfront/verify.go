@@ -12,11 +12,10 @@ import (
 	"dampfront/model"
 )
 
-var verifyCommand = &command{
-	name:    "verify",
-	summary: "time-domain check of a setup: the nonlinear dampers against the linear answer",
-	run:     runVerify,
-}
+var verifyCommand = &command{name: "verify", synopsis: verifySynopsis, maxArgs: 1, client: true,
+	summary: "time-domain check of a setup: the nonlinear dampers against the linear answer", about: verifyAbout, flags: bindVerify}
+
+func bindVerify(fs *flagSet, _ *env) (runFunc, error) { return newVerifyFlags(fs).run, nil }
 
 // verifyWarn is the time fraction off the road or beyond the bump-stop
 // gap above which a corner is named: the 1 % of the design's validity
@@ -77,9 +76,8 @@ type verifyFlags struct {
 	parallel            *int
 }
 
-func newVerifyFlags(e *env) *verifyFlags {
-	fs := newFlagSet(e, "verify", verifySynopsis, verifyAbout)
-	f := &verifyFlags{fs: fs, cf: addClientFlags(fs, e), sf: addSpecFlags(fs)}
+func newVerifyFlags(fs *flagSet) *verifyFlags {
+	f := &verifyFlags{fs: fs, sf: addSpecFlags(fs)}
 	f.specPath = fs.String("spec", "", "job spec `file` giving the car and road cases (local check)")
 	f.setupPath = fs.String("setup", "", "setup `file` to check")
 	f.solution = fs.Int("solution", -1, "`index` of a solution of the job's front")
@@ -123,12 +121,11 @@ func (f *verifyFlags) check(pos []string) error {
 	return nil
 }
 
-func runVerify(ctx context.Context, e *env, args []string) error {
-	f := newVerifyFlags(e)
-	pos, err := f.fs.parse(args, 0, 1)
-	if err != nil {
-		return err
-	}
+// run checks one setup, or with --all every solution of a job's front;
+// the client flags are the dispatcher's.
+func (f *verifyFlags) run(ctx context.Context, e *env, parsed *parsed) error {
+	f.cf = parsed.client
+	pos := parsed.args
 	if !(*f.duration > 0) || math.IsInf(*f.duration, 0) {
 		return usagef("verify", "--duration must be a number of seconds > 0, got %g", *f.duration)
 	}

@@ -15,34 +15,32 @@ import (
 	"dampfront/api/web"
 )
 
-var watchCommand = &command{
-	name:    "watch",
-	summary: "follow a job with a progress bar until it ends",
-	run:     runWatch,
-}
-
-func runWatch(ctx context.Context, e *env, args []string) error {
-	fs := newFlagSet(e, "watch", "[flags] JOB", `
+// watchAbout is the help text of watch.
+const watchAbout = `
 Follows a job until it ends: a progress bar of generations on standard
 error with the hypervolume and the best value of each objective, then one
 line with the final state on standard output. The exit code is 0 when the
 job succeeded and 1 when it failed or was cancelled. If the server goes
-away (restart, crash) the watch reconnects for up to --reconnect.`)
-	cf := addClientFlags(fs, e)
+away (restart, crash) the watch reconnects for up to --reconnect.`
+
+var watchCommand = &command{name: "watch", synopsis: "[flags] JOB", minArgs: 1, maxArgs: 1, client: true,
+	summary: "follow a job with a progress bar until it ends", about: watchAbout, flags: bindWatch}
+
+func bindWatch(fs *flagSet, _ *env) (runFunc, error) {
 	wf := addWatchModeFlags(fs)
-	pos, err := fs.parse(args, 1, 1)
-	if err != nil {
-		return err
-	}
+	return func(ctx context.Context, e *env, in *parsed) error { return runWatch(ctx, e, in, wf) }, nil
+}
+
+func runWatch(ctx context.Context, e *env, in *parsed, wf *watchModes) error {
 	if err := wf.check("watch"); err != nil {
 		return err
 	}
-	c, err := cf.dial()
+	c, err := in.client.dial()
 	if err != nil {
 		return err
 	}
 	defer c.Close()
-	_, err = watchJob(ctx, e, c, jobName(pos[0]), wf)
+	_, err = watchJob(ctx, e, c, jobName(in.args[0]), wf)
 	return err
 }
 

@@ -164,7 +164,7 @@ func (r *run) detail(s optimizer.Solution) *Solution {
 	// gives the same bits, and this keeps it so by construction.
 	sol.Genes, sol.Objectives, sol.Violations, sol.Feasible = s.Genes, s.Objectives, s.Violations, s.Feasible
 	if s.Feasible {
-		sol.InfeasibleReason = ""
+		sol.InfeasibleReason, sol.Shortfalls = "", nil
 	} else if s.Reason != "" {
 		sol.InfeasibleReason = s.Reason
 	}

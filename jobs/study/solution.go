@@ -21,9 +21,13 @@ type Solution struct {
 	// InfeasibleReason says why a solution is not feasible: every
 	// violated constraint, or why the model could not evaluate it.
 	InfeasibleReason string
-	Cases            []CaseDetail
-	Curves           []model.DamperCurve // nil when they cannot be drawn (see Warnings)
-	Warnings         []string            // every case's warnings, then the curves'
+	// Shortfalls holds every violated constraint, in the spec's order,
+	// with its worst value, road case (an index into Cases) and how far
+	// over; empty when every constraint is met.
+	Shortfalls []model.Shortfall
+	Cases      []CaseDetail
+	Curves     []model.DamperCurve // nil when they cannot be drawn (see Warnings)
+	Warnings   []string            // every case's warnings, then the curves'
 }
 
 // CaseDetail is one road case of a solution.
@@ -47,6 +51,7 @@ func (pl *Plan) Evaluate(s model.Setup) *Solution {
 	sol.Violations = make([]float64, pl.problem.NumConstraints())
 	pl.problem.Score(&r, sol.Objectives, sol.Violations)
 	sol.Feasible, sol.InfeasibleReason = pl.feasibility(sol.Objectives, sol.Violations)
+	sol.Shortfalls = violated(pl.problem.Shortfalls(&r))
 	pl.describe(sol, s, &r)
 	return sol
 }
@@ -97,4 +102,15 @@ func (pl *Plan) feasibility(obj, viol []float64) (bool, string) {
 		return true, ""
 	}
 	return false, strings.Join(why, "; ")
+}
+
+// violated keeps the shortfalls of the violated constraints, in order.
+func violated(all []model.Shortfall) []model.Shortfall {
+	var out []model.Shortfall
+	for _, sf := range all {
+		if sf.Violation > 0 || math.IsNaN(sf.Violation) {
+			out = append(out, sf)
+		}
+	}
+	return out
 }
