@@ -89,6 +89,7 @@ var (
 		pb.Aggregation_AGGREGATION_UNSPECIFIED: model.AggregateMeanSquare,
 		pb.Aggregation_AGGREGATION_MEAN_SQUARE: model.AggregateMeanSquare,
 		pb.Aggregation_AGGREGATION_WORST:       model.AggregateWorst,
+		pb.Aggregation_AGGREGATION_NORMALISED:  model.AggregateNormalised,
 	}
 	constraintKinds = map[pb.ConstraintKind]model.ConstraintKind{
 		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:    model.ConstraintLiftOff,
@@ -127,8 +128,11 @@ func objectiveToProto(o model.Objective) *pb.Objective {
 		}
 	}
 	out.Aggregation = pb.Aggregation_AGGREGATION_MEAN_SQUARE
-	if o.Aggregation == model.AggregateWorst {
+	switch o.Aggregation {
+	case model.AggregateWorst:
 		out.Aggregation = pb.Aggregation_AGGREGATION_WORST
+	case model.AggregateNormalised:
+		out.Aggregation = pb.Aggregation_AGGREGATION_NORMALISED
 	}
 	return out
 }

@@ -26,6 +26,10 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 		Adjustment:  adjustmentFromProto(s.GetAdjustment()),
 		Curves:      study.Curves{MaxVelocity: s.GetCurves().GetMaxVelocityMPerS(), Points: int(s.GetCurves().GetPoints())},
 	}
+	if ref := s.GetReferenceSetup(); ref != nil {
+		r := setupFromProto(ref, at("reference_setup"), p)
+		out.Reference = &r
+	}
 	q := s.GetSearch()
 	if q == nil {
 		return out
@@ -101,6 +105,10 @@ func fillDefaults(spec *pb.JobSpec, d *study.Spec) *pb.JobSpec {
 		if o != nil && o.Aggregation == pb.Aggregation_AGGREGATION_UNSPECIFIED {
 			o.Aggregation = objectiveToProto(d.Objectives[i]).Aggregation
 		}
+	}
+
+	if s.ReferenceSetup == nil && d.Reference != nil {
+		s.ReferenceSetup = setupToProto(*d.Reference)
 	}
 
 	if s.Curves == nil {

@@ -43,6 +43,13 @@ func Check(s *Spec) (*Checked, error) {
 	}
 	p.merge("grid.", spec.Grid.Validate())
 	p.mergeMapped(problemPath, model.ValidateProblem(c.design, spec.Objectives, spec.Constraints))
+	if spec.Reference != nil {
+		if !normalises(spec.Objectives) {
+			p.add("reference_setup", "is used only by objectives with the normalised aggregation, and none has it")
+		} else {
+			p.merge("reference_setup.", spec.Reference.Validate())
+		}
+	}
 	// The base setup with valid placeholder ratios, which are genes.
 	base := c.design.Base
 	for ax := range base.Axles {

@@ -93,6 +93,15 @@ func WithDefaults(s *Spec) *Spec {
 	} else {
 		out.Objectives = slices.Clone(s.Objectives)
 	}
+	if s.Reference != nil {
+		ref := *s.Reference
+		out.Reference = &ref
+	} else if normalises(out.Objectives) {
+		// The default reference: the middle of every gene's bounds.
+		md := d.model()
+		ref := md.Middle()
+		out.Reference = &ref
+	}
 	out.Constraints = slices.Clone(s.Constraints)
 	if out.Curves.MaxVelocity == 0 {
 		out.Curves.MaxVelocity = DefaultCurveMaxVelocity
@@ -161,4 +170,15 @@ func (d *Design) GeneNames() []string {
 		out = append(out, g.Name)
 	}
 	return out
+}
+
+// normalises reports whether any objective is normalised against a
+// reference setup.
+func normalises(objectives []model.Objective) bool {
+	for _, o := range objectives {
+		if o.Aggregation == model.AggregateNormalised {
+			return true
+		}
+	}
+	return false
 }

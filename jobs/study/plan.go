@@ -39,6 +39,9 @@ func (c *Checked) Compile(ctx context.Context) (*Plan, error) {
 		return nil, err
 	}
 	problem, err := model.NewProblem(eval, c.design, spec.Objectives, spec.Constraints)
+	if err == nil && spec.Reference != nil {
+		err = problem.SetReference(*spec.Reference)
+	}
 	if err != nil {
 		var p problems
 		p.mergeMapped(problemPath, err)

@@ -13,6 +13,11 @@ type Spec struct {
 	Grid        model.Grid       // zero fields take model.DefaultGrid's
 	Design      Design
 	Objectives  []model.Objective // empty means DefaultObjectives
+	// Reference is the setup that normalised objectives are taken
+	// relative to (model.AggregateNormalised); nil is the middle of the
+	// design space's bounds when an objective is normalised. Only a spec
+	// with a normalised objective has one.
+	Reference   *model.Setup
 	Constraints []model.Constraint
 	Adjustment  model.Adjustment // adjuster range shown on the damper curves
 	Curves      Curves

@@ -83,21 +83,28 @@ type Quantity struct {
 // Objective is how an objective is shown. A kind the table does not know
 // is shown in SI under its name.
 func Objective(k model.ObjectiveKind) Quantity {
-	switch k {
-	case model.ObjectiveGrip:
-		return Quantity{"grip", "Grip: tyre load variation", PercentStatic, 2, "grip_rel"}
-	case model.ObjectivePlatform:
-		return Quantity{"platform", "Platform: ride-height variation", Millimetre, 3, "platform_m"}
-	case model.ObjectiveFrontPlatform:
-		return Quantity{"front platform", "Front platform: ride-height variation", Millimetre, 3, "front_platform_m"}
-	case model.ObjectiveRearPlatform:
-		return Quantity{"rear platform", "Rear platform: ride-height variation", Millimetre, 3, "rear_platform_m"}
-	case model.ObjectivePitch:
-		return Quantity{"pitch", "Pitch variation", Degree, 4, "pitch_rad"}
-	case model.ObjectiveRoll:
-		return Quantity{"roll", "Roll variation", Degree, 4, "roll_rad"}
-	case model.ObjectiveHeaveAccel:
-		return Quantity{"heave accel", "Heave acceleration", Gravity, 4, "heave_accel_m_per_s2"}
+	return lookup(objectives, k)
+}
+
+// objectives is the table of Objective.
+var objectives = map[model.ObjectiveKind]Quantity{
+	model.ObjectiveGrip:          {"grip", "Grip: tyre load variation", PercentStatic, 2, "grip_rel"},
+	model.ObjectivePlatform:      {"platform", "Platform: ride-height variation", Millimetre, 3, "platform_m"},
+	model.ObjectiveFrontPlatform: {"front platform", "Front platform: ride-height variation", Millimetre, 3, "front_platform_m"},
+	model.ObjectiveRearPlatform:  {"rear platform", "Rear platform: ride-height variation", Millimetre, 3, "rear_platform_m"},
+	model.ObjectivePitch:         {"pitch", "Pitch variation", Degree, 4, "pitch_rad"},
+	model.ObjectiveRoll:          {"roll", "Roll variation", Degree, 4, "roll_rad"},
+	model.ObjectiveHeaveAccel:    {"heave accel", "Heave acceleration", Gravity, 4, "heave_accel_m_per_s2"},
+}
+
+// lookup is k's row of table, or for a kind the table does not know its
+// name in SI.
+func lookup[K interface {
+	comparable
+	String() string
+}](table map[K]Quantity, k K) Quantity {
+	if q, ok := table[k]; ok {
+		return q
 	}
 	name := k.String()
 	label := strings.ReplaceAll(name, "_", " ")
@@ -124,21 +131,16 @@ func Hypervolume(kinds []model.ObjectiveKind) Unit {
 
 // Constraint is how a constraint's limit and metric are shown.
 func Constraint(k model.ConstraintKind) Quantity {
-	switch k {
-	case model.ConstraintLiftOff:
-		return Quantity{"lift-off probability", "Lift-off probability", Percent, 3, "lift_off_probability"}
-	case model.ConstraintBumpStop:
-		return Quantity{"bump-stop probability", "Bump-stop probability", Percent, 3, "bump_stop_probability"}
-	case model.ConstraintTravel:
-		return Quantity{"travel sd", "Travel sd", Millimetre, 2, "travel_sd_m"}
-	case model.ConstraintJacking:
-		return Quantity{"ride-height shift", "Ride-height shift", Millimetre, 2, "ride_height_shift_m"}
-	case model.ConstraintModalRatio:
-		return Quantity{"modal ratio", "Modal ratio", Dimensionless, 3, "modal_damping_ratio"}
-	}
-	name := k.String()
-	label := strings.ReplaceAll(name, "_", " ")
-	return Quantity{label, capitalise(label), Unit{Symbol: "SI", Scale: 1}, 4, name}
+	return lookup(constraints, k)
+}
+
+// constraints is the table of Constraint.
+var constraints = map[model.ConstraintKind]Quantity{
+	model.ConstraintLiftOff:    {"lift-off probability", "Lift-off probability", Percent, 3, "lift_off_probability"},
+	model.ConstraintBumpStop:   {"bump-stop probability", "Bump-stop probability", Percent, 3, "bump_stop_probability"},
+	model.ConstraintTravel:     {"travel sd", "Travel sd", Millimetre, 2, "travel_sd_m"},
+	model.ConstraintJacking:    {"ride-height shift", "Ride-height shift", Millimetre, 2, "ride_height_shift_m"},
+	model.ConstraintModalRatio: {"modal ratio", "Modal ratio", Dimensionless, 3, "modal_damping_ratio"},
 }
 
 // Gene is how a searched variable of the design space is shown, by its
