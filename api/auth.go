@@ -229,16 +229,17 @@ func (s *Server) authStream(srv any, ss grpc.ServerStream, info *grpc.StreamServ
 	return handler(srv, ss)
 }
 
-// callOptions are the gRPC server options of TLS, call deadlines and
-// authentication; ServerOptions includes them.
+// callOptions are the gRPC server options of TLS, call deadlines,
+// authentication and the answer to requests that do not decode (see
+// wire.go); ServerOptions includes them.
 func (s *Server) callOptions() []grpc.ServerOption {
-	var opts []grpc.ServerOption
+	opts := []grpc.ServerOption{grpc.ForceServerCodecV2(newWireCodec())}
 	if s.opt.TLS != nil {
 		opts = append(opts, grpc.Creds(credentials.NewTLS(s.opt.TLS)))
 	}
 	return append(opts,
-		grpc.ChainUnaryInterceptor(s.deadlineUnary, s.authUnary),
-		grpc.ChainStreamInterceptor(s.authStream),
+		grpc.ChainUnaryInterceptor(s.deadlineUnary, s.authUnary, wireUnary),
+		grpc.ChainStreamInterceptor(s.authStream, wireStream),
 	)
 }
 

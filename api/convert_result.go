@@ -27,7 +27,7 @@ func solutionToProto(s *study.Solution) *pb.Solution {
 	for _, sf := range s.Shortfalls {
 		out.Shortfalls = append(out.Shortfalls, shortfallToProto(sf, s.Cases[sf.Case].Metrics.Case))
 	}
-	return out
+	return finiteSolution(out)
 }
 
 // shortfallToProto converts a violated constraint's shortfall, reached on

@@ -3,6 +3,7 @@ package api
 import (
 	"context"
 	"crypto/tls"
+	"fmt"
 
 	"errors"
 	"log/slog"
@@ -16,6 +17,7 @@ import (
 	"google.golang.org/grpc/health"
 	healthpb "google.golang.org/grpc/health/grpc_health_v1"
 	"google.golang.org/grpc/reflection"
+	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
@@ -40,6 +42,11 @@ type Options struct {
 	// MaxMessageBytes limits every request and response message.
 	// Default 16 MiB.
 	MaxMessageBytes int
+	// MaxSpecBytes limits the encoded size of a spec in any request that
+	// carries one (SubmitJob, EvaluateSetups, VerifySetup): one limit for
+	// all, the job engine's (jobs.Config.MaxSpecBytes) by default; more is
+	// InvalidArgument on "spec". Default jobs.DefaultMaxSpecBytes (1 MiB).
+	MaxSpecBytes int
 	// MaxJobWork limits a submitted job's population_size × islands ×
 	// generations × road cases, the number of case evaluations it makes
 	// (to within its initial population); more is ResourceExhausted.
@@ -99,6 +106,9 @@ const (
 func (o Options) withDefaults() Options {
 	if o.MaxMessageBytes <= 0 {
 		o.MaxMessageBytes = DefaultMaxMessageBytes
+	}
+	if o.MaxSpecBytes <= 0 {
+		o.MaxSpecBytes = jobs.DefaultMaxSpecBytes
 	}
 	if o.MaxJobWork <= 0 {
 		o.MaxJobWork = DefaultMaxJobWork
@@ -262,6 +272,15 @@ func (s *Server) acquire() (release func(), err error) {
 			"too many synchronous evaluations are running; retry in a second",
 			map[string]string{"limit": strconv.Itoa(s.opt.MaxConcurrentEvaluations)}, time.Second)
 	}
+}
+
+// checkSpecSize refuses a spec over the size limit, before any work is
+// done on it, with the engine's wording.
+func (s *Server) checkSpecSize(spec *pb.JobSpec) error {
+	if n := proto.Size(spec); n > s.opt.MaxSpecBytes {
+		return invalidArgument(problems{{Field: "spec", Reason: fmt.Sprintf("is %d bytes, at most %d allowed", n, s.opt.MaxSpecBytes)}})
+	}
+	return nil
 }
 
 // acquireSubmit waits for a submit slot, or returns the status of ctx's

@@ -33,6 +33,9 @@ func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.S
 	if req.GetSpec() == nil {
 		return nil, invalidArgument(problems{{Field: "spec", Reason: "is required"}})
 	}
+	if err := s.checkSpecSize(req.GetSpec()); err != nil {
+		return nil, err
+	}
 	if err := s.checkCases(req.GetSpec()); err != nil {
 		return nil, err
 	}

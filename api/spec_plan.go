@@ -158,6 +158,9 @@ func (s *Server) sourcePlan(ctx context.Context, spec *pb.JobSpec, job *string, 
 	var c *checkedSpec
 	switch {
 	case spec != nil:
+		if err := s.checkSpecSize(spec); err != nil {
+			return nil, err
+		}
 		if err := s.checkCases(spec); err != nil {
 			return nil, err
 		}

@@ -137,14 +137,11 @@ func (p *AeroPolynomial) at(h [2]float64) (f [2]float64, jac [2][2]float64) {
 
 // validate checks the aero and names every bad field under prefix.
 func (a *Aero) validate(p *problems, prefix string, rest [2]float64) {
-	p.atMost(prefix+"reference_speed_m_per_s", a.ReferenceSpeed, 1e3)
-	p.nonNegative(prefix+"reference_speed_m_per_s", a.ReferenceSpeed)
-	const maxForce, maxRate = 1e6, 1e9 // out-of-scale guards (common practice, no source)
+	p.inOrZero(prefix+"reference_speed_m_per_s", a.ReferenceSpeed, "Aero.reference_speed_m_per_s")
+	const maxForce = 1e6 // out-of-scale guard of the maps' values (common practice, no source)
 	for ax := 0; ax < 2; ax++ {
-		p.atMost(fmt.Sprintf("%sdownforce_n[%d]", prefix, ax), a.Downforce[ax], maxForce)
-		p.atMost(fmt.Sprintf("%sstiffness_n_per_m[%d]", prefix, ax), math.Abs(a.Stiffness[ax]), maxRate)
-		p.nonNegative(fmt.Sprintf("%sdownforce_n[%d]", prefix, ax), a.Downforce[ax])
-		p.finite(fmt.Sprintf("%sstiffness_n_per_m[%d]", prefix, ax), a.Stiffness[ax])
+		p.in(fmt.Sprintf("%sdownforce_n[%d]", prefix, ax), a.Downforce[ax], "Aero.downforce_n")
+		p.in(fmt.Sprintf("%sstiffness_n_per_m[%d]", prefix, ax), a.Stiffness[ax], "Aero.stiffness_n_per_m")
 	}
 	maps := 0
 	linearGiven := a.Downforce != [2]float64{} || a.Stiffness != [2]float64{}

@@ -16,7 +16,7 @@ func (adj Adjustment) Validate() error {
 	var p problems
 	for name, r := range map[string]float64{"bump_softest": adj.BumpSoftest, "bump_stiffest": adj.BumpStiffest,
 		"rebound_softest": adj.ReboundSoftest, "rebound_stiffest": adj.ReboundStiffest} {
-		p.nonNegative(name, r)
+		p.in(name, r, "Adjustment.ratio")
 	}
 	if adj.BumpStiffest < adj.BumpSoftest {
 		p.add("bump_stiffest", "must be >= bump_softest (%g), got %g", adj.BumpSoftest, adj.BumpStiffest)
@@ -31,7 +31,7 @@ func (adj Adjustment) Validate() error {
 // finite and > 0, points in [3, 10001].
 func ValidateCurveRange(vmax float64, points int) error {
 	var p problems
-	p.positive("max_velocity_m_per_s", vmax)
+	p.in("max_velocity_m_per_s", vmax, "Curves.max_velocity_m_per_s")
 	if points < 3 || points > 10001 {
 		p.add("points", "must be in [3, 10001], got %d", points)
 	}

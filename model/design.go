@@ -33,7 +33,8 @@ type DesignSpace struct {
 	Base Setup
 }
 
-// Validate checks the bounds and names every bad field.
+// Validate checks the bounds and names every bad field: each bound in
+// the plausible range of its setting (see Limit), max >= min.
 func (d *DesignSpace) Validate() error {
 	var p problems
 	names := [4]string{"front_bump", "front_rebound", "rear_bump", "rear_rebound"}
@@ -41,33 +42,27 @@ func (d *DesignSpace) Validate() error {
 		if d.Symmetric && i%2 == 1 {
 			continue
 		}
-		f := "ratios." + names[i]
-		p.positive(f+".min", r.Min)
-		p.positive(f+".max", r.Max)
-		if r.Max < r.Min {
-			p.add(f+".max", "must be >= min (%g), got %g", r.Min, r.Max)
-		}
-		if r.Max > 5 {
-			p.add(f+".max", "must be at most 5 times critical, got %g", r.Max)
-		}
+		p.bounds("ratios."+names[i], r, "AxleDamping.ratio")
 	}
 	for ax := 0; ax < 2; ax++ {
 		if k := d.Knee[ax]; k != nil {
-			f := fmt.Sprintf("knee_m_per_s[%d]", ax)
-			p.positive(f+".min", k.Min)
-			if k.Max < k.Min {
-				p.add(f+".max", "must be >= min (%g), got %g", k.Min, k.Max)
-			}
+			p.bounds(fmt.Sprintf("knee_m_per_s[%d]", ax), *k, "AxleDamping.knee_m_per_s")
 		}
 		if h := d.HighSpeed[ax]; h != nil {
-			f := fmt.Sprintf("high_speed[%d]", ax)
-			p.positive(f+".min", h.Min)
-			if h.Max < h.Min || h.Max > 10 {
-				p.add(f+".max", "must be in [min, 10], got %g", h.Max)
-			}
+			p.bounds(fmt.Sprintf("high_speed[%d]", ax), *h, "AxleDamping.high_speed")
 		}
 	}
 	return p.err()
+}
+
+// bounds checks a searched range: both ends in the named plausible
+// range, max >= min.
+func (p *problems) bounds(field string, r Range, name string) {
+	p.in(field+".min", r.Min, name)
+	p.in(field+".max", r.Max, name)
+	if r.Max < r.Min {
+		p.add(field+".max", "must be >= min (%g), got %g", r.Min, r.Max)
+	}
 }
 
 // Genes lists the searched variables in gene order.

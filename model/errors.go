@@ -76,18 +76,22 @@ func (p *problems) nonNegative(field string, v float64) {
 	}
 }
 
-// within requires lo < v <= hi (open below, closed above).
-func (p *problems) within(field string, v, lo, hi float64) {
-	if p.finite(field, v) && (v <= lo || v > hi) {
-		p.add(field, "must be in (%g, %g], got %g", lo, hi, v)
-	}
-}
-
-// atMost requires v <= max: a guard against values far out of scale
-// (a mistyped exponent), which would make the linear algebra meaningless.
-func (p *problems) atMost(field string, v, max float64) {
-	if v > max {
-		p.add(field, "must be at most %g, got %g: check the unit and the exponent", max, v)
+// table requires every value of a tabulated input in the named
+// plausible range, and increasing when increasing is set; it reports the
+// first bad value only, so that a long table gives one line.
+func (p *problems) table(field string, vs []float64, name string, increasing bool) {
+	l := limit(name)
+	for i, v := range vs {
+		f := fmt.Sprintf("%s[%d]", field, i)
+		switch {
+		case !l.Contains(v):
+			p.add(f, "must be finite and in %s, got %s%s", l, num(v), l.hint(v))
+		case increasing && i > 0 && v <= vs[i-1]:
+			p.add(f, "must be increasing, got %s after %s", num(v), num(vs[i-1]))
+		default:
+			continue
+		}
+		return
 	}
 }
 

@@ -92,6 +92,7 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 	if opt.Tolerance < 0 || opt.Tolerance > 1e-2 {
 		p.add("tolerance", "must be in (0, 0.01], got %g", opt.Tolerance)
 	}
+	p.in("warn_threshold", opt.WarnThreshold, "EvaluatorOptions.warn_threshold")
 	if opt.MaxIterations < 0 {
 		p.add("max_iterations", "must be >= 0, got %d", opt.MaxIterations)
 	}
@@ -259,7 +260,7 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 	}
 	e.fillMetrics(cd, dampers, &v, m)
 	m.Iterations = iter
-	return nil
+	return m.checkFinite()
 }
 
 // fillMetrics turns variances into metrics and solves the jacking.

@@ -28,9 +28,9 @@ var DefaultGrid = Grid{MinHz: 0.1, MaxHz: 250, Points: 241}
 // Validate checks the grid and names every bad field.
 func (g Grid) Validate() error {
 	var p problems
-	p.positive("min_hz", g.MinHz)
-	p.positive("max_hz", g.MaxHz)
-	if g.MinHz > 0 && g.MaxHz > 0 && g.MaxHz <= 2*g.MinHz {
+	p.in("min_hz", g.MinHz, "Grid.min_hz")
+	p.in("max_hz", g.MaxHz, "Grid.max_hz")
+	if len(p.list) == 0 && g.MaxHz <= 2*g.MinHz {
 		p.add("max_hz", "must be more than twice min_hz (%g Hz), got %g", g.MinHz, g.MaxHz)
 	}
 	if g.Points < 5 || g.Points%2 == 0 || g.Points > 20001 {

@@ -1,6 +1,10 @@
 package model
 
-import "fmt"
+import (
+	"errors"
+	"fmt"
+	"math"
+)
 
 // CaseMetrics are the ride metrics of one setup on one road case. Standard
 // deviations are of the dynamic part about the mean; shifts are the mean
@@ -69,6 +73,48 @@ func (m *CaseMetrics) WarningStrings(threshold float64) []string {
 		}
 	}
 	return out
+}
+
+// ErrNonFinite is wrapped by the error returned when an evaluation gives
+// a NaN or infinite metric: a result that must not be reported or stored.
+var ErrNonFinite = errors.New("model: evaluation gave a non-finite value")
+
+// checkFinite returns an error wrapping ErrNonFinite that names the first
+// NaN or infinite metric of m, or nil.
+func (m *CaseMetrics) checkFinite() error {
+	// Fast path, allocation-free: a NaN or an infinity makes the sum of
+	// the values' products with 0 NaN; finite values give 0.
+	sum := m.PitchSD*0 + m.RollSD*0 + m.HeaveAccelSD*0 + m.PitchShift*0
+	for _, a := range [...]*[4]float64{&m.TyreLoadSD, &m.StaticTyreLoad, &m.TyreLoadSDRel, &m.LiftOffProbability,
+		&m.TravelSD, &m.BumpStopProbability, &m.DamperVelocitySD, &m.EquivalentDamping, &m.MeanDamperForce, &m.TravelShift} {
+		for _, v := range a {
+			sum += v * 0
+		}
+	}
+	sum += m.RideHeightSD[0]*0 + m.RideHeightSD[1]*0 + m.RideHeightShift[0]*0 + m.RideHeightShift[1]*0
+	if sum == 0 {
+		return nil
+	}
+	for _, f := range [...]struct {
+		name string
+		v    []float64
+	}{
+		{"tyre_load_sd_n", m.TyreLoadSD[:]}, {"static_tyre_load_n", m.StaticTyreLoad[:]},
+		{"tyre_load_sd_rel", m.TyreLoadSDRel[:]}, {"lift_off_probability", m.LiftOffProbability[:]},
+		{"ride_height_sd_m", m.RideHeightSD[:]}, {"pitch_sd_rad", []float64{m.PitchSD}},
+		{"roll_sd_rad", []float64{m.RollSD}}, {"heave_accel_sd_m_per_s2", []float64{m.HeaveAccelSD}},
+		{"travel_sd_m", m.TravelSD[:]}, {"bump_stop_probability", m.BumpStopProbability[:]},
+		{"damper_velocity_sd_m_per_s", m.DamperVelocitySD[:]}, {"equivalent_damping_n_s_per_m", m.EquivalentDamping[:]},
+		{"mean_damper_force_n", m.MeanDamperForce[:]}, {"ride_height_shift_m", m.RideHeightShift[:]},
+		{"pitch_shift_rad", []float64{m.PitchShift}}, {"travel_shift_m", m.TravelShift[:]},
+	} {
+		for i, v := range f.v {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				return fmt.Errorf("%w: road case %q: %s[%d] is %v; check the inputs for values out of scale", ErrNonFinite, m.Case, f.name, i, v)
+			}
+		}
+	}
+	return nil
 }
 
 // Result is the evaluation of one setup over all road cases.

@@ -97,11 +97,26 @@ func (k ConstraintKind) String() string {
 	return fmt.Sprintf("constraint(%d)", int(k))
 }
 
+// limitName names the plausible range of the kind's limit: a
+// probability in (0, 1], a travel or a shift in metres.
+func (k ConstraintKind) limitName() string {
+	switch k {
+	case ConstraintTravel:
+		return "Constraint.travel_m"
+	case ConstraintJacking:
+		return "Constraint.jacking_m"
+	case ConstraintModalRatio:
+		return "Constraint.modal_ratio"
+	default:
+		return "Constraint.probability"
+	}
+}
+
 // Constraint is an upper limit on a metric, over every case and corner;
 // a modal-ratio constraint is a band on one mode.
 type Constraint struct {
 	Kind  ConstraintKind
-	Limit float64 // > 0, SI; the band's upper end for ConstraintModalRatio
+	Limit float64 // SI, in the plausible range of its kind (see ConstraintKind.limitName); the band's upper end for ConstraintModalRatio
 	// Mode is the mode of a ConstraintModalRatio (index into ModeNames).
 	Mode int
 	// Lower is the band's lower end for ConstraintModalRatio (-), in
@@ -251,15 +266,17 @@ func ValidateProblem(d DesignSpace, objectives []Objective, constraints []Constr
 		if o.Aggregation < AggregateMeanSquare || o.Aggregation > AggregateNormalised {
 			p.add(f+".aggregation", "unknown aggregation %d", int(o.Aggregation))
 		}
-		p.finite(f+".target_shift_m[0]", o.TargetShift[0])
-		p.finite(f+".target_shift_m[1]", o.TargetShift[1])
+		p.in(f+".target_shift_m[0]", o.TargetShift[0], "Objective.target_shift_m")
+		p.in(f+".target_shift_m[1]", o.TargetShift[1], "Objective.target_shift_m")
 	}
 	for i, c := range constraints {
 		f := fmt.Sprintf("constraints[%d]", i)
 		if _, ok := constraintNames[c.Kind]; !ok {
 			p.add(f+".kind", "unknown constraint %d", int(c.Kind))
+			p.positive(f+".limit", c.Limit) // its range depends on the kind
+			continue
 		}
-		p.positive(f+".limit", c.Limit)
+		p.in(f+".limit", c.Limit, c.Kind.limitName())
 		if c.Kind == ConstraintModalRatio {
 			if c.Mode < 0 || c.Mode >= nDOF {
 				p.add(f+".mode", "unknown mode %d", c.Mode)

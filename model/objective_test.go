@@ -81,8 +81,9 @@ func TestStudyConstraintsAndValidation(t *testing.T) {
 	}
 	d := DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}, Base: demoSetup()}
 	// A travel limit of 0.1 mm is certainly violated (travel sd is about
-	// 1 mm on these cases); a jacking limit of 1 m certainly holds.
-	s, err := NewProblem(e, d, DefaultObjectives(), []Constraint{{Kind: ConstraintTravel, Limit: 1e-4}, {Kind: ConstraintJacking, Limit: 1}})
+	// 1 mm on these cases); a jacking limit of 0.1 m (the largest
+	// plausible) certainly holds.
+	s, err := NewProblem(e, d, DefaultObjectives(), []Constraint{{Kind: ConstraintTravel, Limit: 1e-4}, {Kind: ConstraintJacking, Limit: 0.1}})
 	if err != nil {
 		t.Fatal(err)
 	}

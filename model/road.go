@@ -140,8 +140,8 @@ func (rc *RoadCase) gd0() float64 {
 func (rc *RoadCase) Validate() error {
 	var p problems
 	p.text("name", rc.Name)
-	p.positive("speed_m_per_s", rc.Speed)
-	p.nonNegative("weight", rc.Weight)
+	p.in("speed_m_per_s", rc.Speed, "RoadCase.speed_m_per_s")
+	p.in("weight", rc.Weight, "RoadCase.weight")
 	switch {
 	case rc.Measured != nil:
 		m := rc.Measured
@@ -157,36 +157,18 @@ func (rc *RoadCase) Validate() error {
 		if m.Coherence != nil && len(m.Coherence) != len(m.N) {
 			p.add("measured.coherence", "needs one value per frequency (%d), got %d", len(m.N), len(m.Coherence))
 		}
-		for i, n := range m.N {
-			if !(n > 0) || math.IsInf(n, 0) || (i > 0 && n <= m.N[i-1]) {
-				p.add(fmt.Sprintf("measured.n_cycles_per_m[%d]", i), "must be finite, > 0 and increasing, got %g", n)
-				break
-			}
-		}
-		for name, s := range map[string][]float64{"left_m3": m.Left, "right_m3": m.Right} {
-			for i, g := range s {
-				if !(g > 0) || math.IsInf(g, 0) {
-					p.add(fmt.Sprintf("measured.%s[%d]", name, i), "must be finite and > 0, got %g", g)
-					break
-				}
-			}
-		}
-		for i, g := range m.Coherence {
-			if !(g >= -1 && g <= 1) {
-				p.add(fmt.Sprintf("measured.coherence[%d]", i), "must be in [-1, 1], got %g", g)
-				break
-			}
-		}
+		p.table("measured.n_cycles_per_m", m.N, "RoadCase.n_cycles_per_m", true)
+		p.table("measured.left_m3", m.Left, "RoadCase.psd_m3", false)
+		p.table("measured.right_m3", m.Right, "RoadCase.psd_m3", false)
+		p.table("measured.coherence", m.Coherence, "RoadCase.coherence", false)
 	case rc.Class != "":
 		if _, _, _, err := ISOClassGd0(rc.Class); err != nil {
 			p.add("iso_class", "%v", err)
 		}
 	default:
-		p.positive("gd0_m3", rc.Gd0)
+		p.in("gd0_m3", rc.Gd0, "RoadCase.gd0_m3")
 	}
-	if rc.Waviness != 0 {
-		p.within("waviness", rc.Waviness, 0, 4)
-	}
+	p.inOrZero("waviness", rc.Waviness, "RoadCase.waviness")
 	switch rc.Coherence.Kind {
 	case CoherenceAuto, CoherenceIsotropic, CoherenceFull:
 	case CoherenceTable:
@@ -194,18 +176,8 @@ func (rc *RoadCase) Validate() error {
 		if len(c.N) < 1 || len(c.N) != len(c.Gamma) {
 			p.add("coherence.n_cycles_per_m", "needs as many points as coherence.gamma and at least one, got %d and %d", len(c.N), len(c.Gamma))
 		}
-		for i := range c.N {
-			if !(c.N[i] > 0) || (i > 0 && c.N[i] <= c.N[i-1]) {
-				p.add(fmt.Sprintf("coherence.n_cycles_per_m[%d]", i), "must be > 0 and increasing, got %g", c.N[i])
-				break
-			}
-		}
-		for i, g := range c.Gamma {
-			if !(g >= -1 && g <= 1) {
-				p.add(fmt.Sprintf("coherence.gamma[%d]", i), "must be in [-1, 1], got %g", g)
-				break
-			}
-		}
+		p.table("coherence.n_cycles_per_m", c.N, "RoadCase.n_cycles_per_m", true)
+		p.table("coherence.gamma", c.Gamma, "RoadCase.coherence", false)
 	default:
 		p.add("coherence.kind", "unknown coherence kind %d", rc.Coherence.Kind)
 	}

@@ -37,23 +37,18 @@ func factorOr1(r float64) float64 {
 	return r
 }
 
-// Validate checks the setup and names every bad field.
+// Validate checks the setup and names every bad field: damping ratios,
+// knees and high-speed factors in their plausible ranges (see Limit).
 func (s *Setup) Validate() error {
 	var p problems
 	for ax, a := range s.Axles {
 		f := AxleNames[ax] + "."
-		p.positive(f+"bump_ratio", a.BumpRatio)
-		p.positive(f+"rebound_ratio", a.ReboundRatio)
-		p.nonNegative(f+"knee_bump_m_per_s", a.KneeBump)
-		p.nonNegative(f+"knee_rebound_m_per_s", a.KneeRebound)
-		p.nonNegative(f+"high_speed_bump", a.HighSpeedBump)
-		p.nonNegative(f+"high_speed_rebound", a.HighSpeedRebound)
-		if a.HighSpeedBump > 10 {
-			p.add(f+"high_speed_bump", "must be at most 10 (a high-speed slope 10x the low-speed one), got %g", a.HighSpeedBump)
-		}
-		if a.HighSpeedRebound > 10 {
-			p.add(f+"high_speed_rebound", "must be at most 10 (a high-speed slope 10x the low-speed one), got %g", a.HighSpeedRebound)
-		}
+		p.in(f+"bump_ratio", a.BumpRatio, "AxleDamping.ratio")
+		p.in(f+"rebound_ratio", a.ReboundRatio, "AxleDamping.ratio")
+		p.inOrZero(f+"knee_bump_m_per_s", a.KneeBump, "AxleDamping.knee_m_per_s")
+		p.inOrZero(f+"knee_rebound_m_per_s", a.KneeRebound, "AxleDamping.knee_m_per_s")
+		p.inOrZero(f+"high_speed_bump", a.HighSpeedBump, "AxleDamping.high_speed")
+		p.inOrZero(f+"high_speed_rebound", a.HighSpeedRebound, "AxleDamping.high_speed")
 	}
 	return p.err()
 }
@@ -101,21 +96,28 @@ func (a AxleDamping) String() string {
 	return fmt.Sprintf("bump %.3f rebound %.3f", a.BumpRatio, a.ReboundRatio)
 }
 
+// The plausible ranges of the setup's values, looked up once for ok.
+var (
+	ratioLimit     = limit("AxleDamping.ratio")
+	kneeLimit      = limit("AxleDamping.knee_m_per_s")
+	highSpeedLimit = limit("AxleDamping.high_speed")
+)
+
 // ok is a cheap allocation-free form of Validate for the hot path.
 func (s *Setup) ok() bool {
 	for _, a := range s.Axles {
-		for _, v := range [...]float64{a.BumpRatio, a.ReboundRatio} {
-			if !(v > 0) || v > 1e300 {
-				return false
-			}
-		}
-		for _, v := range [...]float64{a.KneeBump, a.KneeRebound, a.HighSpeedBump, a.HighSpeedRebound} {
-			if !(v >= 0) || v > 1e300 {
-				return false
-			}
-		}
-		if a.HighSpeedBump > 10 || a.HighSpeedRebound > 10 {
+		if !ratioLimit.Contains(a.BumpRatio) || !ratioLimit.Contains(a.ReboundRatio) {
 			return false
+		}
+		for _, v := range [...]float64{a.KneeBump, a.KneeRebound} {
+			if v != 0 && !kneeLimit.Contains(v) {
+				return false
+			}
+		}
+		for _, v := range [...]float64{a.HighSpeedBump, a.HighSpeedRebound} {
+			if v != 0 && !highSpeedLimit.Contains(v) {
+				return false
+			}
 		}
 	}
 	return true

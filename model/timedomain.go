@@ -51,22 +51,18 @@ func (b *BumpStop) maxSlope() float64 {
 }
 
 func (b *BumpStop) validate(p *problems, prefix string) {
-	p.nonNegative(prefix+"gap_m", b.Gap)
+	p.in(prefix+"gap_m", b.Gap, "Corner.bump_stop_gap_m")
 	if len(b.Deflection) == 0 || len(b.Deflection) != len(b.Force) {
 		p.add(prefix+"deflection_m", "needs at least one point and as many as force_n, got %d and %d", len(b.Deflection), len(b.Force))
 		return
 	}
-	x0, f0 := 0.0, 0.0
-	for k, x := range b.Deflection {
-		if !(x > x0) || math.IsInf(x, 0) {
-			p.add(fmt.Sprintf("%sdeflection_m[%d]", prefix, k), "must be finite, > 0 and increasing, got %g", x)
+	p.table(prefix+"deflection_m", b.Deflection, "BumpStop.deflection_m", true)
+	p.table(prefix+"force_n", b.Force, "BumpStop.force_n", false)
+	for k := 1; k < len(b.Force); k++ {
+		if b.Force[k] < b.Force[k-1] {
+			p.add(fmt.Sprintf("%sforce_n[%d]", prefix, k), "must be non-decreasing, got %s after %s", num(b.Force[k]), num(b.Force[k-1]))
 			return
 		}
-		if f := b.Force[k]; !(f >= f0) || math.IsInf(f, 0) {
-			p.add(fmt.Sprintf("%sforce_n[%d]", prefix, k), "must be finite, >= 0 and non-decreasing, got %g", f)
-			return
-		}
-		x0, f0 = x, b.Force[k]
 	}
 }
 
@@ -111,7 +107,7 @@ func (o TimeOptions) validate(v *Vehicle) error {
 	p.nonNegative("duration_s", o.Duration)
 	p.nonNegative("step_s", o.Step)
 	p.nonNegative("settle_s", o.Settle)
-	p.nonNegative("warn_threshold", o.WarnThreshold)
+	p.in("warn_threshold", o.WarnThreshold, "EvaluatorOptions.warn_threshold")
 	for ax, b := range o.BumpStops {
 		if b == nil {
 			continue

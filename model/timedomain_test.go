@@ -349,7 +349,7 @@ func TestBumpStopsLimitTravel(t *testing.T) {
 		t.Fatal(err)
 	}
 	stop := &BumpStop{Gap: 0.008, Deflection: []float64{0.004, 0.008}, Force: []float64{800, 4000}}
-	free, err := SimulateCase(&v, &rc, &s, TimeOptions{Duration: 20, BumpStops: [2]*BumpStop{{Gap: 0.008, Deflection: []float64{1}, Force: []float64{0}}, nil}}, rand.New(rand.NewPCG(3, 3)))
+	free, err := SimulateCase(&v, &rc, &s, TimeOptions{Duration: 20, BumpStops: [2]*BumpStop{{Gap: 0.008, Deflection: []float64{0.3}, Force: []float64{0}}, nil}}, rand.New(rand.NewPCG(3, 3)))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -197,69 +197,45 @@ func (v *Vehicle) symmetric() bool {
 }
 
 // Validate checks the vehicle and returns a *ValidationError naming every
-// bad field, or nil.
+// bad field, or nil. Every value must lie in its plausible range (see
+// Limit and PlausibleRanges).
 func (v *Vehicle) Validate() error {
 	var p problems
 	p.text("name", v.Name)
-	// Out-of-scale guards, far beyond any car (common practice, no
-	// source): a mistyped exponent is caught here with its field named.
-	const maxMass, maxInertia, maxLength, maxRate, maxDamping = 1e5, 1e6, 100.0, 1e9, 1e7
-	p.atMost("sprung_mass_kg", v.SprungMass, maxMass)
-	p.atMost("pitch_inertia_kg_m2", v.PitchInertia, maxInertia)
-	p.atMost("roll_inertia_kg_m2", v.RollInertia, maxInertia)
-	p.atMost("cg_to_front_axle_m", v.CGToFrontAxle, maxLength)
-	p.atMost("cg_to_rear_axle_m", v.CGToRearAxle, maxLength)
-	p.atMost("track_front_m", v.TrackFront, maxLength)
-	p.atMost("track_rear_m", v.TrackRear, maxLength)
-	for i, c := range v.Corners {
-		f := fmt.Sprintf("corners[%d].", i)
-		p.atMost(f+"spring_rate_n_per_m", c.SpringRate, maxRate)
-		p.atMost(f+"wheel_rate_n_per_m", c.WheelRate, maxRate)
-		p.atMost(f+"unsprung_mass_kg", c.UnsprungMass, maxMass)
-		p.atMost(f+"tyre_rate_n_per_m", c.TyreRate, maxRate)
-		p.atMost(f+"tyre_damping_n_s_per_m", c.TyreDamping, maxDamping)
-		p.atMost(f+"tyre_envelope_length_m", c.TyreEnvelopeLength, maxLength)
-		p.atMost(f+"bump_stop_gap_m", c.BumpStopGap, maxLength)
-		p.atMost(f+"sprung_load_n", c.SprungLoad, maxMass*Gravity)
-	}
-	for ax, b := range v.AntiRoll {
-		f := fmt.Sprintf("anti_roll[%d].", ax)
-		p.atMost(f+"wheel_rate_n_per_m", b.WheelRate, maxRate)
-		p.atMost(f+"bar_rate_n_per_m", b.BarRate, maxRate)
-	}
-	p.positive("sprung_mass_kg", v.SprungMass)
-	p.positive("pitch_inertia_kg_m2", v.PitchInertia)
-	p.positive("roll_inertia_kg_m2", v.RollInertia)
-	p.positive("cg_to_front_axle_m", v.CGToFrontAxle)
-	p.positive("cg_to_rear_axle_m", v.CGToRearAxle)
-	p.positive("track_front_m", v.TrackFront)
-	p.positive("track_rear_m", v.TrackRear)
-	if p.finite("cg_lateral_m", v.CGLateral) {
-		minTrack := math.Min(v.TrackFront, v.TrackRear)
-		if minTrack > 0 && math.Abs(v.CGLateral) >= minTrack/2 {
-			p.add("cg_lateral_m", "must lie between the wheels (|offset| < %g m), got %g", minTrack/2, v.CGLateral)
-		}
+	p.in("sprung_mass_kg", v.SprungMass, "Vehicle.sprung_mass_kg")
+	p.in("pitch_inertia_kg_m2", v.PitchInertia, "Vehicle.pitch_inertia_kg_m2")
+	p.in("roll_inertia_kg_m2", v.RollInertia, "Vehicle.roll_inertia_kg_m2")
+	p.in("cg_to_front_axle_m", v.CGToFrontAxle, "Vehicle.cg_to_axle_m")
+	p.in("cg_to_rear_axle_m", v.CGToRearAxle, "Vehicle.cg_to_axle_m")
+	p.in("track_front_m", v.TrackFront, "Vehicle.track_m")
+	p.in("track_rear_m", v.TrackRear, "Vehicle.track_m")
+	p.in("cg_lateral_m", v.CGLateral, "Vehicle.cg_lateral_m")
+	if minTrack := math.Min(v.TrackFront, v.TrackRear); minTrack > 0 && math.Abs(v.CGLateral) >= minTrack/2 {
+		p.add("cg_lateral_m", "must lie between the wheels (|offset| < %g m), got %g", minTrack/2, v.CGLateral)
 	}
 	given := 0
 	for i, c := range v.Corners {
 		f := fmt.Sprintf("corners[%d].", i)
-		if c.SpringRate != 0 || c.WheelRate == 0 {
-			p.positive(f+"spring_rate_n_per_m", c.SpringRate)
-			p.within(f+"spring_motion_ratio", c.SpringMotionRatio, 0, 2)
-		} else {
-			p.positive(f+"wheel_rate_n_per_m", c.WheelRate)
+		switch {
+		case c.SpringRate != 0 && c.WheelRate != 0:
+			p.add(f+"wheel_rate_n_per_m", "give one of wheel rate or spring rate (with spring_motion_ratio), not both: got wheel rate %s N/m and spring rate %s N/m", num(c.WheelRate), num(c.SpringRate))
+		case c.SpringRate != 0 || c.WheelRate == 0:
+			p.in(f+"spring_rate_n_per_m", c.SpringRate, "Corner.spring_rate_n_per_m")
+			p.in(f+"spring_motion_ratio", c.SpringMotionRatio, "Corner.motion_ratio")
+		default:
+			p.in(f+"wheel_rate_n_per_m", c.WheelRate, "Corner.wheel_rate_n_per_m")
 		}
-		p.within(f+"damper_motion_ratio", c.DamperMotionRatio, 0, 2)
-		p.positive(f+"unsprung_mass_kg", c.UnsprungMass)
-		p.positive(f+"tyre_rate_n_per_m", c.TyreRate)
-		p.nonNegative(f+"tyre_damping_n_s_per_m", c.TyreDamping)
-		p.nonNegative(f+"tyre_envelope_length_m", c.TyreEnvelopeLength)
+		p.in(f+"damper_motion_ratio", c.DamperMotionRatio, "Corner.motion_ratio")
+		p.in(f+"unsprung_mass_kg", c.UnsprungMass, "Corner.unsprung_mass_kg")
+		p.in(f+"tyre_rate_n_per_m", c.TyreRate, "Corner.tyre_rate_n_per_m")
+		p.in(f+"tyre_damping_n_s_per_m", c.TyreDamping, "Corner.tyre_damping_n_s_per_m")
+		p.in(f+"tyre_envelope_length_m", c.TyreEnvelopeLength, "Corner.tyre_envelope_length_m")
 		if c.TyreDamping > 0 && c.TyreEnvelopeLength == 0 {
 			p.add(f+"tyre_envelope_length_m", "must be > 0 when tyre damping is set: without it the tyre-force variance on an ISO 8608 road is infinite")
 		}
-		p.nonNegative(f+"bump_stop_gap_m", c.BumpStopGap)
-		p.nonNegative(f+"sprung_load_n", c.SprungLoad)
-		if c.SprungLoad > 0 {
+		p.in(f+"bump_stop_gap_m", c.BumpStopGap, "Corner.bump_stop_gap_m")
+		p.inOrZero(f+"sprung_load_n", c.SprungLoad, "Corner.sprung_load_n")
+		if c.SprungLoad != 0 {
 			given++
 		}
 	}
@@ -273,17 +249,18 @@ func (v *Vehicle) Validate() error {
 	}
 	for ax, b := range v.AntiRoll {
 		f := fmt.Sprintf("anti_roll[%d].", ax)
-		if b.BarRate != 0 {
-			p.positive(f+"bar_rate_n_per_m", b.BarRate)
-			p.within(f+"motion_ratio", b.MotionRatio, 0, 2)
-		} else {
-			p.nonNegative(f+"wheel_rate_n_per_m", b.WheelRate)
+		switch {
+		case b.BarRate != 0 && b.WheelRate != 0:
+			p.add(f+"wheel_rate_n_per_m", "give one of the bar's wheel rate or its bar rate (with motion_ratio), not both: got wheel rate %s N/m and bar rate %s N/m", num(b.WheelRate), num(b.BarRate))
+		case b.BarRate != 0:
+			p.in(f+"bar_rate_n_per_m", b.BarRate, "AntiRollBar.bar_rate_n_per_m")
+			p.in(f+"motion_ratio", b.MotionRatio, "AntiRollBar.motion_ratio")
+		default:
+			p.in(f+"wheel_rate_n_per_m", b.WheelRate, "AntiRollBar.wheel_rate_n_per_m")
 		}
 	}
 	for ax := 0; ax < 2; ax++ {
-		f := fmt.Sprintf("rest_ride_height_m[%d]", ax)
-		p.nonNegative(f, v.RestRideHeight[ax])
-		p.atMost(f, v.RestRideHeight[ax], 1)
+		p.inOrZero(fmt.Sprintf("rest_ride_height_m[%d]", ax), v.RestRideHeight[ax], "Vehicle.rest_ride_height_m")
 	}
 	v.Aero.validate(&p, "aero.", v.RestRideHeight)
 	return p.err()

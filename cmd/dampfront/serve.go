@@ -82,6 +82,7 @@ func bindServe(fs *flagSet, e *env) (runFunc, error) {
 		}
 		opt := lf.options()
 		opt.Logger = log
+		opt.MaxSpecBytes = cfg.MaxSpecBytes // one spec limit for the engine and every call carrying a spec
 		sec.apply(&opt)
 		svc, err := startService(ctx, eng, lis, opt, ef.stopTimeout, log, wf.grpcOptions()...)
 		if err != nil {

@@ -534,16 +534,22 @@ func (x *DesignSpace) GetBase() *Setup {
 type AxleDamping struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Bump low-speed slope over critical, at the wheel.
+	// Plausible range: [0.01, 5].
 	BumpRatio float64 `protobuf:"fixed64,1,opt,name=bump_ratio,json=bumpRatio,proto3" json:"bump_ratio,omitempty"`
 	// Rebound low-speed slope over critical, at the wheel.
+	// Plausible range: [0.01, 5].
 	ReboundRatio float64 `protobuf:"fixed64,2,opt,name=rebound_ratio,json=reboundRatio,proto3" json:"rebound_ratio,omitempty"`
 	// Bump knee velocity at the damper; 0 means no knee.
+	// Plausible range when given (not 0): [0.001, 1] m/s.
 	KneeBumpMPerS float64 `protobuf:"fixed64,3,opt,name=knee_bump_m_per_s,json=kneeBumpMPerS,proto3" json:"knee_bump_m_per_s,omitempty"`
 	// Rebound knee velocity at the damper; 0 means no knee.
+	// Plausible range when given (not 0): [0.001, 1] m/s.
 	KneeReboundMPerS float64 `protobuf:"fixed64,4,opt,name=knee_rebound_m_per_s,json=kneeReboundMPerS,proto3" json:"knee_rebound_m_per_s,omitempty"`
-	// Bump high-speed slope over low-speed slope, at most 10; 0 means 1.
+	// Bump high-speed slope over low-speed slope; 0 means 1.
+	// Plausible range when given (not 0): [0.05, 10].
 	HighSpeedBumpFactor float64 `protobuf:"fixed64,5,opt,name=high_speed_bump_factor,json=highSpeedBumpFactor,proto3" json:"high_speed_bump_factor,omitempty"`
-	// Rebound high-speed slope over low-speed slope, at most 10; 0 means 1.
+	// Rebound high-speed slope over low-speed slope; 0 means 1.
+	// Plausible range when given (not 0): [0.05, 10].
 	HighSpeedReboundFactor float64 `protobuf:"fixed64,6,opt,name=high_speed_rebound_factor,json=highSpeedReboundFactor,proto3" json:"high_speed_rebound_factor,omitempty"`
 	unknownFields          protoimpl.UnknownFields
 	sizeCache              protoimpl.SizeCache
@@ -684,8 +690,10 @@ type Objective struct {
 	// How it is combined over road cases.
 	Aggregation Aggregation `protobuf:"varint,2,opt,name=aggregation,proto3,enum=dampfront.v1.Aggregation" json:"aggregation,omitempty"`
 	// Wanted mean front ride-height change (platform objectives), up positive.
+	// Plausible range: [-0.1, 0.1] m.
 	FrontTargetShiftM float64 `protobuf:"fixed64,3,opt,name=front_target_shift_m,json=frontTargetShiftM,proto3" json:"front_target_shift_m,omitempty"`
 	// Wanted mean rear ride-height change (platform objectives), up positive.
+	// Plausible range: [-0.1, 0.1] m.
 	RearTargetShiftM float64 `protobuf:"fixed64,4,opt,name=rear_target_shift_m,json=rearTargetShiftM,proto3" json:"rear_target_shift_m,omitempty"`
 	unknownFields    protoimpl.UnknownFields
 	sizeCache        protoimpl.SizeCache
@@ -847,8 +855,10 @@ type Constraint struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// The limited metric.
 	Kind ConstraintKind `protobuf:"varint,1,opt,name=kind,proto3,enum=dampfront.v1.ConstraintKind" json:"kind,omitempty"`
-	// The limit, > 0, in the SI unit of the kind (see ConstraintKind); the
-	// upper end of a modal-ratio band.
+	// The limit, in the SI unit of the kind (see ConstraintKind), checked by
+	// kind: a probability (lift-off, bump stop) in (0, 1], a travel in
+	// (0, 0.2] m, a jacking shift in (0, 0.1] m, a modal ratio in (0, 5]
+	// (the upper end of its band).
 	Limit float64 `protobuf:"fixed64,2,opt,name=limit,proto3" json:"limit,omitempty"`
 	// The mode of a modal-ratio band; only with CONSTRAINT_KIND_MODAL_RATIO.
 	Mode ModeName `protobuf:"varint,3,opt,name=mode,proto3,enum=dampfront.v1.ModeName" json:"mode,omitempty"`
@@ -923,12 +933,16 @@ func (x *Constraint) GetLower() float64 {
 type Adjustment struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Softest bump click.
+	// Plausible range: [0, 5].
 	BumpSoftestRatio float64 `protobuf:"fixed64,1,opt,name=bump_softest_ratio,json=bumpSoftestRatio,proto3" json:"bump_softest_ratio,omitempty"`
 	// Stiffest bump click.
+	// Plausible range: [0, 5].
 	BumpStiffestRatio float64 `protobuf:"fixed64,2,opt,name=bump_stiffest_ratio,json=bumpStiffestRatio,proto3" json:"bump_stiffest_ratio,omitempty"`
 	// Softest rebound click.
+	// Plausible range: [0, 5].
 	ReboundSoftestRatio float64 `protobuf:"fixed64,3,opt,name=rebound_softest_ratio,json=reboundSoftestRatio,proto3" json:"rebound_softest_ratio,omitempty"`
 	// Stiffest rebound click.
+	// Plausible range: [0, 5].
 	ReboundStiffestRatio float64 `protobuf:"fixed64,4,opt,name=rebound_stiffest_ratio,json=reboundStiffestRatio,proto3" json:"rebound_stiffest_ratio,omitempty"`
 	unknownFields        protoimpl.UnknownFields
 	sizeCache            protoimpl.SizeCache
@@ -996,6 +1010,7 @@ func (x *Adjustment) GetReboundStiffestRatio() float64 {
 type CurveSettings struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Largest damper velocity tabulated (both directions); 0 means 0.3 m/s.
+	// Plausible range when given (not 0): (0, 5] m/s.
 	MaxVelocityMPerS float64 `protobuf:"fixed64,1,opt,name=max_velocity_m_per_s,json=maxVelocityMPerS,proto3" json:"max_velocity_m_per_s,omitempty"`
 	// Number of points from -max to +max, in [3, 10001]; 0 means 61.
 	Points        int32 `protobuf:"varint,2,opt,name=points,proto3" json:"points,omitempty"`

@@ -164,8 +164,10 @@ type RoadCase struct {
 	// Free text naming the case in reports, e.g. a track and a sector.
 	Name string `protobuf:"bytes,1,opt,name=name,proto3" json:"name,omitempty"`
 	// Speed at which the road is driven.
+	// Plausible range: [1, 120] m/s.
 	SpeedMPerS float64 `protobuf:"fixed64,2,opt,name=speed_m_per_s,json=speedMPerS,proto3" json:"speed_m_per_s,omitempty"`
 	// Relative weight when objectives are aggregated over cases; 0 means 1.
+	// Plausible range: [0, 1000].
 	Weight float64 `protobuf:"fixed64,3,opt,name=weight,proto3" json:"weight,omitempty"`
 	// The spatial spectrum; exactly one must be given.
 	//
@@ -302,8 +304,10 @@ func (*RoadCase_Measured) isRoadCase_Spectrum() {}
 type PowerLawSpectrum struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Gd(n0), the displacement PSD at n0 = 0.1 cycles/m.
+	// Plausible range: [1e-10, 1] m^3.
 	Gd0M3 float64 `protobuf:"fixed64,1,opt,name=gd0_m3,json=gd0M3,proto3" json:"gd0_m3,omitempty"`
-	// Waviness w (dimensionless), in (0, 4]; 0 means 2.
+	// Waviness w (dimensionless); 0 means 2.
+	// Plausible range when given (not 0): [0.5, 4].
 	Waviness      float64 `protobuf:"fixed64,2,opt,name=waviness,proto3" json:"waviness,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
@@ -358,12 +362,16 @@ func (x *PowerLawSpectrum) GetWaviness() float64 {
 type MeasuredSpectrum struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Spatial frequencies, increasing, > 0.
+	// Plausible range: (0, 10000] cycles/m.
 	NCyclesPerM []float64 `protobuf:"fixed64,1,rep,packed,name=n_cycles_per_m,json=nCyclesPerM,proto3" json:"n_cycles_per_m,omitempty"`
 	// PSD of the left track at each frequency.
+	// Plausible range: [1e-24, 1000] m^3.
 	LeftM3 []float64 `protobuf:"fixed64,2,rep,packed,name=left_m3,json=leftM3,proto3" json:"left_m3,omitempty"`
 	// PSD of the right track; empty means equal to the left one.
+	// Plausible range: [1e-24, 1000] m^3.
 	RightM3 []float64 `protobuf:"fixed64,3,rep,packed,name=right_m3,json=rightM3,proto3" json:"right_m3,omitempty"`
 	// Measured coherence gamma(n) in [-1, 1] at each frequency; empty = unknown.
+	// Plausible range: [-1, 1].
 	Coherence     []float64 `protobuf:"fixed64,4,rep,packed,name=coherence,proto3" json:"coherence,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
@@ -434,8 +442,10 @@ type Coherence struct {
 	// Which coherence model applies.
 	Kind CoherenceKind `protobuf:"varint,1,opt,name=kind,proto3,enum=dampfront.v1.CoherenceKind" json:"kind,omitempty"`
 	// Spatial frequencies of the table, increasing, > 0 (COHERENCE_KIND_TABLE).
+	// Plausible range: (0, 10000] cycles/m.
 	NCyclesPerM []float64 `protobuf:"fixed64,2,rep,packed,name=n_cycles_per_m,json=nCyclesPerM,proto3" json:"n_cycles_per_m,omitempty"`
 	// gamma in [-1, 1] at each frequency of the table (COHERENCE_KIND_TABLE).
+	// Plausible range: [-1, 1].
 	Gamma         []float64 `protobuf:"fixed64,3,rep,packed,name=gamma,proto3" json:"gamma,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
@@ -498,8 +508,10 @@ func (x *Coherence) GetGamma() []float64 {
 type Grid struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Lowest frequency.
+	// Plausible range when given (not 0): [0.001, 10] Hz.
 	MinHz float64 `protobuf:"fixed64,1,opt,name=min_hz,json=minHz,proto3" json:"min_hz,omitempty"`
 	// Highest frequency, more than twice min_hz.
+	// Plausible range when given (not 0): [1, 100000] Hz.
 	MaxHz float64 `protobuf:"fixed64,2,opt,name=max_hz,json=maxHz,proto3" json:"max_hz,omitempty"`
 	// Number of points, odd, in [5, 20001].
 	Points        int32 `protobuf:"varint,3,opt,name=points,proto3" json:"points,omitempty"`

@@ -24,25 +24,37 @@ const (
 // Vehicle is the linear four-post description of a car. Every quantity is
 // SI; the unit is part of each field's name. Sign conventions are those of
 // the model package: x forward, y to the left, z up, corners FL, FR, RL, RR.
+// A value outside its field's plausible range is refused: the ranges,
+// stated at each field here and in the road, design and job messages, are
+// common practice (no published source), wide enough for any real car
+// from a light single-seater to a heavy GT or prototype.
 type Vehicle struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Free text naming the car in reports.
 	Name string `protobuf:"bytes,1,opt,name=name,proto3" json:"name,omitempty"`
 	// Sprung mass.
+	// Plausible range: [50, 5000] kg.
 	SprungMassKg float64 `protobuf:"fixed64,2,opt,name=sprung_mass_kg,json=sprungMassKg,proto3" json:"sprung_mass_kg,omitempty"`
 	// Sprung pitch inertia about the sprung centre of gravity.
+	// Plausible range: [10, 20000] kg m^2.
 	PitchInertiaKgM2 float64 `protobuf:"fixed64,3,opt,name=pitch_inertia_kg_m2,json=pitchInertiaKgM2,proto3" json:"pitch_inertia_kg_m2,omitempty"`
 	// Sprung roll inertia about the sprung centre of gravity.
+	// Plausible range: [5, 5000] kg m^2.
 	RollInertiaKgM2 float64 `protobuf:"fixed64,4,opt,name=roll_inertia_kg_m2,json=rollInertiaKgM2,proto3" json:"roll_inertia_kg_m2,omitempty"`
 	// Horizontal distance from the sprung centre of gravity to the front axle (a).
+	// Plausible range: [0.2, 5] m.
 	CgToFrontAxleM float64 `protobuf:"fixed64,5,opt,name=cg_to_front_axle_m,json=cgToFrontAxleM,proto3" json:"cg_to_front_axle_m,omitempty"`
 	// Horizontal distance from the sprung centre of gravity to the rear axle (b).
+	// Plausible range: [0.2, 5] m.
 	CgToRearAxleM float64 `protobuf:"fixed64,6,opt,name=cg_to_rear_axle_m,json=cgToRearAxleM,proto3" json:"cg_to_rear_axle_m,omitempty"`
 	// Lateral offset of the sprung centre of gravity from the centre line, left positive.
+	// Plausible range: [-0.5, 0.5] m.
 	CgLateralM float64 `protobuf:"fixed64,7,opt,name=cg_lateral_m,json=cgLateralM,proto3" json:"cg_lateral_m,omitempty"`
 	// Front track.
+	// Plausible range: [0.5, 3] m.
 	TrackFrontM float64 `protobuf:"fixed64,8,opt,name=track_front_m,json=trackFrontM,proto3" json:"track_front_m,omitempty"`
 	// Rear track.
+	// Plausible range: [0.5, 3] m.
 	TrackRearM float64 `protobuf:"fixed64,9,opt,name=track_rear_m,json=trackRearM,proto3" json:"track_rear_m,omitempty"`
 	// Exactly four wheel stations in the order front left, front right,
 	// rear left, rear right.
@@ -55,9 +67,11 @@ type Vehicle struct {
 	Aero *Aero `protobuf:"bytes,13,opt,name=aero,proto3" json:"aero,omitempty"`
 	// Front ride height of the car at rest at the axle's centre line (the
 	// body's reference, e.g. floor or plank, above the ground); needed by a
-	// ride-height aero map, 0 = not given. Plausible 0.02 to 0.2, at most 1.
+	// ride-height aero map, 0 = not given.
+	// Plausible range when given (not 0): [0.005, 0.5] m.
 	FrontRestRideHeightM float64 `protobuf:"fixed64,14,opt,name=front_rest_ride_height_m,json=frontRestRideHeightM,proto3" json:"front_rest_ride_height_m,omitempty"`
 	// Rear ride height of the car at rest, as front_rest_ride_height_m.
+	// Plausible range when given (not 0): [0.005, 0.5] m.
 	RearRestRideHeightM float64 `protobuf:"fixed64,15,opt,name=rear_rest_ride_height_m,json=rearRestRideHeightM,proto3" json:"rear_rest_ride_height_m,omitempty"`
 	unknownFields       protoimpl.UnknownFields
 	sizeCache           protoimpl.SizeCache
@@ -203,26 +217,36 @@ func (x *Vehicle) GetRearRestRideHeightM() float64 {
 type Corner struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Rate of the spring at the spring.
+	// Plausible range: [1000, 1e+07] N/m.
 	SpringRateNPerM float64 `protobuf:"fixed64,1,opt,name=spring_rate_n_per_m,json=springRateNPerM,proto3" json:"spring_rate_n_per_m,omitempty"`
-	// Spring travel per wheel travel, in (0, 2].
+	// Spring travel per wheel travel.
+	// Plausible range: [0.1, 2].
 	SpringMotionRatio float64 `protobuf:"fixed64,2,opt,name=spring_motion_ratio,json=springMotionRatio,proto3" json:"spring_motion_ratio,omitempty"`
 	// Wheel rate, used when spring_rate_n_per_m is 0.
+	// Plausible range: [1000, 1e+07] N/m.
 	WheelRateNPerM float64 `protobuf:"fixed64,3,opt,name=wheel_rate_n_per_m,json=wheelRateNPerM,proto3" json:"wheel_rate_n_per_m,omitempty"`
-	// Damper travel per wheel travel, in (0, 2].
+	// Damper travel per wheel travel.
+	// Plausible range: [0.1, 2].
 	DamperMotionRatio float64 `protobuf:"fixed64,4,opt,name=damper_motion_ratio,json=damperMotionRatio,proto3" json:"damper_motion_ratio,omitempty"`
 	// Unsprung mass.
+	// Plausible range: [3, 250] kg.
 	UnsprungMassKg float64 `protobuf:"fixed64,5,opt,name=unsprung_mass_kg,json=unsprungMassKg,proto3" json:"unsprung_mass_kg,omitempty"`
 	// Tyre vertical stiffness.
+	// Plausible range: [20000, 5e+06] N/m.
 	TyreRateNPerM float64 `protobuf:"fixed64,6,opt,name=tyre_rate_n_per_m,json=tyreRateNPerM,proto3" json:"tyre_rate_n_per_m,omitempty"`
 	// Tyre vertical damping (small); needs tyre_envelope_length_m > 0.
+	// Plausible range: [0, 10000] N s/m.
 	TyreDampingNSPerM float64 `protobuf:"fixed64,7,opt,name=tyre_damping_n_s_per_m,json=tyreDampingNSPerM,proto3" json:"tyre_damping_n_s_per_m,omitempty"`
 	// Length of the first-order road envelope of the contact patch; 0 turns it off.
+	// Plausible range: [0, 1] m.
 	TyreEnvelopeLengthM float64 `protobuf:"fixed64,8,opt,name=tyre_envelope_length_m,json=tyreEnvelopeLengthM,proto3" json:"tyre_envelope_length_m,omitempty"`
 	// Wheel travel in bump from the car at rest to bump-stop contact; 0 = not
 	// given. At speed the downforce uses part of it (see OperatingPoint).
+	// Plausible range: [0, 0.3] m.
 	BumpStopGapM float64 `protobuf:"fixed64,9,opt,name=bump_stop_gap_m,json=bumpStopGapM,proto3" json:"bump_stop_gap_m,omitempty"`
 	// Static sprung load on this corner; 0 derives it from the centre of
 	// gravity. Give all four or none.
+	// Plausible range when given (not 0): [100, 50000] N.
 	SprungLoadN   float64 `protobuf:"fixed64,10,opt,name=sprung_load_n,json=sprungLoadN,proto3" json:"sprung_load_n,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
@@ -333,10 +357,13 @@ func (x *Corner) GetSprungLoadN() float64 {
 type AntiRollBar struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Bar wheel rate, used when bar_rate_n_per_m is 0.
+	// Plausible range: [0, 1e+07] N/m.
 	WheelRateNPerM float64 `protobuf:"fixed64,1,opt,name=wheel_rate_n_per_m,json=wheelRateNPerM,proto3" json:"wheel_rate_n_per_m,omitempty"`
 	// Rate of the bar at its link.
+	// Plausible range: [1000, 1e+08] N/m.
 	BarRateNPerM float64 `protobuf:"fixed64,2,opt,name=bar_rate_n_per_m,json=barRateNPerM,proto3" json:"bar_rate_n_per_m,omitempty"`
-	// Link travel per wheel travel, in (0, 2]; with bar_rate_n_per_m.
+	// Link travel per wheel travel; with bar_rate_n_per_m.
+	// Plausible range: [0.05, 2].
 	MotionRatio   float64 `protobuf:"fixed64,3,opt,name=motion_ratio,json=motionRatio,proto3" json:"motion_ratio,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
@@ -399,18 +426,23 @@ func (x *AntiRollBar) GetMotionRatio() float64 {
 // and stiffness fields), a table or a polynomial.
 type Aero struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
-	// Speed at which the figures hold; 0 means no aero. At most 1000.
+	// Speed at which the figures hold; 0 means no aero.
+	// Plausible range when given (not 0): [10, 120] m/s.
 	ReferenceSpeedMPerS float64 `protobuf:"fixed64,1,opt,name=reference_speed_m_per_s,json=referenceSpeedMPerS,proto3" json:"reference_speed_m_per_s,omitempty"`
 	// Linear map: front axle downforce at the reference speed with the car
-	// at its rest ride heights. Plausible 0 to 2e4, at most 1e6.
+	// at its rest ride heights.
+	// Plausible range: [0, 100000] N.
 	FrontDownforceN float64 `protobuf:"fixed64,2,opt,name=front_downforce_n,json=frontDownforceN,proto3" json:"front_downforce_n,omitempty"`
 	// Linear map: rear axle downforce, as front_downforce_n.
+	// Plausible range: [0, 100000] N.
 	RearDownforceN float64 `protobuf:"fixed64,3,opt,name=rear_downforce_n,json=rearDownforceN,proto3" json:"rear_downforce_n,omitempty"`
 	// Linear map: increase of the front downforce per metre of front
-	// ride-height drop. Plausible 0 to 2e5, at most 1e9 in size.
+	// ride-height drop.
+	// Plausible range: [-5e+06, 5e+06] N/m.
 	FrontStiffnessNPerM float64 `protobuf:"fixed64,4,opt,name=front_stiffness_n_per_m,json=frontStiffnessNPerM,proto3" json:"front_stiffness_n_per_m,omitempty"`
 	// Linear map: increase of the rear downforce per metre of rear
 	// ride-height drop, as front_stiffness_n_per_m.
+	// Plausible range: [-5e+06, 5e+06] N/m.
 	RearStiffnessNPerM float64 `protobuf:"fixed64,5,opt,name=rear_stiffness_n_per_m,json=rearStiffnessNPerM,proto3" json:"rear_stiffness_n_per_m,omitempty"`
 	// Downforce on a ride-height grid; needs the rest ride heights.
 	Table *AeroTable `protobuf:"bytes,6,opt,name=table,proto3" json:"table,omitempty"`
