@@ -64,31 +64,24 @@ func (s *Server) SubmitJob(ctx context.Context, req *pb.SubmitJobRequest) (*pb.S
 		return nil, toStatus(err, nil)
 	}
 	j, err := s.engine.Submit(ctx, &jobs.SubmitParams{Spec: spec, Labels: c.msg.GetLabels()})
+	job, err := engineJob(j, err, submitPaths, true)
 	if err != nil {
-		return nil, toStatus(err, submitPaths)
-	}
-	job, err := jobToProto(j, true)
-	if err != nil {
-		return nil, toStatus(err, nil)
+		return nil, err
 	}
 	return &pb.SubmitJobResponse{Job: job}, nil
 }
 
 // GetJob returns a job, with its spec unless the basic view is asked for.
 func (s *Server) GetJob(ctx context.Context, req *pb.GetJobRequest) (*pb.GetJobResponse, error) {
-	var p problems
-	id := parseJobName(req.GetName(), "name", &p)
-	if err := p.err(); err != nil {
+	id, err := jobNameArgument(req.GetName())
+	if err != nil {
 		return nil, err
 	}
 	j, err := s.engine.Get(ctx, id)
-	if err != nil {
-		return nil, toStatus(err, nil)
-	}
 	full := req.GetView() != pb.JobView_JOB_VIEW_BASIC
-	job, err := jobToProto(j, full)
+	job, err := engineJob(j, err, nil, full)
 	if err != nil {
-		return nil, toStatus(err, nil)
+		return nil, err
 	}
 	if err := s.markInfeasible(ctx, job); err != nil {
 		return nil, toStatus(err, nil)
@@ -132,18 +125,14 @@ func (s *Server) ListJobs(ctx context.Context, req *pb.ListJobsRequest) (*pb.Lis
 
 // CancelJob requests cancellation of a queued or running job.
 func (s *Server) CancelJob(ctx context.Context, req *pb.CancelJobRequest) (*pb.CancelJobResponse, error) {
-	var p problems
-	id := parseJobName(req.GetName(), "name", &p)
-	if err := p.err(); err != nil {
+	id, err := jobNameArgument(req.GetName())
+	if err != nil {
 		return nil, err
 	}
 	j, err := s.engine.Cancel(ctx, id)
+	job, err := engineJob(j, err, nil, false)
 	if err != nil {
-		return nil, toStatus(err, nil)
-	}
-	job, err := jobToProto(j, false)
-	if err != nil {
-		return nil, toStatus(err, nil)
+		return nil, err
 	}
 	return &pb.CancelJobResponse{Job: job}, nil
 }
@@ -153,9 +142,8 @@ func (s *Server) CancelJob(ctx context.Context, req *pb.CancelJobRequest) (*pb.C
 // once. When the server shuts down the stream ends with Unavailable, and
 // the client watches again elsewhere or later.
 func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingServer[pb.WatchJobResponse]) error {
-	var p problems
-	id := parseJobName(req.GetName(), "name", &p)
-	if err := p.err(); err != nil {
+	id, err := jobNameArgument(req.GetName())
+	if err != nil {
 		return err
 	}
 	ctx, cancel := context.WithCancel(stream.Context())
@@ -203,4 +191,24 @@ func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingSe
 // progressChanged reports whether b is news after a.
 func progressChanged(a, b *jobs.Progress) bool {
 	return a.Generation != b.Generation || a.Evaluations != b.Evaluations || !a.UpdatedAt.Equal(b.UpdatedAt)
+}
+
+// jobNameArgument parses a request's job name (field "name").
+func jobNameArgument(name string) (string, error) {
+	var p problems
+	id := parseJobName(name, "name", &p)
+	return id, p.err()
+}
+
+// engineJob is the engine's answer j, err as a reply's job: err as a
+// status (its field paths mapped by paths), j in the full or basic view.
+func engineJob(j *jobs.Job, err error, paths pathMapper, full bool) (*pb.Job, error) {
+	if err != nil {
+		return nil, toStatus(err, paths)
+	}
+	job, err := jobToProto(j, full)
+	if err != nil {
+		return nil, toStatus(err, nil)
+	}
+	return job, nil
 }

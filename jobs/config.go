@@ -154,11 +154,7 @@ const (
 // withDefaults checks c and fills in defaults; errors name the field.
 func (c Config) withDefaults() (Config, error) {
 	var v violations
-	durations := []struct {
-		field string
-		d     *time.Duration
-		def   time.Duration
-	}{
+	defaultsOf(&v, []defaulted[time.Duration]{
 		{"slice_duration", &c.SliceDuration, DefaultSliceDuration},
 		{"slice_grace", &c.SliceGrace, DefaultSliceGrace},
 		{"rescue_margin", &c.RescueMargin, DefaultRescueMargin},
@@ -170,40 +166,20 @@ func (c Config) withDefaults() (Config, error) {
 		{"retry_delay", &c.RetryDelay, DefaultRetryDelay},
 		{"fetch_poll_interval", &c.FetchPollInterval, DefaultFetchPollInterval},
 		{"reap_interval", &c.ReapInterval, DefaultReapInterval},
-	}
-	for _, d := range durations {
-		switch {
-		case *d.d < 0:
-			v.add("config."+d.field, "must not be negative, got %v", *d.d)
-		case *d.d == 0:
-			*d.d = d.def
-		}
-	}
+	})
 	if c.CheckpointInterval == 0 {
 		c.CheckpointInterval = DefaultCheckpointInterval
 	}
 	if c.FetchPollInterval < time.Millisecond {
 		v.add("config.fetch_poll_interval", "must be at least 1ms, got %v", c.FetchPollInterval)
 	}
-	ints := []struct {
-		field string
-		n     *int
-		def   int
-	}{
+	defaultsOf(&v, []defaulted[int]{
 		{"workers", &c.Workers, 0},
 		{"step_generations", &c.StepGenerations, 1},
 		{"max_attempts", &c.MaxAttempts, DefaultMaxAttempts},
 		{"max_requeues", &c.MaxRequeues, DefaultMaxRequeues},
 		{"max_spec_bytes", &c.MaxSpecBytes, DefaultMaxSpecBytes},
-	}
-	for _, n := range ints {
-		switch {
-		case *n.n < 0:
-			v.add("config."+n.field, "must not be negative, got %d", *n.n)
-		case *n.n == 0:
-			*n.n = n.def
-		}
-	}
+	})
 	if c.NodeID == "" {
 		host, err := os.Hostname()
 		if err != nil || host == "" {
@@ -239,4 +215,24 @@ func newJobID() string {
 		panic("jobs: crypto/rand failed: " + err.Error())
 	}
 	return fmt.Sprintf("%012x%012x", time.Now().UnixMilli(), binary.BigEndian.Uint64(b[:])>>16)
+}
+
+// defaulted is a setting of Config that must not be negative and whose
+// zero means def.
+type defaulted[T int | time.Duration] struct {
+	field string
+	p     *T
+	def   T
+}
+
+// defaultsOf checks the settings and fills in their defaults.
+func defaultsOf[T int | time.Duration](v *violations, settings []defaulted[T]) {
+	for _, s := range settings {
+		switch {
+		case *s.p < 0:
+			v.add("config."+s.field, "must not be negative, got %v", *s.p)
+		case *s.p == 0:
+			*s.p = s.def
+		}
+	}
 }

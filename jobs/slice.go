@@ -243,10 +243,8 @@ func (rq *riverQueue[TTx]) handOver(ctx context.Context, rj *river.Job[sliceArgs
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
 	return finishedElsewhere(rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
-		if study != nil {
-			if err := rq.saveState(ctx, st, rj.Args.JobID, lease, study); err != nil {
-				return err
-			}
+		if err := rq.saveGiven(ctx, st, rj.Args.JobID, lease, study); err != nil {
+			return err
 		}
 		next := sliceArgs{JobID: rj.Args.JobID, Slice: rj.Args.Slice + 1}
 		if study == nil {
@@ -267,10 +265,8 @@ func (rq *riverQueue[TTx]) finish(ctx context.Context, rj *river.Job[sliceArgs],
 	ctx, cancel := rq.finalContext(ctx)
 	defer cancel()
 	return finishedElsewhere(rq.db.withTx(ctx, func(tx TTx, st *sqlStore) error {
-		if study != nil {
-			if err := rq.saveState(ctx, st, rj.Args.JobID, lease, study); err != nil {
-				return err
-			}
+		if err := rq.saveGiven(ctx, st, rj.Args.JobID, lease, study); err != nil {
+			return err
 		}
 		if _, err := st.JobFinish(ctx, &JobFinishParams{ID: rj.Args.JobID, Lease: lease, State: state,
 			Error: msg, Partial: state != StateSucceeded, Now: rq.e.cfg.Now()}); err != nil {
@@ -279,6 +275,14 @@ func (rq *riverQueue[TTx]) finish(ctx context.Context, rj *river.Job[sliceArgs],
 		_, err := river.JobCompleteTx[riverdriver.Driver[TTx]](ctx, tx, rj)
 		return err
 	}))
+}
+
+// saveGiven saves the study's state when study is not nil.
+func (rq *riverQueue[TTx]) saveGiven(ctx context.Context, st *sqlStore, id, lease string, study Run) error {
+	if study == nil {
+		return nil
+	}
+	return rq.saveState(ctx, st, id, lease, study)
 }
 
 // finishedElsewhere turns the error of a slice's last transaction into

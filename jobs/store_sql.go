@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"strings"
+	"time"
 	"unicode/utf8"
 
 	"dampfront/model"
@@ -135,6 +136,13 @@ func checkID(v *violations, field, id string) {
 	}
 }
 
+// checkNow requires the time of a write (field "now").
+func checkNow(v *violations, now time.Time) {
+	if now.IsZero() {
+		v.add("now", "is required")
+	}
+}
+
 func (s *sqlStore) JobInsert(ctx context.Context, p *JobInsertParams) (*Job, error) {
 	var v violations
 	checkID(&v, "id", p.ID)
@@ -142,9 +150,7 @@ func (s *sqlStore) JobInsert(ctx context.Context, p *JobInsertParams) (*Job, err
 		v.add("spec", "is required")
 	}
 	checkLabels(&v, "labels", p.Labels)
-	if p.Now.IsZero() {
-		v.add("now", "is required")
-	}
+	checkNow(&v, p.Now)
 	if err := v.err(); err != nil {
 		return nil, err
 	}
@@ -275,19 +281,8 @@ func (s *sqlStore) JobList(ctx context.Context, p *JobListParams) (*JobListResul
 func (s *sqlStore) JobCancelRequest(ctx context.Context, p *JobCancelRequestParams) (*Job, error) {
 	var v violations
 	checkID(&v, "id", p.ID)
-	if p.Now.IsZero() {
-		v.add("now", "is required")
-	}
-	if err := v.err(); err != nil {
-		return nil, err
-	}
-	now := timeToDB(p.Now)
-	var job *Job
-	err := s.inTx(ctx, func(tx *sqlStore) error {
-		j, err := tx.jobGet(ctx, p.ID)
-		if err != nil {
-			return err
-		}
+	return s.jobTx(ctx, &v, p.ID, p.Now, func(tx *sqlStore, j *Job, now int64) error {
+		var err error
 		switch {
 		case j.State.Terminal():
 			return &PreconditionError{ID: j.ID, State: j.State, Reason: "a finished job cannot be cancelled"}
@@ -297,41 +292,44 @@ func (s *sqlStore) JobCancelRequest(ctx context.Context, p *JobCancelRequestPara
 		default:
 			_, err = tx.q.exec(ctx, `UPDATE dampfront_job SET cancel_requested = 1, updated_at = ? WHERE id = ?`, now, p.ID)
 		}
-		if err != nil {
-			return err
-		}
-		job, err = tx.jobGet(ctx, p.ID)
 		return err
 	})
-	return job, err
 }
 
 func (s *sqlStore) JobStart(ctx context.Context, p *JobStartParams) (*Job, error) {
 	var v violations
 	checkID(&v, "id", p.ID)
 	checkID(&v, "lease", p.Lease)
-	if p.Now.IsZero() {
-		v.add("now", "is required")
-	}
-	if err := v.err(); err != nil {
-		return nil, err
-	}
-	now := timeToDB(p.Now)
-	var job *Job
-	err := s.inTx(ctx, func(tx *sqlStore) error {
-		j, err := tx.jobGet(ctx, p.ID)
-		if err != nil {
-			return err
-		}
+	return s.jobTx(ctx, &v, p.ID, p.Now, func(tx *sqlStore, j *Job, now int64) error {
 		if j.State.Terminal() {
 			return &PreconditionError{ID: j.ID, State: j.State, Reason: "a finished job cannot start another slice"}
 		}
-		if _, err := tx.q.exec(ctx, `UPDATE dampfront_job SET state = ?, lease = ?, slices = slices + 1,
+		_, err := tx.q.exec(ctx, `UPDATE dampfront_job SET state = ?, lease = ?, slices = slices + 1,
 			started_at = CASE WHEN started_at = 0 THEN ? ELSE started_at END, updated_at = ? WHERE id = ?`,
-			string(StateRunning), p.Lease, now, now, p.ID); err != nil {
+			string(StateRunning), p.Lease, now, now, p.ID)
+		return err
+	})
+}
+
+// jobTx checks the time of the write after the checks already in v, then
+// runs change on job id in a transaction (now is at in the database's
+// form) and returns the job as it is afterwards.
+func (s *sqlStore) jobTx(ctx context.Context, v *violations, id string, at time.Time, change func(tx *sqlStore, j *Job, now int64) error) (*Job, error) {
+	checkNow(v, at)
+	if err := v.err(); err != nil {
+		return nil, err
+	}
+	now := timeToDB(at)
+	var job *Job
+	err := s.inTx(ctx, func(tx *sqlStore) error {
+		j, err := tx.jobGet(ctx, id)
+		if err != nil {
 			return err
 		}
-		job, err = tx.jobGet(ctx, p.ID)
+		if err := change(tx, j, now); err != nil {
+			return err
+		}
+		job, err = tx.jobGet(ctx, id)
 		return err
 	})
 	return job, err
@@ -357,9 +355,7 @@ func (s *sqlStore) JobFinish(ctx context.Context, p *JobFinishParams) (*Job, err
 	if !p.State.Terminal() {
 		v.add("state", "must be succeeded, failed or cancelled, got %q", p.State)
 	}
-	if p.Now.IsZero() {
-		v.add("now", "is required")
-	}
+	checkNow(&v, p.Now)
 	if err := v.err(); err != nil {
 		return nil, err
 	}

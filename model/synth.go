@@ -254,13 +254,7 @@ func (r *roadCoefficients) tyreInputs(v *Vehicle, speed float64, m int) []float6
 func smoothAbove(n, lo int) int {
 	n = max(n, lo)
 	for ; ; n++ {
-		m := n
-		for _, p := range [...]int{2, 3, 5} {
-			for m%p == 0 {
-				m /= p
-			}
-		}
-		if m == 1 {
+		if smooth235(n) {
 			return n
 		}
 	}

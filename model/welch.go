@@ -296,13 +296,7 @@ func smoothBelow(n, limit int) int {
 		n = limit
 	}
 	for ; n >= 1; n-- {
-		m := n
-		for _, p := range [...]int{2, 3, 5} {
-			for m%p == 0 {
-				m /= p
-			}
-		}
-		if m == 1 {
+		if smooth235(n) {
 			return n
 		}
 	}
@@ -347,4 +341,14 @@ func (s *Spectrum) Measured(lo, hi float64) (*MeasuredSpectrum, error) {
 		return nil, fmt.Errorf("model: measured spectrum: the band [%g, %g] cycles/m holds %d bins, at least 2 are needed", lo, hi, len(m.N))
 	}
 	return m, nil
+}
+
+// smooth235 reports whether n's only prime factors are 2, 3 and 5.
+func smooth235(n int) bool {
+	for _, p := range [...]int{2, 3, 5} {
+		for n%p == 0 {
+			n /= p
+		}
+	}
+	return n == 1
 }

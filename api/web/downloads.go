@@ -48,9 +48,8 @@ func (h *Handler) frontJSON(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
 	ctx, cancel := h.callContext(r)
 	defer cancel()
-	jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(id), View: pb.JobView_JOB_VIEW_BASIC})
-	if err != nil {
-		h.serviceError(w, r, err, false)
+	j, ok := h.getJob(ctx, w, r, id, pb.JobView_JOB_VIEW_BASIC, false)
+	if !ok {
 		return
 	}
 	front, ok := h.requestFront(w, r, id)
@@ -58,7 +57,7 @@ func (h *Handler) frontJSON(w http.ResponseWriter, r *http.Request) {
 		return
 	}
 	var b bytes.Buffer
-	if err := frontfile.WriteJSON(&b, jr.GetJob(), front); err != nil {
+	if err := frontfile.WriteJSON(&b, j, front); err != nil {
 		h.serviceError(w, r, err, false)
 		return
 	}

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"html/template"
@@ -83,12 +84,10 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
 	ctx, cancel := h.callContext(r)
 	defer cancel()
-	jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(id), View: pb.JobView_JOB_VIEW_FULL})
-	if err != nil {
-		h.serviceError(w, r, err, true)
+	j, ok := h.getJob(ctx, w, r, id, pb.JobView_JOB_VIEW_FULL, true)
+	if !ok {
 		return
 	}
-	j := jr.GetJob()
 	spec := j.GetSpec()
 	v := &jobView{
 		pageView: pageView{Title: j.GetDisplayName()},
@@ -263,12 +262,11 @@ func numCell(q quantity, values []float64, i int) cell {
 func (h *Handler) progress(w http.ResponseWriter, r *http.Request) {
 	ctx, cancel := h.callContext(r)
 	defer cancel()
-	jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(r.PathValue("id")), View: pb.JobView_JOB_VIEW_BASIC})
-	if err != nil {
-		h.serviceError(w, r, err, false)
+	j, ok := h.getJob(ctx, w, r, r.PathValue("id"), pb.JobView_JOB_VIEW_BASIC, false)
+	if !ok {
 		return
 	}
-	b, err := json.Marshal(newProgressView(jr.GetJob()))
+	b, err := json.Marshal(newProgressView(j))
 	if err != nil {
 		h.serviceError(w, r, err, false)
 		return
@@ -276,4 +274,15 @@ func (h *Handler) progress(w http.ResponseWriter, r *http.Request) {
 	w.Header().Set("Content-Type", "application/json")
 	w.Header().Set("Cache-Control", "no-store")
 	_, _ = w.Write(b)
+}
+
+// getJob gets job id in the view asked for; when that fails it has
+// answered with serviceError (as a page when page is true).
+func (h *Handler) getJob(ctx context.Context, w http.ResponseWriter, r *http.Request, id string, view pb.JobView, page bool) (*pb.Job, bool) {
+	jr, err := h.client.GetJob(ctx, &pb.GetJobRequest{Name: jobName(id), View: view})
+	if err != nil {
+		h.serviceError(w, r, err, page)
+		return nil, false
+	}
+	return jr.GetJob(), true
 }

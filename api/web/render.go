@@ -64,33 +64,28 @@ func (h *Handler) fail(w http.ResponseWriter, r *http.Request, code int, msg str
 // Mapping" that the comments of google.rpc.Code (googleapis,
 // google/rpc/code.proto) give for each code.
 func httpStatus(c codes.Code) int {
-	switch c {
-	case codes.OK:
-		return http.StatusOK
-	case codes.InvalidArgument, codes.OutOfRange:
-		return http.StatusBadRequest
-	case codes.FailedPrecondition:
-		return http.StatusBadRequest
-	case codes.Unauthenticated:
-		return http.StatusUnauthorized
-	case codes.PermissionDenied:
-		return http.StatusForbidden
-	case codes.NotFound:
-		return http.StatusNotFound
-	case codes.AlreadyExists, codes.Aborted:
-		return http.StatusConflict
-	case codes.ResourceExhausted:
-		return http.StatusTooManyRequests
-	case codes.Canceled:
-		return 499 // client closed request
-	case codes.Unimplemented:
-		return http.StatusNotImplemented
-	case codes.Unavailable:
-		return http.StatusServiceUnavailable
-	case codes.DeadlineExceeded:
-		return http.StatusGatewayTimeout
+	if s, ok := httpStatuses[c]; ok {
+		return s
 	}
 	return http.StatusInternalServerError
+}
+
+// httpStatuses is the table of httpStatus.
+var httpStatuses = map[codes.Code]int{
+	codes.OK:                 http.StatusOK,
+	codes.InvalidArgument:    http.StatusBadRequest,
+	codes.OutOfRange:         http.StatusBadRequest,
+	codes.FailedPrecondition: http.StatusBadRequest,
+	codes.Unauthenticated:    http.StatusUnauthorized,
+	codes.PermissionDenied:   http.StatusForbidden,
+	codes.NotFound:           http.StatusNotFound,
+	codes.AlreadyExists:      http.StatusConflict,
+	codes.Aborted:            http.StatusConflict,
+	codes.ResourceExhausted:  http.StatusTooManyRequests,
+	codes.Canceled:           499, // client closed request
+	codes.Unimplemented:      http.StatusNotImplemented,
+	codes.Unavailable:        http.StatusServiceUnavailable,
+	codes.DeadlineExceeded:   http.StatusGatewayTimeout,
 }
 
 // serviceError shows what a failed service call means to the reader:

@@ -74,12 +74,9 @@ type healthEndpoint struct {
 // flag is empty. It is called before the database is opened, so that a
 // port already taken fails the worker before it touches the database.
 func (h *healthFlags) listen() (*healthEndpoint, error) {
-	if h.addr == "" {
-		return nil, nil
-	}
-	lis, err := net.Listen("tcp", h.addr)
-	if err != nil {
-		return nil, fmt.Errorf("listen on --health-addr %s: %w", h.addr, err)
+	lis, err := listenFlag("--health-addr", h.addr)
+	if lis == nil {
+		return nil, err
 	}
 	hs := health.NewServer()
 	hs.SetServingStatus("", healthpb.HealthCheckResponse_NOT_SERVING)
@@ -140,4 +137,17 @@ func (ep *healthEndpoint) close() error {
 		return fmt.Errorf("health service on %s: %w", ep.addr(), ep.err)
 	}
 	return nil
+}
+
+// listenFlag binds the address given by flag; nil, nil when addr is
+// empty.
+func listenFlag(flag, addr string) (net.Listener, error) {
+	if addr == "" {
+		return nil, nil
+	}
+	lis, err := net.Listen("tcp", addr)
+	if err != nil {
+		return nil, fmt.Errorf("listen on %s %s: %w", flag, addr, err)
+	}
+	return lis, nil
 }

@@ -80,12 +80,9 @@ type metricsEndpoint struct {
 // without the flag. Like --health-addr it is bound before the database
 // is opened.
 func (m *metricsFlags) listen(log *slog.Logger) (*metricsEndpoint, error) {
-	if m.addr == "" {
-		return nil, nil
-	}
-	lis, err := net.Listen("tcp", m.addr)
-	if err != nil {
-		return nil, fmt.Errorf("listen on --metrics-addr %s: %w", m.addr, err)
+	lis, err := listenFlag("--metrics-addr", m.addr)
+	if lis == nil {
+		return nil, err
 	}
 	mux := http.NewServeMux()
 	mux.Handle("GET /metrics", m.metrics.Handler())
