@@ -93,7 +93,7 @@ func jobID(name string) string { return strings.TrimPrefix(name, "jobs/") }
 func describeError(err error) string {
 	var src api.TextSources
 	if l := (*located)(nil); errors.As(err, &l) {
-		src = l.src
+		src, err = l.src, l.err // a wrapped status would carry the wrapper's text as its message
 	}
 	st, ok := status.FromError(err)
 	if !ok {

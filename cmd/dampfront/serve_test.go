@@ -295,7 +295,7 @@ func TestServeClientCommands(t *testing.T) {
 			"spec.road_cases[1].speed_m_per_s",
 			"spec.design_space.ratios.rear_rebound.max",
 		} {
-			if !strings.Contains(r.stderr, "\n  "+field+": ") {
+			if !strings.Contains(r.stderr, " "+field+": ") {
 				t.Errorf("submit of five bad fields does not name %s:\n%s", field, r.stderr)
 			}
 		}

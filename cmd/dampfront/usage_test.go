@@ -55,7 +55,7 @@ func TestUsageErrorsExit2(t *testing.T) {
 		{"spec missing file", nil, []string{"submit", "no-such-spec.yaml", noServer}, "no-such-spec.yaml"},
 		{"setup missing file", nil, []string{"check", "a", "--setup", "no-such-setup.yaml", noServer}, "no-such-setup.yaml"},
 		{"setup is a spec", nil, []string{"eval", "--job", "a", "--setup", testdataPath("demo-job.yaml"), noServer}, "not a dampfront.v1.Setup"},
-		{"roads not a list", nil, []string{"eval", "--spec", testdataPath("demo-job.yaml"), "--roads", testdataPath("candidate-setup.yaml"), "--setup", testdataPath("candidate-setup.yaml"), noServer}, "not a list of road cases"},
+		{"roads not a list", nil, []string{"eval", "--spec", testdataPath("demo-job.yaml"), "--roads", testdataPath("candidate-setup.yaml"), "--setup", testdataPath("candidate-setup.yaml"), noServer}, "must be a list of RoadCase"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
