@@ -57,6 +57,7 @@ var methodRoles = map[string]Role{
 	pb.DampfrontService_ListJobs_FullMethodName:        RoleReader,
 	pb.DampfrontService_WatchJob_FullMethodName:        RoleReader,
 	pb.DampfrontService_GetFront_FullMethodName:        RoleReader,
+	pb.DampfrontService_EstimateByHand_FullMethodName:  RoleReader, // no job, no road: the car alone
 	pb.DampfrontService_SubmitJob_FullMethodName:       RoleSubmitter,
 	pb.DampfrontService_EvaluateSetups_FullMethodName:  RoleSubmitter,
 	pb.DampfrontService_CompareSetup_FullMethodName:    RoleSubmitter,

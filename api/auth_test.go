@@ -114,6 +114,10 @@ func TestAuthMatrix(t *testing.T) {
 			_, err := c.GetFront(ctx, &pb.GetFrontRequest{})
 			return err
 		}},
+		{"EstimateByHand", RoleReader, codes.InvalidArgument, func(ctx context.Context, c pb.DampfrontServiceClient) error {
+			_, err := c.EstimateByHand(ctx, &pb.EstimateByHandRequest{})
+			return err
+		}},
 		{"SubmitJob", RoleSubmitter, codes.InvalidArgument, func(ctx context.Context, c pb.DampfrontServiceClient) error {
 			_, err := c.SubmitJob(ctx, &pb.SubmitJobRequest{})
 			return err

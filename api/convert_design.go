@@ -92,10 +92,11 @@ var (
 		pb.Aggregation_AGGREGATION_NORMALISED:  model.AggregateNormalised,
 	}
 	constraintKinds = map[pb.ConstraintKind]model.ConstraintKind{
-		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:  model.ConstraintLiftOff,
-		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP: model.ConstraintBumpStop,
-		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:    model.ConstraintTravel,
-		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:   model.ConstraintJacking,
+		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:    model.ConstraintLiftOff,
+		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP:   model.ConstraintBumpStop,
+		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:      model.ConstraintTravel,
+		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:     model.ConstraintJacking,
+		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO: model.ConstraintModalRatio,
 	}
 )
 
@@ -156,7 +157,13 @@ func constraintsFromProto(cons []*pb.Constraint, path string, p *problems) []mod
 		if !ok {
 			p.add(fmt.Sprintf("%s[%d].kind", path, i), "must be one of the CONSTRAINT_KIND_ values other than UNSPECIFIED, got %v", c.GetKind())
 		}
-		out[i] = model.Constraint{Kind: kind, Limit: c.GetLimit()}
+		out[i] = model.Constraint{Kind: kind, Limit: c.GetLimit(), Lower: c.GetLower(), Mode: int(c.GetMode()) - 1}
+		switch {
+		case kind == model.ConstraintModalRatio && c.GetMode() == pb.ModeName_MODE_NAME_UNSPECIFIED:
+			p.add(fmt.Sprintf("%s[%d].mode", path, i), "must name the mode of a modal-ratio band (MODE_NAME_HEAVE, ...)")
+		case kind != model.ConstraintModalRatio && c.GetMode() != pb.ModeName_MODE_NAME_UNSPECIFIED:
+			p.add(fmt.Sprintf("%s[%d].mode", path, i), "is for CONSTRAINT_KIND_MODAL_RATIO only, got %v on %v", c.GetMode(), c.GetKind())
+		}
 	}
 	return out
 }

@@ -96,10 +96,15 @@ func operatingPointToProto(op *model.OperatingPoint) *pb.OperatingPoint {
 func modesToProto(modes []model.Mode) []*pb.Mode {
 	out := make([]*pb.Mode, len(modes))
 	for i, m := range modes {
-		out[i] = &pb.Mode{Name: m.Name, FrequencyHz: m.FrequencyHz, DampedFrequencyHz: m.DampedFrequencyHz,
-			DampingRatio: m.DampingRatio, Overdamped: m.Overdamped}
+		out[i] = modeToProto(&m)
 	}
 	return out
+}
+
+func modeToProto(m *model.Mode) *pb.Mode {
+	return &pb.Mode{Name: m.Name, UndampedFrequencyHz: m.UndampedFrequencyHz, ModalDampingRatio: m.DampingRatio,
+		DampedFrequencyHz: m.DampedFrequencyHz, PairDampingRatio: m.PairDampingRatio, Overdamped: m.Overdamped,
+		DecayRatesPerS: m.DecayRates}
 }
 
 func damperCurvesToProto(curves []model.DamperCurve) []*pb.DamperCurve {

@@ -164,7 +164,7 @@ func TestShortfalls(t *testing.T) {
 		t.Fatal(err)
 	}
 	d := DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}, Base: demoSetup()}
-	p, err := NewProblem(e, d, DefaultObjectives(), []Constraint{{ConstraintLiftOff, 0.01}, {ConstraintJacking, 0.003}})
+	p, err := NewProblem(e, d, DefaultObjectives(), []Constraint{{Kind: ConstraintLiftOff, Limit: 0.01}, {Kind: ConstraintJacking, Limit: 0.003}})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -69,7 +69,7 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	band := adj.BumpStiffest > 0 && adj.ReboundStiffest > 0
+	band := adj.band()
 	cc := v.CriticalDamping()
 	out := make([]DamperCurve, 4)
 	for i := range out {

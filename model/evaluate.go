@@ -56,13 +56,14 @@ type Evaluator struct {
 
 // caseData is one road case prepared on the grid.
 type caseData struct {
-	rc   RoadCase
-	sym  bool
-	base *system // undamped suspension (tyre damping only)
-	kinv [nDOF][nDOF]float64
-	grid *caseGrid
-	geo  outputGeometry
-	op   OperatingPoint // the car at the case's speed
+	rc    RoadCase
+	sym   bool
+	base  *system // undamped suspension (tyre damping only)
+	kinv  [nDOF][nDOF]float64
+	grid  *caseGrid
+	geo   outputGeometry
+	op    OperatingPoint // the car at the case's speed
+	modal modalRatios
 }
 
 type workspace struct {
@@ -131,6 +132,11 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 				cd.kinv[b][a] = col[b]
 			}
 		}
+		modal, err := newModalRatios(cd.base)
+		if err != nil {
+			return nil, err
+		}
+		cd.modal = modal
 		cd.grid = newCaseGrid(&e.v, &cd.rc, e.f, sym)
 		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, yc: -v.CGLateral}
 		for c := 0; c < 4; c++ {
@@ -279,6 +285,7 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 		m.TyreLoadSDRel[i] = m.TyreLoadSD[i] / cd.op.TyreLoad[i]
 		m.TravelSD[i] = math.Sqrt(v[outTravel+i])
 	}
+	cd.modal.fill(&m.EquivalentDamping, &m.ModalDampingRatio)
 	// Jacking: K x̄ = -Dᵀ F̄ (the mean damper force pushes body up, wheel down).
 	var f, xbar [nDOF]float64
 	for a := 0; a < nDOF; a++ {

@@ -128,6 +128,7 @@ var plausible = map[string]Limit{
 	"Constraint.probability":          {Min: 0, Max: 1, OpenMin: true, Slips: slipPercent},
 	"Constraint.travel_m":             {Min: 0, Max: 0.2, OpenMin: true, Unit: "m", Slips: slipMm},
 	"Constraint.jacking_m":            {Min: 0, Max: 0.1, OpenMin: true, Unit: "m", Slips: slipMm},
+	"Constraint.modal_ratio":          {Min: 0, Max: 5, OpenMin: true},
 	"Curves.max_velocity_m_per_s":     {Min: 0, Max: 5, OpenMin: true, Unit: "m/s", Slips: slipMmPerS},
 	"Adjustment.ratio":                {Min: 0, Max: 5},
 	"BumpStop.deflection_m":           {Min: 0, Max: 0.3, OpenMin: true, Unit: "m", Slips: slipMm},

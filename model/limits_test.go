@@ -60,7 +60,7 @@ func TestPlausibleRanges(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
 			v, rc, s := demoCar(), demoCases()[:1], demoSetup()
-			c := []Constraint{{ConstraintLiftOff, 0.01}, {ConstraintTravel, 0.02}}
+			c := []Constraint{{Kind: ConstraintLiftOff, Limit: 0.01}, {Kind: ConstraintTravel, Limit: 0.02}}
 			tc.mutate(&v, rc, &s, c)
 			var p problems
 			p.merge("vehicle.", v.Validate())

@@ -34,6 +34,9 @@ type CaseMetrics struct {
 	DamperVelocitySD  [4]float64 // damper velocity at the damper (m/s)
 	EquivalentDamping [4]float64 // c_eq at the wheel at the fixed point (N s/m)
 	MeanDamperForce   [4]float64 // mean damper force at the damper, + pushes apart (N)
+	// ModalDampingRatio is the modal damping ratio of each undamped mode
+	// (ModeNames order) with the dampers at their equivalent slopes (-).
+	ModalDampingRatio [nDOF]float64
 
 	RideHeightShift [2]float64 // mean ride-height change, front, rear, + up (m)
 	PitchShift      float64    // mean pitch change, + nose up (rad)

@@ -79,10 +79,15 @@ const (
 	ConstraintTravel
 	// ConstraintJacking limits |mean ride-height shift| at each axle (m).
 	ConstraintJacking
+	// ConstraintModalRatio keeps one mode's modal damping ratio at the
+	// equivalent slopes (CaseMetrics.ModalDampingRatio) within a band
+	// [Lower, Limit] on every case (-): a band, not only an upper limit.
+	ConstraintModalRatio
 )
 
 var constraintNames = map[ConstraintKind]string{
 	ConstraintLiftOff: "lift_off", ConstraintBumpStop: "bump_stop", ConstraintTravel: "travel", ConstraintJacking: "jacking",
+	ConstraintModalRatio: "modal_ratio",
 }
 
 func (k ConstraintKind) String() string {
@@ -100,15 +105,62 @@ func (k ConstraintKind) limitName() string {
 		return "Constraint.travel_m"
 	case ConstraintJacking:
 		return "Constraint.jacking_m"
+	case ConstraintModalRatio:
+		return "Constraint.modal_ratio"
 	default:
 		return "Constraint.probability"
 	}
 }
 
-// Constraint is an upper limit on a metric, over every case and corner.
+// Constraint is an upper limit on a metric, over every case and corner;
+// a modal-ratio constraint is a band on one mode.
 type Constraint struct {
 	Kind  ConstraintKind
-	Limit float64 // SI; in the plausible range of its kind (see ConstraintKind.limitName)
+	Limit float64 // SI, in the plausible range of its kind (see ConstraintKind.limitName); the band's upper end for ConstraintModalRatio
+	// Mode is the mode of a ConstraintModalRatio (index into ModeNames).
+	Mode int
+	// Lower is the band's lower end for ConstraintModalRatio (-), in
+	// [0, Limit); 0 leaves only the upper end.
+	Lower float64
+}
+
+// String names the constraint: its kind, and the mode of a band.
+func (c Constraint) String() string {
+	if c.Kind == ConstraintModalRatio && c.Mode >= 0 && c.Mode < nDOF {
+		return fmt.Sprintf("%s ratio", ModeNames[c.Mode])
+	}
+	return c.Kind.String()
+}
+
+// bandWorst is a modal-ratio band's violation over the cases of r,
+// max(0, worst case's bandViolation), with the ratio and the first case
+// where it is reached.
+func bandWorst(c *Constraint, r *Result) (viol, ratio float64, at int) {
+	worst := math.Inf(-1)
+	for i := range r.Cases {
+		v := c.bandViolation(&r.Cases[i])
+		if math.IsNaN(v) {
+			return v, r.Cases[i].ModalDampingRatio[c.Mode], i
+		}
+		if v > worst {
+			worst, at = v, i
+		}
+	}
+	if len(r.Cases) > 0 {
+		ratio = r.Cases[at].ModalDampingRatio[c.Mode]
+	}
+	return math.Max(0, worst), ratio, at
+}
+
+// bandViolation is a modal-ratio band's violation on one case:
+// max(ζ/limit - 1, lower/ζ - 1), <= 0 inside the band.
+func (c *Constraint) bandViolation(m *CaseMetrics) float64 {
+	z := m.ModalDampingRatio[c.Mode]
+	v := z/c.Limit - 1
+	if c.Lower > 0 {
+		v = math.Max(v, c.Lower/z-1)
+	}
+	return v
 }
 
 // caseObjective is the per-case value of an objective.
@@ -225,6 +277,16 @@ func ValidateProblem(d DesignSpace, objectives []Objective, constraints []Constr
 			continue
 		}
 		p.in(f+".limit", c.Limit, c.Kind.limitName())
+		if c.Kind == ConstraintModalRatio {
+			if c.Mode < 0 || c.Mode >= nDOF {
+				p.add(f+".mode", "unknown mode %d", c.Mode)
+			}
+			if !(c.Lower >= 0) || c.Lower >= c.Limit {
+				p.add(f+".lower", "must be in [0, limit %g), got %g", c.Limit, c.Lower)
+			}
+		} else if c.Lower != 0 {
+			p.add(f+".lower", "is for a modal-ratio band only, got %g on %s", c.Lower, c.Kind)
+		}
 	}
 	return p.err()
 }
@@ -269,8 +331,13 @@ func (s *Problem) Score(r *Result, obj, viol []float64) {
 		obj[j] = s.ObjectiveValue(j, r)
 	}
 	for j := range s.constraints {
-		worst, _ := constraintWorst(&s.constraints[j], r)
-		viol[j] = math.Max(0, worst/s.constraints[j].Limit-1)
+		c := &s.constraints[j]
+		if c.Kind == ConstraintModalRatio {
+			viol[j], _, _ = bandWorst(c, r)
+			continue
+		}
+		worst, _ := constraintWorst(c, r)
+		viol[j] = math.Max(0, worst/c.Limit-1)
 	}
 }
 

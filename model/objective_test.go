@@ -83,7 +83,7 @@ func TestStudyConstraintsAndValidation(t *testing.T) {
 	// A travel limit of 0.1 mm is certainly violated (travel sd is about
 	// 1 mm on these cases); a jacking limit of 0.1 m (the largest
 	// plausible) certainly holds.
-	s, err := NewProblem(e, d, DefaultObjectives(), []Constraint{{ConstraintTravel, 1e-4}, {ConstraintJacking, 0.1}})
+	s, err := NewProblem(e, d, DefaultObjectives(), []Constraint{{Kind: ConstraintTravel, Limit: 1e-4}, {Kind: ConstraintJacking, Limit: 0.1}})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -19,7 +19,9 @@ type Shortfall struct {
 	// Case is the index of the road case where Worst is reached (the
 	// first such case).
 	Case int
-	// Over is Worst − Limit, in the constraint's unit; ≤ 0 when met.
+	// Over is Worst − Limit, in the constraint's unit; ≤ 0 when met. For
+	// a modal-ratio band Worst is the ratio farthest outside it and Over
+	// its distance outside, max(Worst − Limit, Lower − Worst).
 	Over float64
 	// Violation is max(0, Worst/Limit − 1), what the search minimises.
 	Violation float64
@@ -31,6 +33,14 @@ func (s *Problem) Shortfalls(r *Result) []Shortfall {
 	out := make([]Shortfall, len(s.constraints))
 	for j, c := range s.constraints {
 		sf := Shortfall{Constraint: c}
+		if c.Kind == ConstraintModalRatio {
+			// Worst is the ratio where the band is missed most, Over how
+			// far outside the band it lies.
+			sf.Violation, sf.Worst, sf.Case = bandWorst(&s.constraints[j], r)
+			sf.Over = math.Max(sf.Worst-c.Limit, c.Lower-sf.Worst)
+			out[j] = sf
+			continue
+		}
 		sf.Worst, sf.Case = constraintWorst(&s.constraints[j], r)
 		sf.Over = sf.Worst - c.Limit
 		sf.Violation = math.Max(0, sf.Worst/c.Limit-1)

@@ -36,9 +36,13 @@ func ObjectiveColumn(k pb.ObjectiveKind) string {
 }
 
 // ConstraintColumn is the column of a constraint's violation,
-// max(0, worst / limit - 1), dimensionless: "lift_off_violation".
-func ConstraintColumn(k pb.ConstraintKind) string {
-	return strings.ToLower(strings.TrimPrefix(k.String(), "CONSTRAINT_KIND_")) + "_violation"
+// max(0, worst / limit - 1), dimensionless: "lift_off_violation"; a band
+// on a mode's ratio is named by its mode, "heave_ratio_violation".
+func ConstraintColumn(c *pb.Constraint) string {
+	if c.GetKind() == pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO && c.GetMode() != pb.ModeName_MODE_NAME_UNSPECIFIED {
+		return strings.ToLower(strings.TrimPrefix(c.GetMode().String(), "MODE_NAME_")) + "_ratio_violation"
+	}
+	return strings.ToLower(strings.TrimPrefix(c.GetKind().String(), "CONSTRAINT_KIND_")) + "_violation"
 }
 
 // slopeColumns are the low-speed slopes at the damper (N s/m) of the
@@ -64,7 +68,7 @@ func Columns(f *pb.Front) []string {
 		cols = append(cols, s.bump, s.rebound)
 	}
 	for _, c := range f.GetConstraints() {
-		cols = append(cols, ConstraintColumn(c.GetKind()))
+		cols = append(cols, ConstraintColumn(c))
 	}
 	return append(cols, "feasible", "balanced")
 }

@@ -71,7 +71,7 @@ func WriteJSON(w io.Writer, job *pb.Job, f *pb.Front) error {
 	cons := []record{}
 	for _, c := range f.GetConstraints() {
 		cons = append(cons, record{keys: []string{"column", "kind", "limit"},
-			values: []any{ConstraintColumn(c.GetKind()), c.GetKind().String(), c.GetLimit()}})
+			values: []any{ConstraintColumn(c), c.GetKind().String(), c.GetLimit()}})
 	}
 	balIndex := -1
 	if bal >= 0 {

@@ -13,7 +13,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 )
 
-// modeMarks draws the natural frequencies of modes as vertical lines over
+// modeMarks draws the undamped natural frequencies of modes as vertical lines over
 // the whole height of a panel whose x data are log10 of frequency in Hz,
 // and with labels names them, the labels standing upright at the foot of
 // the panel, where a spectrum is low at the modes (it peaks there). It
@@ -35,7 +35,7 @@ var (
 
 func newModeMarks(modes []model.Mode) modeMarks {
 	m := slices.Clone(modes)
-	slices.SortStableFunc(m, func(a, b model.Mode) int { return cmpFloat(a.FrequencyHz, b.FrequencyHz) })
+	slices.SortStableFunc(m, func(a, b model.Mode) int { return cmpFloat(a.UndampedFrequencyHz, b.UndampedFrequencyHz) })
 	return modeMarks{modes: m}
 }
 
@@ -50,7 +50,7 @@ func lineOf(m model.Mode) draw.LineStyle {
 // modeLabel is "heave 1.92 Hz": the frequency to three significant
 // figures, trailing zeros kept ("16.0 Hz").
 func modeLabel(m model.Mode) string {
-	f, _ := strconv.ParseFloat(strconv.FormatFloat(m.FrequencyHz, 'g', 3, 64), 64) // 9.996 is 10.0
+	f, _ := strconv.ParseFloat(strconv.FormatFloat(m.UndampedFrequencyHz, 'g', 3, 64), 64) // 9.996 is 10.0
 	decimals := max(0, 2-int(math.Floor(math.Log10(f))))
 	return m.Name + " " + strconv.FormatFloat(f, 'f', decimals, 64) + " Hz"
 }
@@ -65,7 +65,7 @@ func (mm modeMarks) Plot(c draw.Canvas, p *plot.Plot) {
 	var xs []vg.Length
 	var shown []model.Mode
 	for _, m := range mm.modes {
-		x := math.Log10(m.FrequencyHz)
+		x := math.Log10(m.UndampedFrequencyHz)
 		if x < p.X.Min || x > p.X.Max {
 			continue
 		}

@@ -46,7 +46,7 @@ const spectraSameRel = 1e-9
 // side is drawn dashed. The area under a curve, in linear units, is the
 // variance of its quantity over the grid.
 //
-// The modes (model.ModalAnalysis of the setup at the case's speed) are
+// The modes (model.ModesAt the case's speed and equivalent slopes) are
 // marked by vertical lines at their natural frequencies, dotted when
 // overdamped, and named with their frequency in the upper panel; modes
 // outside the grid are left out. Each PSD axis spans at most six decades
@@ -108,7 +108,7 @@ func Spectra(sp *model.Spectra, modes []model.Mode, opt SpectraOptions) (*Figure
 	pg := def.or(opt.Title, opt.Width, opt.Height)
 	fig := &Figure{Width: pg.width, Height: pg.height, Title: pg.title, Panels: [][]*plot.Plot{{tyre}, {ride}}}
 	note := "One-sided PSDs at the linearisation's fixed point; the area under a curve is the variance over the grid. " +
-		"Grey lines: natural frequencies of the modes with each damper at its mean low-speed slope, dotted when overdamped."
+		"Grey lines: undamped natural frequencies of the modes, dotted when overdamped at the equivalent slopes."
 	if asym {
 		note += " Dashed: right side."
 	}
@@ -252,8 +252,8 @@ func validateSpectra(sp *model.Spectra, modes []model.Mode) error {
 		}
 	}
 	for i, m := range modes {
-		if !finite(m.FrequencyHz) || !(m.FrequencyHz > 0) {
-			add(fmt.Sprintf("modes[%d].frequency_hz", i), "must be finite and > 0, got %v", m.FrequencyHz)
+		if !finite(m.UndampedFrequencyHz) || !(m.UndampedFrequencyHz > 0) {
+			add(fmt.Sprintf("modes[%d].undamped_frequency_hz", i), "must be finite and > 0, got %v", m.UndampedFrequencyHz)
 		}
 	}
 	if len(probs) > 0 {

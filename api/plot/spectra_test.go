@@ -211,7 +211,7 @@ func TestSpectraInvalid(t *testing.T) {
 		return &sp
 	}
 	badMode := append([]model.Mode(nil), modes...)
-	badMode[1].FrequencyHz = -2
+	badMode[1].UndampedFrequencyHz = -2
 	for _, tc := range []struct {
 		name  string
 		sp    *model.Spectra
@@ -223,7 +223,7 @@ func TestSpectraInvalid(t *testing.T) {
 		{"NaN tyre load", edit(func(sp *model.Spectra) { sp.TyreLoad[2][5] = math.NaN() }), modes, "spectra.tyre_load[2][5]"},
 		{"short tyre load", edit(func(sp *model.Spectra) { sp.TyreLoad[2] = sp.TyreLoad[2][:4] }), modes, "spectra.tyre_load[2]"},
 		{"zero ride height", edit(func(sp *model.Spectra) { clear(sp.RideHeight[0]); clear(sp.RideHeight[1]) }), modes, "spectra.ride_height"},
-		{"negative mode", good, badMode, "modes[1].frequency_hz"},
+		{"negative mode", good, badMode, "modes[1].undamped_frequency_hz"},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			t.Parallel()
@@ -257,7 +257,7 @@ func TestModeLabel(t *testing.T) {
 		{112.4, "heave 112 Hz"},
 		{0.5, "heave 0.500 Hz"},
 	} {
-		if got := modeLabel(model.Mode{Name: "heave", FrequencyHz: tc.f}); got != tc.want {
+		if got := modeLabel(model.Mode{Name: "heave", UndampedFrequencyHz: tc.f}); got != tc.want {
 			t.Errorf("label of %v Hz: %q, want %q", tc.f, got, tc.want)
 		}
 	}
@@ -275,7 +275,7 @@ func TestSpectraEdgeCases(t *testing.T) {
 			flat.TyreLoad[i][k] = 100
 		}
 	}
-	beyond := model.Mode{Name: "far mode", FrequencyHz: 10 * sp.FrequencyHz[len(sp.FrequencyHz)-1]}
+	beyond := model.Mode{Name: "far mode", UndampedFrequencyHz: 10 * sp.FrequencyHz[len(sp.FrequencyHz)-1]}
 	for _, tc := range []struct {
 		name    string
 		sp      *model.Spectra

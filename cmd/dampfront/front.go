@@ -6,6 +6,7 @@ import (
 	"io"
 	"strings"
 
+	"dampfront/api"
 	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
 )
@@ -19,19 +20,27 @@ damper slopes in N s/mm at the component; the balanced point (nearest the
 middle of the front with each objective normalised over it) is marked *.
 CSV and JSON are SI, with the unit in each column's name, one row per
 solution, floats written so that they read back bit for bit: the schema
-of the job page's downloads and the Python client, listed in the README.`
+of the job page's downloads and the Python client, listed in the README.
+--format setup --solution N prints solution N as a setup file (YAML, a
+Setup message) that eval --setup and check --setup read.`
 
 var frontCommand = &command{name: "front", synopsis: "[flags] JOB", minArgs: 1, maxArgs: 1, client: true,
 	summary: "print a finished job's Pareto front (table in trade units, CSV or JSON in SI)", about: frontAbout, flags: bindFront}
 
 func bindFront(fs *flagSet, _ *env) (runFunc, error) {
-	format := newFormat("table", "table", "csv", "json")
-	fs.Var(format, "format", "output `format`: table, csv or json")
+	format := newFormat("table", "table", "csv", "json", "setup")
+	fs.Var(format, "format", "output `format`: table, csv, json, or setup (one solution as a setup file)")
+	solution := fs.Int("solution", -1, "with --format setup: the `index` of the solution in the front")
 	rows := fs.Int("rows", 0, "table only: show about this many `rows`, evenly spread along the front and the balanced point among them; 0 shows all")
-	return func(ctx context.Context, e *env, in *parsed) error { return runFront(ctx, e, in, format.value, *rows) }, nil
+	return func(ctx context.Context, e *env, in *parsed) error {
+		if (format.value == "setup") != (*solution >= 0) || (isFlagSet(fs, "solution") && *solution < 0) {
+			return usagef("front", "--format setup needs --solution N (a front index >= 0), and --solution only goes with it")
+		}
+		return runFront(ctx, e, in, format.value, *rows, *solution)
+	}, nil
 }
 
-func runFront(ctx context.Context, e *env, in *parsed, format string, rows int) error {
+func runFront(ctx context.Context, e *env, in *parsed, format string, rows, solution int) error {
 	if rows < 0 {
 		return usagef("front", "--rows must not be negative")
 	}
@@ -49,6 +58,8 @@ func runFront(ctx context.Context, e *env, in *parsed, format string, rows int) 
 		return frontfile.WriteCSV(e.stdout, fd.front)
 	case "json":
 		return frontfile.WriteJSON(e.stdout, fd.job, fd.front)
+	case "setup":
+		return writeSetupFile(e.stdout, fd, solution)
 	}
 	if err := writeFrontTable(e.stdout, fd, rows, "--rows 0 shows all"); err != nil {
 		return err
@@ -224,4 +235,24 @@ func (c *solutionColumns) cells(s *pb.Solution, balanced bool) []string {
 		row = append(row, tradeNum(q, s.GetObjectives()[k]))
 	}
 	return row
+}
+
+// writeSetupFile prints solution idx of a front as a setup file.
+func writeSetupFile(w io.Writer, fd *frontData, idx int) error {
+	for _, s := range fd.front.GetSolutions() {
+		if int(s.GetIndex()) != idx {
+			continue
+		}
+		header := fmt.Sprintf("Setup of solution %d of %s (%s), seed %d: a Setup message of dampfront.v1\n"+
+			"for dampfront eval --setup and check --setup. Ratios at the wheel, knees at the damper (m/s),\n"+
+			"factors high-speed over low-speed slope.\n%s",
+			idx, fd.job.GetName(), plain(fd.job.GetDisplayName()), fd.job.GetSeed(), caution)
+		b, err := api.EncodeSetupText(s.GetSetup(), header)
+		if err != nil {
+			return err
+		}
+		_, err = w.Write(b)
+		return err
+	}
+	return &exitError{code: exitUsage, msg: fmt.Sprintf("--solution %d: the front of %s has no solution of that index (0 to %d)", idx, fd.job.GetName(), len(fd.front.GetSolutions())-1)}
 }

@@ -371,12 +371,12 @@ func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, se
 	if err != nil {
 		return nil, err
 	}
-	sp, _, err := in.Evaluator.Spectra(s, ci)
+	sp, cm, err := in.Evaluator.Spectra(s, ci)
 	if err != nil {
 		return nil, err
 	}
 	speed := in.RoadCases[ci].Speed
-	modes, err := model.ModalAnalysis(&in.Vehicle, &s, speed)
+	modes, err := model.ModesAt(&in.Vehicle, speed, cm.EquivalentDamping)
 	if err != nil {
 		return nil, err
 	}

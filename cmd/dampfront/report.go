@@ -1,12 +1,16 @@
 package main
 
 import (
-	"dampfront/model"
 	"fmt"
 	"io"
 	"strconv"
 	"strings"
 	"text/tabwriter"
+
+	"google.golang.org/protobuf/encoding/protojson"
+	"google.golang.org/protobuf/proto"
+
+	"dampfront/model"
 )
 
 // caution ends every printed report (front, eval, check, curves, demo),
@@ -116,3 +120,14 @@ func tradeNum(q quantity, si float64) string { return num(q.trade(si), q.prec) }
 // siNum formats an SI value for CSV: the shortest text that reads back to
 // the same float64, so that files compare bit for bit.
 func siNum(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
+
+// printProtoJSON writes a message as multi-line protojson (SI, the unit in
+// each field's name) and a newline.
+func printProtoJSON(w io.Writer, m proto.Message) error {
+	b, err := protojson.MarshalOptions{Multiline: true}.Marshal(m)
+	if err != nil {
+		return err
+	}
+	_, err = fmt.Fprintf(w, "%s\n", b)
+	return err
+}

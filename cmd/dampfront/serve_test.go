@@ -130,6 +130,46 @@ func TestServeClientCommands(t *testing.T) {
 		}
 	})
 
+	// A front solution exported as a setup file reads back in eval and
+	// check: eval gives the front's objectives bit for bit (the same
+	// evaluation of the same setup), and check passes it at epsilon 0 (no
+	// front solution dominates a front member).
+	t.Run("setup export", func(t *testing.T) {
+		if len(front.Solutions) == 0 {
+			t.Skip("no front")
+		}
+		var sol map[string]any
+		for _, s := range front.Solutions {
+			if s["feasible"] == true {
+				sol = s
+				break
+			}
+		}
+		if sol == nil {
+			t.Fatal("no feasible solution in the demo front")
+		}
+		idx := strconv.Itoa(int(sol["index"].(float64)))
+		r := mustRun(t, exitOK, nil, s.client("front", id, "--solution", idx, "--format", "setup")...)
+		if !strings.HasPrefix(r.stdout, "# Setup of solution "+idx+" of jobs/"+id) {
+			t.Errorf("setup file header:\n%s", r.stdout)
+		}
+		path := filepath.Join(dir, "exported-setup.yaml")
+		if err := os.WriteFile(path, []byte(r.stdout), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		ev := &pb.EvaluateSetupsResponse{}
+		if err := protojson.Unmarshal([]byte(mustRun(t, exitOK, nil, s.client("eval", "--job", id, "--setup", path, "--format", "json")...).stdout), ev); err != nil {
+			t.Fatal(err)
+		}
+		got := ev.GetEvaluations()[0].GetObjectives()
+		if len(got) != 2 || got[0] != sol["grip_rel"].(float64) || got[1] != sol["platform_m"].(float64) {
+			t.Errorf("eval of the exported setup: objectives %v, front %v %v", got, sol["grip_rel"], sol["platform_m"])
+		}
+		mustRun(t, exitOK, nil, s.client("check", id, "--setup", path, "--epsilon", "0")...)
+		mustRun(t, exitUsage, nil, s.client("front", id, "--format", "setup")...)
+		mustRun(t, exitUsage, nil, s.client("front", id, "--solution", "100000", "--format", "setup")...)
+	})
+
 	t.Run("curves", func(t *testing.T) {
 		r := mustRun(t, exitOK, nil, s.client("curves", id)...)
 		if !strings.Contains(r.stdout, "balanced point, solution "+strconv.Itoa(front.BalancedIndex)) || !strings.Contains(r.stdout, cautionText) {

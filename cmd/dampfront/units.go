@@ -102,4 +102,21 @@ var (
 	qVelocity    = newQuantity("velocity", tradeunit.MillimetrePerSecond, 0, "velocity_m_per_s")
 	qKnee        = newQuantity("knee", tradeunit.MillimetrePerSecond, 0, "knee_m_per_s")
 	qForce       = newQuantity("force", tradeunit.Newton, 0, "force_n")
+
+	// The hand method's per-corner table.
+	qWheelRate    = newQuantity("wheel rate", tradeunit.NewtonPerMM, 1, "wheel_rate_n_per_m")
+	qTyreRate     = newQuantity("tyre rate", tradeunit.NewtonPerMM, 1, "tyre_rate_n_per_m")
+	qRideRate     = newQuantity("ride rate", tradeunit.NewtonPerMM, 1, "ride_rate_n_per_m")
+	qSprungMass   = newQuantity("sprung mass", tradeunit.Kilogram, 1, "sprung_mass_kg")
+	qMotionRatio  = newQuantity("damper motion ratio", tradeunit.None, 3, "damper_motion_ratio")
+	qRideFreq     = newQuantity("ride frequency, no tyre", tradeunit.Hertz, 2, "ride_frequency_hz")
+	qRideFreqTyre = newQuantity("ride frequency, tyre", tradeunit.Hertz, 2, "ride_frequency_with_tyre_hz")
+	qCritWheel    = newQuantity("critical damping, wheel", tradeunit.NewtonSecondPerMM, 2, "critical_damping_wheel_n_s_per_m")
+	qCritDamper   = newQuantity("critical damping, damper", tradeunit.NewtonSecondPerMM, 2, "critical_damping_damper_n_s_per_m")
 )
+
+// cornerShort are the corners' short names in table headers.
+var cornerShort = map[pb.CornerPosition]string{
+	pb.CornerPosition_CORNER_POSITION_FRONT_LEFT: "FL", pb.CornerPosition_CORNER_POSITION_FRONT_RIGHT: "FR",
+	pb.CornerPosition_CORNER_POSITION_REAR_LEFT: "RL", pb.CornerPosition_CORNER_POSITION_REAR_RIGHT: "RR",
+}

@@ -62,7 +62,7 @@ func (pl *Plan) describe(sol *Solution, s model.Setup, r *model.Result) {
 	v := pl.eval.Vehicle()
 	threshold := pl.eval.WarnThreshold()
 	for i := range r.Cases {
-		modes, err := model.ModalAnalysis(v, &s, pl.eval.Case(i).Speed)
+		modes, err := model.ModesAt(v, pl.eval.Case(i).Speed, r.Cases[i].EquivalentDamping)
 		c := CaseDetail{Metrics: r.Cases[i], Modes: modes, Warnings: r.Cases[i].WarningStrings(threshold)}
 		if err != nil {
 			c.Warnings = append(c.Warnings, fmt.Sprintf("%s: modal analysis failed: %v", r.Cases[i].Case, err))
@@ -90,7 +90,11 @@ func (pl *Plan) feasibility(obj, viol []float64) (bool, string) {
 	}
 	cons := pl.problem.Constraints()
 	for j, x := range viol {
-		if x > 0 || math.IsNaN(x) {
+		switch {
+		case !(x > 0 || math.IsNaN(x)):
+		case cons[j].Kind == model.ConstraintModalRatio:
+			why = append(why, fmt.Sprintf("%s leaves its band [%g, %g] by %.3g%%", cons[j], cons[j].Lower, cons[j].Limit, 100*x))
+		default:
 			why = append(why, fmt.Sprintf("%s exceeds its limit %g by %.3g%%", cons[j].Kind, cons[j].Limit, 100*x))
 		}
 	}

@@ -62,6 +62,11 @@ var (
 	Degree              = Unit{Symbol: "deg", Scale: 180 / math.Pi}
 	Gravity             = Unit{Symbol: "g", Scale: 1 / StandardGravity}
 	Newton              = Unit{Symbol: "N", Scale: 1}
+	NewtonPerMM         = Unit{Symbol: "N/mm", Scale: 1 / 1000.0}
+	Hertz               = Unit{Symbol: "Hz", Scale: 1}
+	Kilogram            = Unit{Symbol: "kg", Scale: 1}
+	// Dimensionless is a ratio shown as it is, with "-" for its unit.
+	Dimensionless = Unit{Symbol: "-", Scale: 1}
 	// MillimetreSquaredPerHertz is a ride-height PSD's unit (m²/Hz in SI).
 	MillimetreSquaredPerHertz = Unit{Symbol: "mm²/Hz", Scale: 1000 * 1000}
 )
@@ -131,10 +136,11 @@ func Constraint(k model.ConstraintKind) Quantity {
 
 // constraints is the table of Constraint.
 var constraints = map[model.ConstraintKind]Quantity{
-	model.ConstraintLiftOff:  {"lift-off probability", "Lift-off probability", Percent, 3, "lift_off_probability"},
-	model.ConstraintBumpStop: {"bump-stop probability", "Bump-stop probability", Percent, 3, "bump_stop_probability"},
-	model.ConstraintTravel:   {"travel sd", "Travel sd", Millimetre, 2, "travel_sd_m"},
-	model.ConstraintJacking:  {"ride-height shift", "Ride-height shift", Millimetre, 2, "ride_height_shift_m"},
+	model.ConstraintLiftOff:    {"lift-off probability", "Lift-off probability", Percent, 3, "lift_off_probability"},
+	model.ConstraintBumpStop:   {"bump-stop probability", "Bump-stop probability", Percent, 3, "bump_stop_probability"},
+	model.ConstraintTravel:     {"travel sd", "Travel sd", Millimetre, 2, "travel_sd_m"},
+	model.ConstraintJacking:    {"ride-height shift", "Ride-height shift", Millimetre, 2, "ride_height_shift_m"},
+	model.ConstraintModalRatio: {"modal ratio", "Modal ratio", Dimensionless, 3, "modal_damping_ratio"},
 }
 
 // Gene is how a searched variable of the design space is shown, by its

@@ -150,7 +150,7 @@ def columns(front):
     return (["index"] + list(front.gene_names)
             + [objective_column(o.kind) for o in front.objectives]
             + [c for _, bump, rebound in SLOPE_COLUMNS for c in (bump, rebound)]
-            + [constraint_column(c.kind) for c in front.constraints]
+            + [constraint_column(c) for c in front.constraints]
             + ["feasible", "balanced"])
 
 
@@ -159,8 +159,10 @@ def objective_column(kind):
     return OBJECTIVE_COLUMNS.get(name, name[len("OBJECTIVE_KIND_"):].lower())
 
 
-def constraint_column(kind):
-    return design_pb2.ConstraintKind.Name(kind)[len("CONSTRAINT_KIND_"):].lower() + "_violation"
+def constraint_column(c):
+    if c.kind == design_pb2.CONSTRAINT_KIND_MODAL_RATIO and c.mode != design_pb2.MODE_NAME_UNSPECIFIED:
+        return design_pb2.ModeName.Name(c.mode)[len("MODE_NAME_"):].lower() + "_ratio_violation"
+    return design_pb2.ConstraintKind.Name(c.kind)[len("CONSTRAINT_KIND_"):].lower() + "_violation"
 
 
 def row(front, s, is_balanced):
@@ -213,7 +215,7 @@ def write_json(out, job, front):
         "gene_names": list(front.gene_names),
         "objectives": [{"column": objective_column(o.kind), "kind": design_pb2.ObjectiveKind.Name(o.kind),
                         "aggregation": design_pb2.Aggregation.Name(o.aggregation)} for o in front.objectives],
-        "constraints": [{"column": constraint_column(c.kind), "kind": design_pb2.ConstraintKind.Name(c.kind),
+        "constraints": [{"column": constraint_column(c), "kind": design_pb2.ConstraintKind.Name(c.kind),
                          "limit": c.limit} for c in front.constraints],
         "balanced_index": front.solutions[bal].index if bal >= 0 else -1,
         "solutions": sols,

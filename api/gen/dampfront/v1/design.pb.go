@@ -168,6 +168,9 @@ const (
 	ConstraintKind_CONSTRAINT_KIND_TRAVEL ConstraintKind = 3
 	// Absolute mean ride-height shift at either axle (m).
 	ConstraintKind_CONSTRAINT_KIND_JACKING ConstraintKind = 4
+	// A band [lower, limit] on one mode's modal damping ratio at the
+	// equivalent slopes of every road case (dimensionless).
+	ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO ConstraintKind = 5
 )
 
 // Enum value maps for ConstraintKind.
@@ -178,6 +181,7 @@ var (
 		2: "CONSTRAINT_KIND_BUMP_STOP",
 		3: "CONSTRAINT_KIND_TRAVEL",
 		4: "CONSTRAINT_KIND_JACKING",
+		5: "CONSTRAINT_KIND_MODAL_RATIO",
 	}
 	ConstraintKind_value = map[string]int32{
 		"CONSTRAINT_KIND_UNSPECIFIED": 0,
@@ -185,6 +189,7 @@ var (
 		"CONSTRAINT_KIND_BUMP_STOP":   2,
 		"CONSTRAINT_KIND_TRAVEL":      3,
 		"CONSTRAINT_KIND_JACKING":     4,
+		"CONSTRAINT_KIND_MODAL_RATIO": 5,
 	}
 )
 
@@ -213,6 +218,79 @@ func (x ConstraintKind) Number() protoreflect.EnumNumber {
 // Deprecated: Use ConstraintKind.Descriptor instead.
 func (ConstraintKind) EnumDescriptor() ([]byte, []int) {
 	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{2}
+}
+
+// ModeName names a vibration mode of the car.
+type ModeName int32
+
+const (
+	// Not given.
+	ModeName_MODE_NAME_UNSPECIFIED ModeName = 0
+	// Body heave.
+	ModeName_MODE_NAME_HEAVE ModeName = 1
+	// Body pitch.
+	ModeName_MODE_NAME_PITCH ModeName = 2
+	// Body roll.
+	ModeName_MODE_NAME_ROLL ModeName = 3
+	// Front wheels in phase.
+	ModeName_MODE_NAME_FRONT_HOP ModeName = 4
+	// Front wheels in anti-phase.
+	ModeName_MODE_NAME_FRONT_ANTI_PHASE_HOP ModeName = 5
+	// Rear wheels in phase.
+	ModeName_MODE_NAME_REAR_HOP ModeName = 6
+	// Rear wheels in anti-phase.
+	ModeName_MODE_NAME_REAR_ANTI_PHASE_HOP ModeName = 7
+)
+
+// Enum value maps for ModeName.
+var (
+	ModeName_name = map[int32]string{
+		0: "MODE_NAME_UNSPECIFIED",
+		1: "MODE_NAME_HEAVE",
+		2: "MODE_NAME_PITCH",
+		3: "MODE_NAME_ROLL",
+		4: "MODE_NAME_FRONT_HOP",
+		5: "MODE_NAME_FRONT_ANTI_PHASE_HOP",
+		6: "MODE_NAME_REAR_HOP",
+		7: "MODE_NAME_REAR_ANTI_PHASE_HOP",
+	}
+	ModeName_value = map[string]int32{
+		"MODE_NAME_UNSPECIFIED":          0,
+		"MODE_NAME_HEAVE":                1,
+		"MODE_NAME_PITCH":                2,
+		"MODE_NAME_ROLL":                 3,
+		"MODE_NAME_FRONT_HOP":            4,
+		"MODE_NAME_FRONT_ANTI_PHASE_HOP": 5,
+		"MODE_NAME_REAR_HOP":             6,
+		"MODE_NAME_REAR_ANTI_PHASE_HOP":  7,
+	}
+)
+
+func (x ModeName) Enum() *ModeName {
+	p := new(ModeName)
+	*p = x
+	return p
+}
+
+func (x ModeName) String() string {
+	return protoimpl.X.EnumStringOf(x.Descriptor(), protoreflect.EnumNumber(x))
+}
+
+func (ModeName) Descriptor() protoreflect.EnumDescriptor {
+	return file_dampfront_v1_design_proto_enumTypes[3].Descriptor()
+}
+
+func (ModeName) Type() protoreflect.EnumType {
+	return &file_dampfront_v1_design_proto_enumTypes[3]
+}
+
+func (x ModeName) Number() protoreflect.EnumNumber {
+	return protoreflect.EnumNumber(x)
+}
+
+// Deprecated: Use ModeName.Descriptor instead.
+func (ModeName) EnumDescriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{3}
 }
 
 // Range is the closed interval [min, max], in the unit its field names.
@@ -771,15 +849,22 @@ func (x *ConstraintShortfall) GetViolation() float64 {
 }
 
 // Constraint is an upper limit; a solution violating it is infeasible.
-// Its violation is max(0, worst / limit - 1).
+// Its violation is max(0, worst / limit - 1); for a modal-ratio band also
+// lower / ratio - 1 where that is larger.
 type Constraint struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// The limited metric.
 	Kind ConstraintKind `protobuf:"varint,1,opt,name=kind,proto3,enum=dampfront.v1.ConstraintKind" json:"kind,omitempty"`
 	// The limit, in the SI unit of the kind (see ConstraintKind), checked by
 	// kind: a probability (lift-off, bump stop) in (0, 1], a travel in
-	// (0, 0.2] m, a jacking shift in (0, 0.1] m.
-	Limit         float64 `protobuf:"fixed64,2,opt,name=limit,proto3" json:"limit,omitempty"`
+	// (0, 0.2] m, a jacking shift in (0, 0.1] m, a modal ratio in (0, 5]
+	// (the upper end of its band).
+	Limit float64 `protobuf:"fixed64,2,opt,name=limit,proto3" json:"limit,omitempty"`
+	// The mode of a modal-ratio band; only with CONSTRAINT_KIND_MODAL_RATIO.
+	Mode ModeName `protobuf:"varint,3,opt,name=mode,proto3,enum=dampfront.v1.ModeName" json:"mode,omitempty"`
+	// The lower end of a modal-ratio band, in [0, limit); 0 leaves only
+	// the upper end. Only with CONSTRAINT_KIND_MODAL_RATIO.
+	Lower         float64 `protobuf:"fixed64,4,opt,name=lower,proto3" json:"lower,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -824,6 +909,20 @@ func (x *Constraint) GetKind() ConstraintKind {
 func (x *Constraint) GetLimit() float64 {
 	if x != nil {
 		return x.Limit
+	}
+	return 0
+}
+
+func (x *Constraint) GetMode() ModeName {
+	if x != nil {
+		return x.Mode
+	}
+	return ModeName_MODE_NAME_UNSPECIFIED
+}
+
+func (x *Constraint) GetLower() float64 {
+	if x != nil {
+		return x.Lower
 	}
 	return 0
 }
@@ -1007,11 +1106,13 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x05worst\x18\x03 \x01(\x01R\x05worst\x12\x1b\n" +
 	"\troad_case\x18\x04 \x01(\tR\broadCase\x12\x12\n" +
 	"\x04over\x18\x05 \x01(\x01R\x04over\x12\x1c\n" +
-	"\tviolation\x18\x06 \x01(\x01R\tviolation\"T\n" +
+	"\tviolation\x18\x06 \x01(\x01R\tviolation\"\x96\x01\n" +
 	"\n" +
 	"Constraint\x120\n" +
 	"\x04kind\x18\x01 \x01(\x0e2\x1c.dampfront.v1.ConstraintKindR\x04kind\x12\x14\n" +
-	"\x05limit\x18\x02 \x01(\x01R\x05limit\"\xd4\x01\n" +
+	"\x05limit\x18\x02 \x01(\x01R\x05limit\x12*\n" +
+	"\x04mode\x18\x03 \x01(\x0e2\x16.dampfront.v1.ModeNameR\x04mode\x12\x14\n" +
+	"\x05lower\x18\x04 \x01(\x01R\x05lower\"\xd4\x01\n" +
 	"\n" +
 	"Adjustment\x12,\n" +
 	"\x12bump_softest_ratio\x18\x01 \x01(\x01R\x10bumpSoftestRatio\x12.\n" +
@@ -1034,13 +1135,23 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x17AGGREGATION_UNSPECIFIED\x10\x00\x12\x1b\n" +
 	"\x17AGGREGATION_MEAN_SQUARE\x10\x01\x12\x15\n" +
 	"\x11AGGREGATION_WORST\x10\x02\x12\x1a\n" +
-	"\x16AGGREGATION_NORMALISED\x10\x03*\xa7\x01\n" +
+	"\x16AGGREGATION_NORMALISED\x10\x03*\xc8\x01\n" +
 	"\x0eConstraintKind\x12\x1f\n" +
 	"\x1bCONSTRAINT_KIND_UNSPECIFIED\x10\x00\x12\x1c\n" +
 	"\x18CONSTRAINT_KIND_LIFT_OFF\x10\x01\x12\x1d\n" +
 	"\x19CONSTRAINT_KIND_BUMP_STOP\x10\x02\x12\x1a\n" +
 	"\x16CONSTRAINT_KIND_TRAVEL\x10\x03\x12\x1b\n" +
-	"\x17CONSTRAINT_KIND_JACKING\x10\x04B,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\x17CONSTRAINT_KIND_JACKING\x10\x04\x12\x1f\n" +
+	"\x1bCONSTRAINT_KIND_MODAL_RATIO\x10\x05*\xdb\x01\n" +
+	"\bModeName\x12\x19\n" +
+	"\x15MODE_NAME_UNSPECIFIED\x10\x00\x12\x13\n" +
+	"\x0fMODE_NAME_HEAVE\x10\x01\x12\x13\n" +
+	"\x0fMODE_NAME_PITCH\x10\x02\x12\x12\n" +
+	"\x0eMODE_NAME_ROLL\x10\x03\x12\x17\n" +
+	"\x13MODE_NAME_FRONT_HOP\x10\x04\x12\"\n" +
+	"\x1eMODE_NAME_FRONT_ANTI_PHASE_HOP\x10\x05\x12\x16\n" +
+	"\x12MODE_NAME_REAR_HOP\x10\x06\x12!\n" +
+	"\x1dMODE_NAME_REAR_ANTI_PHASE_HOP\x10\aB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_design_proto_rawDescOnce sync.Once
@@ -1054,45 +1165,47 @@ func file_dampfront_v1_design_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_design_proto_rawDescData
 }
 
-var file_dampfront_v1_design_proto_enumTypes = make([]protoimpl.EnumInfo, 3)
+var file_dampfront_v1_design_proto_enumTypes = make([]protoimpl.EnumInfo, 4)
 var file_dampfront_v1_design_proto_msgTypes = make([]protoimpl.MessageInfo, 10)
 var file_dampfront_v1_design_proto_goTypes = []any{
 	(ObjectiveKind)(0),          // 0: dampfront.v1.ObjectiveKind
 	(Aggregation)(0),            // 1: dampfront.v1.Aggregation
 	(ConstraintKind)(0),         // 2: dampfront.v1.ConstraintKind
-	(*Range)(nil),               // 3: dampfront.v1.Range
-	(*RatioBounds)(nil),         // 4: dampfront.v1.RatioBounds
-	(*DesignSpace)(nil),         // 5: dampfront.v1.DesignSpace
-	(*AxleDamping)(nil),         // 6: dampfront.v1.AxleDamping
-	(*Setup)(nil),               // 7: dampfront.v1.Setup
-	(*Objective)(nil),           // 8: dampfront.v1.Objective
-	(*ConstraintShortfall)(nil), // 9: dampfront.v1.ConstraintShortfall
-	(*Constraint)(nil),          // 10: dampfront.v1.Constraint
-	(*Adjustment)(nil),          // 11: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),       // 12: dampfront.v1.CurveSettings
+	(ModeName)(0),               // 3: dampfront.v1.ModeName
+	(*Range)(nil),               // 4: dampfront.v1.Range
+	(*RatioBounds)(nil),         // 5: dampfront.v1.RatioBounds
+	(*DesignSpace)(nil),         // 6: dampfront.v1.DesignSpace
+	(*AxleDamping)(nil),         // 7: dampfront.v1.AxleDamping
+	(*Setup)(nil),               // 8: dampfront.v1.Setup
+	(*Objective)(nil),           // 9: dampfront.v1.Objective
+	(*ConstraintShortfall)(nil), // 10: dampfront.v1.ConstraintShortfall
+	(*Constraint)(nil),          // 11: dampfront.v1.Constraint
+	(*Adjustment)(nil),          // 12: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),       // 13: dampfront.v1.CurveSettings
 }
 var file_dampfront_v1_design_proto_depIdxs = []int32{
-	3,  // 0: dampfront.v1.RatioBounds.front_bump:type_name -> dampfront.v1.Range
-	3,  // 1: dampfront.v1.RatioBounds.front_rebound:type_name -> dampfront.v1.Range
-	3,  // 2: dampfront.v1.RatioBounds.rear_bump:type_name -> dampfront.v1.Range
-	3,  // 3: dampfront.v1.RatioBounds.rear_rebound:type_name -> dampfront.v1.Range
-	4,  // 4: dampfront.v1.DesignSpace.ratios:type_name -> dampfront.v1.RatioBounds
-	3,  // 5: dampfront.v1.DesignSpace.front_knee_m_per_s:type_name -> dampfront.v1.Range
-	3,  // 6: dampfront.v1.DesignSpace.rear_knee_m_per_s:type_name -> dampfront.v1.Range
-	3,  // 7: dampfront.v1.DesignSpace.front_high_speed_factor:type_name -> dampfront.v1.Range
-	3,  // 8: dampfront.v1.DesignSpace.rear_high_speed_factor:type_name -> dampfront.v1.Range
-	7,  // 9: dampfront.v1.DesignSpace.base:type_name -> dampfront.v1.Setup
-	6,  // 10: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
-	6,  // 11: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
+	4,  // 0: dampfront.v1.RatioBounds.front_bump:type_name -> dampfront.v1.Range
+	4,  // 1: dampfront.v1.RatioBounds.front_rebound:type_name -> dampfront.v1.Range
+	4,  // 2: dampfront.v1.RatioBounds.rear_bump:type_name -> dampfront.v1.Range
+	4,  // 3: dampfront.v1.RatioBounds.rear_rebound:type_name -> dampfront.v1.Range
+	5,  // 4: dampfront.v1.DesignSpace.ratios:type_name -> dampfront.v1.RatioBounds
+	4,  // 5: dampfront.v1.DesignSpace.front_knee_m_per_s:type_name -> dampfront.v1.Range
+	4,  // 6: dampfront.v1.DesignSpace.rear_knee_m_per_s:type_name -> dampfront.v1.Range
+	4,  // 7: dampfront.v1.DesignSpace.front_high_speed_factor:type_name -> dampfront.v1.Range
+	4,  // 8: dampfront.v1.DesignSpace.rear_high_speed_factor:type_name -> dampfront.v1.Range
+	8,  // 9: dampfront.v1.DesignSpace.base:type_name -> dampfront.v1.Setup
+	7,  // 10: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
+	7,  // 11: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
 	0,  // 12: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
 	1,  // 13: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
 	2,  // 14: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
 	2,  // 15: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
-	16, // [16:16] is the sub-list for method output_type
-	16, // [16:16] is the sub-list for method input_type
-	16, // [16:16] is the sub-list for extension type_name
-	16, // [16:16] is the sub-list for extension extendee
-	0,  // [0:16] is the sub-list for field type_name
+	3,  // 16: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
+	17, // [17:17] is the sub-list for method output_type
+	17, // [17:17] is the sub-list for method input_type
+	17, // [17:17] is the sub-list for extension type_name
+	17, // [17:17] is the sub-list for extension extendee
+	0,  // [0:17] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_design_proto_init() }
@@ -1105,7 +1218,7 @@ func file_dampfront_v1_design_proto_init() {
 		File: protoimpl.DescBuilder{
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_design_proto_rawDesc), len(file_dampfront_v1_design_proto_rawDesc)),
-			NumEnums:      3,
+			NumEnums:      4,
 			NumMessages:   10,
 			NumExtensions: 0,
 			NumServices:   0,

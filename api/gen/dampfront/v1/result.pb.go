@@ -299,8 +299,8 @@ type CaseMetrics struct {
 	Iterations int32 `protobuf:"varint,9,opt,name=iterations,proto3" json:"iterations,omitempty"`
 	// Validity warnings of this case.
 	Warnings []string `protobuf:"bytes,10,rep,name=warnings,proto3" json:"warnings,omitempty"`
-	// Vibration modes at this case's speed with each damper at its mean
-	// low-speed slope.
+	// Vibration modes at this case's speed with each damper at its
+	// equivalent slope on this case.
 	Modes []*Mode `protobuf:"bytes,11,rep,name=modes,proto3" json:"modes,omitempty"`
 	// The car at this case's speed: the static equilibrium under downforce
 	// that every probability starts from.
@@ -784,21 +784,31 @@ func (x *AxleMetrics) GetRideHeightShiftM() float64 {
 	return 0
 }
 
-// Mode is one vibration mode of the linear car.
+// Mode is one vibration mode of the linear car: an undamped mode with its
+// natural frequency and modal damping ratio, and the damped car's roots
+// that belong to it (a complex pair, or real roots when overdamped).
 type Mode struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// heave, pitch, roll, front hop, front anti-phase hop, rear hop or rear anti-phase hop.
 	Name string `protobuf:"bytes,1,opt,name=name,proto3" json:"name,omitempty"`
-	// Natural frequency.
-	FrequencyHz float64 `protobuf:"fixed64,2,opt,name=frequency_hz,json=frequencyHz,proto3" json:"frequency_hz,omitempty"`
-	// Damped natural frequency; 0 when overdamped.
+	// Im(lambda)/(2 pi) of the mode's complex pair; 0 when overdamped.
 	DampedFrequencyHz float64 `protobuf:"fixed64,3,opt,name=damped_frequency_hz,json=dampedFrequencyHz,proto3" json:"damped_frequency_hz,omitempty"`
-	// Modal damping ratio (dimensionless).
-	DampingRatio float64 `protobuf:"fixed64,4,opt,name=damping_ratio,json=dampingRatio,proto3" json:"damping_ratio,omitempty"`
-	// The mode is a pair of real roots.
-	Overdamped    bool `protobuf:"varint,5,opt,name=overdamped,proto3" json:"overdamped,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	// No complex pair belongs to the mode: it does not oscillate; its real
+	// roots are in decay_rates_per_s.
+	Overdamped bool `protobuf:"varint,5,opt,name=overdamped,proto3" json:"overdamped,omitempty"`
+	// Natural frequency of the undamped car, K phi = omega^2 M phi.
+	UndampedFrequencyHz float64 `protobuf:"fixed64,6,opt,name=undamped_frequency_hz,json=undampedFrequencyHz,proto3" json:"undamped_frequency_hz,omitempty"`
+	// Modal damping ratio phi' C phi / (2 omega phi' M phi) of the undamped
+	// mode shape, dampers at the equivalent slopes of the road case
+	// (dimensionless).
+	ModalDampingRatio float64 `protobuf:"fixed64,7,opt,name=modal_damping_ratio,json=modalDampingRatio,proto3" json:"modal_damping_ratio,omitempty"`
+	// -Re(lambda)/|lambda| of the complex pair (dimensionless); 0 when
+	// overdamped.
+	PairDampingRatio float64 `protobuf:"fixed64,8,opt,name=pair_damping_ratio,json=pairDampingRatio,proto3" json:"pair_damping_ratio,omitempty"`
+	// -lambda of each real root of an overdamped mode, slowest first.
+	DecayRatesPerS []float64 `protobuf:"fixed64,9,rep,packed,name=decay_rates_per_s,json=decayRatesPerS,proto3" json:"decay_rates_per_s,omitempty"`
+	unknownFields  protoimpl.UnknownFields
+	sizeCache      protoimpl.SizeCache
 }
 
 func (x *Mode) Reset() {
@@ -838,23 +848,9 @@ func (x *Mode) GetName() string {
 	return ""
 }
 
-func (x *Mode) GetFrequencyHz() float64 {
-	if x != nil {
-		return x.FrequencyHz
-	}
-	return 0
-}
-
 func (x *Mode) GetDampedFrequencyHz() float64 {
 	if x != nil {
 		return x.DampedFrequencyHz
-	}
-	return 0
-}
-
-func (x *Mode) GetDampingRatio() float64 {
-	if x != nil {
-		return x.DampingRatio
 	}
 	return 0
 }
@@ -864,6 +860,34 @@ func (x *Mode) GetOverdamped() bool {
 		return x.Overdamped
 	}
 	return false
+}
+
+func (x *Mode) GetUndampedFrequencyHz() float64 {
+	if x != nil {
+		return x.UndampedFrequencyHz
+	}
+	return 0
+}
+
+func (x *Mode) GetModalDampingRatio() float64 {
+	if x != nil {
+		return x.ModalDampingRatio
+	}
+	return 0
+}
+
+func (x *Mode) GetPairDampingRatio() float64 {
+	if x != nil {
+		return x.PairDampingRatio
+	}
+	return 0
+}
+
+func (x *Mode) GetDecayRatesPerS() []float64 {
+	if x != nil {
+		return x.DecayRatesPerS
+	}
+	return nil
 }
 
 // DamperCurve is one corner's force-velocity table at the component:
@@ -1176,15 +1200,17 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x18bump_stop_gap_at_speed_m\x18\r \x01(\x01R\x13bumpStopGapAtSpeedM\"e\n" +
 	"\vAxleMetrics\x12'\n" +
 	"\x10ride_height_sd_m\x18\x01 \x01(\x01R\rrideHeightSdM\x12-\n" +
-	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\"\xb2\x01\n" +
+	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\"\xd0\x02\n" +
 	"\x04Mode\x12\x12\n" +
-	"\x04name\x18\x01 \x01(\tR\x04name\x12!\n" +
-	"\ffrequency_hz\x18\x02 \x01(\x01R\vfrequencyHz\x12.\n" +
-	"\x13damped_frequency_hz\x18\x03 \x01(\x01R\x11dampedFrequencyHz\x12#\n" +
-	"\rdamping_ratio\x18\x04 \x01(\x01R\fdampingRatio\x12\x1e\n" +
+	"\x04name\x18\x01 \x01(\tR\x04name\x12.\n" +
+	"\x13damped_frequency_hz\x18\x03 \x01(\x01R\x11dampedFrequencyHz\x12\x1e\n" +
 	"\n" +
 	"overdamped\x18\x05 \x01(\bR\n" +
-	"overdamped\"\x85\x04\n" +
+	"overdamped\x122\n" +
+	"\x15undamped_frequency_hz\x18\x06 \x01(\x01R\x13undampedFrequencyHz\x12.\n" +
+	"\x13modal_damping_ratio\x18\a \x01(\x01R\x11modalDampingRatio\x12,\n" +
+	"\x12pair_damping_ratio\x18\b \x01(\x01R\x10pairDampingRatio\x12)\n" +
+	"\x11decay_rates_per_s\x18\t \x03(\x01R\x0edecayRatesPerSJ\x04\b\x02\x10\x03J\x04\b\x04\x10\x05R\ffrequency_hzR\rdamping_ratio\"\x85\x04\n" +
 	"\vDamperCurve\x124\n" +
 	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12'\n" +
 	"\x10velocity_m_per_s\x18\x02 \x03(\x01R\rvelocityMPerS\x12\x17\n" +

@@ -1713,7 +1713,7 @@ var File_dampfront_v1_service_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/result.proto\"=\n" +
+	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/hand.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/result.proto\"=\n" +
 	"\x10SubmitJobRequest\x12)\n" +
 	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecR\x04spec\"8\n" +
 	"\x11SubmitJobResponse\x12#\n" +
@@ -1840,7 +1840,7 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\x13VERDICT_UNSPECIFIED\x10\x00\x12\x11\n" +
 	"\rVERDICT_HOLDS\x10\x01\x12\x13\n" +
 	"\x0fVERDICT_DIFFERS\x10\x02\x12\x16\n" +
-	"\x12VERDICT_NOT_JUDGED\x10\x032\xbe\x06\n" +
+	"\x12VERDICT_NOT_JUDGED\x10\x032\x9b\a\n" +
 	"\x10DampfrontService\x12L\n" +
 	"\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12C\n" +
 	"\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n" +
@@ -1851,7 +1851,8 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\x0eEvaluateSetups\x12#.dampfront.v1.EvaluateSetupsRequest\x1a$.dampfront.v1.EvaluateSetupsResponse\x12U\n" +
 	"\fCompareSetup\x12!.dampfront.v1.CompareSetupRequest\x1a\".dampfront.v1.CompareSetupResponse\x12^\n" +
 	"\x0fGetDamperCurves\x12$.dampfront.v1.GetDamperCurvesRequest\x1a%.dampfront.v1.GetDamperCurvesResponse\x12R\n" +
-	"\vVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\vVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponse\x12[\n" +
+	"\x0eEstimateByHand\x12#.dampfront.v1.EstimateByHandRequest\x1a$.dampfront.v1.EstimateByHandResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_service_proto_rawDescOnce sync.Once
@@ -1906,6 +1907,8 @@ var file_dampfront_v1_service_proto_goTypes = []any{
 	(*Adjustment)(nil),              // 35: dampfront.v1.Adjustment
 	(*CurveSettings)(nil),           // 36: dampfront.v1.CurveSettings
 	(*DamperCurve)(nil),             // 37: dampfront.v1.DamperCurve
+	(*EstimateByHandRequest)(nil),   // 38: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil),  // 39: dampfront.v1.EstimateByHandResponse
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
 	24, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
@@ -1953,18 +1956,20 @@ var file_dampfront_v1_service_proto_depIdxs = []int32{
 	15, // 42: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
 	17, // 43: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
 	19, // 44: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
-	2,  // 45: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	4,  // 46: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	6,  // 47: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	8,  // 48: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	10, // 49: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	12, // 50: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	14, // 51: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	16, // 52: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	18, // 53: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	20, // 54: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
-	45, // [45:55] is the sub-list for method output_type
-	35, // [35:45] is the sub-list for method input_type
+	38, // 45: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
+	2,  // 46: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	4,  // 47: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	6,  // 48: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	8,  // 49: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	10, // 50: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	12, // 51: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	14, // 52: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	16, // 53: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	18, // 54: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	20, // 55: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	39, // 56: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
+	46, // [46:57] is the sub-list for method output_type
+	35, // [35:46] is the sub-list for method input_type
 	35, // [35:35] is the sub-list for extension type_name
 	35, // [35:35] is the sub-list for extension extendee
 	0,  // [0:35] is the sub-list for field type_name
@@ -1976,6 +1981,7 @@ func file_dampfront_v1_service_proto_init() {
 		return
 	}
 	file_dampfront_v1_design_proto_init()
+	file_dampfront_v1_hand_proto_init()
 	file_dampfront_v1_job_proto_init()
 	file_dampfront_v1_result_proto_init()
 	file_dampfront_v1_service_proto_msgTypes[9].OneofWrappers = []any{

@@ -29,6 +29,7 @@ const (
 	DampfrontService_CompareSetup_FullMethodName    = "/dampfront.v1.DampfrontService/CompareSetup"
 	DampfrontService_GetDamperCurves_FullMethodName = "/dampfront.v1.DampfrontService/GetDamperCurves"
 	DampfrontService_VerifySetup_FullMethodName     = "/dampfront.v1.DampfrontService/VerifySetup"
+	DampfrontService_EstimateByHand_FullMethodName  = "/dampfront.v1.DampfrontService/EstimateByHand"
 )
 
 // DampfrontServiceClient is the client API for DampfrontService service.
@@ -73,6 +74,10 @@ type DampfrontServiceClient interface {
 	// road with each road case's spectra, coherence and wheelbase delay,
 	// against the statistically linearised frequency-domain answer.
 	VerifySetup(ctx context.Context, in *VerifySetupRequest, opts ...grpc.CallOption) (*VerifySetupResponse, error)
+	// Works out the hand method for a car: per corner critical damping,
+	// ride frequencies and the damper at target ratios, and the body modes
+	// beside the full car's. Needs no job and no road.
+	EstimateByHand(ctx context.Context, in *EstimateByHandRequest, opts ...grpc.CallOption) (*EstimateByHandResponse, error)
 }
 
 type dampfrontServiceClient struct {
@@ -192,6 +197,16 @@ func (c *dampfrontServiceClient) VerifySetup(ctx context.Context, in *VerifySetu
 	return out, nil
 }
 
+func (c *dampfrontServiceClient) EstimateByHand(ctx context.Context, in *EstimateByHandRequest, opts ...grpc.CallOption) (*EstimateByHandResponse, error) {
+	cOpts := append([]grpc.CallOption{grpc.StaticMethod()}, opts...)
+	out := new(EstimateByHandResponse)
+	err := c.cc.Invoke(ctx, DampfrontService_EstimateByHand_FullMethodName, in, out, cOpts...)
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
 // DampfrontServiceServer is the server API for DampfrontService service.
 // All implementations must embed UnimplementedDampfrontServiceServer
 // for forward compatibility.
@@ -234,6 +249,10 @@ type DampfrontServiceServer interface {
 	// road with each road case's spectra, coherence and wheelbase delay,
 	// against the statistically linearised frequency-domain answer.
 	VerifySetup(context.Context, *VerifySetupRequest) (*VerifySetupResponse, error)
+	// Works out the hand method for a car: per corner critical damping,
+	// ride frequencies and the damper at target ratios, and the body modes
+	// beside the full car's. Needs no job and no road.
+	EstimateByHand(context.Context, *EstimateByHandRequest) (*EstimateByHandResponse, error)
 	mustEmbedUnimplementedDampfrontServiceServer()
 }
 
@@ -273,6 +292,9 @@ func (UnimplementedDampfrontServiceServer) GetDamperCurves(context.Context, *Get
 }
 func (UnimplementedDampfrontServiceServer) VerifySetup(context.Context, *VerifySetupRequest) (*VerifySetupResponse, error) {
 	return nil, status.Error(codes.Unimplemented, "method VerifySetup not implemented")
+}
+func (UnimplementedDampfrontServiceServer) EstimateByHand(context.Context, *EstimateByHandRequest) (*EstimateByHandResponse, error) {
+	return nil, status.Error(codes.Unimplemented, "method EstimateByHand not implemented")
 }
 func (UnimplementedDampfrontServiceServer) mustEmbedUnimplementedDampfrontServiceServer() {}
 func (UnimplementedDampfrontServiceServer) testEmbeddedByValue()                          {}
@@ -468,6 +490,24 @@ func _DampfrontService_VerifySetup_Handler(srv interface{}, ctx context.Context,
 	return interceptor(ctx, in, info, handler)
 }
 
+func _DampfrontService_EstimateByHand_Handler(srv interface{}, ctx context.Context, dec func(interface{}) error, interceptor grpc.UnaryServerInterceptor) (interface{}, error) {
+	in := new(EstimateByHandRequest)
+	if err := dec(in); err != nil {
+		return nil, err
+	}
+	if interceptor == nil {
+		return srv.(DampfrontServiceServer).EstimateByHand(ctx, in)
+	}
+	info := &grpc.UnaryServerInfo{
+		Server:     srv,
+		FullMethod: DampfrontService_EstimateByHand_FullMethodName,
+	}
+	handler := func(ctx context.Context, req interface{}) (interface{}, error) {
+		return srv.(DampfrontServiceServer).EstimateByHand(ctx, req.(*EstimateByHandRequest))
+	}
+	return interceptor(ctx, in, info, handler)
+}
+
 // DampfrontService_ServiceDesc is the grpc.ServiceDesc for DampfrontService service.
 // It's only intended for direct use with grpc.RegisterService,
 // and not to be introspected or modified (even as a copy)
@@ -510,6 +550,10 @@ var DampfrontService_ServiceDesc = grpc.ServiceDesc{
 		{
 			MethodName: "VerifySetup",
 			Handler:    _DampfrontService_VerifySetup_Handler,
+		},
+		{
+			MethodName: "EstimateByHand",
+			Handler:    _DampfrontService_EstimateByHand_Handler,
 		},
 	},
 	Streams: []grpc.StreamDesc{
