@@ -35,25 +35,82 @@ func DecodeText(b []byte, m proto.Message) error {
 // was written, so that problems found later (by the server's validation)
 // can be shown at the user's line.
 func DecodeTextPositions(b []byte, m proto.Message) (TextPositions, error) {
-	name := string(m.ProtoReflect().Descriptor().FullName())
+	md := m.ProtoReflect().Descriptor()
+	bufs, pos, err := decodeWalk(b, string(md.FullName()), func(d *textDecoder, root *yaml.Node) []*bytes.Buffer {
+		var buf bytes.Buffer
+		d.message(root, md, "", &buf)
+		return []*bytes.Buffer{&buf}
+	})
+	if err != nil {
+		return nil, err
+	}
+	if err := unmarshalWalked(bufs[0], m); err != nil {
+		return nil, err
+	}
+	return pos, nil
+}
+
+// DecodeTextList is DecodeTextPositions for a file holding a list of
+// messages (a road case list, say), each made by newM; the positions'
+// paths start with the element's index ("[2].speed_m_per_s").
+func DecodeTextList[M proto.Message](b []byte, newM func() M) ([]M, TextPositions, error) {
+	md := newM().ProtoReflect().Descriptor()
+	bufs, pos, err := decodeWalk(b, "list of "+string(md.FullName()), func(d *textDecoder, root *yaml.Node) []*bytes.Buffer {
+		if root = d.resolve(root); root == nil {
+			return nil
+		}
+		if root.Kind != yaml.SequenceNode {
+			d.bad(root, "", "must be a list of %s, got %s", md.Name(), kindName(root))
+			return nil
+		}
+		d.pos[""] = TextPosition{root.Line, root.Column}
+		bufs := make([]*bytes.Buffer, len(root.Content))
+		for i, e := range root.Content {
+			bufs[i] = &bytes.Buffer{}
+			d.message(e, md, fmt.Sprintf("[%d]", i), bufs[i])
+		}
+		return bufs
+	})
+	if err != nil {
+		return nil, nil, err
+	}
+	out := make([]M, len(bufs))
+	for i, buf := range bufs {
+		out[i] = newM()
+		if err := unmarshalWalked(buf, out[i]); err != nil {
+			return nil, nil, err
+		}
+	}
+	return out, pos, nil
+}
+
+// decodeWalk parses b and walks it with walk, which writes the protojson
+// text of each message into a buffer; name is what the text should be,
+// for errors.
+func decodeWalk(b []byte, name string, walk func(d *textDecoder, root *yaml.Node) []*bytes.Buffer) ([]*bytes.Buffer, TextPositions, error) {
 	root, err := parseText(b)
 	if err != nil {
 		if te, ok := err.(*TextError); ok {
 			te.Message = name
 		}
-		return nil, err
+		return nil, nil, err
 	}
 	d := textDecoder{pos: TextPositions{}}
-	var buf bytes.Buffer
-	d.message(root, m.ProtoReflect().Descriptor(), "", &buf)
+	bufs := walk(&d, root)
 	if len(d.problems) > 0 {
-		return nil, &TextError{Message: name, Problems: d.problems}
+		return nil, nil, &TextError{Message: name, Problems: d.problems}
 	}
+	return bufs, d.pos, nil
+}
+
+// unmarshalWalked fills m from the protojson text the walk wrote.
+func unmarshalWalked(buf *bytes.Buffer, m proto.Message) error {
 	if err := protojson.Unmarshal(buf.Bytes(), m); err != nil {
 		// The walk checks what protojson checks; this is a fallback.
-		return nil, &TextError{Message: name, Problems: []TextProblem{{Line: root.Line, Column: root.Column, Reason: err.Error()}}}
+		name := string(m.ProtoReflect().Descriptor().FullName())
+		return &TextError{Message: name, Problems: []TextProblem{{Reason: err.Error()}}}
 	}
-	return d.pos, nil
+	return nil
 }
 
 // TextProblem is one problem of a text, at the line and column (from 1)

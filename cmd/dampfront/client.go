@@ -13,6 +13,7 @@ import (
 	"google.golang.org/grpc/credentials/insecure"
 	"google.golang.org/grpc/status"
 
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
 	"dampfront/model"
@@ -98,6 +99,10 @@ func jobID(name string) string { return strings.TrimPrefix(name, "jobs/") }
 // code, message and every field violation of a BadRequest detail, one a
 // line.
 func describeError(err error) string {
+	var src api.TextSources
+	if l := (*located)(nil); errors.As(err, &l) {
+		src = l.src
+	}
 	st, ok := status.FromError(err)
 	if !ok {
 		return err.Error()
@@ -123,7 +128,11 @@ func describeError(err error) string {
 		fmt.Fprintf(&b, "%s: %s", codeName(st.Code()), st.Message())
 	}
 	for _, v := range fields {
-		fmt.Fprintf(&b, "\n  %s: %s", v.GetField(), v.GetDescription())
+		b.WriteString("\n  ")
+		if at, ok := src.Locate(v.GetField()); ok {
+			b.WriteString(at + ": ")
+		}
+		fmt.Fprintf(&b, "%s: %s", v.GetField(), v.GetDescription())
 	}
 	for _, d := range st.Details() {
 		switch d := d.(type) {

@@ -8,6 +8,7 @@ import (
 
 	"google.golang.org/protobuf/encoding/protojson"
 
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
@@ -49,7 +50,8 @@ func (f *evalFlags) run(ctx context.Context, e *env, in *parsed) error {
 	if fromSpec == (f.job != "") {
 		return usagef("eval", "give either --spec (optionally with --vehicle, --roads) or --job")
 	}
-	setups, err := readSetups(e, f.setupPaths)
+	var src api.TextSources
+	setups, err := readSetupsAt(e, f.setupPaths, &src, "setups")
 	if err != nil {
 		return err
 	}
@@ -60,6 +62,7 @@ func (f *evalFlags) run(ctx context.Context, e *env, in *parsed) error {
 			return err
 		}
 		req.Source = &pb.EvaluateSetupsRequest_Spec{Spec: spec}
+		src = append(src, f.sf.src...)
 	} else {
 		req.Source = &pb.EvaluateSetupsRequest_Job{Job: jobName(f.job)}
 	}
@@ -72,7 +75,7 @@ func (f *evalFlags) run(ctx context.Context, e *env, in *parsed) error {
 	resp, err := c.svc.EvaluateSetups(cctx, req)
 	cancel()
 	if err != nil {
-		return err
+		return locate(err, src)
 	}
 	if f.format.value == "json" {
 		b, err := protojson.MarshalOptions{Multiline: true}.Marshal(resp)

@@ -2,15 +2,12 @@ package main
 
 import (
 	"dampfront/api"
-	"encoding/json"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 
-	"google.golang.org/protobuf/encoding/protojson"
 	"google.golang.org/protobuf/proto"
-	"sigs.k8s.io/yaml"
 
 	pb "dampfront/api/gen/dampfront/v1"
 )
@@ -18,10 +15,11 @@ import (
 // Input files are YAML or JSON renderings of dampfront.v1 messages: the
 // protojson mapping, where the proto field names (sprung_mass_kg) and
 // their lowerCamelCase forms are both accepted and enums are written by
-// name (OBJECTIVE_KIND_GRIP). YAML is turned into JSON first
-// (sigs.k8s.io/yaml), so anchors and comments may be used. "-" reads
-// standard input. Unknown fields are errors: a misspelt field would
-// otherwise be silently replaced by its default.
+// name (OBJECTIVE_KIND_GRIP). They are read by api.DecodeText, so
+// anchors and comments may be used and every problem is reported with
+// its line and column. "-" reads standard input. Unknown fields are
+// errors: a misspelt field would otherwise be silently replaced by its
+// default.
 
 // readInput reads a file, or standard input for "-".
 func readInput(e *env, path string) ([]byte, error) {
@@ -42,11 +40,22 @@ func (e *inputFileError) Unwrap() error { return e.err }
 
 // readMessage fills m from the YAML or JSON file at path.
 func readMessage(e *env, path string, m proto.Message) error {
+	return readMessageAt(e, path, m, nil, "")
+}
+
+// readMessageAt is readMessage that also records in src (when not nil)
+// where the file wrote each field, m being the request's part at prefix.
+func readMessageAt(e *env, path string, m proto.Message, src *api.TextSources, prefix string) error {
 	b, err := readInput(e, path)
 	if err != nil {
 		return &inputFileError{path: path, err: err}
 	}
-	return decodeMessage(path, b, m)
+	pos, err := api.DecodeTextPositions(b, m)
+	if err != nil {
+		return &inputFileError{path: path, err: err}
+	}
+	src.Add(sourceName(path), prefix, pos)
+	return nil
 }
 
 func decodeMessage(path string, b []byte, m proto.Message) error {
@@ -58,29 +67,22 @@ func decodeMessage(path string, b []byte, m proto.Message) error {
 
 // readRoadCases reads a YAML or JSON list of RoadCase messages.
 func readRoadCases(e *env, path string) ([]*pb.RoadCase, error) {
+	return readRoadCasesAt(e, path, nil, "")
+}
+
+func readRoadCasesAt(e *env, path string, src *api.TextSources, prefix string) ([]*pb.RoadCase, error) {
 	b, err := readInput(e, path)
 	if err != nil {
 		return nil, &inputFileError{path: path, err: err}
 	}
-	j, err := yaml.YAMLToJSON(b)
+	out, pos, err := api.DecodeTextList(b, func() *pb.RoadCase { return &pb.RoadCase{} })
 	if err != nil {
-		return nil, &inputFileError{path: path, err: fmt.Errorf("not YAML or JSON: %w", err)}
+		return nil, &inputFileError{path: path, err: err}
 	}
-	var items []json.RawMessage
-	if err := json.Unmarshal(j, &items); err != nil {
-		return nil, &inputFileError{path: path, err: fmt.Errorf("not a list of road cases: %w", err)}
-	}
-	if len(items) == 0 {
+	if len(out) == 0 {
 		return nil, &inputFileError{path: path, err: fmt.Errorf("holds no road case")}
 	}
-	out := make([]*pb.RoadCase, len(items))
-	for i, it := range items {
-		rc := &pb.RoadCase{}
-		if err := protojson.Unmarshal(it, rc); err != nil {
-			return nil, &inputFileError{path: path, err: fmt.Errorf("road case %d: %w", i, err)}
-		}
-		out[i] = rc
-	}
+	src.Add(sourceName(path), prefix, pos)
 	return out, nil
 }
 
@@ -89,6 +91,7 @@ func readRoadCases(e *env, path string) ([]*pb.RoadCase, error) {
 type specFlags struct {
 	vehicle string
 	roads   string
+	src     api.TextSources // where the files loaded wrote each field
 }
 
 func addSpecFlags(fs *flagSet) *specFlags {
@@ -103,7 +106,7 @@ func addSpecFlags(fs *flagSet) *specFlags {
 func (s *specFlags) load(e *env, path string) (*pb.JobSpec, error) {
 	spec := &pb.JobSpec{}
 	if path != "" {
-		if err := readMessage(e, path, spec); err != nil {
+		if err := readMessageAt(e, path, spec, &s.src, "spec"); err != nil {
 			return nil, err
 		}
 		if spec.GetDisplayName() == "" && path != "-" {
@@ -112,13 +115,13 @@ func (s *specFlags) load(e *env, path string) (*pb.JobSpec, error) {
 	}
 	if s.vehicle != "" {
 		v := &pb.Vehicle{}
-		if err := readMessage(e, s.vehicle, v); err != nil {
+		if err := readMessageAt(e, s.vehicle, v, &s.src, "spec.vehicle"); err != nil {
 			return nil, err
 		}
 		spec.Vehicle = v
 	}
 	if s.roads != "" {
-		rc, err := readRoadCases(e, s.roads)
+		rc, err := readRoadCasesAt(e, s.roads, &s.src, "spec.road_cases")
 		if err != nil {
 			return nil, err
 		}
@@ -141,13 +144,46 @@ func replaceParts(spec, over *pb.JobSpec) *pb.JobSpec {
 
 // readSetups reads one Setup message per file.
 func readSetups(e *env, paths []string) ([]*pb.Setup, error) {
+	return readSetupsAt(e, paths, nil, "")
+}
+
+// readSetupsAt is readSetups recording in src where each file wrote its
+// fields, the setups being the request's list at prefix.
+func readSetupsAt(e *env, paths []string, src *api.TextSources, prefix string) ([]*pb.Setup, error) {
 	out := make([]*pb.Setup, len(paths))
 	for i, p := range paths {
 		s := &pb.Setup{}
-		if err := readMessage(e, p, s); err != nil {
+		if err := readMessageAt(e, p, s, src, fmt.Sprintf("%s[%d]", prefix, i)); err != nil {
 			return nil, err
 		}
 		out[i] = s
 	}
 	return out, nil
+}
+
+// located carries the files a request was built from with the server's
+// answer, so that describeError can show each bad field where the user
+// wrote it.
+type located struct {
+	err error
+	src api.TextSources
+}
+
+func (l *located) Error() string { return l.err.Error() }
+func (l *located) Unwrap() error { return l.err }
+
+// locate attaches src to err (nil stays nil).
+func locate(err error, src api.TextSources) error {
+	if err == nil || len(src) == 0 {
+		return err
+	}
+	return &located{err: err, src: src}
+}
+
+// sourceName names an input file in positions: "-" is standard input.
+func sourceName(path string) string {
+	if path == "-" {
+		return "<stdin>"
+	}
+	return path
 }

@@ -76,7 +76,7 @@ func (f *submitFlags) run(ctx context.Context, e *env, in *parsed) error {
 	resp, err := c.svc.SubmitJob(cctx, &pb.SubmitJobRequest{Spec: spec})
 	cancel()
 	if err != nil {
-		return err
+		return locate(err, f.sf.src)
 	}
 	fmt.Fprintln(e.stdout, resp.GetJob().GetJobId())
 	if !f.watch {
