@@ -214,14 +214,9 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 		var prevC, prevRes [4]float64
 		for iter < e.opt.MaxIterations {
 			iter++
-			sys := cd.base.withDamping(c)
-			n := channels(&ws.chs, &sys, cd.sym)
-			if !responseSpectra(ws.chs[:n], cd.grid, &cd.geo, e.omega, e.wts, &e.bands, true, &acc, &edge, nil) {
-				return fmt.Errorf("%w: road case %q: singular dynamic stiffness", ErrUnstable, cd.rc.Name)
-			}
-			v, err := variances(&acc, &edge, e.f, true)
+			v, err := e.caseVariances(ws, cd, &c, true, &acc, &edge, nil)
 			if err != nil {
-				return fmt.Errorf("road case %q: %w", cd.rc.Name, err)
+				return err
 			}
 			worst := 0.0
 			for i := range c {
@@ -249,18 +244,29 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 			return fmt.Errorf("%w: road case %q after %d iterations", ErrNoConvergence, cd.rc.Name, iter)
 		}
 	}
-	sys := cd.base.withDamping(c)
-	n := channels(&ws.chs, &sys, cd.sym)
-	if !responseSpectra(ws.chs[:n], cd.grid, &cd.geo, e.omega, e.wts, &e.bands, false, &acc, &edge, psd) {
-		return fmt.Errorf("%w: road case %q: singular dynamic stiffness", ErrUnstable, cd.rc.Name)
-	}
-	v, err := variances(&acc, &edge, e.f, false)
+	v, err := e.caseVariances(ws, cd, &c, false, &acc, &edge, psd)
 	if err != nil {
-		return fmt.Errorf("road case %q: %w", cd.rc.Name, err)
+		return err
 	}
 	e.fillMetrics(cd, dampers, &v, m)
 	m.Iterations = iter
 	return m.checkFinite()
+}
+
+// caseVariances computes road case cd's response spectra at damping c
+// into acc and edge (and psd when not nil), and their variances;
+// velOnly as for responseSpectra and variances.
+func (e *Evaluator) caseVariances(ws *workspace, cd *caseData, c *[4]float64, velOnly bool, acc *[nOut]float64, edge *[4][nOut]float64, psd []float64) ([nOut]float64, error) {
+	sys := cd.base.withDamping(*c)
+	n := channels(&ws.chs, &sys, cd.sym)
+	if !responseSpectra(ws.chs[:n], cd.grid, &cd.geo, e.omega, e.wts, &e.bands, velOnly, acc, edge, psd) {
+		return [nOut]float64{}, fmt.Errorf("%w: road case %q: singular dynamic stiffness", ErrUnstable, cd.rc.Name)
+	}
+	v, err := variances(acc, edge, e.f, velOnly)
+	if err != nil {
+		return v, fmt.Errorf("road case %q: %w", cd.rc.Name, err)
+	}
+	return v, nil
 }
 
 // fillMetrics turns variances into metrics and solves the jacking.

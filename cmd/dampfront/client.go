@@ -68,6 +68,14 @@ func (c *clientFlags) dial() (*client, error) {
 
 func (c *client) Close() error { return c.conn.Close() }
 
+// unary makes one unary call of the service, bounded by the client's
+// timeout.
+func unary[Q, R any](ctx context.Context, c *client, call func(context.Context, Q, ...grpc.CallOption) (R, error), req Q) (R, error) {
+	cctx, cancel := c.call(ctx)
+	defer cancel()
+	return call(cctx, req)
+}
+
 // call bounds one unary call by the client's timeout.
 func (c *client) call(ctx context.Context) (context.Context, context.CancelFunc) {
 	if c.timeout <= 0 {

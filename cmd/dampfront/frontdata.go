@@ -15,18 +15,14 @@ type frontData struct {
 
 // fetchFront reads the job and all pages of its front.
 func fetchFront(ctx context.Context, c *client, name string, view pb.SolutionView) (*frontData, error) {
-	cctx, cancel := c.call(ctx)
-	jr, err := c.svc.GetJob(cctx, &pb.GetJobRequest{Name: name, View: pb.JobView_JOB_VIEW_FULL})
-	cancel()
+	jr, err := unary(ctx, c, c.svc.GetJob, &pb.GetJobRequest{Name: name, View: pb.JobView_JOB_VIEW_FULL})
 	if err != nil {
 		return nil, err
 	}
 	req := &pb.GetFrontRequest{Job: name, PageSize: 1000, View: view}
 	var front *pb.Front
 	for {
-		cctx, cancel := c.call(ctx)
-		resp, err := c.svc.GetFront(cctx, req)
-		cancel()
+		resp, err := unary(ctx, c, c.svc.GetFront, req)
 		if err != nil {
 			return nil, err
 		}

@@ -274,9 +274,7 @@ func plotCurves(ctx context.Context, c *client, job string, solution int, page p
 		j = fd.job
 	}
 	req.Target = &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: int32(solution)}
-	cctx, cancel := c.call(ctx)
-	resp, err := c.svc.GetDamperCurves(cctx, req)
-	cancel()
+	resp, err := unary(ctx, c, c.svc.GetDamperCurves, req)
 	if err != nil {
 		return nil, err
 	}
