@@ -29,14 +29,7 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 	for i, su := range req.GetSetups() {
 		setups[i] = setupArgument(su, fmt.Sprintf("setups[%d]", i), &p)
 	}
-	var spec *pb.JobSpec
-	var job *string
-	switch src := req.GetSource().(type) {
-	case *pb.EvaluateSetupsRequest_Spec:
-		spec = src.Spec
-	case *pb.EvaluateSetupsRequest_Job:
-		job = &src.Job
-	}
+	spec, job := requestSource(req)
 	pl, err := s.sourcePlan(ctx, spec, job, len(setups), &p)
 	if err != nil {
 		return nil, err

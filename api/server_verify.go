@@ -47,14 +47,7 @@ func (s *Server) VerifySetup(ctx context.Context, req *pb.VerifySetupRequest) (*
 	if req.Seed != nil {
 		seed = req.GetSeed()
 	}
-	var spec *pb.JobSpec
-	var job *string
-	switch src := req.GetSource().(type) {
-	case *pb.VerifySetupRequest_Spec:
-		spec = src.Spec
-	case *pb.VerifySetupRequest_Job:
-		job = &src.Job
-	}
+	spec, job := requestSource(req)
 	pl, err := s.sourcePlan(ctx, spec, job, 0, &p)
 	if err != nil {
 		return nil, err

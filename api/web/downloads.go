@@ -46,9 +46,7 @@ func (h *Handler) frontCSV(w http.ResponseWriter, r *http.Request) {
 // frontfile, as the command line's front --format json writes it.
 func (h *Handler) frontJSON(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
-	ctx, cancel := h.callContext(r)
-	defer cancel()
-	j, ok := h.getJob(ctx, w, r, id, pb.JobView_JOB_VIEW_BASIC, false)
+	j, ok := h.pathJob(w, r, id, pb.JobView_JOB_VIEW_BASIC)
 	if !ok {
 		return
 	}

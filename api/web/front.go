@@ -7,6 +7,7 @@ import (
 	"html/template"
 	"net/url"
 
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/plot"
 )
@@ -22,22 +23,10 @@ func jobName(id string) string { return "jobs/" + id }
 
 // wholeFront reads every page of a finished job's front in the full view.
 func (h *Handler) wholeFront(ctx context.Context, name string) (*pb.Front, error) {
-	req := &pb.GetFrontRequest{Job: name, PageSize: frontPageSize, View: pb.SolutionView_SOLUTION_VIEW_FULL}
-	var front *pb.Front
-	for {
-		res, err := h.client.GetFront(ctx, req)
-		if err != nil {
-			return nil, err
-		}
-		if front == nil {
-			front = res.GetFront()
-		} else {
-			front.Solutions = append(front.Solutions, res.GetFront().GetSolutions()...)
-		}
-		if req.PageToken = res.GetNextPageToken(); req.PageToken == "" || len(res.GetFront().GetSolutions()) == 0 {
-			return front, nil
-		}
+	get := func(ctx context.Context, req *pb.GetFrontRequest) (*pb.GetFrontResponse, error) {
+		return h.client.GetFront(ctx, req)
 	}
+	return api.ReadWholeFront(ctx, get, &pb.GetFrontRequest{Job: name, PageSize: frontPageSize, View: pb.SolutionView_SOLUTION_VIEW_FULL})
 }
 
 // solutionAt returns the solution of front whose index is k, or nil.

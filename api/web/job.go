@@ -276,6 +276,15 @@ func (h *Handler) progress(w http.ResponseWriter, r *http.Request) {
 	_, _ = w.Write(b)
 }
 
+// pathJob gets job id in the view asked for under the request's own call
+// deadline, for a download; when that fails it has answered with
+// serviceError.
+func (h *Handler) pathJob(w http.ResponseWriter, r *http.Request, id string, view pb.JobView) (*pb.Job, bool) {
+	ctx, cancel := h.callContext(r)
+	defer cancel()
+	return h.getJob(ctx, w, r, id, view, false)
+}
+
 // getJob gets job id in the view asked for; when that fails it has
 // answered with serviceError (as a page when page is true).
 func (h *Handler) getJob(ctx context.Context, w http.ResponseWriter, r *http.Request, id string, view pb.JobView, page bool) (*pb.Job, bool) {

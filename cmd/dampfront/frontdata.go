@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
@@ -19,22 +20,12 @@ func fetchFront(ctx context.Context, c *client, name string, view pb.SolutionVie
 	if err != nil {
 		return nil, err
 	}
-	req := &pb.GetFrontRequest{Job: name, PageSize: 1000, View: view}
-	var front *pb.Front
-	for {
-		resp, err := unary(ctx, c, c.svc.GetFront, req)
-		if err != nil {
-			return nil, err
-		}
-		if front == nil {
-			front = resp.GetFront()
-		} else {
-			front.Solutions = append(front.Solutions, resp.GetFront().GetSolutions()...)
-		}
-		if resp.GetNextPageToken() == "" {
-			break
-		}
-		req.PageToken = resp.GetNextPageToken()
+	get := func(ctx context.Context, req *pb.GetFrontRequest) (*pb.GetFrontResponse, error) {
+		return unary(ctx, c, c.svc.GetFront, req)
+	}
+	front, err := api.ReadWholeFront(ctx, get, &pb.GetFrontRequest{Job: name, PageSize: 1000, View: view})
+	if err != nil {
+		return nil, err
 	}
 	if front == nil {
 		return nil, fmt.Errorf("the server returned no front for %s", name)
