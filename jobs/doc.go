@@ -6,7 +6,8 @@
 //
 // The package knows the optimiser only through Run and RunOpener, and
 // the API only through opaque spec and detail bytes; the wiring code
-// implements those. It imports neither dampfront/api nor dampfront/model.
+// implements those. It imports neither dampfront/api nor the optimiser;
+// of dampfront/model it uses only the text check of labels (TextProblem).
 //
 // # Data flow
 //
