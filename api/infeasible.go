@@ -12,8 +12,9 @@ import (
 // front: a front no member of which is feasible (the optimiser then keeps
 // the least violating setups) makes the job infeasible. The archive holds
 // either feasible members only or infeasible ones only, so the first
-// member tells, and only an infeasible front is read in full. A job with
-// no front yet is left as it is.
+// member tells, and only an infeasible front is read in full, on every
+// GetJob of it (such a front holds only the least violating setups, so it
+// is small). A job with no front yet is left as it is.
 func (s *Server) markInfeasible(ctx context.Context, job *pb.Job) error {
 	page, err := s.engine.Front(ctx, &jobs.FrontGetParams{JobID: job.GetJobId(), PageSize: 1})
 	var pre *jobs.PreconditionError

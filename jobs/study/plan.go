@@ -39,6 +39,9 @@ func (c *Checked) Compile(ctx context.Context) (*Plan, error) {
 		return nil, err
 	}
 	problem, err := model.NewProblem(eval, c.design, spec.Objectives, spec.Constraints)
+	// A given reference replaces the middle of the bounds that NewProblem
+	// has already evaluated for a normalised objective: one evaluation more
+	// per compile, left as it is since it is small beside the search.
 	if err == nil && spec.Reference != nil {
 		err = problem.SetReference(*spec.Reference)
 	}
