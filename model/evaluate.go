@@ -201,9 +201,10 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 	cd := &e.cases[ci]
 	linear := true
 	var c [4]float64
-	for i, d := range dampers {
+	for i := range dampers {
+		d := &dampers[i]
 		c[i] = (d.cb + d.cr) / 2
-		if (d.vb > 0 && d.rb != 1) || (d.vr > 0 && d.rr != 1) {
+		if !d.linear() {
 			linear = false
 		}
 	}
