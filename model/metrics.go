@@ -121,4 +121,7 @@ func (m *CaseMetrics) checkFinite() error {
 type Result struct {
 	Setup Setup
 	Cases []CaseMetrics
+	// Transients are the metrics of the manoeuvre and kerb cases, in the
+	// evaluator's order (see Evaluator.SetTransientCases).
+	Transients []TransientMetrics
 }
