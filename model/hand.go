@@ -146,28 +146,53 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 		hc.Rebound = branch(a.ReboundRatio, a.KneeRebound, a.HighSpeedRebound, adj.ReboundSoftest, adj.ReboundStiffest)
 		r.Corners[i] = hc
 	}
-	modal, err := ModalAnalysis(v, &t.Setup, t.Speed)
+	d := v.wheelDampers(&t.Setup)
+	var c [4]float64
+	for i := range c {
+		c[i] = (d[i].cb + d[i].cr) / 2
+	}
+	modal, err := ModesAt(v, t.Speed, c)
 	if err != nil {
 		return nil, err
 	}
-	op, err := v.operatingPoint(t.Speed)
-	if err != nil {
+	if r.Modes, err = HandModesAt(v, t.Speed, c, modal); err != nil {
 		return nil, err
 	}
-	r.Modes = handModes(v, &t.Setup, &op, modal)
 	return r, nil
 }
 
+// HandModesAt works heave, pitch and roll out by hand at a speed with
+// linear dampers of slopes c at the wheel (N s/m per corner, as ModesAt
+// takes them), beside modal, the full car's modes at the same speed and
+// slopes (ModesAt's result): a road case's modes at its equivalent slopes
+// get their hand figures at the same slopes, so that what is left between
+// the two is the tyres, the aero and the coupling (HandMode.Reason).
+func HandModesAt(v *Vehicle, speed float64, c [4]float64, modal []Mode) ([3]HandMode, error) {
+	if len(modal) < 3 {
+		panic("model: HandModesAt needs the heave, pitch and roll modes of ModesAt")
+	}
+	var p problems
+	p.merge("vehicle.", v.Validate())
+	if err := p.err(); err != nil {
+		return [3]HandMode{}, err
+	}
+	op, err := v.operatingPoint(speed)
+	if err != nil {
+		return [3]HandMode{}, err
+	}
+	return handModes(v, c, &op, modal), nil
+}
+
 // handModes works out heave, pitch and roll alone (tyres rigid) and with
-// the tyres in series, beside the full car's modes.
-func handModes(v *Vehicle, s *Setup, op *OperatingPoint, modal []Mode) [3]HandMode {
-	d := v.wheelDampers(s)
+// the tyres in series, beside the full car's modes, dampers of slopes c
+// at the wheel.
+func handModes(v *Vehicle, wheel [4]float64, op *OperatingPoint, modal []Mode) [3]HandMode {
 	inertia := [3]float64{v.SprungMass, v.PitchInertia, v.RollInertia}
 	var susp, tyre, damp [3]float64
 	for i := 0; i < 4; i++ {
 		x, y := v.cornerPosition(i)
 		lever := [3]float64{1, x * x, y * y}
-		kw, kt, c := v.Corners[i].WheelRateOf(), v.Corners[i].TyreRate, (d[i].cb+d[i].cr)/2
+		kw, kt, c := v.Corners[i].WheelRateOf(), v.Corners[i].TyreRate, wheel[i]
 		for j := range lever {
 			susp[j] += kw * lever[j]
 			tyre[j] += kt * lever[j]

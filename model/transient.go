@@ -86,14 +86,14 @@ type transientCase struct {
 	slope  [4]float64
 	h      float64
 	steps  int
-	start  float64              // when the input begins (s)
-	in     []float64            // (2 steps + 1) samples of inWidthForced
-	x0     [nDOF]float64        // quasi-static start
-	qs     [2][]float64         // quasi-static roll and pitch at each step (rad)
-	final  [nDOF]float64        // quasi-static state under the last input
-	lltdSS float64              // front share of the lateral load transfer at the end (NaN: none)
-	lltdW  float64              // |ΔW_f + ΔW_r| at the end (N)
-	pool   sync.Pool            // *transientWork
+	start  float64       // when the input begins (s)
+	in     []float64     // (2 steps + 1) samples of inWidthForced
+	x0     [nDOF]float64 // quasi-static start
+	qs     [2][]float64  // quasi-static roll and pitch at each step (rad)
+	final  [nDOF]float64 // quasi-static state under the last input
+	lltdSS float64       // front share of the lateral load transfer at the end (NaN: none)
+	lltdW  float64       // |ΔW_f + ΔW_r| at the end (N)
+	pool   sync.Pool     // *transientWork
 }
 
 // transientWork is one evaluation's history.

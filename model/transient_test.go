@@ -41,7 +41,6 @@ func prepare(t testing.TB, v *Vehicle, man *Manoeuvre, kerb *Kerb, opt Transient
 	return c
 }
 
-
 // Steady-state lateral load transfer per axle against the closed form of
 // Milliken & Milliken 1995, Race Car Vehicle Dynamics, ch. 18 (load
 // transfer):

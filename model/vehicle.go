@@ -53,6 +53,11 @@ type Vehicle struct {
 	// given, and ride heights are then reported as changes from rest.
 	RestRideHeight [2]float64
 
+	// ReferencePoints are points of the underside (splitter, plank) whose
+	// height and ground-contact probability each case reports (see
+	// ReferencePoint); at most MaxReferencePoints.
+	ReferencePoints []ReferencePoint
+
 	// LoadPaths carries the heights and link geometry the manoeuvre
 	// cases need (see LoadPaths); the ride model does not use it.
 	LoadPaths LoadPaths
@@ -267,6 +272,7 @@ func (v *Vehicle) Validate() error {
 		p.inOrZero(fmt.Sprintf("rest_ride_height_m[%d]", ax), v.RestRideHeight[ax], "Vehicle.rest_ride_height_m")
 	}
 	v.Aero.validate(&p, "aero.", v.RestRideHeight)
+	v.validateReferencePoints(&p)
 	v.LoadPaths.validate(&p, "load_paths.")
 	return p.err()
 }
