@@ -24,8 +24,8 @@ type Spec struct {
 	// none). With them every solution reports its clicks, and the
 	// out-of-band check uses them instead of Adjustment.
 	Adjusters model.Adjusters
-	Curves      Curves
-	Search      Search
+	Curves    Curves
+	Search    Search
 }
 
 // Design is the design space as a spec gives it: model.DesignSpace with
