@@ -35,6 +35,10 @@ func TestSnappedSolutionsReportClicks(t *testing.T) {
 	genes := []float64{0.87, 0.41, 0.66, 1.04}
 	s := pl.Problem().Design().Decode(genes)
 	sol := pl.Evaluate(s)
+	adj, err := pl.Spec().Adjusting(s)
+	if err != nil {
+		t.Fatal(err)
+	}
 	for i, want := range []float64{0.9, 0.4, 0.7, 1.0} {
 		got := [4]float64{s.Axles[0].BumpRatio, s.Axles[0].ReboundRatio, s.Axles[1].BumpRatio, s.Axles[1].ReboundRatio}[i]
 		if math.Abs(got-want) > 1e-12 {
@@ -42,10 +46,10 @@ func TestSnappedSolutionsReportClicks(t *testing.T) {
 		}
 	}
 	wantClicks := [2][2]int{{3, 8}, {5, 2}}
-	if len(sol.Clicks) != 4 {
-		t.Fatalf("clicks %v, want one per corner", sol.Clicks)
+	if len(adj.Clicks) != 4 {
+		t.Fatalf("clicks %v, want one per corner", adj.Clicks)
 	}
-	for i, c := range sol.Clicks {
+	for i, c := range adj.Clicks {
 		if c.LowBump != wantClicks[i/2][0] || c.LowRebound != wantClicks[i/2][1] || c.HighBump != -1 || c.HighRebound != -1 {
 			t.Errorf("corner %d clicks %+v, want LS %v and no HS", i, c, wantClicks[i/2])
 		}
@@ -58,8 +62,8 @@ func TestSnappedSolutionsReportClicks(t *testing.T) {
 	if !slices.Equal(obj, sol.Objectives) {
 		t.Errorf("the search's objectives %v are not the snapped setup's %v", obj, sol.Objectives)
 	}
-	if sol.OutOfBand != nil {
-		t.Errorf("a snapped setup is out of band: %v", sol.OutOfBand)
+	if adj.OutOfBand != nil {
+		t.Errorf("a snapped setup is out of band: %v", adj.OutOfBand)
 	}
 }
 
@@ -83,18 +87,21 @@ func TestOutOfBandSolutionIsFlagged(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		sol := pl.Evaluate(pl.Problem().Design().Decode([]float64{1.5, 0.8, 0.8, 0.8}))
+		sol, err := pl.Spec().Adjusting(pl.Problem().Design().Decode([]float64{1.5, 0.8, 0.8, 0.8}))
+		if err != nil {
+			t.Fatal(err)
+		}
 		if len(sol.OutOfBand) != 2 || sol.OutOfBand[0].Corner != model.FL || sol.OutOfBand[0].Rebound || !sol.OutOfBand[0].Above {
 			t.Errorf("%s: out of band %v, want front bump above the stiffest on both sides", tc.name, sol.OutOfBand)
 		}
 		n := 0
-		for _, w := range sol.Warnings {
+		for _, w := range sol.Warnings() {
 			if strings.HasPrefix(w, "outside the adjuster range: FL bump") || strings.HasPrefix(w, "outside the adjuster range: FR bump") {
 				n++
 			}
 		}
 		if n != 2 {
-			t.Errorf("%s: warnings %q, want both front corners", tc.name, sol.Warnings)
+			t.Errorf("%s: warnings %q, want both front corners", tc.name, sol.Warnings())
 		}
 	}
 }

@@ -27,14 +27,7 @@ type Solution struct {
 	Shortfalls []model.Shortfall
 	Cases      []CaseDetail
 	Curves     []model.DamperCurve // nil when they cannot be drawn (see Warnings)
-	// Clicks is the click of each adjuster per corner; nil without
-	// adjusters.
-	Clicks []model.CornerClicks
-	// OutOfBand is where the dampers lie outside their adjuster range
-	// (Plan.Band), one entry per corner and direction out of it; nil when
-	// inside or without a band. Each is also a warning.
-	OutOfBand []model.BandExcess
-	Warnings  []string // every case's warnings, then the curves', then the band's
+	Warnings   []string            // every case's warnings, then the curves'
 }
 
 // CaseDetail is one road case of a solution.
@@ -91,7 +84,6 @@ func (pl *Plan) describe(sol *Solution, s model.Setup, r *model.Result) {
 		return
 	}
 	sol.Curves = curves
-	pl.clicksAndBand(sol, s)
 }
 
 // feasibility says whether objectives and violations make a feasible
