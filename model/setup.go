@@ -28,7 +28,15 @@ type AxleDamping struct {
 // Setup is the damper setting of the car.
 type Setup struct {
 	Axles [2]AxleDamping // front, rear
+	// Heave is each axle's heave damper, front and rear, its ratios taken
+	// of the axle's heave critical damping (Vehicle.HeaveCriticalDamping)
+	// and its knees at the element; the zero value is none. Only an axle
+	// with a heave element (Vehicle.Heave) may have one.
+	Heave [2]AxleDamping
 }
+
+// given reports whether a heave damper setting is given (any field set).
+func (a AxleDamping) given() bool { return a != AxleDamping{} }
 
 func factorOr1(r float64) float64 {
 	if r == 0 {
@@ -42,15 +50,24 @@ func factorOr1(r float64) float64 {
 func (s *Setup) Validate() error {
 	var p problems
 	for ax, a := range s.Axles {
-		f := AxleNames[ax] + "."
-		p.in(f+"bump_ratio", a.BumpRatio, "AxleDamping.ratio")
-		p.in(f+"rebound_ratio", a.ReboundRatio, "AxleDamping.ratio")
-		p.inOrZero(f+"knee_bump_m_per_s", a.KneeBump, "AxleDamping.knee_m_per_s")
-		p.inOrZero(f+"knee_rebound_m_per_s", a.KneeRebound, "AxleDamping.knee_m_per_s")
-		p.inOrZero(f+"high_speed_bump", a.HighSpeedBump, "AxleDamping.high_speed")
-		p.inOrZero(f+"high_speed_rebound", a.HighSpeedRebound, "AxleDamping.high_speed")
+		a.validate(&p, AxleNames[ax]+".")
+	}
+	for ax, a := range s.Heave {
+		if a.given() {
+			a.validate(&p, fmt.Sprintf("heave[%d].", ax))
+		}
 	}
 	return p.err()
+}
+
+// validate checks one damper setting, its fields named under prefix.
+func (a AxleDamping) validate(p *problems, f string) {
+	p.in(f+"bump_ratio", a.BumpRatio, "AxleDamping.ratio")
+	p.in(f+"rebound_ratio", a.ReboundRatio, "AxleDamping.ratio")
+	p.inOrZero(f+"knee_bump_m_per_s", a.KneeBump, "AxleDamping.knee_m_per_s")
+	p.inOrZero(f+"knee_rebound_m_per_s", a.KneeRebound, "AxleDamping.knee_m_per_s")
+	p.inOrZero(f+"high_speed_bump", a.HighSpeedBump, "AxleDamping.high_speed")
+	p.inOrZero(f+"high_speed_rebound", a.HighSpeedRebound, "AxleDamping.high_speed")
 }
 
 // wheelDamper is one corner's damper referred to the wheel.
@@ -65,15 +82,22 @@ func (v *Vehicle) wheelDampers(s *Setup) [4]wheelDamper {
 	cc := v.CriticalDamping()
 	var out [4]wheelDamper
 	for i := range out {
-		a := s.Axles[i/2]
-		mr := v.Corners[i].DamperMotionRatio
-		out[i] = wheelDamper{
-			cb: a.BumpRatio * cc[i], cr: a.ReboundRatio * cc[i],
-			vb: a.KneeBump / mr, vr: a.KneeRebound / mr,
-			rb: factorOr1(a.HighSpeedBump), rr: factorOr1(a.HighSpeedRebound),
-		}
+		out[i] = newWheelDamper(s.Axles[i/2], cc[i], v.Corners[i].DamperMotionRatio)
 	}
 	return out
+}
+
+// newWheelDamper refers a damper setting to its coordinate: ratios of the
+// critical damping cc there (N s/m), knees at the component divided by the
+// motion ratio mr (component travel per coordinate travel). The corner
+// dampers (coordinate: the wheel's travel) and the heave dampers (the
+// axle's mean wheel travel) are both built here.
+func newWheelDamper(a AxleDamping, cc, mr float64) wheelDamper {
+	return wheelDamper{
+		cb: a.BumpRatio * cc, cr: a.ReboundRatio * cc,
+		vb: a.KneeBump / mr, vr: a.KneeRebound / mr,
+		rb: factorOr1(a.HighSpeedBump), rr: factorOr1(a.HighSpeedRebound),
+	}
 }
 
 // force is the damper force at the wheel for wheel velocity v (bump > 0).
@@ -105,19 +129,30 @@ var (
 
 // ok is a cheap allocation-free form of Validate for the hot path.
 func (s *Setup) ok() bool {
-	for _, a := range s.Axles {
-		if !ratioLimit.Contains(a.BumpRatio) || !ratioLimit.Contains(a.ReboundRatio) {
+	for ax, a := range s.Axles {
+		if h := s.Heave[ax]; h.given() && !h.ok() {
 			return false
 		}
-		for _, v := range [...]float64{a.KneeBump, a.KneeRebound} {
-			if v != 0 && !kneeLimit.Contains(v) {
-				return false
-			}
+		if !a.ok() {
+			return false
 		}
-		for _, v := range [...]float64{a.HighSpeedBump, a.HighSpeedRebound} {
-			if v != 0 && !highSpeedLimit.Contains(v) {
-				return false
-			}
+	}
+	return true
+}
+
+// ok is the allocation-free check of one damper setting.
+func (a AxleDamping) ok() bool {
+	if !ratioLimit.Contains(a.BumpRatio) || !ratioLimit.Contains(a.ReboundRatio) {
+		return false
+	}
+	for _, v := range [...]float64{a.KneeBump, a.KneeRebound} {
+		if v != 0 && !kneeLimit.Contains(v) {
+			return false
+		}
+	}
+	for _, v := range [...]float64{a.HighSpeedBump, a.HighSpeedRebound} {
+		if v != 0 && !highSpeedLimit.Contains(v) {
+			return false
 		}
 	}
 	return true
