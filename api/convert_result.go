@@ -51,7 +51,7 @@ func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
 		PitchShiftRad:      m.PitchShift,
 		Iterations:         int32(m.Iterations),
 		Warnings:           c.Warnings,
-		Modes:              modesToProto(c.Modes),
+		Modes:              caseModesToProto(c),
 		AtSpeed:            operatingPointToProto(&m.AtSpeed),
 	}
 	for i := 0; i < 4; i++ {
@@ -93,10 +93,15 @@ func operatingPointToProto(op *model.OperatingPoint) *pb.OperatingPoint {
 	}
 }
 
-func modesToProto(modes []model.Mode) []*pb.Mode {
-	out := make([]*pb.Mode, len(modes))
-	for i, m := range modes {
+// caseModesToProto converts a road case's modes, heave, pitch and roll
+// with their hand figures beside.
+func caseModesToProto(c *study.CaseDetail) []*pb.Mode {
+	out := make([]*pb.Mode, len(c.Modes))
+	for i, m := range c.Modes {
 		out[i] = modeToProto(&m)
+		if i < len(c.Hand) && c.Hand[i].Name == m.Name {
+			out[i].HandDampingRatio, out[i].HandReason = c.Hand[i].HandRatio, c.Hand[i].Reason
+		}
 	}
 	return out
 }

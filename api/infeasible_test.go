@@ -61,7 +61,11 @@ func TestInfeasibleJobReportsClosest(t *testing.T) {
 			want, wantCase = worst-limit, worstCase
 		}
 	}
-	for what, j := range map[string]*pb.Job{"watch": final, "GetJob": got.GetJob()} {
+	listed := listedJob(t, b, job.GetName())
+	for what, j := range map[string]*pb.Job{"watch": final, "GetJob": got.GetJob(), "ListJobs": listed} {
+		if !j.GetInfeasible() {
+			t.Errorf("%s does not mark the job infeasible", what)
+		}
 		c := j.GetClosest()
 		if len(c) != 1 || c[0].GetKind() != pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL || c[0].GetOver() != want || c[0].GetRoadCase() != wantCase {
 			t.Errorf("%s: closest %v; want travel %g over on %q", what, c, want, wantCase)
@@ -80,10 +84,29 @@ func TestFeasibleJobNotInfeasible(t *testing.T) {
 	if final.GetInfeasible() || len(final.GetClosest()) != 0 {
 		t.Errorf("feasible job marked infeasible: %v", final)
 	}
+	if l := listedJob(t, b, job.GetName()); l.GetInfeasible() || len(l.GetClosest()) != 0 {
+		t.Errorf("ListJobs marks a feasible job infeasible: %v", l)
+	}
 	front, _ := b.wholeFront(t, job.GetName(), 0)
 	for _, sol := range front.GetSolutions() {
 		if sol.GetFeasible() && len(sol.GetShortfalls()) != 0 {
 			t.Errorf("feasible solution %d has shortfalls %v", sol.GetIndex(), sol.GetShortfalls())
 		}
 	}
+}
+
+// listedJob is the job named name as ListJobs returns it.
+func listedJob(t *testing.T, b *testBundle, name string) *pb.Job {
+	t.Helper()
+	res, err := b.client.ListJobs(testContext(t), &pb.ListJobsRequest{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, j := range res.GetJobs() {
+		if j.GetName() == name {
+			return j
+		}
+	}
+	t.Fatalf("ListJobs does not list %s", name)
+	return nil
 }

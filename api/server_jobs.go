@@ -118,6 +118,13 @@ func (s *Server) ListJobs(ctx context.Context, req *pb.ListJobsRequest) (*pb.Lis
 		if err != nil {
 			return nil, toStatus(err, nil)
 		}
+		if j.State == jobs.StateSucceeded {
+			// The list's badge reads the flag as GetJob and watch do; a
+			// feasible front costs one one-member page read.
+			if err := s.markInfeasible(ctx, job); err != nil {
+				return nil, toStatus(err, nil)
+			}
+		}
 		out.Jobs = append(out.Jobs, job)
 	}
 	return out, nil

@@ -163,15 +163,22 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 		r.Corners[i] = hc
 	}
 	r.Axles = handAxles(v, &t)
-	modal, err := ModalAnalysis(v, &t.Setup, t.Speed)
+	d := v.dampers(&t.Setup)
+	var c [4]float64
+	var heave [2]float64
+	for i := range c {
+		c[i] = (d[i].cb + d[i].cr) / 2
+	}
+	for ax := range heave {
+		heave[ax] = (d[dampHeave+ax].cb + d[dampHeave+ax].cr) / 2
+	}
+	modal, err := ModesAtHeave(v, t.Speed, c, heave)
 	if err != nil {
 		return nil, err
 	}
-	op, err := v.operatingPoint(t.Speed)
-	if err != nil {
+	if r.Modes, err = HandModesAtHeave(v, t.Speed, c, heave, modal); err != nil {
 		return nil, err
 	}
-	r.Modes = handModes(v, &t.Setup, &op, modal)
 	return r, nil
 }
 
@@ -214,16 +221,45 @@ func handAxles(v *Vehicle, t *HandTargets) [2]HandAxle {
 	return out
 }
 
+// HandModesAt works heave, pitch and roll out by hand at a speed with
+// linear dampers of slopes c at the wheel (N s/m per corner, as ModesAt
+// takes them), beside modal, the full car's modes at the same speed and
+// slopes (ModesAt's result): a road case's modes at its equivalent slopes
+// get their hand figures at the same slopes, so that what is left between
+// the two is the tyres, the aero and the coupling (HandMode.Reason).
+func HandModesAt(v *Vehicle, speed float64, c [4]float64, modal []Mode) ([3]HandMode, error) {
+	return HandModesAtHeave(v, speed, c, [2]float64{}, modal)
+}
+
+// HandModesAtHeave is HandModesAt with heave dampers of slopes heave (N
+// s/m on each axle's mean wheel travel, as ModesAtHeave takes them).
+func HandModesAtHeave(v *Vehicle, speed float64, c [4]float64, heave [2]float64, modal []Mode) ([3]HandMode, error) {
+	if len(modal) < 3 {
+		panic("model: HandModesAt needs the heave, pitch and roll modes of ModesAt")
+	}
+	var p problems
+	p.merge("vehicle.", v.Validate())
+	if err := p.err(); err != nil {
+		return [3]HandMode{}, err
+	}
+	op, err := v.operatingPoint(speed)
+	if err != nil {
+		return [3]HandMode{}, err
+	}
+	return handModes(v, c, heave, &op, modal), nil
+}
+
 // handModes works out heave, pitch and roll alone (tyres rigid) and with
-// the tyres in series, beside the full car's modes.
-func handModes(v *Vehicle, s *Setup, op *OperatingPoint, modal []Mode) [3]HandMode {
-	d := v.wheelDampers(s)
+// the tyres in series, beside the full car's modes, dampers of slopes c
+// at the wheel and heave dampers of slopes heave on the axles' mean wheel
+// travel.
+func handModes(v *Vehicle, wheel [4]float64, heave [2]float64, op *OperatingPoint, modal []Mode) [3]HandMode {
 	inertia := [3]float64{v.SprungMass, v.PitchInertia, v.RollInertia}
 	var susp, tyre, damp [3]float64
 	for i := 0; i < 4; i++ {
 		x, y := v.cornerPosition(i)
 		lever := [3]float64{1, x * x, y * y}
-		kw, kt, c := v.Corners[i].WheelRateOf(), v.Corners[i].TyreRate, (d[i].cb+d[i].cr)/2
+		kw, kt, c := v.Corners[i].WheelRateOf(), v.Corners[i].TyreRate, wheel[i]
 		for j := range lever {
 			susp[j] += kw * lever[j]
 			tyre[j] += kt * lever[j]
@@ -231,14 +267,13 @@ func handModes(v *Vehicle, s *Setup, op *OperatingPoint, modal []Mode) [3]HandMo
 		}
 	}
 	track := [2]float64{v.TrackFront, v.TrackRear}
-	hd := v.heaveDampers(s)
 	axleX := [2]float64{v.CGToFrontAxle, -v.CGToRearAxle}
 	for ax := 0; ax < 2; ax++ {
 		// Energy ½ (k_bar/2)(s_L - s_R)² with s_L - s_R = t φ in roll.
 		susp[ModeRoll] += v.AntiRoll[ax].WheelRateOf() * track[ax] * track[ax] / 2
 		// Heave element: the axle's mean travel is z in heave, x_a θ in
 		// pitch, nothing in roll.
-		k3, c3 := v.Heave[ax].WheelRateOf(), (hd[ax].cb+hd[ax].cr)/2
+		k3, c3 := v.Heave[ax].WheelRateOf(), heave[ax]
 		susp[ModeHeave] += k3
 		susp[ModePitch] += k3 * axleX[ax] * axleX[ax]
 		damp[ModeHeave] += c3

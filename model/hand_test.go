@@ -151,3 +151,45 @@ func TestHandMethodDemoFigures(t *testing.T) {
 		}
 	}
 }
+
+// A road case's hand figures (HandModesAt at its slopes) are the hand
+// method's: at the mean target slopes they equal HandMethod's, and the
+// tyre-less ratio ζ = C/(2 sqrt(K J)) (single degree of freedom closed
+// form) scales with the slopes, so twice the slopes give twice the
+// ratio. Tolerance relative 1e-12: the same sums in another order.
+func TestHandModesAtSlopes(t *testing.T) {
+	t.Parallel()
+	const tol = 1e-12
+	v := handCar()
+	r, err := HandMethod(&v, DefaultHandTargets())
+	if err != nil {
+		t.Fatal(err)
+	}
+	var c, c2 [4]float64
+	for i, hc := range r.Corners {
+		mr2 := hc.DamperMotionRatio * hc.DamperMotionRatio
+		c[i] = (hc.Bump.Slope + hc.Rebound.Slope) / 2 * mr2 // at the wheel
+		c2[i] = 2 * c[i]
+	}
+	for _, x := range []struct {
+		slopes [4]float64
+		scale  float64
+	}{{c, 1}, {c2, 2}} {
+		modal, err := ModesAt(&v, 0, x.slopes)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := HandModesAt(&v, 0, x.slopes, modal)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for j := range got {
+			if e := relErr(got[j].HandRatio, x.scale*r.Modes[j].HandRatio); e > tol {
+				t.Errorf("%s at %g x the target slopes: hand ratio %.12g, want %.12g", got[j].Name, x.scale, got[j].HandRatio, x.scale*r.Modes[j].HandRatio)
+			}
+			if got[j].Modal.DampingRatio != modal[j].DampingRatio || got[j].Reason == "" {
+				t.Errorf("%s: the car's mode is not the one given, or no reason: %+v", got[j].Name, got[j])
+			}
+		}
+	}
+}

@@ -176,5 +176,9 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 		return err
 	}
 	fmt.Fprintln(w)
-	return writeAtSpeed(w, s.GetCaseMetrics())
+	if err := writeAtSpeed(w, s.GetCaseMetrics()); err != nil {
+		return err
+	}
+	fmt.Fprintln(w)
+	return writeCaseModes(w, s.GetCaseMetrics())
 }

@@ -225,14 +225,6 @@ func writeHandModes(w io.Writer, r *pb.EstimateByHandResponse) error {
 	return t.flush()
 }
 
-// dampedText is a mode's damped frequency, or "overdamped".
-func dampedText(m *pb.Mode) string {
-	if m.GetOverdamped() {
-		return "overdamped"
-	}
-	return num(m.GetDampedFrequencyHz(), 2)
-}
-
 func writeHandCSV(w io.Writer, r *pb.EstimateByHandResponse) error {
 	cw := csv.NewWriter(w)
 	head := []string{"corner"}

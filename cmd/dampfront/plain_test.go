@@ -95,3 +95,21 @@ func TestListTimesHaveZone(t *testing.T) {
 		t.Errorf("list shows the creation time as %q (%v, %v), want %v with its offset:\n%s", m, got, err, created, b.String())
 	}
 }
+
+// TestListMarksInfeasible checks that the list's state column says when a
+// succeeded job's front meets none of its constraints, as get does.
+func TestListMarksInfeasible(t *testing.T) {
+	t.Parallel()
+	var b bytes.Buffer
+	jobs := []*pb.Job{
+		{JobId: "0001", State: pb.JobState_JOB_STATE_SUCCEEDED, Infeasible: true},
+		{JobId: "0002", State: pb.JobState_JOB_STATE_SUCCEEDED},
+	}
+	if err := writeJobList(&b, jobs); err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(b.String(), "\n")
+	if len(lines) < 3 || !strings.Contains(lines[1], "succeeded, infeasible") || strings.Contains(lines[2], "infeasible") {
+		t.Errorf("list does not mark only the infeasible job:\n%s", b.String())
+	}
+}

@@ -246,7 +246,8 @@ func TestServeClientCommands(t *testing.T) {
 	t.Run("eval", func(t *testing.T) {
 		r := mustRun(t, exitOK, nil, s.client("eval", "--job", id, "--setup", testdataPath("candidate-setup.yaml"), "--setup", testdataPath("setup-jacking.yaml"))...)
 		for _, want := range []string{"Ashgrove Ring, fast sweepers", "Tolvane Hill, rough slow section", "constraints: all met", "constraints: NOT met", cautionText,
-			"car at speed", "ride height at speed mm F/R", "bump-stop gap left mm FL/FR/RL/RR"} {
+			"car at speed", "ride height at speed mm F/R", "bump-stop gap left mm FL/FR/RL/RR",
+			"undamped Hz", "damped Hz", "modal ratio", "hand ratio", "the tyres in series leave the dampers", "overdamped (decay "} {
 			if !strings.Contains(r.stdout, want) {
 				t.Errorf("eval lacks %q:\n%s", want, r.stdout)
 			}

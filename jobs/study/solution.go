@@ -32,9 +32,13 @@ type Solution struct {
 
 // CaseDetail is one road case of a solution.
 type CaseDetail struct {
-	Metrics  model.CaseMetrics
-	Modes    []model.Mode // at the case's speed
-	Warnings []string     // above the evaluator's threshold, and a failed modal analysis
+	Metrics model.CaseMetrics
+	Modes   []model.Mode // at the case's speed and equivalent slopes
+	// Hand holds heave, pitch and roll worked out by hand (tyres rigid)
+	// at the same speed and slopes, beside Modes; zero when the modal
+	// analysis failed.
+	Hand     [3]model.HandMode
+	Warnings []string // above the evaluator's threshold, and a failed modal analysis
 }
 
 // Evaluate computes everything a solution reports for setup s. A setup
@@ -62,8 +66,12 @@ func (pl *Plan) describe(sol *Solution, s model.Setup, r *model.Result) {
 	v := pl.eval.Vehicle()
 	threshold := pl.eval.WarnThreshold()
 	for i := range r.Cases {
-		modes, err := model.ModesAt(v, pl.eval.Case(i).Speed, r.Cases[i].EquivalentDamping)
+		speed, slopes := pl.eval.Case(i).Speed, r.Cases[i].EquivalentDamping
+		modes, err := model.ModesAt(v, speed, slopes)
 		c := CaseDetail{Metrics: r.Cases[i], Modes: modes, Warnings: r.Cases[i].WarningStrings(threshold)}
+		if err == nil {
+			c.Hand, err = model.HandModesAt(v, speed, slopes, modes)
+		}
 		if err != nil {
 			c.Warnings = append(c.Warnings, fmt.Sprintf("%s: modal analysis failed: %v", r.Cases[i].Case, err))
 		}

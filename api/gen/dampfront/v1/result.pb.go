@@ -807,8 +807,16 @@ type Mode struct {
 	PairDampingRatio float64 `protobuf:"fixed64,8,opt,name=pair_damping_ratio,json=pairDampingRatio,proto3" json:"pair_damping_ratio,omitempty"`
 	// -lambda of each real root of an overdamped mode, slowest first.
 	DecayRatesPerS []float64 `protobuf:"fixed64,9,rep,packed,name=decay_rates_per_s,json=decayRatesPerS,proto3" json:"decay_rates_per_s,omitempty"`
-	unknownFields  protoimpl.UnknownFields
-	sizeCache      protoimpl.SizeCache
+	// Heave, pitch and roll of a road case only (0 otherwise, and in
+	// HandMode.modal, which carries its own): the hand method's ratio of
+	// the mode alone on the wheel rates (and bars in roll), tyres rigid,
+	// at the same slopes as modal_damping_ratio (dimensionless).
+	HandDampingRatio float64 `protobuf:"fixed64,10,opt,name=hand_damping_ratio,json=handDampingRatio,proto3" json:"hand_damping_ratio,omitempty"`
+	// Why modal_damping_ratio differs from hand_damping_ratio, one line
+	// (HandMode.reason).
+	HandReason    string `protobuf:"bytes,11,opt,name=hand_reason,json=handReason,proto3" json:"hand_reason,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *Mode) Reset() {
@@ -888,6 +896,20 @@ func (x *Mode) GetDecayRatesPerS() []float64 {
 		return x.DecayRatesPerS
 	}
 	return nil
+}
+
+func (x *Mode) GetHandDampingRatio() float64 {
+	if x != nil {
+		return x.HandDampingRatio
+	}
+	return 0
+}
+
+func (x *Mode) GetHandReason() string {
+	if x != nil {
+		return x.HandReason
+	}
+	return ""
 }
 
 // DamperCurve is one corner's force-velocity table at the component:
@@ -1200,7 +1222,7 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x18bump_stop_gap_at_speed_m\x18\r \x01(\x01R\x13bumpStopGapAtSpeedM\"e\n" +
 	"\vAxleMetrics\x12'\n" +
 	"\x10ride_height_sd_m\x18\x01 \x01(\x01R\rrideHeightSdM\x12-\n" +
-	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\"\xd0\x02\n" +
+	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\"\x9f\x03\n" +
 	"\x04Mode\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12.\n" +
 	"\x13damped_frequency_hz\x18\x03 \x01(\x01R\x11dampedFrequencyHz\x12\x1e\n" +
@@ -1210,7 +1232,11 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x15undamped_frequency_hz\x18\x06 \x01(\x01R\x13undampedFrequencyHz\x12.\n" +
 	"\x13modal_damping_ratio\x18\a \x01(\x01R\x11modalDampingRatio\x12,\n" +
 	"\x12pair_damping_ratio\x18\b \x01(\x01R\x10pairDampingRatio\x12)\n" +
-	"\x11decay_rates_per_s\x18\t \x03(\x01R\x0edecayRatesPerSJ\x04\b\x02\x10\x03J\x04\b\x04\x10\x05R\ffrequency_hzR\rdamping_ratio\"\x85\x04\n" +
+	"\x11decay_rates_per_s\x18\t \x03(\x01R\x0edecayRatesPerS\x12,\n" +
+	"\x12hand_damping_ratio\x18\n" +
+	" \x01(\x01R\x10handDampingRatio\x12\x1f\n" +
+	"\vhand_reason\x18\v \x01(\tR\n" +
+	"handReasonJ\x04\b\x02\x10\x03J\x04\b\x04\x10\x05R\ffrequency_hzR\rdamping_ratio\"\x85\x04\n" +
 	"\vDamperCurve\x124\n" +
 	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12'\n" +
 	"\x10velocity_m_per_s\x18\x02 \x03(\x01R\rvelocityMPerS\x12\x17\n" +
