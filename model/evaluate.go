@@ -205,12 +205,13 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[nDamp]wheelDamper, ws *worksp
 	cd := &e.cases[ci]
 	linear := true
 	var c [nDamp]float64
-	for i, d := range dampers {
+	for i := range dampers {
+		d := &dampers[i]
 		c[i] = (d.cb + d.cr) / 2
 		if c[i] == 0 {
 			continue // no heave damper on this axle
 		}
-		if (d.vb > 0 && d.rb != 1) || (d.vr > 0 && d.rr != 1) {
+		if !d.linear() {
 			linear = false
 		}
 	}

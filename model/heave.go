@@ -111,8 +111,8 @@ func (v *Vehicle) heaveDampers(s *Setup) [2]wheelDamper {
 	cc := v.HeaveCriticalDamping()
 	var out [2]wheelDamper
 	for ax := range out {
-		if s.Heave[ax].given() && v.Heave[ax].has() {
-			out[ax] = newWheelDamper(s.Heave[ax], cc[ax], v.Heave[ax].MotionRatio)
+		if a := &s.Heave[ax]; a.given() && v.Heave[ax].has() {
+			out[ax] = a.axleDamper(a.BumpRatio*cc[ax], a.ReboundRatio*cc[ax], v.Heave[ax].MotionRatio)
 		}
 	}
 	return out

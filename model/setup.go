@@ -23,6 +23,23 @@ type AxleDamping struct {
 	// digressive. 0 means 1.
 	HighSpeedBump    float64
 	HighSpeedRebound float64
+
+	// The rest of the damper's hardware (see hardware.go); the zero
+	// values give the one-knee curve above.
+
+	// StagesBump and StagesRebound are further knees above the first, in
+	// increasing velocity (a multi-stage digressive or progressive curve).
+	StagesBump, StagesRebound [MaxStages]Stage
+	// BlowOffBump and BlowOffRebound are blow-off forces at the damper
+	// (N), 0 = none: the first knee sits where the low-speed force reaches
+	// them, instead of at KneeBump/KneeRebound.
+	BlowOffBump, BlowOffRebound float64
+	// Friction is the Coulomb friction force at the damper (N), both
+	// directions.
+	Friction float64
+	// GasForce is the gas force at the damper (N), extending it; part of
+	// the rest figures, not of the dynamics (see hardware.go).
+	GasForce float64
 }
 
 // Setup is the damper setting of the car.
@@ -30,13 +47,13 @@ type Setup struct {
 	Axles [2]AxleDamping // front, rear
 	// Heave is each axle's heave damper, front and rear, its ratios taken
 	// of the axle's heave critical damping (Vehicle.HeaveCriticalDamping)
-	// and its knees at the element; the zero value is none. Only an axle
-	// with a heave element (Vehicle.Heave) may have one.
+	// and its knees, forces and hardware at the element; the zero value is
+	// none. Only an axle with a heave element (Vehicle.Heave) may have one.
 	Heave [2]AxleDamping
 }
 
 // given reports whether a heave damper setting is given (any field set).
-func (a AxleDamping) given() bool { return a != AxleDamping{} }
+func (a *AxleDamping) given() bool { return *a != AxleDamping{} }
 
 func factorOr1(r float64) float64 {
 	if r == 0 {
@@ -49,32 +66,26 @@ func factorOr1(r float64) float64 {
 // knees and high-speed factors in their plausible ranges (see Limit).
 func (s *Setup) Validate() error {
 	var p problems
-	for ax, a := range s.Axles {
-		a.validate(&p, AxleNames[ax]+".")
+	for ax := range s.Axles {
+		s.Axles[ax].validate(&p, AxleNames[ax]+".")
 	}
-	for ax, a := range s.Heave {
-		if a.given() {
-			a.validate(&p, fmt.Sprintf("heave[%d].", ax))
+	for ax := range s.Heave {
+		if s.Heave[ax].given() {
+			s.Heave[ax].validate(&p, fmt.Sprintf("heave[%d].", ax))
 		}
 	}
 	return p.err()
 }
 
-// validate checks one damper setting, its fields named under prefix.
-func (a AxleDamping) validate(p *problems, f string) {
+// validate checks one damper setting, its fields named under prefix f.
+func (a *AxleDamping) validate(p *problems, f string) {
 	p.in(f+"bump_ratio", a.BumpRatio, "AxleDamping.ratio")
 	p.in(f+"rebound_ratio", a.ReboundRatio, "AxleDamping.ratio")
 	p.inOrZero(f+"knee_bump_m_per_s", a.KneeBump, "AxleDamping.knee_m_per_s")
 	p.inOrZero(f+"knee_rebound_m_per_s", a.KneeRebound, "AxleDamping.knee_m_per_s")
 	p.inOrZero(f+"high_speed_bump", a.HighSpeedBump, "AxleDamping.high_speed")
 	p.inOrZero(f+"high_speed_rebound", a.HighSpeedRebound, "AxleDamping.high_speed")
-}
-
-// wheelDamper is one corner's damper referred to the wheel.
-type wheelDamper struct {
-	cb, cr float64 // low-speed slopes at the wheel (N s/m)
-	vb, vr float64 // knee velocities at the wheel (m/s), 0 = none
-	rb, rr float64 // high-speed factors
+	a.checkHardware(p, f)
 }
 
 // wheelDampers converts the setup to per-corner dampers at the wheel.
@@ -82,38 +93,10 @@ func (v *Vehicle) wheelDampers(s *Setup) [4]wheelDamper {
 	cc := v.CriticalDamping()
 	var out [4]wheelDamper
 	for i := range out {
-		out[i] = newWheelDamper(s.Axles[i/2], cc[i], v.Corners[i].DamperMotionRatio)
+		a := &s.Axles[i/2]
+		out[i] = a.axleDamper(a.BumpRatio*cc[i], a.ReboundRatio*cc[i], v.Corners[i].DamperMotionRatio)
 	}
 	return out
-}
-
-// newWheelDamper refers a damper setting to its coordinate: ratios of the
-// critical damping cc there (N s/m), knees at the component divided by the
-// motion ratio mr (component travel per coordinate travel). The corner
-// dampers (coordinate: the wheel's travel) and the heave dampers (the
-// axle's mean wheel travel) are both built here.
-func newWheelDamper(a AxleDamping, cc, mr float64) wheelDamper {
-	return wheelDamper{
-		cb: a.BumpRatio * cc, cr: a.ReboundRatio * cc,
-		vb: a.KneeBump / mr, vr: a.KneeRebound / mr,
-		rb: factorOr1(a.HighSpeedBump), rr: factorOr1(a.HighSpeedRebound),
-	}
-}
-
-// force is the damper force at the wheel for wheel velocity v (bump > 0).
-func (d wheelDamper) force(v float64) float64 {
-	if v >= 0 {
-		return pieceForce(v, d.cb, d.vb, d.rb)
-	}
-	return -pieceForce(-v, d.cr, d.vr, d.rr)
-}
-
-// pieceForce is c·v below the knee vk and c·(vk + r(v - vk)) above it.
-func pieceForce(v, c, vk, r float64) float64 {
-	if vk <= 0 || v <= vk {
-		return c * v
-	}
-	return c * (vk + r*(v-vk))
 }
 
 func (a AxleDamping) String() string {
@@ -129,11 +112,11 @@ var (
 
 // ok is a cheap allocation-free form of Validate for the hot path.
 func (s *Setup) ok() bool {
-	for ax, a := range s.Axles {
-		if h := s.Heave[ax]; h.given() && !h.ok() {
+	for i := range s.Axles {
+		if !s.Axles[i].ok() {
 			return false
 		}
-		if !a.ok() {
+		if h := &s.Heave[i]; h.given() && !h.ok() {
 			return false
 		}
 	}
@@ -141,7 +124,10 @@ func (s *Setup) ok() bool {
 }
 
 // ok is the allocation-free check of one damper setting.
-func (a AxleDamping) ok() bool {
+func (a *AxleDamping) ok() bool {
+	if !a.hardwareOK() {
+		return false
+	}
 	if !ratioLimit.Contains(a.BumpRatio) || !ratioLimit.Contains(a.ReboundRatio) {
 		return false
 	}
