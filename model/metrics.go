@@ -52,6 +52,24 @@ type CaseMetrics struct {
 	PitchShift      float64    // mean pitch change, + nose up (rad)
 	TravelShift     [4]float64 // mean travel change, + bump (m)
 
+	// The platform as the aero sees it (see ReferencePoint and
+	// newPlatformRows): the covariance of the front and rear ride heights
+	// relative to the road (m²); the total downforce's standard deviation
+	// and mean change from jacking (N), from the aero map linearised at
+	// the operating point, dD = -1ᵀ K_a dh; the aero balance's (front
+	// share of the downforce) standard deviation and mean change from
+	// jacking (-), 0 without downforce.
+	RideHeightCovariance float64
+	DownforceSD          float64
+	DownforceShift       float64
+	BalanceSD            float64
+	BalanceShift         float64
+
+	// Points holds the figures of the vehicle's reference points, the
+	// first NumPoints of them (ReferencePoints gives them as a slice).
+	Points    [MaxReferencePoints]PointMetrics
+	NumPoints int
+
 	Iterations int      // fixed-point iterations of the linearisation
 	Warnings   Warnings // validity flags
 }
@@ -65,6 +83,9 @@ const (
 	// WarnBumpStop: some corner's bump-stop contact probability exceeds
 	// the threshold.
 	WarnBumpStop
+	// WarnFloorContact: some reference point's ground-contact probability
+	// exceeds the threshold.
+	WarnFloorContact
 	// WarnPacker: some axle's packer contact probability exceeds the
 	// threshold.
 	WarnPacker
@@ -91,6 +112,12 @@ func (m *CaseMetrics) WarningStrings(threshold float64) []string {
 				m.Case, AxleNames[ax], 100*m.PackerProbability[ax], 100*threshold))
 		}
 	}
+	for _, p := range m.ReferencePoints() {
+		if m.Warnings&WarnFloorContact != 0 && p.ContactProbability > threshold {
+			out = append(out, fmt.Sprintf("%s: reference point %q ground-contact probability %.1f%% exceeds %.1f%%: the linear model does not hold",
+				m.Case, p.Name, 100*p.ContactProbability, 100*threshold))
+		}
+	}
 	return out
 }
 
@@ -114,6 +141,10 @@ func (m *CaseMetrics) checkFinite() error {
 	for _, a := range [...]*[2]float64{&m.HeaveTravelSD, &m.HeaveVelocitySD, &m.HeaveEquivalentDamping, &m.PackerProbability} {
 		sum += a[0]*0 + a[1]*0
 	}
+	sum += m.RideHeightCovariance*0 + m.DownforceSD*0 + m.DownforceShift*0 + m.BalanceSD*0 + m.BalanceShift*0
+	for _, p := range m.ReferencePoints() {
+		sum += p.HeightAtSpeed*0 + p.Shift*0 + p.SD*0 + p.ContactProbability*0
+	}
 	if sum == 0 {
 		return nil
 	}
@@ -131,6 +162,13 @@ func (m *CaseMetrics) checkFinite() error {
 		{"pitch_shift_rad", []float64{m.PitchShift}}, {"travel_shift_m", m.TravelShift[:]},
 		{"heave_travel_sd_m", m.HeaveTravelSD[:]}, {"heave_velocity_sd_m_per_s", m.HeaveVelocitySD[:]},
 		{"heave_equivalent_damping_n_s_per_m", m.HeaveEquivalentDamping[:]}, {"packer_probability", m.PackerProbability[:]},
+		{"ride_height_covariance_m2", []float64{m.RideHeightCovariance}},
+		{"downforce_sd_n", []float64{m.DownforceSD}}, {"downforce_shift_n", []float64{m.DownforceShift}},
+		{"balance_sd", []float64{m.BalanceSD}}, {"balance_shift", []float64{m.BalanceShift}},
+		{"reference_points.height_at_speed_m", pointValues(m, func(p *PointMetrics) float64 { return p.HeightAtSpeed })},
+		{"reference_points.shift_m", pointValues(m, func(p *PointMetrics) float64 { return p.Shift })},
+		{"reference_points.sd_m", pointValues(m, func(p *PointMetrics) float64 { return p.SD })},
+		{"reference_points.contact_probability", pointValues(m, func(p *PointMetrics) float64 { return p.ContactProbability })},
 	} {
 		for i, v := range f.v {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -139,6 +177,15 @@ func (m *CaseMetrics) checkFinite() error {
 		}
 	}
 	return nil
+}
+
+// pointValues lists one figure of every reference point of m.
+func pointValues(m *CaseMetrics, f func(*PointMetrics) float64) []float64 {
+	out := make([]float64, m.NumPoints)
+	for i := range out {
+		out[i] = f(&m.Points[i])
+	}
+	return out
 }
 
 // Result is the evaluation of one setup over all road cases.

@@ -55,6 +55,11 @@ type Vehicle struct {
 	// plank) above the ground. Needed by a ride-height aero map; 0 = not
 	// given, and ride heights are then reported as changes from rest.
 	RestRideHeight [2]float64
+
+	// ReferencePoints are points of the underside (splitter, plank) whose
+	// height and ground-contact probability each case reports (see
+	// ReferencePoint); at most MaxReferencePoints.
+	ReferencePoints []ReferencePoint
 }
 
 // Corner is one wheel station.
@@ -269,5 +274,6 @@ func (v *Vehicle) Validate() error {
 	for ax := range v.Heave {
 		v.Heave[ax].validate(&p, fmt.Sprintf("heave[%d].", ax))
 	}
+	v.validateReferencePoints(&p)
 	return p.err()
 }
