@@ -146,6 +146,34 @@ type timeModel struct {
 	// road, w and ẇ) or inWidthForced (then nDOF generalised forces
 	// follow, see timeModel.accel).
 	width int
+	// xTerms and inTerms are the non-zero entries of K, C and of Bk, Bc
+	// (see sparseTerms): the matrices are mostly zero, and accel is the
+	// hot loop of every time-domain run.
+	xTerms, inTerms []sysTerm
+}
+
+// sysTerm is one non-zero entry pair: row r, column c of K and C (or of
+// Bk and Bc).
+type sysTerm struct {
+	r, c int
+	k, d float64
+}
+
+// sparseTerms lists the non-zero entries of the system's matrices.
+func sparseTerms(s *system) (xs, ins []sysTerm) {
+	for a := 0; a < nDOF; a++ {
+		for b := 0; b < nDOF; b++ {
+			if s.k[a][b] != 0 || s.c[a][b] != 0 {
+				xs = append(xs, sysTerm{a, b, s.k[a][b], s.c[a][b]})
+			}
+		}
+		for q := 0; q < nIn; q++ {
+			if s.bk[a][q] != 0 || s.bc[a][q] != 0 {
+				ins = append(ins, sysTerm{a, q, s.bk[a][q], s.bc[a][q]})
+			}
+		}
+	}
+	return xs, ins
 }
 
 // Input sample widths (see timeModel.width).
@@ -154,8 +182,12 @@ const (
 	inWidthForced = 2*nIn + nDOF
 )
 
-// sampleRecorder receives the outputs at each recorded step.
-type sampleRecorder interface{ add(o *timeSample) }
+// sampleRecorder receives the outputs at each recorded step, in a
+// sample of its own (so that the hot loop allocates none).
+type sampleRecorder interface {
+	add(o *timeSample)
+	buffer() *timeSample
+}
 
 func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) (*timeModel, error) {
 	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.wheelDampers(s), static: op.TyreLoad,
@@ -163,6 +195,7 @@ func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) 
 	for i := range m.minv {
 		m.minv[i] = 1 / m.sys.m[i]
 	}
+	m.xTerms, m.inTerms = sparseTerms(m.sys)
 	for i := 0; i < 4; i++ {
 		m.kt[i], m.ct[i] = v.Corners[i].TyreRate, v.Corners[i].TyreDamping
 		m.mr[i] = v.Corners[i].DamperMotionRatio
@@ -209,15 +242,11 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 		copy(f[:], in[inWidthRoad:inWidthForced])
 	}
 	in = in[:inWidthRoad]
-	for a := 0; a < nDOF; a++ {
-		sum := f[a]
-		for b := 0; b < nDOF; b++ {
-			sum -= s.k[a][b]*x[b] + s.c[a][b]*xd[b]
-		}
-		for q := 0; q < nIn; q++ {
-			sum += s.bk[a][q]*in[q] + s.bc[a][q]*in[4+q]
-		}
-		f[a] = sum
+	for _, t := range m.xTerms {
+		f[t.r] -= t.k*x[t.c] + t.d*xd[t.c]
+	}
+	for _, t := range m.inTerms {
+		f[t.r] += t.k*in[t.c] + t.d*in[nIn+t.c]
 	}
 	for i := 0; i < 4; i++ {
 		d := &s.d[i]
@@ -274,7 +303,7 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 	period := len(in) / w
 	x, xd := x0, [nDOF]float64{}
 	var k1x, k1v, k2x, k2v, k3x, k3v, k4x, k4v, xs, vs [nDOF]float64
-	var smp timeSample
+	smp := rec.buffer()
 	idx := ((-2*settleSteps)%period + period) % period
 	for n := -settleSteps; n < steps; n++ {
 		i1 := idx + 1
@@ -284,7 +313,7 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 		}
 		var o *timeSample
 		if n >= 0 {
-			o = &smp
+			o = smp
 		}
 		// k1 at t_n
 		m.accel(&x, &xd, in[w*idx:w*idx+w], &k1v, o)

@@ -206,7 +206,12 @@ func TestTransientSingleRollDOF(t *testing.T) {
 }
 
 // sampleLog keeps every recorded sample's outputs.
-type sampleLog struct{ out [][nOut]float64 }
+type sampleLog struct {
+	out [][nOut]float64
+	smp timeSample
+}
+
+func (s *sampleLog) buffer() *timeSample { return &s.smp }
 
 func (s *sampleLog) add(o *timeSample) { s.out = append(s.out, o.out) }
 
