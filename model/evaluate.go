@@ -52,6 +52,8 @@ type Evaluator struct {
 	bands [4][]float64 // band weights for the tails
 	cases []caseData
 	pool  sync.Pool
+	// transients are the manoeuvre and kerb cases (SetTransientCases).
+	transients []*transientCase
 }
 
 // caseData is one road case prepared on the grid.
@@ -197,7 +199,8 @@ func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
 			return err
 		}
 	}
-	return nil
+	corners := [4]wheelDamper(dampers[:4])
+	return e.evaluateTransients(&corners, dst)
 }
 
 // evaluateCase runs the linearisation to its fixed point on case ci and

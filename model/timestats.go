@@ -80,7 +80,10 @@ type timeStats struct {
 	air, above [4]int
 	packer     [2]int // samples on each axle's packer
 	peaks      Peaks
+	smp        timeSample
 }
+
+func (s *timeStats) buffer() *timeSample { return &s.smp }
 
 func newTimeStats(gap [4]float64, total int) *timeStats {
 	s := &timeStats{gap: gap, total: total}
