@@ -1,7 +1,6 @@
 package model
 
 import (
-	"fmt"
 	"math"
 )
 
@@ -18,12 +17,7 @@ const (
 
 var kerbShapeNames = map[KerbShape]string{KerbHalfSine: "half_sine", KerbTrapezoid: "trapezoid", KerbRampStep: "ramp_step"}
 
-func (s KerbShape) String() string {
-	if n, ok := kerbShapeNames[s]; ok {
-		return n
-	}
-	return fmt.Sprintf("kerb_shape(%d)", int(s))
-}
+func (s KerbShape) String() string { return enumName(kerbShapeNames, s, "kerb_shape") }
 
 // KerbSide says which track runs over the kerb.
 type KerbSide int
@@ -37,12 +31,7 @@ const (
 
 var kerbSideNames = map[KerbSide]string{KerbLeft: "left", KerbRight: "right", KerbBoth: "both"}
 
-func (s KerbSide) String() string {
-	if n, ok := kerbSideNames[s]; ok {
-		return n
-	}
-	return fmt.Sprintf("kerb_side(%d)", int(s))
-}
+func (s KerbSide) String() string { return enumName(kerbSideNames, s, "kerb_side") }
 
 // Kerb is a kerb case: a discrete kerb or bump under one or both tracks,
 // run over at a constant speed from the car's operating point; the rear

@@ -28,12 +28,7 @@ var shapeNames = map[ManoeuvreShape]string{
 	ShapeTurnIn: "turn_in", ShapeTrailBrake: "trail_brake", ShapeTable: "table",
 }
 
-func (s ManoeuvreShape) String() string {
-	if n, ok := shapeNames[s]; ok {
-		return n
-	}
-	return fmt.Sprintf("shape(%d)", int(s))
-}
+func (s ManoeuvreShape) String() string { return enumName(shapeNames, s, "shape") }
 
 // Manoeuvre is a driver-input case: the longitudinal and lateral
 // acceleration of the sprung CG against time, with the speed, from the
@@ -240,4 +235,12 @@ func (m *Manoeuvre) speedRange() (lo, hi float64) {
 		lo, hi = math.Min(lo, r.Speed), math.Max(hi, r.Speed)
 	}
 	return lo, hi
+}
+
+// enumName is the name of k in names, or kind(k) for an unknown value.
+func enumName[K ~int](names map[K]string, k K, kind string) string {
+	if n, ok := names[k]; ok {
+		return n
+	}
+	return fmt.Sprintf("%s(%d)", kind, int(k))
 }
