@@ -74,6 +74,7 @@ type jobView struct {
 	Headers        []header
 	Rows           []solutionRow
 	Curves         *curvesView
+	AtSpeed        *atSpeedView
 	Downloads      []link
 }
 
@@ -181,6 +182,7 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 			c.SVG = inlineSVG(b)
 		}
 		v.Curves = c
+		v.AtSpeed = newAtSpeedView(s)
 	}
 }
 
