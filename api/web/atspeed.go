@@ -1,16 +1,15 @@
 package web
 
 import (
-	"strconv"
-
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/model/tradeunit"
 )
 
 // atSpeedView is the car at each road case's speed for one solution: the
 // operating point under downforce, what the aero sees (downforce and
-// balance variation) and the reference points' heights and ground-contact
-// probabilities.
+// balance variation, api.AeroColumns) and the reference points' heights
+// and ground-contact probabilities (api.PointColumns).
 type atSpeedView struct {
 	Index        int32
 	Headers      []header
@@ -19,19 +18,10 @@ type atSpeedView struct {
 	PointRows    [][]string
 }
 
-// Quantities of the car-at-speed section, from the one trade-unit table.
+// Quantities of the operating point in the car-at-speed section.
 var (
-	qRideAtSpeed    = shown(tradeunit.RideHeightSpeed)
-	qDownforce      = shown(tradeunit.Downforce)
-	qBalance        = shown(tradeunit.BalanceAtSpeed)
-	qDownforceSD    = shown(tradeunit.DownforceSD)
-	qDownforceShift = shown(tradeunit.DownforceShift)
-	qBalanceSD      = shown(tradeunit.BalanceSD)
-	qBalanceShift   = shown(tradeunit.BalanceShift)
-	qPointHeight    = shown(tradeunit.PointHeight)
-	qPointShift     = shown(tradeunit.PointShift)
-	qPointSD        = shown(tradeunit.PointSD)
-	qContact        = shown(tradeunit.GroundContact)
+	qRideAtSpeed = shown(tradeunit.RideHeightSpeed)
+	qDownforce   = shown(tradeunit.Downforce)
 )
 
 // newAtSpeedView is solution s's car-at-speed section, nil when the
@@ -42,29 +32,40 @@ func newAtSpeedView(s *pb.Solution) *atSpeedView {
 		return nil
 	}
 	v := &atSpeedView{Index: s.GetIndex()}
-	v.Headers = []header{{Label: "Road case"}, hdr(qRideAtSpeed, " F/R"), hdr(qDownforce, " F/R"),
-		hdr(qBalance, ""), hdr(qDownforceSD, ""), hdr(qDownforceShift, ""), hdr(qBalanceSD, ""), hdr(qBalanceShift, "")}
+	v.Headers = []header{{Label: "Road case"}, hdr(qRideAtSpeed, " F/R"), hdr(qDownforce, " F/R")}
+	for _, c := range api.AeroColumns {
+		v.Headers = append(v.Headers, hdr(shown(c.Quantity), ""))
+	}
 	for _, m := range cases {
 		op := m.GetAtSpeed()
 		row := []string{m.GetRoadCase(),
 			qRideAtSpeed.text(op.GetFrontRideHeightM()) + " / " + qRideAtSpeed.text(op.GetRearRideHeightM()),
 			qDownforce.text(op.GetFrontDownforceN()) + " / " + qDownforce.text(op.GetRearDownforceN())}
-		if a := m.GetAero(); a != nil {
-			row = append(row, qBalance.text(a.GetBalanceAtSpeed()), qDownforceSD.text(a.GetDownforceSdN()),
-				qDownforceShift.text(a.GetDownforceShiftN()), qBalanceSD.text(a.GetBalanceSd()), qBalanceShift.text(a.GetBalanceShift()))
-		} else {
-			row = append(row, "–", "–", "–", "–", "–")
+		for _, c := range api.AeroColumns {
+			if m.GetAero() == nil {
+				row = append(row, "–")
+				continue
+			}
+			row = append(row, shown(c.Quantity).text(c.Value(m.GetAero())))
 		}
 		v.Rows = append(v.Rows, row)
 		for _, p := range m.GetReferencePoints() {
-			v.PointRows = append(v.PointRows, []string{p.GetName(), m.GetRoadCase(), qPointHeight.text(p.GetHeightAtSpeedM()),
-				qPointShift.text(p.GetHeightShiftM()), qPointSD.text(p.GetHeightSdM()),
-				strconv.FormatFloat(p.GetContactProbability()*qContact.scale, 'g', 3, 64)})
+			prow := []string{p.GetName(), m.GetRoadCase()}
+			for _, c := range api.PointColumns {
+				if c.Quantity == tradeunit.GroundContact {
+					prow = append(prow, tradeunit.ProbabilityText(c.Value(p)))
+					continue
+				}
+				prow = append(prow, shown(c.Quantity).text(c.Value(p)))
+			}
+			v.PointRows = append(v.PointRows, prow)
 		}
 	}
 	if len(v.PointRows) > 0 {
-		v.PointHeaders = []header{{Label: "Reference point"}, {Label: "Road case"}, hdr(qPointHeight, ""), hdr(qPointShift, ""),
-			hdr(qPointSD, ""), hdr(qContact, "")}
+		v.PointHeaders = []header{{Label: "Reference point"}, {Label: "Road case"}}
+		for _, c := range api.PointColumns {
+			v.PointHeaders = append(v.PointHeaders, hdr(shown(c.Quantity), ""))
+		}
 	}
 	return v
 }

@@ -3,29 +3,16 @@ package main
 import (
 	"fmt"
 	"io"
-	"strconv"
 
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/model/tradeunit"
 )
 
-// Quantities of the aero platform and reference-point tables.
-var (
-	qBalance        = shown(tradeunit.BalanceAtSpeed)
-	qDownforceSD    = shown(tradeunit.DownforceSD)
-	qDownforceShift = shown(tradeunit.DownforceShift)
-	qBalanceSD      = shown(tradeunit.BalanceSD)
-	qBalanceShift   = shown(tradeunit.BalanceShift)
-	qPointHeight    = shown(tradeunit.PointHeight)
-	qPointShift     = shown(tradeunit.PointShift)
-	qPointSD        = shown(tradeunit.PointSD)
-	qContact        = shown(tradeunit.GroundContact)
-)
-
 // writeAeroPlatform prints what the aero sees on each road case: the
-// downforce and balance variation and the reference points' heights and
-// ground-contact probabilities. It prints nothing for a car without aero
-// or reference points.
+// downforce and balance variation (api.AeroColumns) and the reference
+// points' heights and ground-contact probabilities (api.PointColumns). It
+// prints nothing for a car without aero or reference points.
 func writeAeroPlatform(w io.Writer, cases []*pb.CaseMetrics) error {
 	aero, points := false, false
 	for _, m := range cases {
@@ -35,15 +22,21 @@ func writeAeroPlatform(w io.Writer, cases []*pb.CaseMetrics) error {
 	if aero {
 		fmt.Fprintln(w)
 		t := newTable(w, false)
-		t.row("aero platform", qBalance.header(), qDownforceSD.header(), qDownforceShift.header(), qBalanceSD.header(), qBalanceShift.header())
+		head := []string{"aero platform"}
+		for _, c := range api.AeroColumns {
+			head = append(head, shown(c.Quantity).header())
+		}
+		t.row(head...)
 		for _, m := range cases {
-			a := m.GetAero()
-			if a == nil {
-				t.row(m.GetRoadCase(), "-", "-", "-", "-", "-")
-				continue
+			cells := []string{m.GetRoadCase()}
+			for _, c := range api.AeroColumns {
+				if m.GetAero() == nil {
+					cells = append(cells, "-")
+					continue
+				}
+				cells = append(cells, tradeNum(shown(c.Quantity), c.Value(m.GetAero())))
 			}
-			t.row(m.GetRoadCase(), tradeNum(qBalance, a.GetBalanceAtSpeed()), tradeNum(qDownforceSD, a.GetDownforceSdN()),
-				tradeNum(qDownforceShift, a.GetDownforceShiftN()), tradeNum(qBalanceSD, a.GetBalanceSd()), tradeNum(qBalanceShift, a.GetBalanceShift()))
+			t.row(cells...)
 		}
 		if err := t.flush(); err != nil {
 			return err
@@ -54,19 +47,23 @@ func writeAeroPlatform(w io.Writer, cases []*pb.CaseMetrics) error {
 	}
 	fmt.Fprintln(w)
 	t := newTable(w, false)
-	t.row("reference point", "road case", qPointHeight.header(), qPointShift.header(), qPointSD.header(), qContact.header())
+	head := []string{"reference point", "road case"}
+	for _, c := range api.PointColumns {
+		head = append(head, shown(c.Quantity).header())
+	}
+	t.row(head...)
 	for _, m := range cases {
 		for _, p := range m.GetReferencePoints() {
-			t.row(p.GetName(), m.GetRoadCase(), tradeNum(qPointHeight, p.GetHeightAtSpeedM()), tradeNum(qPointShift, p.GetHeightShiftM()),
-				tradeNum(qPointSD, p.GetHeightSdM()), probabilityText(p.GetContactProbability()))
+			cells := []string{p.GetName(), m.GetRoadCase()}
+			for _, c := range api.PointColumns {
+				if c.Quantity == tradeunit.GroundContact {
+					cells = append(cells, tradeunit.ProbabilityText(c.Value(p)))
+					continue
+				}
+				cells = append(cells, tradeNum(shown(c.Quantity), c.Value(p)))
+			}
+			t.row(cells...)
 		}
 	}
 	return t.flush()
-}
-
-// probabilityText writes a probability in per cent with three significant
-// digits: a ground-contact probability spans many decades (1e-12 % and
-// 3 % both matter), which fixed decimals would hide.
-func probabilityText(p float64) string {
-	return strconv.FormatFloat(qContact.trade(p), 'g', 3, 64)
 }

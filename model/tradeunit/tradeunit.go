@@ -18,6 +18,7 @@ package tradeunit
 
 import (
 	"math"
+	"strconv"
 	"strings"
 
 	"dampfront/model"
@@ -182,3 +183,10 @@ var (
 	RideHeightSpeed = Quantity{"ride height at speed", "Ride height at speed", Millimetre, 1, "ride_height_m"}
 	Downforce       = Quantity{"downforce", "Downforce", Newton, 0, "downforce_n"}
 )
+
+// ProbabilityText writes a probability that spans decades (a
+// ground-contact probability: 1e-12 and 0.03 both matter) in per cent with
+// three significant digits, which fixed decimals would hide.
+func ProbabilityText(p float64) string {
+	return strconv.FormatFloat(Percent.Of(p), 'g', 3, 64)
+}
