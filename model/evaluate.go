@@ -63,6 +63,7 @@ type caseData struct {
 	grid  *caseGrid
 	geo   outputGeometry
 	op    OperatingPoint // the car at the case's speed
+	plat  platformRows   // downforce, balance and reference points at op
 	modal modalRatios
 }
 
@@ -119,7 +120,7 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 			p.add(fmt.Sprintf("road_cases[%d].speed_m_per_s", i), "road case %q: %v", rc.Name, err)
 			continue
 		}
-		cd := caseData{rc: rc, sym: sym, op: op, base: newSystem(&e.v, &op.AeroStiffness)}
+		cd := caseData{rc: rc, sym: sym, op: op, base: newSystem(&e.v, &op.AeroStiffness), plat: newPlatformRows(&e.v, &op)}
 		for a := 0; a < nDOF; a++ {
 			var unit [nDOF]float64
 			unit[a] = 1
@@ -200,9 +201,10 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 	cd := &e.cases[ci]
 	linear := true
 	var c [4]float64
-	for i, d := range dampers {
+	for i := range dampers {
+		d := &dampers[i]
 		c[i] = (d.cb + d.cr) / 2
-		if (d.vb > 0 && d.rb != 1) || (d.vr > 0 && d.rr != 1) {
+		if !d.linear() {
 			linear = false
 		}
 	}
@@ -325,6 +327,7 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 	m.PitchSD = math.Sqrt(v[outPitch])
 	m.RollSD = math.Sqrt(v[outRoll])
 	m.HeaveAccelSD = math.Sqrt(v[outHeaveAcc])
+	cd.plat.fillPlatform(m, v, &xbar, e.opt.WarnThreshold)
 }
 
 // tailProb is P(X > margin) for X ~ N(0, sd²).

@@ -325,9 +325,8 @@ func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
 // SimulateCase).
 func (m *timeModel) timing() (h, settle, rho float64, err error) {
 	var cmax, cmin, kx [4]float64
-	for i, d := range m.damp {
-		cmax[i] = math.Max(math.Max(d.cb, d.cb*d.rb), math.Max(d.cr, d.cr*d.rr))
-		cmin[i] = math.Min(math.Min(d.cb, d.cb*d.rb), math.Min(d.cr, d.cr*d.rr))
+	for i := range m.damp {
+		cmin[i], cmax[i] = m.damp[i].slopeRange()
 		if m.stop[i] != nil {
 			kx[i] = m.stop[i].maxSlope()
 		}
