@@ -52,6 +52,8 @@ type Evaluator struct {
 	bands [4][]float64 // band weights for the tails
 	cases []caseData
 	pool  sync.Pool
+	// transients are the manoeuvre and kerb cases (SetTransientCases).
+	transients []*transientCase
 }
 
 // caseData is one road case prepared on the grid.
@@ -192,7 +194,7 @@ func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
 			return err
 		}
 	}
-	return nil
+	return e.evaluateTransients(&dampers, dst)
 }
 
 // evaluateCase runs the linearisation to its fixed point on case ci and

@@ -142,6 +142,18 @@ var plausible = map[string]Limit{
 	"BumpStop.deflection_m":           {Min: 0, Max: 0.3, OpenMin: true, Unit: "m", Slips: slipMm},
 	"BumpStop.force_n":                {Min: 0, Max: 1e6, Unit: "N"},
 	"EvaluatorOptions.warn_threshold": {Min: 0, Max: 1},
+
+	"LoadPaths.height_m":             {Min: 0.02, Max: 1.5, Unit: "m", Slips: slipMm},
+	"LoadPaths.roll_centre_height_m": {Min: -0.3, Max: 0.8, Unit: "m", Slips: slipMm},
+	"LoadPaths.anti":                 {Min: -0.5, Max: 1.5, Slips: slipPercent},
+	// A downforce car peaks near 5-6 g in braking and cornering; 8 g
+	// (78.5 m/s²) leaves a margin (common practice, no single source).
+	"Manoeuvre.acceleration_m_per_s2": {Min: -78.5, Max: 78.5, Unit: "m/s^2"},
+	"Manoeuvre.time_s":                {Min: 0, Max: 60, Unit: "s"},
+	"Kerb.height_m":                   {Min: 0.002, Max: 0.2, Unit: "m", Slips: slipMm},
+	"Kerb.length_m":                   {Min: 0.05, Max: 20, Unit: "m", Slips: slipMm},
+	"Transient.load_fraction":         {Min: 0, Max: 1, OpenMin: true},
+	"Constraint.time_s":               {Min: 0, Max: 60, OpenMin: true, Unit: "s"},
 }
 
 // PlausibleRanges returns the limits of every physical input, by the

@@ -168,4 +168,7 @@ func pointValues(m *CaseMetrics, f func(*PointMetrics) float64) []float64 {
 type Result struct {
 	Setup Setup
 	Cases []CaseMetrics
+	// Transients are the metrics of the manoeuvre and kerb cases, in the
+	// evaluator's order (see Evaluator.SetTransientCases).
+	Transients []TransientMetrics
 }

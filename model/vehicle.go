@@ -57,6 +57,10 @@ type Vehicle struct {
 	// height and ground-contact probability each case reports (see
 	// ReferencePoint); at most MaxReferencePoints.
 	ReferencePoints []ReferencePoint
+
+	// LoadPaths carries the heights and link geometry the manoeuvre
+	// cases need (see LoadPaths); the ride model does not use it.
+	LoadPaths LoadPaths
 }
 
 // Corner is one wheel station.
@@ -269,5 +273,6 @@ func (v *Vehicle) Validate() error {
 	}
 	v.Aero.validate(&p, "aero.", v.RestRideHeight)
 	v.validateReferencePoints(&p)
+	v.LoadPaths.validate(&p, "load_paths.")
 	return p.err()
 }
