@@ -104,6 +104,11 @@ var plausible = map[string]Limit{
 	"Corner.bump_stop_gap_m":        {Min: 0, Max: 0.3, Unit: "m", Slips: slipMm},
 	"Corner.sprung_load_n":          {Min: 100, Max: 5e4, Unit: "N"},
 
+	"HeaveElement.spring_rate_n_per_m": {Min: 0, Max: 1e7, Unit: "N/m", Slips: slipNPerMm},
+	"HeaveElement.motion_ratio":        {Min: 0.1, Max: 2},
+	"HeaveElement.packer_gap_m":        {Min: 0, Max: 0.3, Unit: "m", Slips: slipMm},
+	"HeaveElement.packer_rate_n_per_m": {Min: 1e3, Max: 1e8, Unit: "N/m", Slips: slipNPerMm},
+
 	"AntiRollBar.wheel_rate_n_per_m": {Min: 0, Max: 1e7, Unit: "N/m", Slips: slipNPerMm},
 	"AntiRollBar.bar_rate_n_per_m":   {Min: 1e3, Max: 1e8, Unit: "N/m", Slips: slipNPerMm},
 	"AntiRollBar.motion_ratio":       {Min: 0.05, Max: 2},
@@ -142,6 +147,18 @@ var plausible = map[string]Limit{
 	"BumpStop.deflection_m":           {Min: 0, Max: 0.3, OpenMin: true, Unit: "m", Slips: slipMm},
 	"BumpStop.force_n":                {Min: 0, Max: 1e6, Unit: "N"},
 	"EvaluatorOptions.warn_threshold": {Min: 0, Max: 1},
+
+	"LoadPaths.height_m":             {Min: 0.02, Max: 1.5, Unit: "m", Slips: slipMm},
+	"LoadPaths.roll_centre_height_m": {Min: -0.3, Max: 0.8, Unit: "m", Slips: slipMm},
+	"LoadPaths.anti":                 {Min: -0.5, Max: 1.5, Slips: slipPercent},
+	// A downforce car peaks near 5-6 g in braking and cornering; 8 g
+	// (78.5 m/s²) leaves a margin (common practice, no single source).
+	"Manoeuvre.acceleration_m_per_s2": {Min: -78.5, Max: 78.5, Unit: "m/s^2"},
+	"Manoeuvre.time_s":                {Min: 0, Max: 60, Unit: "s"},
+	"Kerb.height_m":                   {Min: 0.002, Max: 0.2, Unit: "m", Slips: slipMm},
+	"Kerb.length_m":                   {Min: 0.05, Max: 20, Unit: "m", Slips: slipMm},
+	"Transient.load_fraction":         {Min: 0, Max: 1, OpenMin: true},
+	"Constraint.time_s":               {Min: 0, Max: 60, OpenMin: true, Unit: "s"},
 }
 
 // PlausibleRanges returns the limits of every physical input, by the

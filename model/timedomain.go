@@ -129,12 +129,17 @@ func (o TimeOptions) validate(v *Vehicle) error {
 // case's speed: the linear system of newSystem (springs, bars, tyres, the
 // aero map linearised at the point, tyre damping: the same matrices as
 // the frequency-domain model) plus the piecewise dampers, the bump stops
-// (at the gap left at speed) and a tyre that cannot pull (from its load
-// at speed).
+// (at the gap left at speed), a tyre that cannot pull (from its load
+// at speed), and each axle's heave damper and packer (at the packer gap
+// left at speed).
 type timeModel struct {
 	sys    *system
 	minv   [nDOF]float64
-	damp   [4]wheelDamper
+	damp   [nDamp]wheelDamper // corners, then heave (see system.r)
+	heave  bool               // some axle has a heave element
+	mr3    [2]float64         // heave element motion ratios (0 = none)
+	packer [2]float64         // packer gap left at the operating point per axle, at the element (m), 0 = none
+	kp     [2]float64         // packer rate at the element (N/m), 0 = contact counted only
 	stop   [4]*BumpStop
 	gap    [4]float64 // bump-stop gap left at the operating point per corner (m), 0 = none
 	static [4]float64 // tyre load at the operating point (N)
@@ -142,14 +147,64 @@ type timeModel struct {
 	mr     [4]float64
 	a, b   float64
 	tf, tr float64
+	// width is the number of input values per half-step sample: 8 (the
+	// road, w and ẇ) or inWidthForced (then nDOF generalised forces
+	// follow, see timeModel.accel).
+	width int
+	// xTerms and inTerms are the non-zero entries of K, C and of Bk, Bc
+	// (see sparseTerms): the matrices are mostly zero, and accel is the
+	// hot loop of every time-domain run.
+	xTerms, inTerms []sysTerm
+}
+
+// sysTerm is one non-zero entry pair: row r, column c of K and C (or of
+// Bk and Bc).
+type sysTerm struct {
+	r, c int
+	k, d float64
+}
+
+// sparseTerms lists the non-zero entries of the system's matrices.
+func sparseTerms(s *system) (xs, ins []sysTerm) {
+	for a := 0; a < nDOF; a++ {
+		for b := 0; b < nDOF; b++ {
+			if s.k[a][b] != 0 || s.c[a][b] != 0 {
+				xs = append(xs, sysTerm{a, b, s.k[a][b], s.c[a][b]})
+			}
+		}
+		for q := 0; q < nIn; q++ {
+			if s.bk[a][q] != 0 || s.bc[a][q] != 0 {
+				ins = append(ins, sysTerm{a, q, s.bk[a][q], s.bc[a][q]})
+			}
+		}
+	}
+	return xs, ins
+}
+
+// Input sample widths (see timeModel.width).
+const (
+	inWidthRoad   = 2 * nIn
+	inWidthForced = 2*nIn + nDOF
+)
+
+// sampleRecorder receives the outputs at each recorded step, in a
+// sample of its own (so that the hot loop allocates none).
+type sampleRecorder interface {
+	add(o *timeSample)
+	buffer() *timeSample
 }
 
 func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) (*timeModel, error) {
-	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.wheelDampers(s), static: op.TyreLoad,
-		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear}
+	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.dampers(s), static: op.TyreLoad,
+		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, width: inWidthRoad,
+		heave: v.hasHeave(), mr3: v.heaveRatios(), packer: op.PackerGap}
+	for ax := range m.kp {
+		m.kp[ax] = v.Heave[ax].PackerRate
+	}
 	for i := range m.minv {
 		m.minv[i] = 1 / m.sys.m[i]
 	}
+	m.xTerms, m.inTerms = sparseTerms(m.sys)
 	for i := 0; i < 4; i++ {
 		m.kt[i], m.ct[i] = v.Corners[i].TyreRate, v.Corners[i].TyreDamping
 		m.mr[i] = v.Corners[i].DamperMotionRatio
@@ -172,6 +227,7 @@ func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) 
 // besides the accelerations.
 type timeSample struct {
 	out      [nOut]float64 // outputs in the frequency-domain order (outTyre...)
+	packer   [2]bool       // the axle's heave element is on its packer
 	force    [4]float64    // damper force at the wheel (N), + pushes apart
 	stopF    [4]float64    // bump-stop force at the wheel (N)
 	airborne [4]bool       // tyre carries no load
@@ -184,21 +240,31 @@ type timeSample struct {
 // compression D_i x - gap_i, and Δ_i = max(0, -(P_i + T_i)) puts back the
 // part of the linear tyre force T_i = kt(w_i - zu_i) + ct(ẇ_i - żu_i)
 // that would pull the tyre down (P_i its static load): the tyre force
-// P_i + T_i is clipped at zero. When o is not nil it also receives the
-// outputs, the heave acceleration included.
+// P_i + T_i is clipped at zero. An input sample of inWidthForced values
+// carries generalised forces f_e after the road (a manoeuvre's inertial
+// and link loads, see inertialLoads), added to the right-hand side. When
+// o is not nil it also receives the outputs, the heave acceleration
+// included.
+// A heave element adds R_hᵀ(F_h + P_h) to the sum, R_h = (D_L + D_R)/2
+// its axle's mean travel: its damper force wheelDamper.force(R_h ẋ) and
+// its packer's force MR3·k_p·(MR3 R_h x - gap) once the element travel
+// passes the gap; half of each goes to each corner of the axle.
 func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64, o *timeSample) {
 	s := m.sys
-	in = in[:8]
 	var f [nDOF]float64
-	for a := 0; a < nDOF; a++ {
-		sum := 0.0
-		for b := 0; b < nDOF; b++ {
-			sum -= s.k[a][b]*x[b] + s.c[a][b]*xd[b]
-		}
-		for q := 0; q < nIn; q++ {
-			sum += s.bk[a][q]*in[q] + s.bc[a][q]*in[4+q]
-		}
-		f[a] = sum
+	if len(in) >= inWidthForced {
+		copy(f[:], in[inWidthRoad:inWidthForced])
+	}
+	in = in[:inWidthRoad]
+	for _, t := range m.xTerms {
+		f[t.r] -= t.k*x[t.c] + t.d*xd[t.c]
+	}
+	for _, t := range m.inTerms {
+		f[t.r] += t.k*in[t.c] + t.d*in[nIn+t.c]
+	}
+	var share [4]float64 // each corner's half of its axle's heave force
+	if m.heave {
+		m.heaveForces(x, xd, &share, o)
 	}
 	for i := 0; i < 4; i++ {
 		d := &s.d[i]
@@ -211,6 +277,9 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 			fs = st.force(travel - m.gap[i])
 		}
 		g := fd + fs
+		if m.heave {
+			g += share[i]
+		}
 		f[0] += g // -D_iᵀ g with D_i = [-1, -x_i, -y_i, e_i]
 		f[1] -= d[1] * g
 		f[2] -= d[2] * g
@@ -244,15 +313,50 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 	}
 }
 
-// integrate runs RK4 at step h over the periodic input (2·steps half-step
-// samples of 8 values, one period = steps·h) from -settleSteps·h to
-// steps·h and hands the state at each recorded step t_n = n·h, n in
-// [0, steps), to rec. It allocates nothing.
-func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x0 [nDOF]float64, rec *timeStats) {
-	period := 2 * steps
+// heaveForces writes each corner's half of its axle's heave damper and
+// packer force (N, + pushes apart) to share, and the heave outputs to o
+// when it is not nil.
+func (m *timeModel) heaveForces(x, xd *[nDOF]float64, share *[4]float64, o *timeSample) {
+	s := m.sys
+	for ax := 0; ax < 2; ax++ {
+		if m.mr3[ax] == 0 {
+			continue
+		}
+		r := &s.r[dampHeave+ax]
+		u, ud := 0.0, 0.0
+		for a := 0; a < nDOF; a++ {
+			u += r[a] * x[a]
+			ud += r[a] * xd[a]
+		}
+		g := m.damp[dampHeave+ax].force(ud)
+		contact := false
+		if gap := m.packer[ax]; gap > 0 {
+			if pen := m.mr3[ax]*u - gap; pen > 0 {
+				contact = true
+				g += m.mr3[ax] * m.kp[ax] * pen
+			}
+		}
+		share[2*ax], share[2*ax+1] = g/2, g/2
+		if o != nil {
+			o.out[outWheelVel+dampHeave+ax] = ud
+			o.out[outAxleHeave+ax] = u
+			o.packer[ax] = contact
+		}
+	}
+}
+
+// integrate runs RK4 at step h over the periodic input (half-step
+// samples of m.width values; 2·steps of them make one period = steps·h,
+// and a buffer of 2·steps + 1 samples, not periodic, is read up to its
+// last) from -settleSteps·h to steps·h and hands the outputs at each
+// recorded step t_n = n·h, n in [0, steps), to rec. It allocates nothing
+// (rec aside).
+func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x0 [nDOF]float64, rec sampleRecorder) {
+	w := m.width
+	period := len(in) / w
 	x, xd := x0, [nDOF]float64{}
 	var k1x, k1v, k2x, k2v, k3x, k3v, k4x, k4v, xs, vs [nDOF]float64
-	var smp timeSample
+	smp := rec.buffer()
 	idx := ((-2*settleSteps)%period + period) % period
 	for n := -settleSteps; n < steps; n++ {
 		i1 := idx + 1
@@ -262,10 +366,10 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 		}
 		var o *timeSample
 		if n >= 0 {
-			o = &smp
+			o = smp
 		}
 		// k1 at t_n
-		m.accel(&x, &xd, in[8*idx:8*idx+8], &k1v, o)
+		m.accel(&x, &xd, in[w*idx:w*idx+w], &k1v, o)
 		k1x = xd
 		if o != nil {
 			rec.add(o)
@@ -274,19 +378,19 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 			xs[a] = x[a] + 0.5*h*k1x[a]
 			vs[a] = xd[a] + 0.5*h*k1v[a]
 		}
-		m.accel(&xs, &vs, in[8*i1:8*i1+8], &k2v, nil)
+		m.accel(&xs, &vs, in[w*i1:w*i1+w], &k2v, nil)
 		k2x = vs
 		for a := range xs {
 			xs[a] = x[a] + 0.5*h*k2x[a]
 			vs[a] = xd[a] + 0.5*h*k2v[a]
 		}
-		m.accel(&xs, &vs, in[8*i1:8*i1+8], &k3v, nil)
+		m.accel(&xs, &vs, in[w*i1:w*i1+w], &k3v, nil)
 		k3x = vs
 		for a := range xs {
 			xs[a] = x[a] + h*k3x[a]
 			vs[a] = xd[a] + h*k3v[a]
 		}
-		m.accel(&xs, &vs, in[8*i2:8*i2+8], &k4v, nil)
+		m.accel(&xs, &vs, in[w*i2:w*i2+w], &k4v, nil)
 		k4x = vs
 		for a := range x {
 			x[a] += h / 6 * (k1x[a] + 2*k2x[a] + 2*k3x[a] + k4x[a])
@@ -299,7 +403,7 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 // stateMatrixEigen returns the eigenvalues of the linear state matrix
 // [[0, I], [-M⁻¹(K + Dᵀ diag(kx) D), -M⁻¹(C + Dᵀ diag(c) D)]] (gonum
 // mat.Eigen).
-func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
+func stateMatrixEigen(s *system, c, kx [nDamp]float64) ([]complex128, error) {
 	sys := s.withDamping(c)
 	const n = 2 * nDOF
 	a := mat.NewDense(n, n, nil)
@@ -307,8 +411,10 @@ func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
 		a.Set(i, nDOF+i, 1)
 		for j := 0; j < nDOF; j++ {
 			k := sys.k[i][j]
-			for q := 0; q < 4; q++ {
-				k += s.d[q][i] * kx[q] * s.d[q][j]
+			for q := 0; q < nDamp; q++ {
+				if kx[q] != 0 {
+					k += s.r[q][i] * kx[q] * s.r[q][j]
+				}
 			}
 			a.Set(nDOF+i, j, -k/s.m[i])
 			a.Set(nDOF+i, nDOF+j, -sys.c[i][j]/s.m[i])
@@ -324,11 +430,16 @@ func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
 // timing chooses the step and the settling time (s) for the model (see
 // SimulateCase).
 func (m *timeModel) timing() (h, settle, rho float64, err error) {
-	var cmax, cmin, kx [4]float64
+	var cmax, cmin, kx [nDamp]float64
 	for i := range m.damp {
 		cmin[i], cmax[i] = m.damp[i].slopeRange()
-		if m.stop[i] != nil {
+		if i < 4 && m.stop[i] != nil {
 			kx[i] = m.stop[i].maxSlope()
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		if m.packer[ax] > 0 {
+			kx[dampHeave+ax] = m.kp[ax] * m.mr3[ax] * m.mr3[ax] // on the mean wheel travel
 		}
 	}
 	fast, err := stateMatrixEigen(m.sys, cmax, kx)
@@ -339,7 +450,7 @@ func (m *timeModel) timing() (h, settle, rho float64, err error) {
 		rho = math.Max(rho, cmplx.Abs(l))
 	}
 	h = math.Min(stepStability/rho, stepMax)
-	slow, err := stateMatrixEigen(m.sys, cmin, [4]float64{})
+	slow, err := stateMatrixEigen(m.sys, cmin, [nDamp]float64{})
 	if err != nil {
 		return 0, 0, 0, err
 	}
@@ -397,6 +508,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	p.merge("vehicle.", v.Validate())
 	p.merge("road_case.", rc.Validate())
 	p.merge("setup.", s.Validate())
+	p.merge("setup.", v.CheckSetup(s))
 	if err := p.err(); err != nil {
 		return nil, err
 	}

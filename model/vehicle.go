@@ -46,6 +46,9 @@ type Vehicle struct {
 	Corners  [4]Corner      // FL, FR, RL, RR
 	AntiRoll [2]AntiRollBar // front, rear
 	Aero     Aero           // optional aero map (see Aero)
+	// Heave is each axle's heave (third) spring and damper, front and
+	// rear; the zero value is none (see HeaveElement).
+	Heave [2]HeaveElement
 
 	// RestRideHeight is the ride height of the car at rest, front and
 	// rear, at each axle's centre line (m): the body's reference (floor,
@@ -57,6 +60,10 @@ type Vehicle struct {
 	// height and ground-contact probability each case reports (see
 	// ReferencePoint); at most MaxReferencePoints.
 	ReferencePoints []ReferencePoint
+
+	// LoadPaths carries the heights and link geometry the manoeuvre
+	// cases need (see LoadPaths); the ride model does not use it.
+	LoadPaths LoadPaths
 }
 
 // Corner is one wheel station.
@@ -268,6 +275,10 @@ func (v *Vehicle) Validate() error {
 		p.inOrZero(fmt.Sprintf("rest_ride_height_m[%d]", ax), v.RestRideHeight[ax], "Vehicle.rest_ride_height_m")
 	}
 	v.Aero.validate(&p, "aero.", v.RestRideHeight)
+	for ax := range v.Heave {
+		v.Heave[ax].validate(&p, fmt.Sprintf("heave[%d].", ax))
+	}
 	v.validateReferencePoints(&p)
+	v.LoadPaths.validate(&p, "load_paths.")
 	return p.err()
 }
