@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"mime"
 	"net/http"
-	"strconv"
 
 	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -86,9 +85,8 @@ func (h *Handler) frontSVG(w http.ResponseWriter, r *http.Request) {
 // page's script, a file with ?download=1.
 func (h *Handler) curvesSVG(w http.ResponseWriter, r *http.Request) {
 	id := r.PathValue("id")
-	k, err := strconv.Atoi(r.PathValue("index"))
-	if err != nil || k < 0 {
-		http.Error(w, fmt.Sprintf("solution index %q must be a whole number from 0", r.PathValue("index")), http.StatusBadRequest)
+	k, ok := pathIndex(w, r)
+	if !ok {
 		return
 	}
 	front, ok := h.requestFront(w, r, id)
