@@ -64,18 +64,8 @@ func (h *Handler) sheet(w http.ResponseWriter, r *http.Request) {
 // modes is the modes table of one solution, an HTML fragment the page's
 // script puts in place of the one shown when another row is chosen.
 func (h *Handler) modes(w http.ResponseWriter, r *http.Request) {
-	id := r.PathValue("id")
-	k, ok := pathIndex(w, r)
+	id, s, ok := h.pathSolution(w, r)
 	if !ok {
-		return
-	}
-	front, ok := h.requestFront(w, r, id)
-	if !ok {
-		return
-	}
-	s := solutionAt(front, k)
-	if s == nil {
-		http.Error(w, fmt.Sprintf("the front of job %s has %d solutions; %d is not one of them", id, len(front.GetSolutions()), k), http.StatusNotFound)
 		return
 	}
 	var b bytes.Buffer
