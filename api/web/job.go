@@ -77,6 +77,7 @@ type jobView struct {
 	Rows           []solutionRow
 	Curves         *curvesView
 	Modes          *modesView
+	ModalSVG       template.HTML // modal ratios across the front
 	Downloads      []link
 }
 
@@ -185,6 +186,11 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 		}
 		v.Curves = c
 		v.Modes = newModesView(id, pick, sheet.Modes(s))
+	}
+	if fig, err := plot.ModalRatios(front, plot.ModalOptions{}); err == nil {
+		if b, err := svgBytes(fig); err == nil {
+			v.ModalSVG = inlineSVG(b)
+		}
 	}
 }
 
