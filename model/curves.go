@@ -52,6 +52,26 @@ type DamperCurve struct {
 	KneeBump, KneeRebound   float64 // knee velocities at the damper (m/s), 0 = none
 	HighSpeedBump           float64 // high-speed factor in bump (-)
 	HighSpeedRebound        float64 // high-speed factor in rebound (-)
+
+	// The rest of the hardware at the damper (see AxleDamping): further
+	// knees, blow-off forces (N), Coulomb friction (N, inside Force) and
+	// the gas force (N, not inside Force: the forces are damping forces,
+	// the gas force taken off as on a dyno report).
+	StagesBump, StagesRebound   []Stage
+	BlowOffBump, BlowOffRebound float64
+	Friction, GasForce          float64
+}
+
+// activeStages is the given part of a stage list (nil when empty).
+func activeStages(st *[MaxStages]Stage) []Stage {
+	var out []Stage
+	for _, s := range st {
+		if s.Velocity == 0 {
+			break
+		}
+		out = append(out, s)
+	}
+	return out
 }
 
 // DamperCurves returns the curves at the component of every corner for a
@@ -73,18 +93,19 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	cc := v.CriticalDamping()
 	out := make([]DamperCurve, 4)
 	for i := range out {
-		a := s.Axles[i/2]
+		a := &s.Axles[i/2]
 		mr2 := v.Corners[i].DamperMotionRatio * v.Corners[i].DamperMotionRatio
 		dc := DamperCurve{
 			Corner:    i,
 			BumpSlope: a.BumpRatio * cc[i] / mr2, ReboundSlope: a.ReboundRatio * cc[i] / mr2,
 			KneeBump: a.KneeBump, KneeRebound: a.KneeRebound,
 			HighSpeedBump: factorOr1(a.HighSpeedBump), HighSpeedRebound: factorOr1(a.HighSpeedRebound),
+			StagesBump: activeStages(&a.StagesBump), StagesRebound: activeStages(&a.StagesRebound),
+			BlowOffBump: a.BlowOffBump, BlowOffRebound: a.BlowOffRebound, Friction: a.Friction, GasForce: a.GasForce,
 			Velocity: make([]float64, points), Force: make([]float64, points),
 		}
 		law := func(zb, zr, vel float64) float64 {
-			d := wheelDamper{cb: zb * cc[i] / mr2, cr: zr * cc[i] / mr2, vb: dc.KneeBump, vr: dc.KneeRebound,
-				rb: dc.HighSpeedBump, rr: dc.HighSpeedRebound}
+			d := a.axleDamper(zb*cc[i]/mr2, zr*cc[i]/mr2, 1)
 			return d.force(vel)
 		}
 		if band {

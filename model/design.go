@@ -31,6 +31,22 @@ type DesignSpace struct {
 	HighSpeed [2]*Range
 	// Base gives every value that is not a gene.
 	Base Setup
+	// Snap, when not nil, puts every decoded setup on the clicks of its
+	// adjusters (Adjusters.Snap). The search so evaluates snapped setups
+	// only: its genes stay continuous (the optimiser's operators need
+	// them so), and the setup, objectives, curves and clicks of every
+	// solution are those of the snapped setup. Snapping is a pure
+	// function of the genes, so a seeded search stays bit-for-bit
+	// deterministic, also after a resume. Solutions whose genes snap to
+	// the same clicks are the same setup.
+	Snap *ClickSnap
+}
+
+// ClickSnap is what snapping to clicks needs: the car (critical damping
+// and motion ratios, for dyno tables) and the adjusters.
+type ClickSnap struct {
+	Vehicle   *Vehicle
+	Adjusters *Adjusters
 }
 
 // Validate checks the bounds and names every bad field: each bound in
@@ -110,6 +126,9 @@ func (d *DesignSpace) Decode(x []float64) Setup {
 			s.Axles[ax].HighSpeedBump, s.Axles[ax].HighSpeedRebound = x[i], x[i]
 			i++
 		}
+	}
+	if d.Snap != nil {
+		s = d.Snap.Adjusters.Snap(d.Snap.Vehicle, s)
 	}
 	return s
 }

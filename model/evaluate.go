@@ -52,6 +52,8 @@ type Evaluator struct {
 	bands [4][]float64 // band weights for the tails
 	cases []caseData
 	pool  sync.Pool
+	// transients are the manoeuvre and kerb cases (SetTransientCases).
+	transients []*transientCase
 }
 
 // caseData is one road case prepared on the grid.
@@ -63,6 +65,7 @@ type caseData struct {
 	grid  *caseGrid
 	geo   outputGeometry
 	op    OperatingPoint // the car at the case's speed
+	plat  platformRows   // downforce, balance and reference points at op
 	modal modalRatios
 }
 
@@ -119,7 +122,7 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 			p.add(fmt.Sprintf("road_cases[%d].speed_m_per_s", i), "road case %q: %v", rc.Name, err)
 			continue
 		}
-		cd := caseData{rc: rc, sym: sym, op: op, base: newSystem(&e.v, &op.AeroStiffness)}
+		cd := caseData{rc: rc, sym: sym, op: op, base: newSystem(&e.v, &op.AeroStiffness), plat: newPlatformRows(&e.v, &op)}
 		for a := 0; a < nDOF; a++ {
 			var unit [nDOF]float64
 			unit[a] = 1
@@ -191,7 +194,7 @@ func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
 			return err
 		}
 	}
-	return nil
+	return e.evaluateTransients(&dampers, dst)
 }
 
 // evaluateCase runs the linearisation to its fixed point on case ci and
@@ -200,9 +203,10 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 	cd := &e.cases[ci]
 	linear := true
 	var c [4]float64
-	for i, d := range dampers {
+	for i := range dampers {
+		d := &dampers[i]
 		c[i] = (d.cb + d.cr) / 2
-		if (d.vb > 0 && d.rb != 1) || (d.vr > 0 && d.rr != 1) {
+		if !d.linear() {
 			linear = false
 		}
 	}
@@ -325,6 +329,7 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 	m.PitchSD = math.Sqrt(v[outPitch])
 	m.RollSD = math.Sqrt(v[outRoll])
 	m.HeaveAccelSD = math.Sqrt(v[outHeaveAcc])
+	cd.plat.fillPlatform(m, v, &xbar, e.opt.WarnThreshold)
 }
 
 // tailProb is P(X > margin) for X ~ N(0, sd²).

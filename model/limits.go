@@ -112,6 +112,11 @@ var plausible = map[string]Limit{
 	"Aero.downforce_n":             {Min: 0, Max: 1e5, Unit: "N"},
 	"Aero.stiffness_n_per_m":       {Min: -5e6, Max: 5e6, Unit: "N/m"},
 
+	"ReferencePoint.x_from_front_axle_m": {Min: -3, Max: 8, Unit: "m", Slips: slipMm},
+	"ReferencePoint.wheelbase_fraction":  {Min: -1, Max: 2},
+	"ReferencePoint.y_m":                 {Min: -1.5, Max: 1.5, Unit: "m", Slips: slipMm},
+	"ReferencePoint.rest_height_m":       {Min: 0, Max: 0.5, OpenMin: true, Unit: "m", Slips: slipMm},
+
 	"RoadCase.speed_m_per_s":          {Min: 1, Max: 120, Unit: "m/s", Slips: slipKmPerH},
 	"RoadCase.weight":                 {Min: 0, Max: 1000},
 	"RoadCase.gd0_m3":                 {Min: 1e-10, Max: 1, Unit: "m^3"},
@@ -124,6 +129,9 @@ var plausible = map[string]Limit{
 	"AxleDamping.ratio":               {Min: 0.01, Max: 5},
 	"AxleDamping.knee_m_per_s":        {Min: 1e-3, Max: 1, Unit: "m/s", Slips: slipMmPerS},
 	"AxleDamping.high_speed":          {Min: 0.05, Max: 10},
+	"AxleDamping.blow_off_n":          {Min: 0, Max: 2e4, Unit: "N"},
+	"AxleDamping.friction_n":          {Min: 0, Max: 2000, Unit: "N"},
+	"AxleDamping.gas_force_n":         {Min: 0, Max: 1e4, Unit: "N"},
 	"Objective.target_shift_m":        {Min: -0.1, Max: 0.1, Unit: "m", Slips: slipMm},
 	"Constraint.probability":          {Min: 0, Max: 1, OpenMin: true, Slips: slipPercent},
 	"Constraint.travel_m":             {Min: 0, Max: 0.2, OpenMin: true, Unit: "m", Slips: slipMm},
@@ -134,6 +142,18 @@ var plausible = map[string]Limit{
 	"BumpStop.deflection_m":           {Min: 0, Max: 0.3, OpenMin: true, Unit: "m", Slips: slipMm},
 	"BumpStop.force_n":                {Min: 0, Max: 1e6, Unit: "N"},
 	"EvaluatorOptions.warn_threshold": {Min: 0, Max: 1},
+
+	"LoadPaths.height_m":             {Min: 0.02, Max: 1.5, Unit: "m", Slips: slipMm},
+	"LoadPaths.roll_centre_height_m": {Min: -0.3, Max: 0.8, Unit: "m", Slips: slipMm},
+	"LoadPaths.anti":                 {Min: -0.5, Max: 1.5, Slips: slipPercent},
+	// A downforce car peaks near 5-6 g in braking and cornering; 8 g
+	// (78.5 m/s²) leaves a margin (common practice, no single source).
+	"Manoeuvre.acceleration_m_per_s2": {Min: -78.5, Max: 78.5, Unit: "m/s^2"},
+	"Manoeuvre.time_s":                {Min: 0, Max: 60, Unit: "s"},
+	"Kerb.height_m":                   {Min: 0.002, Max: 0.2, Unit: "m", Slips: slipMm},
+	"Kerb.length_m":                   {Min: 0.05, Max: 20, Unit: "m", Slips: slipMm},
+	"Transient.load_fraction":         {Min: 0, Max: 1, OpenMin: true},
+	"Constraint.time_s":               {Min: 0, Max: 60, OpenMin: true, Unit: "s"},
 }
 
 // PlausibleRanges returns the limits of every physical input, by the

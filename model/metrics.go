@@ -42,6 +42,24 @@ type CaseMetrics struct {
 	PitchShift      float64    // mean pitch change, + nose up (rad)
 	TravelShift     [4]float64 // mean travel change, + bump (m)
 
+	// The platform as the aero sees it (see ReferencePoint and
+	// newPlatformRows): the covariance of the front and rear ride heights
+	// relative to the road (m²); the total downforce's standard deviation
+	// and mean change from jacking (N), from the aero map linearised at
+	// the operating point, dD = -1ᵀ K_a dh; the aero balance's (front
+	// share of the downforce) standard deviation and mean change from
+	// jacking (-), 0 without downforce.
+	RideHeightCovariance float64
+	DownforceSD          float64
+	DownforceShift       float64
+	BalanceSD            float64
+	BalanceShift         float64
+
+	// Points holds the figures of the vehicle's reference points, the
+	// first NumPoints of them (ReferencePoints gives them as a slice).
+	Points    [MaxReferencePoints]PointMetrics
+	NumPoints int
+
 	Iterations int      // fixed-point iterations of the linearisation
 	Warnings   Warnings // validity flags
 }
@@ -55,6 +73,9 @@ const (
 	// WarnBumpStop: some corner's bump-stop contact probability exceeds
 	// the threshold.
 	WarnBumpStop
+	// WarnFloorContact: some reference point's ground-contact probability
+	// exceeds the threshold.
+	WarnFloorContact
 )
 
 // Strings returns readable warnings for a case's flags.
@@ -70,6 +91,12 @@ func (m *CaseMetrics) WarningStrings(threshold float64) []string {
 		if m.Warnings&WarnBumpStop != 0 && m.BumpStopProbability[i] > threshold {
 			out = append(out, fmt.Sprintf("%s: %s bump-stop contact probability %.1f%% exceeds %.1f%%: the linear model does not hold; run the time-domain check",
 				m.Case, CornerNames[i], 100*m.BumpStopProbability[i], 100*threshold))
+		}
+	}
+	for _, p := range m.ReferencePoints() {
+		if m.Warnings&WarnFloorContact != 0 && p.ContactProbability > threshold {
+			out = append(out, fmt.Sprintf("%s: reference point %q ground-contact probability %.1f%% exceeds %.1f%%: the linear model does not hold",
+				m.Case, p.Name, 100*p.ContactProbability, 100*threshold))
 		}
 	}
 	return out
@@ -92,6 +119,10 @@ func (m *CaseMetrics) checkFinite() error {
 		}
 	}
 	sum += m.RideHeightSD[0]*0 + m.RideHeightSD[1]*0 + m.RideHeightShift[0]*0 + m.RideHeightShift[1]*0
+	sum += m.RideHeightCovariance*0 + m.DownforceSD*0 + m.DownforceShift*0 + m.BalanceSD*0 + m.BalanceShift*0
+	for _, p := range m.ReferencePoints() {
+		sum += p.HeightAtSpeed*0 + p.Shift*0 + p.SD*0 + p.ContactProbability*0
+	}
 	if sum == 0 {
 		return nil
 	}
@@ -107,6 +138,13 @@ func (m *CaseMetrics) checkFinite() error {
 		{"damper_velocity_sd_m_per_s", m.DamperVelocitySD[:]}, {"equivalent_damping_n_s_per_m", m.EquivalentDamping[:]},
 		{"mean_damper_force_n", m.MeanDamperForce[:]}, {"ride_height_shift_m", m.RideHeightShift[:]},
 		{"pitch_shift_rad", []float64{m.PitchShift}}, {"travel_shift_m", m.TravelShift[:]},
+		{"ride_height_covariance_m2", []float64{m.RideHeightCovariance}},
+		{"downforce_sd_n", []float64{m.DownforceSD}}, {"downforce_shift_n", []float64{m.DownforceShift}},
+		{"balance_sd", []float64{m.BalanceSD}}, {"balance_shift", []float64{m.BalanceShift}},
+		{"reference_points.height_at_speed_m", pointValues(m, func(p *PointMetrics) float64 { return p.HeightAtSpeed })},
+		{"reference_points.shift_m", pointValues(m, func(p *PointMetrics) float64 { return p.Shift })},
+		{"reference_points.sd_m", pointValues(m, func(p *PointMetrics) float64 { return p.SD })},
+		{"reference_points.contact_probability", pointValues(m, func(p *PointMetrics) float64 { return p.ContactProbability })},
 	} {
 		for i, v := range f.v {
 			if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -117,8 +155,20 @@ func (m *CaseMetrics) checkFinite() error {
 	return nil
 }
 
+// pointValues lists one figure of every reference point of m.
+func pointValues(m *CaseMetrics, f func(*PointMetrics) float64) []float64 {
+	out := make([]float64, m.NumPoints)
+	for i := range out {
+		out[i] = f(&m.Points[i])
+	}
+	return out
+}
+
 // Result is the evaluation of one setup over all road cases.
 type Result struct {
 	Setup Setup
 	Cases []CaseMetrics
+	// Transients are the metrics of the manoeuvre and kerb cases, in the
+	// evaluator's order (see Evaluator.SetTransientCases).
+	Transients []TransientMetrics
 }

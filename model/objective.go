@@ -29,12 +29,32 @@ const (
 	ObjectiveRoll
 	// ObjectiveHeaveAccel is the heave acceleration standard deviation (m/s²).
 	ObjectiveHeaveAccel
+	// ObjectiveDownforce is the downforce's variation about the operating
+	// point, sqrt(σ_D² + ΔD²) (N): its standard deviation and its mean
+	// change from jacking (CaseMetrics.DownforceSD, DownforceShift).
+	//
+	// How it relates to ObjectivePlatform: both are the ride heights'
+	// standard deviation and jacking shift together, but the platform
+	// weighs the two axles equally in metres and ignores how they move
+	// together, while the downforce weighs them by the aero map's slopes
+	// at speed and takes their covariance: σ_D² = kᵀ Σ_h k with
+	// k = -1ᵀ K_a. Front and rear moving in phase (heave) add up; a
+	// cross-term map can make them cancel. On a car without aero it is 0.
+	ObjectiveDownforce
+	// ObjectiveBalance is the aero balance's (front share of the
+	// downforce) variation about the operating point, sqrt(σ_β² + Δβ²)
+	// (-). It sees the part of the ride-height motion that moves the
+	// balance: for a linear per-axle map whose axle stiffnesses are in
+	// the ratio of the axle downforces it is pitch alone (heave leaves the
+	// balance where it is), otherwise a mix that the map decides. The
+	// jacking shift is in it for the reason given at ObjectivePlatform.
+	ObjectiveBalance
 )
 
 var objectiveNames = map[ObjectiveKind]string{
 	ObjectiveGrip: "grip", ObjectivePlatform: "platform", ObjectiveFrontPlatform: "front_platform",
 	ObjectiveRearPlatform: "rear_platform", ObjectivePitch: "pitch", ObjectiveRoll: "roll",
-	ObjectiveHeaveAccel: "heave_accel",
+	ObjectiveHeaveAccel: "heave_accel", ObjectiveDownforce: "downforce", ObjectiveBalance: "balance",
 }
 
 func (k ObjectiveKind) String() string {
@@ -53,6 +73,10 @@ func (k ObjectiveKind) Unit() string {
 		return "rad"
 	case ObjectiveHeaveAccel:
 		return "m/s^2"
+	case ObjectiveDownforce:
+		return "N"
+	case ObjectiveBalance:
+		return "-"
 	default:
 		return "m"
 	}
@@ -83,11 +107,17 @@ const (
 	// equivalent slopes (CaseMetrics.ModalDampingRatio) within a band
 	// [Lower, Limit] on every case (-): a band, not only an upper limit.
 	ConstraintModalRatio
+	// ConstraintFloorContact limits every reference point's probability of
+	// touching the ground (PointMetrics.ContactProbability) on every case
+	// (-). The platform objective keeps the ride-height variation small on
+	// average; this keeps the lowest points off the ground at the case
+	// where they come nearest.
+	ConstraintFloorContact
 )
 
 var constraintNames = map[ConstraintKind]string{
 	ConstraintLiftOff: "lift_off", ConstraintBumpStop: "bump_stop", ConstraintTravel: "travel", ConstraintJacking: "jacking",
-	ConstraintModalRatio: "modal_ratio",
+	ConstraintModalRatio: "modal_ratio", ConstraintFloorContact: "floor_contact",
 }
 
 func (k ConstraintKind) String() string {
@@ -188,12 +218,19 @@ func caseObjective(o *Objective, m *CaseMetrics) float64 {
 		return m.RollSD
 	case ObjectiveHeaveAccel:
 		return m.HeaveAccelSD
+	case ObjectiveDownforce:
+		return math.Hypot(m.DownforceSD, m.DownforceShift)
+	case ObjectiveBalance:
+		return math.Hypot(m.BalanceSD, m.BalanceShift)
 	}
 	return math.NaN()
 }
 
 // caseConstraint is the per-case value a constraint limits.
 func caseConstraint(c *Constraint, m *CaseMetrics) float64 {
+	if c.Kind == ConstraintFloorContact {
+		return m.MaxFloorContact()
+	}
 	worst := 0.0
 	for i := 0; i < 4; i++ {
 		switch c.Kind {
@@ -231,6 +268,9 @@ type Problem struct {
 // ValidateProblem).
 func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints []Constraint) (*Problem, error) {
 	if err := ValidateProblem(d, objectives, constraints); err != nil {
+		return nil, err
+	}
+	if err := ValidateAeroOutputs(e.Vehicle(), objectives, constraints); err != nil {
 		return nil, err
 	}
 	s := &Problem{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
@@ -286,6 +326,25 @@ func ValidateProblem(d DesignSpace, objectives []Objective, constraints []Constr
 			}
 		} else if c.Lower != 0 {
 			p.add(f+".lower", "is for a modal-ratio band only, got %g on %s", c.Lower, c.Kind)
+		}
+	}
+	return p.err()
+}
+
+// ValidateAeroOutputs checks the objectives and constraints that need
+// something of the vehicle: the downforce and balance objectives need
+// aero (without it they are 0 for every setup), the floor-contact
+// constraint needs reference points. Paths as in ValidateProblem.
+func ValidateAeroOutputs(v *Vehicle, objectives []Objective, constraints []Constraint) error {
+	var p problems
+	for i, o := range objectives {
+		if (o.Kind == ObjectiveDownforce || o.Kind == ObjectiveBalance) && !v.Aero.has() {
+			p.add(fmt.Sprintf("objectives[%d].kind", i), "objective %s needs aero on the vehicle (vehicle.aero): without it the value is 0 for every setup", o.Kind)
+		}
+	}
+	for i, c := range constraints {
+		if c.Kind == ConstraintFloorContact && len(v.ReferencePoints) == 0 {
+			p.add(fmt.Sprintf("constraints[%d].kind", i), "constraint %s needs reference points on the vehicle (vehicle.reference_points)", c.Kind)
 		}
 	}
 	return p.err()

@@ -7,15 +7,23 @@ import (
 
 // Outputs computed from the response, indices into an output vector.
 const (
-	outTyre      = 0  // dynamic tyre load, corners 0..3 (N)
-	outTravel    = 4  // suspension travel at the wheel, corners 0..3 (m)
-	outWheelVel  = 8  // suspension velocity at the wheel, corners 0..3 (m/s)
-	outRide      = 12 // ride height relative to the road, front, rear (m)
-	outPitch     = 14 // pitch relative to the road (rad)
-	outRoll      = 15 // roll relative to the road (rad)
-	outHeaveAcc  = 16 // heave acceleration of the sprung CG (m/s²)
-	nOut         = 17
-	nVelocityOut = 4
+	outTyre     = 0  // dynamic tyre load, corners 0..3 (N)
+	outTravel   = 4  // suspension travel at the wheel, corners 0..3 (m)
+	outWheelVel = 8  // suspension velocity at the wheel, corners 0..3 (m/s)
+	outRide     = 12 // ride height relative to the road, front, rear (m)
+	outPitch    = 14 // pitch relative to the road (rad)
+	outRoll     = 15 // roll relative to the road (rad)
+	outHeaveAcc = 16 // heave acceleration of the sprung CG (m/s²)
+	// Roll relative to the road of each axle, front, rear (rad): r_a =
+	// φ - (w_aL - w_aR)/t_a.
+	outRollAxle = 17
+	// Variances of the sums g_i + g_j (i < j, in the order (0,1), (0,2),
+	// (0,3), (1,2), (1,3), (2,3)) of the platform basis g = (h_f, h_r,
+	// r_f, r_r) (m², r taken per metre of lateral offset): with the
+	// variances of g they give its covariance (platformCovariance).
+	outPlatformPair = 19
+	nOut            = 25
+	nVelocityOut    = 4
 )
 
 // channel is an independent part of the response: a reduced system in
@@ -240,11 +248,25 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	wf := (w[0] + w[1]) / 2
 	wr := (w[2] + w[3]) / 2
 	yc := complex(g.yc, 0) * x[2]
-	out[outRide] += abs2(x[0] + complex(g.a, 0)*x[1] + yc - wf)
-	out[outRide+1] += abs2(x[0] - complex(g.b, 0)*x[1] + yc - wr)
+	var p [nPlatform]complex128
+	p[0] = x[0] + complex(g.a, 0)*x[1] + yc - wf
+	p[1] = x[0] - complex(g.b, 0)*x[1] + yc - wr
+	p[2] = x[2] - (w[0]-w[1])/complex(g.tf, 0)
+	p[3] = x[2] - (w[2]-w[3])/complex(g.tr, 0)
+	out[outRide] += abs2(p[0])
+	out[outRide+1] += abs2(p[1])
 	out[outPitch] += abs2(x[1] - (wf-wr)/complex(g.a+g.b, 0))
 	out[outRoll] += abs2(x[2] - ((w[0]-w[1])/complex(g.tf, 0)+(w[2]-w[3])/complex(g.tr, 0))/2)
 	out[outHeaveAcc] += om * om * om * om * abs2(x[0])
+	out[outRollAxle] += abs2(p[2])
+	out[outRollAxle+1] += abs2(p[3])
+	k := outPlatformPair
+	for i := 0; i < nPlatform; i++ {
+		for j := i + 1; j < nPlatform; j++ {
+			out[k] += abs2(p[i] + p[j])
+			k++
+		}
+	}
 	_ = jw
 }
 
@@ -283,6 +305,9 @@ var outputNames = [nOut]string{
 	"FL travel", "FR travel", "RL travel", "RR travel",
 	"FL wheel velocity", "FR wheel velocity", "RL wheel velocity", "RR wheel velocity",
 	"front ride height", "rear ride height", "pitch", "roll", "heave acceleration",
+	"front roll", "rear roll",
+	"front + rear ride height", "front ride height + front roll", "front ride height + rear roll",
+	"rear ride height + front roll", "rear ride height + rear roll", "front + rear roll",
 }
 
 // newCaseGrid tabulates a road case on the grid for a vehicle.

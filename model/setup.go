@@ -23,6 +23,23 @@ type AxleDamping struct {
 	// digressive. 0 means 1.
 	HighSpeedBump    float64
 	HighSpeedRebound float64
+
+	// The rest of the damper's hardware (see hardware.go); the zero
+	// values give the one-knee curve above.
+
+	// StagesBump and StagesRebound are further knees above the first, in
+	// increasing velocity (a multi-stage digressive or progressive curve).
+	StagesBump, StagesRebound [MaxStages]Stage
+	// BlowOffBump and BlowOffRebound are blow-off forces at the damper
+	// (N), 0 = none: the first knee sits where the low-speed force reaches
+	// them, instead of at KneeBump/KneeRebound.
+	BlowOffBump, BlowOffRebound float64
+	// Friction is the Coulomb friction force at the damper (N), both
+	// directions.
+	Friction float64
+	// GasForce is the gas force at the damper (N), extending it; part of
+	// the rest figures, not of the dynamics (see hardware.go).
+	GasForce float64
 }
 
 // Setup is the damper setting of the car.
@@ -49,15 +66,9 @@ func (s *Setup) Validate() error {
 		p.inOrZero(f+"knee_rebound_m_per_s", a.KneeRebound, "AxleDamping.knee_m_per_s")
 		p.inOrZero(f+"high_speed_bump", a.HighSpeedBump, "AxleDamping.high_speed")
 		p.inOrZero(f+"high_speed_rebound", a.HighSpeedRebound, "AxleDamping.high_speed")
+		a.checkHardware(&p, f)
 	}
 	return p.err()
-}
-
-// wheelDamper is one corner's damper referred to the wheel.
-type wheelDamper struct {
-	cb, cr float64 // low-speed slopes at the wheel (N s/m)
-	vb, vr float64 // knee velocities at the wheel (m/s), 0 = none
-	rb, rr float64 // high-speed factors
 }
 
 // wheelDampers converts the setup to per-corner dampers at the wheel.
@@ -65,31 +76,10 @@ func (v *Vehicle) wheelDampers(s *Setup) [4]wheelDamper {
 	cc := v.CriticalDamping()
 	var out [4]wheelDamper
 	for i := range out {
-		a := s.Axles[i/2]
-		mr := v.Corners[i].DamperMotionRatio
-		out[i] = wheelDamper{
-			cb: a.BumpRatio * cc[i], cr: a.ReboundRatio * cc[i],
-			vb: a.KneeBump / mr, vr: a.KneeRebound / mr,
-			rb: factorOr1(a.HighSpeedBump), rr: factorOr1(a.HighSpeedRebound),
-		}
+		a := &s.Axles[i/2]
+		out[i] = a.axleDamper(a.BumpRatio*cc[i], a.ReboundRatio*cc[i], v.Corners[i].DamperMotionRatio)
 	}
 	return out
-}
-
-// force is the damper force at the wheel for wheel velocity v (bump > 0).
-func (d wheelDamper) force(v float64) float64 {
-	if v >= 0 {
-		return pieceForce(v, d.cb, d.vb, d.rb)
-	}
-	return -pieceForce(-v, d.cr, d.vr, d.rr)
-}
-
-// pieceForce is c·v below the knee vk and c·(vk + r(v - vk)) above it.
-func pieceForce(v, c, vk, r float64) float64 {
-	if vk <= 0 || v <= vk {
-		return c * v
-	}
-	return c * (vk + r*(v-vk))
 }
 
 func (a AxleDamping) String() string {
@@ -105,7 +95,11 @@ var (
 
 // ok is a cheap allocation-free form of Validate for the hot path.
 func (s *Setup) ok() bool {
-	for _, a := range s.Axles {
+	for i := range s.Axles {
+		a := &s.Axles[i]
+		if !a.hardwareOK() {
+			return false
+		}
 		if !ratioLimit.Contains(a.BumpRatio) || !ratioLimit.Contains(a.ReboundRatio) {
 			return false
 		}

@@ -142,14 +142,60 @@ type timeModel struct {
 	mr     [4]float64
 	a, b   float64
 	tf, tr float64
+	// width is the number of input values per half-step sample: 8 (the
+	// road, w and ẇ) or inWidthForced (then nDOF generalised forces
+	// follow, see timeModel.accel).
+	width int
+	// xTerms and inTerms are the non-zero entries of K, C and of Bk, Bc
+	// (see sparseTerms): the matrices are mostly zero, and accel is the
+	// hot loop of every time-domain run.
+	xTerms, inTerms []sysTerm
+}
+
+// sysTerm is one non-zero entry pair: row r, column c of K and C (or of
+// Bk and Bc).
+type sysTerm struct {
+	r, c int
+	k, d float64
+}
+
+// sparseTerms lists the non-zero entries of the system's matrices.
+func sparseTerms(s *system) (xs, ins []sysTerm) {
+	for a := 0; a < nDOF; a++ {
+		for b := 0; b < nDOF; b++ {
+			if s.k[a][b] != 0 || s.c[a][b] != 0 {
+				xs = append(xs, sysTerm{a, b, s.k[a][b], s.c[a][b]})
+			}
+		}
+		for q := 0; q < nIn; q++ {
+			if s.bk[a][q] != 0 || s.bc[a][q] != 0 {
+				ins = append(ins, sysTerm{a, q, s.bk[a][q], s.bc[a][q]})
+			}
+		}
+	}
+	return xs, ins
+}
+
+// Input sample widths (see timeModel.width).
+const (
+	inWidthRoad   = 2 * nIn
+	inWidthForced = 2*nIn + nDOF
+)
+
+// sampleRecorder receives the outputs at each recorded step, in a
+// sample of its own (so that the hot loop allocates none).
+type sampleRecorder interface {
+	add(o *timeSample)
+	buffer() *timeSample
 }
 
 func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) (*timeModel, error) {
 	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.wheelDampers(s), static: op.TyreLoad,
-		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear}
+		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, width: inWidthRoad}
 	for i := range m.minv {
 		m.minv[i] = 1 / m.sys.m[i]
 	}
+	m.xTerms, m.inTerms = sparseTerms(m.sys)
 	for i := 0; i < 4; i++ {
 		m.kt[i], m.ct[i] = v.Corners[i].TyreRate, v.Corners[i].TyreDamping
 		m.mr[i] = v.Corners[i].DamperMotionRatio
@@ -184,21 +230,23 @@ type timeSample struct {
 // compression D_i x - gap_i, and Δ_i = max(0, -(P_i + T_i)) puts back the
 // part of the linear tyre force T_i = kt(w_i - zu_i) + ct(ẇ_i - żu_i)
 // that would pull the tyre down (P_i its static load): the tyre force
-// P_i + T_i is clipped at zero. When o is not nil it also receives the
-// outputs, the heave acceleration included.
+// P_i + T_i is clipped at zero. An input sample of inWidthForced values
+// carries generalised forces f_e after the road (a manoeuvre's inertial
+// and link loads, see inertialLoads), added to the right-hand side. When
+// o is not nil it also receives the outputs, the heave acceleration
+// included.
 func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64, o *timeSample) {
 	s := m.sys
-	in = in[:8]
 	var f [nDOF]float64
-	for a := 0; a < nDOF; a++ {
-		sum := 0.0
-		for b := 0; b < nDOF; b++ {
-			sum -= s.k[a][b]*x[b] + s.c[a][b]*xd[b]
-		}
-		for q := 0; q < nIn; q++ {
-			sum += s.bk[a][q]*in[q] + s.bc[a][q]*in[4+q]
-		}
-		f[a] = sum
+	if len(in) >= inWidthForced {
+		copy(f[:], in[inWidthRoad:inWidthForced])
+	}
+	in = in[:inWidthRoad]
+	for _, t := range m.xTerms {
+		f[t.r] -= t.k*x[t.c] + t.d*xd[t.c]
+	}
+	for _, t := range m.inTerms {
+		f[t.r] += t.k*in[t.c] + t.d*in[nIn+t.c]
 	}
 	for i := 0; i < 4; i++ {
 		d := &s.d[i]
@@ -244,15 +292,18 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 	}
 }
 
-// integrate runs RK4 at step h over the periodic input (2·steps half-step
-// samples of 8 values, one period = steps·h) from -settleSteps·h to
-// steps·h and hands the state at each recorded step t_n = n·h, n in
-// [0, steps), to rec. It allocates nothing.
-func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x0 [nDOF]float64, rec *timeStats) {
-	period := 2 * steps
+// integrate runs RK4 at step h over the periodic input (half-step
+// samples of m.width values; 2·steps of them make one period = steps·h,
+// and a buffer of 2·steps + 1 samples, not periodic, is read up to its
+// last) from -settleSteps·h to steps·h and hands the outputs at each
+// recorded step t_n = n·h, n in [0, steps), to rec. It allocates nothing
+// (rec aside).
+func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x0 [nDOF]float64, rec sampleRecorder) {
+	w := m.width
+	period := len(in) / w
 	x, xd := x0, [nDOF]float64{}
 	var k1x, k1v, k2x, k2v, k3x, k3v, k4x, k4v, xs, vs [nDOF]float64
-	var smp timeSample
+	smp := rec.buffer()
 	idx := ((-2*settleSteps)%period + period) % period
 	for n := -settleSteps; n < steps; n++ {
 		i1 := idx + 1
@@ -262,10 +313,10 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 		}
 		var o *timeSample
 		if n >= 0 {
-			o = &smp
+			o = smp
 		}
 		// k1 at t_n
-		m.accel(&x, &xd, in[8*idx:8*idx+8], &k1v, o)
+		m.accel(&x, &xd, in[w*idx:w*idx+w], &k1v, o)
 		k1x = xd
 		if o != nil {
 			rec.add(o)
@@ -274,19 +325,19 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 			xs[a] = x[a] + 0.5*h*k1x[a]
 			vs[a] = xd[a] + 0.5*h*k1v[a]
 		}
-		m.accel(&xs, &vs, in[8*i1:8*i1+8], &k2v, nil)
+		m.accel(&xs, &vs, in[w*i1:w*i1+w], &k2v, nil)
 		k2x = vs
 		for a := range xs {
 			xs[a] = x[a] + 0.5*h*k2x[a]
 			vs[a] = xd[a] + 0.5*h*k2v[a]
 		}
-		m.accel(&xs, &vs, in[8*i1:8*i1+8], &k3v, nil)
+		m.accel(&xs, &vs, in[w*i1:w*i1+w], &k3v, nil)
 		k3x = vs
 		for a := range xs {
 			xs[a] = x[a] + h*k3x[a]
 			vs[a] = xd[a] + h*k3v[a]
 		}
-		m.accel(&xs, &vs, in[8*i2:8*i2+8], &k4v, nil)
+		m.accel(&xs, &vs, in[w*i2:w*i2+w], &k4v, nil)
 		k4x = vs
 		for a := range x {
 			x[a] += h / 6 * (k1x[a] + 2*k2x[a] + 2*k3x[a] + k4x[a])
@@ -325,9 +376,8 @@ func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
 // SimulateCase).
 func (m *timeModel) timing() (h, settle, rho float64, err error) {
 	var cmax, cmin, kx [4]float64
-	for i, d := range m.damp {
-		cmax[i] = math.Max(math.Max(d.cb, d.cb*d.rb), math.Max(d.cr, d.cr*d.rr))
-		cmin[i] = math.Min(math.Min(d.cb, d.cb*d.rb), math.Min(d.cr, d.cr*d.rr))
+	for i := range m.damp {
+		cmin[i], cmax[i] = m.damp[i].slopeRange()
 		if m.stop[i] != nil {
 			kx[i] = m.stop[i].maxSlope()
 		}

@@ -76,7 +76,10 @@ type timeStats struct {
 	vabs       [4]float64
 	air, above [4]int
 	peaks      Peaks
+	smp        timeSample
 }
+
+func (s *timeStats) buffer() *timeSample { return &s.smp }
 
 func newTimeStats(gap [4]float64, total int) *timeStats {
 	s := &timeStats{gap: gap, total: total}

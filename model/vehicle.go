@@ -52,6 +52,15 @@ type Vehicle struct {
 	// plank) above the ground. Needed by a ride-height aero map; 0 = not
 	// given, and ride heights are then reported as changes from rest.
 	RestRideHeight [2]float64
+
+	// ReferencePoints are points of the underside (splitter, plank) whose
+	// height and ground-contact probability each case reports (see
+	// ReferencePoint); at most MaxReferencePoints.
+	ReferencePoints []ReferencePoint
+
+	// LoadPaths carries the heights and link geometry the manoeuvre
+	// cases need (see LoadPaths); the ride model does not use it.
+	LoadPaths LoadPaths
 }
 
 // Corner is one wheel station.
@@ -263,5 +272,7 @@ func (v *Vehicle) Validate() error {
 		p.inOrZero(fmt.Sprintf("rest_ride_height_m[%d]", ax), v.RestRideHeight[ax], "Vehicle.rest_ride_height_m")
 	}
 	v.Aero.validate(&p, "aero.", v.RestRideHeight)
+	v.validateReferencePoints(&p)
+	v.LoadPaths.validate(&p, "load_paths.")
 	return p.err()
 }

@@ -25,6 +25,8 @@ import (
 //	           reason str (version 2 on; version 1 has no such part)
 //	history:   count u32; per entry generation u64, evaluations u64,
 //	           hypervolume f64, best: present u8 [+ M f64]
+//	polish:    (version 3 only) points u64, evaluations u64, improved u64,
+//	           hypervolume f64
 //	checksum   CRC-32 (IEEE) of everything before it, u32
 //
 // where str is a u32 length and the bytes. The settings and problem shape
@@ -32,10 +34,13 @@ import (
 // states give equal bytes.
 // Version 1 had no closest part; it restores with an empty one (a search
 // that has found no feasible point yet fills it again from the next
-// generation on).
+// generation on). Version 3 is written only by a polished search (see
+// Search.Polish), so an unpolished search keeps writing the bytes of
+// version 2.
 const (
 	checkpointMagic   = "dfnsga2\n"
-	checkpointVersion = 2
+	checkpointVersion = 3
+	unpolishedVersion = 2
 )
 
 // Checkpoint returns the full state of the search: populations, archive,
@@ -44,7 +49,11 @@ const (
 func (s *Search) Checkpoint() ([]byte, error) {
 	var e encoder
 	e.buf = append(e.buf, checkpointMagic...)
-	e.u32(checkpointVersion)
+	if s.polish != nil {
+		e.u32(checkpointVersion)
+	} else {
+		e.u32(unpolishedVersion)
+	}
 
 	for _, f := range s.settings.fingerprint() {
 		e.u64(f.bits)
@@ -101,6 +110,12 @@ func (s *Search) Checkpoint() ([]byte, error) {
 		e.u64(uint64(p.Evaluations))
 		e.f64(p.Hypervolume)
 		e.optional(p.Best)
+	}
+	if r := s.polish; r != nil {
+		e.u64(uint64(r.Points))
+		e.u64(uint64(r.Evaluations))
+		e.u64(uint64(r.Improved))
+		e.f64(r.Hypervolume)
 	}
 	e.u32(crc32.ChecksumIEEE(e.buf))
 	return e.buf, nil
@@ -242,6 +257,10 @@ func (s *Search) readState(d *decoder, version uint32) error {
 	}
 	if d.err == nil && s.started && len(s.history) != s.generation+1 {
 		d.fail("%d history entries for generation %d", len(s.history), s.generation)
+	}
+	s.polish = nil
+	if version >= 3 {
+		s.polish = &PolishReport{Points: d.int(), Evaluations: d.int(), Improved: d.int(), Hypervolume: d.f64()}
 	}
 	return d.err
 }

@@ -105,6 +105,16 @@
 // stored order, and their Evaluate returns the stored Fitness, so eaopt's
 // start-up sort reproduces the order at the checkpoint.
 //
+// # After the last generation
+//
+// Search.Polish refines the archive once by a local search per point
+// (polish.go: a compass search on an achievement scalarising function,
+// after Sindhya, Miettinen & Deb 2013), and CheckFront checks any front in
+// decision space: each point against its twin and a few seeded neighbours
+// (frontcheck.go). The stagnation rule of Settings (StagnationWindow,
+// StagnationTolerance; off by default) ends a search whose hypervolume has
+// stopped growing.
+//
 // # Hypervolume
 //
 // The hypervolume of a point set A against a reference point r is the

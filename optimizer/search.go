@@ -26,6 +26,7 @@ type Search struct {
 	pops        [][]record // per island, in eaopt's order after its sort
 	front       archive
 	history     []Progress
+	polish      *PolishReport // nil until the archive is polished
 }
 
 // record is one individual of a committed population.
@@ -79,8 +80,27 @@ func (s *Search) Started() bool { return s.started }
 // counted.
 func (s *Search) Evaluations() int { return s.evaluations }
 
-// Done reports whether the search has run all of Settings.Generations.
-func (s *Search) Done() bool { return s.started && s.generation >= s.settings.Generations }
+// Done reports whether the search has run all of Settings.Generations or
+// stopped on stagnation (Stagnated).
+func (s *Search) Done() bool {
+	return s.started && (s.generation >= s.settings.Generations || s.Stagnated())
+}
+
+// Stagnated reports whether the stagnation rule of the settings
+// (StagnationWindow, StagnationTolerance) has stopped the search: after at
+// least W generations, HV_t − HV_{t−W} ≤ tol · HV_t with HV_t > 0, where
+// HV_t is the hypervolume of the history's last entry. It is a function
+// of the history, so a restored search stops where the uninterrupted one
+// does.
+func (s *Search) Stagnated() bool {
+	w := s.settings.StagnationWindow
+	n := len(s.history)
+	if w <= 0 || n <= w {
+		return false
+	}
+	now, then := s.history[n-1].Hypervolume, s.history[n-1-w].Hypervolume
+	return now > 0 && now-then <= s.settings.StagnationTolerance*now
+}
 
 // ReferencePoint returns the hypervolume reference point, nil while none
 // is fixed.
@@ -163,7 +183,7 @@ func (s *Search) Step(ctx context.Context, n int) (done bool, err error) {
 		return s.Done(), err
 	}
 	target := min(s.generation+n, s.settings.Generations)
-	if s.started && s.generation >= target {
+	if s.started && (s.generation >= target || s.Stagnated()) {
 		return s.Done(), nil
 	}
 	s.env.ctx = ctx

@@ -48,6 +48,19 @@ type Settings struct {
 	// effective number is at most Islands × GOMAXPROCS. The result does
 	// not depend on it.
 	Workers int
+	// StagnationWindow, when above 0, ends the search before Generations
+	// once the archive's hypervolume has grown by no more than
+	// StagnationTolerance of its value over the last StagnationWindow
+	// generations (see Search.Done):
+	//
+	//	HV_t − HV_{t−W} ≤ tol · HV_t,  HV_t > 0.
+	//
+	// 0 (the default) runs every generation. Like Generations it may
+	// differ between a search and its restored self: it only decides
+	// where the run stops, and the history it reads is in the checkpoint.
+	StagnationWindow int
+	// StagnationTolerance is tol above, a fraction in [0, 1).
+	StagnationTolerance float64
 	// ReferencePoint is the hypervolume reference point, one value per
 	// objective in the objectives' units. When nil the search fixes one
 	// from the first generation with a feasible point (see
@@ -129,6 +142,12 @@ func (s Settings) Validate(nObj int) error {
 	if s.Workers < 1 {
 		bad("Workers", "must be at least 1, got %d", s.Workers)
 	}
+	if s.StagnationWindow < 0 {
+		bad("StagnationWindow", "must not be negative, got %d", s.StagnationWindow)
+	}
+	if !(s.StagnationTolerance >= 0 && s.StagnationTolerance < 1) {
+		bad("StagnationTolerance", "must be in [0, 1), got %g", s.StagnationTolerance)
+	}
 	if s.ReferencePoint != nil {
 		if len(s.ReferencePoint) != nObj {
 			bad("ReferencePoint", "has %d values for %d objectives", len(s.ReferencePoint), nObj)
@@ -168,8 +187,9 @@ func (f settingField) show(bits uint64) any {
 }
 
 // fingerprint lists the settings a checkpoint must match, in checkpoint
-// order (ReferencePoint is stored after them). Generations, Workers and
-// Progress are not in it: they do not change the course of a run.
+// order (ReferencePoint is stored after them). Generations, Workers,
+// the stagnation rule and Progress are not in it: they do not change the
+// course of a run, only where it ends.
 func (s *Settings) fingerprint() []settingField {
 	fl := func(name string, v float64) settingField {
 		return settingField{field: name, bits: math.Float64bits(v), float: true}

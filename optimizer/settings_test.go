@@ -51,6 +51,9 @@ func TestNewFieldErrors(t *testing.T) {
 		{"mutation probability", good, func(s *Settings) { s.MutationProbability = -0.1 }, "Settings.MutationProbability"},
 		{"mutation eta", good, func(s *Settings) { s.MutationEta = math.Inf(1) }, "Settings.MutationEta"},
 		{"workers", good, func(s *Settings) { s.Workers = 0 }, "Settings.Workers"},
+		{"stagnation window", good, func(s *Settings) { s.StagnationWindow = -1 }, "Settings.StagnationWindow"},
+		{"stagnation tolerance", good, func(s *Settings) { s.StagnationTolerance = 1 }, "Settings.StagnationTolerance"},
+		{"stagnation tolerance NaN", good, func(s *Settings) { s.StagnationTolerance = math.NaN() }, "Settings.StagnationTolerance"},
 		{"reference length", good, func(s *Settings) { s.ReferencePoint = []float64{1} }, "Settings.ReferencePoint"},
 		{"reference NaN", good, func(s *Settings) { s.ReferencePoint = []float64{1, math.NaN()} }, "Settings.ReferencePoint[1]"},
 	}

@@ -43,7 +43,7 @@ func (r *stepRun) newGenome(rng *rand.Rand) eaopt.Genome {
 
 // earlyStop is eaopt's EarlyStop, asked before each generation.
 func (r *stepRun) earlyStop(*eaopt.GA) bool {
-	return r.search.generation >= r.target || r.ctx.Err() != nil
+	return r.search.generation >= r.target || r.search.Stagnated() || r.ctx.Err() != nil
 }
 
 // callback is eaopt's Callback, called after start-up and after each

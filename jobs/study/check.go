@@ -43,6 +43,7 @@ func Check(s *Spec) (*Checked, error) {
 	}
 	p.merge("grid.", spec.Grid.Validate())
 	p.mergeMapped(problemPath, model.ValidateProblem(c.design, spec.Objectives, spec.Constraints))
+	p.mergeMapped(problemPath, model.ValidateAeroOutputs(&spec.Vehicle, spec.Objectives, spec.Constraints))
 	if spec.Reference != nil {
 		if !normalises(spec.Objectives) {
 			p.add("reference_setup", "is used only by objectives with the normalised aggregation, and none has it")

@@ -95,6 +95,8 @@ var objectives = map[model.ObjectiveKind]Quantity{
 	model.ObjectivePitch:         {"pitch", "Pitch variation", Degree, 4, "pitch_rad"},
 	model.ObjectiveRoll:          {"roll", "Roll variation", Degree, 4, "roll_rad"},
 	model.ObjectiveHeaveAccel:    {"heave accel", "Heave acceleration", Gravity, 4, "heave_accel_m_per_s2"},
+	model.ObjectiveDownforce:     {"downforce", "Downforce variation", Newton, 1, "downforce_n"},
+	model.ObjectiveBalance:       {"balance", "Aero balance variation", Percent, 3, "balance"},
 }
 
 // lookup is k's row of table, or for a kind the table does not know its
@@ -136,11 +138,12 @@ func Constraint(k model.ConstraintKind) Quantity {
 
 // constraints is the table of Constraint.
 var constraints = map[model.ConstraintKind]Quantity{
-	model.ConstraintLiftOff:    {"lift-off probability", "Lift-off probability", Percent, 3, "lift_off_probability"},
-	model.ConstraintBumpStop:   {"bump-stop probability", "Bump-stop probability", Percent, 3, "bump_stop_probability"},
-	model.ConstraintTravel:     {"travel sd", "Travel sd", Millimetre, 2, "travel_sd_m"},
-	model.ConstraintJacking:    {"ride-height shift", "Ride-height shift", Millimetre, 2, "ride_height_shift_m"},
-	model.ConstraintModalRatio: {"modal ratio", "Modal ratio", Dimensionless, 3, "modal_damping_ratio"},
+	model.ConstraintLiftOff:      {"lift-off probability", "Lift-off probability", Percent, 3, "lift_off_probability"},
+	model.ConstraintBumpStop:     {"bump-stop probability", "Bump-stop probability", Percent, 3, "bump_stop_probability"},
+	model.ConstraintTravel:       {"travel sd", "Travel sd", Millimetre, 2, "travel_sd_m"},
+	model.ConstraintJacking:      {"ride-height shift", "Ride-height shift", Millimetre, 2, "ride_height_shift_m"},
+	model.ConstraintModalRatio:   {"modal ratio", "Modal ratio", Dimensionless, 3, "modal_damping_ratio"},
+	model.ConstraintFloorContact: {"floor-contact probability", "Floor-contact probability", Percent, 3, "floor_contact_probability"},
 }
 
 // Gene is how a searched variable of the design space is shown, by its

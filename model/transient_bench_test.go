@@ -1,0 +1,38 @@
+package model
+
+import "testing"
+
+// BenchmarkTransientCase is one evaluation of one manoeuvre or kerb case
+// on the demo car (piecewise dampers with knees); its history buffers
+// come from the case's pool, so a warm evaluation allocates nothing.
+func BenchmarkTransientCase(b *testing.B) {
+	v := demoCar()
+	v.LoadPaths = LoadPaths{CGHeight: 0.45, RollCentreHeight: [2]float64{0.05, 0.08}, UnsprungCGHeight: [2]float64{0.33, 0.34}}
+	s := demoSetup()
+	d := v.wheelDampers(&s)
+	for _, bc := range []struct {
+		name string
+		man  *Manoeuvre
+		kerb *Kerb
+	}{
+		{"brake", &Manoeuvre{Name: "brake", Shape: ShapeBrake, Speed: 55, Longitudinal: 1.8 * StandardGravity, Start: 0.1, Ramp: 0.15}, nil},
+		{"turn_in", &Manoeuvre{Name: "turn", Shape: ShapeTurnIn, Speed: 45, Lateral: 1.6 * StandardGravity, Start: 0.1, Ramp: 0.3}, nil},
+		{"kerb", nil, &Kerb{Name: "kerb", Shape: KerbTrapezoid, Side: KerbLeft, Height: 0.03, Length: 1.5, Speed: 40}},
+	} {
+		b.Run(bc.name, func(b *testing.B) {
+			c := prepare(b, &v, bc.man, bc.kerb, TransientOptions{}, &[4]wheelDamper{{cb: 2 * d[0].cr}, {cb: 2 * d[1].cr}, {cb: 2 * d[2].cr}, {cb: 2 * d[3].cr}})
+			var m TransientMetrics
+			if err := c.evaluate(&d, &m); err != nil {
+				b.Fatal(err)
+			}
+			b.ReportAllocs()
+			b.ResetTimer()
+			for b.Loop() {
+				if err := c.evaluate(&d, &m); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(c.steps), "steps")
+		})
+	}
+}
