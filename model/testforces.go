@@ -6,14 +6,14 @@ import "fmt"
 // read at a few damper velocities, the figures a damper dyno is set to
 // check.
 
-// DamperTestVelocities are the damper velocities (m/s) a specification
-// gives forces at: 25, 50, 100, 150, 200, 250 and 300 mm/s. Common dyno
-// practice (no single source; from memory): two points in the low-speed
-// range, where platform and balance are set (the common-practice knee of
-// 50 mm/s among them), then steps of 50 mm/s through the high-speed range
-// a track's bumps and kerbs reach (the demo's damper velocity sd is about
-// 10-30 mm/s, so 300 mm/s is past three sd on its roughest case).
-var DamperTestVelocities = []float64{0.025, 0.05, 0.1, 0.15, 0.2, 0.25, 0.3}
+// The test velocities of a specification are BandVelocities, the speeds
+// the out-of-band check uses too: 25, 50, 100, 150, 200, 250 and 300
+// mm/s. Common dyno practice (no single source; from memory): two points
+// in the low-speed range, where platform and balance are set (the
+// common-practice knee of 50 mm/s among them), then steps of 50 mm/s
+// through the high-speed range a track's bumps and kerbs reach (the
+// demo's damper velocity sd is about 10-30 mm/s, so 300 mm/s is past
+// three sd on its roughest case).
 
 // DamperForceTolerance is the band a built damper's force may lie in
 // around the specified one, ±10 % of it (common practice for a damper

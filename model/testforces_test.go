@@ -23,7 +23,7 @@ func TestDamperTestForcesClosedForm(t *testing.T) {
 	const tol, ccrit, knee, r = 1e-12, 9375.0, 0.05, 0.3
 	v := handCar()
 	tg := DefaultHandTargets()
-	got, err := DamperTestForces(&v, &tg.Setup, tg.Adjustment, DamperTestVelocities)
+	got, err := DamperTestForces(&v, &tg.Setup, tg.Adjustment, BandVelocities)
 	if err != nil {
 		t.Fatal(err)
 	}

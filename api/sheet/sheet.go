@@ -44,6 +44,11 @@ type Sheet struct {
 	Objectives []Figure
 	Feasible   bool
 	Infeasible string // why not, when not feasible
+	// Band is whether the spec gives an adjuster range; OutOfBand names
+	// each corner and direction whose damper lies outside it
+	// (model.OutOfBand at the test velocities), empty when within.
+	Band      bool
+	OutOfBand []string
 
 	Velocities    []string // test velocities, mm/s
 	ForceTables   []ForceTable
@@ -151,9 +156,18 @@ func Build(job *pb.Job, sol *pb.Solution, balanced bool) (*Sheet, error) {
 	if err != nil {
 		return nil, fmt.Errorf("sheet: solution %d: %w", s.Index, err)
 	}
-	forces, err := model.DamperTestForces(&in.Vehicle, &setup, in.Adjustment, model.DamperTestVelocities)
+	forces, err := model.DamperTestForces(&in.Vehicle, &setup, in.Adjustment, model.BandVelocities)
 	if err != nil {
 		return nil, fmt.Errorf("sheet: solution %d: %w", s.Index, err)
+	}
+	adjs := model.AdjustersOf(in.Adjustment)
+	s.Band = adjs.Given()
+	excess, err := model.OutOfBand(&in.Vehicle, &setup, &adjs, model.BandVelocities)
+	if err != nil {
+		return nil, fmt.Errorf("sheet: solution %d: %w", s.Index, err)
+	}
+	for _, e := range excess {
+		s.OutOfBand = append(s.OutOfBand, e.String())
 	}
 	s.Velocities = velocityTexts()
 	s.ForceTables = forceTables(forces)
@@ -216,8 +230,8 @@ func velocityList() string {
 }
 
 func velocityTexts() []string {
-	out := make([]string, len(model.DamperTestVelocities))
-	for k, v := range model.DamperTestVelocities {
+	out := make([]string, len(model.BandVelocities))
+	for k, v := range model.BandVelocities {
 		out[k] = trade(tradeunit.MillimetrePerSecond, v, 0)
 	}
 	return out

@@ -13,6 +13,8 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/sheet"
 	"dampfront/model"
+
+	"google.golang.org/protobuf/proto"
 )
 
 // sheetJob runs the demo job (cut short) and returns the bundle, the
@@ -83,7 +85,7 @@ func TestSheetForcesAgreeWithCurvesAndHand(t *testing.T) {
 			i := slicesIndex(model.CornerNames[:], corner)
 			dc, hc := cr.GetCurves()[i], hand.GetCorners()[i]
 			for k, row := range ft.Rows {
-				v := model.DamperTestVelocities[k]
+				v := model.BandVelocities[k]
 				bump, rebound := parseN(t, row.Bump), parseN(t, row.Rebound)
 				for _, x := range []struct {
 					name       string
@@ -113,7 +115,7 @@ func TestSheetForcesAgreeWithCurvesAndHand(t *testing.T) {
 			}
 		}
 	}
-	if checked < 4*len(model.DamperTestVelocities)*6 {
+	if checked < 4*len(model.BandVelocities)*6 {
 		t.Errorf("only %d figures checked; the sheet's tables do not cover the four corners", checked)
 	}
 }
@@ -202,6 +204,34 @@ func TestSheetPages(t *testing.T) {
 	if !strings.Contains(body, "Modes, solution 0") || !strings.Contains(body, "heave") {
 		t.Errorf("modes of solution 0:\n%s", body)
 	}
+	if !strings.Contains(body, "Adjuster range") {
+		t.Error("the sheet does not say whether the damper lies in its adjuster range")
+	}
+
+	// A solution made stiffer than the stiffest click is flagged out of
+	// band on its sheet.
+	ctx := testContext(t)
+	jr, err := b.client.GetJob(ctx, &pb.GetJobRequest{Name: name, View: pb.JobView_JOB_VIEW_FULL})
+	if err != nil {
+		t.Fatal(err)
+	}
+	fr, err := b.client.GetFront(ctx, &pb.GetFrontRequest{Job: name, PageSize: 1000, View: pb.SolutionView_SOLUTION_VIEW_FULL})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sol := proto.Clone(fr.GetFront().GetSolutions()[0]).(*pb.Solution)
+	sol.Setup.Front.BumpRatio = 2 * jr.GetJob().GetSpec().GetAdjustment().GetBumpStiffestRatio()
+	stiff, err := sheet.Build(jr.GetJob(), sol, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !stiff.Band || len(stiff.OutOfBand) == 0 || !strings.Contains(strings.Join(stiff.OutOfBand, "; "), "FL bump") {
+		t.Errorf("a front bump ratio twice the stiffest click's: out of band %q, want FL bump named", stiff.OutOfBand)
+	}
+	if len(s.OutOfBand) != 0 {
+		t.Logf("the balanced point lies out of its band: %q", s.OutOfBand)
+	}
+
 	res, body = get(t, b, "/jobs/"+id+"/solutions/100000/sheet.html")
 	wantStatus(t, "sheet of a solution not on the front", res, body, http.StatusNotFound)
 	res, body = get(t, b, "/jobs/"+id+"/solutions/x/sheet.html")
