@@ -187,7 +187,7 @@ func TestSheetPages(t *testing.T) {
 	res, body := get(t, b, fmt.Sprintf("/jobs/%s/solutions/%d/sheet.html", id, s.Index))
 	wantStatus(t, "sheet", res, body, http.StatusOK)
 	for _, want := range []string{"@media print", "size: A4", html.EscapeString(model.Caution), "Forces at the test velocities", "<svg", "Gillespie 1992",
-		"modal ratio", "hand ratio", "the tyres in series", "common practice", fmt.Sprintf("solution %d", s.Index)} {
+		"modal ratio", "hand ratio", "the tyres in series", "common practice", fmt.Sprintf("solution %d", s.Index), "Adjuster range"} {
 		if !strings.Contains(body, want) {
 			t.Errorf("the sheet lacks %q", want)
 		}
@@ -204,10 +204,6 @@ func TestSheetPages(t *testing.T) {
 	if !strings.Contains(body, "Modes, solution 0") || !strings.Contains(body, "heave") {
 		t.Errorf("modes of solution 0:\n%s", body)
 	}
-	if !strings.Contains(body, "Adjuster range") {
-		t.Error("the sheet does not say whether the damper lies in its adjuster range")
-	}
-
 	// A solution made stiffer than the stiffest click is flagged out of
 	// band on its sheet.
 	ctx := testContext(t)
