@@ -79,6 +79,7 @@ type jobView struct {
 	Curves         *curvesView
 	Modes          *modesView
 	ModalSVG       template.HTML // modal ratios across the front
+	AtSpeed        *atSpeedView
 	Downloads      []link
 }
 
@@ -187,6 +188,7 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 		}
 		v.Curves = c
 		v.Modes = newModesView(id, pick, sheet.Modes(s))
+		v.AtSpeed = newAtSpeedView(s)
 	}
 	if fig, err := plot.ModalRatios(front, plot.ModalOptions{}); err == nil {
 		if b, err := svgBytes(fig); err == nil {
