@@ -141,6 +141,9 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 	}
 	bal := balancedIndex(sols)
 	cols := newSolutionColumns(f)
+	for _, s := range sols {
+		cols.band = cols.band || len(s.GetOutOfBand()) > 0
+	}
 	_, withSlopes := slopes(sols[0])
 
 	fmt.Fprintln(w)
@@ -194,14 +197,11 @@ type solutionColumns struct {
 	genes []string
 	extra []int      // indices of the genes beyond the four ratios
 	objQ  []quantity // of each objective
-	band  bool       // a solution lies outside the adjuster range: its column shows
+	band  bool       // show the out-of-range column (the front table, when a solution needs it)
 }
 
 func newSolutionColumns(f *pb.Front) *solutionColumns {
 	c := &solutionColumns{genes: f.GetGeneNames(), extra: extraGenes(f.GetGeneNames())}
-	for _, s := range f.GetSolutions() {
-		c.band = c.band || len(s.GetOutOfBand()) > 0
-	}
 	for _, o := range f.GetObjectives() {
 		c.objQ = append(c.objQ, objectiveQuantity(o.GetKind()))
 	}
