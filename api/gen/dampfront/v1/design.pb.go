@@ -444,9 +444,15 @@ type DesignSpace struct {
 	// Every value that is not searched. An absent base, or an absent axle
 	// of it, means knees at 0.05 m/s and high-speed factors 0.5 there. Its
 	// ratios are ignored: they are always searched.
-	Base          *Setup `protobuf:"bytes,7,opt,name=base,proto3" json:"base,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	Base *Setup `protobuf:"bytes,7,opt,name=base,proto3" json:"base,omitempty"`
+	// Searched heave damper ratio on the front axle (bump = rebound, of the
+	// axle's heave critical damping); absent searches none (base.front_heave
+	// then gives the heave damper, if any). Needs a front heave element.
+	FrontHeaveRatio *Range `protobuf:"bytes,20,opt,name=front_heave_ratio,json=frontHeaveRatio,proto3" json:"front_heave_ratio,omitempty"`
+	// Searched heave damper ratio on the rear axle, as front_heave_ratio.
+	RearHeaveRatio *Range `protobuf:"bytes,21,opt,name=rear_heave_ratio,json=rearHeaveRatio,proto3" json:"rear_heave_ratio,omitempty"`
+	unknownFields  protoimpl.UnknownFields
+	sizeCache      protoimpl.SizeCache
 }
 
 func (x *DesignSpace) Reset() {
@@ -524,6 +530,20 @@ func (x *DesignSpace) GetRearHighSpeedFactor() *Range {
 func (x *DesignSpace) GetBase() *Setup {
 	if x != nil {
 		return x.Base
+	}
+	return nil
+}
+
+func (x *DesignSpace) GetFrontHeaveRatio() *Range {
+	if x != nil {
+		return x.FrontHeaveRatio
+	}
+	return nil
+}
+
+func (x *DesignSpace) GetRearHeaveRatio() *Range {
+	if x != nil {
+		return x.RearHeaveRatio
 	}
 	return nil
 }
@@ -633,7 +653,12 @@ type Setup struct {
 	// Front axle.
 	Front *AxleDamping `protobuf:"bytes,1,opt,name=front,proto3" json:"front,omitempty"`
 	// Rear axle.
-	Rear          *AxleDamping `protobuf:"bytes,2,opt,name=rear,proto3" json:"rear,omitempty"`
+	Rear *AxleDamping `protobuf:"bytes,2,opt,name=rear,proto3" json:"rear,omitempty"`
+	// Front heave damper, ratios of the axle's heave critical damping,
+	// knees at the element; absent means none. Needs a front heave element.
+	FrontHeave *AxleDamping `protobuf:"bytes,20,opt,name=front_heave,json=frontHeave,proto3" json:"front_heave,omitempty"`
+	// Rear heave damper, as front_heave.
+	RearHeave     *AxleDamping `protobuf:"bytes,21,opt,name=rear_heave,json=rearHeave,proto3" json:"rear_heave,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -678,6 +703,20 @@ func (x *Setup) GetFront() *AxleDamping {
 func (x *Setup) GetRear() *AxleDamping {
 	if x != nil {
 		return x.Rear
+	}
+	return nil
+}
+
+func (x *Setup) GetFrontHeave() *AxleDamping {
+	if x != nil {
+		return x.FrontHeave
+	}
+	return nil
+}
+
+func (x *Setup) GetRearHeave() *AxleDamping {
+	if x != nil {
+		return x.RearHeave
 	}
 	return nil
 }
@@ -1075,7 +1114,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"front_bump\x18\x01 \x01(\v2\x13.dampfront.v1.RangeR\tfrontBump\x128\n" +
 	"\rfront_rebound\x18\x02 \x01(\v2\x13.dampfront.v1.RangeR\ffrontRebound\x120\n" +
 	"\trear_bump\x18\x03 \x01(\v2\x13.dampfront.v1.RangeR\brearBump\x126\n" +
-	"\frear_rebound\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\vrearRebound\"\x9d\x03\n" +
+	"\frear_rebound\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\vrearRebound\"\x9d\x04\n" +
 	"\vDesignSpace\x121\n" +
 	"\x06ratios\x18\x01 \x01(\v2\x19.dampfront.v1.RatioBoundsR\x06ratios\x12\x1c\n" +
 	"\tsymmetric\x18\x02 \x01(\bR\tsymmetric\x12?\n" +
@@ -1083,7 +1122,9 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x11rear_knee_m_per_s\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\rrearKneeMPerS\x12J\n" +
 	"\x17front_high_speed_factor\x18\x05 \x01(\v2\x13.dampfront.v1.RangeR\x14frontHighSpeedFactor\x12H\n" +
 	"\x16rear_high_speed_factor\x18\x06 \x01(\v2\x13.dampfront.v1.RangeR\x13rearHighSpeedFactor\x12'\n" +
-	"\x04base\x18\a \x01(\v2\x13.dampfront.v1.SetupR\x04base\"\x9b\x02\n" +
+	"\x04base\x18\a \x01(\v2\x13.dampfront.v1.SetupR\x04base\x12?\n" +
+	"\x11front_heave_ratio\x18\x14 \x01(\v2\x13.dampfront.v1.RangeR\x0ffrontHeaveRatio\x12=\n" +
+	"\x10rear_heave_ratio\x18\x15 \x01(\v2\x13.dampfront.v1.RangeR\x0erearHeaveRatio\"\x9b\x02\n" +
 	"\vAxleDamping\x12\x1d\n" +
 	"\n" +
 	"bump_ratio\x18\x01 \x01(\x01R\tbumpRatio\x12#\n" +
@@ -1091,10 +1132,14 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x11knee_bump_m_per_s\x18\x03 \x01(\x01R\rkneeBumpMPerS\x12.\n" +
 	"\x14knee_rebound_m_per_s\x18\x04 \x01(\x01R\x10kneeReboundMPerS\x123\n" +
 	"\x16high_speed_bump_factor\x18\x05 \x01(\x01R\x13highSpeedBumpFactor\x129\n" +
-	"\x19high_speed_rebound_factor\x18\x06 \x01(\x01R\x16highSpeedReboundFactor\"g\n" +
+	"\x19high_speed_rebound_factor\x18\x06 \x01(\x01R\x16highSpeedReboundFactor\"\xdd\x01\n" +
 	"\x05Setup\x12/\n" +
 	"\x05front\x18\x01 \x01(\v2\x19.dampfront.v1.AxleDampingR\x05front\x12-\n" +
-	"\x04rear\x18\x02 \x01(\v2\x19.dampfront.v1.AxleDampingR\x04rear\"\xd9\x01\n" +
+	"\x04rear\x18\x02 \x01(\v2\x19.dampfront.v1.AxleDampingR\x04rear\x12:\n" +
+	"\vfront_heave\x18\x14 \x01(\v2\x19.dampfront.v1.AxleDampingR\n" +
+	"frontHeave\x128\n" +
+	"\n" +
+	"rear_heave\x18\x15 \x01(\v2\x19.dampfront.v1.AxleDampingR\trearHeave\"\xd9\x01\n" +
 	"\tObjective\x12/\n" +
 	"\x04kind\x18\x01 \x01(\x0e2\x1b.dampfront.v1.ObjectiveKindR\x04kind\x12;\n" +
 	"\vaggregation\x18\x02 \x01(\x0e2\x19.dampfront.v1.AggregationR\vaggregation\x12/\n" +
@@ -1194,18 +1239,22 @@ var file_dampfront_v1_design_proto_depIdxs = []int32{
 	4,  // 7: dampfront.v1.DesignSpace.front_high_speed_factor:type_name -> dampfront.v1.Range
 	4,  // 8: dampfront.v1.DesignSpace.rear_high_speed_factor:type_name -> dampfront.v1.Range
 	8,  // 9: dampfront.v1.DesignSpace.base:type_name -> dampfront.v1.Setup
-	7,  // 10: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
-	7,  // 11: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
-	0,  // 12: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
-	1,  // 13: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
-	2,  // 14: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
-	2,  // 15: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
-	3,  // 16: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
-	17, // [17:17] is the sub-list for method output_type
-	17, // [17:17] is the sub-list for method input_type
-	17, // [17:17] is the sub-list for extension type_name
-	17, // [17:17] is the sub-list for extension extendee
-	0,  // [0:17] is the sub-list for field type_name
+	4,  // 10: dampfront.v1.DesignSpace.front_heave_ratio:type_name -> dampfront.v1.Range
+	4,  // 11: dampfront.v1.DesignSpace.rear_heave_ratio:type_name -> dampfront.v1.Range
+	7,  // 12: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
+	7,  // 13: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
+	7,  // 14: dampfront.v1.Setup.front_heave:type_name -> dampfront.v1.AxleDamping
+	7,  // 15: dampfront.v1.Setup.rear_heave:type_name -> dampfront.v1.AxleDamping
+	0,  // 16: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
+	1,  // 17: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
+	2,  // 18: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
+	2,  // 19: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
+	3,  // 20: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
+	21, // [21:21] is the sub-list for method output_type
+	21, // [21:21] is the sub-list for method input_type
+	21, // [21:21] is the sub-list for extension type_name
+	21, // [21:21] is the sub-list for extension extendee
+	0,  // [0:21] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_design_proto_init() }

@@ -73,8 +73,12 @@ type Vehicle struct {
 	// Rear ride height of the car at rest, as front_rest_ride_height_m.
 	// Plausible range when given (not 0): [0.005, 0.5] m.
 	RearRestRideHeightM float64 `protobuf:"fixed64,15,opt,name=rear_rest_ride_height_m,json=rearRestRideHeightM,proto3" json:"rear_rest_ride_height_m,omitempty"`
-	unknownFields       protoimpl.UnknownFields
-	sizeCache           protoimpl.SizeCache
+	// Front heave (third) spring and damper; absent means none.
+	FrontHeave *HeaveElement `protobuf:"bytes,20,opt,name=front_heave,json=frontHeave,proto3" json:"front_heave,omitempty"`
+	// Rear heave (third) spring and damper; absent means none.
+	RearHeave     *HeaveElement `protobuf:"bytes,21,opt,name=rear_heave,json=rearHeave,proto3" json:"rear_heave,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *Vehicle) Reset() {
@@ -212,6 +216,107 @@ func (x *Vehicle) GetRearRestRideHeightM() float64 {
 	return 0
 }
 
+func (x *Vehicle) GetFrontHeave() *HeaveElement {
+	if x != nil {
+		return x.FrontHeave
+	}
+	return nil
+}
+
+func (x *Vehicle) GetRearHeave() *HeaveElement {
+	if x != nil {
+		return x.RearHeave
+	}
+	return nil
+}
+
+// HeaveElement is one axle's heave (third) spring, damper and packer: an
+// element that strokes with the axle's mean wheel travel (s_L + s_R)/2
+// through its own motion ratio, so it works in heave and pitch and not in
+// roll. Its spring adds spring_rate * motion_ratio^2 to the axle's heave
+// rate at the wheels. Its damper is set in Setup.front_heave/rear_heave
+// as ratios of the axle's heave critical damping
+// 2 sqrt(k_heave m_axle), k_heave the axle's heave rate at the wheels
+// (corner springs and heave spring) and m_axle its sprung mass.
+type HeaveElement struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Element travel per mean wheel travel of the axle; required when any
+	// other field is given.
+	// Plausible range: [0.1, 2].
+	MotionRatio float64 `protobuf:"fixed64,1,opt,name=motion_ratio,json=motionRatio,proto3" json:"motion_ratio,omitempty"`
+	// Heave spring rate at the element; 0 is a heave damper without a spring.
+	// Plausible range: [0, 1e+07] N/m.
+	SpringRateNPerM float64 `protobuf:"fixed64,2,opt,name=spring_rate_n_per_m,json=springRateNPerM,proto3" json:"spring_rate_n_per_m,omitempty"`
+	// Element travel in bump from the car at rest to packer contact; 0
+	// means no packer. At speed the downforce uses part of it.
+	// Plausible range: [0, 0.3] m.
+	PackerGapM float64 `protobuf:"fixed64,3,opt,name=packer_gap_m,json=packerGapM,proto3" json:"packer_gap_m,omitempty"`
+	// Packer rate at the element once in contact, used by the time-domain
+	// check; 0 counts the contact only.
+	// Plausible range when given (not 0): [1000, 1e+08] N/m.
+	PackerRateNPerM float64 `protobuf:"fixed64,4,opt,name=packer_rate_n_per_m,json=packerRateNPerM,proto3" json:"packer_rate_n_per_m,omitempty"`
+	unknownFields   protoimpl.UnknownFields
+	sizeCache       protoimpl.SizeCache
+}
+
+func (x *HeaveElement) Reset() {
+	*x = HeaveElement{}
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *HeaveElement) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*HeaveElement) ProtoMessage() {}
+
+func (x *HeaveElement) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use HeaveElement.ProtoReflect.Descriptor instead.
+func (*HeaveElement) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{1}
+}
+
+func (x *HeaveElement) GetMotionRatio() float64 {
+	if x != nil {
+		return x.MotionRatio
+	}
+	return 0
+}
+
+func (x *HeaveElement) GetSpringRateNPerM() float64 {
+	if x != nil {
+		return x.SpringRateNPerM
+	}
+	return 0
+}
+
+func (x *HeaveElement) GetPackerGapM() float64 {
+	if x != nil {
+		return x.PackerGapM
+	}
+	return 0
+}
+
+func (x *HeaveElement) GetPackerRateNPerM() float64 {
+	if x != nil {
+		return x.PackerRateNPerM
+	}
+	return 0
+}
+
 // Corner is one wheel station. Give either spring_rate_n_per_m with
 // spring_motion_ratio (wheel rate k MR^2) or wheel_rate_n_per_m directly.
 type Corner struct {
@@ -254,7 +359,7 @@ type Corner struct {
 
 func (x *Corner) Reset() {
 	*x = Corner{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -266,7 +371,7 @@ func (x *Corner) String() string {
 func (*Corner) ProtoMessage() {}
 
 func (x *Corner) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -279,7 +384,7 @@ func (x *Corner) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Corner.ProtoReflect.Descriptor instead.
 func (*Corner) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{1}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{2}
 }
 
 func (x *Corner) GetSpringRateNPerM() float64 {
@@ -371,7 +476,7 @@ type AntiRollBar struct {
 
 func (x *AntiRollBar) Reset() {
 	*x = AntiRollBar{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -383,7 +488,7 @@ func (x *AntiRollBar) String() string {
 func (*AntiRollBar) ProtoMessage() {}
 
 func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -396,7 +501,7 @@ func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AntiRollBar.ProtoReflect.Descriptor instead.
 func (*AntiRollBar) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{2}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{3}
 }
 
 func (x *AntiRollBar) GetWheelRateNPerM() float64 {
@@ -454,7 +559,7 @@ type Aero struct {
 
 func (x *Aero) Reset() {
 	*x = Aero{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -466,7 +571,7 @@ func (x *Aero) String() string {
 func (*Aero) ProtoMessage() {}
 
 func (x *Aero) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -479,7 +584,7 @@ func (x *Aero) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Aero.ProtoReflect.Descriptor instead.
 func (*Aero) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *Aero) GetReferenceSpeedMPerS() float64 {
@@ -553,7 +658,7 @@ type AeroTable struct {
 
 func (x *AeroTable) Reset() {
 	*x = AeroTable{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -565,7 +670,7 @@ func (x *AeroTable) String() string {
 func (*AeroTable) ProtoMessage() {}
 
 func (x *AeroTable) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -578,7 +683,7 @@ func (x *AeroTable) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTable.ProtoReflect.Descriptor instead.
 func (*AeroTable) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *AeroTable) GetFrontRideHeightM() []float64 {
@@ -625,7 +730,7 @@ type AeroPolynomial struct {
 
 func (x *AeroPolynomial) Reset() {
 	*x = AeroPolynomial{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -637,7 +742,7 @@ func (x *AeroPolynomial) String() string {
 func (*AeroPolynomial) ProtoMessage() {}
 
 func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -650,7 +755,7 @@ func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroPolynomial.ProtoReflect.Descriptor instead.
 func (*AeroPolynomial) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *AeroPolynomial) GetFrontOriginM() float64 {
@@ -692,7 +797,7 @@ type AeroTerm struct {
 
 func (x *AeroTerm) Reset() {
 	*x = AeroTerm{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -704,7 +809,7 @@ func (x *AeroTerm) String() string {
 func (*AeroTerm) ProtoMessage() {}
 
 func (x *AeroTerm) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -717,7 +822,7 @@ func (x *AeroTerm) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTerm.ProtoReflect.Descriptor instead.
 func (*AeroTerm) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *AeroTerm) GetFrontPower() uint32 {
@@ -752,7 +857,7 @@ var File_dampfront_v1_vehicle_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\"\xb5\x05\n" +
+	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\"\xad\x06\n" +
 	"\aVehicle\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12$\n" +
 	"\x0esprung_mass_kg\x18\x02 \x01(\x01R\fsprungMassKg\x12-\n" +
@@ -771,7 +876,17 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\x12rear_anti_roll_bar\x18\f \x01(\v2\x19.dampfront.v1.AntiRollBarR\x0frearAntiRollBar\x12&\n" +
 	"\x04aero\x18\r \x01(\v2\x12.dampfront.v1.AeroR\x04aero\x126\n" +
 	"\x18front_rest_ride_height_m\x18\x0e \x01(\x01R\x14frontRestRideHeightM\x124\n" +
-	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\"\xc9\x03\n" +
+	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\x12;\n" +
+	"\vfront_heave\x18\x14 \x01(\v2\x1a.dampfront.v1.HeaveElementR\n" +
+	"frontHeave\x129\n" +
+	"\n" +
+	"rear_heave\x18\x15 \x01(\v2\x1a.dampfront.v1.HeaveElementR\trearHeave\"\xaf\x01\n" +
+	"\fHeaveElement\x12!\n" +
+	"\fmotion_ratio\x18\x01 \x01(\x01R\vmotionRatio\x12,\n" +
+	"\x13spring_rate_n_per_m\x18\x02 \x01(\x01R\x0fspringRateNPerM\x12 \n" +
+	"\fpacker_gap_m\x18\x03 \x01(\x01R\n" +
+	"packerGapM\x12,\n" +
+	"\x13packer_rate_n_per_m\x18\x04 \x01(\x01R\x0fpackerRateNPerM\"\xc9\x03\n" +
 	"\x06Corner\x12,\n" +
 	"\x13spring_rate_n_per_m\x18\x01 \x01(\x01R\x0fspringRateNPerM\x12.\n" +
 	"\x13spring_motion_ratio\x18\x02 \x01(\x01R\x11springMotionRatio\x12*\n" +
@@ -827,29 +942,32 @@ func file_dampfront_v1_vehicle_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_vehicle_proto_rawDescData
 }
 
-var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 7)
+var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 8)
 var file_dampfront_v1_vehicle_proto_goTypes = []any{
 	(*Vehicle)(nil),        // 0: dampfront.v1.Vehicle
-	(*Corner)(nil),         // 1: dampfront.v1.Corner
-	(*AntiRollBar)(nil),    // 2: dampfront.v1.AntiRollBar
-	(*Aero)(nil),           // 3: dampfront.v1.Aero
-	(*AeroTable)(nil),      // 4: dampfront.v1.AeroTable
-	(*AeroPolynomial)(nil), // 5: dampfront.v1.AeroPolynomial
-	(*AeroTerm)(nil),       // 6: dampfront.v1.AeroTerm
+	(*HeaveElement)(nil),   // 1: dampfront.v1.HeaveElement
+	(*Corner)(nil),         // 2: dampfront.v1.Corner
+	(*AntiRollBar)(nil),    // 3: dampfront.v1.AntiRollBar
+	(*Aero)(nil),           // 4: dampfront.v1.Aero
+	(*AeroTable)(nil),      // 5: dampfront.v1.AeroTable
+	(*AeroPolynomial)(nil), // 6: dampfront.v1.AeroPolynomial
+	(*AeroTerm)(nil),       // 7: dampfront.v1.AeroTerm
 }
 var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
-	1, // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
-	2, // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	2, // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	3, // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
-	4, // 4: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
-	5, // 5: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
-	6, // 6: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
-	7, // [7:7] is the sub-list for method output_type
-	7, // [7:7] is the sub-list for method input_type
-	7, // [7:7] is the sub-list for extension type_name
-	7, // [7:7] is the sub-list for extension extendee
-	0, // [0:7] is the sub-list for field type_name
+	2, // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
+	3, // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	3, // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	4, // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
+	1, // 4: dampfront.v1.Vehicle.front_heave:type_name -> dampfront.v1.HeaveElement
+	1, // 5: dampfront.v1.Vehicle.rear_heave:type_name -> dampfront.v1.HeaveElement
+	5, // 6: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
+	6, // 7: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
+	7, // 8: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
+	9, // [9:9] is the sub-list for method output_type
+	9, // [9:9] is the sub-list for method input_type
+	9, // [9:9] is the sub-list for extension type_name
+	9, // [9:9] is the sub-list for extension extendee
+	0, // [0:9] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_vehicle_proto_init() }
@@ -863,7 +981,7 @@ func file_dampfront_v1_vehicle_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_vehicle_proto_rawDesc), len(file_dampfront_v1_vehicle_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   7,
+			NumMessages:   8,
 			NumExtensions: 0,
 			NumServices:   0,
 		},
