@@ -76,9 +76,31 @@ func TestPrototypeDemoData(t *testing.T) {
 func TestDemoPrototype(t *testing.T) {
 	t.Parallel()
 	r := mustRun(t, exitOK, []string{"TMPDIR=" + t.TempDir()}, "demo", "--quiet", "--prototype")
-	for _, want := range []string{"succeeded: 12 of 12 generations", "heave", "Damper curves of the balanced point", cautionText} {
+	for _, want := range []string{"succeeded: 12 of 12 generations", "front heave ratio  rear heave ratio", "Damper curves of the balanced point", cautionText} {
 		if !strings.Contains(r.stdout, want) {
 			t.Errorf("demo --prototype output lacks %q:\n%s", want, r.stdout)
 		}
+	}
+}
+
+// The heave-element table of eval: front/rear at the element in trade
+// units (mm, mm/s, %), and nothing for a car without heave elements.
+func TestWriteHeave(t *testing.T) {
+	t.Parallel()
+	m := &pb.CaseMetrics{RoadCase: "Caldermere esses",
+		Front: &pb.AxleMetrics{HeaveTravelSdM: 0.00125, HeaveVelocitySdMPerS: 0.0312, PackerGapAtSpeedM: 0.0089, PackerProbability: 0.0025},
+		Rear:  &pb.AxleMetrics{HeaveTravelSdM: 0.0005, HeaveVelocitySdMPerS: 0.02, PackerGapAtSpeedM: 0.0111}}
+	var b strings.Builder
+	if err := writeHeave(&b, []*pb.CaseMetrics{m}); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"heave travel sd mm F/R", "packer % F/R", "1.250/0.500", "31.2/20.0", "8.90/11.10", "0.250/0.000"} {
+		if !strings.Contains(b.String(), want) {
+			t.Errorf("heave table lacks %q:\n%s", want, b.String())
+		}
+	}
+	b.Reset()
+	if err := writeHeave(&b, []*pb.CaseMetrics{{RoadCase: "x", Front: &pb.AxleMetrics{}, Rear: &pb.AxleMetrics{}}}); err != nil || b.Len() != 0 {
+		t.Errorf("a car without heave elements got %q (%v)", b.String(), err)
 	}
 }
