@@ -58,6 +58,7 @@ type jobView struct {
 	Best            []string
 	Partial         bool
 	Infeasible      string // the verdict of a job no setup of which met every constraint
+	FrontCheck      string // the check of a finished front in decision space (FrontCheckText)
 	CancelRequested bool
 	Terminal        bool
 	ProgressURL     string
@@ -92,7 +93,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 	v := &jobView{
 		pageView: pageView{Title: j.GetDisplayName()},
 		Job:      newJobRow(j), Seed: j.GetSeed(), Car: spec.GetVehicle().GetName(),
-		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
+		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), FrontCheck: FrontCheckText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
 		ProgressURL: "/jobs/" + url.PathEscape(id) + "/progress.json", PollMS: h.opt.PollInterval.Milliseconds(),
 		Balanced: -1,
 	}

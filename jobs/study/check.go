@@ -66,6 +66,9 @@ func Check(s *Spec) (*Checked, error) {
 	p.merge("curves.", model.ValidateCurveRange(spec.Curves.MaxVelocity, spec.Curves.Points))
 	c.settings = searchSettings(&spec.Search)
 	p.mergeMapped(settingsPath, c.settings.Validate(len(spec.Objectives)))
+	if b := spec.Search.PolishBudget; b < 0 || b > MaxPolishBudget {
+		p.add("search.polish_budget", "must be 0 (no polish) to %d evaluations per front point, got %d", MaxPolishBudget, b)
+	}
 	if err := p.err(); err != nil {
 		return nil, err
 	}
@@ -82,9 +85,10 @@ type Size struct {
 	Cases int
 	// GridPoints is the number of frequencies of each evaluation.
 	GridPoints int
-	// Work is population × islands × generations × road cases, the number
-	// of case evaluations the search makes (to within its initial
-	// population), saturating at the largest int64.
+	// Work is population × islands × (generations + polish budget) ×
+	// road cases, the number of case evaluations the search makes (to
+	// within its initial population, and counting the polish of a front
+	// as large as the population), saturating at the largest int64.
 	Work int64
 }
 
@@ -92,7 +96,7 @@ type Size struct {
 func (c *Checked) Size() Size {
 	q := &c.spec.Search
 	work := int64(1)
-	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations, len(c.spec.RoadCases)} {
+	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations + q.PolishBudget, len(c.spec.RoadCases)} {
 		work = mulSat(work, int64(n))
 	}
 	return Size{Cases: len(c.spec.RoadCases), GridPoints: c.spec.Grid.Points, Work: work}
@@ -123,6 +127,8 @@ func searchSettings(q *Search) optimizer.Settings {
 		MutationProbability:  *q.MutationProbability,
 		MutationEta:          *q.MutationEta,
 		ReferencePoint:       q.ReferencePoint,
+		StagnationWindow:     q.StagnationWindow,
+		StagnationTolerance:  q.StagnationTolerance,
 		Workers:              1,
 	}
 	if !(s.Islands > 1 && s.MigrationEvery > 0) {
