@@ -103,6 +103,8 @@ var (
 		pb.ObjectiveKind_OBJECTIVE_KIND_PITCH:          model.ObjectivePitch,
 		pb.ObjectiveKind_OBJECTIVE_KIND_ROLL:           model.ObjectiveRoll,
 		pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:    model.ObjectiveHeaveAccel,
+		pb.ObjectiveKind_OBJECTIVE_KIND_DOWNFORCE:      model.ObjectiveDownforce,
+		pb.ObjectiveKind_OBJECTIVE_KIND_BALANCE:        model.ObjectiveBalance,
 	}
 	aggregations = map[pb.Aggregation]model.Aggregation{
 		pb.Aggregation_AGGREGATION_UNSPECIFIED: model.AggregateMeanSquare,
@@ -111,11 +113,12 @@ var (
 		pb.Aggregation_AGGREGATION_NORMALISED:  model.AggregateNormalised,
 	}
 	constraintKinds = map[pb.ConstraintKind]model.ConstraintKind{
-		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:    model.ConstraintLiftOff,
-		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP:   model.ConstraintBumpStop,
-		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:      model.ConstraintTravel,
-		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:     model.ConstraintJacking,
-		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO: model.ConstraintModalRatio,
+		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:      model.ConstraintLiftOff,
+		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP:     model.ConstraintBumpStop,
+		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:        model.ConstraintTravel,
+		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:       model.ConstraintJacking,
+		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO:   model.ConstraintModalRatio,
+		pb.ConstraintKind_CONSTRAINT_KIND_FLOOR_CONTACT: model.ConstraintFloorContact,
 	}
 )
 

@@ -177,6 +177,12 @@ func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wt
 	var rhs [nDOF][maxRHS]complex128
 	var w [maxRHS][nIn]complex128
 	var out [nOut]float64
+	// The outputs computed: all, or the wheel velocities alone (the
+	// others stay 0 and need no sums).
+	lo, hi := 0, nOut
+	if velOnly {
+		lo, hi = outWheelVel, outWheelVel+nVelocityOut
+	}
 	for k, om := range omega {
 		out = [nOut]float64{}
 		jw := complex(0, om)
@@ -219,12 +225,12 @@ func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wt
 			}
 		}
 		wk := wts[k]
-		for o := range out {
+		for o := lo; o < hi; o++ {
 			acc[o] += wk * out[o]
 		}
 		for b := range bw {
 			if wb := bw[b][k]; wb != 0 {
-				for o := range out {
+				for o := lo; o < hi; o++ {
 					band[b][o] += wb * out[o]
 				}
 			}

@@ -75,6 +75,7 @@ type jobView struct {
 	Headers        []header
 	Rows           []solutionRow
 	Curves         *curvesView
+	AtSpeed        *atSpeedView
 	Downloads      []link
 }
 
@@ -182,6 +183,7 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 			c.SVG = inlineSVG(b)
 		}
 		v.Curves = c
+		v.AtSpeed = newAtSpeedView(s)
 	}
 }
 

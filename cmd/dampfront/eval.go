@@ -186,6 +186,9 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 	if err := writeAtSpeed(w, s.GetCaseMetrics()); err != nil {
 		return err
 	}
+	if err := writeAeroPlatform(w, s.GetCaseMetrics()); err != nil {
+		return err
+	}
 	fmt.Fprintln(w)
 	if err := writeHeave(w, s.GetCaseMetrics()); err != nil {
 		return err

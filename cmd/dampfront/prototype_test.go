@@ -16,7 +16,7 @@ import (
 // The second demo: the embedded job is testdata/prototype-job.yaml byte
 // for byte, its car is testdata/tessaly-p3.yaml, and the spec compiles:
 // the car has an equilibrium at every case's speed with its packers
-// clear (gap left > 0), and a setup in the middle of the bounds gives
+// clear (gap left > 0) and its two floor points off the ground, and a setup in the middle of the bounds gives
 // heave element metrics on both axles (travel sd > 0, packer
 // probability in [0, 1)).
 func TestPrototypeDemoData(t *testing.T) {
@@ -63,6 +63,16 @@ func TestPrototypeDemoData(t *testing.T) {
 				t.Errorf("%s %s: packer gap left %g m, heave travel sd %g m, packer probability %g", m.Case, model.AxleNames[ax],
 					m.AtSpeed.PackerGap[ax], m.HeaveTravelSD[ax], m.PackerProbability[ax])
 			}
+		}
+		pts := m.ReferencePoints()
+		if len(pts) != 2 {
+			t.Fatalf("%s: %d reference points, want the splitter and the plank", m.Case, len(pts))
+		}
+		for _, p := range pts {
+			if !(p.HeightAtSpeed > 0 && p.ContactProbability < 1e-3) {
+				t.Errorf("%s %s: height at speed %g m, contact %g: the floor touches the ground", m.Case, p.Name, p.HeightAtSpeed, p.ContactProbability)
+			}
+			t.Logf("%s %s: %.1f mm at speed, sd %.2f mm, contact %.2g", m.Case, p.Name, p.HeightAtSpeed*1e3, p.SD*1e3, p.ContactProbability)
 		}
 		t.Logf("%s: ride heights at speed %.1f/%.1f mm, packer gap left %.1f/%.1f mm, heave travel sd %.2f/%.2f mm, packer %.2g/%.2g",
 			m.Case, m.AtSpeed.RideHeight[0]*1e3, m.AtSpeed.RideHeight[1]*1e3, m.AtSpeed.PackerGap[0]*1e3, m.AtSpeed.PackerGap[1]*1e3,

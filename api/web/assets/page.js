@@ -30,6 +30,21 @@ function sortable(table) {
   });
 }
 
+// The car-at-speed section holds the figures of the solution the page was
+// loaded with; when another row is shown, say so and link its page.
+function atSpeedOf(index) {
+  var section = document.getElementById("at-speed");
+  var note = document.getElementById("at-speed-other");
+  if (!section || !note) { return; }
+  var other = section.dataset.solution !== index;
+  note.hidden = !other;
+  if (other) {
+    var link = document.getElementById("at-speed-link");
+    link.href = "?solution=" + index + "#at-speed";
+    link.textContent = "show solution " + index + "'s car at speed";
+  }
+}
+
 // Show the damper curves of a row's solution: fetch its chart and put it
 // in place of the one shown.
 function selectable(table, panel) {
@@ -57,6 +72,7 @@ function selectable(table, panel) {
       document.getElementById("curves-index").textContent = row.dataset.index;
       document.getElementById("curves-download").href = url + "?download=1";
       history.replaceState(null, "", "?solution=" + row.dataset.index);
+      atSpeedOf(row.dataset.index);
     }).catch(function (err) {
       problem.textContent = "The damper curves could not be shown: " + err.message;
       problem.hidden = false;

@@ -41,6 +41,13 @@ const (
 	ObjectiveKind_OBJECTIVE_KIND_ROLL ObjectiveKind = 6
 	// Heave acceleration standard deviation (m/s^2).
 	ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL ObjectiveKind = 7
+	// Downforce variation, sqrt(sd^2 + jacking shift^2) of the total
+	// downforce (N); needs aero. Weighs the ride heights by the aero map's
+	// slopes and their covariance, where PLATFORM weighs both axles alike.
+	ObjectiveKind_OBJECTIVE_KIND_DOWNFORCE ObjectiveKind = 8
+	// Aero balance variation, sqrt(sd^2 + jacking shift^2) of the front
+	// share of the downforce (dimensionless); needs aero.
+	ObjectiveKind_OBJECTIVE_KIND_BALANCE ObjectiveKind = 9
 )
 
 // Enum value maps for ObjectiveKind.
@@ -54,6 +61,8 @@ var (
 		5: "OBJECTIVE_KIND_PITCH",
 		6: "OBJECTIVE_KIND_ROLL",
 		7: "OBJECTIVE_KIND_HEAVE_ACCEL",
+		8: "OBJECTIVE_KIND_DOWNFORCE",
+		9: "OBJECTIVE_KIND_BALANCE",
 	}
 	ObjectiveKind_value = map[string]int32{
 		"OBJECTIVE_KIND_UNSPECIFIED":    0,
@@ -64,6 +73,8 @@ var (
 		"OBJECTIVE_KIND_PITCH":          5,
 		"OBJECTIVE_KIND_ROLL":           6,
 		"OBJECTIVE_KIND_HEAVE_ACCEL":    7,
+		"OBJECTIVE_KIND_DOWNFORCE":      8,
+		"OBJECTIVE_KIND_BALANCE":        9,
 	}
 )
 
@@ -171,6 +182,9 @@ const (
 	// A band [lower, limit] on one mode's modal damping ratio at the
 	// equivalent slopes of every road case (dimensionless).
 	ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO ConstraintKind = 5
+	// Ground-contact probability of every reference point of the vehicle
+	// (Vehicle.reference_points), worst point and case; a probability.
+	ConstraintKind_CONSTRAINT_KIND_FLOOR_CONTACT ConstraintKind = 6
 )
 
 // Enum value maps for ConstraintKind.
@@ -182,14 +196,16 @@ var (
 		3: "CONSTRAINT_KIND_TRAVEL",
 		4: "CONSTRAINT_KIND_JACKING",
 		5: "CONSTRAINT_KIND_MODAL_RATIO",
+		6: "CONSTRAINT_KIND_FLOOR_CONTACT",
 	}
 	ConstraintKind_value = map[string]int32{
-		"CONSTRAINT_KIND_UNSPECIFIED": 0,
-		"CONSTRAINT_KIND_LIFT_OFF":    1,
-		"CONSTRAINT_KIND_BUMP_STOP":   2,
-		"CONSTRAINT_KIND_TRAVEL":      3,
-		"CONSTRAINT_KIND_JACKING":     4,
-		"CONSTRAINT_KIND_MODAL_RATIO": 5,
+		"CONSTRAINT_KIND_UNSPECIFIED":   0,
+		"CONSTRAINT_KIND_LIFT_OFF":      1,
+		"CONSTRAINT_KIND_BUMP_STOP":     2,
+		"CONSTRAINT_KIND_TRAVEL":        3,
+		"CONSTRAINT_KIND_JACKING":       4,
+		"CONSTRAINT_KIND_MODAL_RATIO":   5,
+		"CONSTRAINT_KIND_FLOOR_CONTACT": 6,
 	}
 )
 
@@ -1166,7 +1182,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x16rebound_stiffest_ratio\x18\x04 \x01(\x01R\x14reboundStiffestRatio\"W\n" +
 	"\rCurveSettings\x12.\n" +
 	"\x14max_velocity_m_per_s\x18\x01 \x01(\x01R\x10maxVelocityMPerS\x12\x16\n" +
-	"\x06points\x18\x02 \x01(\x05R\x06points*\xfd\x01\n" +
+	"\x06points\x18\x02 \x01(\x05R\x06points*\xb7\x02\n" +
 	"\rObjectiveKind\x12\x1e\n" +
 	"\x1aOBJECTIVE_KIND_UNSPECIFIED\x10\x00\x12\x17\n" +
 	"\x13OBJECTIVE_KIND_GRIP\x10\x01\x12\x1b\n" +
@@ -1175,19 +1191,22 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x1cOBJECTIVE_KIND_REAR_PLATFORM\x10\x04\x12\x18\n" +
 	"\x14OBJECTIVE_KIND_PITCH\x10\x05\x12\x17\n" +
 	"\x13OBJECTIVE_KIND_ROLL\x10\x06\x12\x1e\n" +
-	"\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\a*z\n" +
+	"\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\a\x12\x1c\n" +
+	"\x18OBJECTIVE_KIND_DOWNFORCE\x10\b\x12\x1a\n" +
+	"\x16OBJECTIVE_KIND_BALANCE\x10\t*z\n" +
 	"\vAggregation\x12\x1b\n" +
 	"\x17AGGREGATION_UNSPECIFIED\x10\x00\x12\x1b\n" +
 	"\x17AGGREGATION_MEAN_SQUARE\x10\x01\x12\x15\n" +
 	"\x11AGGREGATION_WORST\x10\x02\x12\x1a\n" +
-	"\x16AGGREGATION_NORMALISED\x10\x03*\xc8\x01\n" +
+	"\x16AGGREGATION_NORMALISED\x10\x03*\xeb\x01\n" +
 	"\x0eConstraintKind\x12\x1f\n" +
 	"\x1bCONSTRAINT_KIND_UNSPECIFIED\x10\x00\x12\x1c\n" +
 	"\x18CONSTRAINT_KIND_LIFT_OFF\x10\x01\x12\x1d\n" +
 	"\x19CONSTRAINT_KIND_BUMP_STOP\x10\x02\x12\x1a\n" +
 	"\x16CONSTRAINT_KIND_TRAVEL\x10\x03\x12\x1b\n" +
 	"\x17CONSTRAINT_KIND_JACKING\x10\x04\x12\x1f\n" +
-	"\x1bCONSTRAINT_KIND_MODAL_RATIO\x10\x05*\xdb\x01\n" +
+	"\x1bCONSTRAINT_KIND_MODAL_RATIO\x10\x05\x12!\n" +
+	"\x1dCONSTRAINT_KIND_FLOOR_CONTACT\x10\x06*\xdb\x01\n" +
 	"\bModeName\x12\x19\n" +
 	"\x15MODE_NAME_UNSPECIFIED\x10\x00\x12\x13\n" +
 	"\x0fMODE_NAME_HEAVE\x10\x01\x12\x13\n" +
