@@ -152,6 +152,12 @@ func damperCurvesToProto(curves []model.DamperCurve) []*pb.DamperCurve {
 			KneeReboundMPerS:       c.KneeRebound,
 			HighSpeedBumpFactor:    c.HighSpeedBump,
 			HighSpeedReboundFactor: c.HighSpeedRebound,
+			StagesBump:             stagesToProto(c.StagesBump),
+			StagesRebound:          stagesToProto(c.StagesRebound),
+			BlowOffBumpN:           c.BlowOffBump,
+			BlowOffReboundN:        c.BlowOffRebound,
+			FrictionN:              c.Friction,
+			GasForceN:              c.GasForce,
 		}
 	}
 	return out

@@ -44,7 +44,12 @@ var protoLimits = map[string]string{
 	"Adjustment.bump_softest_ratio": "Adjustment.ratio", "Adjustment.bump_stiffest_ratio": "Adjustment.ratio",
 	"Adjustment.rebound_softest_ratio": "Adjustment.ratio", "Adjustment.rebound_stiffest_ratio": "Adjustment.ratio",
 	"CurveSettings.max_velocity_m_per_s": "Curves.max_velocity_m_per_s",
-	"Constraint.limit":                   "Constraint.probability Constraint.travel_m Constraint.jacking_m",
+	"AxleDamping.blow_off_bump_n":        "AxleDamping.blow_off_n", "AxleDamping.blow_off_rebound_n": "AxleDamping.blow_off_n",
+	"AxleDamping.friction_n": "AxleDamping.friction_n", "AxleDamping.gas_force_n": "AxleDamping.gas_force_n",
+	"DamperStage.velocity_m_per_s": "AxleDamping.knee_m_per_s", "DamperStage.factor": "AxleDamping.high_speed",
+	"Adjuster.stiffest": "Adjustment.ratio AxleDamping.high_speed", "Adjuster.softest": "Adjustment.ratio AxleDamping.high_speed",
+	"DynoTable.velocity_m_per_s": "Curves.max_velocity_m_per_s",
+	"Constraint.limit":           "Constraint.probability Constraint.travel_m Constraint.jacking_m",
 }
 
 // TestProtoCommentsStateTheRanges: the comment of every physical field in

@@ -63,6 +63,13 @@ func Check(s *Spec) (*Checked, error) {
 	p.merge("design_space.base.", base.Validate())
 	p.mergeMapped(func(f string) string { return "design_space." + f }, c.design.ValidateFor(&spec.Vehicle))
 	p.merge("adjustment.", spec.Adjustment.Validate())
+	p.merge("adjusters.", spec.Adjusters.Validate())
+	if spec.Design.SnapToClicks {
+		if !spec.Adjusters.Given() {
+			p.add("design_space.snap_to_clicks", "needs adjusters with clicks: give adjusters")
+		}
+		c.design.Snap = &model.ClickSnap{Vehicle: &spec.Vehicle, Adjusters: &spec.Adjusters}
+	}
 	p.merge("curves.", model.ValidateCurveRange(spec.Curves.MaxVelocity, spec.Curves.Points))
 	c.settings = searchSettings(&spec.Search)
 	p.mergeMapped(settingsPath, c.settings.Validate(len(spec.Objectives)))

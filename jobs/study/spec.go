@@ -20,8 +20,12 @@ type Spec struct {
 	Reference   *model.Setup
 	Constraints []model.Constraint
 	Adjustment  model.Adjustment // adjuster range shown on the damper curves
-	Curves      Curves
-	Search      Search
+	// Adjusters are the dampers' adjusters and clicks (the zero value:
+	// none). With them every solution reports its clicks, and the
+	// out-of-band check uses them instead of Adjustment.
+	Adjusters model.Adjusters
+	Curves    Curves
+	Search    Search
 }
 
 // Design is the design space as a spec gives it: model.DesignSpace with
@@ -38,6 +42,9 @@ type Design struct {
 	// Base gives every value that is not a gene, per axle; nil is
 	// DefaultAxle. Its ratios are genes and never used.
 	Base [2]*model.AxleDamping
+	// SnapToClicks evaluates every setup on the clicks of the spec's
+	// Adjusters (model.DesignSpace.Snap); it needs adjusters.
+	SnapToClicks bool
 	// HeaveRatio, per axle, searches the heave damper's ratio (bump =
 	// rebound, of the axle's heave critical damping); nil searches none
 	// (the default, so a spec without heave dampers searches what it

@@ -339,8 +339,11 @@ type JobSpec struct {
 	// The setup that objectives with AGGREGATION_NORMALISED are taken
 	// relative to; absent means the middle of the design space's bounds.
 	ReferenceSetup *Setup `protobuf:"bytes,12,opt,name=reference_setup,json=referenceSetup,proto3" json:"reference_setup,omitempty"`
-	unknownFields  protoimpl.UnknownFields
-	sizeCache      protoimpl.SizeCache
+	// The dampers' adjusters and clicks; with them every solution reports
+	// its clicks, and the out-of-band check uses them instead of adjustment.
+	Adjusters     *Adjusters `protobuf:"bytes,13,opt,name=adjusters,proto3" json:"adjusters,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *JobSpec) Reset() {
@@ -453,6 +456,13 @@ func (x *JobSpec) GetCurves() *CurveSettings {
 func (x *JobSpec) GetReferenceSetup() *Setup {
 	if x != nil {
 		return x.ReferenceSetup
+	}
+	return nil
+}
+
+func (x *JobSpec) GetAdjusters() *Adjusters {
+	if x != nil {
+		return x.Adjusters
 	}
 	return nil
 }
@@ -920,7 +930,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\xc8\x05\n" +
+	"\r_mutation_eta\"\xff\x05\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -939,7 +949,8 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	" \x01(\v2\x18.dampfront.v1.AdjustmentR\n" +
 	"adjustment\x123\n" +
 	"\x06curves\x18\v \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curves\x12<\n" +
-	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x1a9\n" +
+	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x125\n" +
+	"\tadjusters\x18\r \x01(\v2\x17.dampfront.v1.AdjustersR\tadjusters\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xcf\x06\n" +
@@ -1043,8 +1054,9 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Adjustment)(nil),            // 15: dampfront.v1.Adjustment
 	(*CurveSettings)(nil),         // 16: dampfront.v1.CurveSettings
 	(*Setup)(nil),                 // 17: dampfront.v1.Setup
-	(*timestamppb.Timestamp)(nil), // 18: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 19: dampfront.v1.ConstraintShortfall
+	(*Adjusters)(nil),             // 18: dampfront.v1.Adjusters
+	(*timestamppb.Timestamp)(nil), // 19: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 20: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -1058,22 +1070,23 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	15, // 8: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
 	16, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
 	17, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
-	0,  // 11: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	8,  // 12: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	18, // 13: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	18, // 14: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	18, // 15: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	6,  // 16: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 17: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	6,  // 18: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	19, // 19: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 20: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	18, // 21: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	22, // [22:22] is the sub-list for method output_type
-	22, // [22:22] is the sub-list for method input_type
-	22, // [22:22] is the sub-list for extension type_name
-	22, // [22:22] is the sub-list for extension extendee
-	0,  // [0:22] is the sub-list for field type_name
+	18, // 11: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
+	0,  // 12: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	8,  // 13: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	19, // 14: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	19, // 15: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	19, // 16: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	6,  // 17: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 18: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	6,  // 19: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	20, // 20: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 21: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	19, // 22: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	23, // [23:23] is the sub-list for method output_type
+	23, // [23:23] is the sub-list for method input_type
+	23, // [23:23] is the sub-list for extension type_name
+	23, // [23:23] is the sub-list for extension extendee
+	0,  // [0:23] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
