@@ -22,6 +22,11 @@ func setupFromProto(s *pb.Setup, path string, p *problems) model.Setup {
 		}
 		out.Axles[ax] = axleFromProto(a, joinPath(path+".", model.AxleNames[ax]), p)
 	}
+	for ax, a := range [2]*pb.AxleDamping{s.GetFrontHeave(), s.GetRearHeave()} {
+		if a != nil {
+			out.Heave[ax] = axleFromProto(a, joinPath(path+".", model.AxleNames[ax]+"_heave"), p)
+		}
+	}
 	return out
 }
 
@@ -48,7 +53,14 @@ func axleToProto(a model.AxleDamping) *pb.AxleDamping {
 }
 
 func setupToProto(s model.Setup) *pb.Setup {
-	return &pb.Setup{Front: axleToProto(s.Axles[model.Front]), Rear: axleToProto(s.Axles[model.Rear])}
+	out := &pb.Setup{Front: axleToProto(s.Axles[model.Front]), Rear: axleToProto(s.Axles[model.Rear])}
+	if s.Heave[model.Front] != (model.AxleDamping{}) {
+		out.FrontHeave = axleToProto(s.Heave[model.Front])
+	}
+	if s.Heave[model.Rear] != (model.AxleDamping{}) {
+		out.RearHeave = axleToProto(s.Heave[model.Rear])
+	}
+	return out
 }
 
 // designFromProto converts a design space; a nil range or base axle
@@ -62,11 +74,18 @@ func designFromProto(d *pb.DesignSpace, path string, p *problems) study.Design {
 		Knee:         [2]*model.Range{rangeOrNil(d.GetFrontKneeMPerS()), rangeOrNil(d.GetRearKneeMPerS())},
 		HighSpeed:    [2]*model.Range{rangeOrNil(d.GetFrontHighSpeedFactor()), rangeOrNil(d.GetRearHighSpeedFactor())},
 		SnapToClicks: d.GetSnapToClicks(),
+		HeaveRatio:   [2]*model.Range{rangeOrNil(d.GetFrontHeaveRatio()), rangeOrNil(d.GetRearHeaveRatio())},
 	}
 	for ax, a := range [2]*pb.AxleDamping{d.GetBase().GetFront(), d.GetBase().GetRear()} {
 		if a != nil {
 			b := axleFromProto(a, joinPath(path+".", "base."+model.AxleNames[ax]), p)
 			out.Base[ax] = &b
+		}
+	}
+	for ax, a := range [2]*pb.AxleDamping{d.GetBase().GetFrontHeave(), d.GetBase().GetRearHeave()} {
+		if a != nil {
+			b := axleFromProto(a, joinPath(path+".", "base."+model.AxleNames[ax]+"_heave"), p)
+			out.HeaveBase[ax] = &b
 		}
 	}
 	return out

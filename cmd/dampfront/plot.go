@@ -405,7 +405,7 @@ func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, se
 		return nil, err
 	}
 	speed := in.RoadCases[ci].Speed
-	modes, err := model.ModesAt(&in.Vehicle, speed, cm.EquivalentDamping)
+	modes, err := model.ModesAtHeave(&in.Vehicle, speed, cm.EquivalentDamping, cm.HeaveEquivalentDamping)
 	if err != nil {
 		return nil, err
 	}

@@ -45,6 +45,15 @@ type Design struct {
 	// SnapToClicks evaluates every setup on the clicks of the spec's
 	// Adjusters (model.DesignSpace.Snap); it needs adjusters.
 	SnapToClicks bool
+	// HeaveRatio, per axle, searches the heave damper's ratio (bump =
+	// rebound, of the axle's heave critical damping); nil searches none
+	// (the default, so a spec without heave dampers searches what it
+	// always did). Only an axle with a heave element may have one.
+	HeaveRatio [2]*model.Range
+	// HeaveBase, per axle, is the heave damper where it is not searched,
+	// or its knees and factors where HeaveRatio searches its ratio; nil
+	// is no heave damper (or a linear one when HeaveRatio is given).
+	HeaveBase [2]*model.AxleDamping
 }
 
 // Curves is how the damper curves of a solution are tabulated.

@@ -467,9 +467,15 @@ type DesignSpace struct {
 	// factors on the high-speed ones) before it is evaluated, so the
 	// setup, objectives, curves and clicks of every solution are a
 	// clicked setup's. Deterministic: a pure function of the genes.
-	SnapToClicks  bool `protobuf:"varint,8,opt,name=snap_to_clicks,json=snapToClicks,proto3" json:"snap_to_clicks,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	SnapToClicks bool `protobuf:"varint,8,opt,name=snap_to_clicks,json=snapToClicks,proto3" json:"snap_to_clicks,omitempty"`
+	// Searched heave damper ratio on the front axle (bump = rebound, of the
+	// axle's heave critical damping); absent searches none (base.front_heave
+	// then gives the heave damper, if any). Needs a front heave element.
+	FrontHeaveRatio *Range `protobuf:"bytes,20,opt,name=front_heave_ratio,json=frontHeaveRatio,proto3" json:"front_heave_ratio,omitempty"`
+	// Searched heave damper ratio on the rear axle, as front_heave_ratio.
+	RearHeaveRatio *Range `protobuf:"bytes,21,opt,name=rear_heave_ratio,json=rearHeaveRatio,proto3" json:"rear_heave_ratio,omitempty"`
+	unknownFields  protoimpl.UnknownFields
+	sizeCache      protoimpl.SizeCache
 }
 
 func (x *DesignSpace) Reset() {
@@ -556,6 +562,20 @@ func (x *DesignSpace) GetSnapToClicks() bool {
 		return x.SnapToClicks
 	}
 	return false
+}
+
+func (x *DesignSpace) GetFrontHeaveRatio() *Range {
+	if x != nil {
+		return x.FrontHeaveRatio
+	}
+	return nil
+}
+
+func (x *DesignSpace) GetRearHeaveRatio() *Range {
+	if x != nil {
+		return x.RearHeaveRatio
+	}
+	return nil
 }
 
 // AxleDamping is one axle's damper setting, both sides alike. The force at
@@ -784,7 +804,12 @@ type Setup struct {
 	// Front axle.
 	Front *AxleDamping `protobuf:"bytes,1,opt,name=front,proto3" json:"front,omitempty"`
 	// Rear axle.
-	Rear          *AxleDamping `protobuf:"bytes,2,opt,name=rear,proto3" json:"rear,omitempty"`
+	Rear *AxleDamping `protobuf:"bytes,2,opt,name=rear,proto3" json:"rear,omitempty"`
+	// Front heave damper, ratios of the axle's heave critical damping,
+	// knees at the element; absent means none. Needs a front heave element.
+	FrontHeave *AxleDamping `protobuf:"bytes,20,opt,name=front_heave,json=frontHeave,proto3" json:"front_heave,omitempty"`
+	// Rear heave damper, as front_heave.
+	RearHeave     *AxleDamping `protobuf:"bytes,21,opt,name=rear_heave,json=rearHeave,proto3" json:"rear_heave,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -829,6 +854,20 @@ func (x *Setup) GetFront() *AxleDamping {
 func (x *Setup) GetRear() *AxleDamping {
 	if x != nil {
 		return x.Rear
+	}
+	return nil
+}
+
+func (x *Setup) GetFrontHeave() *AxleDamping {
+	if x != nil {
+		return x.FrontHeave
+	}
+	return nil
+}
+
+func (x *Setup) GetRearHeave() *AxleDamping {
+	if x != nil {
+		return x.RearHeave
 	}
 	return nil
 }
@@ -1538,7 +1577,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"front_bump\x18\x01 \x01(\v2\x13.dampfront.v1.RangeR\tfrontBump\x128\n" +
 	"\rfront_rebound\x18\x02 \x01(\v2\x13.dampfront.v1.RangeR\ffrontRebound\x120\n" +
 	"\trear_bump\x18\x03 \x01(\v2\x13.dampfront.v1.RangeR\brearBump\x126\n" +
-	"\frear_rebound\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\vrearRebound\"\xc3\x03\n" +
+	"\frear_rebound\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\vrearRebound\"\xc3\x04\n" +
 	"\vDesignSpace\x121\n" +
 	"\x06ratios\x18\x01 \x01(\v2\x19.dampfront.v1.RatioBoundsR\x06ratios\x12\x1c\n" +
 	"\tsymmetric\x18\x02 \x01(\bR\tsymmetric\x12?\n" +
@@ -1547,7 +1586,9 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x17front_high_speed_factor\x18\x05 \x01(\v2\x13.dampfront.v1.RangeR\x14frontHighSpeedFactor\x12H\n" +
 	"\x16rear_high_speed_factor\x18\x06 \x01(\v2\x13.dampfront.v1.RangeR\x13rearHighSpeedFactor\x12'\n" +
 	"\x04base\x18\a \x01(\v2\x13.dampfront.v1.SetupR\x04base\x12$\n" +
-	"\x0esnap_to_clicks\x18\b \x01(\bR\fsnapToClicks\"\xac\x04\n" +
+	"\x0esnap_to_clicks\x18\b \x01(\bR\fsnapToClicks\x12?\n" +
+	"\x11front_heave_ratio\x18\x14 \x01(\v2\x13.dampfront.v1.RangeR\x0ffrontHeaveRatio\x12=\n" +
+	"\x10rear_heave_ratio\x18\x15 \x01(\v2\x13.dampfront.v1.RangeR\x0erearHeaveRatio\"\xac\x04\n" +
 	"\vAxleDamping\x12\x1d\n" +
 	"\n" +
 	"bump_ratio\x18\x01 \x01(\x01R\tbumpRatio\x12#\n" +
@@ -1567,10 +1608,14 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\vgas_force_n\x18\f \x01(\x01R\tgasForceN\"N\n" +
 	"\vDamperStage\x12'\n" +
 	"\x10velocity_m_per_s\x18\x01 \x01(\x01R\rvelocityMPerS\x12\x16\n" +
-	"\x06factor\x18\x02 \x01(\x01R\x06factor\"g\n" +
+	"\x06factor\x18\x02 \x01(\x01R\x06factor\"\xdd\x01\n" +
 	"\x05Setup\x12/\n" +
 	"\x05front\x18\x01 \x01(\v2\x19.dampfront.v1.AxleDampingR\x05front\x12-\n" +
-	"\x04rear\x18\x02 \x01(\v2\x19.dampfront.v1.AxleDampingR\x04rear\"\xd9\x01\n" +
+	"\x04rear\x18\x02 \x01(\v2\x19.dampfront.v1.AxleDampingR\x04rear\x12:\n" +
+	"\vfront_heave\x18\x14 \x01(\v2\x19.dampfront.v1.AxleDampingR\n" +
+	"frontHeave\x128\n" +
+	"\n" +
+	"rear_heave\x18\x15 \x01(\v2\x19.dampfront.v1.AxleDampingR\trearHeave\"\xd9\x01\n" +
 	"\tObjective\x12/\n" +
 	"\x04kind\x18\x01 \x01(\x0e2\x1b.dampfront.v1.ObjectiveKindR\x04kind\x12;\n" +
 	"\vaggregation\x18\x02 \x01(\x0e2\x19.dampfront.v1.AggregationR\vaggregation\x12/\n" +
@@ -1698,28 +1743,32 @@ var file_dampfront_v1_design_proto_depIdxs = []int32{
 	4,  // 7: dampfront.v1.DesignSpace.front_high_speed_factor:type_name -> dampfront.v1.Range
 	4,  // 8: dampfront.v1.DesignSpace.rear_high_speed_factor:type_name -> dampfront.v1.Range
 	9,  // 9: dampfront.v1.DesignSpace.base:type_name -> dampfront.v1.Setup
-	8,  // 10: dampfront.v1.AxleDamping.stages_bump:type_name -> dampfront.v1.DamperStage
-	8,  // 11: dampfront.v1.AxleDamping.stages_rebound:type_name -> dampfront.v1.DamperStage
-	7,  // 12: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
-	7,  // 13: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
-	0,  // 14: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
-	1,  // 15: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
-	2,  // 16: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
-	2,  // 17: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
-	3,  // 18: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
-	15, // 19: dampfront.v1.Adjuster.dyno:type_name -> dampfront.v1.DynoTable
-	16, // 20: dampfront.v1.DynoTable.rows:type_name -> dampfront.v1.DynoRow
-	14, // 21: dampfront.v1.DamperAdjusters.low_bump:type_name -> dampfront.v1.Adjuster
-	14, // 22: dampfront.v1.DamperAdjusters.low_rebound:type_name -> dampfront.v1.Adjuster
-	14, // 23: dampfront.v1.DamperAdjusters.high_bump:type_name -> dampfront.v1.Adjuster
-	14, // 24: dampfront.v1.DamperAdjusters.high_rebound:type_name -> dampfront.v1.Adjuster
-	17, // 25: dampfront.v1.Adjusters.front:type_name -> dampfront.v1.DamperAdjusters
-	17, // 26: dampfront.v1.Adjusters.rear:type_name -> dampfront.v1.DamperAdjusters
-	27, // [27:27] is the sub-list for method output_type
-	27, // [27:27] is the sub-list for method input_type
-	27, // [27:27] is the sub-list for extension type_name
-	27, // [27:27] is the sub-list for extension extendee
-	0,  // [0:27] is the sub-list for field type_name
+	4,  // 10: dampfront.v1.DesignSpace.front_heave_ratio:type_name -> dampfront.v1.Range
+	4,  // 11: dampfront.v1.DesignSpace.rear_heave_ratio:type_name -> dampfront.v1.Range
+	8,  // 12: dampfront.v1.AxleDamping.stages_bump:type_name -> dampfront.v1.DamperStage
+	8,  // 13: dampfront.v1.AxleDamping.stages_rebound:type_name -> dampfront.v1.DamperStage
+	7,  // 14: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
+	7,  // 15: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
+	7,  // 16: dampfront.v1.Setup.front_heave:type_name -> dampfront.v1.AxleDamping
+	7,  // 17: dampfront.v1.Setup.rear_heave:type_name -> dampfront.v1.AxleDamping
+	0,  // 18: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
+	1,  // 19: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
+	2,  // 20: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
+	2,  // 21: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
+	3,  // 22: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
+	15, // 23: dampfront.v1.Adjuster.dyno:type_name -> dampfront.v1.DynoTable
+	16, // 24: dampfront.v1.DynoTable.rows:type_name -> dampfront.v1.DynoRow
+	14, // 25: dampfront.v1.DamperAdjusters.low_bump:type_name -> dampfront.v1.Adjuster
+	14, // 26: dampfront.v1.DamperAdjusters.low_rebound:type_name -> dampfront.v1.Adjuster
+	14, // 27: dampfront.v1.DamperAdjusters.high_bump:type_name -> dampfront.v1.Adjuster
+	14, // 28: dampfront.v1.DamperAdjusters.high_rebound:type_name -> dampfront.v1.Adjuster
+	17, // 29: dampfront.v1.Adjusters.front:type_name -> dampfront.v1.DamperAdjusters
+	17, // 30: dampfront.v1.Adjusters.rear:type_name -> dampfront.v1.DamperAdjusters
+	31, // [31:31] is the sub-list for method output_type
+	31, // [31:31] is the sub-list for method input_type
+	31, // [31:31] is the sub-list for extension type_name
+	31, // [31:31] is the sub-list for extension extendee
+	0,  // [0:31] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_design_proto_init() }

@@ -1139,8 +1139,23 @@ type AxleMetrics struct {
 	RideHeightSdM float64 `protobuf:"fixed64,1,opt,name=ride_height_sd_m,json=rideHeightSdM,proto3" json:"ride_height_sd_m,omitempty"`
 	// Mean ride-height change, up positive.
 	RideHeightShiftM float64 `protobuf:"fixed64,2,opt,name=ride_height_shift_m,json=rideHeightShiftM,proto3" json:"ride_height_shift_m,omitempty"`
-	unknownFields    protoimpl.UnknownFields
-	sizeCache        protoimpl.SizeCache
+	// Heave element travel standard deviation at the element; 0 without
+	// a heave element on the axle.
+	HeaveTravelSdM float64 `protobuf:"fixed64,20,opt,name=heave_travel_sd_m,json=heaveTravelSdM,proto3" json:"heave_travel_sd_m,omitempty"`
+	// Heave element velocity standard deviation at the element.
+	HeaveVelocitySdMPerS float64 `protobuf:"fixed64,21,opt,name=heave_velocity_sd_m_per_s,json=heaveVelocitySdMPerS,proto3" json:"heave_velocity_sd_m_per_s,omitempty"`
+	// Probability that the heave element's travel reaches its packer
+	// (Gaussian, from the gap left at speed, incl. the mean shift); 0 when
+	// no packer gap is given.
+	PackerProbability float64 `protobuf:"fixed64,22,opt,name=packer_probability,json=packerProbability,proto3" json:"packer_probability,omitempty"`
+	// Equivalent linear slope of the heave damper on the axle's mean wheel
+	// travel at the fixed point; 0 without a heave damper.
+	HeaveEquivalentDampingNSPerM float64 `protobuf:"fixed64,23,opt,name=heave_equivalent_damping_n_s_per_m,json=heaveEquivalentDampingNSPerM,proto3" json:"heave_equivalent_damping_n_s_per_m,omitempty"`
+	// Packer gap left at speed (the downforce uses part of it); 0 when no
+	// packer gap is given.
+	PackerGapAtSpeedM float64 `protobuf:"fixed64,24,opt,name=packer_gap_at_speed_m,json=packerGapAtSpeedM,proto3" json:"packer_gap_at_speed_m,omitempty"`
+	unknownFields     protoimpl.UnknownFields
+	sizeCache         protoimpl.SizeCache
 }
 
 func (x *AxleMetrics) Reset() {
@@ -1183,6 +1198,41 @@ func (x *AxleMetrics) GetRideHeightSdM() float64 {
 func (x *AxleMetrics) GetRideHeightShiftM() float64 {
 	if x != nil {
 		return x.RideHeightShiftM
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetHeaveTravelSdM() float64 {
+	if x != nil {
+		return x.HeaveTravelSdM
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetHeaveVelocitySdMPerS() float64 {
+	if x != nil {
+		return x.HeaveVelocitySdMPerS
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetPackerProbability() float64 {
+	if x != nil {
+		return x.PackerProbability
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetHeaveEquivalentDampingNSPerM() float64 {
+	if x != nil {
+		return x.HeaveEquivalentDampingNSPerM
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetPackerGapAtSpeedM() float64 {
+	if x != nil {
+		return x.PackerGapAtSpeedM
 	}
 	return 0
 }
@@ -1711,10 +1761,15 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	" \x01(\x01R\x10meanDamperForceN\x12$\n" +
 	"\x0etravel_shift_m\x18\v \x01(\x01R\ftravelShiftM\x123\n" +
 	"\x16compression_at_speed_m\x18\f \x01(\x01R\x13compressionAtSpeedM\x125\n" +
-	"\x18bump_stop_gap_at_speed_m\x18\r \x01(\x01R\x13bumpStopGapAtSpeedM\"e\n" +
+	"\x18bump_stop_gap_at_speed_m\x18\r \x01(\x01R\x13bumpStopGapAtSpeedM\"\xf4\x02\n" +
 	"\vAxleMetrics\x12'\n" +
 	"\x10ride_height_sd_m\x18\x01 \x01(\x01R\rrideHeightSdM\x12-\n" +
-	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\"\x9f\x03\n" +
+	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\x12)\n" +
+	"\x11heave_travel_sd_m\x18\x14 \x01(\x01R\x0eheaveTravelSdM\x127\n" +
+	"\x19heave_velocity_sd_m_per_s\x18\x15 \x01(\x01R\x14heaveVelocitySdMPerS\x12-\n" +
+	"\x12packer_probability\x18\x16 \x01(\x01R\x11packerProbability\x12H\n" +
+	"\"heave_equivalent_damping_n_s_per_m\x18\x17 \x01(\x01R\x1cheaveEquivalentDampingNSPerM\x120\n" +
+	"\x15packer_gap_at_speed_m\x18\x18 \x01(\x01R\x11packerGapAtSpeedM\"\x9f\x03\n" +
 	"\x04Mode\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12.\n" +
 	"\x13damped_frequency_hz\x18\x03 \x01(\x01R\x11dampedFrequencyHz\x12\x1e\n" +
