@@ -116,6 +116,11 @@ func BenchmarkEvaluateHeave(b *testing.B) {
 					b.Fatal(err)
 				}
 			}
+			iters := 0
+			for _, m := range r.Cases {
+				iters += m.Iterations
+			}
+			b.ReportMetric(float64(iters), "iterations")
 		})
 	}
 }
