@@ -49,6 +49,9 @@ type Sheet struct {
 	// (model.OutOfBand at the test velocities), empty when within.
 	Band      bool
 	OutOfBand []string
+	// Clicks is the click of each adjuster per corner, empty when the
+	// spec gives no adjusters.
+	Clicks []ClickRow
 
 	Velocities    []string // test velocities, mm/s
 	ForceTables   []ForceTable
@@ -95,6 +98,14 @@ type ForceRow struct {
 	BumpSoft, BumpStiff     string
 	Rebound, RebMin, RebMax string
 	RebSoft, RebStiff       string
+}
+
+// ClickRow is one corner's clicks: per adjuster (low-speed bump and
+// rebound, high-speed bump and rebound) "7 of 20" counted from the
+// stiffest (0), or empty where there is no such adjuster.
+type ClickRow struct {
+	Corner                                     string
+	LowBump, LowRebound, HighBump, HighRebound string
 }
 
 // CornerRow is one row of the per-corner figures: a label, its unit and
@@ -160,15 +171,12 @@ func Build(job *pb.Job, sol *pb.Solution, balanced bool) (*Sheet, error) {
 	if err != nil {
 		return nil, fmt.Errorf("sheet: solution %d: %w", s.Index, err)
 	}
-	adjs := model.AdjustersOf(in.Adjustment)
-	s.Band = adjs.Given()
-	excess, err := model.OutOfBand(&in.Vehicle, &setup, &adjs, model.BandVelocities)
-	if err != nil {
-		return nil, fmt.Errorf("sheet: solution %d: %w", s.Index, err)
+	band := model.AdjustersOf(in.Adjustment)
+	s.Band = band.Given() || len(sol.GetClicks()) > 0
+	for _, e := range sol.GetOutOfBand() {
+		s.OutOfBand = append(s.OutOfBand, api.BandExcessText(e))
 	}
-	for _, e := range excess {
-		s.OutOfBand = append(s.OutOfBand, e.String())
-	}
+	s.Clicks = clickRows(spec.GetAdjusters(), sol.GetClicks())
 	s.Velocities = velocityTexts()
 	s.ForceTables = forceTables(forces)
 	adj := spec.GetAdjustment()

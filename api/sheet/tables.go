@@ -7,6 +7,7 @@ import (
 	"math"
 	"strings"
 
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/plot"
 	"dampfront/model"
@@ -191,4 +192,30 @@ func curvesSVG(sol *pb.Solution) (template.HTML, string) {
 		doc = doc[i:]
 	}
 	return template.HTML(doc), "" // #nosec: drawn by package plot, which escapes every text
+}
+
+// clickRows is the click table: each corner's clicks out of its
+// adjusters' positions.
+func clickRows(adj *pb.Adjusters, clicks []*pb.CornerClicks) []ClickRow {
+	var out []ClickRow
+	for _, c := range clicks {
+		i := api.ModelCorner(c.GetCorner())
+		if i < 0 {
+			continue
+		}
+		a := adj.GetFront()
+		if i >= 2 {
+			a = adj.GetRear()
+		}
+		of := func(click int32, j *pb.Adjuster) string {
+			if click < 0 || j.GetClicks() == 0 {
+				return ""
+			}
+			return fmt.Sprintf("%d of %d", click, j.GetClicks()-1)
+		}
+		out = append(out, ClickRow{Corner: model.CornerNames[i],
+			LowBump: of(c.GetLowBump(), a.GetLowBump()), LowRebound: of(c.GetLowRebound(), a.GetLowRebound()),
+			HighBump: of(c.GetHighBump(), a.GetHighBump()), HighRebound: of(c.GetHighRebound(), a.GetHighRebound())})
+	}
+	return out
 }

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"bytes"
 	"fmt"
 	"html"
 	"math"
@@ -17,12 +18,16 @@ import (
 	"google.golang.org/protobuf/proto"
 )
 
-// sheetJob runs the demo job (cut short) and returns the bundle, the
+// sheetJob runs the demo job (cut short) with nine-click low-speed
+// adjusters from ratio 1.2 (click 0) to 0.4 and returns the bundle, the
 // job's name and the sheet of its balanced point.
 func sheetJob(t *testing.T) (*bundle, string, *sheet.Sheet) {
 	t.Helper()
 	b := setup(t, 1, api.Options{})
-	job := b.submit(t, demoSpec(t, 16, 10))
+	spec := demoSpec(t, 16, 10)
+	lo := &pb.Adjuster{Clicks: 9, Stiffest: 1.2, Softest: 0.4}
+	spec.Adjusters = &pb.Adjusters{Front: &pb.DamperAdjusters{LowBump: lo, LowRebound: lo}, Rear: &pb.DamperAdjusters{LowBump: lo, LowRebound: lo}}
+	job := b.submit(t, spec)
 	b.finish(t, job.GetName())
 	s, err := sheet.Fetch(testContext(t), b.client, job.GetName(), sheet.NoSolution)
 	if err != nil {
@@ -204,32 +209,71 @@ func TestSheetPages(t *testing.T) {
 	if !strings.Contains(body, "Modes, solution 0") || !strings.Contains(body, "heave") {
 		t.Errorf("modes of solution 0:\n%s", body)
 	}
-	// A solution made stiffer than the stiffest click is flagged out of
-	// band on its sheet.
+	// A setup stiffer than the stiffest click, evaluated on the job, is
+	// flagged out of band on its sheet.
 	ctx := testContext(t)
 	jr, err := b.client.GetJob(ctx, &pb.GetJobRequest{Name: name, View: pb.JobView_JOB_VIEW_FULL})
 	if err != nil {
 		t.Fatal(err)
 	}
-	fr, err := b.client.GetFront(ctx, &pb.GetFrontRequest{Job: name, PageSize: 1000, View: pb.SolutionView_SOLUTION_VIEW_FULL})
+	su := proto.Clone(jr.GetJob().GetSpec().GetDesignSpace().GetBase()).(*pb.Setup)
+	su.Front.BumpRatio, su.Front.ReboundRatio, su.Rear.BumpRatio, su.Rear.ReboundRatio = 2*jr.GetJob().GetSpec().GetAdjustment().GetBumpStiffestRatio(), 0.8, 0.7, 0.8
+	ev, err := b.client.EvaluateSetups(ctx, &pb.EvaluateSetupsRequest{Source: &pb.EvaluateSetupsRequest_Job{Job: name},
+		Setups: []*pb.Setup{su}, View: pb.SolutionView_SOLUTION_VIEW_FULL})
 	if err != nil {
 		t.Fatal(err)
 	}
-	sol := proto.Clone(fr.GetFront().GetSolutions()[0]).(*pb.Solution)
-	sol.Setup.Front.BumpRatio = 2 * jr.GetJob().GetSpec().GetAdjustment().GetBumpStiffestRatio()
-	stiff, err := sheet.Build(jr.GetJob(), sol, false)
+	stiff, err := sheet.Build(jr.GetJob(), ev.GetEvaluations()[0], false)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if !stiff.Band || len(stiff.OutOfBand) == 0 || !strings.Contains(strings.Join(stiff.OutOfBand, "; "), "FL bump") {
 		t.Errorf("a front bump ratio twice the stiffest click's: out of band %q, want FL bump named", stiff.OutOfBand)
 	}
-	if len(s.OutOfBand) != 0 {
-		t.Logf("the balanced point lies out of its band: %q", s.OutOfBand)
+	var page bytes.Buffer
+	if err := sheet.WriteHTML(&page, stiff); err != nil || !strings.Contains(page.String(), "OUT OF BAND") {
+		t.Errorf("the sheet of an out-of-band setup does not say so (err %v)", err)
 	}
 
 	res, body = get(t, b, "/jobs/"+id+"/solutions/100000/sheet.html")
 	wantStatus(t, "sheet of a solution not on the front", res, body, http.StatusNotFound)
 	res, body = get(t, b, "/jobs/"+id+"/solutions/x/sheet.html")
 	wantStatus(t, "sheet of solution x", res, body, http.StatusBadRequest)
+}
+
+// The sheet of a job with adjusters carries the click table: sheetJob's
+// nine-click low-speed adjusters from ratio 1.2 (click 0) to 0.4 set the ratio
+// linearly, 0.1 a click, so a setup's click is the nearest whole number
+// to (1.2 - ratio)/0.1 (arithmetic of the linear map the spec states).
+func TestSheetClicks(t *testing.T) {
+	t.Parallel()
+	b, name, s := sheetJob(t)
+	fr, err := b.client.GetFront(testContext(t), &pb.GetFrontRequest{Job: name, PageSize: 1000, View: pb.SolutionView_SOLUTION_VIEW_BASIC})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var su *pb.Setup
+	for _, sol := range fr.GetFront().GetSolutions() {
+		if sol.GetIndex() == s.Index {
+			su = sol.GetSetup()
+		}
+	}
+	if len(s.Clicks) != 4 || su == nil {
+		t.Fatalf("click table %+v of solution %d, want four corners", s.Clicks, s.Index)
+	}
+	click := func(ratio float64) string { return fmt.Sprintf("%d of 8", int(math.Round((1.2-ratio)/0.1))) }
+	for i, row := range s.Clicks {
+		a := su.GetFront()
+		if i >= 2 {
+			a = su.GetRear()
+		}
+		if row.LowBump != click(a.GetBumpRatio()) || row.LowRebound != click(a.GetReboundRatio()) || row.HighBump != "" {
+			t.Errorf("%s clicks %+v; ratios bump %g rebound %g want %s, %s and no high-speed click", row.Corner, row, a.GetBumpRatio(), a.GetReboundRatio(),
+				click(a.GetBumpRatio()), click(a.GetReboundRatio()))
+		}
+	}
+	var page bytes.Buffer
+	if err := sheet.WriteHTML(&page, s); err != nil || !strings.Contains(page.String(), `<section id="clicks">`) {
+		t.Errorf("the sheet has no click table (err %v)", err)
+	}
 }
