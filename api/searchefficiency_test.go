@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	"os"
 	"runtime"
 	"sync"
 	"testing"
@@ -13,21 +12,13 @@ import (
 	"dampfront/optimizer"
 )
 
-// efficiencyPlan is the demo job (testdata/demo-job.yaml) without its
-// constraints, on its own road cases or, when rough, on one ISO 8608
-// class C road at 50 m/s instead (a road far rougher than a track, where
-// the fixed point needs more iterations and the front another shape).
+// efficiencyPlan is demoSpec on its own road cases or, when rough, on one
+// ISO 8608 class C road at 50 m/s instead (a road far rougher than a
+// track, where the fixed point needs more iterations and the front
+// another shape).
 func efficiencyPlan(tb testing.TB, rough bool) *compiledSpec {
 	tb.Helper()
-	b, err := os.ReadFile("../testdata/demo-job.yaml")
-	if err != nil {
-		tb.Fatal(err)
-	}
-	spec := &pb.JobSpec{}
-	if err := DecodeText(b, spec); err != nil {
-		tb.Fatal(err)
-	}
-	spec.Constraints = nil
+	spec := demoSpec(tb)
 	if rough {
 		spec.RoadCases = []*pb.RoadCase{{Name: "Rough road, ISO 8608 class C", SpeedMPerS: 50,
 			Spectrum: &pb.RoadCase_IsoClass{IsoClass: pb.IsoClass_ISO_CLASS_C}}}
@@ -83,6 +74,20 @@ func gridFront(prob optimizer.Problem, levels int) ([][]float64, int) {
 		front = append(front, pts[i])
 	}
 	return front, total
+}
+
+// gridReference is the grid front's worst value of each objective plus
+// 10 % of its range.
+func gridReference(front [][]float64) []float64 {
+	ref := make([]float64, len(front[0]))
+	for j := range ref {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for _, p := range front {
+			lo, hi = min(lo, p[j]), max(hi, p[j])
+		}
+		ref[j] = hi + 0.1*(hi-lo)
+	}
+	return ref
 }
 
 // efficiencyBudget caps the evaluations one seed may take to reach the
@@ -183,14 +188,7 @@ func BenchmarkEvaluationsTo99(b *testing.B) {
 		b.Run(car.name, func(b *testing.B) {
 			pl := efficiencyPlan(b, car.rough)
 			front, total := gridFront(pl.SearchProblem(), 11)
-			ref := make([]float64, len(front[0]))
-			for j := range ref {
-				lo, hi := math.Inf(1), math.Inf(-1)
-				for _, p := range front {
-					lo, hi = min(lo, p[j]), max(hi, p[j])
-				}
-				ref[j] = hi + 0.1*(hi-lo)
-			}
+			ref := gridReference(front)
 			target := optimizer.Hypervolume(front, ref)
 			for _, n := range []int{48, 16} {
 				for _, polish := range []int{0, 4} {
