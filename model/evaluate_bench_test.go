@@ -94,7 +94,12 @@ func BenchmarkEvaluateHeave(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			benchEvaluate(b, ev, car.s)
+			r := benchEvaluate(b, ev, car.s)
+			iters := 0
+			for _, m := range r.Cases {
+				iters += m.Iterations
+			}
+			b.ReportMetric(float64(iters), "iterations")
 		})
 	}
 }
