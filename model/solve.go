@@ -17,6 +17,9 @@ func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex
 	// The pivots' reciprocals, taken once: row col is final once its
 	// column is eliminated, so back substitution divides by the same.
 	var invs [nDOF]complex128
+	if n > nDOF || nr > maxRHS {
+		panic("model: solveComplex size out of range")
+	}
 	for col := 0; col < n; col++ {
 		p, best := col, cabs1(a[col][col])
 		for r := col + 1; r < n; r++ {
@@ -28,30 +31,35 @@ func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex
 			return false
 		}
 		if p != col {
-			a[p], a[col] = a[col], a[p]
+			// Columns left of col are never read again.
+			for c := col; c < n; c++ {
+				a[p][c], a[col][c] = a[col][c], a[p][c]
+			}
 			b[p], b[col] = b[col], b[p]
 		}
-		inv := recip(a[col][col])
+		pr, pb := &a[col], &b[col]
+		inv := recip(pr[col])
 		invs[col] = inv
 		for r := col + 1; r < n; r++ {
-			f := a[r][col] * inv
+			ar, br := &a[r], &b[r]
+			f := ar[col] * inv
 			if f == 0 {
 				continue
 			}
 			for c := col + 1; c < n; c++ {
-				a[r][c] -= f * a[col][c]
+				ar[c] -= f * pr[c]
 			}
 			for j := 0; j < nr; j++ {
-				b[r][j] -= f * b[col][j]
+				br[j] -= f * pb[j]
 			}
 		}
 	}
 	for col := n - 1; col >= 0; col-- {
-		inv := invs[col]
+		inv, ar := invs[col], &a[col]
 		for j := 0; j < nr; j++ {
 			s := b[col][j]
 			for c := col + 1; c < n; c++ {
-				s -= a[col][c] * b[c][j]
+				s -= ar[c] * b[c][j]
 			}
 			b[col][j] = s * inv
 		}
