@@ -84,6 +84,10 @@ var (
 		pb.ObjectiveKind_OBJECTIVE_KIND_PITCH:          model.ObjectivePitch,
 		pb.ObjectiveKind_OBJECTIVE_KIND_ROLL:           model.ObjectiveRoll,
 		pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:    model.ObjectiveHeaveAccel,
+
+		pb.ObjectiveKind_OBJECTIVE_KIND_DRIVER_RESPONSE:   model.ObjectiveDriverResponse,
+		pb.ObjectiveKind_OBJECTIVE_KIND_TRANSIENT_BALANCE: model.ObjectiveTransientBalance,
+		pb.ObjectiveKind_OBJECTIVE_KIND_KERB_LOAD_LOSS:    model.ObjectiveKerbLoadLoss,
 	}
 	aggregations = map[pb.Aggregation]model.Aggregation{
 		pb.Aggregation_AGGREGATION_UNSPECIFIED: model.AggregateMeanSquare,
@@ -97,6 +101,9 @@ var (
 		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:      model.ConstraintTravel,
 		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:     model.ConstraintJacking,
 		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO: model.ConstraintModalRatio,
+
+		pb.ConstraintKind_CONSTRAINT_KIND_UNLOADED_TIME: model.ConstraintUnloadedTime,
+		pb.ConstraintKind_CONSTRAINT_KIND_STOP_TIME:     model.ConstraintStopTime,
 	}
 )
 

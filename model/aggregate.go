@@ -183,7 +183,7 @@ func (s *Problem) CaseShares(j int, r *Result) []float64 {
 
 // caseName names case c of objective o's cases.
 func caseName(r *Result, o *Objective, c int) string {
-	if o.Kind.onTransients() {
+	if o.Kind.OnTransients() {
 		return r.Transients[c].Case
 	}
 	return r.Cases[c].Case

@@ -66,7 +66,7 @@ func (k ObjectiveKind) String() string {
 
 // Unit returns the SI unit of the objective's value.
 func (k ObjectiveKind) Unit() string {
-	if k.onTransients() {
+	if k.OnTransients() {
 		return k.transientUnit()
 	}
 	switch k {
@@ -414,7 +414,7 @@ func (s *Problem) Score(r *Result, obj, viol []float64) {
 // corner of r, and the first case where it is reached; NaN, and its case,
 // when a value is NaN.
 func constraintWorst(c *Constraint, r *Result) (worst float64, at int) {
-	if c.Kind.onTransients() {
+	if c.Kind.OnTransients() {
 		return transientWorst(c, r)
 	}
 	for i := range r.Cases {

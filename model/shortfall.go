@@ -7,7 +7,7 @@ func (k ConstraintKind) Unit() string {
 	if k == ConstraintTravel || k == ConstraintJacking {
 		return "m"
 	}
-	if k.onTransients() {
+	if k.OnTransients() {
 		return "s"
 	}
 	return "-"
@@ -21,7 +21,7 @@ type Shortfall struct {
 	Worst float64
 	// Case is the index of the road case where Worst is reached (the
 	// first such case); of the manoeuvre or kerb case (Result.Transients)
-	// for a constraint on them (ConstraintKind.onTransients).
+	// for a constraint on them (ConstraintKind.OnTransients).
 	Case int
 	// Over is Worst − Limit, in the constraint's unit; ≤ 0 when met. For
 	// a modal-ratio band Worst is the ratio farthest outside it and Over

@@ -74,7 +74,7 @@ func (o TransientOptions) withDefaults() TransientOptions {
 func (o TransientOptions) validate(v *Vehicle) error {
 	var p problems
 	p.inOrZero("load_fraction", o.LoadFraction, "Transient.load_fraction")
-	p.inOrZero("max_ratio", o.MaxRatio, "AxleDamping.ratio")
+	p.nonNegative("max_ratio", o.MaxRatio)
 	p.nonNegative("step_s", o.Step)
 	p.merge("", TimeOptions{BumpStops: o.BumpStops}.validate(v))
 	return p.err()

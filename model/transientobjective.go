@@ -44,15 +44,15 @@ func init() {
 	constraintNames[ConstraintStopTime] = "stop_time"
 }
 
-// onTransients reports whether the objective is taken on the manoeuvre
+// OnTransients reports whether the objective is taken on the manoeuvre
 // and kerb cases.
-func (k ObjectiveKind) onTransients() bool {
+func (k ObjectiveKind) OnTransients() bool {
 	return k == ObjectiveDriverResponse || k == ObjectiveTransientBalance || k == ObjectiveKerbLoadLoss
 }
 
-// onTransients reports whether the constraint is taken on the manoeuvre
+// OnTransients reports whether the constraint is taken on the manoeuvre
 // and kerb cases.
-func (k ConstraintKind) onTransients() bool {
+func (k ConstraintKind) OnTransients() bool {
 	return k == ConstraintUnloadedTime || k == ConstraintStopTime
 }
 
@@ -86,7 +86,7 @@ func transientObjective(o *Objective, m *TransientMetrics) (float64, bool) {
 // road case c for a road objective, transient case c for the others; ok
 // is false where the objective does not apply.
 func (s *Problem) caseValue(o *Objective, r *Result, c int) (v, w float64, ok bool) {
-	if o.Kind.onTransients() {
+	if o.Kind.OnTransients() {
 		v, ok = transientObjective(o, &r.Transients[c])
 		return v, s.eval.transients[c].weight, ok
 	}
@@ -96,7 +96,7 @@ func (s *Problem) caseValue(o *Objective, r *Result, c int) (v, w float64, ok bo
 // caseCount is the number of cases objective o is read on (some may not
 // apply, see caseValue).
 func caseCount(o *Objective, r *Result) int {
-	if o.Kind.onTransients() {
+	if o.Kind.OnTransients() {
 		return len(r.Transients)
 	}
 	return len(r.Cases)
@@ -129,7 +129,7 @@ func transientWorst(c *Constraint, r *Result) (worst float64, at int) {
 func checkTransientObjectives(e *Evaluator, objectives []Objective) error {
 	var p problems
 	for j, o := range objectives {
-		if !o.Kind.onTransients() {
+		if !o.Kind.OnTransients() {
 			continue
 		}
 		found := false

@@ -308,8 +308,16 @@ type JobSpec struct {
 	// The setup that objectives with AGGREGATION_NORMALISED are taken
 	// relative to; absent means the middle of the design space's bounds.
 	ReferenceSetup *Setup `protobuf:"bytes,12,opt,name=reference_setup,json=referenceSetup,proto3" json:"reference_setup,omitempty"`
-	unknownFields  protoimpl.UnknownFields
-	sizeCache      protoimpl.SizeCache
+	// Driver-input cases, beside the road cases (field numbers from 20 on).
+	Manoeuvres []*Manoeuvre `protobuf:"bytes,20,rep,name=manoeuvres,proto3" json:"manoeuvres,omitempty"`
+	// Kerb cases.
+	Kerbs []*Kerb `protobuf:"bytes,21,rep,name=kerbs,proto3" json:"kerbs,omitempty"`
+	// Fraction of static load below which a tyre counts as unloaded on the
+	// manoeuvre and kerb cases; 0 means 0.5.
+	// Plausible range when given (not 0): (0, 1].
+	LoadFraction  float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *JobSpec) Reset() {
@@ -424,6 +432,27 @@ func (x *JobSpec) GetReferenceSetup() *Setup {
 		return x.ReferenceSetup
 	}
 	return nil
+}
+
+func (x *JobSpec) GetManoeuvres() []*Manoeuvre {
+	if x != nil {
+		return x.Manoeuvres
+	}
+	return nil
+}
+
+func (x *JobSpec) GetKerbs() []*Kerb {
+	if x != nil {
+		return x.Kerbs
+	}
+	return nil
+}
+
+func (x *JobSpec) GetLoadFraction() float64 {
+	if x != nil {
+		return x.LoadFraction
+	}
+	return 0
 }
 
 // Job is one optimisation run, a resource named "jobs/{job_id}".
@@ -717,7 +746,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\x9f\x04\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\x9f\x04\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -735,7 +764,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\xc8\x05\n" +
+	"\r_mutation_eta\"\xd0\x06\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -754,7 +783,12 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	" \x01(\v2\x18.dampfront.v1.AdjustmentR\n" +
 	"adjustment\x123\n" +
 	"\x06curves\x18\v \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curves\x12<\n" +
-	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x1a9\n" +
+	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x127\n" +
+	"\n" +
+	"manoeuvres\x18\x14 \x03(\v2\x17.dampfront.v1.ManoeuvreR\n" +
+	"manoeuvres\x12(\n" +
+	"\x05kerbs\x18\x15 \x03(\v2\x12.dampfront.v1.KerbR\x05kerbs\x12#\n" +
+	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\x94\x06\n" +
@@ -839,8 +873,10 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Adjustment)(nil),            // 14: dampfront.v1.Adjustment
 	(*CurveSettings)(nil),         // 15: dampfront.v1.CurveSettings
 	(*Setup)(nil),                 // 16: dampfront.v1.Setup
-	(*timestamppb.Timestamp)(nil), // 17: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 18: dampfront.v1.ConstraintShortfall
+	(*Manoeuvre)(nil),             // 17: dampfront.v1.Manoeuvre
+	(*Kerb)(nil),                  // 18: dampfront.v1.Kerb
+	(*timestamppb.Timestamp)(nil), // 19: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 20: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	6,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -854,21 +890,23 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	14, // 8: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
 	15, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
 	16, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
-	0,  // 11: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	7,  // 12: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	17, // 13: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	17, // 14: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	17, // 15: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	5,  // 16: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 17: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	5,  // 18: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	18, // 19: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	17, // 20: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	21, // [21:21] is the sub-list for method output_type
-	21, // [21:21] is the sub-list for method input_type
-	21, // [21:21] is the sub-list for extension type_name
-	21, // [21:21] is the sub-list for extension extendee
-	0,  // [0:21] is the sub-list for field type_name
+	17, // 11: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
+	18, // 12: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
+	0,  // 13: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	7,  // 14: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	19, // 15: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	19, // 16: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	19, // 17: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	5,  // 18: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 19: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	5,  // 20: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	20, // 21: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	19, // 22: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	23, // [23:23] is the sub-list for method output_type
+	23, // [23:23] is the sub-list for method input_type
+	23, // [23:23] is the sub-list for extension type_name
+	23, // [23:23] is the sub-list for extension extendee
+	0,  // [0:23] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -878,6 +916,7 @@ func file_dampfront_v1_job_proto_init() {
 	}
 	file_dampfront_v1_design_proto_init()
 	file_dampfront_v1_road_proto_init()
+	file_dampfront_v1_transient_proto_init()
 	file_dampfront_v1_vehicle_proto_init()
 	file_dampfront_v1_job_proto_msgTypes[0].OneofWrappers = []any{}
 	type x struct{}

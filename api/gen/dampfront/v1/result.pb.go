@@ -162,9 +162,12 @@ type Solution struct {
 	Warnings []string `protobuf:"bytes,10,rep,name=warnings,proto3" json:"warnings,omitempty"`
 	// Every violated constraint, in the job's order, with its worst value and
 	// road case; empty when every constraint is met.
-	Shortfalls    []*ConstraintShortfall `protobuf:"bytes,11,rep,name=shortfalls,proto3" json:"shortfalls,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	Shortfalls []*ConstraintShortfall `protobuf:"bytes,11,rep,name=shortfalls,proto3" json:"shortfalls,omitempty"`
+	// Metrics on the manoeuvre and kerb cases, manoeuvres first, in the
+	// spec's order (field numbers from 20 on).
+	TransientMetrics []*TransientMetrics `protobuf:"bytes,20,rep,name=transient_metrics,json=transientMetrics,proto3" json:"transient_metrics,omitempty"`
+	unknownFields    protoimpl.UnknownFields
+	sizeCache        protoimpl.SizeCache
 }
 
 func (x *Solution) Reset() {
@@ -270,6 +273,13 @@ func (x *Solution) GetWarnings() []string {
 func (x *Solution) GetShortfalls() []*ConstraintShortfall {
 	if x != nil {
 		return x.Shortfalls
+	}
+	return nil
+}
+
+func (x *Solution) GetTransientMetrics() []*TransientMetrics {
+	if x != nil {
+		return x.TransientMetrics
 	}
 	return nil
 }
@@ -1154,7 +1164,7 @@ var File_dampfront_v1_result_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\n" +
-	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\"\xc7\x03\n" +
+	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x1cdampfront/v1/transient.proto\"\x94\x04\n" +
 	"\bSolution\x12\x14\n" +
 	"\x05index\x18\x01 \x01(\x05R\x05index\x12\x14\n" +
 	"\x05genes\x18\x02 \x03(\x01R\x05genes\x12)\n" +
@@ -1173,7 +1183,8 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	" \x03(\tR\bwarnings\x12A\n" +
 	"\n" +
 	"shortfalls\x18\v \x03(\v2!.dampfront.v1.ConstraintShortfallR\n" +
-	"shortfalls\"\xff\x03\n" +
+	"shortfalls\x12K\n" +
+	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\"\xff\x03\n" +
 	"\vCaseMetrics\x12\x1b\n" +
 	"\troad_case\x18\x01 \x01(\tR\broadCase\x125\n" +
 	"\acorners\x18\x02 \x03(\v2\x1b.dampfront.v1.CornerMetricsR\acorners\x12/\n" +
@@ -1300,29 +1311,31 @@ var file_dampfront_v1_result_proto_goTypes = []any{
 	(*Front)(nil),               // 9: dampfront.v1.Front
 	(*Setup)(nil),               // 10: dampfront.v1.Setup
 	(*ConstraintShortfall)(nil), // 11: dampfront.v1.ConstraintShortfall
-	(*Objective)(nil),           // 12: dampfront.v1.Objective
-	(*Constraint)(nil),          // 13: dampfront.v1.Constraint
+	(*TransientMetrics)(nil),    // 12: dampfront.v1.TransientMetrics
+	(*Objective)(nil),           // 13: dampfront.v1.Objective
+	(*Constraint)(nil),          // 14: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
 	10, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
 	3,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
 	8,  // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
 	11, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 4: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	6,  // 5: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	6,  // 6: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	7,  // 7: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	4,  // 8: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
-	1,  // 9: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 10: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	12, // 11: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	13, // 12: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 13: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	14, // [14:14] is the sub-list for method output_type
-	14, // [14:14] is the sub-list for method input_type
-	14, // [14:14] is the sub-list for extension type_name
-	14, // [14:14] is the sub-list for extension extendee
-	0,  // [0:14] is the sub-list for field type_name
+	12, // 4: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
+	5,  // 5: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	6,  // 6: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	6,  // 7: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	7,  // 8: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	4,  // 9: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	1,  // 10: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 11: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
+	13, // 12: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	14, // 13: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	2,  // 14: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	15, // [15:15] is the sub-list for method output_type
+	15, // [15:15] is the sub-list for method input_type
+	15, // [15:15] is the sub-list for extension type_name
+	15, // [15:15] is the sub-list for extension extendee
+	0,  // [0:15] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }
@@ -1331,6 +1344,7 @@ func file_dampfront_v1_result_proto_init() {
 		return
 	}
 	file_dampfront_v1_design_proto_init()
+	file_dampfront_v1_transient_proto_init()
 	type x struct{}
 	out := protoimpl.TypeBuilder{
 		File: protoimpl.DescBuilder{

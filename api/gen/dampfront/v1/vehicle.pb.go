@@ -73,8 +73,11 @@ type Vehicle struct {
 	// Rear ride height of the car at rest, as front_rest_ride_height_m.
 	// Plausible range when given (not 0): [0.005, 0.5] m.
 	RearRestRideHeightM float64 `protobuf:"fixed64,15,opt,name=rear_rest_ride_height_m,json=rearRestRideHeightM,proto3" json:"rear_rest_ride_height_m,omitempty"`
-	unknownFields       protoimpl.UnknownFields
-	sizeCache           protoimpl.SizeCache
+	// Heights and link geometry for the manoeuvre cases (field numbers from
+	// 20 on).
+	LoadPaths     *LoadPaths `protobuf:"bytes,20,opt,name=load_paths,json=loadPaths,proto3" json:"load_paths,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *Vehicle) Reset() {
@@ -210,6 +213,13 @@ func (x *Vehicle) GetRearRestRideHeightM() float64 {
 		return x.RearRestRideHeightM
 	}
 	return 0
+}
+
+func (x *Vehicle) GetLoadPaths() *LoadPaths {
+	if x != nil {
+		return x.LoadPaths
+	}
+	return nil
 }
 
 // Corner is one wheel station. Give either spring_rate_n_per_m with
@@ -752,7 +762,7 @@ var File_dampfront_v1_vehicle_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\"\xb5\x05\n" +
+	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\x1a\x1cdampfront/v1/transient.proto\"\xed\x05\n" +
 	"\aVehicle\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12$\n" +
 	"\x0esprung_mass_kg\x18\x02 \x01(\x01R\fsprungMassKg\x12-\n" +
@@ -771,7 +781,9 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\x12rear_anti_roll_bar\x18\f \x01(\v2\x19.dampfront.v1.AntiRollBarR\x0frearAntiRollBar\x12&\n" +
 	"\x04aero\x18\r \x01(\v2\x12.dampfront.v1.AeroR\x04aero\x126\n" +
 	"\x18front_rest_ride_height_m\x18\x0e \x01(\x01R\x14frontRestRideHeightM\x124\n" +
-	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\"\xc9\x03\n" +
+	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\x126\n" +
+	"\n" +
+	"load_paths\x18\x14 \x01(\v2\x17.dampfront.v1.LoadPathsR\tloadPaths\"\xc9\x03\n" +
 	"\x06Corner\x12,\n" +
 	"\x13spring_rate_n_per_m\x18\x01 \x01(\x01R\x0fspringRateNPerM\x12.\n" +
 	"\x13spring_motion_ratio\x18\x02 \x01(\x01R\x11springMotionRatio\x12*\n" +
@@ -836,20 +848,22 @@ var file_dampfront_v1_vehicle_proto_goTypes = []any{
 	(*AeroTable)(nil),      // 4: dampfront.v1.AeroTable
 	(*AeroPolynomial)(nil), // 5: dampfront.v1.AeroPolynomial
 	(*AeroTerm)(nil),       // 6: dampfront.v1.AeroTerm
+	(*LoadPaths)(nil),      // 7: dampfront.v1.LoadPaths
 }
 var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
 	1, // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
 	2, // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
 	2, // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
 	3, // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
-	4, // 4: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
-	5, // 5: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
-	6, // 6: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
-	7, // [7:7] is the sub-list for method output_type
-	7, // [7:7] is the sub-list for method input_type
-	7, // [7:7] is the sub-list for extension type_name
-	7, // [7:7] is the sub-list for extension extendee
-	0, // [0:7] is the sub-list for field type_name
+	7, // 4: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
+	4, // 5: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
+	5, // 6: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
+	6, // 7: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
+	8, // [8:8] is the sub-list for method output_type
+	8, // [8:8] is the sub-list for method input_type
+	8, // [8:8] is the sub-list for extension type_name
+	8, // [8:8] is the sub-list for extension extendee
+	0, // [0:8] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_vehicle_proto_init() }
@@ -857,6 +871,7 @@ func file_dampfront_v1_vehicle_proto_init() {
 	if File_dampfront_v1_vehicle_proto != nil {
 		return
 	}
+	file_dampfront_v1_transient_proto_init()
 	type x struct{}
 	out := protoimpl.TypeBuilder{
 		File: protoimpl.DescBuilder{
