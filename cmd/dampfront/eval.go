@@ -179,6 +179,12 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 	if err := writeAtSpeed(w, s.GetCaseMetrics()); err != nil {
 		return err
 	}
+	if len(s.GetTransientMetrics()) > 0 {
+		fmt.Fprintln(w)
+		if err := writeTransients(w, s.GetTransientMetrics()); err != nil {
+			return err
+		}
+	}
 	fmt.Fprintln(w)
 	return writeCaseModes(w, s.GetCaseMetrics())
 }
