@@ -47,6 +47,12 @@ func (storedCodec) EncodeSolution(s *study.Solution) ([]byte, error) {
 	return proto.MarshalOptions{Deterministic: true}.Marshal(solutionToProto(s))
 }
 
+// EncodeCheck encodes the check of a finished front, stored as the job's
+// summary and read back by jobToProto.
+func (storedCodec) EncodeCheck(c *study.FrontCheck) ([]byte, error) {
+	return proto.MarshalOptions{Deterministic: true}.Marshal(frontCheckToProto(c))
+}
+
 // MarshalSpec returns the bytes the engine stores for a spec: its
 // defaults filled in, deterministically encoded, so that equal specs give
 // equal bytes.

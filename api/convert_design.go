@@ -84,6 +84,8 @@ var (
 		pb.ObjectiveKind_OBJECTIVE_KIND_PITCH:          model.ObjectivePitch,
 		pb.ObjectiveKind_OBJECTIVE_KIND_ROLL:           model.ObjectiveRoll,
 		pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:    model.ObjectiveHeaveAccel,
+		pb.ObjectiveKind_OBJECTIVE_KIND_DOWNFORCE:      model.ObjectiveDownforce,
+		pb.ObjectiveKind_OBJECTIVE_KIND_BALANCE:        model.ObjectiveBalance,
 
 		pb.ObjectiveKind_OBJECTIVE_KIND_DRIVER_RESPONSE:   model.ObjectiveDriverResponse,
 		pb.ObjectiveKind_OBJECTIVE_KIND_TRANSIENT_BALANCE: model.ObjectiveTransientBalance,
@@ -96,12 +98,12 @@ var (
 		pb.Aggregation_AGGREGATION_NORMALISED:  model.AggregateNormalised,
 	}
 	constraintKinds = map[pb.ConstraintKind]model.ConstraintKind{
-		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:    model.ConstraintLiftOff,
-		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP:   model.ConstraintBumpStop,
-		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:      model.ConstraintTravel,
-		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:     model.ConstraintJacking,
-		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO: model.ConstraintModalRatio,
-
+		pb.ConstraintKind_CONSTRAINT_KIND_LIFT_OFF:      model.ConstraintLiftOff,
+		pb.ConstraintKind_CONSTRAINT_KIND_BUMP_STOP:     model.ConstraintBumpStop,
+		pb.ConstraintKind_CONSTRAINT_KIND_TRAVEL:        model.ConstraintTravel,
+		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:       model.ConstraintJacking,
+		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO:   model.ConstraintModalRatio,
+		pb.ConstraintKind_CONSTRAINT_KIND_FLOOR_CONTACT: model.ConstraintFloorContact,
 		pb.ConstraintKind_CONSTRAINT_KIND_UNLOADED_TIME: model.ConstraintUnloadedTime,
 		pb.ConstraintKind_CONSTRAINT_KIND_STOP_TIME:     model.ConstraintStopTime,
 	}

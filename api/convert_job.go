@@ -10,6 +10,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
+	"dampfront/jobs/study"
 )
 
 // jobStates pairs the engine's states with the enum.
@@ -83,7 +84,23 @@ func jobToProto(j *jobs.Job, full bool) (*pb.Job, error) {
 	if full {
 		out.Spec = spec
 	}
+	if len(j.Summary) > 0 && j.State == jobs.StateSucceeded {
+		out.FrontCheck = &pb.FrontCheck{}
+		if err := proto.Unmarshal(j.Summary, out.FrontCheck); err != nil {
+			return nil, fmt.Errorf("stored front check of job %q does not decode: %w", j.ID, err)
+		}
+	}
 	return out, nil
+}
+
+// frontCheckToProto converts the check of a finished front.
+func frontCheckToProto(c *study.FrontCheck) *pb.FrontCheck {
+	return &pb.FrontCheck{
+		Points: int32(c.Points), Polished: int32(c.Polished), PolishEvaluations: int32(c.PolishEvaluations),
+		Twins: int32(c.Twins), Neighbours: int32(c.Neighbours), Radius: c.Radius, MarginFraction: c.Margin,
+		BeatenByTwin: int32(c.BeatenByTwin), BeatenByNeighbour: int32(c.BeatenByNeighbour), Beaten: int32(c.Beaten),
+		Evaluations: int32(c.Evaluations),
+	}
 }
 
 func progressToProto(p *jobs.Progress) *pb.Progress {

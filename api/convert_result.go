@@ -62,6 +62,11 @@ func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
 		Warnings:           c.Warnings,
 		Modes:              caseModesToProto(c),
 		AtSpeed:            operatingPointToProto(&m.AtSpeed),
+		Aero:               aeroMetricsToProto(m),
+	}
+	for _, p := range m.ReferencePoints() {
+		out.ReferencePoints = append(out.ReferencePoints, &pb.ReferencePointMetrics{Name: p.Name, HeightAtSpeedM: p.HeightAtSpeed,
+			HeightShiftM: p.Shift, HeightSdM: p.SD, ContactProbability: p.ContactProbability})
 	}
 	for i := 0; i < 4; i++ {
 		out.Corners = append(out.Corners, &pb.CornerMetrics{
@@ -81,6 +86,16 @@ func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
 		})
 	}
 	return out
+}
+
+// aeroMetricsToProto converts the downforce and balance figures; nil
+// without downforce at the case's speed.
+func aeroMetricsToProto(m *model.CaseMetrics) *pb.AeroMetrics {
+	if m.AtSpeed.Downforce == [2]float64{} {
+		return nil
+	}
+	return &pb.AeroMetrics{BalanceAtSpeed: m.AtSpeed.Balance(), DownforceSdN: m.DownforceSD, DownforceShiftN: m.DownforceShift,
+		BalanceSd: m.BalanceSD, BalanceShift: m.BalanceShift}
 }
 
 // operatingPointToProto converts the car at a case's speed (the per-corner

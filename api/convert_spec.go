@@ -50,6 +50,10 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 		MutationProbability:  q.MutationProbability,
 		MutationEta:          q.MutationEta,
 		ReferencePoint:       cloneOrNil(q.GetReferencePoint()),
+
+		StagnationWindow:    int(q.GetStagnationWindow()),
+		StagnationTolerance: q.GetStagnationTolerance(),
+		PolishBudget:        int(q.GetPolishBudget()),
 	}
 	return out
 }

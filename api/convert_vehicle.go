@@ -49,6 +49,10 @@ func vehicleFromProto(v *pb.Vehicle, path string, p *problems) model.Vehicle {
 			SprungLoad:         c.GetSprungLoadN(),
 		}
 	}
+	for _, r := range v.GetReferencePoints() {
+		out.ReferencePoints = append(out.ReferencePoints, model.ReferencePoint{Name: r.GetName(), X: r.GetXFromFrontAxleM(),
+			WheelbaseFraction: r.GetWheelbaseFraction(), Y: r.GetYM(), RestHeight: r.GetRestHeightM()})
+	}
 	if a := v.GetAero(); a != nil {
 		out.Aero = model.Aero{
 			ReferenceSpeed: a.GetReferenceSpeedMPerS(),

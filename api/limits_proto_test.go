@@ -27,6 +27,8 @@ var protoLimits = map[string]string{
 	"AntiRollBar.motion_ratio": "AntiRollBar.motion_ratio", "Aero.reference_speed_m_per_s": "Aero.reference_speed_m_per_s",
 	"Aero.front_downforce_n": "Aero.downforce_n", "Aero.rear_downforce_n": "Aero.downforce_n",
 	"Aero.front_stiffness_n_per_m": "Aero.stiffness_n_per_m", "Aero.rear_stiffness_n_per_m": "Aero.stiffness_n_per_m",
+	"ReferencePoint.x_from_front_axle_m": "ReferencePoint.x_from_front_axle_m", "ReferencePoint.wheelbase_fraction": "ReferencePoint.wheelbase_fraction",
+	"ReferencePoint.y_m": "ReferencePoint.y_m", "ReferencePoint.rest_height_m": "ReferencePoint.rest_height_m",
 	"RoadCase.speed_m_per_s": "RoadCase.speed_m_per_s", "RoadCase.weight": "RoadCase.weight",
 	"PowerLawSpectrum.gd0_m3": "RoadCase.gd0_m3", "PowerLawSpectrum.waviness": "RoadCase.waviness",
 	"MeasuredSpectrum.n_cycles_per_m": "RoadCase.n_cycles_per_m", "MeasuredSpectrum.left_m3": "RoadCase.psd_m3",

@@ -127,6 +127,21 @@ var badSpecs = []struct {
 	// road case; each is reported.
 	{"unstable at speed", func(s *pb.JobSpec) { s.Vehicle.Aero.RearStiffnessNPerM = 4e6 },
 		[]string{"spec.road_cases[0].speed_m_per_s", "spec.road_cases[1].speed_m_per_s"}},
+	// Reference points and what needs them.
+	{"reference points: no name, both positions, a name twice, off the car", func(s *pb.JobSpec) {
+		s.Vehicle.ReferencePoints = []*pb.ReferencePoint{
+			{XFromFrontAxleM: 0.4, RestHeightM: 0.05},
+			{Name: "plank", XFromFrontAxleM: 1, WheelbaseFraction: 0.4, RestHeightM: 0.05},
+			{Name: "plank", XFromFrontAxleM: 12, YM: 1.2, RestHeightM: 0},
+		}
+	}, []string{"spec.vehicle.reference_points[0].name", "spec.vehicle.reference_points[1].wheelbase_fraction",
+		"spec.vehicle.reference_points[2].name", "spec.vehicle.reference_points[2].x_from_front_axle_m",
+		"spec.vehicle.reference_points[2].y_m", "spec.vehicle.reference_points[2].rest_height_m"}},
+	{"floor contact without reference points, balance without aero", func(s *pb.JobSpec) {
+		s.Vehicle.Aero = nil
+		s.Objectives = []*pb.Objective{{Kind: pb.ObjectiveKind_OBJECTIVE_KIND_GRIP}, {Kind: pb.ObjectiveKind_OBJECTIVE_KIND_BALANCE}}
+		s.Constraints = append(s.Constraints, &pb.Constraint{Kind: pb.ConstraintKind_CONSTRAINT_KIND_FLOOR_CONTACT, Limit: 0.01})
+	}, []string{"spec.objectives[1].kind", "spec.constraints[1].kind"}},
 	// Every first-pass fault at once: all reported in one answer.
 	{"many at once", func(s *pb.JobSpec) {
 		s.Vehicle.SprungMassKg = -1

@@ -30,6 +30,13 @@ type Run interface {
 	Front() ([]Solution, error)
 }
 
+// Summarizer is a Run that also sums up its front, for example with a
+// check of it: the engine stores the bytes with every front it stores
+// (Job.Summary) and never reads them.
+type Summarizer interface {
+	Summary() ([]byte, error)
+}
+
 // RunOpener builds a Run from a stored spec and a checkpoint, which is
 // nil for a job that has not run yet. An error from Open is final: the job
 // fails with its message.

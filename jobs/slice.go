@@ -224,10 +224,16 @@ func (rq *riverQueue[TTx]) saveState(ctx context.Context, tx *sqlStore, id, leas
 	for i := range front {
 		front[i].Index = i
 	}
+	var summary []byte
+	if sm, ok := study.(Summarizer); ok {
+		if summary, err = sm.Summary(); err != nil {
+			return fmt.Errorf("study summary: %w", err)
+		}
+	}
 	if err := tx.CheckpointSave(ctx, &CheckpointSaveParams{JobID: id, Lease: lease, Data: data, Progress: study.Progress(), Now: rq.e.cfg.Now()}); err != nil {
 		return err
 	}
-	return tx.FrontPut(ctx, &FrontPutParams{JobID: id, Lease: lease, Solutions: front})
+	return tx.FrontPut(ctx, &FrontPutParams{JobID: id, Lease: lease, Solutions: front, Summary: summary})
 }
 
 // finalContext is for the writes that end a slice: they must happen even

@@ -95,6 +95,9 @@ type Job struct {
 	Requeues int
 
 	Progress Progress
+	// Summary is the study's summary of the stored front (see Summarizer),
+	// opaque to the engine; nil until a front with one is stored.
+	Summary []byte
 
 	lease string
 }
@@ -238,6 +241,8 @@ type FrontPutParams struct {
 	JobID     string
 	Lease     string
 	Solutions []Solution // Index must be 0, 1, 2, ... in order
+	// Summary replaces the job's summary (Job.Summary); nil clears it.
+	Summary []byte
 }
 
 // FrontGetParams are the inputs of Store.FrontGet.

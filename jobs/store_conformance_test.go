@@ -361,8 +361,12 @@ func runStoreConformance(t *testing.T, newStore func(t testing.TB) Store) {
 			}
 		}
 		front[3].Detail = nil
-		if err := s.FrontPut(ctx, &FrontPutParams{JobID: "j", Lease: "l", Solutions: front}); err != nil {
+		summary := []byte{0, 1, 2, 0xff}
+		if err := s.FrontPut(ctx, &FrontPutParams{JobID: "j", Lease: "l", Solutions: front, Summary: summary}); err != nil {
 			t.Fatal(err)
+		}
+		if j, err := s.JobGetByID(ctx, &JobGetByIDParams{ID: "j"}); err != nil || !bytes.Equal(j.Summary, summary) {
+			t.Errorf("job summary after FrontPut: %v, %v; want %v", j.Summary, err, summary)
 		}
 		var got []Solution
 		p := FrontGetParams{JobID: "j", PageSize: 3}
@@ -399,6 +403,9 @@ func runStoreConformance(t *testing.T, newStore func(t testing.TB) Store) {
 		}
 		if err := s.FrontPut(ctx, &FrontPutParams{JobID: "j", Lease: "l", Solutions: front[:2]}); err != nil {
 			t.Fatal(err)
+		}
+		if j, err := s.JobGetByID(ctx, &JobGetByIDParams{ID: "j"}); err != nil || j.Summary != nil {
+			t.Errorf("job summary after a FrontPut without one: %v, %v; want nil", j.Summary, err)
 		}
 		res, err := s.FrontGet(ctx, &FrontGetParams{JobID: "j"})
 		if err != nil || res.Total != 2 || len(res.Solutions) != 2 || res.NextPageToken != "" {

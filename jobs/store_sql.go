@@ -26,7 +26,7 @@ var _ Store = (*sqlStore)(nil)
 
 const jobColumns = `id, state, labels, spec, created_at, started_at, finished_at, updated_at,
 	error, partial, cancel_requested, lease, slices, requeues,
-	generation, generations, evaluations, hypervolume, best`
+	generation, generations, evaluations, hypervolume, best, summary`
 
 // Limits on labels, in the spirit of Kubernetes label syntax.
 const (
@@ -47,7 +47,7 @@ func scanJob(r rowScanner) (*Job, error) {
 	)
 	if err := r.Scan(&j.ID, &state, &labels, &j.Spec, &created, &started, &finished, &updated,
 		&j.Error, &partial, &cancelRequested, &j.lease, &slices, &requeues,
-		&generation, &generations, &evaluations, &j.Progress.Hypervolume, &best); err != nil {
+		&generation, &generations, &evaluations, &j.Progress.Hypervolume, &best, &j.Summary); err != nil {
 		return nil, err
 	}
 	j.State = State(state)

@@ -144,6 +144,9 @@ func (s *sqlStore) FrontPut(ctx context.Context, p *FrontPutParams) error {
 		if _, err := tx.q.exec(ctx, `DELETE FROM dampfront_front WHERE job_id = ?`, p.JobID); err != nil {
 			return err
 		}
+		if _, err := tx.q.exec(ctx, `UPDATE dampfront_job SET summary = ? WHERE id = ?`, p.Summary, p.JobID); err != nil {
+			return err
+		}
 		for start := 0; start < len(p.Solutions); start += frontInsertBatch {
 			batch := p.Solutions[start:min(start+frontInsertBatch, len(p.Solutions))]
 			q := `INSERT INTO dampfront_front (job_id, idx, genes, objectives, violations, feasible, detail) VALUES ` +

@@ -141,7 +141,7 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 		}
 		cd.modal = modal
 		cd.grid = newCaseGrid(&e.v, &cd.rc, e.f, sym)
-		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, yc: -v.CGLateral}
+		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, yc: -v.CGLateral, heave: v.hasHeave()}
 		for c := 0; c < 4; c++ {
 			cd.geo.kt[c] = v.Corners[c].TyreRate
 			cd.geo.ct[c] = v.Corners[c].TyreDamping
@@ -181,6 +181,11 @@ func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
 			return err
 		}
 	}
+	if s.Heave != [2]AxleDamping{} {
+		if err := e.v.CheckSetup(&s); err != nil {
+			return err
+		}
+	}
 	dst.Setup = s
 	if cap(dst.Cases) < len(e.cases) {
 		dst.Cases = make([]CaseMetrics, len(e.cases))
@@ -188,24 +193,28 @@ func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
 	dst.Cases = dst.Cases[:len(e.cases)]
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)
-	dampers := e.v.wheelDampers(&s)
+	dampers := e.v.dampers(&s)
 	for i := range e.cases {
 		if err := e.evaluateCase(i, &dampers, ws, &dst.Cases[i], nil); err != nil {
 			return err
 		}
 	}
-	return e.evaluateTransients(&dampers, dst)
+	corners := [4]wheelDamper(dampers[:4])
+	return e.evaluateTransients(&corners, dst)
 }
 
 // evaluateCase runs the linearisation to its fixed point on case ci and
 // fills m; psd, when not nil, receives the output spectra of the final pass.
-func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace, m *CaseMetrics, psd []float64) error {
+func (e *Evaluator) evaluateCase(ci int, dampers *[nDamp]wheelDamper, ws *workspace, m *CaseMetrics, psd []float64) error {
 	cd := &e.cases[ci]
 	linear := true
-	var c [4]float64
+	var c [nDamp]float64
 	for i := range dampers {
 		d := &dampers[i]
 		c[i] = (d.cb + d.cr) / 2
+		if c[i] == 0 {
+			continue // no heave damper on this axle
+		}
 		if !d.linear() {
 			linear = false
 		}
@@ -215,7 +224,7 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 	iter := 0
 	if !linear {
 		converged := false
-		var prevC, prevRes [4]float64
+		var prevC, prevRes [nDamp]float64
 		for iter < e.opt.MaxIterations {
 			iter++
 			v, err := e.caseVariances(ws, cd, &c, true, &acc, &edge, nil)
@@ -224,6 +233,9 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 			}
 			worst := 0.0
 			for i := range c {
+				if c[i] == 0 {
+					continue
+				}
 				g, _ := dampers[i].Equivalent(math.Sqrt(v[outWheelVel+i]))
 				r := g - c[i] // residual of the fixed point c = g(c)
 				worst = math.Max(worst, math.Abs(r)/c[i])
@@ -260,7 +272,7 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[4]wheelDamper, ws *workspace,
 // caseVariances computes road case cd's response spectra at damping c
 // into acc and edge (and psd when not nil), and their variances;
 // velOnly as for responseSpectra and variances.
-func (e *Evaluator) caseVariances(ws *workspace, cd *caseData, c *[4]float64, velOnly bool, acc *[nOut]float64, edge *[4][nOut]float64, psd []float64) ([nOut]float64, error) {
+func (e *Evaluator) caseVariances(ws *workspace, cd *caseData, c *[nDamp]float64, velOnly bool, acc *[nOut]float64, edge *[4][nOut]float64, psd []float64) ([nOut]float64, error) {
 	sys := cd.base.withDamping(*c)
 	n := channels(&ws.chs, &sys, cd.sym)
 	if !responseSpectra(ws.chs[:n], cd.grid, &cd.geo, e.omega, e.wts, &e.bands, velOnly, acc, edge, psd) {
@@ -274,9 +286,9 @@ func (e *Evaluator) caseVariances(ws *workspace, cd *caseData, c *[4]float64, ve
 }
 
 // fillMetrics turns variances into metrics and solves the jacking.
-func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]float64, m *CaseMetrics) {
+func (e *Evaluator) fillMetrics(cd *caseData, dampers *[nDamp]wheelDamper, v *[nOut]float64, m *CaseMetrics) {
 	*m = CaseMetrics{Case: cd.rc.Name, StaticTyreLoad: cd.op.TyreLoad, AtSpeed: cd.op}
-	var fbar [4]float64
+	var fbar [nDamp]float64
 	for i := 0; i < 4; i++ {
 		mr := e.v.Corners[i].DamperMotionRatio
 		sv := math.Sqrt(v[outWheelVel+i])
@@ -289,12 +301,29 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 		m.TyreLoadSDRel[i] = m.TyreLoadSD[i] / cd.op.TyreLoad[i]
 		m.TravelSD[i] = math.Sqrt(v[outTravel+i])
 	}
-	cd.modal.fill(&m.EquivalentDamping, &m.ModalDampingRatio)
-	// Jacking: K x̄ = -Dᵀ F̄ (the mean damper force pushes body up, wheel down).
+	mr3 := e.v.heaveRatios()
+	for ax := 0; ax < 2; ax++ {
+		if mr3[ax] == 0 {
+			continue
+		}
+		su := math.Sqrt(v[outWheelVel+dampHeave+ax])
+		ceq, mean := dampers[dampHeave+ax].Equivalent(su)
+		fbar[dampHeave+ax] = mean
+		m.HeaveEquivalentDamping[ax] = ceq
+		m.HeaveVelocitySD[ax] = mr3[ax] * su
+		m.HeaveTravelSD[ax] = mr3[ax] * math.Sqrt(v[outAxleHeave+ax])
+	}
+	ceq := [nDamp]float64{m.EquivalentDamping[0], m.EquivalentDamping[1], m.EquivalentDamping[2], m.EquivalentDamping[3],
+		m.HeaveEquivalentDamping[0], m.HeaveEquivalentDamping[1]}
+	cd.modal.fill(&ceq, &m.ModalDampingRatio)
+	// Jacking: K x̄ = -Σ_j R_jᵀ F̄_j (the mean damper force pushes body up,
+	// wheels down; a heave damper's pushes on its axle's mean travel).
 	var f, xbar [nDOF]float64
 	for a := 0; a < nDOF; a++ {
-		for i := 0; i < 4; i++ {
-			f[a] -= cd.base.d[i][a] * fbar[i]
+		for i := 0; i < nDamp; i++ {
+			if fbar[i] != 0 {
+				f[a] -= cd.base.r[i][a] * fbar[i]
+			}
 		}
 	}
 	for a := 0; a < nDOF; a++ {
@@ -323,6 +352,18 @@ func (e *Evaluator) fillMetrics(cd *caseData, dampers *[4]wheelDamper, v *[nOut]
 		}
 		if m.BumpStopProbability[i] > e.opt.WarnThreshold {
 			m.Warnings |= WarnBumpStop
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		if gap := cd.op.PackerGap[ax]; gap > 0 {
+			u := 0.0
+			for a := 0; a < nDOF; a++ {
+				u += cd.base.r[dampHeave+ax][a] * xbar[a]
+			}
+			m.PackerProbability[ax] = tailProb(gap-mr3[ax]*u, m.HeaveTravelSD[ax])
+			if m.PackerProbability[ax] > e.opt.WarnThreshold {
+				m.Warnings |= WarnPacker
+			}
 		}
 	}
 	m.RideHeightSD = [2]float64{math.Sqrt(v[outRide]), math.Sqrt(v[outRide+1])}

@@ -85,3 +85,37 @@ func BenchmarkEvaluateAeroMap(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkEvaluateHeave compares one evaluation of the demo setup on the
+// demo cases for the demo car without heave elements and with a heave
+// spring, packer and heave damper (a knee, so it iterates with the
+// corners) on each axle: the heave damper adds two damper coordinates to
+// the fixed point and two outputs per frequency; the evaluation must
+// still allocate nothing.
+func BenchmarkEvaluateHeave(b *testing.B) {
+	withKnee := demoSetup()
+	withKnee.Heave = [2]AxleDamping{withKnee.Axles[Front], withKnee.Axles[Rear]}
+	for _, car := range []struct {
+		name string
+		v    Vehicle
+		s    Setup
+	}{{"none", demoCar(), demoSetup()}, {"heave", heaveCar(), withKnee}} {
+		b.Run(car.name, func(b *testing.B) {
+			ev, err := NewEvaluator(car.v, demoCases(), EvaluatorOptions{})
+			if err != nil {
+				b.Fatal(err)
+			}
+			var r Result
+			if err := ev.Evaluate(car.s, &r); err != nil {
+				b.Fatal(err)
+			}
+			b.ReportAllocs()
+			b.ResetTimer()
+			for i := 0; i < b.N; i++ {
+				if err := ev.Evaluate(car.s, &r); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}

@@ -21,7 +21,14 @@ import (
 //
 //	k_ride = k_w k_t / (k_w + k_t),   f = sqrt(k / m_s) / (2π)
 //
-// with k = k_w (no tyre) or k_ride (tyre in series).
+// with k = k_w (no tyre) or k_ride (tyre in series). Per axle, the heave
+// ride rate puts a heave (third) spring in parallel with the two corner
+// springs (Gillespie 1992, ride rate):
+//
+//	k_heave = 2 k_w + k3 MR3²,   f_heave = sqrt(k_heave / m_axle) / (2π)
+//
+// while the roll rate is the corner springs' and the bar's alone (the
+// third spring does not stroke in roll).
 
 // HandTargets are what the hand method needs besides the car: the target
 // ratios, knees and high-speed factors (a Setup), the adjuster band as
@@ -101,10 +108,30 @@ type HandMode struct {
 	Reason               string // why the two differ, one line
 }
 
+// HandAxle is the hand method's heave figures of one axle.
+type HandAxle struct {
+	Axle int
+	// HeaveRate is the axle's rate in heave at the wheels, corner springs
+	// and heave spring (N/m); HeaveSpringRate the heave spring's share,
+	// k3 MR3² (N/m; 0 without one); SprungMass the axle's sprung mass (kg).
+	HeaveRate, HeaveSpringRate, SprungMass float64
+	// HeaveFrequencyHz is sqrt(HeaveRate/SprungMass)/(2π), tyres rigid.
+	HeaveFrequencyHz float64
+	// HeaveMotionRatio is the heave element's motion ratio (-), 0 = none;
+	// CriticalHeave and CriticalElement the axle's heave critical damping
+	// on the mean wheel travel and at the element (N s/m, see
+	// Vehicle.HeaveCriticalDamping).
+	HeaveMotionRatio, CriticalHeave, CriticalElement float64
+	// Bump and Rebound are the heave damper at the element from the
+	// targets' Setup.Heave; zero without a heave damper target.
+	Bump, Rebound HandBranch
+}
+
 // HandReport is the hand method for a car.
 type HandReport struct {
 	Targets HandTargets
 	Corners [4]HandCorner
+	Axles   [2]HandAxle
 	Modes   [3]HandMode // heave, pitch, roll
 }
 
@@ -114,6 +141,7 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 	p.merge("vehicle.", v.Validate())
 	p.merge("targets.setup.", t.Setup.Validate())
 	p.merge("targets.adjustment.", t.Adjustment.Validate())
+	p.merge("targets.setup.", v.CheckSetup(&t.Setup))
 	p.nonNegative("targets.speed_m_per_s", t.Speed)
 	if err := p.err(); err != nil {
 		return nil, err
@@ -131,34 +159,66 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 		hc := HandCorner{Corner: i, WheelRate: kw, RideRate: kr, TyreRate: kt, SprungMass: ms, DamperMotionRatio: c.DamperMotionRatio,
 			RideFrequencyHz: math.Sqrt(kw/ms) / (2 * math.Pi), RideFrequencyTyreHz: math.Sqrt(kr/ms) / (2 * math.Pi),
 			CriticalWheel: cc[i], CriticalDamper: cc[i] / mr2}
-		branch := func(ratio, knee, factor, soft, stiff float64) HandBranch {
-			b := HandBranch{Ratio: ratio, Slope: ratio * hc.CriticalDamper, Knee: knee}
-			b.KneeForce = b.Slope * knee
-			b.HighSpeedSlope = factorOr1(factor) * b.Slope
-			if band {
-				b.SoftestSlope, b.StiffestSlope = soft*hc.CriticalDamper, stiff*hc.CriticalDamper
-				b.SoftestKneeForce, b.StiffestKneeForce = b.SoftestSlope*knee, b.StiffestSlope*knee
-			}
-			return b
-		}
-		adj := t.Adjustment
-		hc.Bump = branch(a.BumpRatio, a.KneeBump, a.HighSpeedBump, adj.BumpSoftest, adj.BumpStiffest)
-		hc.Rebound = branch(a.ReboundRatio, a.KneeRebound, a.HighSpeedRebound, adj.ReboundSoftest, adj.ReboundStiffest)
+		hc.Bump, hc.Rebound = handBranches(a, t.Adjustment, hc.CriticalDamper, band)
 		r.Corners[i] = hc
 	}
-	d := v.wheelDampers(&t.Setup)
+	r.Axles = handAxles(v, &t)
+	d := v.dampers(&t.Setup)
 	var c [4]float64
+	var heave [2]float64
 	for i := range c {
 		c[i] = (d[i].cb + d[i].cr) / 2
 	}
-	modal, err := ModesAt(v, t.Speed, c)
+	for ax := range heave {
+		heave[ax] = (d[dampHeave+ax].cb + d[dampHeave+ax].cr) / 2
+	}
+	modal, err := ModesAtHeave(v, t.Speed, c, heave)
 	if err != nil {
 		return nil, err
 	}
-	if r.Modes, err = HandModesAt(v, t.Speed, c, modal); err != nil {
+	if r.Modes, err = HandModesAtHeave(v, t.Speed, c, heave, modal); err != nil {
 		return nil, err
 	}
 	return r, nil
+}
+
+// handBranches works out a damper's bump and rebound at the component
+// from the target ratios a of the critical damping cc there (N s/m) and
+// the adjuster band (when band).
+func handBranches(a AxleDamping, adj Adjustment, cc float64, band bool) (bump, rebound HandBranch) {
+	branch := func(ratio, knee, factor, soft, stiff float64) HandBranch {
+		b := HandBranch{Ratio: ratio, Slope: ratio * cc, Knee: knee}
+		b.KneeForce = b.Slope * knee
+		b.HighSpeedSlope = factorOr1(factor) * b.Slope
+		if band {
+			b.SoftestSlope, b.StiffestSlope = soft*cc, stiff*cc
+			b.SoftestKneeForce, b.StiffestKneeForce = b.SoftestSlope*knee, b.StiffestSlope*knee
+		}
+		return b
+	}
+	bump = branch(a.BumpRatio, a.KneeBump, a.HighSpeedBump, adj.BumpSoftest, adj.BumpStiffest)
+	rebound = branch(a.ReboundRatio, a.KneeRebound, a.HighSpeedRebound, adj.ReboundSoftest, adj.ReboundStiffest)
+	return bump, rebound
+}
+
+// handAxles works out each axle's heave rate, ride frequency and heave
+// damper (see HandAxle).
+func handAxles(v *Vehicle, t *HandTargets) [2]HandAxle {
+	k, m, cc := v.AxleHeaveRate(), v.AxleSprungMass(), v.HeaveCriticalDamping()
+	var out [2]HandAxle
+	for ax := range out {
+		h := v.Heave[ax]
+		ha := HandAxle{Axle: ax, HeaveRate: k[ax], HeaveSpringRate: h.WheelRateOf(), SprungMass: m[ax],
+			HeaveFrequencyHz: math.Sqrt(k[ax]/m[ax]) / (2 * math.Pi), HeaveMotionRatio: h.MotionRatio, CriticalHeave: cc[ax]}
+		if h.has() {
+			ha.CriticalElement = cc[ax] / (h.MotionRatio * h.MotionRatio)
+			if a := t.Setup.Heave[ax]; a.given() {
+				ha.Bump, ha.Rebound = handBranches(a, t.Adjustment, ha.CriticalElement, t.Adjustment.band())
+			}
+		}
+		out[ax] = ha
+	}
+	return out
 }
 
 // HandModesAt works heave, pitch and roll out by hand at a speed with
@@ -168,6 +228,12 @@ func HandMethod(v *Vehicle, t HandTargets) (*HandReport, error) {
 // get their hand figures at the same slopes, so that what is left between
 // the two is the tyres, the aero and the coupling (HandMode.Reason).
 func HandModesAt(v *Vehicle, speed float64, c [4]float64, modal []Mode) ([3]HandMode, error) {
+	return HandModesAtHeave(v, speed, c, [2]float64{}, modal)
+}
+
+// HandModesAtHeave is HandModesAt with heave dampers of slopes heave (N
+// s/m on each axle's mean wheel travel, as ModesAtHeave takes them).
+func HandModesAtHeave(v *Vehicle, speed float64, c [4]float64, heave [2]float64, modal []Mode) ([3]HandMode, error) {
 	if len(modal) < 3 {
 		panic("model: HandModesAt needs the heave, pitch and roll modes of ModesAt")
 	}
@@ -180,13 +246,14 @@ func HandModesAt(v *Vehicle, speed float64, c [4]float64, modal []Mode) ([3]Hand
 	if err != nil {
 		return [3]HandMode{}, err
 	}
-	return handModes(v, c, &op, modal), nil
+	return handModes(v, c, heave, &op, modal), nil
 }
 
 // handModes works out heave, pitch and roll alone (tyres rigid) and with
 // the tyres in series, beside the full car's modes, dampers of slopes c
-// at the wheel.
-func handModes(v *Vehicle, wheel [4]float64, op *OperatingPoint, modal []Mode) [3]HandMode {
+// at the wheel and heave dampers of slopes heave on the axles' mean wheel
+// travel.
+func handModes(v *Vehicle, wheel [4]float64, heave [2]float64, op *OperatingPoint, modal []Mode) [3]HandMode {
 	inertia := [3]float64{v.SprungMass, v.PitchInertia, v.RollInertia}
 	var susp, tyre, damp [3]float64
 	for i := 0; i < 4; i++ {
@@ -200,9 +267,17 @@ func handModes(v *Vehicle, wheel [4]float64, op *OperatingPoint, modal []Mode) [
 		}
 	}
 	track := [2]float64{v.TrackFront, v.TrackRear}
+	axleX := [2]float64{v.CGToFrontAxle, -v.CGToRearAxle}
 	for ax := 0; ax < 2; ax++ {
 		// Energy ½ (k_bar/2)(s_L - s_R)² with s_L - s_R = t φ in roll.
 		susp[ModeRoll] += v.AntiRoll[ax].WheelRateOf() * track[ax] * track[ax] / 2
+		// Heave element: the axle's mean travel is z in heave, x_a θ in
+		// pitch, nothing in roll.
+		k3, c3 := v.Heave[ax].WheelRateOf(), heave[ax]
+		susp[ModeHeave] += k3
+		susp[ModePitch] += k3 * axleX[ax] * axleX[ax]
+		damp[ModeHeave] += c3
+		damp[ModePitch] += c3 * axleX[ax] * axleX[ax]
 	}
 	// The aero stiffness at the operating point, a negative spring the
 	// hand figures leave out: on heave, and at the axles' levers on pitch.

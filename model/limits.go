@@ -104,6 +104,11 @@ var plausible = map[string]Limit{
 	"Corner.bump_stop_gap_m":        {Min: 0, Max: 0.3, Unit: "m", Slips: slipMm},
 	"Corner.sprung_load_n":          {Min: 100, Max: 5e4, Unit: "N"},
 
+	"HeaveElement.spring_rate_n_per_m": {Min: 0, Max: 1e7, Unit: "N/m", Slips: slipNPerMm},
+	"HeaveElement.motion_ratio":        {Min: 0.1, Max: 2},
+	"HeaveElement.packer_gap_m":        {Min: 0, Max: 0.3, Unit: "m", Slips: slipMm},
+	"HeaveElement.packer_rate_n_per_m": {Min: 1e3, Max: 1e8, Unit: "N/m", Slips: slipNPerMm},
+
 	"AntiRollBar.wheel_rate_n_per_m": {Min: 0, Max: 1e7, Unit: "N/m", Slips: slipNPerMm},
 	"AntiRollBar.bar_rate_n_per_m":   {Min: 1e3, Max: 1e8, Unit: "N/m", Slips: slipNPerMm},
 	"AntiRollBar.motion_ratio":       {Min: 0.05, Max: 2},

@@ -38,6 +38,16 @@ type CaseMetrics struct {
 	// (ModeNames order) with the dampers at their equivalent slopes (-).
 	ModalDampingRatio [nDOF]float64
 
+	// Heave elements, per axle (0 where the axle has none): the element's
+	// travel and velocity standard deviations at the element, the heave
+	// damper's c_eq on the axle's mean wheel travel, and the packer
+	// contact probability P(element travel > packer gap left at speed),
+	// Gaussian, incl. the mean shift (0 when no packer gap is given).
+	HeaveTravelSD          [2]float64 // (m)
+	HeaveVelocitySD        [2]float64 // (m/s)
+	HeaveEquivalentDamping [2]float64 // (N s/m)
+	PackerProbability      [2]float64 // (-)
+
 	RideHeightShift [2]float64 // mean ride-height change, front, rear, + up (m)
 	PitchShift      float64    // mean pitch change, + nose up (rad)
 	TravelShift     [4]float64 // mean travel change, + bump (m)
@@ -76,6 +86,9 @@ const (
 	// WarnFloorContact: some reference point's ground-contact probability
 	// exceeds the threshold.
 	WarnFloorContact
+	// WarnPacker: some axle's packer contact probability exceeds the
+	// threshold.
+	WarnPacker
 )
 
 // Strings returns readable warnings for a case's flags.
@@ -91,6 +104,12 @@ func (m *CaseMetrics) WarningStrings(threshold float64) []string {
 		if m.Warnings&WarnBumpStop != 0 && m.BumpStopProbability[i] > threshold {
 			out = append(out, fmt.Sprintf("%s: %s bump-stop contact probability %.1f%% exceeds %.1f%%: the linear model does not hold; run the time-domain check",
 				m.Case, CornerNames[i], 100*m.BumpStopProbability[i], 100*threshold))
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		if m.Warnings&WarnPacker != 0 && m.PackerProbability[ax] > threshold {
+			out = append(out, fmt.Sprintf("%s: %s heave packer contact probability %.1f%% exceeds %.1f%%: the linear model does not hold; run the time-domain check",
+				m.Case, AxleNames[ax], 100*m.PackerProbability[ax], 100*threshold))
 		}
 	}
 	for _, p := range m.ReferencePoints() {
@@ -119,6 +138,9 @@ func (m *CaseMetrics) checkFinite() error {
 		}
 	}
 	sum += m.RideHeightSD[0]*0 + m.RideHeightSD[1]*0 + m.RideHeightShift[0]*0 + m.RideHeightShift[1]*0
+	for _, a := range [...]*[2]float64{&m.HeaveTravelSD, &m.HeaveVelocitySD, &m.HeaveEquivalentDamping, &m.PackerProbability} {
+		sum += a[0]*0 + a[1]*0
+	}
 	sum += m.RideHeightCovariance*0 + m.DownforceSD*0 + m.DownforceShift*0 + m.BalanceSD*0 + m.BalanceShift*0
 	for _, p := range m.ReferencePoints() {
 		sum += p.HeightAtSpeed*0 + p.Shift*0 + p.SD*0 + p.ContactProbability*0
@@ -138,6 +160,8 @@ func (m *CaseMetrics) checkFinite() error {
 		{"damper_velocity_sd_m_per_s", m.DamperVelocitySD[:]}, {"equivalent_damping_n_s_per_m", m.EquivalentDamping[:]},
 		{"mean_damper_force_n", m.MeanDamperForce[:]}, {"ride_height_shift_m", m.RideHeightShift[:]},
 		{"pitch_shift_rad", []float64{m.PitchShift}}, {"travel_shift_m", m.TravelShift[:]},
+		{"heave_travel_sd_m", m.HeaveTravelSD[:]}, {"heave_velocity_sd_m_per_s", m.HeaveVelocitySD[:]},
+		{"heave_equivalent_damping_n_s_per_m", m.HeaveEquivalentDamping[:]}, {"packer_probability", m.PackerProbability[:]},
 		{"ride_height_covariance_m2", []float64{m.RideHeightCovariance}},
 		{"downforce_sd_n", []float64{m.DownforceSD}}, {"downforce_shift_n", []float64{m.DownforceShift}},
 		{"balance_sd", []float64{m.BalanceSD}}, {"balance_shift", []float64{m.BalanceShift}},

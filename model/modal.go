@@ -63,25 +63,36 @@ const (
 func ModalAnalysis(v *Vehicle, s *Setup, speed float64) ([]Mode, error) {
 	var p problems
 	p.merge("setup.", s.Validate())
+	p.merge("setup.", v.CheckSetup(s))
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	d := v.wheelDampers(s)
-	var c [4]float64
+	d := v.dampers(s)
+	var c [nDamp]float64
 	for i := range c {
 		c[i] = (d[i].cb + d[i].cr) / 2
 	}
-	return ModesAt(v, speed, c)
+	return ModesAtHeave(v, speed, [4]float64(c[:4]), [2]float64(c[dampHeave:]))
 }
 
 // ModesAt returns the modes of the car at a speed with linear dampers of
 // slopes c at the wheel (N s/m per corner), e.g. a road case's
 // equivalent slopes (CaseMetrics.EquivalentDamping).
 func ModesAt(v *Vehicle, speed float64, c [4]float64) ([]Mode, error) {
+	return ModesAtHeave(v, speed, c, [2]float64{})
+}
+
+// ModesAtHeave is ModesAt with heave dampers of slopes heave (N s/m on
+// each axle's mean wheel travel, CaseMetrics.HeaveEquivalentDamping; 0 =
+// none) besides the corner dampers.
+func ModesAtHeave(v *Vehicle, speed float64, c [4]float64, heave [2]float64) ([]Mode, error) {
 	var p problems
 	p.merge("vehicle.", v.Validate())
 	for i, ci := range c {
 		p.nonNegative(fmt.Sprintf("wheel_damping_n_s_per_m[%d]", i), ci)
+	}
+	for ax, ci := range heave {
+		p.nonNegative(fmt.Sprintf("heave_damping_n_s_per_m[%d]", ax), ci)
 	}
 	if err := p.err(); err != nil {
 		return nil, err
@@ -91,7 +102,7 @@ func ModesAt(v *Vehicle, speed float64, c [4]float64) ([]Mode, error) {
 		return nil, err
 	}
 	base := newSystem(v, &op.AeroStiffness)
-	sys := base.withDamping(c)
+	sys := base.withDamping([nDamp]float64{c[0], c[1], c[2], c[3], heave[0], heave[1]})
 	um, err := undampedModes(base)
 	if err != nil {
 		return nil, err
@@ -319,10 +330,11 @@ func modeShares(s *system, x *[nDOF]complex128) [nDOF]float64 {
 
 // modalRatios holds what the modal damping ratios of a road case need,
 // so that Evaluate finds them without a factorisation or an allocation:
-// ζ_j = base_j + Σ_i c_i·travel_ji with c_i the wheel slopes.
+// ζ_j = base_j + Σ_i c_i·travel_ji with c_i the slopes on the damper
+// coordinates (corners, then heave).
 type modalRatios struct {
-	base   [nDOF]float64    // φ_jᵀ C_tyre φ_j / (2 ω_j)
-	travel [nDOF][4]float64 // (D_i φ_j)² / (2 ω_j)
+	base   [nDOF]float64        // φ_jᵀ C_tyre φ_j / (2 ω_j)
+	travel [nDOF][nDamp]float64 // (R_i φ_j)² / (2 ω_j)
 }
 
 // newModalRatios prepares the modal damping ratios of the undamped modes
@@ -335,10 +347,10 @@ func newModalRatios(s *system) (modalRatios, error) {
 	}
 	for j := 0; j < nDOF; j++ {
 		r.base[j] = u.ratio(j, &s.c)
-		for i := 0; i < 4; i++ {
+		for i := 0; i < nDamp; i++ {
 			t := 0.0
 			for a := 0; a < nDOF; a++ {
-				t += s.d[i][a] * u.shape[j][a]
+				t += s.r[i][a] * u.shape[j][a]
 			}
 			r.travel[j][i] = t * t / (2 * u.omega[j])
 		}
@@ -346,12 +358,14 @@ func newModalRatios(s *system) (modalRatios, error) {
 	return r, nil
 }
 
-// fill writes the modal damping ratios at wheel slopes c to dst.
-func (r *modalRatios) fill(c *[4]float64, dst *[nDOF]float64) {
+// fill writes the modal damping ratios at damper slopes c to dst.
+func (r *modalRatios) fill(c *[nDamp]float64, dst *[nDOF]float64) {
 	for j := range dst {
 		z := r.base[j]
-		for i := 0; i < 4; i++ {
-			z += c[i] * r.travel[j][i]
+		for i := 0; i < nDamp; i++ {
+			if c[i] != 0 {
+				z += c[i] * r.travel[j][i]
+			}
 		}
 		dst[j] = z
 	}

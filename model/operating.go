@@ -29,7 +29,14 @@ type OperatingPoint struct {
 	// BumpStopGap is the bump-stop gap left at speed (m): the corner's
 	// gap at rest minus its compression; 0 where no gap is given.
 	BumpStopGap [4]float64
-	TyreLoad    [4]float64 // static tyre load at speed, weight and downforce (N)
+	// HeaveTravel is each axle's heave element travel at speed from rest,
+	// MR3 times the mean of the axle's compressions, + bump (m); 0 where
+	// the axle has no heave element.
+	HeaveTravel [2]float64
+	// PackerGap is the packer gap left at speed (m): the element's gap
+	// at rest minus HeaveTravel; 0 where no packer gap is given.
+	PackerGap [2]float64
+	TyreLoad  [4]float64 // static tyre load at speed, weight and downforce (N)
 
 	Downforce [2]float64 // downforce per axle at this point and speed (N)
 	// AeroStiffness is K_a[a][b] = -∂F_a/∂h_b at this point and speed
@@ -68,7 +75,7 @@ const (
 // It refuses (an error wrapping ErrNoEquilibrium, naming the speed and
 // why) a car whose stiffness at the point is not positive (see
 // stiffEnough), whose Newton iteration does not settle, whose compression
-// reaches a bump-stop gap, whose ride height at speed is not above the
+// reaches a bump-stop or packer gap, whose ride height at speed is not above the
 // ground, or whose point leaves an aero table's grid.
 func (v *Vehicle) OperatingPoint(speed float64) (OperatingPoint, error) {
 	var p problems
@@ -165,6 +172,19 @@ func (v *Vehicle) operatingPoint(speed float64) (OperatingPoint, error) {
 			op.BumpStopGap[i] = gap - s
 			if s >= gap {
 				return fail("the downforce compresses corner %s by %.4g mm, onto its bump stop (gap %.4g mm)", CornerNames[i], s*1e3, gap*1e3)
+			}
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		h := &v.Heave[ax]
+		if !h.has() {
+			continue
+		}
+		op.HeaveTravel[ax] = h.MotionRatio * (op.Compression[2*ax] + op.Compression[2*ax+1]) / 2
+		if h.PackerGap > 0 {
+			op.PackerGap[ax] = h.PackerGap - op.HeaveTravel[ax]
+			if op.PackerGap[ax] <= 0 {
+				return fail("the downforce strokes the %s heave element by %.4g mm, onto its packer (gap %.4g mm)", AxleNames[ax], op.HeaveTravel[ax]*1e3, h.PackerGap*1e3)
 			}
 		}
 	}

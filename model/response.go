@@ -9,21 +9,26 @@ import (
 const (
 	outTyre     = 0  // dynamic tyre load, corners 0..3 (N)
 	outTravel   = 4  // suspension travel at the wheel, corners 0..3 (m)
-	outWheelVel = 8  // suspension velocity at the wheel, corners 0..3 (m/s)
-	outRide     = 12 // ride height relative to the road, front, rear (m)
-	outPitch    = 14 // pitch relative to the road (rad)
-	outRoll     = 15 // roll relative to the road (rad)
-	outHeaveAcc = 16 // heave acceleration of the sprung CG (m/s²)
+	outWheelVel = 8  // suspension velocity at the wheel, corners 0..3, then each axle's mean (heave) 4..5 (m/s)
+	outRide     = 14 // ride height relative to the road, front, rear (m)
+	outPitch    = 16 // pitch relative to the road (rad)
+	outRoll     = 17 // roll relative to the road (rad)
+	outHeaveAcc = 18 // heave acceleration of the sprung CG (m/s²)
 	// Roll relative to the road of each axle, front, rear (rad): r_a =
 	// φ - (w_aL - w_aR)/t_a.
-	outRollAxle = 17
+	outRollAxle = 19
 	// Variances of the sums g_i + g_j (i < j, in the order (0,1), (0,2),
 	// (0,3), (1,2), (1,3), (2,3)) of the platform basis g = (h_f, h_r,
 	// r_f, r_r) (m², r taken per metre of lateral offset): with the
 	// variances of g they give its covariance (platformCovariance).
-	outPlatformPair = 19
-	nOut            = 25
-	nVelocityOut    = 4
+	outPlatformPair = 21
+	// Each axle's mean wheel travel (s_L + s_R)/2, front, rear (m), where
+	// its heave element strokes.
+	outAxleHeave = 27
+	nOut         = 29
+	// nVelocityOut counts the velocity outputs the linearisation
+	// iterates on, one per damper coordinate (outWheelVel+j).
+	nVelocityOut = nDamp
 )
 
 // channel is an independent part of the response: a reduced system in
@@ -153,6 +158,9 @@ type outputGeometry struct {
 	kt, ct       [4]float64
 	a, b, tf, tr float64
 	yc           float64 // lateral position of the centre line from the sprung CG (m)
+	// heave: the car has a heave element, and the axles' mean wheel
+	// travel and velocity are computed (left 0 otherwise).
+	heave bool
 }
 
 // responseSpectra computes, for every grid point, the output PSDs summed
@@ -169,6 +177,12 @@ func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wt
 	var rhs [nDOF][maxRHS]complex128
 	var w [maxRHS][nIn]complex128
 	var out [nOut]float64
+	// The outputs computed: all, or the wheel velocities alone (the
+	// others stay 0 and need no sums).
+	lo, hi := 0, nOut
+	if velOnly {
+		lo, hi = outWheelVel, outWheelVel+nVelocityOut
+	}
 	for k, om := range omega {
 		out = [nOut]float64{}
 		jw := complex(0, om)
@@ -211,12 +225,12 @@ func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wt
 			}
 		}
 		wk := wts[k]
-		for o := range out {
+		for o := lo; o < hi; o++ {
 			acc[o] += wk * out[o]
 		}
 		for b := range bw {
 			if wb := bw[b][k]; wb != 0 {
-				for o := range out {
+				for o := lo; o < hi; o++ {
 					band[b][o] += wb * out[o]
 				}
 			}
@@ -231,9 +245,11 @@ func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wt
 // accumulate adds one source's output PSD contributions |y|² at one
 // frequency (jw = iω).
 func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *[nIn]complex128, jw complex128, om float64, velOnly bool) {
+	var travel [4]complex128
 	for i := 0; i < 4; i++ {
 		d := &g.d[i]
 		s := x[dofWheel+i] + complex(d[0], 0)*x[0] + complex(d[1], 0)*x[1] + complex(d[2], 0)*x[2]
+		travel[i] = s
 		out[outWheelVel+i] += om * om * abs2(s)
 		if velOnly {
 			continue
@@ -241,6 +257,15 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 		out[outTravel+i] += abs2(s)
 		defl := w[i] - x[dofWheel+i]
 		out[outTyre+i] += abs2(complex(g.kt[i], om*g.ct[i]) * defl)
+	}
+	if g.heave {
+		for ax := 0; ax < 2; ax++ {
+			u := abs2((travel[2*ax] + travel[2*ax+1]) / 2)
+			out[outWheelVel+dampHeave+ax] += om * om * u
+			if !velOnly {
+				out[outAxleHeave+ax] += u
+			}
+		}
 	}
 	if velOnly {
 		return
@@ -304,10 +329,12 @@ var outputNames = [nOut]string{
 	"FL tyre load", "FR tyre load", "RL tyre load", "RR tyre load",
 	"FL travel", "FR travel", "RL travel", "RR travel",
 	"FL wheel velocity", "FR wheel velocity", "RL wheel velocity", "RR wheel velocity",
+	"front heave velocity", "rear heave velocity",
 	"front ride height", "rear ride height", "pitch", "roll", "heave acceleration",
 	"front roll", "rear roll",
 	"front + rear ride height", "front ride height + front roll", "front ride height + rear roll",
 	"rear ride height + front roll", "rear ride height + rear roll", "front + rear roll",
+	"front heave travel", "rear heave travel",
 }
 
 // newCaseGrid tabulates a road case on the grid for a vehicle.

@@ -45,7 +45,15 @@ type AxleDamping struct {
 // Setup is the damper setting of the car.
 type Setup struct {
 	Axles [2]AxleDamping // front, rear
+	// Heave is each axle's heave damper, front and rear, its ratios taken
+	// of the axle's heave critical damping (Vehicle.HeaveCriticalDamping)
+	// and its knees, forces and hardware at the element; the zero value is
+	// none. Only an axle with a heave element (Vehicle.Heave) may have one.
+	Heave [2]AxleDamping
 }
+
+// given reports whether a heave damper setting is given (any field set).
+func (a *AxleDamping) given() bool { return *a != AxleDamping{} }
 
 func factorOr1(r float64) float64 {
 	if r == 0 {
@@ -58,17 +66,26 @@ func factorOr1(r float64) float64 {
 // knees and high-speed factors in their plausible ranges (see Limit).
 func (s *Setup) Validate() error {
 	var p problems
-	for ax, a := range s.Axles {
-		f := AxleNames[ax] + "."
-		p.in(f+"bump_ratio", a.BumpRatio, "AxleDamping.ratio")
-		p.in(f+"rebound_ratio", a.ReboundRatio, "AxleDamping.ratio")
-		p.inOrZero(f+"knee_bump_m_per_s", a.KneeBump, "AxleDamping.knee_m_per_s")
-		p.inOrZero(f+"knee_rebound_m_per_s", a.KneeRebound, "AxleDamping.knee_m_per_s")
-		p.inOrZero(f+"high_speed_bump", a.HighSpeedBump, "AxleDamping.high_speed")
-		p.inOrZero(f+"high_speed_rebound", a.HighSpeedRebound, "AxleDamping.high_speed")
-		a.checkHardware(&p, f)
+	for ax := range s.Axles {
+		s.Axles[ax].validate(&p, AxleNames[ax]+".")
+	}
+	for ax := range s.Heave {
+		if s.Heave[ax].given() {
+			s.Heave[ax].validate(&p, fmt.Sprintf("heave[%d].", ax))
+		}
 	}
 	return p.err()
+}
+
+// validate checks one damper setting, its fields named under prefix f.
+func (a *AxleDamping) validate(p *problems, f string) {
+	p.in(f+"bump_ratio", a.BumpRatio, "AxleDamping.ratio")
+	p.in(f+"rebound_ratio", a.ReboundRatio, "AxleDamping.ratio")
+	p.inOrZero(f+"knee_bump_m_per_s", a.KneeBump, "AxleDamping.knee_m_per_s")
+	p.inOrZero(f+"knee_rebound_m_per_s", a.KneeRebound, "AxleDamping.knee_m_per_s")
+	p.inOrZero(f+"high_speed_bump", a.HighSpeedBump, "AxleDamping.high_speed")
+	p.inOrZero(f+"high_speed_rebound", a.HighSpeedRebound, "AxleDamping.high_speed")
+	a.checkHardware(p, f)
 }
 
 // wheelDampers converts the setup to per-corner dampers at the wheel.
@@ -96,22 +113,32 @@ var (
 // ok is a cheap allocation-free form of Validate for the hot path.
 func (s *Setup) ok() bool {
 	for i := range s.Axles {
-		a := &s.Axles[i]
-		if !a.hardwareOK() {
+		if !s.Axles[i].ok() {
 			return false
 		}
-		if !ratioLimit.Contains(a.BumpRatio) || !ratioLimit.Contains(a.ReboundRatio) {
+		if h := &s.Heave[i]; h.given() && !h.ok() {
 			return false
 		}
-		for _, v := range [...]float64{a.KneeBump, a.KneeRebound} {
-			if v != 0 && !kneeLimit.Contains(v) {
-				return false
-			}
+	}
+	return true
+}
+
+// ok is the allocation-free check of one damper setting.
+func (a *AxleDamping) ok() bool {
+	if !a.hardwareOK() {
+		return false
+	}
+	if !ratioLimit.Contains(a.BumpRatio) || !ratioLimit.Contains(a.ReboundRatio) {
+		return false
+	}
+	for _, v := range [...]float64{a.KneeBump, a.KneeRebound} {
+		if v != 0 && !kneeLimit.Contains(v) {
+			return false
 		}
-		for _, v := range [...]float64{a.HighSpeedBump, a.HighSpeedRebound} {
-			if v != 0 && !highSpeedLimit.Contains(v) {
-				return false
-			}
+	}
+	for _, v := range [...]float64{a.HighSpeedBump, a.HighSpeedRebound} {
+		if v != 0 && !highSpeedLimit.Contains(v) {
+			return false
 		}
 	}
 	return true

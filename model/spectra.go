@@ -25,9 +25,12 @@ func (e *Evaluator) Spectra(s Setup, ci int) (*Spectra, *CaseMetrics, error) {
 	if err := s.Validate(); err != nil {
 		return nil, nil, err
 	}
+	if err := e.v.CheckSetup(&s); err != nil {
+		return nil, nil, err
+	}
 	n := len(e.f)
 	psd := make([]float64, nOut*n)
-	dampers := e.v.wheelDampers(&s)
+	dampers := e.v.dampers(&s)
 	var m CaseMetrics
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)

@@ -14,6 +14,11 @@ const (
 	dofWheel = 3 // wheel i is dofWheel+i
 	nDOF     = 7
 	nIn      = 4
+	// nDamp counts the damper coordinates: the four corners' travels and
+	// each axle's mean wheel travel, where its heave damper acts
+	// (dampHeave+axle).
+	nDamp     = 6
+	dampHeave = 4
 )
 
 // system holds the real matrices of M ẍ + C ẋ + K x = Bk w + Bc ẇ.
@@ -27,7 +32,11 @@ const (
 //	Bc = Eᵀ Ct
 //
 // where Ks is diagonal in the wheel rates plus each axle's bar coupling
-// (k_bar/2)[[1,-1],[-1,1]], Cs = diag(c_i) the dampers at the wheel, Kt
+// (k_bar/2)[[1,-1],[-1,1]] and heave spring (k3 MR3²/4)[[1,1],[1,1]]
+// (see HeaveElement), Cs = Σ_j c_j R_jᵀ R_j over the damper rows R_j
+// (the corner dampers at the wheel on D_i, each axle's heave damper on
+// its mean wheel travel (D_L + D_R)/2; with heave dampers Cs is not
+// diagonal), Kt
 // and Ct the tyres, and T_a = [1, x_a, -y_cg] the body point on axle a's
 // centre line. The aero term is the linearised downforce at the operating
 // point: K_a = -∂F/∂h (2×2, see Aero) gives the upward force
@@ -40,6 +49,10 @@ type system struct {
 	bk, bc [nDOF][nIn]float64
 	// d holds the rows D_i (travel of corner i from the state).
 	d [nIn][nDOF]float64
+	// r holds the damper rows R_j: D_i for the corners (j = i < 4) and
+	// (D_L + D_R)/2, the axle's mean wheel travel, for the heave dampers
+	// (j = dampHeave+axle).
+	r [nDamp][nDOF]float64
 }
 
 // newSystem builds the system with the aero stiffness ka (N/m at the
@@ -55,6 +68,12 @@ func newSystem(v *Vehicle, ka *[2][2]float64) *system {
 		x, y := v.cornerPosition(i)
 		s.d[i] = [nDOF]float64{-1, -x, -y}
 		s.d[i][dofWheel+i] = 1
+		s.r[i] = s.d[i]
+	}
+	for ax := 0; ax < 2; ax++ {
+		for a := 0; a < nDOF; a++ {
+			s.r[dampHeave+ax][a] = (s.d[2*ax][a] + s.d[2*ax+1][a]) / 2
+		}
 	}
 	// Suspension stiffness matrix in travel coordinates.
 	var ks [4][4]float64
@@ -68,6 +87,14 @@ func newSystem(v *Vehicle, ka *[2][2]float64) *system {
 		ks[r][r] += kb
 		ks[l][r] -= kb
 		ks[r][l] -= kb
+		// Heave spring: energy ½ k3 MR3² ((s_L + s_R)/2)².
+		if k3 := v.Heave[ax].WheelRateOf(); k3 != 0 {
+			q := k3 / 4
+			ks[l][l] += q
+			ks[r][r] += q
+			ks[l][r] += q
+			ks[r][l] += q
+		}
 	}
 	for a := 0; a < nDOF; a++ {
 		for b := 0; b < nDOF; b++ {
@@ -113,15 +140,19 @@ func (v *Vehicle) axleRows() [2][nDOF]float64 {
 	return [2][nDOF]float64{{1, v.CGToFrontAxle, -v.CGLateral}, {1, -v.CGToRearAxle, -v.CGLateral}}
 }
 
-// withDamping returns a copy of s with suspension dampers c (N s/m at the
-// wheel, per corner) added to the tyre damping: C = Dᵀ diag(c) D + Eᵀ Ct E.
-func (s *system) withDamping(c [4]float64) system {
+// withDamping returns a copy of s with suspension dampers c (N s/m on
+// each damper coordinate: the corners at the wheel, then the heave
+// dampers on the axles' mean wheel travel; 0 = none) added to the tyre
+// damping: C = Σ_j c_j R_jᵀ R_j + Eᵀ Ct E.
+func (s *system) withDamping(c [nDamp]float64) system {
 	out := *s
 	for a := 0; a < nDOF; a++ {
 		for b := a; b < nDOF; b++ {
 			sum := 0.0
-			for i := 0; i < 4; i++ {
-				sum += s.d[i][a] * c[i] * s.d[i][b]
+			for i := 0; i < nDamp; i++ {
+				if c[i] != 0 {
+					sum += s.r[i][a] * c[i] * s.r[i][b]
+				}
 			}
 			out.c[a][b] += sum
 			if b != a {

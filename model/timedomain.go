@@ -129,12 +129,17 @@ func (o TimeOptions) validate(v *Vehicle) error {
 // case's speed: the linear system of newSystem (springs, bars, tyres, the
 // aero map linearised at the point, tyre damping: the same matrices as
 // the frequency-domain model) plus the piecewise dampers, the bump stops
-// (at the gap left at speed) and a tyre that cannot pull (from its load
-// at speed).
+// (at the gap left at speed), a tyre that cannot pull (from its load
+// at speed), and each axle's heave damper and packer (at the packer gap
+// left at speed).
 type timeModel struct {
 	sys    *system
 	minv   [nDOF]float64
-	damp   [4]wheelDamper
+	damp   [nDamp]wheelDamper // corners, then heave (see system.r)
+	heave  bool               // some axle has a heave element
+	mr3    [2]float64         // heave element motion ratios (0 = none)
+	packer [2]float64         // packer gap left at the operating point per axle, at the element (m), 0 = none
+	kp     [2]float64         // packer rate at the element (N/m), 0 = contact counted only
 	stop   [4]*BumpStop
 	gap    [4]float64 // bump-stop gap left at the operating point per corner (m), 0 = none
 	static [4]float64 // tyre load at the operating point (N)
@@ -190,8 +195,12 @@ type sampleRecorder interface {
 }
 
 func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) (*timeModel, error) {
-	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.wheelDampers(s), static: op.TyreLoad,
-		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, width: inWidthRoad}
+	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.dampers(s), static: op.TyreLoad,
+		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, width: inWidthRoad,
+		heave: v.hasHeave(), mr3: v.heaveRatios(), packer: op.PackerGap}
+	for ax := range m.kp {
+		m.kp[ax] = v.Heave[ax].PackerRate
+	}
 	for i := range m.minv {
 		m.minv[i] = 1 / m.sys.m[i]
 	}
@@ -218,6 +227,7 @@ func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) 
 // besides the accelerations.
 type timeSample struct {
 	out      [nOut]float64 // outputs in the frequency-domain order (outTyre...)
+	packer   [2]bool       // the axle's heave element is on its packer
 	force    [4]float64    // damper force at the wheel (N), + pushes apart
 	stopF    [4]float64    // bump-stop force at the wheel (N)
 	airborne [4]bool       // tyre carries no load
@@ -235,6 +245,10 @@ type timeSample struct {
 // and link loads, see inertialLoads), added to the right-hand side. When
 // o is not nil it also receives the outputs, the heave acceleration
 // included.
+// A heave element adds R_hᵀ(F_h + P_h) to the sum, R_h = (D_L + D_R)/2
+// its axle's mean travel: its damper force wheelDamper.force(R_h ẋ) and
+// its packer's force MR3·k_p·(MR3 R_h x - gap) once the element travel
+// passes the gap; half of each goes to each corner of the axle.
 func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64, o *timeSample) {
 	s := m.sys
 	var f [nDOF]float64
@@ -248,6 +262,10 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 	for _, t := range m.inTerms {
 		f[t.r] += t.k*in[t.c] + t.d*in[nIn+t.c]
 	}
+	var share [4]float64 // each corner's half of its axle's heave force
+	if m.heave {
+		m.heaveForces(x, xd, &share, o)
+	}
 	for i := 0; i < 4; i++ {
 		d := &s.d[i]
 		zu, zud := x[dofWheel+i], xd[dofWheel+i]
@@ -259,6 +277,9 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 			fs = st.force(travel - m.gap[i])
 		}
 		g := fd + fs
+		if m.heave {
+			g += share[i]
+		}
 		f[0] += g // -D_iᵀ g with D_i = [-1, -x_i, -y_i, e_i]
 		f[1] -= d[1] * g
 		f[2] -= d[2] * g
@@ -289,6 +310,38 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 		o.out[outPitch] = x[1] - (wf-wr)/(m.a+m.b)
 		o.out[outRoll] = x[2] - ((in[0]-in[1])/m.tf+(in[2]-in[3])/m.tr)/2
 		o.out[outHeaveAcc] = acc[0]
+	}
+}
+
+// heaveForces writes each corner's half of its axle's heave damper and
+// packer force (N, + pushes apart) to share, and the heave outputs to o
+// when it is not nil.
+func (m *timeModel) heaveForces(x, xd *[nDOF]float64, share *[4]float64, o *timeSample) {
+	s := m.sys
+	for ax := 0; ax < 2; ax++ {
+		if m.mr3[ax] == 0 {
+			continue
+		}
+		r := &s.r[dampHeave+ax]
+		u, ud := 0.0, 0.0
+		for a := 0; a < nDOF; a++ {
+			u += r[a] * x[a]
+			ud += r[a] * xd[a]
+		}
+		g := m.damp[dampHeave+ax].force(ud)
+		contact := false
+		if gap := m.packer[ax]; gap > 0 {
+			if pen := m.mr3[ax]*u - gap; pen > 0 {
+				contact = true
+				g += m.mr3[ax] * m.kp[ax] * pen
+			}
+		}
+		share[2*ax], share[2*ax+1] = g/2, g/2
+		if o != nil {
+			o.out[outWheelVel+dampHeave+ax] = ud
+			o.out[outAxleHeave+ax] = u
+			o.packer[ax] = contact
+		}
 	}
 }
 
@@ -350,7 +403,7 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 // stateMatrixEigen returns the eigenvalues of the linear state matrix
 // [[0, I], [-M⁻¹(K + Dᵀ diag(kx) D), -M⁻¹(C + Dᵀ diag(c) D)]] (gonum
 // mat.Eigen).
-func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
+func stateMatrixEigen(s *system, c, kx [nDamp]float64) ([]complex128, error) {
 	sys := s.withDamping(c)
 	const n = 2 * nDOF
 	a := mat.NewDense(n, n, nil)
@@ -358,8 +411,10 @@ func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
 		a.Set(i, nDOF+i, 1)
 		for j := 0; j < nDOF; j++ {
 			k := sys.k[i][j]
-			for q := 0; q < 4; q++ {
-				k += s.d[q][i] * kx[q] * s.d[q][j]
+			for q := 0; q < nDamp; q++ {
+				if kx[q] != 0 {
+					k += s.r[q][i] * kx[q] * s.r[q][j]
+				}
 			}
 			a.Set(nDOF+i, j, -k/s.m[i])
 			a.Set(nDOF+i, nDOF+j, -sys.c[i][j]/s.m[i])
@@ -375,11 +430,16 @@ func stateMatrixEigen(s *system, c, kx [4]float64) ([]complex128, error) {
 // timing chooses the step and the settling time (s) for the model (see
 // SimulateCase).
 func (m *timeModel) timing() (h, settle, rho float64, err error) {
-	var cmax, cmin, kx [4]float64
+	var cmax, cmin, kx [nDamp]float64
 	for i := range m.damp {
 		cmin[i], cmax[i] = m.damp[i].slopeRange()
-		if m.stop[i] != nil {
+		if i < 4 && m.stop[i] != nil {
 			kx[i] = m.stop[i].maxSlope()
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		if m.packer[ax] > 0 {
+			kx[dampHeave+ax] = m.kp[ax] * m.mr3[ax] * m.mr3[ax] // on the mean wheel travel
 		}
 	}
 	fast, err := stateMatrixEigen(m.sys, cmax, kx)
@@ -390,7 +450,7 @@ func (m *timeModel) timing() (h, settle, rho float64, err error) {
 		rho = math.Max(rho, cmplx.Abs(l))
 	}
 	h = math.Min(stepStability/rho, stepMax)
-	slow, err := stateMatrixEigen(m.sys, cmin, [4]float64{})
+	slow, err := stateMatrixEigen(m.sys, cmin, [nDamp]float64{})
 	if err != nil {
 		return 0, 0, 0, err
 	}
@@ -448,6 +508,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	p.merge("vehicle.", v.Validate())
 	p.merge("road_case.", rc.Validate())
 	p.merge("setup.", s.Validate())
+	p.merge("setup.", v.CheckSetup(s))
 	if err := p.err(); err != nil {
 		return nil, err
 	}

@@ -237,7 +237,7 @@ func TestRK4IsFourthOrder(t *testing.T) {
 	v := demoCar()
 	s := tdLinearSetup(0.6)
 	m := timeModelAt(t, &v, &s, 50, [2]*BumpStop{})
-	var c [4]float64
+	var c [nDamp]float64
 	for i := range c {
 		c[i] = m.damp[i].cb
 	}

@@ -11,6 +11,9 @@ import "math"
 //	LiftOffProbability    fraction of the time a tyre carries no load
 //	BumpStopProbability   fraction of the time the travel exceeds the gap
 //	                      (counted even when no bump stop is modelled)
+//	PackerProbability     fraction of the time a heave element's travel
+//	                      exceeds its packer gap (counted even without a
+//	                      packer rate); HeaveEquivalentDamping is 0
 //	EquivalentDamping     E[F v]/E[v²] at the wheel, the least-squares
 //	                      slope (the statistical linearisation's c_eq)
 //	MeanDamperForce       mean damper force at the damper (N)
@@ -75,6 +78,7 @@ type timeStats struct {
 	fsum, fv   [4]float64
 	vabs       [4]float64
 	air, above [4]int
+	packer     [2]int // samples on each axle's packer
 	peaks      Peaks
 	smp        timeSample
 }
@@ -131,6 +135,11 @@ func (s *timeStats) add(o *timeSample) {
 		p.RideHeightMax[ax] = math.Max(p.RideHeightMax[ax], r)
 	}
 	p.HeaveAccelMax = math.Max(p.HeaveAccelMax, math.Abs(o.out[outHeaveAcc]))
+	for ax, on := range o.packer {
+		if on {
+			s.packer[ax]++
+		}
+	}
 }
 
 // finite reports whether every sum is finite (the run did not diverge).
@@ -189,6 +198,14 @@ func (s *timeStats) metrics(m *timeModel, name string, warn float64) *TimeMetric
 	c.PitchShift = mean[outPitch]
 	c.RollSD = sd[outRoll]
 	c.HeaveAccelSD = sd[outHeaveAcc]
+	for ax, mr := range m.mr3 {
+		c.HeaveTravelSD[ax] = mr * sd[outAxleHeave+ax]
+		c.HeaveVelocitySD[ax] = mr * sd[outWheelVel+dampHeave+ax]
+		c.PackerProbability[ax] = float64(s.packer[ax]) / n
+		if c.PackerProbability[ax] > warn {
+			c.Warnings |= WarnPacker
+		}
+	}
 	for k := range tm.meanError {
 		var means [meanBatches]float64
 		for b := range means {

@@ -167,7 +167,7 @@ func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptio
 		return fail(err)
 	}
 	tm.width = inWidthForced
-	for i := range tm.damp {
+	for i := range slope {
 		tm.damp[i] = wheelDamper{cb: slope[i], cr: slope[i], rb: 1, rr: 1}
 	}
 	c.tm = *tm
@@ -366,7 +366,7 @@ func (c *transientCase) work() *transientWork {
 // the caller returns with c.pool.Put.
 func (c *transientCase) run(d *[4]wheelDamper) (*transientWork, error) {
 	m := c.tm
-	m.damp = *d
+	copy(m.damp[:4], d[:]) // the corners; heave dampers are not in the transient cases yet
 	w := c.work()
 	w.n = 0
 	w.rideMin = [2]float64{math.Inf(1), math.Inf(1)}

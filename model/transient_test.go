@@ -252,7 +252,7 @@ func TestTransientQuarterCarHalfSine(t *testing.T) {
 	kerb := &Kerb{Name: "bump", Shape: KerbHalfSine, Side: KerbBoth, Height: 0.005, Length: 2, Speed: 10, Start: 0.05, Duration: 0.55}
 	c := prepare(t, &v, nil, kerb, TransientOptions{Step: 1e-5}, &d)
 	m := c.tm
-	m.damp = d
+	copy(m.damp[:4], d[:])
 	var log sampleLog
 	m.integrate(c.in, c.steps, 0, c.h, c.x0, &log)
 	mf := v.SprungMass * v.CGToRearAxle / v.Wheelbase()
@@ -307,7 +307,7 @@ func TestTransientKerbMatchesFrequencyDomain(t *testing.T) {
 	kerb := &Kerb{Name: "kerb", Shape: KerbHalfSine, Side: KerbLeft, Height: 0.005, Length: 1.2, Speed: 25, Duration: 4}
 	c := prepare(t, &v, nil, kerb, TransientOptions{Step: 1e-4}, &d)
 	m := c.tm
-	m.damp = d
+	copy(m.damp[:4], d[:])
 	var log sampleLog
 	m.integrate(c.in, c.steps, 0, c.h, c.x0, &log)
 
@@ -321,8 +321,8 @@ func TestTransientKerbMatchesFrequencyDomain(t *testing.T) {
 		}
 		spec[i] = fft.Coefficients(nil, seq)
 	}
-	var cw [4]float64
-	for i := range cw {
+	var cw [nDamp]float64
+	for i := range d {
 		cw[i] = d[i].cb
 	}
 	sys := c.tm.sys.withDamping(cw)

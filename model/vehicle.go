@@ -46,6 +46,9 @@ type Vehicle struct {
 	Corners  [4]Corner      // FL, FR, RL, RR
 	AntiRoll [2]AntiRollBar // front, rear
 	Aero     Aero           // optional aero map (see Aero)
+	// Heave is each axle's heave (third) spring and damper, front and
+	// rear; the zero value is none (see HeaveElement).
+	Heave [2]HeaveElement
 
 	// RestRideHeight is the ride height of the car at rest, front and
 	// rear, at each axle's centre line (m): the body's reference (floor,
@@ -272,6 +275,9 @@ func (v *Vehicle) Validate() error {
 		p.inOrZero(fmt.Sprintf("rest_ride_height_m[%d]", ax), v.RestRideHeight[ax], "Vehicle.rest_ride_height_m")
 	}
 	v.Aero.validate(&p, "aero.", v.RestRideHeight)
+	for ax := range v.Heave {
+		v.Heave[ax].validate(&p, fmt.Sprintf("heave[%d].", ax))
+	}
 	v.validateReferencePoints(&p)
 	v.LoadPaths.validate(&p, "load_paths.")
 	return p.err()

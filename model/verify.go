@@ -85,12 +85,13 @@ func Verify(v Vehicle, cases []RoadCase, s Setup, opt VerifyOptions) (*VerifyRep
 	}
 	var p problems
 	p.merge("setup.", s.Validate())
+	p.merge("setup.", e.v.CheckSetup(&s))
 	p.merge("time.", opt.Time.validate(&v))
 	if err := p.err(); err != nil {
 		return nil, err
 	}
 	rep := &VerifyReport{Setup: s, Seed: opt.Seed}
-	dampers := e.v.wheelDampers(&s)
+	dampers := e.v.dampers(&s)
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)
 	psd := make([]float64, nOut*len(e.f))
@@ -194,6 +195,19 @@ func verifyRows(f *CaseMetrics, tm *TimeMetrics, v *Vehicle, wts, psd []float64,
 		mr := v.Corners[i].DamperMotionRatio
 		add(corner("damper_velocity_sd_m_per_s", i), f.DamperVelocitySD[i], t.DamperVelocitySD[i],
 			mr*ss.sdError(outWheelVel+i, f.DamperVelocitySD[i]/mr))
+	}
+	for ax := 0; ax < 2; ax++ {
+		mr := v.Heave[ax].MotionRatio
+		if mr == 0 {
+			continue
+		}
+		add(axle("heave_travel_sd_m", ax), f.HeaveTravelSD[ax], t.HeaveTravelSD[ax], mr*ss.sdError(outAxleHeave+ax, f.HeaveTravelSD[ax]/mr))
+		add(axle("heave_velocity_sd_m_per_s", ax), f.HeaveVelocitySD[ax], t.HeaveVelocitySD[ax],
+			mr*ss.sdError(outWheelVel+dampHeave+ax, f.HeaveVelocitySD[ax]/mr))
+		if v.Heave[ax].PackerGap > 0 {
+			add(axle("packer_fraction", ax), f.PackerProbability[ax], t.PackerProbability[ax],
+				ss.fractionError(f.PackerProbability[ax], outAxleHeave+ax, f.HeaveTravelSD[ax]/mr))
+		}
 	}
 	for i := 0; i < 4; i++ {
 		add(corner("equivalent_damping_n_s_per_m", i), f.EquivalentDamping[i], t.EquivalentDamping[i], 0)

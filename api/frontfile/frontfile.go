@@ -24,6 +24,8 @@ var objectiveColumns = map[pb.ObjectiveKind]string{
 	pb.ObjectiveKind_OBJECTIVE_KIND_PITCH:          "pitch_rad",
 	pb.ObjectiveKind_OBJECTIVE_KIND_ROLL:           "roll_rad",
 	pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:    "heave_accel_m_per_s2",
+	pb.ObjectiveKind_OBJECTIVE_KIND_DOWNFORCE:      "downforce_n",
+	pb.ObjectiveKind_OBJECTIVE_KIND_BALANCE:        "balance",
 }
 
 // ObjectiveColumn is the column of an objective of kind k; a kind this

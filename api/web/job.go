@@ -58,6 +58,7 @@ type jobView struct {
 	Best            []string
 	Partial         bool
 	Infeasible      string // the verdict of a job no setup of which met every constraint
+	FrontCheck      string // the check of a finished front in decision space (FrontCheckText)
 	CancelRequested bool
 	Terminal        bool
 	ProgressURL     string
@@ -74,6 +75,7 @@ type jobView struct {
 	Headers        []header
 	Rows           []solutionRow
 	Curves         *curvesView
+	AtSpeed        *atSpeedView
 	Downloads      []link
 }
 
@@ -92,7 +94,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 	v := &jobView{
 		pageView: pageView{Title: j.GetDisplayName()},
 		Job:      newJobRow(j), Seed: j.GetSeed(), Car: spec.GetVehicle().GetName(),
-		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
+		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), FrontCheck: FrontCheckText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
 		ProgressURL: "/jobs/" + url.PathEscape(id) + "/progress.json", PollMS: h.opt.PollInterval.Milliseconds(),
 		Balanced: -1,
 	}
@@ -181,6 +183,7 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 			c.SVG = inlineSVG(b)
 		}
 		v.Curves = c
+		v.AtSpeed = newAtSpeedView(s)
 	}
 }
 

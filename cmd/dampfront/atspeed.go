@@ -10,12 +10,12 @@ import (
 
 // Quantities of the car-at-speed table.
 var (
-	qRideHeight = newQuantity("ride height at speed", tradeunit.Millimetre, 1, "ride_height_m")
+	qRideHeight = shown(tradeunit.RideHeightSpeed)
 	qRideChange = newQuantity("ride change", tradeunit.Millimetre, 2, "ride_height_change_m")
 	qGapLeft    = newQuantity("bump-stop gap left", tradeunit.Millimetre, 2, "bump_stop_gap_at_speed_m")
 	qCompress   = newQuantity("compression", tradeunit.Millimetre, 2, "compression_at_speed_m")
 	qPitch      = newQuantity("pitch at speed", tradeunit.Degree, 3, "pitch_rad")
-	qDownforce  = newQuantity("downforce", tradeunit.Newton, 0, "downforce_n")
+	qDownforce  = shown(tradeunit.Downforce)
 )
 
 // writeAtSpeed prints the car at each road case's speed: the operating

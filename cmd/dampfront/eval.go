@@ -179,6 +179,9 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 	if err := writeAtSpeed(w, s.GetCaseMetrics()); err != nil {
 		return err
 	}
+	if err := writeAeroPlatform(w, s.GetCaseMetrics()); err != nil {
+		return err
+	}
 	if len(s.GetTransientMetrics()) > 0 {
 		fmt.Fprintln(w)
 		if err := writeTransients(w, s.GetTransientMetrics()); err != nil {

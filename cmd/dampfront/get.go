@@ -86,6 +86,9 @@ func writeJob(w io.Writer, j *pb.Job) error {
 	if v := web.InfeasibleText(j); v != "" {
 		t.row("verdict", v)
 	}
+	if v := web.FrontCheckText(j); v != "" {
+		t.row("front check", v)
+	}
 	return t.flush()
 }
 

@@ -176,6 +176,9 @@ func finalLine(j *pb.Job) string {
 	if v := web.InfeasibleText(j); v != "" {
 		s += "\n" + v
 	}
+	if v := web.FrontCheckText(j); v != "" {
+		s += "\n" + v
+	}
 	return s
 }
 

@@ -73,6 +73,9 @@ func Check(s *Spec) (*Checked, error) {
 	p.merge("curves.", model.ValidateCurveRange(spec.Curves.MaxVelocity, spec.Curves.Points))
 	c.settings = searchSettings(&spec.Search)
 	p.mergeMapped(settingsPath, c.settings.Validate(len(spec.Objectives)))
+	if b := spec.Search.PolishBudget; b < 0 || b > MaxPolishBudget {
+		p.add("search.polish_budget", "must be 0 (no polish) to %d evaluations per front point, got %d", MaxPolishBudget, b)
+	}
 	if err := p.err(); err != nil {
 		return nil, err
 	}
@@ -92,10 +95,11 @@ type Size struct {
 	Transients int
 	// GridPoints is the number of frequencies of each evaluation.
 	GridPoints int
-	// Work is population × islands × generations × (road cases +
-	// transient cases), the number
-	// of case evaluations the search makes (to within its initial
-	// population), saturating at the largest int64.
+	// Work is population × islands × (generations + polish budget) ×
+	// (road cases + transient cases), the number of case evaluations the
+	// search makes (to within its initial population, and counting the
+	// polish of a front as large as the population), saturating at the
+	// largest int64.
 	Work int64
 }
 
@@ -104,7 +108,7 @@ func (c *Checked) Size() Size {
 	q := &c.spec.Search
 	work := int64(1)
 	transients := len(c.spec.Manoeuvres) + len(c.spec.Kerbs)
-	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations, len(c.spec.RoadCases) + transients} {
+	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations + q.PolishBudget, len(c.spec.RoadCases) + transients} {
 		work = mulSat(work, int64(n))
 	}
 	return Size{Cases: len(c.spec.RoadCases), Transients: transients, GridPoints: c.spec.Grid.Points, Work: work}
@@ -135,6 +139,8 @@ func searchSettings(q *Search) optimizer.Settings {
 		MutationProbability:  *q.MutationProbability,
 		MutationEta:          *q.MutationEta,
 		ReferencePoint:       q.ReferencePoint,
+		StagnationWindow:     q.StagnationWindow,
+		StagnationTolerance:  q.StagnationTolerance,
 		Workers:              1,
 	}
 	if !(s.Islands > 1 && s.MigrationEvery > 0) {

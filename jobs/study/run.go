@@ -19,6 +19,9 @@ import (
 type Codec interface {
 	DecodeSpec(b []byte) (*Spec, error)
 	EncodeSolution(s *Solution) ([]byte, error)
+	// EncodeCheck encodes the check of a finished front, the job's
+	// summary (jobs.Summarizer).
+	EncodeCheck(c *FrontCheck) ([]byte, error)
 }
 
 // Opener opens the job engine's runs from stored specs and checkpoints:
@@ -41,8 +44,9 @@ type Opener struct {
 }
 
 var (
-	_ jobs.RunOpener = (*Opener)(nil)
-	_ jobs.Run       = (*run)(nil)
+	_ jobs.RunOpener  = (*Opener)(nil)
+	_ jobs.Run        = (*run)(nil)
+	_ jobs.Summarizer = (*run)(nil)
 )
 
 // Open returns the run of a stored spec, fresh when checkpoint is nil and
@@ -77,7 +81,7 @@ func (o *Opener) workers() int {
 // OpenRun makes the search of a plan, restored from checkpoint unless it
 // is nil. Its Front needs a codec: use Opener.Open for the engine's runs.
 func OpenRun(pl *Plan, workers int, checkpoint []byte) (*run, error) {
-	r := &run{plan: pl}
+	r := &run{plan: pl, workers: max(1, workers)}
 	settings := pl.Settings(workers, r.record)
 	var err error
 	if checkpoint == nil {
@@ -96,9 +100,13 @@ func OpenRun(pl *Plan, workers int, checkpoint []byte) (*run, error) {
 
 // run is one job's search as the engine drives it.
 type run struct {
-	plan   *Plan
-	search *optimizer.Search
-	codec  Codec
+	plan    *Plan
+	search  *optimizer.Search
+	codec   Codec
+	workers int
+	// check is the check of the finished front, nil until the search is
+	// done, polished (when the spec asks) and checked.
+	check *FrontCheck
 
 	mu   sync.Mutex
 	last optimizer.Progress // after the last completed generation
@@ -117,8 +125,53 @@ func (r *run) record(p optimizer.Progress) {
 	r.mu.Unlock()
 }
 
+// Step steps the search; once it is done, it polishes the archive (when
+// the spec asks for it) and checks the front (see FrontCheck) before it
+// reports done. Both are functions of the final archive and the seed, so
+// a run cut anywhere, even during them, ends the same.
 func (r *run) Step(ctx context.Context, maxGenerations int) (bool, error) {
-	return r.search.Step(ctx, maxGenerations)
+	done, err := r.search.Step(ctx, maxGenerations)
+	if err != nil || !done {
+		return done, err
+	}
+	if err := r.finish(ctx); err != nil {
+		return false, err
+	}
+	return true, nil
+}
+
+// finish polishes and checks a done search once.
+func (r *run) finish(ctx context.Context) error {
+	if r.check != nil {
+		return nil
+	}
+	var polished *optimizer.PolishReport
+	if p := r.plan.polish(r.workers); p != nil {
+		rep, err := r.search.Polish(ctx, *p)
+		if err != nil {
+			return err
+		}
+		polished = &rep
+	}
+	fc, err := r.plan.CheckFront(ctx, r.search.Front(), polished, r.workers)
+	if err != nil {
+		return err
+	}
+	r.check = fc
+	return nil
+}
+
+// Check returns the check of the finished front, nil until Step has
+// reported done.
+func (r *run) Check() *FrontCheck { return r.check }
+
+// Summary is the encoded check of the finished front (jobs.Summarizer),
+// nil before it exists or without a codec.
+func (r *run) Summary() ([]byte, error) {
+	if r.check == nil || r.codec == nil {
+		return nil, nil
+	}
+	return r.codec.EncodeCheck(r.check)
 }
 
 func (r *run) Checkpoint() ([]byte, error) { return r.search.Checkpoint() }

@@ -73,4 +73,15 @@ type Search struct {
 	// ReferencePoint is the hypervolume reference point, one value per
 	// objective in its SI unit; nil lets the search fix its own.
 	ReferencePoint []float64
+
+	// StagnationWindow and StagnationTolerance stop the search early once
+	// the hypervolume grows by no more than the tolerance (a fraction of
+	// it) over the window (generations); a window of 0 (the default)
+	// runs every generation (optimizer.Settings).
+	StagnationWindow    int
+	StagnationTolerance float64
+	// PolishBudget is the number of evaluations per front point of the
+	// local polish after the last generation (optimizer.Polish); 0 (the
+	// default) polishes nothing, at most MaxPolishBudget.
+	PolishBudget int
 }

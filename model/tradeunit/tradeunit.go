@@ -18,6 +18,7 @@ package tradeunit
 
 import (
 	"math"
+	"strconv"
 	"strings"
 
 	"dampfront/model"
@@ -171,4 +172,28 @@ func capitalise(s string) string {
 		return s
 	}
 	return strings.ToUpper(s[:1]) + s[1:]
+}
+
+// The aero platform of a road case (model.CaseMetrics, the API's
+// AeroMetrics and ReferencePointMetrics), as the command line's eval
+// table and the job page show it.
+var (
+	BalanceAtSpeed  = Quantity{"balance at speed", "Aero balance at speed (front share)", Percent, 2, "balance_at_speed"}
+	DownforceSD     = Quantity{"downforce sd", "Downforce sd", Newton, 1, "downforce_sd_n"}
+	DownforceShift  = Quantity{"downforce shift", "Downforce shift from jacking", Newton, 1, "downforce_shift_n"}
+	BalanceSD       = Quantity{"balance sd", "Aero balance sd", Percent, 3, "balance_sd"}
+	BalanceShift    = Quantity{"balance shift", "Aero balance shift from jacking", Percent, 3, "balance_shift"}
+	PointHeight     = Quantity{"height at speed", "Height at speed", Millimetre, 2, "height_at_speed_m"}
+	PointShift      = Quantity{"shift", "Height shift from jacking", Millimetre, 3, "height_shift_m"}
+	PointSD         = Quantity{"sd", "Height sd", Millimetre, 3, "height_sd_m"}
+	GroundContact   = Quantity{"ground contact", "Ground-contact probability", Percent, 4, "contact_probability"}
+	RideHeightSpeed = Quantity{"ride height at speed", "Ride height at speed", Millimetre, 1, "ride_height_m"}
+	Downforce       = Quantity{"downforce", "Downforce", Newton, 0, "downforce_n"}
+)
+
+// ProbabilityText writes a probability that spans decades (a
+// ground-contact probability: 1e-12 and 0.03 both matter) in per cent with
+// three significant digits, which fixed decimals would hide.
+func ProbabilityText(p float64) string {
+	return strconv.FormatFloat(Percent.Of(p), 'g', 3, 64)
 }

@@ -50,6 +50,8 @@ OBJECTIVE_COLUMNS = {
     "OBJECTIVE_KIND_PITCH": "pitch_rad",
     "OBJECTIVE_KIND_ROLL": "roll_rad",
     "OBJECTIVE_KIND_HEAVE_ACCEL": "heave_accel_m_per_s2",
+    "OBJECTIVE_KIND_DOWNFORCE": "downforce_n",
+    "OBJECTIVE_KIND_BALANCE": "balance",
 }
 
 # Low-speed slopes at the damper (N s/m) of the front-left and rear-left

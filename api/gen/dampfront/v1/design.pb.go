@@ -41,6 +41,13 @@ const (
 	ObjectiveKind_OBJECTIVE_KIND_ROLL ObjectiveKind = 6
 	// Heave acceleration standard deviation (m/s^2).
 	ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL ObjectiveKind = 7
+	// Downforce variation, sqrt(sd^2 + jacking shift^2) of the total
+	// downforce (N); needs aero. Weighs the ride heights by the aero map's
+	// slopes and their covariance, where PLATFORM weighs both axles alike.
+	ObjectiveKind_OBJECTIVE_KIND_DOWNFORCE ObjectiveKind = 8
+	// Aero balance variation, sqrt(sd^2 + jacking shift^2) of the front
+	// share of the downforce (dimensionless); needs aero.
+	ObjectiveKind_OBJECTIVE_KIND_BALANCE ObjectiveKind = 9
 	// Driver response on the manoeuvre cases: RMS of roll and pitch off their
 	// quasi-static values over their steady change (dimensionless).
 	ObjectiveKind_OBJECTIVE_KIND_DRIVER_RESPONSE ObjectiveKind = 20
@@ -64,6 +71,8 @@ var (
 		5:  "OBJECTIVE_KIND_PITCH",
 		6:  "OBJECTIVE_KIND_ROLL",
 		7:  "OBJECTIVE_KIND_HEAVE_ACCEL",
+		8:  "OBJECTIVE_KIND_DOWNFORCE",
+		9:  "OBJECTIVE_KIND_BALANCE",
 		20: "OBJECTIVE_KIND_DRIVER_RESPONSE",
 		21: "OBJECTIVE_KIND_TRANSIENT_BALANCE",
 		22: "OBJECTIVE_KIND_KERB_LOAD_LOSS",
@@ -77,6 +86,8 @@ var (
 		"OBJECTIVE_KIND_PITCH":             5,
 		"OBJECTIVE_KIND_ROLL":              6,
 		"OBJECTIVE_KIND_HEAVE_ACCEL":       7,
+		"OBJECTIVE_KIND_DOWNFORCE":         8,
+		"OBJECTIVE_KIND_BALANCE":           9,
 		"OBJECTIVE_KIND_DRIVER_RESPONSE":   20,
 		"OBJECTIVE_KIND_TRANSIENT_BALANCE": 21,
 		"OBJECTIVE_KIND_KERB_LOAD_LOSS":    22,
@@ -187,6 +198,9 @@ const (
 	// A band [lower, limit] on one mode's modal damping ratio at the
 	// equivalent slopes of every road case (dimensionless).
 	ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO ConstraintKind = 5
+	// Ground-contact probability of every reference point of the vehicle
+	// (Vehicle.reference_points), worst point and case; a probability.
+	ConstraintKind_CONSTRAINT_KIND_FLOOR_CONTACT ConstraintKind = 6
 	// Time a tyre carries less than the job's load fraction of static on the
 	// manoeuvre and kerb cases (s).
 	ConstraintKind_CONSTRAINT_KIND_UNLOADED_TIME ConstraintKind = 20
@@ -203,6 +217,7 @@ var (
 		3:  "CONSTRAINT_KIND_TRAVEL",
 		4:  "CONSTRAINT_KIND_JACKING",
 		5:  "CONSTRAINT_KIND_MODAL_RATIO",
+		6:  "CONSTRAINT_KIND_FLOOR_CONTACT",
 		20: "CONSTRAINT_KIND_UNLOADED_TIME",
 		21: "CONSTRAINT_KIND_STOP_TIME",
 	}
@@ -213,6 +228,7 @@ var (
 		"CONSTRAINT_KIND_TRAVEL":        3,
 		"CONSTRAINT_KIND_JACKING":       4,
 		"CONSTRAINT_KIND_MODAL_RATIO":   5,
+		"CONSTRAINT_KIND_FLOOR_CONTACT": 6,
 		"CONSTRAINT_KIND_UNLOADED_TIME": 20,
 		"CONSTRAINT_KIND_STOP_TIME":     21,
 	}
@@ -1146,7 +1162,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x16rebound_stiffest_ratio\x18\x04 \x01(\x01R\x14reboundStiffestRatio\"W\n" +
 	"\rCurveSettings\x12.\n" +
 	"\x14max_velocity_m_per_s\x18\x01 \x01(\x01R\x10maxVelocityMPerS\x12\x16\n" +
-	"\x06points\x18\x02 \x01(\x05R\x06points*\xea\x02\n" +
+	"\x06points\x18\x02 \x01(\x05R\x06points*\xa4\x03\n" +
 	"\rObjectiveKind\x12\x1e\n" +
 	"\x1aOBJECTIVE_KIND_UNSPECIFIED\x10\x00\x12\x17\n" +
 	"\x13OBJECTIVE_KIND_GRIP\x10\x01\x12\x1b\n" +
@@ -1155,7 +1171,9 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x1cOBJECTIVE_KIND_REAR_PLATFORM\x10\x04\x12\x18\n" +
 	"\x14OBJECTIVE_KIND_PITCH\x10\x05\x12\x17\n" +
 	"\x13OBJECTIVE_KIND_ROLL\x10\x06\x12\x1e\n" +
-	"\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\a\x12\"\n" +
+	"\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\a\x12\x1c\n" +
+	"\x18OBJECTIVE_KIND_DOWNFORCE\x10\b\x12\x1a\n" +
+	"\x16OBJECTIVE_KIND_BALANCE\x10\t\x12\"\n" +
 	"\x1eOBJECTIVE_KIND_DRIVER_RESPONSE\x10\x14\x12$\n" +
 	" OBJECTIVE_KIND_TRANSIENT_BALANCE\x10\x15\x12!\n" +
 	"\x1dOBJECTIVE_KIND_KERB_LOAD_LOSS\x10\x16*z\n" +
@@ -1163,7 +1181,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x17AGGREGATION_UNSPECIFIED\x10\x00\x12\x1b\n" +
 	"\x17AGGREGATION_MEAN_SQUARE\x10\x01\x12\x15\n" +
 	"\x11AGGREGATION_WORST\x10\x02\x12\x1a\n" +
-	"\x16AGGREGATION_NORMALISED\x10\x03*\x8a\x02\n" +
+	"\x16AGGREGATION_NORMALISED\x10\x03*\xad\x02\n" +
 	"\x0eConstraintKind\x12\x1f\n" +
 	"\x1bCONSTRAINT_KIND_UNSPECIFIED\x10\x00\x12\x1c\n" +
 	"\x18CONSTRAINT_KIND_LIFT_OFF\x10\x01\x12\x1d\n" +
@@ -1171,6 +1189,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x16CONSTRAINT_KIND_TRAVEL\x10\x03\x12\x1b\n" +
 	"\x17CONSTRAINT_KIND_JACKING\x10\x04\x12\x1f\n" +
 	"\x1bCONSTRAINT_KIND_MODAL_RATIO\x10\x05\x12!\n" +
+	"\x1dCONSTRAINT_KIND_FLOOR_CONTACT\x10\x06\x12!\n" +
 	"\x1dCONSTRAINT_KIND_UNLOADED_TIME\x10\x14\x12\x1d\n" +
 	"\x19CONSTRAINT_KIND_STOP_TIME\x10\x15*\xdb\x01\n" +
 	"\bModeName\x12\x19\n" +

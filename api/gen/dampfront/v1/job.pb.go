@@ -167,8 +167,18 @@ type SearchSettings struct {
 	// Hypervolume reference point, one value per objective in its unit;
 	// empty lets the search fix one from its first feasible generation.
 	ReferencePoint []float64 `protobuf:"fixed64,11,rep,packed,name=reference_point,json=referencePoint,proto3" json:"reference_point,omitempty"`
-	unknownFields  protoimpl.UnknownFields
-	sizeCache      protoimpl.SizeCache
+	// Generations over which the hypervolume must grow by more than
+	// stagnation_tolerance of itself, or the search stops early; 0 (the
+	// default) runs every generation.
+	StagnationWindow int32 `protobuf:"varint,12,opt,name=stagnation_window,json=stagnationWindow,proto3" json:"stagnation_window,omitempty"`
+	// Fraction of the hypervolume, in [0, 1); used with stagnation_window.
+	StagnationTolerance float64 `protobuf:"fixed64,13,opt,name=stagnation_tolerance,json=stagnationTolerance,proto3" json:"stagnation_tolerance,omitempty"`
+	// Evaluations per front point of the local polish after the last
+	// generation (a pattern search on an achievement scalarising function
+	// from each point), 0 to 1000; 0 (the default) polishes nothing.
+	PolishBudget  int32 `protobuf:"varint,14,opt,name=polish_budget,json=polishBudget,proto3" json:"polish_budget,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *SearchSettings) Reset() {
@@ -276,6 +286,27 @@ func (x *SearchSettings) GetReferencePoint() []float64 {
 		return x.ReferencePoint
 	}
 	return nil
+}
+
+func (x *SearchSettings) GetStagnationWindow() int32 {
+	if x != nil {
+		return x.StagnationWindow
+	}
+	return 0
+}
+
+func (x *SearchSettings) GetStagnationTolerance() float64 {
+	if x != nil {
+		return x.StagnationTolerance
+	}
+	return 0
+}
+
+func (x *SearchSettings) GetPolishBudget() int32 {
+	if x != nil {
+		return x.PolishBudget
+	}
+	return 0
 }
 
 // JobSpec is everything a job needs: the car, the road cases, the search
@@ -496,7 +527,10 @@ type Job struct {
 	// When infeasible (GetJob and the final WatchJob message): per violated
 	// constraint, in the job's order, the smallest shortfall among the front's
 	// setups, with its road case.
-	Closest       []*ConstraintShortfall `protobuf:"bytes,17,rep,name=closest,proto3" json:"closest,omitempty"`
+	Closest []*ConstraintShortfall `protobuf:"bytes,17,rep,name=closest,proto3" json:"closest,omitempty"`
+	// The check of the finished front in decision space (GetJob, WatchJob
+	// and ListJobs once the job has succeeded); unset before.
+	FrontCheck    *FrontCheck `protobuf:"bytes,18,opt,name=front_check,json=frontCheck,proto3" json:"front_check,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -650,6 +684,154 @@ func (x *Job) GetClosest() []*ConstraintShortfall {
 	return nil
 }
 
+func (x *Job) GetFrontCheck() *FrontCheck {
+	if x != nil {
+		return x.FrontCheck
+	}
+	return nil
+}
+
+// FrontCheck is the check of a finished front where the engineer acts on
+// it, the genes: each point against its same-sum twin (bump = rebound on
+// each axle, same sum; not for a symmetric design) and a few seeded random
+// neighbours (every damping ratio moved by +-radius, clipped to the
+// bounds). A point is beaten when a feasible candidate is lower in every
+// objective by more than margin_fraction of the front's extent in it.
+type FrontCheck struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Feasible front points checked.
+	Points int32 `protobuf:"varint,1,opt,name=points,proto3" json:"points,omitempty"`
+	// Points the polish replaced by one that dominates them.
+	Polished int32 `protobuf:"varint,2,opt,name=polished,proto3" json:"polished,omitempty"`
+	// Evaluations the polish made; 0 without a polish.
+	PolishEvaluations int32 `protobuf:"varint,3,opt,name=polish_evaluations,json=polishEvaluations,proto3" json:"polish_evaluations,omitempty"`
+	// Points with a same-sum twin other than themselves.
+	Twins int32 `protobuf:"varint,4,opt,name=twins,proto3" json:"twins,omitempty"`
+	// Random neighbours per point.
+	Neighbours int32 `protobuf:"varint,5,opt,name=neighbours,proto3" json:"neighbours,omitempty"`
+	// Half-width of the neighbours in each damping ratio (-).
+	Radius float64 `protobuf:"fixed64,6,opt,name=radius,proto3" json:"radius,omitempty"`
+	// Fraction of the front's extent a candidate must be better by.
+	MarginFraction float64 `protobuf:"fixed64,7,opt,name=margin_fraction,json=marginFraction,proto3" json:"margin_fraction,omitempty"`
+	// Points their twin beats.
+	BeatenByTwin int32 `protobuf:"varint,8,opt,name=beaten_by_twin,json=beatenByTwin,proto3" json:"beaten_by_twin,omitempty"`
+	// Points a neighbour beats (and their twin does not).
+	BeatenByNeighbour int32 `protobuf:"varint,9,opt,name=beaten_by_neighbour,json=beatenByNeighbour,proto3" json:"beaten_by_neighbour,omitempty"`
+	// beaten_by_twin + beaten_by_neighbour.
+	Beaten int32 `protobuf:"varint,10,opt,name=beaten,proto3" json:"beaten,omitempty"`
+	// Evaluations the check made.
+	Evaluations   int32 `protobuf:"varint,11,opt,name=evaluations,proto3" json:"evaluations,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *FrontCheck) Reset() {
+	*x = FrontCheck{}
+	mi := &file_dampfront_v1_job_proto_msgTypes[3]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *FrontCheck) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*FrontCheck) ProtoMessage() {}
+
+func (x *FrontCheck) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_job_proto_msgTypes[3]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use FrontCheck.ProtoReflect.Descriptor instead.
+func (*FrontCheck) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{3}
+}
+
+func (x *FrontCheck) GetPoints() int32 {
+	if x != nil {
+		return x.Points
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetPolished() int32 {
+	if x != nil {
+		return x.Polished
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetPolishEvaluations() int32 {
+	if x != nil {
+		return x.PolishEvaluations
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetTwins() int32 {
+	if x != nil {
+		return x.Twins
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetNeighbours() int32 {
+	if x != nil {
+		return x.Neighbours
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetRadius() float64 {
+	if x != nil {
+		return x.Radius
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetMarginFraction() float64 {
+	if x != nil {
+		return x.MarginFraction
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetBeatenByTwin() int32 {
+	if x != nil {
+		return x.BeatenByTwin
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetBeatenByNeighbour() int32 {
+	if x != nil {
+		return x.BeatenByNeighbour
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetBeaten() int32 {
+	if x != nil {
+		return x.Beaten
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetEvaluations() int32 {
+	if x != nil {
+		return x.Evaluations
+	}
+	return 0
+}
+
 // Progress is the state of a search after a generation.
 type Progress struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -672,7 +854,7 @@ type Progress struct {
 
 func (x *Progress) Reset() {
 	*x = Progress{}
-	mi := &file_dampfront_v1_job_proto_msgTypes[3]
+	mi := &file_dampfront_v1_job_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -684,7 +866,7 @@ func (x *Progress) String() string {
 func (*Progress) ProtoMessage() {}
 
 func (x *Progress) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_job_proto_msgTypes[3]
+	mi := &file_dampfront_v1_job_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -697,7 +879,7 @@ func (x *Progress) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Progress.ProtoReflect.Descriptor instead.
 func (*Progress) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *Progress) GetGeneration() int32 {
@@ -746,7 +928,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\x9f\x04\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -759,7 +941,10 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x14mutation_probability\x18\t \x01(\x01H\x03R\x13mutationProbability\x88\x01\x01\x12&\n" +
 	"\fmutation_eta\x18\n" +
 	" \x01(\x01H\x04R\vmutationEta\x88\x01\x01\x12'\n" +
-	"\x0freference_point\x18\v \x03(\x01R\x0ereferencePointB\a\n" +
+	"\x0freference_point\x18\v \x03(\x01R\x0ereferencePoint\x12+\n" +
+	"\x11stagnation_window\x18\f \x01(\x05R\x10stagnationWindow\x121\n" +
+	"\x14stagnation_tolerance\x18\r \x01(\x01R\x13stagnationTolerance\x12#\n" +
+	"\rpolish_budget\x18\x0e \x01(\x05R\fpolishBudgetB\a\n" +
 	"\x05_seedB\x18\n" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
@@ -791,7 +976,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\x94\x06\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xcf\x06\n" +
 	"\x03Job\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12\x15\n" +
 	"\x06job_id\x18\x02 \x01(\tR\x05jobId\x12!\n" +
@@ -815,10 +1000,28 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
 	"infeasible\x18\x10 \x01(\bR\n" +
 	"infeasible\x12;\n" +
-	"\aclosest\x18\x11 \x03(\v2!.dampfront.v1.ConstraintShortfallR\aclosest\x1a9\n" +
+	"\aclosest\x18\x11 \x03(\v2!.dampfront.v1.ConstraintShortfallR\aclosest\x129\n" +
+	"\vfront_check\x18\x12 \x01(\v2\x18.dampfront.v1.FrontCheckR\n" +
+	"frontCheck\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x01\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x02\n" +
+	"\n" +
+	"FrontCheck\x12\x16\n" +
+	"\x06points\x18\x01 \x01(\x05R\x06points\x12\x1a\n" +
+	"\bpolished\x18\x02 \x01(\x05R\bpolished\x12-\n" +
+	"\x12polish_evaluations\x18\x03 \x01(\x05R\x11polishEvaluations\x12\x14\n" +
+	"\x05twins\x18\x04 \x01(\x05R\x05twins\x12\x1e\n" +
+	"\n" +
+	"neighbours\x18\x05 \x01(\x05R\n" +
+	"neighbours\x12\x16\n" +
+	"\x06radius\x18\x06 \x01(\x01R\x06radius\x12'\n" +
+	"\x0fmargin_fraction\x18\a \x01(\x01R\x0emarginFraction\x12$\n" +
+	"\x0ebeaten_by_twin\x18\b \x01(\x05R\fbeatenByTwin\x12.\n" +
+	"\x13beaten_by_neighbour\x18\t \x01(\x05R\x11beatenByNeighbour\x12\x16\n" +
+	"\x06beaten\x18\n" +
+	" \x01(\x05R\x06beaten\x12 \n" +
+	"\vevaluations\x18\v \x01(\x05R\vevaluations\"\xf6\x01\n" +
 	"\bProgress\x12\x1e\n" +
 	"\n" +
 	"generation\x18\x01 \x01(\x05R\n" +
@@ -854,59 +1057,61 @@ func file_dampfront_v1_job_proto_rawDescGZIP() []byte {
 }
 
 var file_dampfront_v1_job_proto_enumTypes = make([]protoimpl.EnumInfo, 2)
-var file_dampfront_v1_job_proto_msgTypes = make([]protoimpl.MessageInfo, 6)
+var file_dampfront_v1_job_proto_msgTypes = make([]protoimpl.MessageInfo, 7)
 var file_dampfront_v1_job_proto_goTypes = []any{
 	(JobState)(0),                 // 0: dampfront.v1.JobState
 	(JobView)(0),                  // 1: dampfront.v1.JobView
 	(*SearchSettings)(nil),        // 2: dampfront.v1.SearchSettings
 	(*JobSpec)(nil),               // 3: dampfront.v1.JobSpec
 	(*Job)(nil),                   // 4: dampfront.v1.Job
-	(*Progress)(nil),              // 5: dampfront.v1.Progress
-	nil,                           // 6: dampfront.v1.JobSpec.LabelsEntry
-	nil,                           // 7: dampfront.v1.Job.LabelsEntry
-	(*Vehicle)(nil),               // 8: dampfront.v1.Vehicle
-	(*RoadCase)(nil),              // 9: dampfront.v1.RoadCase
-	(*Grid)(nil),                  // 10: dampfront.v1.Grid
-	(*DesignSpace)(nil),           // 11: dampfront.v1.DesignSpace
-	(*Objective)(nil),             // 12: dampfront.v1.Objective
-	(*Constraint)(nil),            // 13: dampfront.v1.Constraint
-	(*Adjustment)(nil),            // 14: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),         // 15: dampfront.v1.CurveSettings
-	(*Setup)(nil),                 // 16: dampfront.v1.Setup
-	(*Manoeuvre)(nil),             // 17: dampfront.v1.Manoeuvre
-	(*Kerb)(nil),                  // 18: dampfront.v1.Kerb
-	(*timestamppb.Timestamp)(nil), // 19: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 20: dampfront.v1.ConstraintShortfall
+	(*FrontCheck)(nil),            // 5: dampfront.v1.FrontCheck
+	(*Progress)(nil),              // 6: dampfront.v1.Progress
+	nil,                           // 7: dampfront.v1.JobSpec.LabelsEntry
+	nil,                           // 8: dampfront.v1.Job.LabelsEntry
+	(*Vehicle)(nil),               // 9: dampfront.v1.Vehicle
+	(*RoadCase)(nil),              // 10: dampfront.v1.RoadCase
+	(*Grid)(nil),                  // 11: dampfront.v1.Grid
+	(*DesignSpace)(nil),           // 12: dampfront.v1.DesignSpace
+	(*Objective)(nil),             // 13: dampfront.v1.Objective
+	(*Constraint)(nil),            // 14: dampfront.v1.Constraint
+	(*Adjustment)(nil),            // 15: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),         // 16: dampfront.v1.CurveSettings
+	(*Setup)(nil),                 // 17: dampfront.v1.Setup
+	(*Manoeuvre)(nil),             // 18: dampfront.v1.Manoeuvre
+	(*Kerb)(nil),                  // 19: dampfront.v1.Kerb
+	(*timestamppb.Timestamp)(nil), // 20: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 21: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
-	6,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
-	8,  // 1: dampfront.v1.JobSpec.vehicle:type_name -> dampfront.v1.Vehicle
-	9,  // 2: dampfront.v1.JobSpec.road_cases:type_name -> dampfront.v1.RoadCase
-	10, // 3: dampfront.v1.JobSpec.grid:type_name -> dampfront.v1.Grid
-	11, // 4: dampfront.v1.JobSpec.design_space:type_name -> dampfront.v1.DesignSpace
-	12, // 5: dampfront.v1.JobSpec.objectives:type_name -> dampfront.v1.Objective
-	13, // 6: dampfront.v1.JobSpec.constraints:type_name -> dampfront.v1.Constraint
+	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
+	9,  // 1: dampfront.v1.JobSpec.vehicle:type_name -> dampfront.v1.Vehicle
+	10, // 2: dampfront.v1.JobSpec.road_cases:type_name -> dampfront.v1.RoadCase
+	11, // 3: dampfront.v1.JobSpec.grid:type_name -> dampfront.v1.Grid
+	12, // 4: dampfront.v1.JobSpec.design_space:type_name -> dampfront.v1.DesignSpace
+	13, // 5: dampfront.v1.JobSpec.objectives:type_name -> dampfront.v1.Objective
+	14, // 6: dampfront.v1.JobSpec.constraints:type_name -> dampfront.v1.Constraint
 	2,  // 7: dampfront.v1.JobSpec.search:type_name -> dampfront.v1.SearchSettings
-	14, // 8: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
-	15, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
-	16, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
-	17, // 11: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
-	18, // 12: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
+	15, // 8: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
+	16, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
+	17, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
+	18, // 11: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
+	19, // 12: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
 	0,  // 13: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	7,  // 14: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	19, // 15: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	19, // 16: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	19, // 17: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	5,  // 18: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	8,  // 14: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	20, // 15: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	20, // 16: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	20, // 17: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	6,  // 18: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
 	3,  // 19: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	5,  // 20: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	20, // 21: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	19, // 22: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	23, // [23:23] is the sub-list for method output_type
-	23, // [23:23] is the sub-list for method input_type
-	23, // [23:23] is the sub-list for extension type_name
-	23, // [23:23] is the sub-list for extension extendee
-	0,  // [0:23] is the sub-list for field type_name
+	6,  // 20: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	21, // 21: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 22: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	20, // 23: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	24, // [24:24] is the sub-list for method output_type
+	24, // [24:24] is the sub-list for method input_type
+	24, // [24:24] is the sub-list for extension type_name
+	24, // [24:24] is the sub-list for extension extendee
+	0,  // [0:24] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -925,7 +1130,7 @@ func file_dampfront_v1_job_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_job_proto_rawDesc), len(file_dampfront_v1_job_proto_rawDesc)),
 			NumEnums:      2,
-			NumMessages:   6,
+			NumMessages:   7,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

@@ -314,9 +314,14 @@ type CaseMetrics struct {
 	Modes []*Mode `protobuf:"bytes,11,rep,name=modes,proto3" json:"modes,omitempty"`
 	// The car at this case's speed: the static equilibrium under downforce
 	// that every probability starts from.
-	AtSpeed       *OperatingPoint `protobuf:"bytes,12,opt,name=at_speed,json=atSpeed,proto3" json:"at_speed,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	AtSpeed *OperatingPoint `protobuf:"bytes,12,opt,name=at_speed,json=atSpeed,proto3" json:"at_speed,omitempty"`
+	// What the aero sees: downforce and balance variation from the aero map
+	// linearised at the operating point; absent without aero.
+	Aero *AeroMetrics `protobuf:"bytes,13,opt,name=aero,proto3" json:"aero,omitempty"`
+	// The vehicle's reference points on this case, in the vehicle's order.
+	ReferencePoints []*ReferencePointMetrics `protobuf:"bytes,14,rep,name=reference_points,json=referencePoints,proto3" json:"reference_points,omitempty"`
+	unknownFields   protoimpl.UnknownFields
+	sizeCache       protoimpl.SizeCache
 }
 
 func (x *CaseMetrics) Reset() {
@@ -433,6 +438,189 @@ func (x *CaseMetrics) GetAtSpeed() *OperatingPoint {
 	return nil
 }
 
+func (x *CaseMetrics) GetAero() *AeroMetrics {
+	if x != nil {
+		return x.Aero
+	}
+	return nil
+}
+
+func (x *CaseMetrics) GetReferencePoints() []*ReferencePointMetrics {
+	if x != nil {
+		return x.ReferencePoints
+	}
+	return nil
+}
+
+// AeroMetrics are the downforce and aero balance figures of one setup on
+// one road case. A ride-height change dh changes the axle downforces by
+// -K dh, K the aero stiffness at the operating point (OperatingPoint).
+type AeroMetrics struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Front share of the downforce at the operating point, F_front / (F_front + F_rear).
+	BalanceAtSpeed float64 `protobuf:"fixed64,1,opt,name=balance_at_speed,json=balanceAtSpeed,proto3" json:"balance_at_speed,omitempty"`
+	// Total downforce standard deviation.
+	DownforceSdN float64 `protobuf:"fixed64,2,opt,name=downforce_sd_n,json=downforceSdN,proto3" json:"downforce_sd_n,omitempty"`
+	// Mean change of the total downforce from jacking.
+	DownforceShiftN float64 `protobuf:"fixed64,3,opt,name=downforce_shift_n,json=downforceShiftN,proto3" json:"downforce_shift_n,omitempty"`
+	// Standard deviation of the balance (front share).
+	BalanceSd float64 `protobuf:"fixed64,4,opt,name=balance_sd,json=balanceSd,proto3" json:"balance_sd,omitempty"`
+	// Mean change of the balance from jacking.
+	BalanceShift  float64 `protobuf:"fixed64,5,opt,name=balance_shift,json=balanceShift,proto3" json:"balance_shift,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *AeroMetrics) Reset() {
+	*x = AeroMetrics{}
+	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *AeroMetrics) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*AeroMetrics) ProtoMessage() {}
+
+func (x *AeroMetrics) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use AeroMetrics.ProtoReflect.Descriptor instead.
+func (*AeroMetrics) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{2}
+}
+
+func (x *AeroMetrics) GetBalanceAtSpeed() float64 {
+	if x != nil {
+		return x.BalanceAtSpeed
+	}
+	return 0
+}
+
+func (x *AeroMetrics) GetDownforceSdN() float64 {
+	if x != nil {
+		return x.DownforceSdN
+	}
+	return 0
+}
+
+func (x *AeroMetrics) GetDownforceShiftN() float64 {
+	if x != nil {
+		return x.DownforceShiftN
+	}
+	return 0
+}
+
+func (x *AeroMetrics) GetBalanceSd() float64 {
+	if x != nil {
+		return x.BalanceSd
+	}
+	return 0
+}
+
+func (x *AeroMetrics) GetBalanceShift() float64 {
+	if x != nil {
+		return x.BalanceShift
+	}
+	return 0
+}
+
+// ReferencePointMetrics are one reference point's figures on one road
+// case, heights above the ground under the point.
+type ReferencePointMetrics struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Name of the point (Vehicle.reference_points).
+	Name string `protobuf:"bytes,1,opt,name=name,proto3" json:"name,omitempty"`
+	// Height at the operating point: rest height and the body's movement
+	// under downforce.
+	HeightAtSpeedM float64 `protobuf:"fixed64,2,opt,name=height_at_speed_m,json=heightAtSpeedM,proto3" json:"height_at_speed_m,omitempty"`
+	// Mean height change from jacking, up positive.
+	HeightShiftM float64 `protobuf:"fixed64,3,opt,name=height_shift_m,json=heightShiftM,proto3" json:"height_shift_m,omitempty"`
+	// Height standard deviation.
+	HeightSdM float64 `protobuf:"fixed64,4,opt,name=height_sd_m,json=heightSdM,proto3" json:"height_sd_m,omitempty"`
+	// Probability that the point touches the ground, Phi(-(height at speed
+	// + shift) / sd) for a Gaussian height.
+	ContactProbability float64 `protobuf:"fixed64,5,opt,name=contact_probability,json=contactProbability,proto3" json:"contact_probability,omitempty"`
+	unknownFields      protoimpl.UnknownFields
+	sizeCache          protoimpl.SizeCache
+}
+
+func (x *ReferencePointMetrics) Reset() {
+	*x = ReferencePointMetrics{}
+	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *ReferencePointMetrics) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*ReferencePointMetrics) ProtoMessage() {}
+
+func (x *ReferencePointMetrics) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use ReferencePointMetrics.ProtoReflect.Descriptor instead.
+func (*ReferencePointMetrics) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{3}
+}
+
+func (x *ReferencePointMetrics) GetName() string {
+	if x != nil {
+		return x.Name
+	}
+	return ""
+}
+
+func (x *ReferencePointMetrics) GetHeightAtSpeedM() float64 {
+	if x != nil {
+		return x.HeightAtSpeedM
+	}
+	return 0
+}
+
+func (x *ReferencePointMetrics) GetHeightShiftM() float64 {
+	if x != nil {
+		return x.HeightShiftM
+	}
+	return 0
+}
+
+func (x *ReferencePointMetrics) GetHeightSdM() float64 {
+	if x != nil {
+		return x.HeightSdM
+	}
+	return 0
+}
+
+func (x *ReferencePointMetrics) GetContactProbability() float64 {
+	if x != nil {
+		return x.ContactProbability
+	}
+	return 0
+}
+
 // OperatingPoint is the car's static equilibrium under downforce at a
 // road case's speed, on a flat road. Changes are from the car at rest.
 // Per-corner figures (compression, gap left, tyre load) are in
@@ -470,7 +658,7 @@ type OperatingPoint struct {
 
 func (x *OperatingPoint) Reset() {
 	*x = OperatingPoint{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	mi := &file_dampfront_v1_result_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -482,7 +670,7 @@ func (x *OperatingPoint) String() string {
 func (*OperatingPoint) ProtoMessage() {}
 
 func (x *OperatingPoint) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	mi := &file_dampfront_v1_result_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -495,7 +683,7 @@ func (x *OperatingPoint) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use OperatingPoint.ProtoReflect.Descriptor instead.
 func (*OperatingPoint) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{2}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *OperatingPoint) GetFrontRideHeightM() float64 {
@@ -620,7 +808,7 @@ type CornerMetrics struct {
 
 func (x *CornerMetrics) Reset() {
 	*x = CornerMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	mi := &file_dampfront_v1_result_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -632,7 +820,7 @@ func (x *CornerMetrics) String() string {
 func (*CornerMetrics) ProtoMessage() {}
 
 func (x *CornerMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	mi := &file_dampfront_v1_result_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -645,7 +833,7 @@ func (x *CornerMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use CornerMetrics.ProtoReflect.Descriptor instead.
 func (*CornerMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *CornerMetrics) GetCorner() CornerPosition {
@@ -752,7 +940,7 @@ type AxleMetrics struct {
 
 func (x *AxleMetrics) Reset() {
 	*x = AxleMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[4]
+	mi := &file_dampfront_v1_result_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -764,7 +952,7 @@ func (x *AxleMetrics) String() string {
 func (*AxleMetrics) ProtoMessage() {}
 
 func (x *AxleMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[4]
+	mi := &file_dampfront_v1_result_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -777,7 +965,7 @@ func (x *AxleMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AxleMetrics.ProtoReflect.Descriptor instead.
 func (*AxleMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *AxleMetrics) GetRideHeightSdM() float64 {
@@ -831,7 +1019,7 @@ type Mode struct {
 
 func (x *Mode) Reset() {
 	*x = Mode{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[5]
+	mi := &file_dampfront_v1_result_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -843,7 +1031,7 @@ func (x *Mode) String() string {
 func (*Mode) ProtoMessage() {}
 
 func (x *Mode) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[5]
+	mi := &file_dampfront_v1_result_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -856,7 +1044,7 @@ func (x *Mode) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Mode.ProtoReflect.Descriptor instead.
 func (*Mode) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *Mode) GetName() string {
@@ -954,7 +1142,7 @@ type DamperCurve struct {
 
 func (x *DamperCurve) Reset() {
 	*x = DamperCurve{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[6]
+	mi := &file_dampfront_v1_result_proto_msgTypes[8]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -966,7 +1154,7 @@ func (x *DamperCurve) String() string {
 func (*DamperCurve) ProtoMessage() {}
 
 func (x *DamperCurve) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[6]
+	mi := &file_dampfront_v1_result_proto_msgTypes[8]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -979,7 +1167,7 @@ func (x *DamperCurve) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use DamperCurve.ProtoReflect.Descriptor instead.
 func (*DamperCurve) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{8}
 }
 
 func (x *DamperCurve) GetCorner() CornerPosition {
@@ -1083,7 +1271,7 @@ type Front struct {
 
 func (x *Front) Reset() {
 	*x = Front{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[7]
+	mi := &file_dampfront_v1_result_proto_msgTypes[9]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1095,7 +1283,7 @@ func (x *Front) String() string {
 func (*Front) ProtoMessage() {}
 
 func (x *Front) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[7]
+	mi := &file_dampfront_v1_result_proto_msgTypes[9]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1108,7 +1296,7 @@ func (x *Front) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Front.ProtoReflect.Descriptor instead.
 func (*Front) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{7}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{9}
 }
 
 func (x *Front) GetJob() string {
@@ -1184,7 +1372,7 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\n" +
 	"shortfalls\x18\v \x03(\v2!.dampfront.v1.ConstraintShortfallR\n" +
 	"shortfalls\x12K\n" +
-	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\"\xff\x03\n" +
+	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\"\xfe\x04\n" +
 	"\vCaseMetrics\x12\x1b\n" +
 	"\troad_case\x18\x01 \x01(\tR\broadCase\x125\n" +
 	"\acorners\x18\x02 \x03(\v2\x1b.dampfront.v1.CornerMetricsR\acorners\x12/\n" +
@@ -1201,7 +1389,22 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\bwarnings\x18\n" +
 	" \x03(\tR\bwarnings\x12(\n" +
 	"\x05modes\x18\v \x03(\v2\x12.dampfront.v1.ModeR\x05modes\x127\n" +
-	"\bat_speed\x18\f \x01(\v2\x1c.dampfront.v1.OperatingPointR\aatSpeed\"\xa2\x05\n" +
+	"\bat_speed\x18\f \x01(\v2\x1c.dampfront.v1.OperatingPointR\aatSpeed\x12-\n" +
+	"\x04aero\x18\r \x01(\v2\x19.dampfront.v1.AeroMetricsR\x04aero\x12N\n" +
+	"\x10reference_points\x18\x0e \x03(\v2#.dampfront.v1.ReferencePointMetricsR\x0freferencePoints\"\xcd\x01\n" +
+	"\vAeroMetrics\x12(\n" +
+	"\x10balance_at_speed\x18\x01 \x01(\x01R\x0ebalanceAtSpeed\x12$\n" +
+	"\x0edownforce_sd_n\x18\x02 \x01(\x01R\fdownforceSdN\x12*\n" +
+	"\x11downforce_shift_n\x18\x03 \x01(\x01R\x0fdownforceShiftN\x12\x1d\n" +
+	"\n" +
+	"balance_sd\x18\x04 \x01(\x01R\tbalanceSd\x12#\n" +
+	"\rbalance_shift\x18\x05 \x01(\x01R\fbalanceShift\"\xcd\x01\n" +
+	"\x15ReferencePointMetrics\x12\x12\n" +
+	"\x04name\x18\x01 \x01(\tR\x04name\x12)\n" +
+	"\x11height_at_speed_m\x18\x02 \x01(\x01R\x0eheightAtSpeedM\x12$\n" +
+	"\x0eheight_shift_m\x18\x03 \x01(\x01R\fheightShiftM\x12\x1e\n" +
+	"\vheight_sd_m\x18\x04 \x01(\x01R\theightSdM\x12/\n" +
+	"\x13contact_probability\x18\x05 \x01(\x01R\x12contactProbability\"\xa2\x05\n" +
 	"\x0eOperatingPoint\x12-\n" +
 	"\x13front_ride_height_m\x18\x01 \x01(\x01R\x10frontRideHeightM\x12+\n" +
 	"\x12rear_ride_height_m\x18\x02 \x01(\x01R\x0frearRideHeightM\x12:\n" +
@@ -1297,45 +1500,49 @@ func file_dampfront_v1_result_proto_rawDescGZIP() []byte {
 }
 
 var file_dampfront_v1_result_proto_enumTypes = make([]protoimpl.EnumInfo, 2)
-var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 8)
+var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 10)
 var file_dampfront_v1_result_proto_goTypes = []any{
-	(SolutionView)(0),           // 0: dampfront.v1.SolutionView
-	(CornerPosition)(0),         // 1: dampfront.v1.CornerPosition
-	(*Solution)(nil),            // 2: dampfront.v1.Solution
-	(*CaseMetrics)(nil),         // 3: dampfront.v1.CaseMetrics
-	(*OperatingPoint)(nil),      // 4: dampfront.v1.OperatingPoint
-	(*CornerMetrics)(nil),       // 5: dampfront.v1.CornerMetrics
-	(*AxleMetrics)(nil),         // 6: dampfront.v1.AxleMetrics
-	(*Mode)(nil),                // 7: dampfront.v1.Mode
-	(*DamperCurve)(nil),         // 8: dampfront.v1.DamperCurve
-	(*Front)(nil),               // 9: dampfront.v1.Front
-	(*Setup)(nil),               // 10: dampfront.v1.Setup
-	(*ConstraintShortfall)(nil), // 11: dampfront.v1.ConstraintShortfall
-	(*TransientMetrics)(nil),    // 12: dampfront.v1.TransientMetrics
-	(*Objective)(nil),           // 13: dampfront.v1.Objective
-	(*Constraint)(nil),          // 14: dampfront.v1.Constraint
+	(SolutionView)(0),             // 0: dampfront.v1.SolutionView
+	(CornerPosition)(0),           // 1: dampfront.v1.CornerPosition
+	(*Solution)(nil),              // 2: dampfront.v1.Solution
+	(*CaseMetrics)(nil),           // 3: dampfront.v1.CaseMetrics
+	(*AeroMetrics)(nil),           // 4: dampfront.v1.AeroMetrics
+	(*ReferencePointMetrics)(nil), // 5: dampfront.v1.ReferencePointMetrics
+	(*OperatingPoint)(nil),        // 6: dampfront.v1.OperatingPoint
+	(*CornerMetrics)(nil),         // 7: dampfront.v1.CornerMetrics
+	(*AxleMetrics)(nil),           // 8: dampfront.v1.AxleMetrics
+	(*Mode)(nil),                  // 9: dampfront.v1.Mode
+	(*DamperCurve)(nil),           // 10: dampfront.v1.DamperCurve
+	(*Front)(nil),                 // 11: dampfront.v1.Front
+	(*Setup)(nil),                 // 12: dampfront.v1.Setup
+	(*ConstraintShortfall)(nil),   // 13: dampfront.v1.ConstraintShortfall
+	(*TransientMetrics)(nil),      // 14: dampfront.v1.TransientMetrics
+	(*Objective)(nil),             // 15: dampfront.v1.Objective
+	(*Constraint)(nil),            // 16: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
-	10, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
+	12, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
 	3,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
-	8,  // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
-	11, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
-	12, // 4: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
-	5,  // 5: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	6,  // 6: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	6,  // 7: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	7,  // 8: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	4,  // 9: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
-	1,  // 10: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 11: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	13, // 12: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	14, // 13: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 14: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	15, // [15:15] is the sub-list for method output_type
-	15, // [15:15] is the sub-list for method input_type
-	15, // [15:15] is the sub-list for extension type_name
-	15, // [15:15] is the sub-list for extension extendee
-	0,  // [0:15] is the sub-list for field type_name
+	10, // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
+	13, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
+	14, // 4: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
+	7,  // 5: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	8,  // 6: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	8,  // 7: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	9,  // 8: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	6,  // 9: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	4,  // 10: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
+	5,  // 11: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
+	1,  // 12: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 13: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
+	15, // 14: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	16, // 15: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	2,  // 16: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	17, // [17:17] is the sub-list for method output_type
+	17, // [17:17] is the sub-list for method input_type
+	17, // [17:17] is the sub-list for extension type_name
+	17, // [17:17] is the sub-list for extension extendee
+	0,  // [0:17] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }
@@ -1351,7 +1558,7 @@ func file_dampfront_v1_result_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_result_proto_rawDesc), len(file_dampfront_v1_result_proto_rawDesc)),
 			NumEnums:      2,
-			NumMessages:   8,
+			NumMessages:   10,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

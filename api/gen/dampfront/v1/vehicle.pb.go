@@ -73,6 +73,10 @@ type Vehicle struct {
 	// Rear ride height of the car at rest, as front_rest_ride_height_m.
 	// Plausible range when given (not 0): [0.005, 0.5] m.
 	RearRestRideHeightM float64 `protobuf:"fixed64,15,opt,name=rear_rest_ride_height_m,json=rearRestRideHeightM,proto3" json:"rear_rest_ride_height_m,omitempty"`
+	// Points of the underside (splitter, plank, diffuser lip) whose height
+	// and probability of touching the ground each road case reports; at
+	// most 8, each with its own name.
+	ReferencePoints []*ReferencePoint `protobuf:"bytes,16,rep,name=reference_points,json=referencePoints,proto3" json:"reference_points,omitempty"`
 	// Heights and link geometry for the manoeuvre cases (field numbers from
 	// 20 on).
 	LoadPaths     *LoadPaths `protobuf:"bytes,20,opt,name=load_paths,json=loadPaths,proto3" json:"load_paths,omitempty"`
@@ -215,11 +219,110 @@ func (x *Vehicle) GetRearRestRideHeightM() float64 {
 	return 0
 }
 
+func (x *Vehicle) GetReferencePoints() []*ReferencePoint {
+	if x != nil {
+		return x.ReferencePoints
+	}
+	return nil
+}
+
 func (x *Vehicle) GetLoadPaths() *LoadPaths {
 	if x != nil {
 		return x.LoadPaths
 	}
 	return nil
+}
+
+// ReferencePoint is a point of the body's underside. Its ground is the
+// surface through the four tyre contacts: interpolated linearly between
+// the front and rear axles' road (extrapolated ahead of the front axle and
+// behind the rear) and between each axle's left and right tyre.
+type ReferencePoint struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Name of the point in reports, e.g. "splitter"; unique in the vehicle.
+	Name string `protobuf:"bytes,1,opt,name=name,proto3" json:"name,omitempty"`
+	// Distance behind the front axle, negative ahead of it. Give this or
+	// wheelbase_fraction; both 0 is the front axle.
+	// Plausible range: [-3, 8] m.
+	XFromFrontAxleM float64 `protobuf:"fixed64,2,opt,name=x_from_front_axle_m,json=xFromFrontAxleM,proto3" json:"x_from_front_axle_m,omitempty"`
+	// The same distance as a fraction of the wheelbase (0 front axle, 1
+	// rear axle).
+	// Plausible range: [-1, 2].
+	WheelbaseFraction float64 `protobuf:"fixed64,3,opt,name=wheelbase_fraction,json=wheelbaseFraction,proto3" json:"wheelbase_fraction,omitempty"`
+	// Distance left of the centre line, negative to the right; 0 on the
+	// centre line. At most half the narrower track.
+	// Plausible range: [-1.5, 1.5] m.
+	YM float64 `protobuf:"fixed64,4,opt,name=y_m,json=yM,proto3" json:"y_m,omitempty"`
+	// Height of the point above the ground with the car at rest.
+	// Plausible range: (0, 0.5] m.
+	RestHeightM   float64 `protobuf:"fixed64,5,opt,name=rest_height_m,json=restHeightM,proto3" json:"rest_height_m,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *ReferencePoint) Reset() {
+	*x = ReferencePoint{}
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *ReferencePoint) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*ReferencePoint) ProtoMessage() {}
+
+func (x *ReferencePoint) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use ReferencePoint.ProtoReflect.Descriptor instead.
+func (*ReferencePoint) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{1}
+}
+
+func (x *ReferencePoint) GetName() string {
+	if x != nil {
+		return x.Name
+	}
+	return ""
+}
+
+func (x *ReferencePoint) GetXFromFrontAxleM() float64 {
+	if x != nil {
+		return x.XFromFrontAxleM
+	}
+	return 0
+}
+
+func (x *ReferencePoint) GetWheelbaseFraction() float64 {
+	if x != nil {
+		return x.WheelbaseFraction
+	}
+	return 0
+}
+
+func (x *ReferencePoint) GetYM() float64 {
+	if x != nil {
+		return x.YM
+	}
+	return 0
+}
+
+func (x *ReferencePoint) GetRestHeightM() float64 {
+	if x != nil {
+		return x.RestHeightM
+	}
+	return 0
 }
 
 // Corner is one wheel station. Give either spring_rate_n_per_m with
@@ -264,7 +367,7 @@ type Corner struct {
 
 func (x *Corner) Reset() {
 	*x = Corner{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -276,7 +379,7 @@ func (x *Corner) String() string {
 func (*Corner) ProtoMessage() {}
 
 func (x *Corner) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -289,7 +392,7 @@ func (x *Corner) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Corner.ProtoReflect.Descriptor instead.
 func (*Corner) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{1}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{2}
 }
 
 func (x *Corner) GetSpringRateNPerM() float64 {
@@ -381,7 +484,7 @@ type AntiRollBar struct {
 
 func (x *AntiRollBar) Reset() {
 	*x = AntiRollBar{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -393,7 +496,7 @@ func (x *AntiRollBar) String() string {
 func (*AntiRollBar) ProtoMessage() {}
 
 func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -406,7 +509,7 @@ func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AntiRollBar.ProtoReflect.Descriptor instead.
 func (*AntiRollBar) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{2}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{3}
 }
 
 func (x *AntiRollBar) GetWheelRateNPerM() float64 {
@@ -464,7 +567,7 @@ type Aero struct {
 
 func (x *Aero) Reset() {
 	*x = Aero{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -476,7 +579,7 @@ func (x *Aero) String() string {
 func (*Aero) ProtoMessage() {}
 
 func (x *Aero) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -489,7 +592,7 @@ func (x *Aero) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Aero.ProtoReflect.Descriptor instead.
 func (*Aero) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *Aero) GetReferenceSpeedMPerS() float64 {
@@ -563,7 +666,7 @@ type AeroTable struct {
 
 func (x *AeroTable) Reset() {
 	*x = AeroTable{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -575,7 +678,7 @@ func (x *AeroTable) String() string {
 func (*AeroTable) ProtoMessage() {}
 
 func (x *AeroTable) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -588,7 +691,7 @@ func (x *AeroTable) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTable.ProtoReflect.Descriptor instead.
 func (*AeroTable) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *AeroTable) GetFrontRideHeightM() []float64 {
@@ -635,7 +738,7 @@ type AeroPolynomial struct {
 
 func (x *AeroPolynomial) Reset() {
 	*x = AeroPolynomial{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -647,7 +750,7 @@ func (x *AeroPolynomial) String() string {
 func (*AeroPolynomial) ProtoMessage() {}
 
 func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -660,7 +763,7 @@ func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroPolynomial.ProtoReflect.Descriptor instead.
 func (*AeroPolynomial) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *AeroPolynomial) GetFrontOriginM() float64 {
@@ -702,7 +805,7 @@ type AeroTerm struct {
 
 func (x *AeroTerm) Reset() {
 	*x = AeroTerm{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -714,7 +817,7 @@ func (x *AeroTerm) String() string {
 func (*AeroTerm) ProtoMessage() {}
 
 func (x *AeroTerm) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -727,7 +830,7 @@ func (x *AeroTerm) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTerm.ProtoReflect.Descriptor instead.
 func (*AeroTerm) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *AeroTerm) GetFrontPower() uint32 {
@@ -762,7 +865,7 @@ var File_dampfront_v1_vehicle_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\x1a\x1cdampfront/v1/transient.proto\"\xed\x05\n" +
+	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\x1a\x1cdampfront/v1/transient.proto\"\xb6\x06\n" +
 	"\aVehicle\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12$\n" +
 	"\x0esprung_mass_kg\x18\x02 \x01(\x01R\fsprungMassKg\x12-\n" +
@@ -781,9 +884,16 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\x12rear_anti_roll_bar\x18\f \x01(\v2\x19.dampfront.v1.AntiRollBarR\x0frearAntiRollBar\x12&\n" +
 	"\x04aero\x18\r \x01(\v2\x12.dampfront.v1.AeroR\x04aero\x126\n" +
 	"\x18front_rest_ride_height_m\x18\x0e \x01(\x01R\x14frontRestRideHeightM\x124\n" +
-	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\x126\n" +
+	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\x12G\n" +
+	"\x10reference_points\x18\x10 \x03(\v2\x1c.dampfront.v1.ReferencePointR\x0freferencePoints\x126\n" +
 	"\n" +
-	"load_paths\x18\x14 \x01(\v2\x17.dampfront.v1.LoadPathsR\tloadPaths\"\xc9\x03\n" +
+	"load_paths\x18\x14 \x01(\v2\x17.dampfront.v1.LoadPathsR\tloadPaths\"\xb6\x01\n" +
+	"\x0eReferencePoint\x12\x12\n" +
+	"\x04name\x18\x01 \x01(\tR\x04name\x12,\n" +
+	"\x13x_from_front_axle_m\x18\x02 \x01(\x01R\x0fxFromFrontAxleM\x12-\n" +
+	"\x12wheelbase_fraction\x18\x03 \x01(\x01R\x11wheelbaseFraction\x12\x0f\n" +
+	"\x03y_m\x18\x04 \x01(\x01R\x02yM\x12\"\n" +
+	"\rrest_height_m\x18\x05 \x01(\x01R\vrestHeightM\"\xc9\x03\n" +
 	"\x06Corner\x12,\n" +
 	"\x13spring_rate_n_per_m\x18\x01 \x01(\x01R\x0fspringRateNPerM\x12.\n" +
 	"\x13spring_motion_ratio\x18\x02 \x01(\x01R\x11springMotionRatio\x12*\n" +
@@ -839,31 +949,33 @@ func file_dampfront_v1_vehicle_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_vehicle_proto_rawDescData
 }
 
-var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 7)
+var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 8)
 var file_dampfront_v1_vehicle_proto_goTypes = []any{
 	(*Vehicle)(nil),        // 0: dampfront.v1.Vehicle
-	(*Corner)(nil),         // 1: dampfront.v1.Corner
-	(*AntiRollBar)(nil),    // 2: dampfront.v1.AntiRollBar
-	(*Aero)(nil),           // 3: dampfront.v1.Aero
-	(*AeroTable)(nil),      // 4: dampfront.v1.AeroTable
-	(*AeroPolynomial)(nil), // 5: dampfront.v1.AeroPolynomial
-	(*AeroTerm)(nil),       // 6: dampfront.v1.AeroTerm
-	(*LoadPaths)(nil),      // 7: dampfront.v1.LoadPaths
+	(*ReferencePoint)(nil), // 1: dampfront.v1.ReferencePoint
+	(*Corner)(nil),         // 2: dampfront.v1.Corner
+	(*AntiRollBar)(nil),    // 3: dampfront.v1.AntiRollBar
+	(*Aero)(nil),           // 4: dampfront.v1.Aero
+	(*AeroTable)(nil),      // 5: dampfront.v1.AeroTable
+	(*AeroPolynomial)(nil), // 6: dampfront.v1.AeroPolynomial
+	(*AeroTerm)(nil),       // 7: dampfront.v1.AeroTerm
+	(*LoadPaths)(nil),      // 8: dampfront.v1.LoadPaths
 }
 var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
-	1, // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
-	2, // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	2, // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	3, // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
-	7, // 4: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
-	4, // 5: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
-	5, // 6: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
-	6, // 7: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
-	8, // [8:8] is the sub-list for method output_type
-	8, // [8:8] is the sub-list for method input_type
-	8, // [8:8] is the sub-list for extension type_name
-	8, // [8:8] is the sub-list for extension extendee
-	0, // [0:8] is the sub-list for field type_name
+	2, // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
+	3, // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	3, // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	4, // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
+	1, // 4: dampfront.v1.Vehicle.reference_points:type_name -> dampfront.v1.ReferencePoint
+	8, // 5: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
+	5, // 6: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
+	6, // 7: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
+	7, // 8: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
+	9, // [9:9] is the sub-list for method output_type
+	9, // [9:9] is the sub-list for method input_type
+	9, // [9:9] is the sub-list for extension type_name
+	9, // [9:9] is the sub-list for extension extendee
+	0, // [0:9] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_vehicle_proto_init() }
@@ -878,7 +990,7 @@ func file_dampfront_v1_vehicle_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_vehicle_proto_rawDesc), len(file_dampfront_v1_vehicle_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   7,
+			NumMessages:   8,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

@@ -1,0 +1,124 @@
+package study
+
+import (
+	"context"
+	"strings"
+
+	"dampfront/optimizer"
+)
+
+// The check of a front in decision space, reported by every job: each
+// front point against its same-sum twin (bump = rebound on each axle,
+// with the axle's sum kept; only for a design that is not symmetric) and
+// against CheckNeighbours seeded neighbours that move every ratio gene by
+// ±CheckRadius (a random corner, clipped to the bounds). A point is
+// beaten when a candidate is feasible and lower in every objective by
+// more than CheckMargin of the front's extent in it. The figures are this
+// project's choice (common practice for a sensitivity check, no published
+// source).
+const (
+	CheckNeighbours = 4
+	CheckRadius     = 0.03  // in each damping ratio (-)
+	CheckMargin     = 0.001 // fraction of the front's extent per objective
+	// MaxPolishBudget bounds Search.PolishBudget (evaluations per point).
+	MaxPolishBudget = 1000
+)
+
+// FrontCheck is the check of a finished job's front in decision space,
+// with what the polish did.
+type FrontCheck struct {
+	Points            int     // feasible front points checked
+	Polished          int     // archive points the polish replaced by one that dominates them
+	PolishEvaluations int     // evaluations of the polish; 0 without one
+	Twins             int     // points whose same-sum twin differs from them
+	Neighbours        int     // random neighbours per point (CheckNeighbours)
+	Radius            float64 // half-width of the neighbours in each ratio (CheckRadius)
+	Margin            float64 // fraction of the front's extent (CheckMargin)
+	BeatenByTwin      int     // points their twin beats
+	BeatenByNeighbour int     // points a neighbour beats and their twin does not
+	Beaten            int     // BeatenByTwin + BeatenByNeighbour
+	Evaluations       int     // evaluations of the check
+	// Points beaten, with the genes that beat them, in front order (not
+	// stored; for tests and reports in-process).
+	BeatenPoints []BeatenPoint
+}
+
+// BeatenPoint is a front point the check found beaten.
+type BeatenPoint struct {
+	Index  int       // in the front
+	ByTwin bool      // beaten by its twin, else by a neighbour
+	By     []float64 // genes of the candidate that beats it
+}
+
+// twin writes into dst the same-sum twin of genes x: on each axle bump
+// and rebound ratios both become their mean, clipped to their bounds; it
+// reports false for a symmetric design, whose points are their own twins.
+func (pl *Plan) twin(x, dst []float64) bool {
+	d := pl.problem.Design()
+	if d.Symmetric {
+		return false
+	}
+	s := d.Decode(x)
+	for ax := range s.Axles {
+		a := &s.Axles[ax]
+		m := (a.BumpRatio + a.ReboundRatio) / 2
+		a.BumpRatio, a.ReboundRatio = m, m
+	}
+	y := d.Encode(s)
+	for i, g := range pl.problem.Genes() {
+		dst[i] = min(g.Max, max(g.Min, y[i]))
+	}
+	return true
+}
+
+// checkRadius is CheckRadius for every damping-ratio gene (its name ends
+// in "ratio") and 0 for the others (knees, high-speed factors).
+func (pl *Plan) checkRadius() []float64 {
+	genes := pl.problem.Genes()
+	r := make([]float64, len(genes))
+	for i, g := range genes {
+		if strings.HasSuffix(g.Name, "ratio") {
+			r[i] = CheckRadius
+		}
+	}
+	return r
+}
+
+// Polish returns the plan's polish settings (nil without one) with the
+// same-sum twin as the first poll point.
+func (pl *Plan) polish(workers int) *optimizer.Polish {
+	b := pl.spec.Search.PolishBudget
+	if b == 0 {
+		return nil
+	}
+	p := optimizer.DefaultPolish(pl.settings.Seed)
+	p.Budget, p.Twin, p.Workers = b, pl.twin, max(1, workers)
+	return &p
+}
+
+// CheckFront checks front (a finished search's) in decision space; see
+// FrontCheck. polished is what the polish did, nil without one. The
+// result depends on the plan, the front and the seed only.
+func (pl *Plan) CheckFront(ctx context.Context, front []optimizer.Solution, polished *optimizer.PolishReport, workers int) (*FrontCheck, error) {
+	rep, err := optimizer.CheckFront(ctx, pl.SearchProblem(), front, optimizer.FrontCheck{
+		Twin: pl.twin, Radius: pl.checkRadius(), Perturbations: CheckNeighbours,
+		Margin: CheckMargin, Seed: pl.settings.Seed, Workers: max(1, workers),
+	})
+	if err != nil {
+		return nil, err
+	}
+	fc := &FrontCheck{
+		Points: rep.Points, Twins: rep.Twins, Neighbours: CheckNeighbours, Radius: CheckRadius, Margin: CheckMargin,
+		BeatenByTwin: rep.BeatenByTwin, BeatenByNeighbour: rep.BeatenByNeighbour, Beaten: rep.Beaten,
+		Evaluations: rep.Evaluations,
+	}
+	if polished != nil {
+		fc.Polished, fc.PolishEvaluations = polished.Improved, polished.Evaluations
+	}
+	for i, pc := range rep.Checks {
+		if pc.Beaten {
+			fc.BeatenPoints = append(fc.BeatenPoints, BeatenPoint{Index: i, ByTwin: pc.ByTwin, By: pc.By.Genes})
+		}
+	}
+	return fc, nil
+}
