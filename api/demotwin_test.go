@@ -9,15 +9,10 @@ import (
 	"dampfront/optimizer"
 )
 
-// demoTwinCheck runs the seeded demo job (testdata/demo-job.yaml) as the
-// worker does, then checks every feasible point of its front against its
-// bump = rebound twin (each axle's two ratios replaced by their mean: the
-// same sum, so every RMS metric of the road cases is the same under
-// statistical linearisation) and a few ±0.03 neighbours, with a margin of
-// 0.1 % of the front's extent in every objective.
-func demoTwinCheck(t testing.TB, margins []float64, edit func(*pb.JobSpec)) []optimizer.FrontReport {
+// readDemoJob reads a job spec of testdata/ ("demo-job.yaml").
+func readDemoJob(t testing.TB, name string) *pb.JobSpec {
 	t.Helper()
-	b, err := os.ReadFile("../testdata/demo-job.yaml")
+	b, err := os.ReadFile("../testdata/" + name)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -25,6 +20,19 @@ func demoTwinCheck(t testing.TB, margins []float64, edit func(*pb.JobSpec)) []op
 	if err := DecodeText(b, spec); err != nil {
 		t.Fatal(err)
 	}
+	return spec
+}
+
+// demoTwinCheck runs the seeded demo job with manoeuvres and a kerb
+// (testdata/demo-manoeuvre-job.yaml) as the
+// worker does, then checks every feasible point of its front against its
+// bump = rebound twin (each axle's two ratios replaced by their mean: the
+// same sum, so every RMS metric of the road cases is the same under
+// statistical linearisation) and a few ±0.03 neighbours, with a margin of
+// 0.1 % of the front's extent in every objective.
+func demoTwinCheck(t testing.TB, margins []float64, edit func(*pb.JobSpec)) []optimizer.FrontReport {
+	t.Helper()
+	spec := readDemoJob(t, "demo-manoeuvre-job.yaml")
 	if edit != nil {
 		edit(spec)
 	}

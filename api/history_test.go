@@ -2,7 +2,6 @@ package api
 
 import (
 	"math"
-	"os"
 	"strings"
 	"testing"
 
@@ -16,14 +15,7 @@ import (
 // < 1e-4 of the change); an unknown case is refused naming the field.
 func TestGetTransientHistory(t *testing.T) {
 	t.Parallel()
-	b, err := os.ReadFile("../testdata/demo-job.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	spec := &pb.JobSpec{}
-	if err := DecodeText(b, spec); err != nil {
-		t.Fatal(err)
-	}
+	spec := readDemoJob(t, "demo-manoeuvre-job.yaml")
 	tb := setup2(t)
 	name := spec.GetManoeuvres()[0].GetName()
 	resp, err := tb.client.GetTransientHistory(testContext(t), &pb.GetTransientHistoryRequest{

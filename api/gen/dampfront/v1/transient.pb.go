@@ -362,7 +362,7 @@ type Manoeuvre struct {
 	// How long it takes to change; 0 is a step.
 	// Plausible range: [0, 60] s.
 	RampS float64 `protobuf:"fixed64,7,opt,name=ramp_s,json=rampS,proto3" json:"ramp_s,omitempty"`
-	// Simulated time; 0 means start + ramp + 2 s (a table: its last time).
+	// Simulated time; 0 means start + ramp + 1.2 s (a table: its last time).
 	// Plausible range: [0, 60] s.
 	DurationS float64 `protobuf:"fixed64,8,opt,name=duration_s,json=durationS,proto3" json:"duration_s,omitempty"`
 	// The logged history of MANOEUVRE_SHAPE_TABLE: times strictly
@@ -573,7 +573,7 @@ type Kerb struct {
 	// When the front tyres meet the kerb; 0 means 0.1 s.
 	// Plausible range: [0, 60] s.
 	StartS float64 `protobuf:"fixed64,8,opt,name=start_s,json=startS,proto3" json:"start_s,omitempty"`
-	// Simulated time; 0 means until 1.5 s after the rear leaves the kerb.
+	// Simulated time; 0 means until 1 s after the rear leaves the kerb.
 	// Plausible range: [0, 60] s.
 	DurationS float64 `protobuf:"fixed64,9,opt,name=duration_s,json=durationS,proto3" json:"duration_s,omitempty"`
 	// Optional road whose random profile lies under the kerb (its speed is
