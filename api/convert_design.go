@@ -20,45 +20,72 @@ func setupFromProto(s *pb.Setup, path string, p *problems) model.Setup {
 			p.add(joinPath(path+".", model.AxleNames[ax]), "is required")
 			continue
 		}
-		out.Axles[ax] = axleFromProto(a)
+		out.Axles[ax] = axleFromProto(a, joinPath(path+".", model.AxleNames[ax]), p)
+	}
+	for ax, a := range [2]*pb.AxleDamping{s.GetFrontHeave(), s.GetRearHeave()} {
+		if a != nil {
+			out.Heave[ax] = axleFromProto(a, joinPath(path+".", model.AxleNames[ax]+"_heave"), p)
+		}
 	}
 	return out
 }
 
-func axleFromProto(a *pb.AxleDamping) model.AxleDamping {
-	return model.AxleDamping{
+// axleFromProto converts one axle's setting; a shape problem (too many
+// stages) is recorded under path.
+func axleFromProto(a *pb.AxleDamping, path string, p *problems) model.AxleDamping {
+	out := model.AxleDamping{
 		BumpRatio: a.GetBumpRatio(), ReboundRatio: a.GetReboundRatio(),
 		KneeBump: a.GetKneeBumpMPerS(), KneeRebound: a.GetKneeReboundMPerS(),
 		HighSpeedBump: a.GetHighSpeedBumpFactor(), HighSpeedRebound: a.GetHighSpeedReboundFactor(),
 	}
+	hardwareFromProto(a, &out, path, p)
+	return out
 }
 
 func axleToProto(a model.AxleDamping) *pb.AxleDamping {
-	return &pb.AxleDamping{
+	out := &pb.AxleDamping{
 		BumpRatio: a.BumpRatio, ReboundRatio: a.ReboundRatio,
 		KneeBumpMPerS: a.KneeBump, KneeReboundMPerS: a.KneeRebound,
 		HighSpeedBumpFactor: a.HighSpeedBump, HighSpeedReboundFactor: a.HighSpeedRebound,
 	}
+	hardwareToProto(&a, out)
+	return out
 }
 
 func setupToProto(s model.Setup) *pb.Setup {
-	return &pb.Setup{Front: axleToProto(s.Axles[model.Front]), Rear: axleToProto(s.Axles[model.Rear])}
+	out := &pb.Setup{Front: axleToProto(s.Axles[model.Front]), Rear: axleToProto(s.Axles[model.Rear])}
+	if s.Heave[model.Front] != (model.AxleDamping{}) {
+		out.FrontHeave = axleToProto(s.Heave[model.Front])
+	}
+	if s.Heave[model.Rear] != (model.AxleDamping{}) {
+		out.RearHeave = axleToProto(s.Heave[model.Rear])
+	}
+	return out
 }
 
 // designFromProto converts a design space; a nil range or base axle
-// stays nil, for the study's defaults.
-func designFromProto(d *pb.DesignSpace) study.Design {
+// stays nil, for the study's defaults. Shape problems are recorded under
+// path ("spec.design_space").
+func designFromProto(d *pb.DesignSpace, path string, p *problems) study.Design {
 	r := d.GetRatios()
 	out := study.Design{
-		Ratios:    [4]*model.Range{rangeOrNil(r.GetFrontBump()), rangeOrNil(r.GetFrontRebound()), rangeOrNil(r.GetRearBump()), rangeOrNil(r.GetRearRebound())},
-		Symmetric: d.GetSymmetric(),
-		Knee:      [2]*model.Range{rangeOrNil(d.GetFrontKneeMPerS()), rangeOrNil(d.GetRearKneeMPerS())},
-		HighSpeed: [2]*model.Range{rangeOrNil(d.GetFrontHighSpeedFactor()), rangeOrNil(d.GetRearHighSpeedFactor())},
+		Ratios:       [4]*model.Range{rangeOrNil(r.GetFrontBump()), rangeOrNil(r.GetFrontRebound()), rangeOrNil(r.GetRearBump()), rangeOrNil(r.GetRearRebound())},
+		Symmetric:    d.GetSymmetric(),
+		Knee:         [2]*model.Range{rangeOrNil(d.GetFrontKneeMPerS()), rangeOrNil(d.GetRearKneeMPerS())},
+		HighSpeed:    [2]*model.Range{rangeOrNil(d.GetFrontHighSpeedFactor()), rangeOrNil(d.GetRearHighSpeedFactor())},
+		SnapToClicks: d.GetSnapToClicks(),
+		HeaveRatio:   [2]*model.Range{rangeOrNil(d.GetFrontHeaveRatio()), rangeOrNil(d.GetRearHeaveRatio())},
 	}
 	for ax, a := range [2]*pb.AxleDamping{d.GetBase().GetFront(), d.GetBase().GetRear()} {
 		if a != nil {
-			b := axleFromProto(a)
+			b := axleFromProto(a, joinPath(path+".", "base."+model.AxleNames[ax]), p)
 			out.Base[ax] = &b
+		}
+	}
+	for ax, a := range [2]*pb.AxleDamping{d.GetBase().GetFrontHeave(), d.GetBase().GetRearHeave()} {
+		if a != nil {
+			b := axleFromProto(a, joinPath(path+".", "base."+model.AxleNames[ax]+"_heave"), p)
+			out.HeaveBase[ax] = &b
 		}
 	}
 	return out

@@ -24,6 +24,11 @@ var pathRules = []struct {
 	{regexp.MustCompile(`(^|\.)stiffness_n_per_m\[1\]`), "${1}rear_stiffness_n_per_m"},
 	{regexp.MustCompile(`(^|\.)rest_ride_height_m\[0\]`), "${1}front_rest_ride_height_m"},
 	{regexp.MustCompile(`(^|\.)rest_ride_height_m\[1\]`), "${1}rear_rest_ride_height_m"},
+	// Vehicle and setup: per-axle heave elements and heave dampers.
+	{regexp.MustCompile(`(^|\.)heave\[0\]`), "${1}front_heave"},
+	{regexp.MustCompile(`(^|\.)heave\[1\]`), "${1}rear_heave"},
+	{regexp.MustCompile(`(^|\.)heave_ratio\[0\]`), "${1}front_heave_ratio"},
+	{regexp.MustCompile(`(^|\.)heave_ratio\[1\]`), "${1}rear_heave_ratio"},
 	// Load paths: per-axle pairs.
 	{regexp.MustCompile(`(^|\.)(roll_centre_height_m|anti_brake|anti_drive|unsprung_cg_height_m)\[0\]`), "${1}front_${2}"},
 	{regexp.MustCompile(`(^|\.)(roll_centre_height_m|anti_brake|anti_drive|unsprung_cg_height_m)\[1\]`), "${1}rear_${2}"},

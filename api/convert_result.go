@@ -52,8 +52,8 @@ func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
 	m := &c.Metrics
 	out := &pb.CaseMetrics{
 		RoadCase:           m.Case,
-		Front:              &pb.AxleMetrics{RideHeightSdM: m.RideHeightSD[model.Front], RideHeightShiftM: m.RideHeightShift[model.Front]},
-		Rear:               &pb.AxleMetrics{RideHeightSdM: m.RideHeightSD[model.Rear], RideHeightShiftM: m.RideHeightShift[model.Rear]},
+		Front:              axleMetricsToProto(m, model.Front),
+		Rear:               axleMetricsToProto(m, model.Rear),
 		PitchSdRad:         m.PitchSD,
 		RollSdRad:          m.RollSD,
 		HeaveAccelSdMPerS2: m.HeaveAccelSD,
@@ -86,6 +86,15 @@ func caseMetricsToProto(c *study.CaseDetail) *pb.CaseMetrics {
 		})
 	}
 	return out
+}
+
+// axleMetricsToProto converts one axle's metrics, its heave element's
+// included.
+func axleMetricsToProto(m *model.CaseMetrics, ax int) *pb.AxleMetrics {
+	return &pb.AxleMetrics{RideHeightSdM: m.RideHeightSD[ax], RideHeightShiftM: m.RideHeightShift[ax],
+		HeaveTravelSdM: m.HeaveTravelSD[ax], HeaveVelocitySdMPerS: m.HeaveVelocitySD[ax],
+		PackerProbability: m.PackerProbability[ax], HeaveEquivalentDampingNSPerM: m.HeaveEquivalentDamping[ax],
+		PackerGapAtSpeedM: m.AtSpeed.PackerGap[ax]}
 }
 
 // aeroMetricsToProto converts the downforce and balance figures; nil
@@ -152,6 +161,12 @@ func damperCurvesToProto(curves []model.DamperCurve) []*pb.DamperCurve {
 			KneeReboundMPerS:       c.KneeRebound,
 			HighSpeedBumpFactor:    c.HighSpeedBump,
 			HighSpeedReboundFactor: c.HighSpeedRebound,
+			StagesBump:             stagesToProto(c.StagesBump),
+			StagesRebound:          stagesToProto(c.StagesRebound),
+			BlowOffBumpN:           c.BlowOffBump,
+			BlowOffReboundN:        c.BlowOffRebound,
+			FrictionN:              c.Friction,
+			GasForceN:              c.GasForce,
 		}
 	}
 	return out

@@ -23,10 +23,11 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 		Kerbs:        kerbsFromProto(s.GetKerbs(), at("kerbs"), p),
 		LoadFraction: s.GetLoadFraction(),
 		Grid:         gridFromProto(s.GetGrid()),
-		Design:       designFromProto(s.GetDesignSpace()),
+		Design:       designFromProto(s.GetDesignSpace(), at("design_space"), p),
 		Objectives:   objectivesFromProto(s.GetObjectives(), at("objectives"), p),
 		Constraints:  constraintsFromProto(s.GetConstraints(), at("constraints"), p),
 		Adjustment:   adjustmentFromProto(s.GetAdjustment()),
+		Adjusters:    adjustersFromProto(s.GetAdjusters()),
 		Curves:       study.Curves{MaxVelocity: s.GetCurves().GetMaxVelocityMPerS(), Points: int(s.GetCurves().GetPoints())},
 	}
 	if ref := s.GetReferenceSetup(); ref != nil {

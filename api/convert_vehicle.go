@@ -27,6 +27,7 @@ func vehicleFromProto(v *pb.Vehicle, path string, p *problems) model.Vehicle {
 		TrackRear:      v.GetTrackRearM(),
 		AntiRoll:       [2]model.AntiRollBar{antiRollFromProto(v.GetFrontAntiRollBar()), antiRollFromProto(v.GetRearAntiRollBar())},
 		RestRideHeight: [2]float64{v.GetFrontRestRideHeightM(), v.GetRearRestRideHeightM()},
+		Heave:          [2]model.HeaveElement{heaveFromProto(v.GetFrontHeave()), heaveFromProto(v.GetRearHeave())},
 		LoadPaths:      loadPathsFromProto(v.GetLoadPaths()),
 	}
 	if n := len(v.GetCorners()); n != 4 {
@@ -77,6 +78,11 @@ func vehicleFromProto(v *pb.Vehicle, path string, p *problems) model.Vehicle {
 		}
 	}
 	return out
+}
+
+func heaveFromProto(h *pb.HeaveElement) model.HeaveElement {
+	return model.HeaveElement{MotionRatio: h.GetMotionRatio(), SpringRate: h.GetSpringRateNPerM(),
+		PackerGap: h.GetPackerGapM(), PackerRate: h.GetPackerRateNPerM()}
 }
 
 func antiRollFromProto(b *pb.AntiRollBar) model.AntiRollBar {

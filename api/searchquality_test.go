@@ -5,17 +5,16 @@ import (
 	"math"
 	"os"
 	"runtime"
-	"sync"
 	"testing"
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/optimizer"
 )
 
-// demoPlan compiles testdata/demo-job.yaml, keeping its first nCases
-// road cases and dropping its constraints (a dense grid sweep, the
-// engineer's alternative, knows no constraint handling either).
-func demoPlan(tb testing.TB, nCases int) *compiledSpec {
+// demoSpec is testdata/demo-job.yaml without its constraints (a dense
+// grid sweep, the engineer's alternative, knows no constraint handling
+// either).
+func demoSpec(tb testing.TB) *pb.JobSpec {
 	tb.Helper()
 	b, err := os.ReadFile("../testdata/demo-job.yaml")
 	if err != nil {
@@ -25,8 +24,15 @@ func demoPlan(tb testing.TB, nCases int) *compiledSpec {
 	if err := DecodeText(b, spec); err != nil {
 		tb.Fatal(err)
 	}
-	spec.RoadCases = spec.RoadCases[:nCases]
 	spec.Constraints = nil
+	return spec
+}
+
+// demoPlan compiles demoSpec, keeping its first nCases road cases.
+func demoPlan(tb testing.TB, nCases int) *compiledSpec {
+	tb.Helper()
+	spec := demoSpec(tb)
+	spec.RoadCases = spec.RoadCases[:nCases]
 	pl, err := compileSpec(spec)
 	if err != nil {
 		tb.Fatal(err)
@@ -45,55 +51,11 @@ func demoPlan(tb testing.TB, nCases int) *compiledSpec {
 func BenchmarkSearchVsGrid(b *testing.B) {
 	pl := demoPlan(b, 2)
 	prob := pl.SearchProblem()
-	bounds := prob.Bounds()
 	const levels = 14 // 14⁴ = 38416 evaluations
-	var mu sync.Mutex
-	var gridPts [][]float64
-	total := 1
-	for range bounds {
-		total *= levels
-	}
+	front, total := gridFront(prob, levels)
+	ref := gridReference(front)
 	workers := runtime.GOMAXPROCS(0)
-	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func(w int) {
-			defer wg.Done()
-			x := make([]float64, len(bounds))
-			obj := make([]float64, prob.NumObjectives())
-			var local [][]float64
-			for k := w; k < total; k += workers {
-				r := k
-				for g := range x {
-					i := r % levels
-					r /= levels
-					x[g] = bounds[g].Lo + (bounds[g].Hi-bounds[g].Lo)*float64(i)/float64(levels-1)
-				}
-				if err := prob.Evaluate(x, obj, nil); err != nil {
-					continue
-				}
-				local = append(local, append([]float64(nil), obj...))
-			}
-			mu.Lock()
-			gridPts = append(gridPts, local...)
-			mu.Unlock()
-		}(w)
-	}
-	wg.Wait()
-	fronts := optimizer.NonDominatedSort(gridPts, make([]float64, len(gridPts)))
-	var gridFront [][]float64
-	for _, i := range fronts[0] {
-		gridFront = append(gridFront, gridPts[i])
-	}
-	ref := make([]float64, prob.NumObjectives())
-	for j := range ref {
-		lo, hi := math.Inf(1), math.Inf(-1)
-		for _, p := range gridFront {
-			lo, hi = math.Min(lo, p[j]), math.Max(hi, p[j])
-		}
-		ref[j] = hi + 0.1*(hi-lo)
-	}
-	hvGrid := optimizer.Hypervolume(gridFront, ref)
+	hvGrid := optimizer.Hypervolume(front, ref)
 	b.ReportMetric(float64(total), "grid-evals")
 	b.ResetTimer()
 	for n := 0; n < b.N; n++ {
@@ -110,11 +72,7 @@ func BenchmarkSearchVsGrid(b *testing.B) {
 			if err := st.Run(context.Background()); err != nil {
 				b.Fatal(err)
 			}
-			var pts [][]float64
-			for _, sol := range st.Front() {
-				pts = append(pts, sol.Objectives)
-			}
-			worst = math.Min(worst, optimizer.Hypervolume(pts, ref)/hvGrid)
+			worst = math.Min(worst, hvOf(st.Front(), ref)/hvGrid)
 			evals = st.Evaluations()
 		}
 		b.ReportMetric(worst, "hv-fraction-worst-of-5-seeds")

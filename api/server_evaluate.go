@@ -41,6 +41,7 @@ func (s *Server) EvaluateSetups(ctx context.Context, req *pb.EvaluateSetupsReque
 			return nil, toStatus(err, nil)
 		}
 		sol := solutionToProto(pl.Evaluate(su))
+		addAdjusting(sol, pl.Spec())
 		sol.Index = int32(i)
 		if basic {
 			sol.CaseMetrics, sol.DamperCurves = nil, nil

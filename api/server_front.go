@@ -54,6 +54,7 @@ func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.Get
 	budget := min(frontPageBytes, s.opt.MaxMessageBytes/2)
 	basic := req.GetView() == pb.SolutionView_SOLUTION_VIEW_BASIC
 	var front *pb.Front
+	var st *study.Spec // the stored spec, for the adjusters
 	token, size := req.GetPageToken(), 0
 	for {
 		page, err := s.engine.Front(ctx, &jobs.FrontGetParams{JobID: id, PageSize: min(want-len(front.GetSolutions()), frontChunk), PageToken: token})
@@ -66,6 +67,8 @@ func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.Get
 				return nil, toStatus(err, nil)
 			}
 			front = frontHeader(id, spec, page.Total, page.Partial)
+			var p problems // a stored spec has none
+			st = specFromProto(spec, "", &p)
 		}
 		token = page.NextPageToken
 		for _, js := range page.Solutions {
@@ -73,6 +76,7 @@ func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.Get
 			if err != nil {
 				return nil, toStatus(err, nil)
 			}
+			addAdjusting(sol, st)
 			if basic {
 				sol.CaseMetrics, sol.DamperCurves = nil, nil
 			}
@@ -93,7 +97,8 @@ func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.Get
 // frontHeader is a Front without solutions: the job, gene names,
 // objectives and constraints of a stored spec.
 func frontHeader(id string, spec *pb.JobSpec, total int, partial bool) *pb.Front {
-	design := designFromProto(spec.GetDesignSpace())
+	var p problems // a stored spec has none
+	design := designFromProto(spec.GetDesignSpace(), "", &p)
 	names := design.GeneNames()
 	return &pb.Front{
 		Job: jobName(id), GeneNames: names, Objectives: spec.GetObjectives(), Constraints: spec.GetConstraints(),

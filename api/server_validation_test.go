@@ -85,6 +85,9 @@ var badSpecs = []struct {
 	{"migrants over twice the population", func(s *pb.JobSpec) {
 		s.Search.Islands, s.Search.MigrationEvery, s.Search.Migrants = 2, 5, 100
 	}, []string{"spec.search.migrants"}},
+	{"polish budget and stagnation out of range", func(s *pb.JobSpec) {
+		s.Search.PolishBudget, s.Search.StagnationWindow, s.Search.StagnationTolerance = -1, -1, 1.5
+	}, []string{"spec.search.polish_budget", "spec.search.stagnation_tolerance", "spec.search.stagnation_window"}},
 	{"adjustment crossed", func(s *pb.JobSpec) { s.Adjustment.BumpStiffestRatio = 0.1 },
 		[]string{"spec.adjustment.bump_stiffest_ratio"}},
 	{"two curve points", func(s *pb.JobSpec) { s.Curves.Points = 2 },

@@ -112,8 +112,8 @@ func (a *Adjusters) Given() bool {
 }
 
 // Validate checks every adjuster and names each bad field: clicks in
-// [2, MaxClicks] (or 0), stiffest and softest in the plausible range of a
-// damping ratio (low speed) or high-speed factor, stiffest >= softest;
+// [2, MaxClicks] (or 0), stiffest and softest in the plausible range of an
+// adjustment band's ratio (low speed) or a high-speed factor, stiffest >= softest;
 // a dyno table only on a low-speed adjuster, instead of stiffest and
 // softest, with one full row per click (no gaps), velocities > 0 and
 // increasing, forces finite and >= 0, rising with velocity and not
@@ -148,7 +148,7 @@ func (j *Adjuster) check(p *problems, f string, low bool) {
 		j.Dyno.check(p, f+"dyno.", j.Clicks)
 		return
 	}
-	name := "AxleDamping.ratio"
+	name := "Adjustment.ratio" // as the adjustment band's ratios
 	if !low {
 		name = "AxleDamping.high_speed"
 	}

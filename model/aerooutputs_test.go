@@ -83,12 +83,19 @@ func checkPlatformLyapunov(t *testing.T, v *Vehicle, m *CaseMetrics, cw [4]float
 			t.Errorf("downforce variance: model %.10g, Lyapunov %.10g N², rel. error %.2g", m.DownforceSD*m.DownforceSD, vd, e)
 		}
 	}
+	worst := math.Abs(m.RideHeightCovariance-cov) / math.Sqrt(vf*vr)
 	for i, p := range m.ReferencePoints() {
 		want := all[base+2+i]
-		if e := relErr(p.SD*p.SD, want); e > tol {
+		e := relErr(p.SD*p.SD, want)
+		if e > tol {
 			t.Errorf("%s variance: model %.10g, Lyapunov %.10g m², rel. error %.2g", p.Name, p.SD*p.SD, want, e)
 		}
+		worst = math.Max(worst, e)
 	}
+	if vd := all[base+1]; vd > 0 {
+		worst = math.Max(worst, relErr(m.DownforceSD*m.DownforceSD, vd))
+	}
+	t.Logf("platform: worst relative error %.2g (covariance, downforce, %d points)", worst, m.NumPoints)
 }
 
 // TestGaussianTail checks the tail P(X > h) = Φ(-h/σ) of the contact

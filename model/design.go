@@ -32,6 +32,11 @@ type DesignSpace struct {
 	// HighSpeed, per axle, searches one high-speed factor for both
 	// directions (-); nil keeps Base's.
 	HighSpeed [2]*Range
+	// HeaveRatio, per axle, searches the heave damper's ratio of the
+	// axle's heave critical damping, bump = rebound (-); nil keeps
+	// Base.Heave's (none when Base has none). Only an axle with a heave
+	// element may have one (ValidateFor).
+	HeaveRatio [2]*Range
 	// Base gives every value that is not a gene.
 	Base Setup
 	// Snap, when not nil, puts every decoded setup on the clicks of its
@@ -70,7 +75,24 @@ func (d *DesignSpace) Validate() error {
 		if h := d.HighSpeed[ax]; h != nil {
 			p.bounds(fmt.Sprintf("high_speed[%d]", ax), *h, "AxleDamping.high_speed")
 		}
+		if h := d.HeaveRatio[ax]; h != nil {
+			p.bounds(fmt.Sprintf("heave_ratio[%d]", ax), *h, "AxleDamping.ratio")
+		}
 	}
+	return p.err()
+}
+
+// ValidateFor reports genes and base settings the car cannot take: a
+// heave damper gene or a base heave damper on an axle without a heave
+// element, named as Validate names its fields.
+func (d *DesignSpace) ValidateFor(v *Vehicle) error {
+	var p problems
+	for ax := 0; ax < 2; ax++ {
+		if d.HeaveRatio[ax] != nil && !v.Heave[ax].has() {
+			p.add(fmt.Sprintf("heave_ratio[%d]", ax), "searches a heave damper on the %s axle, but the vehicle has no heave element there (vehicle.heave[%d].motion_ratio)", AxleNames[ax], ax)
+		}
+	}
+	p.merge("base.", v.CheckSetup(&d.Base))
 	return p.err()
 }
 
@@ -104,6 +126,11 @@ func (d *DesignSpace) Genes() []Gene {
 			g = append(g, Gene{AxleNames[ax] + "_high_speed", h.Min, h.Max})
 		}
 	}
+	for ax := 0; ax < 2; ax++ {
+		if h := d.HeaveRatio[ax]; h != nil {
+			g = append(g, Gene{AxleNames[ax] + "_heave_ratio", h.Min, h.Max})
+		}
+	}
 	return g
 }
 
@@ -130,6 +157,12 @@ func (d *DesignSpace) Decode(x []float64) Setup {
 			i++
 		}
 	}
+	for ax := 0; ax < 2; ax++ {
+		if d.HeaveRatio[ax] != nil {
+			s.Heave[ax].BumpRatio, s.Heave[ax].ReboundRatio = x[i], x[i]
+			i++
+		}
+	}
 	if d.Snap != nil {
 		s = d.Snap.Adjusters.Snap(d.Snap.Vehicle, s)
 	}
@@ -150,6 +183,11 @@ func (d *DesignSpace) Encode(s Setup) []float64 {
 		}
 		if d.HighSpeed[ax] != nil {
 			x = append(x, s.Axles[ax].HighSpeedBump)
+		}
+	}
+	for ax := 0; ax < 2; ax++ {
+		if d.HeaveRatio[ax] != nil {
+			x = append(x, s.Heave[ax].BumpRatio)
 		}
 	}
 	return x

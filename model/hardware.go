@@ -56,8 +56,8 @@ type Stage struct {
 	// Velocity is the knee velocity at the damper (m/s), above the first
 	// knee and the previous stage; 0 ends the list.
 	Velocity float64
-	// Slope is the slope above the knee over the low-speed slope (-).
-	Slope float64
+	// Factor is the slope above the knee over the low-speed slope (-).
+	Factor float64
 }
 
 // stages is a direction's further knees referred to the wheel.
@@ -111,7 +111,7 @@ func wheelStages(st *[MaxStages]Stage, v1, mr float64) stages {
 			break
 		}
 		if v := s.Velocity / mr; v > v1 {
-			out.v[out.n], out.r[out.n] = v, s.Slope
+			out.v[out.n], out.r[out.n] = v, s.Factor
 			out.n++
 		}
 	}
@@ -230,7 +230,7 @@ func (p *problems) stages(prefix, dir string, st *[MaxStages]Stage, knee float64
 	prev := knee
 	ended := false
 	for j, s := range st {
-		if s.Velocity == 0 && s.Slope == 0 {
+		if s.Velocity == 0 && s.Factor == 0 {
 			ended = true
 			continue
 		}
@@ -246,8 +246,8 @@ func (p *problems) stages(prefix, dir string, st *[MaxStages]Stage, knee float64
 		} else if s.Velocity <= prev {
 			p.add(field(".velocity_m_per_s"), "knees out of order: must be > %s m/s (the knee before), got %s", num(prev), num(s.Velocity))
 		}
-		if !highSpeedLimit.Contains(s.Slope) {
-			p.add(field(".slope"), "must be in %s, got %s", highSpeedLimit, num(s.Slope))
+		if !highSpeedLimit.Contains(s.Factor) {
+			p.add(field(".factor"), "must be in %s, got %s", highSpeedLimit, num(s.Factor))
 		}
 		if kneeLimit.Contains(s.Velocity) {
 			prev = s.Velocity

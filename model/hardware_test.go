@@ -208,8 +208,8 @@ func TestCubicDamperClosedForm(t *testing.T) {
 			a.HighSpeedBump *= c1 / c0
 			a.HighSpeedRebound *= c1 / c0
 		} else {
-			a.StagesBump[j-1].Slope *= c1 / c0
-			a.StagesRebound[j-1].Slope *= c1 / c0
+			a.StagesBump[j-1].Factor *= c1 / c0
+			a.StagesRebound[j-1].Factor *= c1 / c0
 		}
 	}
 	if err := (&Setup{Axles: [2]AxleDamping{withRatios(a), withRatios(a)}}).Validate(); err != nil {
@@ -252,7 +252,7 @@ func TestBadHardwareIsRefusedNamingTheField(t *testing.T) {
 		{"stage without a first knee", AxleDamping{StagesBump: [MaxStages]Stage{{0.1, 0.3}}},
 			"front.stages_bump[0]", "first knee"},
 		{"negative stage slope", AxleDamping{KneeBump: 0.05, StagesBump: [MaxStages]Stage{{0.1, -0.3}}},
-			"front.stages_bump[0].slope", "must be in"},
+			"front.stages_bump[0].factor", "must be in"},
 		{"negative blow-off force", AxleDamping{BlowOffBump: -300}, "front.blow_off_bump_n", "must be in"},
 		{"negative friction", AxleDamping{Friction: -20}, "front.friction_n", "must be in"},
 		{"negative gas force", AxleDamping{GasForce: -150}, "front.gas_force_n", "must be in"},

@@ -3,6 +3,7 @@ package model
 import (
 	"errors"
 	"math"
+	"math/rand/v2"
 	"reflect"
 	"strings"
 	"testing"
@@ -363,5 +364,49 @@ func TestHeaveValidationNamesFields(t *testing.T) {
 	s.Heave[Rear] = AxleDamping{BumpRatio: 9, ReboundRatio: 0.4}
 	if got := fieldsOf(t, s.Validate()); !reflect.DeepEqual(got, []string{"heave[1].bump_ratio"}) {
 		t.Errorf("bad heave ratio: fields %v", got)
+	}
+}
+
+// TestHeavePackerInTheTimeDomain: with the packer's rate 0 (contact
+// counted only) the car is linear, and the fraction of the time the
+// element spends beyond the packer gap must match the frequency domain's
+// Gaussian tail within 3 statistical errors (the binomial error over the
+// record's effective number of independent samples, Bendat & Piersol, as
+// Verify gives it for the bump-stop fraction). With a packer rate the
+// packer is a stop on the same road (same seed): the element's time beyond
+// the gap falls (a stop only pushes back beyond the gap) and stays above 0.
+func TestHeavePackerInTheTimeDomain(t *testing.T) {
+	t.Parallel()
+	v := heaveCar()
+	for i := range v.Corners {
+		v.Corners[i].BumpStopGap = 0
+	}
+	// Front packer gap 8.8 mm at rest: about 2.5 mm left at 55 m/s on the
+	// rough road, where the element's travel sd is 2.2 mm.
+	v.Heave[Front].PackerGap, v.Heave[Front].PackerRate = 0.0138, 0
+	v.Heave[Rear].PackerGap, v.Heave[Rear].PackerRate = 0, 0
+	rc := []RoadCase{{Name: "rough", Speed: 55, Gd0: 42e-6}}
+	s := heaveSetup(tdLinearSetup(0.5), 0.4)
+	rep, err := Verify(v, rc, s, VerifyOptions{Seed: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	row, ok := rep.Cases[0].Row("packer_fraction[front]")
+	if !ok {
+		t.Fatal("no packer_fraction[front] row")
+	}
+	t.Logf("packer: frequency %.4g, time %.4g, stat. error %.2g", row.Frequency, row.Time, row.StatError)
+	if row.Frequency < 0.01 || math.Abs(row.Diff) > 3*row.StatError {
+		t.Errorf("packer fraction: frequency %g, time %g, want within 3 × %g (and the case in contact for > 1 %%)", row.Frequency, row.Time, row.StatError)
+	}
+	free := rep.Cases[0].Time
+	v.Heave[Front].PackerRate = 1.5e6
+	stopped, err := SimulateCase(&v, &rc[0], &s, TimeOptions{}, rand.New(rand.NewPCG(3, 0)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !(stopped.PackerProbability[Front] > 0 && stopped.PackerProbability[Front] < free.PackerProbability[Front]) {
+		t.Errorf("with the packer: travel sd %g m, fraction %g; without %g m, %g: the stop did not limit the travel",
+			stopped.HeaveTravelSD[Front], stopped.PackerProbability[Front], free.HeaveTravelSD[Front], free.PackerProbability[Front])
 	}
 }

@@ -100,7 +100,9 @@ type ConstraintKind int
 const (
 	// ConstraintLiftOff limits every tyre's lift-off probability (-).
 	ConstraintLiftOff ConstraintKind = iota + 1
-	// ConstraintBumpStop limits every corner's bump-stop contact probability (-).
+	// ConstraintBumpStop limits every corner's bump-stop contact
+	// probability and every heave element's packer contact probability
+	// (the packer is the heave element's bump stop) (-).
 	ConstraintBumpStop
 	// ConstraintTravel limits every corner's travel standard deviation (m).
 	ConstraintTravel
@@ -243,6 +245,9 @@ func caseConstraint(c *Constraint, m *CaseMetrics) float64 {
 			worst = math.Max(worst, m.LiftOffProbability[i])
 		case ConstraintBumpStop:
 			worst = math.Max(worst, m.BumpStopProbability[i])
+			if i < 2 {
+				worst = math.Max(worst, m.PackerProbability[i])
+			}
 		case ConstraintTravel:
 			worst = math.Max(worst, m.TravelSD[i])
 		case ConstraintJacking:

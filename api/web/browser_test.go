@@ -162,6 +162,16 @@ func TestBrowserJobPage(t *testing.T) {
 	if !slices.Equal(selected, []string{pick}) {
 		t.Errorf("selected rows %v, want [%s]", selected, pick)
 	}
+	// The car-at-speed section stays the loaded solution's and says so,
+	// linking the picked one's.
+	note, err := chromedp.Run(bctx, chromedp.Evaluate[string](
+		`(function () { var n = document.getElementById("at-speed-other"); return n.hidden ? "" : n.textContent + " " + document.getElementById("at-speed-link").getAttribute("href"); })()`))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(note, "solution "+shown.Value+"'s") || !strings.Contains(note, "?solution="+pick+"#at-speed") {
+		t.Errorf("after picking solution %s the car-at-speed note reads %q, want it to name solution %s and link %s's", pick, note, shown.Value, pick)
+	}
 
 	png, err := chromedp.Run(bctx, chromedp.FullScreenshot(100))
 	if err != nil {

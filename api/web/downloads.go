@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"mime"
 	"net/http"
-	"strconv"
 
 	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -85,23 +84,33 @@ func (h *Handler) frontSVG(w http.ResponseWriter, r *http.Request) {
 // curvesSVG is the damper curve chart of one solution: inline for the job
 // page's script, a file with ?download=1.
 func (h *Handler) curvesSVG(w http.ResponseWriter, r *http.Request) {
-	id := r.PathValue("id")
-	k, err := strconv.Atoi(r.PathValue("index"))
-	if err != nil || k < 0 {
-		http.Error(w, fmt.Sprintf("solution index %q must be a whole number from 0", r.PathValue("index")), http.StatusBadRequest)
+	id, s, ok := h.pathSolution(w, r)
+	if !ok {
 		return
+	}
+	name := fmt.Sprintf("%s-solution-%d-curves.svg", fileStem(id), s.GetIndex())
+	h.writeFigure(w, name, r.URL.Query().Get("download") != "", func() (*plot.Figure, error) { return curvesFigure(s) })
+}
+
+// pathSolution is the job id and the solution of a request path
+// (/jobs/{id}/solutions/{index}/...), from the job's whole front; when
+// there is none it has answered with the error.
+func (h *Handler) pathSolution(w http.ResponseWriter, r *http.Request) (string, *pb.Solution, bool) {
+	id := r.PathValue("id")
+	k, ok := pathIndex(w, r)
+	if !ok {
+		return "", nil, false
 	}
 	front, ok := h.requestFront(w, r, id)
 	if !ok {
-		return
+		return "", nil, false
 	}
 	s := solutionAt(front, k)
 	if s == nil {
 		http.Error(w, fmt.Sprintf("the front of job %s has %d solutions; %d is not one of them", id, len(front.GetSolutions()), k), http.StatusNotFound)
-		return
+		return "", nil, false
 	}
-	name := fmt.Sprintf("%s-solution-%d-curves.svg", fileStem(id), k)
-	h.writeFigure(w, name, r.URL.Query().Get("download") != "", func() (*plot.Figure, error) { return curvesFigure(s) })
+	return id, s, true
 }
 
 // requestFront fetches the whole front of job id for a request with the

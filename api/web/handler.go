@@ -103,6 +103,8 @@ func New(client Client, opt Options) (*Handler, error) {
 		{"GET /jobs/{id}/front.json", "front_json", h.frontJSON},
 		{"GET /jobs/{id}/front.svg", "front_svg", h.frontSVG},
 		{"GET /jobs/{id}/solutions/{index}/curves.svg", "curves_svg", h.curvesSVG},
+		{"GET /jobs/{id}/solutions/{index}/sheet.html", "sheet", h.sheet},
+		{"GET /jobs/{id}/solutions/{index}/modes.html", "modes", h.modes},
 		{"GET /login", "login", h.loginForm},
 		{"POST /login", "login", h.login},
 		{"POST /logout", "logout", h.logout},

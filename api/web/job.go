@@ -6,13 +6,13 @@ import (
 	"fmt"
 	"html/template"
 	"net/http"
-	"net/url"
 	"strconv"
 	"strings"
 	"time"
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/plot"
+	"dampfront/api/sheet"
 )
 
 type header struct {
@@ -32,6 +32,8 @@ type solutionRow struct {
 	Selected  bool
 	Feasible  bool
 	CurvesURL string
+	ModesURL  string
+	SheetURL  string
 	PageURL   string // the job page with this solution's curves, for browsers without JavaScript
 	Cells     []cell
 	Warnings  string
@@ -75,6 +77,8 @@ type jobView struct {
 	Headers        []header
 	Rows           []solutionRow
 	Curves         *curvesView
+	Modes          *modesView
+	ModalSVG       template.HTML // modal ratios across the front
 	AtSpeed        *atSpeedView
 	Downloads      []link
 }
@@ -95,7 +99,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 		pageView: pageView{Title: j.GetDisplayName()},
 		Job:      newJobRow(j), Seed: j.GetSeed(), Car: spec.GetVehicle().GetName(),
 		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), FrontCheck: FrontCheckText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
-		ProgressURL: "/jobs/" + url.PathEscape(id) + "/progress.json", PollMS: h.opt.PollInterval.Milliseconds(),
+		ProgressURL: jobPath(id) + "/progress.json", PollMS: h.opt.PollInterval.Milliseconds(),
 		Balanced: -1,
 	}
 	if v.Title == "" {
@@ -147,7 +151,7 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 	sols := front.GetSolutions()
 	v.ShowFront, v.WideFront = true, len(front.GetObjectives()) >= 3
 	v.Total = front.GetTotalSize()
-	base := "/jobs/" + url.PathEscape(id)
+	base := jobPath(id)
 	v.Downloads = []link{
 		{"Front CSV (SI)", base + "/front.csv"},
 		{"Front JSON (SI)", base + "/front.json"},
@@ -183,7 +187,13 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 			c.SVG = inlineSVG(b)
 		}
 		v.Curves = c
+		v.Modes = newModesView(id, pick, sheet.Modes(s))
 		v.AtSpeed = newAtSpeedView(s)
+	}
+	if fig, err := plot.ModalRatios(front, plot.ModalOptions{}); err == nil {
+		if b, err := svgBytes(fig); err == nil {
+			v.ModalSVG = inlineSVG(b)
+		}
 	}
 }
 
@@ -216,15 +226,15 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 		hs = append(hs, header{Label: c.label + " bump slope", Unit: qSlope.unit, Numeric: true},
 			header{Label: c.label + " rebound slope", Unit: qSlope.unit, Numeric: true})
 	}
-	hs = append(hs, header{Label: "Warnings", Numeric: true})
+	hs = append(hs, header{Label: "Warnings", Numeric: true}, header{Label: "Sheet"})
 
-	base := "/jobs/" + url.PathEscape(id)
+	base := jobPath(id)
 	var rows []solutionRow
 	for _, s := range front.GetSolutions() {
 		idx := s.GetIndex()
 		row := solutionRow{
 			Index: idx, Balanced: idx == balanced, Selected: idx == selected, Feasible: s.GetFeasible(),
-			CurvesURL: curvesURL(id, idx), PageURL: fmt.Sprintf("%s?solution=%d#curves", base, idx),
+			CurvesURL: curvesURL(id, idx), ModesURL: modesURL(id, idx), SheetURL: sheetURL(id, idx), PageURL: fmt.Sprintf("%s?solution=%d#curves", base, idx),
 			Warnings: strings.Join(s.GetWarnings(), "; "),
 		}
 		row.Cells = append(row.Cells, cell{Text: strconv.Itoa(int(idx)), Sort: strconv.Itoa(int(idx))})
@@ -245,7 +255,7 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 			row.Cells = append(row.Cells, bump, rebound)
 		}
 		n := strconv.Itoa(len(s.GetWarnings()))
-		row.Cells = append(row.Cells, cell{Text: n, Sort: n})
+		row.Cells = append(row.Cells, cell{Text: n, Sort: n}, cell{Text: "sheet", Sort: ""})
 		rows = append(rows, row)
 	}
 	return hs, rows

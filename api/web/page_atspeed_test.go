@@ -38,7 +38,7 @@ func TestJobPageAtSpeed(t *testing.T) {
 
 	res, body := get(t, b, "/jobs/"+id+"?solution=3")
 	wantStatus(t, "job page", res, body, http.StatusOK)
-	section := regexp.MustCompile(`(?s)<section id="at-speed">(.*?)</section>`).FindStringSubmatch(body)
+	section := regexp.MustCompile(`(?s)<section id="at-speed" data-solution="3">(.*?)</section>`).FindStringSubmatch(body)
 	if section == nil {
 		t.Fatalf("no car-at-speed section on the page:\n%.2000s", body)
 	}

@@ -21,6 +21,12 @@ import (
 //go:embed demodata/demo-job.yaml
 var demoJob []byte
 
+// prototypeJob is testdata/prototype-job.yaml, the second demo (demo
+// --prototype), embedded alike.
+//
+//go:embed demodata/prototype-job.yaml
+var prototypeJob []byte
+
 // demoRows is how many solutions of the front the demo prints.
 const demoRows = 15
 
@@ -36,11 +42,15 @@ progress bar, prints the Pareto front and the damper curves of its
 balanced point, stops the server and removes the temporary files. While
 it runs, the job page (live progress, the front chart, the solutions and
 their damper curves) is served at the address printed; --serve-page
-keeps it open after the demo, until interrupted.`
+keeps it open after the demo, until interrupted. --prototype runs the
+second demo instead (testdata/prototype-job.yaml: the invented Tessaly P3
+prototype, heave springs, packers and heave dampers, a ride-height aero
+map, on three invented tracks).`
 
 func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 	keep := fs.Bool("keep", false, "keep the temporary directory with the database and print how to serve it")
 	specPath := fs.String("spec", "", "run this job spec `file` instead of the demo's")
+	prototype := fs.Bool("prototype", false, "run the second demo: the invented prototype with heave elements")
 	workers := fs.Int("eval-workers", 0, "evaluations run at once; 0 means one per CPU")
 	verbose := fs.Bool("verbose", false, "log the server's and the engine's messages on standard error")
 	quiet := fs.Bool("quiet", false, "no progress bar")
@@ -50,7 +60,7 @@ func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 			return usagef("demo", "--eval-workers must not be negative")
 		}
 		start := time.Now()
-		spec, err := demoSpec(e, *specPath)
+		spec, err := demoSpec(e, *specPath, *prototype)
 		if err != nil {
 			return err
 		}
@@ -108,11 +118,14 @@ func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 	}, nil
 }
 
-// demoSpec is the job spec of the demo: the file's, or the embedded one.
-func demoSpec(e *env, path string) (*pb.JobSpec, error) {
+// demoSpec is the job spec of the demo: the file's, or an embedded one.
+func demoSpec(e *env, path string, prototype bool) (*pb.JobSpec, error) {
 	spec := &pb.JobSpec{}
-	if path != "" {
+	switch {
+	case path != "":
 		return spec, readMessage(e, path, spec)
+	case prototype:
+		return spec, decodeMessage("testdata/prototype-job.yaml", prototypeJob, spec)
 	}
 	return spec, decodeMessage("testdata/demo-job.yaml", demoJob, spec)
 }

@@ -10,6 +10,7 @@ import (
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/model"
 )
 
 // evalAbout is the help text of eval.
@@ -100,8 +101,14 @@ func (f *evalFlags) run(ctx context.Context, e *env, in *parsed) error {
 // setupText is a one-line description of a setup's ratios.
 func setupText(s *pb.Setup) string {
 	f, r := s.GetFront(), s.GetRear()
-	return fmt.Sprintf("front bump %.3f rebound %.3f, rear bump %.3f rebound %.3f (ratios at the wheel)",
+	text := fmt.Sprintf("front bump %.3f rebound %.3f, rear bump %.3f rebound %.3f (ratios at the wheel)",
 		f.GetBumpRatio(), f.GetReboundRatio(), r.GetBumpRatio(), r.GetReboundRatio())
+	for ax, h := range [2]*pb.AxleDamping{s.GetFrontHeave(), s.GetRearHeave()} {
+		if h != nil {
+			text += fmt.Sprintf("; %s heave bump %.3f rebound %.3f (of heave critical)", model.AxleNames[ax], h.GetBumpRatio(), h.GetReboundRatio())
+		}
+	}
+	return text
 }
 
 // objectivesText is "grip 6.10 % static, platform 1.234 mm".
@@ -189,5 +196,8 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 		}
 	}
 	fmt.Fprintln(w)
+	if err := writeHeave(w, s.GetCaseMetrics()); err != nil {
+		return err
+	}
 	return writeCaseModes(w, s.GetCaseMetrics())
 }

@@ -79,12 +79,13 @@ func slopes(s *pb.Solution) (v [4]float64, ok bool) {
 	return [4]float64{dc[0].GetBumpSlopeNSPerM(), dc[0].GetReboundSlopeNSPerM(), dc[2].GetBumpSlopeNSPerM(), dc[2].GetReboundSlopeNSPerM()}, true
 }
 
-// extraGenes lists the indices of genes other than damping ratios (knees,
-// high-speed factors), which the table shows besides the four ratios.
+// extraGenes lists the indices of genes other than the corners' damping
+// ratios (knees, high-speed factors, heave damper ratios), which the table
+// shows besides the four ratios.
 func extraGenes(names []string) []int {
 	var out []int
 	for i, n := range names {
-		if !strings.HasSuffix(n, "_ratio") {
+		if !strings.HasSuffix(n, "_ratio") || strings.HasSuffix(n, "_heave_ratio") {
 			out = append(out, i)
 		}
 	}

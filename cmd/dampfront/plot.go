@@ -21,7 +21,7 @@ import (
 )
 
 var plotCommand = &command{name: "plot", synopsis: "CHART [flags] [JOB] (--svg FILE | --png FILE)", maxArgs: 2, client: true,
-	summary: "write a chart as SVG or PNG: front, damper curves, hypervolume, road input, output spectra", about: plotAbout, flags: bindPlot}
+	summary: "write a chart as SVG or PNG: front, damper curves, modal ratios, hypervolume, road input, output spectra", about: plotAbout, flags: bindPlot}
 
 // plotCharts are the charts of "plot", each with the flags of its own;
 // the flags of the page and the files, and the client's, go with every
@@ -29,6 +29,7 @@ var plotCommand = &command{name: "plot", synopsis: "CHART [flags] [JOB] (--svg F
 var plotCharts = map[string][]string{
 	"front":       {"objectives", "colour", "mark"},
 	"curves":      {"solution", "balanced"},
+	"modes":       {"objectives"},
 	"hypervolume": nil,
 	"road":        {"spec"},
 	"spectra":     {"spec", "setup", "case", "solution", "balanced"},
@@ -45,6 +46,10 @@ Writes one chart to --svg FILE, --png FILE or both. Charts:
   curves JOB         damper force-velocity curves at the component of the
                      balanced point (the default) or of --solution N, with
                      the adjuster range shaded and the knees marked
+  modes JOB          heave, pitch and roll modal damping ratios of every
+                     solution against the first objective (--objectives I
+                     for another), a panel per road case, the hand ratio
+                     (rigid tyres, same slopes) dashed beside each
   hypervolume JOB    hypervolume per generation, up to the last checkpoint
   road JOB           the road cases' displacement PSDs over the ISO 8608
   road --spec FILE   classes, of a stored job or of a spec file
@@ -68,7 +73,7 @@ func bindPlot(fs *flagSet, e *env) (runFunc, error) {
 	dpi := fs.Int("dpi", 0, fmt.Sprintf("PNG resolution, `dots` per inch (0: %d)", plot.DefaultDPI))
 	title := fs.String("title", "", "the chart's `title` instead of its default")
 	var objectives, marked intList
-	fs.Var(&objectives, "objectives", "front: the `positions` of the two or three objectives drawn, as 0,1 (default: all)")
+	fs.Var(&objectives, "objectives", "front: the `positions` of the two or three objectives drawn, as 0,1 (default: all); modes: the one along x")
 	colour := fs.String("colour", "", "front: colour the points by this `gene` (default: the front/rear balance)")
 	fs.Var(&marked, "mark", "front: box the solutions of these `indices`, as 3,17 (repeatable)")
 	solution := fs.Int("solution", -1, "curves, spectra: `index` of a solution of the job's front")
@@ -79,12 +84,12 @@ func bindPlot(fs *flagSet, e *env) (runFunc, error) {
 	return func(ctx context.Context, e *env, in *parsed) error {
 		pos, cf := in.args, in.client
 		if len(pos) == 0 {
-			return usagef("plot", "name a chart: front, curves, hypervolume, road or spectra")
+			return usagef("plot", "name a chart: front, curves, modes, hypervolume, road or spectra")
 		}
 		chart := pos[0]
 		own, ok := plotCharts[chart]
 		if !ok {
-			return usagef("plot", "unknown chart %q (want front, curves, hypervolume, road or spectra)", chart)
+			return usagef("plot", "unknown chart %q (want front, curves, modes, hypervolume, road or spectra)", chart)
 		}
 		if err := checkChartFlags(fs, chart, own); err != nil {
 			return err
@@ -148,6 +153,8 @@ func plotOfJob(ctx context.Context, cf *clientFlags, chart, job string, opt plot
 		return plotFront(ctx, c, job, opt, page)
 	case "curves":
 		return plotCurves(ctx, c, job, solution, page)
+	case "modes":
+		return plotModes(ctx, c, job, opt.Objectives, page)
 	}
 	return plotFromJob(ctx, c, job, chart, page)
 }
@@ -156,7 +163,7 @@ func plotOfJob(ctx context.Context, cf *clientFlags, chart, job string, opt plot
 // more than one of the setups to draw.
 func checkPlotSource(fs *flagSet, chart, job, specPath, setupPath string) error {
 	switch {
-	case (chart == "front" || chart == "curves" || chart == "hypervolume") && job == "":
+	case (chart == "front" || chart == "curves" || chart == "modes" || chart == "hypervolume") && job == "":
 		return usagef("plot", "the %s chart needs a JOB", chart)
 	case chart == "road" && (job == "") == (specPath == ""):
 		return usagef("plot", "the road chart needs a JOB or --spec FILE, not both")
@@ -247,6 +254,28 @@ func plotFront(ctx context.Context, c *client, job string, opt plot.FrontOptions
 	}
 	opt.Title = "Pareto front, " + jobTitle(fd.job)
 	fig, err := plot.Front(fd.front, opt)
+	if err != nil {
+		return nil, err
+	}
+	fig.Notes = append(fig.Notes, jobNote(fd.job))
+	return page.apply(fig), nil
+}
+
+// plotModes draws the modal damping ratios across a job's front against
+// the objective at position objective[0] (the first without).
+func plotModes(ctx context.Context, c *client, job string, objective []int, page plotPage) (*plot.Figure, error) {
+	if len(objective) > 1 {
+		return nil, usagef("plot", "the modes chart takes one objective position, got %d", len(objective))
+	}
+	fd, err := fetchFront(ctx, c, job, pb.SolutionView_SOLUTION_VIEW_FULL)
+	if err != nil {
+		return nil, err
+	}
+	opt := plot.ModalOptions{Title: "Modal damping ratios across the front, " + jobTitle(fd.job)}
+	if len(objective) == 1 {
+		opt.Objective = objective[0]
+	}
+	fig, err := plot.ModalRatios(fd.front, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -376,7 +405,7 @@ func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, se
 		return nil, err
 	}
 	speed := in.RoadCases[ci].Speed
-	modes, err := model.ModesAt(&in.Vehicle, speed, cm.EquivalentDamping)
+	modes, err := model.ModesAtHeave(&in.Vehicle, speed, cm.EquivalentDamping, cm.HeaveEquivalentDamping)
 	if err != nil {
 		return nil, err
 	}

@@ -177,6 +177,12 @@ func TestPlotServer(t *testing.T) {
 	mustRun(t, exitOK, nil, s.client("plot", "curves", id, "--solution", "0", "--png", at("curves.png"), "--width", "240", "--height", "110", "--dpi", "96")...)
 	checkPNG(t, at("curves.png"), 240, 110, 96)
 
+	mustRun(t, exitOK, nil, s.client("plot", "modes", id, "--svg", at("modes.svg"))...)
+	checkSVG(t, at("modes.svg"), "Modal damping ratios across the front, Quillon GT, demo tracks", "Tolvane Hill, rough slow section",
+		"Modal damping ratio", "heave, hand (rigid tyres)", "balanced point, solution", "Job jobs/"+id+", seed 7.")
+	mustRun(t, exitOK, nil, s.client("plot", "modes", id, "--objectives", "1", "--svg", at("modes-1.svg"))...)
+	checkSVG(t, at("modes-1.svg"), "Platform: ride-height variation (mm)")
+
 	mustRun(t, exitOK, nil, s.client("plot", "hypervolume", id, "--svg", at("hv.svg"))...)
 	checkSVG(t, at("hv.svg"), "Hypervolume per generation, Quillon GT, demo tracks", "Hypervolume (% × mm)", "Generation 6 of 6")
 

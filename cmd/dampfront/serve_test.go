@@ -182,6 +182,24 @@ func TestServeClientCommands(t *testing.T) {
 		mustRun(t, exitUsage, nil, s.client("curves", id, "--solution", "100000")...)
 	})
 
+	t.Run("sheet", func(t *testing.T) {
+		path := filepath.Join(t.TempDir(), "sheet.html")
+		r := mustRun(t, exitOK, nil, s.client("sheet", id, "-o", path)...)
+		if want := "solution " + strconv.Itoa(front.BalancedIndex) + ", the balanced point"; !strings.Contains(r.stdout, want) || !strings.Contains(r.stdout, cautionText) {
+			t.Errorf("sheet of the balanced point: stdout lacks %q or the caution:\n%s", want, r.stdout)
+		}
+		b, err := os.ReadFile(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, want := range []string{"Damper specification", "Forces at the test velocities", "@media print", "<svg", "qualified engineers"} {
+			if !strings.Contains(string(b), want) {
+				t.Errorf("the sheet file lacks %q", want)
+			}
+		}
+		mustRun(t, exitUsage, nil, s.client("sheet", id, "--solution", "100000", "-o", path)...)
+	})
+
 	// A setup that passes: the balanced point's own setup, from curves
 	// --format json. It is on the front, so no front point dominates it.
 	balanced := filepath.Join(dir, "balanced.json")

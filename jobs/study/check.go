@@ -61,15 +61,27 @@ func Check(s *Spec) (*Checked, error) {
 			p.add("reference_setup", "is used only by objectives with the normalised aggregation, and none has it")
 		} else {
 			p.merge("reference_setup.", spec.Reference.Validate())
+			p.merge("reference_setup.", spec.Vehicle.CheckSetup(spec.Reference))
 		}
 	}
 	// The base setup with valid placeholder ratios, which are genes.
 	base := c.design.Base
 	for ax := range base.Axles {
 		base.Axles[ax].BumpRatio, base.Axles[ax].ReboundRatio = 1, 1
+		if c.design.HeaveRatio[ax] != nil {
+			base.Heave[ax].BumpRatio, base.Heave[ax].ReboundRatio = 1, 1
+		}
 	}
 	p.merge("design_space.base.", base.Validate())
+	p.mergeMapped(func(f string) string { return "design_space." + f }, c.design.ValidateFor(&spec.Vehicle))
 	p.merge("adjustment.", spec.Adjustment.Validate())
+	p.merge("adjusters.", spec.Adjusters.Validate())
+	if spec.Design.SnapToClicks {
+		if !spec.Adjusters.Given() {
+			p.add("design_space.snap_to_clicks", "needs adjusters with clicks: give adjusters")
+		}
+		c.design.Snap = &model.ClickSnap{Vehicle: &spec.Vehicle, Adjusters: &spec.Adjusters}
+	}
 	p.merge("curves.", model.ValidateCurveRange(spec.Curves.MaxVelocity, spec.Curves.Points))
 	c.settings = searchSettings(&spec.Search)
 	p.mergeMapped(settingsPath, c.settings.Validate(len(spec.Objectives)))

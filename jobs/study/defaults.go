@@ -147,7 +147,7 @@ func (d *Design) geneCount() int { return len(d.GeneNames()) }
 // base axle (only in a spec without its defaults) is the zero range or
 // axle.
 func (d *Design) model() model.DesignSpace {
-	out := model.DesignSpace{Symmetric: d.Symmetric, Knee: d.Knee, HighSpeed: d.HighSpeed}
+	out := model.DesignSpace{Symmetric: d.Symmetric, Knee: d.Knee, HighSpeed: d.HighSpeed, HeaveRatio: d.HeaveRatio}
 	for i, r := range d.Ratios {
 		if r != nil {
 			out.Ratios[i] = *r
@@ -156,6 +156,11 @@ func (d *Design) model() model.DesignSpace {
 	for ax, a := range d.Base {
 		if a != nil {
 			out.Base.Axles[ax] = *a
+		}
+	}
+	for ax, a := range d.HeaveBase {
+		if a != nil {
+			out.Base.Heave[ax] = *a
 		}
 	}
 	return out

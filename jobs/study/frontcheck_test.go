@@ -116,3 +116,17 @@ func TestFrontCheckSeededJob(t *testing.T) {
 		}
 	}
 }
+
+// The polish and stagnation settings are checked with the others, each
+// problem at its path in the spec.
+func TestCheckPolishAndStagnation(t *testing.T) {
+	t.Parallel()
+	s := testSpec()
+	s.Search.PolishBudget = MaxPolishBudget + 1
+	s.Search.StagnationWindow, s.Search.StagnationTolerance = -2, 1
+	_, err := Check(s)
+	want := []string{"search.polish_budget", "search.stagnation_tolerance", "search.stagnation_window"}
+	if got := problemPaths(t, err); !reflect.DeepEqual(got, want) {
+		t.Errorf("problems at %v, want %v", got, want)
+	}
+}

@@ -69,11 +69,11 @@ func (pl *Plan) describe(sol *Solution, s model.Setup, r *model.Result) {
 	v := pl.eval.Vehicle()
 	threshold := pl.eval.WarnThreshold()
 	for i := range r.Cases {
-		speed, slopes := pl.eval.Case(i).Speed, r.Cases[i].EquivalentDamping
-		modes, err := model.ModesAt(v, speed, slopes)
+		speed, slopes, heave := pl.eval.Case(i).Speed, r.Cases[i].EquivalentDamping, r.Cases[i].HeaveEquivalentDamping
+		modes, err := model.ModesAtHeave(v, speed, slopes, heave)
 		c := CaseDetail{Metrics: r.Cases[i], Modes: modes, Warnings: r.Cases[i].WarningStrings(threshold)}
 		if err == nil {
-			c.Hand, err = model.HandModesAt(v, speed, slopes, modes)
+			c.Hand, err = model.HandModesAtHeave(v, speed, slopes, heave, modes)
 		}
 		if err != nil {
 			c.Warnings = append(c.Warnings, fmt.Sprintf("%s: modal analysis failed: %v", r.Cases[i].Case, err))

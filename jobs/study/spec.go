@@ -29,8 +29,12 @@ type Spec struct {
 	Reference   *model.Setup
 	Constraints []model.Constraint
 	Adjustment  model.Adjustment // adjuster range shown on the damper curves
-	Curves      Curves
-	Search      Search
+	// Adjusters are the dampers' adjusters and clicks (the zero value:
+	// none). With them every solution reports its clicks, and the
+	// out-of-band check uses them instead of Adjustment.
+	Adjusters model.Adjusters
+	Curves    Curves
+	Search    Search
 }
 
 // Design is the design space as a spec gives it: model.DesignSpace with
@@ -47,6 +51,18 @@ type Design struct {
 	// Base gives every value that is not a gene, per axle; nil is
 	// DefaultAxle. Its ratios are genes and never used.
 	Base [2]*model.AxleDamping
+	// SnapToClicks evaluates every setup on the clicks of the spec's
+	// Adjusters (model.DesignSpace.Snap); it needs adjusters.
+	SnapToClicks bool
+	// HeaveRatio, per axle, searches the heave damper's ratio (bump =
+	// rebound, of the axle's heave critical damping); nil searches none
+	// (the default, so a spec without heave dampers searches what it
+	// always did). Only an axle with a heave element may have one.
+	HeaveRatio [2]*model.Range
+	// HeaveBase, per axle, is the heave damper where it is not searched,
+	// or its knees and factors where HeaveRatio searches its ratio; nil
+	// is no heave damper (or a linear one when HeaveRatio is given).
+	HeaveBase [2]*model.AxleDamping
 }
 
 // Curves is how the damper curves of a solution are tabulated.

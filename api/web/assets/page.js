@@ -30,6 +30,21 @@ function sortable(table) {
   });
 }
 
+// The car-at-speed section holds the figures of the solution the page was
+// loaded with; when another row is shown, say so and link its page.
+function atSpeedOf(index) {
+  var section = document.getElementById("at-speed");
+  var note = document.getElementById("at-speed-other");
+  if (!section || !note) { return; }
+  var other = section.dataset.solution !== index;
+  note.hidden = !other;
+  if (other) {
+    var link = document.getElementById("at-speed-link");
+    link.href = "?solution=" + index + "#at-speed";
+    link.textContent = "show solution " + index + "'s car at speed";
+  }
+}
+
 // Show the damper curves of a row's solution: fetch its chart and put it
 // in place of the one shown.
 function selectable(table, panel) {
@@ -57,12 +72,15 @@ function selectable(table, panel) {
       document.getElementById("curves-index").textContent = row.dataset.index;
       document.getElementById("curves-download").href = url + "?download=1";
       history.replaceState(null, "", "?solution=" + row.dataset.index);
+      showModes(row);
+      atSpeedOf(row.dataset.index);
     }).catch(function (err) {
       problem.textContent = "The damper curves could not be shown: " + err.message;
       problem.hidden = false;
     });
   }
   table.tBodies[0].addEventListener("click", function (ev) {
+    if (ev.target.closest("a.sheet-link")) { return; } // the sheet opens as a page
     var row = ev.target.closest("tr");
     if (!row) { return; }
     ev.preventDefault();
@@ -70,6 +88,24 @@ function selectable(table, panel) {
   });
   table.tBodies[0].addEventListener("keydown", function (ev) {
     if (ev.key === "Enter" && ev.target.matches("tr")) { ev.preventDefault(); show(ev.target); }
+  });
+}
+
+// Show the modes of a row's solution: fetch its table and put it in
+// place of the one shown.
+function showModes(row) {
+  var section = document.getElementById("modes");
+  if (!section || !row.dataset.modes) { return; }
+  fetch(row.dataset.modes, { credentials: "same-origin" }).then(function (res) {
+    if (!res.ok) { throw new Error(res.statusText); }
+    return res.text();
+  }).then(function (body) {
+    var doc = new DOMParser().parseFromString(body, "text/html");
+    section.replaceChildren.apply(section, Array.prototype.map.call(doc.body.childNodes, function (n) { return document.importNode(n, true); }));
+    section.dataset.solution = row.dataset.index;
+  }).catch(function (err) {
+    section.dataset.solution = "";
+    section.querySelector("h2").textContent = "Modes: the table of solution " + row.dataset.index + " could not be shown (" + err.message + ")";
   });
 }
 

@@ -485,9 +485,22 @@ type DesignSpace struct {
 	// Every value that is not searched. An absent base, or an absent axle
 	// of it, means knees at 0.05 m/s and high-speed factors 0.5 there. Its
 	// ratios are ignored: they are always searched.
-	Base          *Setup `protobuf:"bytes,7,opt,name=base,proto3" json:"base,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	Base *Setup `protobuf:"bytes,7,opt,name=base,proto3" json:"base,omitempty"`
+	// Evaluate every setup on the clicks of the job's adjusters (needs
+	// JobSpec.adjusters): the genes stay continuous, each is decoded to its
+	// nearest clicks (ratios on the low-speed adjusters, high-speed
+	// factors on the high-speed ones) before it is evaluated, so the
+	// setup, objectives, curves and clicks of every solution are a
+	// clicked setup's. Deterministic: a pure function of the genes.
+	SnapToClicks bool `protobuf:"varint,8,opt,name=snap_to_clicks,json=snapToClicks,proto3" json:"snap_to_clicks,omitempty"`
+	// Searched heave damper ratio on the front axle (bump = rebound, of the
+	// axle's heave critical damping); absent searches none (base.front_heave
+	// then gives the heave damper, if any). Needs a front heave element.
+	FrontHeaveRatio *Range `protobuf:"bytes,20,opt,name=front_heave_ratio,json=frontHeaveRatio,proto3" json:"front_heave_ratio,omitempty"`
+	// Searched heave damper ratio on the rear axle, as front_heave_ratio.
+	RearHeaveRatio *Range `protobuf:"bytes,21,opt,name=rear_heave_ratio,json=rearHeaveRatio,proto3" json:"rear_heave_ratio,omitempty"`
+	unknownFields  protoimpl.UnknownFields
+	sizeCache      protoimpl.SizeCache
 }
 
 func (x *DesignSpace) Reset() {
@@ -569,6 +582,27 @@ func (x *DesignSpace) GetBase() *Setup {
 	return nil
 }
 
+func (x *DesignSpace) GetSnapToClicks() bool {
+	if x != nil {
+		return x.SnapToClicks
+	}
+	return false
+}
+
+func (x *DesignSpace) GetFrontHeaveRatio() *Range {
+	if x != nil {
+		return x.FrontHeaveRatio
+	}
+	return nil
+}
+
+func (x *DesignSpace) GetRearHeaveRatio() *Range {
+	if x != nil {
+		return x.RearHeaveRatio
+	}
+	return nil
+}
+
 // AxleDamping is one axle's damper setting, both sides alike. The force at
 // the damper is piecewise linear in damper velocity: the low-speed slope
 // zeta c_crit / MR^2 up to the knee, factor times that slope above it.
@@ -592,8 +626,29 @@ type AxleDamping struct {
 	// Rebound high-speed slope over low-speed slope; 0 means 1.
 	// Plausible range when given (not 0): [0.05, 10].
 	HighSpeedReboundFactor float64 `protobuf:"fixed64,6,opt,name=high_speed_rebound_factor,json=highSpeedReboundFactor,proto3" json:"high_speed_rebound_factor,omitempty"`
-	unknownFields          protoimpl.UnknownFields
-	sizeCache              protoimpl.SizeCache
+	// Further bump knees above the first (a multi-stage curve), in
+	// increasing velocity, at most 5; they need a knee or a blow-off first.
+	StagesBump []*DamperStage `protobuf:"bytes,7,rep,name=stages_bump,json=stagesBump,proto3" json:"stages_bump,omitempty"`
+	// Further rebound knees above the first, as stages_bump.
+	StagesRebound []*DamperStage `protobuf:"bytes,8,rep,name=stages_rebound,json=stagesRebound,proto3" json:"stages_rebound,omitempty"`
+	// Bump blow-off force at the damper, 0 = none: the first knee sits
+	// where the low-speed force reaches it (a knee at a force, not a step),
+	// instead of knee_bump_m_per_s. Stages below it are inactive.
+	// Plausible range: [0, 20000] N.
+	BlowOffBumpN float64 `protobuf:"fixed64,9,opt,name=blow_off_bump_n,json=blowOffBumpN,proto3" json:"blow_off_bump_n,omitempty"`
+	// Rebound blow-off force at the damper, as blow_off_bump_n.
+	// Plausible range: [0, 20000] N.
+	BlowOffReboundN float64 `protobuf:"fixed64,10,opt,name=blow_off_rebound_n,json=blowOffReboundN,proto3" json:"blow_off_rebound_n,omitempty"`
+	// Coulomb friction force at the damper, both directions.
+	// Plausible range: [0, 2000] N.
+	FrictionN float64 `protobuf:"fixed64,11,opt,name=friction_n,json=frictionN,proto3" json:"friction_n,omitempty"`
+	// Gas force at the damper, extending it. Part of the rest ride heights
+	// and loads (measured with the dampers fitted), not of the dynamics;
+	// shown with the curves, whose forces are damping forces without it.
+	// Plausible range: [0, 10000] N.
+	GasForceN     float64 `protobuf:"fixed64,12,opt,name=gas_force_n,json=gasForceN,proto3" json:"gas_force_n,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *AxleDamping) Reset() {
@@ -668,20 +723,125 @@ func (x *AxleDamping) GetHighSpeedReboundFactor() float64 {
 	return 0
 }
 
+func (x *AxleDamping) GetStagesBump() []*DamperStage {
+	if x != nil {
+		return x.StagesBump
+	}
+	return nil
+}
+
+func (x *AxleDamping) GetStagesRebound() []*DamperStage {
+	if x != nil {
+		return x.StagesRebound
+	}
+	return nil
+}
+
+func (x *AxleDamping) GetBlowOffBumpN() float64 {
+	if x != nil {
+		return x.BlowOffBumpN
+	}
+	return 0
+}
+
+func (x *AxleDamping) GetBlowOffReboundN() float64 {
+	if x != nil {
+		return x.BlowOffReboundN
+	}
+	return 0
+}
+
+func (x *AxleDamping) GetFrictionN() float64 {
+	if x != nil {
+		return x.FrictionN
+	}
+	return 0
+}
+
+func (x *AxleDamping) GetGasForceN() float64 {
+	if x != nil {
+		return x.GasForceN
+	}
+	return 0
+}
+
+// DamperStage is a further knee of a multi-stage damper curve.
+type DamperStage struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Knee velocity at the damper, above the knee before it.
+	// Plausible range: [0.001, 1] m/s.
+	VelocityMPerS float64 `protobuf:"fixed64,1,opt,name=velocity_m_per_s,json=velocityMPerS,proto3" json:"velocity_m_per_s,omitempty"`
+	// Slope above the knee over the low-speed slope (< 1 digressive, > 1
+	// progressive relative to the low-speed slope).
+	// Plausible range: [0.05, 10].
+	Factor        float64 `protobuf:"fixed64,2,opt,name=factor,proto3" json:"factor,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *DamperStage) Reset() {
+	*x = DamperStage{}
+	mi := &file_dampfront_v1_design_proto_msgTypes[4]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *DamperStage) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*DamperStage) ProtoMessage() {}
+
+func (x *DamperStage) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_design_proto_msgTypes[4]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use DamperStage.ProtoReflect.Descriptor instead.
+func (*DamperStage) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{4}
+}
+
+func (x *DamperStage) GetVelocityMPerS() float64 {
+	if x != nil {
+		return x.VelocityMPerS
+	}
+	return 0
+}
+
+func (x *DamperStage) GetFactor() float64 {
+	if x != nil {
+		return x.Factor
+	}
+	return 0
+}
+
 // Setup is the damper setting of the car.
 type Setup struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
 	// Front axle.
 	Front *AxleDamping `protobuf:"bytes,1,opt,name=front,proto3" json:"front,omitempty"`
 	// Rear axle.
-	Rear          *AxleDamping `protobuf:"bytes,2,opt,name=rear,proto3" json:"rear,omitempty"`
+	Rear *AxleDamping `protobuf:"bytes,2,opt,name=rear,proto3" json:"rear,omitempty"`
+	// Front heave damper, ratios of the axle's heave critical damping,
+	// knees at the element; absent means none. Needs a front heave element.
+	FrontHeave *AxleDamping `protobuf:"bytes,20,opt,name=front_heave,json=frontHeave,proto3" json:"front_heave,omitempty"`
+	// Rear heave damper, as front_heave.
+	RearHeave     *AxleDamping `protobuf:"bytes,21,opt,name=rear_heave,json=rearHeave,proto3" json:"rear_heave,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
 
 func (x *Setup) Reset() {
 	*x = Setup{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[4]
+	mi := &file_dampfront_v1_design_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -693,7 +853,7 @@ func (x *Setup) String() string {
 func (*Setup) ProtoMessage() {}
 
 func (x *Setup) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[4]
+	mi := &file_dampfront_v1_design_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -706,7 +866,7 @@ func (x *Setup) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Setup.ProtoReflect.Descriptor instead.
 func (*Setup) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *Setup) GetFront() *AxleDamping {
@@ -719,6 +879,20 @@ func (x *Setup) GetFront() *AxleDamping {
 func (x *Setup) GetRear() *AxleDamping {
 	if x != nil {
 		return x.Rear
+	}
+	return nil
+}
+
+func (x *Setup) GetFrontHeave() *AxleDamping {
+	if x != nil {
+		return x.FrontHeave
+	}
+	return nil
+}
+
+func (x *Setup) GetRearHeave() *AxleDamping {
+	if x != nil {
+		return x.RearHeave
 	}
 	return nil
 }
@@ -742,7 +916,7 @@ type Objective struct {
 
 func (x *Objective) Reset() {
 	*x = Objective{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[5]
+	mi := &file_dampfront_v1_design_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -754,7 +928,7 @@ func (x *Objective) String() string {
 func (*Objective) ProtoMessage() {}
 
 func (x *Objective) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[5]
+	mi := &file_dampfront_v1_design_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -767,7 +941,7 @@ func (x *Objective) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Objective.ProtoReflect.Descriptor instead.
 func (*Objective) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *Objective) GetKind() ObjectiveKind {
@@ -819,7 +993,7 @@ type ConstraintShortfall struct {
 
 func (x *ConstraintShortfall) Reset() {
 	*x = ConstraintShortfall{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[6]
+	mi := &file_dampfront_v1_design_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -831,7 +1005,7 @@ func (x *ConstraintShortfall) String() string {
 func (*ConstraintShortfall) ProtoMessage() {}
 
 func (x *ConstraintShortfall) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[6]
+	mi := &file_dampfront_v1_design_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -844,7 +1018,7 @@ func (x *ConstraintShortfall) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use ConstraintShortfall.ProtoReflect.Descriptor instead.
 func (*ConstraintShortfall) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *ConstraintShortfall) GetKind() ConstraintKind {
@@ -912,7 +1086,7 @@ type Constraint struct {
 
 func (x *Constraint) Reset() {
 	*x = Constraint{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[7]
+	mi := &file_dampfront_v1_design_proto_msgTypes[8]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -924,7 +1098,7 @@ func (x *Constraint) String() string {
 func (*Constraint) ProtoMessage() {}
 
 func (x *Constraint) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[7]
+	mi := &file_dampfront_v1_design_proto_msgTypes[8]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -937,7 +1111,7 @@ func (x *Constraint) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Constraint.ProtoReflect.Descriptor instead.
 func (*Constraint) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{7}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{8}
 }
 
 func (x *Constraint) GetKind() ConstraintKind {
@@ -991,7 +1165,7 @@ type Adjustment struct {
 
 func (x *Adjustment) Reset() {
 	*x = Adjustment{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[8]
+	mi := &file_dampfront_v1_design_proto_msgTypes[9]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1003,7 +1177,7 @@ func (x *Adjustment) String() string {
 func (*Adjustment) ProtoMessage() {}
 
 func (x *Adjustment) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[8]
+	mi := &file_dampfront_v1_design_proto_msgTypes[9]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1016,7 +1190,7 @@ func (x *Adjustment) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Adjustment.ProtoReflect.Descriptor instead.
 func (*Adjustment) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{8}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{9}
 }
 
 func (x *Adjustment) GetBumpSoftestRatio() float64 {
@@ -1047,6 +1221,318 @@ func (x *Adjustment) GetReboundStiffestRatio() float64 {
 	return 0
 }
 
+// Adjuster is one adjuster of a damper. Clicks count from the stiffest
+// (click 0, the adjuster closed) towards the softest. A low-speed adjuster
+// sets the damping ratio at the wheel, a high-speed one the high-speed
+// factor, linear in the click between stiffest and softest; or a
+// low-speed adjuster gives the dyno table of its clicks instead.
+type Adjuster struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Number of positions, both ends included, in [2, 200]; 0 = no adjuster.
+	Clicks int32 `protobuf:"varint,1,opt,name=clicks,proto3" json:"clicks,omitempty"`
+	// Setting at click 0: a ratio (low speed) or a high-speed factor.
+	// Plausible range: [0, 5] for a ratio, [0.05, 10] for a factor.
+	Stiffest float64 `protobuf:"fixed64,2,opt,name=stiffest,proto3" json:"stiffest,omitempty"`
+	// Setting at the last click, <= stiffest.
+	// Plausible range: [0, 5] for a ratio, [0.05, 10] for a factor.
+	Softest float64 `protobuf:"fixed64,3,opt,name=softest,proto3" json:"softest,omitempty"`
+	// Measured curves of every click (low-speed adjusters only), instead of
+	// stiffest and softest.
+	Dyno          *DynoTable `protobuf:"bytes,4,opt,name=dyno,proto3" json:"dyno,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *Adjuster) Reset() {
+	*x = Adjuster{}
+	mi := &file_dampfront_v1_design_proto_msgTypes[10]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *Adjuster) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*Adjuster) ProtoMessage() {}
+
+func (x *Adjuster) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_design_proto_msgTypes[10]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use Adjuster.ProtoReflect.Descriptor instead.
+func (*Adjuster) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{10}
+}
+
+func (x *Adjuster) GetClicks() int32 {
+	if x != nil {
+		return x.Clicks
+	}
+	return 0
+}
+
+func (x *Adjuster) GetStiffest() float64 {
+	if x != nil {
+		return x.Stiffest
+	}
+	return 0
+}
+
+func (x *Adjuster) GetSoftest() float64 {
+	if x != nil {
+		return x.Softest
+	}
+	return 0
+}
+
+func (x *Adjuster) GetDyno() *DynoTable {
+	if x != nil {
+		return x.Dyno
+	}
+	return nil
+}
+
+// DynoTable is the damping force of every click measured on a damper dyno
+// in one direction, the gas force taken off.
+type DynoTable struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Damper speeds measured, > 0 and increasing.
+	// Plausible range: (0, 5] m/s.
+	VelocityMPerS []float64 `protobuf:"fixed64,1,rep,packed,name=velocity_m_per_s,json=velocityMPerS,proto3" json:"velocity_m_per_s,omitempty"`
+	// One row per click, stiffest first; forces must rise along a row and
+	// not rise from one click to the next.
+	Rows          []*DynoRow `protobuf:"bytes,2,rep,name=rows,proto3" json:"rows,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *DynoTable) Reset() {
+	*x = DynoTable{}
+	mi := &file_dampfront_v1_design_proto_msgTypes[11]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *DynoTable) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*DynoTable) ProtoMessage() {}
+
+func (x *DynoTable) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_design_proto_msgTypes[11]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use DynoTable.ProtoReflect.Descriptor instead.
+func (*DynoTable) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{11}
+}
+
+func (x *DynoTable) GetVelocityMPerS() []float64 {
+	if x != nil {
+		return x.VelocityMPerS
+	}
+	return nil
+}
+
+func (x *DynoTable) GetRows() []*DynoRow {
+	if x != nil {
+		return x.Rows
+	}
+	return nil
+}
+
+// DynoRow is one click's forces at the table's speeds.
+type DynoRow struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Damping force magnitude at each speed (N, >= 0).
+	ForceN        []float64 `protobuf:"fixed64,1,rep,packed,name=force_n,json=forceN,proto3" json:"force_n,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *DynoRow) Reset() {
+	*x = DynoRow{}
+	mi := &file_dampfront_v1_design_proto_msgTypes[12]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *DynoRow) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*DynoRow) ProtoMessage() {}
+
+func (x *DynoRow) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_design_proto_msgTypes[12]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use DynoRow.ProtoReflect.Descriptor instead.
+func (*DynoRow) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{12}
+}
+
+func (x *DynoRow) GetForceN() []float64 {
+	if x != nil {
+		return x.ForceN
+	}
+	return nil
+}
+
+// DamperAdjusters are the adjusters of one axle's dampers.
+type DamperAdjusters struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Low-speed bump adjuster.
+	LowBump *Adjuster `protobuf:"bytes,1,opt,name=low_bump,json=lowBump,proto3" json:"low_bump,omitempty"`
+	// Low-speed rebound adjuster.
+	LowRebound *Adjuster `protobuf:"bytes,2,opt,name=low_rebound,json=lowRebound,proto3" json:"low_rebound,omitempty"`
+	// High-speed bump adjuster.
+	HighBump *Adjuster `protobuf:"bytes,3,opt,name=high_bump,json=highBump,proto3" json:"high_bump,omitempty"`
+	// High-speed rebound adjuster.
+	HighRebound   *Adjuster `protobuf:"bytes,4,opt,name=high_rebound,json=highRebound,proto3" json:"high_rebound,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *DamperAdjusters) Reset() {
+	*x = DamperAdjusters{}
+	mi := &file_dampfront_v1_design_proto_msgTypes[13]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *DamperAdjusters) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*DamperAdjusters) ProtoMessage() {}
+
+func (x *DamperAdjusters) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_design_proto_msgTypes[13]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use DamperAdjusters.ProtoReflect.Descriptor instead.
+func (*DamperAdjusters) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{13}
+}
+
+func (x *DamperAdjusters) GetLowBump() *Adjuster {
+	if x != nil {
+		return x.LowBump
+	}
+	return nil
+}
+
+func (x *DamperAdjusters) GetLowRebound() *Adjuster {
+	if x != nil {
+		return x.LowRebound
+	}
+	return nil
+}
+
+func (x *DamperAdjusters) GetHighBump() *Adjuster {
+	if x != nil {
+		return x.HighBump
+	}
+	return nil
+}
+
+func (x *DamperAdjusters) GetHighRebound() *Adjuster {
+	if x != nil {
+		return x.HighRebound
+	}
+	return nil
+}
+
+// Adjusters are the dampers' adjusters and clicks, per axle.
+type Adjusters struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Front dampers.
+	Front *DamperAdjusters `protobuf:"bytes,1,opt,name=front,proto3" json:"front,omitempty"`
+	// Rear dampers.
+	Rear          *DamperAdjusters `protobuf:"bytes,2,opt,name=rear,proto3" json:"rear,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *Adjusters) Reset() {
+	*x = Adjusters{}
+	mi := &file_dampfront_v1_design_proto_msgTypes[14]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *Adjusters) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*Adjusters) ProtoMessage() {}
+
+func (x *Adjusters) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_design_proto_msgTypes[14]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use Adjusters.ProtoReflect.Descriptor instead.
+func (*Adjusters) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{14}
+}
+
+func (x *Adjusters) GetFront() *DamperAdjusters {
+	if x != nil {
+		return x.Front
+	}
+	return nil
+}
+
+func (x *Adjusters) GetRear() *DamperAdjusters {
+	if x != nil {
+		return x.Rear
+	}
+	return nil
+}
+
 // CurveSettings tabulate the damper force-velocity curves.
 type CurveSettings struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -1061,7 +1547,7 @@ type CurveSettings struct {
 
 func (x *CurveSettings) Reset() {
 	*x = CurveSettings{}
-	mi := &file_dampfront_v1_design_proto_msgTypes[9]
+	mi := &file_dampfront_v1_design_proto_msgTypes[15]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1073,7 +1559,7 @@ func (x *CurveSettings) String() string {
 func (*CurveSettings) ProtoMessage() {}
 
 func (x *CurveSettings) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_design_proto_msgTypes[9]
+	mi := &file_dampfront_v1_design_proto_msgTypes[15]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1086,7 +1572,7 @@ func (x *CurveSettings) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use CurveSettings.ProtoReflect.Descriptor instead.
 func (*CurveSettings) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{9}
+	return file_dampfront_v1_design_proto_rawDescGZIP(), []int{15}
 }
 
 func (x *CurveSettings) GetMaxVelocityMPerS() float64 {
@@ -1116,7 +1602,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"front_bump\x18\x01 \x01(\v2\x13.dampfront.v1.RangeR\tfrontBump\x128\n" +
 	"\rfront_rebound\x18\x02 \x01(\v2\x13.dampfront.v1.RangeR\ffrontRebound\x120\n" +
 	"\trear_bump\x18\x03 \x01(\v2\x13.dampfront.v1.RangeR\brearBump\x126\n" +
-	"\frear_rebound\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\vrearRebound\"\x9d\x03\n" +
+	"\frear_rebound\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\vrearRebound\"\xc3\x04\n" +
 	"\vDesignSpace\x121\n" +
 	"\x06ratios\x18\x01 \x01(\v2\x19.dampfront.v1.RatioBoundsR\x06ratios\x12\x1c\n" +
 	"\tsymmetric\x18\x02 \x01(\bR\tsymmetric\x12?\n" +
@@ -1124,7 +1610,10 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x11rear_knee_m_per_s\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\rrearKneeMPerS\x12J\n" +
 	"\x17front_high_speed_factor\x18\x05 \x01(\v2\x13.dampfront.v1.RangeR\x14frontHighSpeedFactor\x12H\n" +
 	"\x16rear_high_speed_factor\x18\x06 \x01(\v2\x13.dampfront.v1.RangeR\x13rearHighSpeedFactor\x12'\n" +
-	"\x04base\x18\a \x01(\v2\x13.dampfront.v1.SetupR\x04base\"\x9b\x02\n" +
+	"\x04base\x18\a \x01(\v2\x13.dampfront.v1.SetupR\x04base\x12$\n" +
+	"\x0esnap_to_clicks\x18\b \x01(\bR\fsnapToClicks\x12?\n" +
+	"\x11front_heave_ratio\x18\x14 \x01(\v2\x13.dampfront.v1.RangeR\x0ffrontHeaveRatio\x12=\n" +
+	"\x10rear_heave_ratio\x18\x15 \x01(\v2\x13.dampfront.v1.RangeR\x0erearHeaveRatio\"\xac\x04\n" +
 	"\vAxleDamping\x12\x1d\n" +
 	"\n" +
 	"bump_ratio\x18\x01 \x01(\x01R\tbumpRatio\x12#\n" +
@@ -1132,10 +1621,26 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x11knee_bump_m_per_s\x18\x03 \x01(\x01R\rkneeBumpMPerS\x12.\n" +
 	"\x14knee_rebound_m_per_s\x18\x04 \x01(\x01R\x10kneeReboundMPerS\x123\n" +
 	"\x16high_speed_bump_factor\x18\x05 \x01(\x01R\x13highSpeedBumpFactor\x129\n" +
-	"\x19high_speed_rebound_factor\x18\x06 \x01(\x01R\x16highSpeedReboundFactor\"g\n" +
+	"\x19high_speed_rebound_factor\x18\x06 \x01(\x01R\x16highSpeedReboundFactor\x12:\n" +
+	"\vstages_bump\x18\a \x03(\v2\x19.dampfront.v1.DamperStageR\n" +
+	"stagesBump\x12@\n" +
+	"\x0estages_rebound\x18\b \x03(\v2\x19.dampfront.v1.DamperStageR\rstagesRebound\x12%\n" +
+	"\x0fblow_off_bump_n\x18\t \x01(\x01R\fblowOffBumpN\x12+\n" +
+	"\x12blow_off_rebound_n\x18\n" +
+	" \x01(\x01R\x0fblowOffReboundN\x12\x1d\n" +
+	"\n" +
+	"friction_n\x18\v \x01(\x01R\tfrictionN\x12\x1e\n" +
+	"\vgas_force_n\x18\f \x01(\x01R\tgasForceN\"N\n" +
+	"\vDamperStage\x12'\n" +
+	"\x10velocity_m_per_s\x18\x01 \x01(\x01R\rvelocityMPerS\x12\x16\n" +
+	"\x06factor\x18\x02 \x01(\x01R\x06factor\"\xdd\x01\n" +
 	"\x05Setup\x12/\n" +
 	"\x05front\x18\x01 \x01(\v2\x19.dampfront.v1.AxleDampingR\x05front\x12-\n" +
-	"\x04rear\x18\x02 \x01(\v2\x19.dampfront.v1.AxleDampingR\x04rear\"\xd9\x01\n" +
+	"\x04rear\x18\x02 \x01(\v2\x19.dampfront.v1.AxleDampingR\x04rear\x12:\n" +
+	"\vfront_heave\x18\x14 \x01(\v2\x19.dampfront.v1.AxleDampingR\n" +
+	"frontHeave\x128\n" +
+	"\n" +
+	"rear_heave\x18\x15 \x01(\v2\x19.dampfront.v1.AxleDampingR\trearHeave\"\xd9\x01\n" +
 	"\tObjective\x12/\n" +
 	"\x04kind\x18\x01 \x01(\x0e2\x1b.dampfront.v1.ObjectiveKindR\x04kind\x12;\n" +
 	"\vaggregation\x18\x02 \x01(\x0e2\x19.dampfront.v1.AggregationR\vaggregation\x12/\n" +
@@ -1159,7 +1664,26 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x12bump_softest_ratio\x18\x01 \x01(\x01R\x10bumpSoftestRatio\x12.\n" +
 	"\x13bump_stiffest_ratio\x18\x02 \x01(\x01R\x11bumpStiffestRatio\x122\n" +
 	"\x15rebound_softest_ratio\x18\x03 \x01(\x01R\x13reboundSoftestRatio\x124\n" +
-	"\x16rebound_stiffest_ratio\x18\x04 \x01(\x01R\x14reboundStiffestRatio\"W\n" +
+	"\x16rebound_stiffest_ratio\x18\x04 \x01(\x01R\x14reboundStiffestRatio\"\x85\x01\n" +
+	"\bAdjuster\x12\x16\n" +
+	"\x06clicks\x18\x01 \x01(\x05R\x06clicks\x12\x1a\n" +
+	"\bstiffest\x18\x02 \x01(\x01R\bstiffest\x12\x18\n" +
+	"\asoftest\x18\x03 \x01(\x01R\asoftest\x12+\n" +
+	"\x04dyno\x18\x04 \x01(\v2\x17.dampfront.v1.DynoTableR\x04dyno\"_\n" +
+	"\tDynoTable\x12'\n" +
+	"\x10velocity_m_per_s\x18\x01 \x03(\x01R\rvelocityMPerS\x12)\n" +
+	"\x04rows\x18\x02 \x03(\v2\x15.dampfront.v1.DynoRowR\x04rows\"\"\n" +
+	"\aDynoRow\x12\x17\n" +
+	"\aforce_n\x18\x01 \x03(\x01R\x06forceN\"\xed\x01\n" +
+	"\x0fDamperAdjusters\x121\n" +
+	"\blow_bump\x18\x01 \x01(\v2\x16.dampfront.v1.AdjusterR\alowBump\x127\n" +
+	"\vlow_rebound\x18\x02 \x01(\v2\x16.dampfront.v1.AdjusterR\n" +
+	"lowRebound\x123\n" +
+	"\thigh_bump\x18\x03 \x01(\v2\x16.dampfront.v1.AdjusterR\bhighBump\x129\n" +
+	"\fhigh_rebound\x18\x04 \x01(\v2\x16.dampfront.v1.AdjusterR\vhighRebound\"s\n" +
+	"\tAdjusters\x123\n" +
+	"\x05front\x18\x01 \x01(\v2\x1d.dampfront.v1.DamperAdjustersR\x05front\x121\n" +
+	"\x04rear\x18\x02 \x01(\v2\x1d.dampfront.v1.DamperAdjustersR\x04rear\"W\n" +
 	"\rCurveSettings\x12.\n" +
 	"\x14max_velocity_m_per_s\x18\x01 \x01(\x01R\x10maxVelocityMPerS\x12\x16\n" +
 	"\x06points\x18\x02 \x01(\x05R\x06points*\xa4\x03\n" +
@@ -1215,7 +1739,7 @@ func file_dampfront_v1_design_proto_rawDescGZIP() []byte {
 }
 
 var file_dampfront_v1_design_proto_enumTypes = make([]protoimpl.EnumInfo, 4)
-var file_dampfront_v1_design_proto_msgTypes = make([]protoimpl.MessageInfo, 10)
+var file_dampfront_v1_design_proto_msgTypes = make([]protoimpl.MessageInfo, 16)
 var file_dampfront_v1_design_proto_goTypes = []any{
 	(ObjectiveKind)(0),          // 0: dampfront.v1.ObjectiveKind
 	(Aggregation)(0),            // 1: dampfront.v1.Aggregation
@@ -1225,12 +1749,18 @@ var file_dampfront_v1_design_proto_goTypes = []any{
 	(*RatioBounds)(nil),         // 5: dampfront.v1.RatioBounds
 	(*DesignSpace)(nil),         // 6: dampfront.v1.DesignSpace
 	(*AxleDamping)(nil),         // 7: dampfront.v1.AxleDamping
-	(*Setup)(nil),               // 8: dampfront.v1.Setup
-	(*Objective)(nil),           // 9: dampfront.v1.Objective
-	(*ConstraintShortfall)(nil), // 10: dampfront.v1.ConstraintShortfall
-	(*Constraint)(nil),          // 11: dampfront.v1.Constraint
-	(*Adjustment)(nil),          // 12: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),       // 13: dampfront.v1.CurveSettings
+	(*DamperStage)(nil),         // 8: dampfront.v1.DamperStage
+	(*Setup)(nil),               // 9: dampfront.v1.Setup
+	(*Objective)(nil),           // 10: dampfront.v1.Objective
+	(*ConstraintShortfall)(nil), // 11: dampfront.v1.ConstraintShortfall
+	(*Constraint)(nil),          // 12: dampfront.v1.Constraint
+	(*Adjustment)(nil),          // 13: dampfront.v1.Adjustment
+	(*Adjuster)(nil),            // 14: dampfront.v1.Adjuster
+	(*DynoTable)(nil),           // 15: dampfront.v1.DynoTable
+	(*DynoRow)(nil),             // 16: dampfront.v1.DynoRow
+	(*DamperAdjusters)(nil),     // 17: dampfront.v1.DamperAdjusters
+	(*Adjusters)(nil),           // 18: dampfront.v1.Adjusters
+	(*CurveSettings)(nil),       // 19: dampfront.v1.CurveSettings
 }
 var file_dampfront_v1_design_proto_depIdxs = []int32{
 	4,  // 0: dampfront.v1.RatioBounds.front_bump:type_name -> dampfront.v1.Range
@@ -1242,19 +1772,33 @@ var file_dampfront_v1_design_proto_depIdxs = []int32{
 	4,  // 6: dampfront.v1.DesignSpace.rear_knee_m_per_s:type_name -> dampfront.v1.Range
 	4,  // 7: dampfront.v1.DesignSpace.front_high_speed_factor:type_name -> dampfront.v1.Range
 	4,  // 8: dampfront.v1.DesignSpace.rear_high_speed_factor:type_name -> dampfront.v1.Range
-	8,  // 9: dampfront.v1.DesignSpace.base:type_name -> dampfront.v1.Setup
-	7,  // 10: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
-	7,  // 11: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
-	0,  // 12: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
-	1,  // 13: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
-	2,  // 14: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
-	2,  // 15: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
-	3,  // 16: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
-	17, // [17:17] is the sub-list for method output_type
-	17, // [17:17] is the sub-list for method input_type
-	17, // [17:17] is the sub-list for extension type_name
-	17, // [17:17] is the sub-list for extension extendee
-	0,  // [0:17] is the sub-list for field type_name
+	9,  // 9: dampfront.v1.DesignSpace.base:type_name -> dampfront.v1.Setup
+	4,  // 10: dampfront.v1.DesignSpace.front_heave_ratio:type_name -> dampfront.v1.Range
+	4,  // 11: dampfront.v1.DesignSpace.rear_heave_ratio:type_name -> dampfront.v1.Range
+	8,  // 12: dampfront.v1.AxleDamping.stages_bump:type_name -> dampfront.v1.DamperStage
+	8,  // 13: dampfront.v1.AxleDamping.stages_rebound:type_name -> dampfront.v1.DamperStage
+	7,  // 14: dampfront.v1.Setup.front:type_name -> dampfront.v1.AxleDamping
+	7,  // 15: dampfront.v1.Setup.rear:type_name -> dampfront.v1.AxleDamping
+	7,  // 16: dampfront.v1.Setup.front_heave:type_name -> dampfront.v1.AxleDamping
+	7,  // 17: dampfront.v1.Setup.rear_heave:type_name -> dampfront.v1.AxleDamping
+	0,  // 18: dampfront.v1.Objective.kind:type_name -> dampfront.v1.ObjectiveKind
+	1,  // 19: dampfront.v1.Objective.aggregation:type_name -> dampfront.v1.Aggregation
+	2,  // 20: dampfront.v1.ConstraintShortfall.kind:type_name -> dampfront.v1.ConstraintKind
+	2,  // 21: dampfront.v1.Constraint.kind:type_name -> dampfront.v1.ConstraintKind
+	3,  // 22: dampfront.v1.Constraint.mode:type_name -> dampfront.v1.ModeName
+	15, // 23: dampfront.v1.Adjuster.dyno:type_name -> dampfront.v1.DynoTable
+	16, // 24: dampfront.v1.DynoTable.rows:type_name -> dampfront.v1.DynoRow
+	14, // 25: dampfront.v1.DamperAdjusters.low_bump:type_name -> dampfront.v1.Adjuster
+	14, // 26: dampfront.v1.DamperAdjusters.low_rebound:type_name -> dampfront.v1.Adjuster
+	14, // 27: dampfront.v1.DamperAdjusters.high_bump:type_name -> dampfront.v1.Adjuster
+	14, // 28: dampfront.v1.DamperAdjusters.high_rebound:type_name -> dampfront.v1.Adjuster
+	17, // 29: dampfront.v1.Adjusters.front:type_name -> dampfront.v1.DamperAdjusters
+	17, // 30: dampfront.v1.Adjusters.rear:type_name -> dampfront.v1.DamperAdjusters
+	31, // [31:31] is the sub-list for method output_type
+	31, // [31:31] is the sub-list for method input_type
+	31, // [31:31] is the sub-list for extension type_name
+	31, // [31:31] is the sub-list for extension extendee
+	0,  // [0:31] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_design_proto_init() }
@@ -1268,7 +1812,7 @@ func file_dampfront_v1_design_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_design_proto_rawDesc), len(file_dampfront_v1_design_proto_rawDesc)),
 			NumEnums:      4,
-			NumMessages:   10,
+			NumMessages:   16,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

@@ -339,6 +339,9 @@ type JobSpec struct {
 	// The setup that objectives with AGGREGATION_NORMALISED are taken
 	// relative to; absent means the middle of the design space's bounds.
 	ReferenceSetup *Setup `protobuf:"bytes,12,opt,name=reference_setup,json=referenceSetup,proto3" json:"reference_setup,omitempty"`
+	// The dampers' adjusters and clicks; with them every solution reports
+	// its clicks, and the out-of-band check uses them instead of adjustment.
+	Adjusters *Adjusters `protobuf:"bytes,13,opt,name=adjusters,proto3" json:"adjusters,omitempty"`
 	// Driver-input cases, beside the road cases (field numbers from 20 on).
 	Manoeuvres []*Manoeuvre `protobuf:"bytes,20,rep,name=manoeuvres,proto3" json:"manoeuvres,omitempty"`
 	// Kerb cases.
@@ -461,6 +464,13 @@ func (x *JobSpec) GetCurves() *CurveSettings {
 func (x *JobSpec) GetReferenceSetup() *Setup {
 	if x != nil {
 		return x.ReferenceSetup
+	}
+	return nil
+}
+
+func (x *JobSpec) GetAdjusters() *Adjusters {
+	if x != nil {
+		return x.Adjusters
 	}
 	return nil
 }
@@ -949,7 +959,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\xd0\x06\n" +
+	"\r_mutation_eta\"\x87\a\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -968,7 +978,8 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	" \x01(\v2\x18.dampfront.v1.AdjustmentR\n" +
 	"adjustment\x123\n" +
 	"\x06curves\x18\v \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curves\x12<\n" +
-	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x127\n" +
+	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x125\n" +
+	"\tadjusters\x18\r \x01(\v2\x17.dampfront.v1.AdjustersR\tadjusters\x127\n" +
 	"\n" +
 	"manoeuvres\x18\x14 \x03(\v2\x17.dampfront.v1.ManoeuvreR\n" +
 	"manoeuvres\x12(\n" +
@@ -1077,10 +1088,11 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Adjustment)(nil),            // 15: dampfront.v1.Adjustment
 	(*CurveSettings)(nil),         // 16: dampfront.v1.CurveSettings
 	(*Setup)(nil),                 // 17: dampfront.v1.Setup
-	(*Manoeuvre)(nil),             // 18: dampfront.v1.Manoeuvre
-	(*Kerb)(nil),                  // 19: dampfront.v1.Kerb
-	(*timestamppb.Timestamp)(nil), // 20: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 21: dampfront.v1.ConstraintShortfall
+	(*Adjusters)(nil),             // 18: dampfront.v1.Adjusters
+	(*Manoeuvre)(nil),             // 19: dampfront.v1.Manoeuvre
+	(*Kerb)(nil),                  // 20: dampfront.v1.Kerb
+	(*timestamppb.Timestamp)(nil), // 21: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 22: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -1094,24 +1106,25 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	15, // 8: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
 	16, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
 	17, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
-	18, // 11: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
-	19, // 12: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
-	0,  // 13: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	8,  // 14: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	20, // 15: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	20, // 16: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	20, // 17: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	6,  // 18: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 19: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	6,  // 20: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	21, // 21: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 22: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	20, // 23: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	24, // [24:24] is the sub-list for method output_type
-	24, // [24:24] is the sub-list for method input_type
-	24, // [24:24] is the sub-list for extension type_name
-	24, // [24:24] is the sub-list for extension extendee
-	0,  // [0:24] is the sub-list for field type_name
+	18, // 11: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
+	19, // 12: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
+	20, // 13: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
+	0,  // 14: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	8,  // 15: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	21, // 16: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	21, // 17: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	21, // 18: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	6,  // 19: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 20: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	6,  // 21: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	22, // 22: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 23: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	21, // 24: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	25, // [25:25] is the sub-list for method output_type
+	25, // [25:25] is the sub-list for method input_type
+	25, // [25:25] is the sub-list for extension type_name
+	25, // [25:25] is the sub-list for extension extendee
+	0,  // [0:25] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }

@@ -163,6 +163,14 @@ type Solution struct {
 	// Every violated constraint, in the job's order, with its worst value and
 	// road case; empty when every constraint is met.
 	Shortfalls []*ConstraintShortfall `protobuf:"bytes,11,rep,name=shortfalls,proto3" json:"shortfalls,omitempty"`
+	// The click of each adjuster per corner; empty without adjusters.
+	Clicks []*CornerClicks `protobuf:"bytes,12,rep,name=clicks,proto3" json:"clicks,omitempty"`
+	// Where the dampers lie outside their adjuster range (the job's
+	// adjusters, else its adjustment band), checked at 25, 50, 100, 150,
+	// 200, 250 and 300 mm/s: per corner and direction out of it, the point
+	// furthest out relative to the band. Empty when inside or without a
+	// band; each is also a warning.
+	OutOfBand []*BandExcess `protobuf:"bytes,13,rep,name=out_of_band,json=outOfBand,proto3" json:"out_of_band,omitempty"`
 	// Metrics on the manoeuvre and kerb cases, manoeuvres first, in the
 	// spec's order (field numbers from 20 on).
 	TransientMetrics []*TransientMetrics `protobuf:"bytes,20,rep,name=transient_metrics,json=transientMetrics,proto3" json:"transient_metrics,omitempty"`
@@ -277,11 +285,218 @@ func (x *Solution) GetShortfalls() []*ConstraintShortfall {
 	return nil
 }
 
+func (x *Solution) GetClicks() []*CornerClicks {
+	if x != nil {
+		return x.Clicks
+	}
+	return nil
+}
+
+func (x *Solution) GetOutOfBand() []*BandExcess {
+	if x != nil {
+		return x.OutOfBand
+	}
+	return nil
+}
+
 func (x *Solution) GetTransientMetrics() []*TransientMetrics {
 	if x != nil {
 		return x.TransientMetrics
 	}
 	return nil
+}
+
+// CornerClicks is the click of each adjuster of one corner's damper,
+// counted from the stiffest (0); -1 where there is no such adjuster.
+type CornerClicks struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Which corner.
+	Corner CornerPosition `protobuf:"varint,1,opt,name=corner,proto3,enum=dampfront.v1.CornerPosition" json:"corner,omitempty"`
+	// Low-speed bump click.
+	LowBump int32 `protobuf:"varint,2,opt,name=low_bump,json=lowBump,proto3" json:"low_bump,omitempty"`
+	// Low-speed rebound click.
+	LowRebound int32 `protobuf:"varint,3,opt,name=low_rebound,json=lowRebound,proto3" json:"low_rebound,omitempty"`
+	// High-speed bump click.
+	HighBump int32 `protobuf:"varint,4,opt,name=high_bump,json=highBump,proto3" json:"high_bump,omitempty"`
+	// High-speed rebound click.
+	HighRebound   int32 `protobuf:"varint,5,opt,name=high_rebound,json=highRebound,proto3" json:"high_rebound,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *CornerClicks) Reset() {
+	*x = CornerClicks{}
+	mi := &file_dampfront_v1_result_proto_msgTypes[1]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *CornerClicks) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*CornerClicks) ProtoMessage() {}
+
+func (x *CornerClicks) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_result_proto_msgTypes[1]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use CornerClicks.ProtoReflect.Descriptor instead.
+func (*CornerClicks) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{1}
+}
+
+func (x *CornerClicks) GetCorner() CornerPosition {
+	if x != nil {
+		return x.Corner
+	}
+	return CornerPosition_CORNER_POSITION_UNSPECIFIED
+}
+
+func (x *CornerClicks) GetLowBump() int32 {
+	if x != nil {
+		return x.LowBump
+	}
+	return 0
+}
+
+func (x *CornerClicks) GetLowRebound() int32 {
+	if x != nil {
+		return x.LowRebound
+	}
+	return 0
+}
+
+func (x *CornerClicks) GetHighBump() int32 {
+	if x != nil {
+		return x.HighBump
+	}
+	return 0
+}
+
+func (x *CornerClicks) GetHighRebound() int32 {
+	if x != nil {
+		return x.HighRebound
+	}
+	return 0
+}
+
+// BandExcess is where one corner's damper, in one direction, lies
+// furthest outside its adjuster range.
+type BandExcess struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Which corner.
+	Corner CornerPosition `protobuf:"varint,1,opt,name=corner,proto3,enum=dampfront.v1.CornerPosition" json:"corner,omitempty"`
+	// Rebound (else bump).
+	Rebound bool `protobuf:"varint,2,opt,name=rebound,proto3" json:"rebound,omitempty"`
+	// Damper speed of the point.
+	SpeedMPerS float64 `protobuf:"fixed64,3,opt,name=speed_m_per_s,json=speedMPerS,proto3" json:"speed_m_per_s,omitempty"`
+	// The setup's damping force there (magnitude).
+	ForceN float64 `protobuf:"fixed64,4,opt,name=force_n,json=forceN,proto3" json:"force_n,omitempty"`
+	// The softest setting's force there.
+	SoftestForceN float64 `protobuf:"fixed64,5,opt,name=softest_force_n,json=softestForceN,proto3" json:"softest_force_n,omitempty"`
+	// The stiffest setting's force there.
+	StiffestForceN float64 `protobuf:"fixed64,6,opt,name=stiffest_force_n,json=stiffestForceN,proto3" json:"stiffest_force_n,omitempty"`
+	// How far outside the band (> 0).
+	OverN float64 `protobuf:"fixed64,7,opt,name=over_n,json=overN,proto3" json:"over_n,omitempty"`
+	// Above the stiffest setting (else below the softest).
+	Above         bool `protobuf:"varint,8,opt,name=above,proto3" json:"above,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *BandExcess) Reset() {
+	*x = BandExcess{}
+	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *BandExcess) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*BandExcess) ProtoMessage() {}
+
+func (x *BandExcess) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use BandExcess.ProtoReflect.Descriptor instead.
+func (*BandExcess) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{2}
+}
+
+func (x *BandExcess) GetCorner() CornerPosition {
+	if x != nil {
+		return x.Corner
+	}
+	return CornerPosition_CORNER_POSITION_UNSPECIFIED
+}
+
+func (x *BandExcess) GetRebound() bool {
+	if x != nil {
+		return x.Rebound
+	}
+	return false
+}
+
+func (x *BandExcess) GetSpeedMPerS() float64 {
+	if x != nil {
+		return x.SpeedMPerS
+	}
+	return 0
+}
+
+func (x *BandExcess) GetForceN() float64 {
+	if x != nil {
+		return x.ForceN
+	}
+	return 0
+}
+
+func (x *BandExcess) GetSoftestForceN() float64 {
+	if x != nil {
+		return x.SoftestForceN
+	}
+	return 0
+}
+
+func (x *BandExcess) GetStiffestForceN() float64 {
+	if x != nil {
+		return x.StiffestForceN
+	}
+	return 0
+}
+
+func (x *BandExcess) GetOverN() float64 {
+	if x != nil {
+		return x.OverN
+	}
+	return 0
+}
+
+func (x *BandExcess) GetAbove() bool {
+	if x != nil {
+		return x.Above
+	}
+	return false
 }
 
 // CaseMetrics are the ride metrics of one setup on one road case. Standard
@@ -326,7 +541,7 @@ type CaseMetrics struct {
 
 func (x *CaseMetrics) Reset() {
 	*x = CaseMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[1]
+	mi := &file_dampfront_v1_result_proto_msgTypes[3]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -338,7 +553,7 @@ func (x *CaseMetrics) String() string {
 func (*CaseMetrics) ProtoMessage() {}
 
 func (x *CaseMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[1]
+	mi := &file_dampfront_v1_result_proto_msgTypes[3]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -351,7 +566,7 @@ func (x *CaseMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use CaseMetrics.ProtoReflect.Descriptor instead.
 func (*CaseMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{1}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{3}
 }
 
 func (x *CaseMetrics) GetRoadCase() string {
@@ -473,7 +688,7 @@ type AeroMetrics struct {
 
 func (x *AeroMetrics) Reset() {
 	*x = AeroMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	mi := &file_dampfront_v1_result_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -485,7 +700,7 @@ func (x *AeroMetrics) String() string {
 func (*AeroMetrics) ProtoMessage() {}
 
 func (x *AeroMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[2]
+	mi := &file_dampfront_v1_result_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -498,7 +713,7 @@ func (x *AeroMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroMetrics.ProtoReflect.Descriptor instead.
 func (*AeroMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{2}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *AeroMetrics) GetBalanceAtSpeed() float64 {
@@ -558,7 +773,7 @@ type ReferencePointMetrics struct {
 
 func (x *ReferencePointMetrics) Reset() {
 	*x = ReferencePointMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	mi := &file_dampfront_v1_result_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -570,7 +785,7 @@ func (x *ReferencePointMetrics) String() string {
 func (*ReferencePointMetrics) ProtoMessage() {}
 
 func (x *ReferencePointMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[3]
+	mi := &file_dampfront_v1_result_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -583,7 +798,7 @@ func (x *ReferencePointMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use ReferencePointMetrics.ProtoReflect.Descriptor instead.
 func (*ReferencePointMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *ReferencePointMetrics) GetName() string {
@@ -658,7 +873,7 @@ type OperatingPoint struct {
 
 func (x *OperatingPoint) Reset() {
 	*x = OperatingPoint{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[4]
+	mi := &file_dampfront_v1_result_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -670,7 +885,7 @@ func (x *OperatingPoint) String() string {
 func (*OperatingPoint) ProtoMessage() {}
 
 func (x *OperatingPoint) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[4]
+	mi := &file_dampfront_v1_result_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -683,7 +898,7 @@ func (x *OperatingPoint) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use OperatingPoint.ProtoReflect.Descriptor instead.
 func (*OperatingPoint) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *OperatingPoint) GetFrontRideHeightM() float64 {
@@ -808,7 +1023,7 @@ type CornerMetrics struct {
 
 func (x *CornerMetrics) Reset() {
 	*x = CornerMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[5]
+	mi := &file_dampfront_v1_result_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -820,7 +1035,7 @@ func (x *CornerMetrics) String() string {
 func (*CornerMetrics) ProtoMessage() {}
 
 func (x *CornerMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[5]
+	mi := &file_dampfront_v1_result_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -833,7 +1048,7 @@ func (x *CornerMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use CornerMetrics.ProtoReflect.Descriptor instead.
 func (*CornerMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *CornerMetrics) GetCorner() CornerPosition {
@@ -934,13 +1149,28 @@ type AxleMetrics struct {
 	RideHeightSdM float64 `protobuf:"fixed64,1,opt,name=ride_height_sd_m,json=rideHeightSdM,proto3" json:"ride_height_sd_m,omitempty"`
 	// Mean ride-height change, up positive.
 	RideHeightShiftM float64 `protobuf:"fixed64,2,opt,name=ride_height_shift_m,json=rideHeightShiftM,proto3" json:"ride_height_shift_m,omitempty"`
-	unknownFields    protoimpl.UnknownFields
-	sizeCache        protoimpl.SizeCache
+	// Heave element travel standard deviation at the element; 0 without
+	// a heave element on the axle.
+	HeaveTravelSdM float64 `protobuf:"fixed64,20,opt,name=heave_travel_sd_m,json=heaveTravelSdM,proto3" json:"heave_travel_sd_m,omitempty"`
+	// Heave element velocity standard deviation at the element.
+	HeaveVelocitySdMPerS float64 `protobuf:"fixed64,21,opt,name=heave_velocity_sd_m_per_s,json=heaveVelocitySdMPerS,proto3" json:"heave_velocity_sd_m_per_s,omitempty"`
+	// Probability that the heave element's travel reaches its packer
+	// (Gaussian, from the gap left at speed, incl. the mean shift); 0 when
+	// no packer gap is given.
+	PackerProbability float64 `protobuf:"fixed64,22,opt,name=packer_probability,json=packerProbability,proto3" json:"packer_probability,omitempty"`
+	// Equivalent linear slope of the heave damper on the axle's mean wheel
+	// travel at the fixed point; 0 without a heave damper.
+	HeaveEquivalentDampingNSPerM float64 `protobuf:"fixed64,23,opt,name=heave_equivalent_damping_n_s_per_m,json=heaveEquivalentDampingNSPerM,proto3" json:"heave_equivalent_damping_n_s_per_m,omitempty"`
+	// Packer gap left at speed (the downforce uses part of it); 0 when no
+	// packer gap is given.
+	PackerGapAtSpeedM float64 `protobuf:"fixed64,24,opt,name=packer_gap_at_speed_m,json=packerGapAtSpeedM,proto3" json:"packer_gap_at_speed_m,omitempty"`
+	unknownFields     protoimpl.UnknownFields
+	sizeCache         protoimpl.SizeCache
 }
 
 func (x *AxleMetrics) Reset() {
 	*x = AxleMetrics{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[6]
+	mi := &file_dampfront_v1_result_proto_msgTypes[8]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -952,7 +1182,7 @@ func (x *AxleMetrics) String() string {
 func (*AxleMetrics) ProtoMessage() {}
 
 func (x *AxleMetrics) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[6]
+	mi := &file_dampfront_v1_result_proto_msgTypes[8]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -965,7 +1195,7 @@ func (x *AxleMetrics) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AxleMetrics.ProtoReflect.Descriptor instead.
 func (*AxleMetrics) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{8}
 }
 
 func (x *AxleMetrics) GetRideHeightSdM() float64 {
@@ -978,6 +1208,41 @@ func (x *AxleMetrics) GetRideHeightSdM() float64 {
 func (x *AxleMetrics) GetRideHeightShiftM() float64 {
 	if x != nil {
 		return x.RideHeightShiftM
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetHeaveTravelSdM() float64 {
+	if x != nil {
+		return x.HeaveTravelSdM
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetHeaveVelocitySdMPerS() float64 {
+	if x != nil {
+		return x.HeaveVelocitySdMPerS
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetPackerProbability() float64 {
+	if x != nil {
+		return x.PackerProbability
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetHeaveEquivalentDampingNSPerM() float64 {
+	if x != nil {
+		return x.HeaveEquivalentDampingNSPerM
+	}
+	return 0
+}
+
+func (x *AxleMetrics) GetPackerGapAtSpeedM() float64 {
+	if x != nil {
+		return x.PackerGapAtSpeedM
 	}
 	return 0
 }
@@ -1019,7 +1284,7 @@ type Mode struct {
 
 func (x *Mode) Reset() {
 	*x = Mode{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[7]
+	mi := &file_dampfront_v1_result_proto_msgTypes[9]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1031,7 +1296,7 @@ func (x *Mode) String() string {
 func (*Mode) ProtoMessage() {}
 
 func (x *Mode) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[7]
+	mi := &file_dampfront_v1_result_proto_msgTypes[9]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1044,7 +1309,7 @@ func (x *Mode) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Mode.ProtoReflect.Descriptor instead.
 func (*Mode) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{7}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{9}
 }
 
 func (x *Mode) GetName() string {
@@ -1136,13 +1401,25 @@ type DamperCurve struct {
 	HighSpeedBumpFactor float64 `protobuf:"fixed64,10,opt,name=high_speed_bump_factor,json=highSpeedBumpFactor,proto3" json:"high_speed_bump_factor,omitempty"`
 	// Rebound high-speed factor.
 	HighSpeedReboundFactor float64 `protobuf:"fixed64,11,opt,name=high_speed_rebound_factor,json=highSpeedReboundFactor,proto3" json:"high_speed_rebound_factor,omitempty"`
-	unknownFields          protoimpl.UnknownFields
-	sizeCache              protoimpl.SizeCache
+	// Further bump knees (a multi-stage curve).
+	StagesBump []*DamperStage `protobuf:"bytes,12,rep,name=stages_bump,json=stagesBump,proto3" json:"stages_bump,omitempty"`
+	// Further rebound knees.
+	StagesRebound []*DamperStage `protobuf:"bytes,13,rep,name=stages_rebound,json=stagesRebound,proto3" json:"stages_rebound,omitempty"`
+	// Bump blow-off force; 0 means none.
+	BlowOffBumpN float64 `protobuf:"fixed64,14,opt,name=blow_off_bump_n,json=blowOffBumpN,proto3" json:"blow_off_bump_n,omitempty"`
+	// Rebound blow-off force; 0 means none.
+	BlowOffReboundN float64 `protobuf:"fixed64,15,opt,name=blow_off_rebound_n,json=blowOffReboundN,proto3" json:"blow_off_rebound_n,omitempty"`
+	// Coulomb friction force, inside force_n.
+	FrictionN float64 `protobuf:"fixed64,16,opt,name=friction_n,json=frictionN,proto3" json:"friction_n,omitempty"`
+	// Gas force; not inside force_n (damping forces).
+	GasForceN     float64 `protobuf:"fixed64,17,opt,name=gas_force_n,json=gasForceN,proto3" json:"gas_force_n,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *DamperCurve) Reset() {
 	*x = DamperCurve{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[8]
+	mi := &file_dampfront_v1_result_proto_msgTypes[10]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1154,7 +1431,7 @@ func (x *DamperCurve) String() string {
 func (*DamperCurve) ProtoMessage() {}
 
 func (x *DamperCurve) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[8]
+	mi := &file_dampfront_v1_result_proto_msgTypes[10]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1167,7 +1444,7 @@ func (x *DamperCurve) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use DamperCurve.ProtoReflect.Descriptor instead.
 func (*DamperCurve) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{8}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{10}
 }
 
 func (x *DamperCurve) GetCorner() CornerPosition {
@@ -1247,6 +1524,48 @@ func (x *DamperCurve) GetHighSpeedReboundFactor() float64 {
 	return 0
 }
 
+func (x *DamperCurve) GetStagesBump() []*DamperStage {
+	if x != nil {
+		return x.StagesBump
+	}
+	return nil
+}
+
+func (x *DamperCurve) GetStagesRebound() []*DamperStage {
+	if x != nil {
+		return x.StagesRebound
+	}
+	return nil
+}
+
+func (x *DamperCurve) GetBlowOffBumpN() float64 {
+	if x != nil {
+		return x.BlowOffBumpN
+	}
+	return 0
+}
+
+func (x *DamperCurve) GetBlowOffReboundN() float64 {
+	if x != nil {
+		return x.BlowOffReboundN
+	}
+	return 0
+}
+
+func (x *DamperCurve) GetFrictionN() float64 {
+	if x != nil {
+		return x.FrictionN
+	}
+	return 0
+}
+
+func (x *DamperCurve) GetGasForceN() float64 {
+	if x != nil {
+		return x.GasForceN
+	}
+	return 0
+}
+
 // Front is (a page of) a job's Pareto front: the feasible solutions no
 // other feasible solution seen dominates, sorted by objectives.
 type Front struct {
@@ -1271,7 +1590,7 @@ type Front struct {
 
 func (x *Front) Reset() {
 	*x = Front{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[9]
+	mi := &file_dampfront_v1_result_proto_msgTypes[11]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1283,7 +1602,7 @@ func (x *Front) String() string {
 func (*Front) ProtoMessage() {}
 
 func (x *Front) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[9]
+	mi := &file_dampfront_v1_result_proto_msgTypes[11]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1296,7 +1615,7 @@ func (x *Front) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Front.ProtoReflect.Descriptor instead.
 func (*Front) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{9}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{11}
 }
 
 func (x *Front) GetJob() string {
@@ -1352,7 +1671,7 @@ var File_dampfront_v1_result_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\n" +
-	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x1cdampfront/v1/transient.proto\"\x94\x04\n" +
+	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x1cdampfront/v1/transient.proto\"\x82\x05\n" +
 	"\bSolution\x12\x14\n" +
 	"\x05index\x18\x01 \x01(\x05R\x05index\x12\x14\n" +
 	"\x05genes\x18\x02 \x03(\x01R\x05genes\x12)\n" +
@@ -1371,8 +1690,28 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	" \x03(\tR\bwarnings\x12A\n" +
 	"\n" +
 	"shortfalls\x18\v \x03(\v2!.dampfront.v1.ConstraintShortfallR\n" +
-	"shortfalls\x12K\n" +
-	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\"\xfe\x04\n" +
+	"shortfalls\x122\n" +
+	"\x06clicks\x18\f \x03(\v2\x1a.dampfront.v1.CornerClicksR\x06clicks\x128\n" +
+	"\vout_of_band\x18\r \x03(\v2\x18.dampfront.v1.BandExcessR\toutOfBand\x12K\n" +
+	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\"\xc0\x01\n" +
+	"\fCornerClicks\x124\n" +
+	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12\x19\n" +
+	"\blow_bump\x18\x02 \x01(\x05R\alowBump\x12\x1f\n" +
+	"\vlow_rebound\x18\x03 \x01(\x05R\n" +
+	"lowRebound\x12\x1b\n" +
+	"\thigh_bump\x18\x04 \x01(\x05R\bhighBump\x12!\n" +
+	"\fhigh_rebound\x18\x05 \x01(\x05R\vhighRebound\"\x97\x02\n" +
+	"\n" +
+	"BandExcess\x124\n" +
+	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12\x18\n" +
+	"\arebound\x18\x02 \x01(\bR\arebound\x12!\n" +
+	"\rspeed_m_per_s\x18\x03 \x01(\x01R\n" +
+	"speedMPerS\x12\x17\n" +
+	"\aforce_n\x18\x04 \x01(\x01R\x06forceN\x12&\n" +
+	"\x0fsoftest_force_n\x18\x05 \x01(\x01R\rsoftestForceN\x12(\n" +
+	"\x10stiffest_force_n\x18\x06 \x01(\x01R\x0estiffestForceN\x12\x15\n" +
+	"\x06over_n\x18\a \x01(\x01R\x05overN\x12\x14\n" +
+	"\x05above\x18\b \x01(\bR\x05above\"\xfe\x04\n" +
 	"\vCaseMetrics\x12\x1b\n" +
 	"\troad_case\x18\x01 \x01(\tR\broadCase\x125\n" +
 	"\acorners\x18\x02 \x03(\v2\x1b.dampfront.v1.CornerMetricsR\acorners\x12/\n" +
@@ -1433,10 +1772,15 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	" \x01(\x01R\x10meanDamperForceN\x12$\n" +
 	"\x0etravel_shift_m\x18\v \x01(\x01R\ftravelShiftM\x123\n" +
 	"\x16compression_at_speed_m\x18\f \x01(\x01R\x13compressionAtSpeedM\x125\n" +
-	"\x18bump_stop_gap_at_speed_m\x18\r \x01(\x01R\x13bumpStopGapAtSpeedM\"e\n" +
+	"\x18bump_stop_gap_at_speed_m\x18\r \x01(\x01R\x13bumpStopGapAtSpeedM\"\xf4\x02\n" +
 	"\vAxleMetrics\x12'\n" +
 	"\x10ride_height_sd_m\x18\x01 \x01(\x01R\rrideHeightSdM\x12-\n" +
-	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\"\x9f\x03\n" +
+	"\x13ride_height_shift_m\x18\x02 \x01(\x01R\x10rideHeightShiftM\x12)\n" +
+	"\x11heave_travel_sd_m\x18\x14 \x01(\x01R\x0eheaveTravelSdM\x127\n" +
+	"\x19heave_velocity_sd_m_per_s\x18\x15 \x01(\x01R\x14heaveVelocitySdMPerS\x12-\n" +
+	"\x12packer_probability\x18\x16 \x01(\x01R\x11packerProbability\x12H\n" +
+	"\"heave_equivalent_damping_n_s_per_m\x18\x17 \x01(\x01R\x1cheaveEquivalentDampingNSPerM\x120\n" +
+	"\x15packer_gap_at_speed_m\x18\x18 \x01(\x01R\x11packerGapAtSpeedM\"\x9f\x03\n" +
 	"\x04Mode\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12.\n" +
 	"\x13damped_frequency_hz\x18\x03 \x01(\x01R\x11dampedFrequencyHz\x12\x1e\n" +
@@ -1450,7 +1794,7 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x12hand_damping_ratio\x18\n" +
 	" \x01(\x01R\x10handDampingRatio\x12\x1f\n" +
 	"\vhand_reason\x18\v \x01(\tR\n" +
-	"handReasonJ\x04\b\x02\x10\x03J\x04\b\x04\x10\x05R\ffrequency_hzR\rdamping_ratio\"\x85\x04\n" +
+	"handReasonJ\x04\b\x02\x10\x03J\x04\b\x04\x10\x05R\ffrequency_hzR\rdamping_ratio\"\x96\x06\n" +
 	"\vDamperCurve\x124\n" +
 	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12'\n" +
 	"\x10velocity_m_per_s\x18\x02 \x03(\x01R\rvelocityMPerS\x12\x17\n" +
@@ -1463,7 +1807,15 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x14knee_rebound_m_per_s\x18\t \x01(\x01R\x10kneeReboundMPerS\x123\n" +
 	"\x16high_speed_bump_factor\x18\n" +
 	" \x01(\x01R\x13highSpeedBumpFactor\x129\n" +
-	"\x19high_speed_rebound_factor\x18\v \x01(\x01R\x16highSpeedReboundFactor\"\x9c\x02\n" +
+	"\x19high_speed_rebound_factor\x18\v \x01(\x01R\x16highSpeedReboundFactor\x12:\n" +
+	"\vstages_bump\x18\f \x03(\v2\x19.dampfront.v1.DamperStageR\n" +
+	"stagesBump\x12@\n" +
+	"\x0estages_rebound\x18\r \x03(\v2\x19.dampfront.v1.DamperStageR\rstagesRebound\x12%\n" +
+	"\x0fblow_off_bump_n\x18\x0e \x01(\x01R\fblowOffBumpN\x12+\n" +
+	"\x12blow_off_rebound_n\x18\x0f \x01(\x01R\x0fblowOffReboundN\x12\x1d\n" +
+	"\n" +
+	"friction_n\x18\x10 \x01(\x01R\tfrictionN\x12\x1e\n" +
+	"\vgas_force_n\x18\x11 \x01(\x01R\tgasForceN\"\x9c\x02\n" +
 	"\x05Front\x12\x10\n" +
 	"\x03job\x18\x01 \x01(\tR\x03job\x12\x1d\n" +
 	"\n" +
@@ -1500,49 +1852,58 @@ func file_dampfront_v1_result_proto_rawDescGZIP() []byte {
 }
 
 var file_dampfront_v1_result_proto_enumTypes = make([]protoimpl.EnumInfo, 2)
-var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 10)
+var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 12)
 var file_dampfront_v1_result_proto_goTypes = []any{
 	(SolutionView)(0),             // 0: dampfront.v1.SolutionView
 	(CornerPosition)(0),           // 1: dampfront.v1.CornerPosition
 	(*Solution)(nil),              // 2: dampfront.v1.Solution
-	(*CaseMetrics)(nil),           // 3: dampfront.v1.CaseMetrics
-	(*AeroMetrics)(nil),           // 4: dampfront.v1.AeroMetrics
-	(*ReferencePointMetrics)(nil), // 5: dampfront.v1.ReferencePointMetrics
-	(*OperatingPoint)(nil),        // 6: dampfront.v1.OperatingPoint
-	(*CornerMetrics)(nil),         // 7: dampfront.v1.CornerMetrics
-	(*AxleMetrics)(nil),           // 8: dampfront.v1.AxleMetrics
-	(*Mode)(nil),                  // 9: dampfront.v1.Mode
-	(*DamperCurve)(nil),           // 10: dampfront.v1.DamperCurve
-	(*Front)(nil),                 // 11: dampfront.v1.Front
-	(*Setup)(nil),                 // 12: dampfront.v1.Setup
-	(*ConstraintShortfall)(nil),   // 13: dampfront.v1.ConstraintShortfall
-	(*TransientMetrics)(nil),      // 14: dampfront.v1.TransientMetrics
-	(*Objective)(nil),             // 15: dampfront.v1.Objective
-	(*Constraint)(nil),            // 16: dampfront.v1.Constraint
+	(*CornerClicks)(nil),          // 3: dampfront.v1.CornerClicks
+	(*BandExcess)(nil),            // 4: dampfront.v1.BandExcess
+	(*CaseMetrics)(nil),           // 5: dampfront.v1.CaseMetrics
+	(*AeroMetrics)(nil),           // 6: dampfront.v1.AeroMetrics
+	(*ReferencePointMetrics)(nil), // 7: dampfront.v1.ReferencePointMetrics
+	(*OperatingPoint)(nil),        // 8: dampfront.v1.OperatingPoint
+	(*CornerMetrics)(nil),         // 9: dampfront.v1.CornerMetrics
+	(*AxleMetrics)(nil),           // 10: dampfront.v1.AxleMetrics
+	(*Mode)(nil),                  // 11: dampfront.v1.Mode
+	(*DamperCurve)(nil),           // 12: dampfront.v1.DamperCurve
+	(*Front)(nil),                 // 13: dampfront.v1.Front
+	(*Setup)(nil),                 // 14: dampfront.v1.Setup
+	(*ConstraintShortfall)(nil),   // 15: dampfront.v1.ConstraintShortfall
+	(*TransientMetrics)(nil),      // 16: dampfront.v1.TransientMetrics
+	(*DamperStage)(nil),           // 17: dampfront.v1.DamperStage
+	(*Objective)(nil),             // 18: dampfront.v1.Objective
+	(*Constraint)(nil),            // 19: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
-	12, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
-	3,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
-	10, // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
-	13, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
-	14, // 4: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
-	7,  // 5: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	8,  // 6: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	8,  // 7: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	9,  // 8: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	6,  // 9: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
-	4,  // 10: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
-	5,  // 11: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
-	1,  // 12: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 13: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	15, // 14: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	16, // 15: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 16: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	17, // [17:17] is the sub-list for method output_type
-	17, // [17:17] is the sub-list for method input_type
-	17, // [17:17] is the sub-list for extension type_name
-	17, // [17:17] is the sub-list for extension extendee
-	0,  // [0:17] is the sub-list for field type_name
+	14, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
+	5,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
+	12, // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
+	15, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
+	3,  // 4: dampfront.v1.Solution.clicks:type_name -> dampfront.v1.CornerClicks
+	4,  // 5: dampfront.v1.Solution.out_of_band:type_name -> dampfront.v1.BandExcess
+	16, // 6: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
+	1,  // 7: dampfront.v1.CornerClicks.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 8: dampfront.v1.BandExcess.corner:type_name -> dampfront.v1.CornerPosition
+	9,  // 9: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	10, // 10: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	10, // 11: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	11, // 12: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	8,  // 13: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	6,  // 14: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
+	7,  // 15: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
+	1,  // 16: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 17: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
+	17, // 18: dampfront.v1.DamperCurve.stages_bump:type_name -> dampfront.v1.DamperStage
+	17, // 19: dampfront.v1.DamperCurve.stages_rebound:type_name -> dampfront.v1.DamperStage
+	18, // 20: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	19, // 21: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	2,  // 22: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	23, // [23:23] is the sub-list for method output_type
+	23, // [23:23] is the sub-list for method input_type
+	23, // [23:23] is the sub-list for extension type_name
+	23, // [23:23] is the sub-list for extension extendee
+	0,  // [0:23] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }
@@ -1558,7 +1919,7 @@ func file_dampfront_v1_result_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_result_proto_rawDesc), len(file_dampfront_v1_result_proto_rawDesc)),
 			NumEnums:      2,
-			NumMessages:   10,
+			NumMessages:   12,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

@@ -77,9 +77,13 @@ type Vehicle struct {
 	// and probability of touching the ground each road case reports; at
 	// most 8, each with its own name.
 	ReferencePoints []*ReferencePoint `protobuf:"bytes,16,rep,name=reference_points,json=referencePoints,proto3" json:"reference_points,omitempty"`
+	// Front heave (third) spring and damper; absent means none.
+	FrontHeave *HeaveElement `protobuf:"bytes,20,opt,name=front_heave,json=frontHeave,proto3" json:"front_heave,omitempty"`
+	// Rear heave (third) spring and damper; absent means none.
+	RearHeave *HeaveElement `protobuf:"bytes,21,opt,name=rear_heave,json=rearHeave,proto3" json:"rear_heave,omitempty"`
 	// Heights and link geometry for the manoeuvre cases (field numbers from
-	// 20 on).
-	LoadPaths     *LoadPaths `protobuf:"bytes,20,opt,name=load_paths,json=loadPaths,proto3" json:"load_paths,omitempty"`
+	// 30 on).
+	LoadPaths     *LoadPaths `protobuf:"bytes,30,opt,name=load_paths,json=loadPaths,proto3" json:"load_paths,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -226,11 +230,112 @@ func (x *Vehicle) GetReferencePoints() []*ReferencePoint {
 	return nil
 }
 
+func (x *Vehicle) GetFrontHeave() *HeaveElement {
+	if x != nil {
+		return x.FrontHeave
+	}
+	return nil
+}
+
+func (x *Vehicle) GetRearHeave() *HeaveElement {
+	if x != nil {
+		return x.RearHeave
+	}
+	return nil
+}
+
 func (x *Vehicle) GetLoadPaths() *LoadPaths {
 	if x != nil {
 		return x.LoadPaths
 	}
 	return nil
+}
+
+// HeaveElement is one axle's heave (third) spring, damper and packer: an
+// element that strokes with the axle's mean wheel travel (s_L + s_R)/2
+// through its own motion ratio, so it works in heave and pitch and not in
+// roll. Its spring adds spring_rate * motion_ratio^2 to the axle's heave
+// rate at the wheels. Its damper is set in Setup.front_heave/rear_heave
+// as ratios of the axle's heave critical damping
+// 2 sqrt(k_heave m_axle), k_heave the axle's heave rate at the wheels
+// (corner springs and heave spring) and m_axle its sprung mass.
+type HeaveElement struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Element travel per mean wheel travel of the axle; required when any
+	// other field is given.
+	// Plausible range: [0.1, 2].
+	MotionRatio float64 `protobuf:"fixed64,1,opt,name=motion_ratio,json=motionRatio,proto3" json:"motion_ratio,omitempty"`
+	// Heave spring rate at the element; 0 is a heave damper without a spring.
+	// Plausible range: [0, 1e+07] N/m.
+	SpringRateNPerM float64 `protobuf:"fixed64,2,opt,name=spring_rate_n_per_m,json=springRateNPerM,proto3" json:"spring_rate_n_per_m,omitempty"`
+	// Element travel in bump from the car at rest to packer contact; 0
+	// means no packer. At speed the downforce uses part of it.
+	// Plausible range: [0, 0.3] m.
+	PackerGapM float64 `protobuf:"fixed64,3,opt,name=packer_gap_m,json=packerGapM,proto3" json:"packer_gap_m,omitempty"`
+	// Packer rate at the element once in contact, used by the time-domain
+	// check; 0 counts the contact only.
+	// Plausible range when given (not 0): [1000, 1e+08] N/m.
+	PackerRateNPerM float64 `protobuf:"fixed64,4,opt,name=packer_rate_n_per_m,json=packerRateNPerM,proto3" json:"packer_rate_n_per_m,omitempty"`
+	unknownFields   protoimpl.UnknownFields
+	sizeCache       protoimpl.SizeCache
+}
+
+func (x *HeaveElement) Reset() {
+	*x = HeaveElement{}
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *HeaveElement) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*HeaveElement) ProtoMessage() {}
+
+func (x *HeaveElement) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use HeaveElement.ProtoReflect.Descriptor instead.
+func (*HeaveElement) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{1}
+}
+
+func (x *HeaveElement) GetMotionRatio() float64 {
+	if x != nil {
+		return x.MotionRatio
+	}
+	return 0
+}
+
+func (x *HeaveElement) GetSpringRateNPerM() float64 {
+	if x != nil {
+		return x.SpringRateNPerM
+	}
+	return 0
+}
+
+func (x *HeaveElement) GetPackerGapM() float64 {
+	if x != nil {
+		return x.PackerGapM
+	}
+	return 0
+}
+
+func (x *HeaveElement) GetPackerRateNPerM() float64 {
+	if x != nil {
+		return x.PackerRateNPerM
+	}
+	return 0
 }
 
 // ReferencePoint is a point of the body's underside. Its ground is the
@@ -262,7 +367,7 @@ type ReferencePoint struct {
 
 func (x *ReferencePoint) Reset() {
 	*x = ReferencePoint{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -274,7 +379,7 @@ func (x *ReferencePoint) String() string {
 func (*ReferencePoint) ProtoMessage() {}
 
 func (x *ReferencePoint) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[1]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -287,7 +392,7 @@ func (x *ReferencePoint) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use ReferencePoint.ProtoReflect.Descriptor instead.
 func (*ReferencePoint) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{1}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{2}
 }
 
 func (x *ReferencePoint) GetName() string {
@@ -367,7 +472,7 @@ type Corner struct {
 
 func (x *Corner) Reset() {
 	*x = Corner{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -379,7 +484,7 @@ func (x *Corner) String() string {
 func (*Corner) ProtoMessage() {}
 
 func (x *Corner) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[2]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -392,7 +497,7 @@ func (x *Corner) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Corner.ProtoReflect.Descriptor instead.
 func (*Corner) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{2}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{3}
 }
 
 func (x *Corner) GetSpringRateNPerM() float64 {
@@ -484,7 +589,7 @@ type AntiRollBar struct {
 
 func (x *AntiRollBar) Reset() {
 	*x = AntiRollBar{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -496,7 +601,7 @@ func (x *AntiRollBar) String() string {
 func (*AntiRollBar) ProtoMessage() {}
 
 func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[3]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -509,7 +614,7 @@ func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AntiRollBar.ProtoReflect.Descriptor instead.
 func (*AntiRollBar) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *AntiRollBar) GetWheelRateNPerM() float64 {
@@ -567,7 +672,7 @@ type Aero struct {
 
 func (x *Aero) Reset() {
 	*x = Aero{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -579,7 +684,7 @@ func (x *Aero) String() string {
 func (*Aero) ProtoMessage() {}
 
 func (x *Aero) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -592,7 +697,7 @@ func (x *Aero) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Aero.ProtoReflect.Descriptor instead.
 func (*Aero) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *Aero) GetReferenceSpeedMPerS() float64 {
@@ -666,7 +771,7 @@ type AeroTable struct {
 
 func (x *AeroTable) Reset() {
 	*x = AeroTable{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -678,7 +783,7 @@ func (x *AeroTable) String() string {
 func (*AeroTable) ProtoMessage() {}
 
 func (x *AeroTable) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -691,7 +796,7 @@ func (x *AeroTable) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTable.ProtoReflect.Descriptor instead.
 func (*AeroTable) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *AeroTable) GetFrontRideHeightM() []float64 {
@@ -738,7 +843,7 @@ type AeroPolynomial struct {
 
 func (x *AeroPolynomial) Reset() {
 	*x = AeroPolynomial{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -750,7 +855,7 @@ func (x *AeroPolynomial) String() string {
 func (*AeroPolynomial) ProtoMessage() {}
 
 func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -763,7 +868,7 @@ func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroPolynomial.ProtoReflect.Descriptor instead.
 func (*AeroPolynomial) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *AeroPolynomial) GetFrontOriginM() float64 {
@@ -805,7 +910,7 @@ type AeroTerm struct {
 
 func (x *AeroTerm) Reset() {
 	*x = AeroTerm{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[8]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -817,7 +922,7 @@ func (x *AeroTerm) String() string {
 func (*AeroTerm) ProtoMessage() {}
 
 func (x *AeroTerm) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[8]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -830,7 +935,7 @@ func (x *AeroTerm) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTerm.ProtoReflect.Descriptor instead.
 func (*AeroTerm) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{7}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{8}
 }
 
 func (x *AeroTerm) GetFrontPower() uint32 {
@@ -865,7 +970,7 @@ var File_dampfront_v1_vehicle_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\x1a\x1cdampfront/v1/transient.proto\"\xb6\x06\n" +
+	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\x1a\x1cdampfront/v1/transient.proto\"\xae\a\n" +
 	"\aVehicle\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12$\n" +
 	"\x0esprung_mass_kg\x18\x02 \x01(\x01R\fsprungMassKg\x12-\n" +
@@ -885,9 +990,19 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\x04aero\x18\r \x01(\v2\x12.dampfront.v1.AeroR\x04aero\x126\n" +
 	"\x18front_rest_ride_height_m\x18\x0e \x01(\x01R\x14frontRestRideHeightM\x124\n" +
 	"\x17rear_rest_ride_height_m\x18\x0f \x01(\x01R\x13rearRestRideHeightM\x12G\n" +
-	"\x10reference_points\x18\x10 \x03(\v2\x1c.dampfront.v1.ReferencePointR\x0freferencePoints\x126\n" +
+	"\x10reference_points\x18\x10 \x03(\v2\x1c.dampfront.v1.ReferencePointR\x0freferencePoints\x12;\n" +
+	"\vfront_heave\x18\x14 \x01(\v2\x1a.dampfront.v1.HeaveElementR\n" +
+	"frontHeave\x129\n" +
 	"\n" +
-	"load_paths\x18\x14 \x01(\v2\x17.dampfront.v1.LoadPathsR\tloadPaths\"\xb6\x01\n" +
+	"rear_heave\x18\x15 \x01(\v2\x1a.dampfront.v1.HeaveElementR\trearHeave\x126\n" +
+	"\n" +
+	"load_paths\x18\x1e \x01(\v2\x17.dampfront.v1.LoadPathsR\tloadPaths\"\xaf\x01\n" +
+	"\fHeaveElement\x12!\n" +
+	"\fmotion_ratio\x18\x01 \x01(\x01R\vmotionRatio\x12,\n" +
+	"\x13spring_rate_n_per_m\x18\x02 \x01(\x01R\x0fspringRateNPerM\x12 \n" +
+	"\fpacker_gap_m\x18\x03 \x01(\x01R\n" +
+	"packerGapM\x12,\n" +
+	"\x13packer_rate_n_per_m\x18\x04 \x01(\x01R\x0fpackerRateNPerM\"\xb6\x01\n" +
 	"\x0eReferencePoint\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12,\n" +
 	"\x13x_from_front_axle_m\x18\x02 \x01(\x01R\x0fxFromFrontAxleM\x12-\n" +
@@ -949,33 +1064,36 @@ func file_dampfront_v1_vehicle_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_vehicle_proto_rawDescData
 }
 
-var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 8)
+var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 9)
 var file_dampfront_v1_vehicle_proto_goTypes = []any{
 	(*Vehicle)(nil),        // 0: dampfront.v1.Vehicle
-	(*ReferencePoint)(nil), // 1: dampfront.v1.ReferencePoint
-	(*Corner)(nil),         // 2: dampfront.v1.Corner
-	(*AntiRollBar)(nil),    // 3: dampfront.v1.AntiRollBar
-	(*Aero)(nil),           // 4: dampfront.v1.Aero
-	(*AeroTable)(nil),      // 5: dampfront.v1.AeroTable
-	(*AeroPolynomial)(nil), // 6: dampfront.v1.AeroPolynomial
-	(*AeroTerm)(nil),       // 7: dampfront.v1.AeroTerm
-	(*LoadPaths)(nil),      // 8: dampfront.v1.LoadPaths
+	(*HeaveElement)(nil),   // 1: dampfront.v1.HeaveElement
+	(*ReferencePoint)(nil), // 2: dampfront.v1.ReferencePoint
+	(*Corner)(nil),         // 3: dampfront.v1.Corner
+	(*AntiRollBar)(nil),    // 4: dampfront.v1.AntiRollBar
+	(*Aero)(nil),           // 5: dampfront.v1.Aero
+	(*AeroTable)(nil),      // 6: dampfront.v1.AeroTable
+	(*AeroPolynomial)(nil), // 7: dampfront.v1.AeroPolynomial
+	(*AeroTerm)(nil),       // 8: dampfront.v1.AeroTerm
+	(*LoadPaths)(nil),      // 9: dampfront.v1.LoadPaths
 }
 var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
-	2, // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
-	3, // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	3, // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	4, // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
-	1, // 4: dampfront.v1.Vehicle.reference_points:type_name -> dampfront.v1.ReferencePoint
-	8, // 5: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
-	5, // 6: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
-	6, // 7: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
-	7, // 8: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
-	9, // [9:9] is the sub-list for method output_type
-	9, // [9:9] is the sub-list for method input_type
-	9, // [9:9] is the sub-list for extension type_name
-	9, // [9:9] is the sub-list for extension extendee
-	0, // [0:9] is the sub-list for field type_name
+	3,  // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
+	4,  // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	4,  // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	5,  // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
+	2,  // 4: dampfront.v1.Vehicle.reference_points:type_name -> dampfront.v1.ReferencePoint
+	1,  // 5: dampfront.v1.Vehicle.front_heave:type_name -> dampfront.v1.HeaveElement
+	1,  // 6: dampfront.v1.Vehicle.rear_heave:type_name -> dampfront.v1.HeaveElement
+	9,  // 7: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
+	6,  // 8: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
+	7,  // 9: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
+	8,  // 10: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
+	11, // [11:11] is the sub-list for method output_type
+	11, // [11:11] is the sub-list for method input_type
+	11, // [11:11] is the sub-list for extension type_name
+	11, // [11:11] is the sub-list for extension extendee
+	0,  // [0:11] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_vehicle_proto_init() }
@@ -990,7 +1108,7 @@ func file_dampfront_v1_vehicle_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_vehicle_proto_rawDesc), len(file_dampfront_v1_vehicle_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   8,
+			NumMessages:   9,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

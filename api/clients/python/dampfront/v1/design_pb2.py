@@ -13,7 +13,7 @@ _sym_db = _symbol_database.Default()
 
 
 
-DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x19\x64\x61mpfront/v1/design.proto\x12\x0c\x64\x61mpfront.v1\"!\n\x05Range\x12\x0b\n\x03min\x18\x01 \x01(\x01\x12\x0b\n\x03max\x18\x02 \x01(\x01\"\xb5\x01\n\x0bRatioBounds\x12\'\n\nfront_bump\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\rfront_rebound\x18\x02 \x01(\x0b\x32\x13.dampfront.v1.Range\x12&\n\trear_bump\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Range\x12)\n\x0crear_rebound\x18\x04 \x01(\x0b\x32\x13.dampfront.v1.Range\"\xba\x02\n\x0b\x44\x65signSpace\x12)\n\x06ratios\x18\x01 \x01(\x0b\x32\x19.dampfront.v1.RatioBounds\x12\x11\n\tsymmetric\x18\x02 \x01(\x08\x12/\n\x12\x66ront_knee_m_per_s\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Range\x12.\n\x11rear_knee_m_per_s\x18\x04 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x34\n\x17\x66ront_high_speed_factor\x18\x05 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x33\n\x16rear_high_speed_factor\x18\x06 \x01(\x0b\x32\x13.dampfront.v1.Range\x12!\n\x04\x62\x61se\x18\x07 \x01(\x0b\x32\x13.dampfront.v1.Setup\"\xb4\x01\n\x0b\x41xleDamping\x12\x12\n\nbump_ratio\x18\x01 \x01(\x01\x12\x15\n\rrebound_ratio\x18\x02 \x01(\x01\x12\x19\n\x11knee_bump_m_per_s\x18\x03 \x01(\x01\x12\x1c\n\x14knee_rebound_m_per_s\x18\x04 \x01(\x01\x12\x1e\n\x16high_speed_bump_factor\x18\x05 \x01(\x01\x12!\n\x19high_speed_rebound_factor\x18\x06 \x01(\x01\"Z\n\x05Setup\x12(\n\x05\x66ront\x18\x01 \x01(\x0b\x32\x19.dampfront.v1.AxleDamping\x12\'\n\x04rear\x18\x02 \x01(\x0b\x32\x19.dampfront.v1.AxleDamping\"\xa1\x01\n\tObjective\x12)\n\x04kind\x18\x01 \x01(\x0e\x32\x1b.dampfront.v1.ObjectiveKind\x12.\n\x0b\x61ggregation\x18\x02 \x01(\x0e\x32\x19.dampfront.v1.Aggregation\x12\x1c\n\x14\x66ront_target_shift_m\x18\x03 \x01(\x01\x12\x1b\n\x13rear_target_shift_m\x18\x04 \x01(\x01\"\x93\x01\n\x13\x43onstraintShortfall\x12*\n\x04kind\x18\x01 \x01(\x0e\x32\x1c.dampfront.v1.ConstraintKind\x12\r\n\x05limit\x18\x02 \x01(\x01\x12\r\n\x05worst\x18\x03 \x01(\x01\x12\x11\n\troad_case\x18\x04 \x01(\t\x12\x0c\n\x04over\x18\x05 \x01(\x01\x12\x11\n\tviolation\x18\x06 \x01(\x01\"|\n\nConstraint\x12*\n\x04kind\x18\x01 \x01(\x0e\x32\x1c.dampfront.v1.ConstraintKind\x12\r\n\x05limit\x18\x02 \x01(\x01\x12$\n\x04mode\x18\x03 \x01(\x0e\x32\x16.dampfront.v1.ModeName\x12\r\n\x05lower\x18\x04 \x01(\x01\"\x84\x01\n\nAdjustment\x12\x1a\n\x12\x62ump_softest_ratio\x18\x01 \x01(\x01\x12\x1b\n\x13\x62ump_stiffest_ratio\x18\x02 \x01(\x01\x12\x1d\n\x15rebound_softest_ratio\x18\x03 \x01(\x01\x12\x1e\n\x16rebound_stiffest_ratio\x18\x04 \x01(\x01\"=\n\rCurveSettings\x12\x1c\n\x14max_velocity_m_per_s\x18\x01 \x01(\x01\x12\x0e\n\x06points\x18\x02 \x01(\x05*\xa4\x03\n\rObjectiveKind\x12\x1e\n\x1aOBJECTIVE_KIND_UNSPECIFIED\x10\x00\x12\x17\n\x13OBJECTIVE_KIND_GRIP\x10\x01\x12\x1b\n\x17OBJECTIVE_KIND_PLATFORM\x10\x02\x12!\n\x1dOBJECTIVE_KIND_FRONT_PLATFORM\x10\x03\x12 \n\x1cOBJECTIVE_KIND_REAR_PLATFORM\x10\x04\x12\x18\n\x14OBJECTIVE_KIND_PITCH\x10\x05\x12\x17\n\x13OBJECTIVE_KIND_ROLL\x10\x06\x12\x1e\n\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\x07\x12\x1c\n\x18OBJECTIVE_KIND_DOWNFORCE\x10\x08\x12\x1a\n\x16OBJECTIVE_KIND_BALANCE\x10\t\x12\"\n\x1eOBJECTIVE_KIND_DRIVER_RESPONSE\x10\x14\x12$\n OBJECTIVE_KIND_TRANSIENT_BALANCE\x10\x15\x12!\n\x1dOBJECTIVE_KIND_KERB_LOAD_LOSS\x10\x16*z\n\x0b\x41ggregation\x12\x1b\n\x17\x41GGREGATION_UNSPECIFIED\x10\x00\x12\x1b\n\x17\x41GGREGATION_MEAN_SQUARE\x10\x01\x12\x15\n\x11\x41GGREGATION_WORST\x10\x02\x12\x1a\n\x16\x41GGREGATION_NORMALISED\x10\x03*\xad\x02\n\x0e\x43onstraintKind\x12\x1f\n\x1b\x43ONSTRAINT_KIND_UNSPECIFIED\x10\x00\x12\x1c\n\x18\x43ONSTRAINT_KIND_LIFT_OFF\x10\x01\x12\x1d\n\x19\x43ONSTRAINT_KIND_BUMP_STOP\x10\x02\x12\x1a\n\x16\x43ONSTRAINT_KIND_TRAVEL\x10\x03\x12\x1b\n\x17\x43ONSTRAINT_KIND_JACKING\x10\x04\x12\x1f\n\x1b\x43ONSTRAINT_KIND_MODAL_RATIO\x10\x05\x12!\n\x1d\x43ONSTRAINT_KIND_FLOOR_CONTACT\x10\x06\x12!\n\x1d\x43ONSTRAINT_KIND_UNLOADED_TIME\x10\x14\x12\x1d\n\x19\x43ONSTRAINT_KIND_STOP_TIME\x10\x15*\xdb\x01\n\x08ModeName\x12\x19\n\x15MODE_NAME_UNSPECIFIED\x10\x00\x12\x13\n\x0fMODE_NAME_HEAVE\x10\x01\x12\x13\n\x0fMODE_NAME_PITCH\x10\x02\x12\x12\n\x0eMODE_NAME_ROLL\x10\x03\x12\x17\n\x13MODE_NAME_FRONT_HOP\x10\x04\x12\"\n\x1eMODE_NAME_FRONT_ANTI_PHASE_HOP\x10\x05\x12\x16\n\x12MODE_NAME_REAR_HOP\x10\x06\x12!\n\x1dMODE_NAME_REAR_ANTI_PHASE_HOP\x10\x07\x42,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3')
+DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x19\x64\x61mpfront/v1/design.proto\x12\x0c\x64\x61mpfront.v1\"!\n\x05Range\x12\x0b\n\x03min\x18\x01 \x01(\x01\x12\x0b\n\x03max\x18\x02 \x01(\x01\"\xb5\x01\n\x0bRatioBounds\x12\'\n\nfront_bump\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\rfront_rebound\x18\x02 \x01(\x0b\x32\x13.dampfront.v1.Range\x12&\n\trear_bump\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Range\x12)\n\x0crear_rebound\x18\x04 \x01(\x0b\x32\x13.dampfront.v1.Range\"\xb1\x03\n\x0b\x44\x65signSpace\x12)\n\x06ratios\x18\x01 \x01(\x0b\x32\x19.dampfront.v1.RatioBounds\x12\x11\n\tsymmetric\x18\x02 \x01(\x08\x12/\n\x12\x66ront_knee_m_per_s\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Range\x12.\n\x11rear_knee_m_per_s\x18\x04 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x34\n\x17\x66ront_high_speed_factor\x18\x05 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x33\n\x16rear_high_speed_factor\x18\x06 \x01(\x0b\x32\x13.dampfront.v1.Range\x12!\n\x04\x62\x61se\x18\x07 \x01(\x0b\x32\x13.dampfront.v1.Setup\x12\x16\n\x0esnap_to_clicks\x18\x08 \x01(\x08\x12.\n\x11\x66ront_heave_ratio\x18\x14 \x01(\x0b\x32\x13.dampfront.v1.Range\x12-\n\x10rear_heave_ratio\x18\x15 \x01(\x0b\x32\x13.dampfront.v1.Range\"\xf5\x02\n\x0b\x41xleDamping\x12\x12\n\nbump_ratio\x18\x01 \x01(\x01\x12\x15\n\rrebound_ratio\x18\x02 \x01(\x01\x12\x19\n\x11knee_bump_m_per_s\x18\x03 \x01(\x01\x12\x1c\n\x14knee_rebound_m_per_s\x18\x04 \x01(\x01\x12\x1e\n\x16high_speed_bump_factor\x18\x05 \x01(\x01\x12!\n\x19high_speed_rebound_factor\x18\x06 \x01(\x01\x12.\n\x0bstages_bump\x18\x07 \x03(\x0b\x32\x19.dampfront.v1.DamperStage\x12\x31\n\x0estages_rebound\x18\x08 \x03(\x0b\x32\x19.dampfront.v1.DamperStage\x12\x17\n\x0f\x62low_off_bump_n\x18\t \x01(\x01\x12\x1a\n\x12\x62low_off_rebound_n\x18\n \x01(\x01\x12\x12\n\nfriction_n\x18\x0b \x01(\x01\x12\x13\n\x0bgas_force_n\x18\x0c \x01(\x01\"7\n\x0b\x44\x61mperStage\x12\x18\n\x10velocity_m_per_s\x18\x01 \x01(\x01\x12\x0e\n\x06\x66\x61\x63tor\x18\x02 \x01(\x01\"\xb9\x01\n\x05Setup\x12(\n\x05\x66ront\x18\x01 \x01(\x0b\x32\x19.dampfront.v1.AxleDamping\x12\'\n\x04rear\x18\x02 \x01(\x0b\x32\x19.dampfront.v1.AxleDamping\x12.\n\x0b\x66ront_heave\x18\x14 \x01(\x0b\x32\x19.dampfront.v1.AxleDamping\x12-\n\nrear_heave\x18\x15 \x01(\x0b\x32\x19.dampfront.v1.AxleDamping\"\xa1\x01\n\tObjective\x12)\n\x04kind\x18\x01 \x01(\x0e\x32\x1b.dampfront.v1.ObjectiveKind\x12.\n\x0b\x61ggregation\x18\x02 \x01(\x0e\x32\x19.dampfront.v1.Aggregation\x12\x1c\n\x14\x66ront_target_shift_m\x18\x03 \x01(\x01\x12\x1b\n\x13rear_target_shift_m\x18\x04 \x01(\x01\"\x93\x01\n\x13\x43onstraintShortfall\x12*\n\x04kind\x18\x01 \x01(\x0e\x32\x1c.dampfront.v1.ConstraintKind\x12\r\n\x05limit\x18\x02 \x01(\x01\x12\r\n\x05worst\x18\x03 \x01(\x01\x12\x11\n\troad_case\x18\x04 \x01(\t\x12\x0c\n\x04over\x18\x05 \x01(\x01\x12\x11\n\tviolation\x18\x06 \x01(\x01\"|\n\nConstraint\x12*\n\x04kind\x18\x01 \x01(\x0e\x32\x1c.dampfront.v1.ConstraintKind\x12\r\n\x05limit\x18\x02 \x01(\x01\x12$\n\x04mode\x18\x03 \x01(\x0e\x32\x16.dampfront.v1.ModeName\x12\r\n\x05lower\x18\x04 \x01(\x01\"\x84\x01\n\nAdjustment\x12\x1a\n\x12\x62ump_softest_ratio\x18\x01 \x01(\x01\x12\x1b\n\x13\x62ump_stiffest_ratio\x18\x02 \x01(\x01\x12\x1d\n\x15rebound_softest_ratio\x18\x03 \x01(\x01\x12\x1e\n\x16rebound_stiffest_ratio\x18\x04 \x01(\x01\"d\n\x08\x41\x64juster\x12\x0e\n\x06\x63licks\x18\x01 \x01(\x05\x12\x10\n\x08stiffest\x18\x02 \x01(\x01\x12\x0f\n\x07softest\x18\x03 \x01(\x01\x12%\n\x04\x64yno\x18\x04 \x01(\x0b\x32\x17.dampfront.v1.DynoTable\"J\n\tDynoTable\x12\x18\n\x10velocity_m_per_s\x18\x01 \x03(\x01\x12#\n\x04rows\x18\x02 \x03(\x0b\x32\x15.dampfront.v1.DynoRow\"\x1a\n\x07\x44ynoRow\x12\x0f\n\x07\x66orce_n\x18\x01 \x03(\x01\"\xc1\x01\n\x0f\x44\x61mperAdjusters\x12(\n\x08low_bump\x18\x01 \x01(\x0b\x32\x16.dampfront.v1.Adjuster\x12+\n\x0blow_rebound\x18\x02 \x01(\x0b\x32\x16.dampfront.v1.Adjuster\x12)\n\thigh_bump\x18\x03 \x01(\x0b\x32\x16.dampfront.v1.Adjuster\x12,\n\x0chigh_rebound\x18\x04 \x01(\x0b\x32\x16.dampfront.v1.Adjuster\"f\n\tAdjusters\x12,\n\x05\x66ront\x18\x01 \x01(\x0b\x32\x1d.dampfront.v1.DamperAdjusters\x12+\n\x04rear\x18\x02 \x01(\x0b\x32\x1d.dampfront.v1.DamperAdjusters\"=\n\rCurveSettings\x12\x1c\n\x14max_velocity_m_per_s\x18\x01 \x01(\x01\x12\x0e\n\x06points\x18\x02 \x01(\x05*\xa4\x03\n\rObjectiveKind\x12\x1e\n\x1aOBJECTIVE_KIND_UNSPECIFIED\x10\x00\x12\x17\n\x13OBJECTIVE_KIND_GRIP\x10\x01\x12\x1b\n\x17OBJECTIVE_KIND_PLATFORM\x10\x02\x12!\n\x1dOBJECTIVE_KIND_FRONT_PLATFORM\x10\x03\x12 \n\x1cOBJECTIVE_KIND_REAR_PLATFORM\x10\x04\x12\x18\n\x14OBJECTIVE_KIND_PITCH\x10\x05\x12\x17\n\x13OBJECTIVE_KIND_ROLL\x10\x06\x12\x1e\n\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\x07\x12\x1c\n\x18OBJECTIVE_KIND_DOWNFORCE\x10\x08\x12\x1a\n\x16OBJECTIVE_KIND_BALANCE\x10\t\x12\"\n\x1eOBJECTIVE_KIND_DRIVER_RESPONSE\x10\x14\x12$\n OBJECTIVE_KIND_TRANSIENT_BALANCE\x10\x15\x12!\n\x1dOBJECTIVE_KIND_KERB_LOAD_LOSS\x10\x16*z\n\x0b\x41ggregation\x12\x1b\n\x17\x41GGREGATION_UNSPECIFIED\x10\x00\x12\x1b\n\x17\x41GGREGATION_MEAN_SQUARE\x10\x01\x12\x15\n\x11\x41GGREGATION_WORST\x10\x02\x12\x1a\n\x16\x41GGREGATION_NORMALISED\x10\x03*\xad\x02\n\x0e\x43onstraintKind\x12\x1f\n\x1b\x43ONSTRAINT_KIND_UNSPECIFIED\x10\x00\x12\x1c\n\x18\x43ONSTRAINT_KIND_LIFT_OFF\x10\x01\x12\x1d\n\x19\x43ONSTRAINT_KIND_BUMP_STOP\x10\x02\x12\x1a\n\x16\x43ONSTRAINT_KIND_TRAVEL\x10\x03\x12\x1b\n\x17\x43ONSTRAINT_KIND_JACKING\x10\x04\x12\x1f\n\x1b\x43ONSTRAINT_KIND_MODAL_RATIO\x10\x05\x12!\n\x1d\x43ONSTRAINT_KIND_FLOOR_CONTACT\x10\x06\x12!\n\x1d\x43ONSTRAINT_KIND_UNLOADED_TIME\x10\x14\x12\x1d\n\x19\x43ONSTRAINT_KIND_STOP_TIME\x10\x15*\xdb\x01\n\x08ModeName\x12\x19\n\x15MODE_NAME_UNSPECIFIED\x10\x00\x12\x13\n\x0fMODE_NAME_HEAVE\x10\x01\x12\x13\n\x0fMODE_NAME_PITCH\x10\x02\x12\x12\n\x0eMODE_NAME_ROLL\x10\x03\x12\x17\n\x13MODE_NAME_FRONT_HOP\x10\x04\x12\"\n\x1eMODE_NAME_FRONT_ANTI_PHASE_HOP\x10\x05\x12\x16\n\x12MODE_NAME_REAR_HOP\x10\x06\x12!\n\x1dMODE_NAME_REAR_ANTI_PHASE_HOP\x10\x07\x42,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3')
 
 _builder.BuildMessageAndEnumDescriptors(DESCRIPTOR, globals())
 _builder.BuildTopDescriptorsAndMessages(DESCRIPTOR, 'dampfront.v1.design_pb2', globals())
@@ -21,32 +21,44 @@ if _descriptor._USE_C_DESCRIPTORS == False:
 
   DESCRIPTOR._options = None
   DESCRIPTOR._serialized_options = b'Z*dampfront/api/gen/dampfront/v1;dampfrontv1'
-  _OBJECTIVEKIND._serialized_start=1493
-  _OBJECTIVEKIND._serialized_end=1913
-  _AGGREGATION._serialized_start=1915
-  _AGGREGATION._serialized_end=2037
-  _CONSTRAINTKIND._serialized_start=2040
-  _CONSTRAINTKIND._serialized_end=2341
-  _MODENAME._serialized_start=2344
-  _MODENAME._serialized_end=2563
+  _OBJECTIVEKIND._serialized_start=2464
+  _OBJECTIVEKIND._serialized_end=2884
+  _AGGREGATION._serialized_start=2886
+  _AGGREGATION._serialized_end=3008
+  _CONSTRAINTKIND._serialized_start=3011
+  _CONSTRAINTKIND._serialized_end=3312
+  _MODENAME._serialized_start=3315
+  _MODENAME._serialized_end=3534
   _RANGE._serialized_start=43
   _RANGE._serialized_end=76
   _RATIOBOUNDS._serialized_start=79
   _RATIOBOUNDS._serialized_end=260
   _DESIGNSPACE._serialized_start=263
-  _DESIGNSPACE._serialized_end=577
-  _AXLEDAMPING._serialized_start=580
-  _AXLEDAMPING._serialized_end=760
-  _SETUP._serialized_start=762
-  _SETUP._serialized_end=852
-  _OBJECTIVE._serialized_start=855
-  _OBJECTIVE._serialized_end=1016
-  _CONSTRAINTSHORTFALL._serialized_start=1019
-  _CONSTRAINTSHORTFALL._serialized_end=1166
-  _CONSTRAINT._serialized_start=1168
-  _CONSTRAINT._serialized_end=1292
-  _ADJUSTMENT._serialized_start=1295
-  _ADJUSTMENT._serialized_end=1427
-  _CURVESETTINGS._serialized_start=1429
-  _CURVESETTINGS._serialized_end=1490
+  _DESIGNSPACE._serialized_end=696
+  _AXLEDAMPING._serialized_start=699
+  _AXLEDAMPING._serialized_end=1072
+  _DAMPERSTAGE._serialized_start=1074
+  _DAMPERSTAGE._serialized_end=1129
+  _SETUP._serialized_start=1132
+  _SETUP._serialized_end=1317
+  _OBJECTIVE._serialized_start=1320
+  _OBJECTIVE._serialized_end=1481
+  _CONSTRAINTSHORTFALL._serialized_start=1484
+  _CONSTRAINTSHORTFALL._serialized_end=1631
+  _CONSTRAINT._serialized_start=1633
+  _CONSTRAINT._serialized_end=1757
+  _ADJUSTMENT._serialized_start=1760
+  _ADJUSTMENT._serialized_end=1892
+  _ADJUSTER._serialized_start=1894
+  _ADJUSTER._serialized_end=1994
+  _DYNOTABLE._serialized_start=1996
+  _DYNOTABLE._serialized_end=2070
+  _DYNOROW._serialized_start=2072
+  _DYNOROW._serialized_end=2098
+  _DAMPERADJUSTERS._serialized_start=2101
+  _DAMPERADJUSTERS._serialized_end=2294
+  _ADJUSTERS._serialized_start=2296
+  _ADJUSTERS._serialized_end=2398
+  _CURVESETTINGS._serialized_start=2400
+  _CURVESETTINGS._serialized_end=2461
 # @@protoc_insertion_point(module_scope)
