@@ -66,6 +66,16 @@ func handToProto(r *model.HandReport) *pb.EstimateByHandResponse {
 			Bump: branch(&c.Bump), Rebound: branch(&c.Rebound),
 		})
 	}
+	for i := range r.Axles {
+		a := &r.Axles[i]
+		ha := &pb.HandAxle{Axle: model.AxleNames[a.Axle], HeaveRateNPerM: a.HeaveRate, HeaveSpringRateNPerM: a.HeaveSpringRate,
+			SprungMassKg: a.SprungMass, HeaveFrequencyHz: a.HeaveFrequencyHz, HeaveMotionRatio: a.HeaveMotionRatio,
+			CriticalDampingHeaveNSPerM: a.CriticalHeave, CriticalDampingElementNSPerM: a.CriticalElement}
+		if a.Bump.Ratio != 0 {
+			ha.Bump, ha.Rebound = branch(&a.Bump), branch(&a.Rebound)
+		}
+		out.Axles = append(out.Axles, ha)
+	}
 	for i := range r.Modes {
 		m := &r.Modes[i]
 		out.Modes = append(out.Modes, &pb.HandMode{Name: m.Name, HandFrequencyHz: m.HandFrequencyHz, HandDampingRatio: m.HandRatio,

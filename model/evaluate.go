@@ -67,6 +67,9 @@ type caseData struct {
 	op    OperatingPoint // the car at the case's speed
 	plat  platformRows   // downforce, balance and reference points at op
 	modal modalRatios
+	// cache holds the damper-independent parts of each channel's solve
+	// (responsecache.go); nil for a case past the cache budget.
+	cache []channelCache
 }
 
 type workspace struct {
@@ -111,6 +114,7 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 		e.omega[k] = 2 * math.Pi * f
 	}
 	vsym := v.symmetric() && !opt.General
+	cached := 0 // bytes of response cache so far
 	for i := range cases {
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -141,6 +145,12 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 		}
 		cd.modal = modal
 		cd.grid = newCaseGrid(&e.v, &cd.rc, e.f, sym)
+		var chs [2]channel
+		nch := channels(&chs, cd.base, sym)
+		if b := cacheBytes(chs[:nch], len(e.f)); cached+b <= cacheBudget {
+			cd.cache = newResponseCache(chs[:nch], cd.grid, e.omega)
+			cached += b
+		}
 		cd.geo = outputGeometry{d: cd.base.d, a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, yc: -v.CGLateral, heave: v.hasHeave()}
 		for c := 0; c < 4; c++ {
 			cd.geo.kt[c] = v.Corners[c].TyreRate
@@ -275,7 +285,7 @@ func (e *Evaluator) evaluateCase(ci int, dampers *[nDamp]wheelDamper, ws *worksp
 func (e *Evaluator) caseVariances(ws *workspace, cd *caseData, c *[nDamp]float64, velOnly bool, acc *[nOut]float64, edge *[4][nOut]float64, psd []float64) ([nOut]float64, error) {
 	sys := cd.base.withDamping(*c)
 	n := channels(&ws.chs, &sys, cd.sym)
-	if !responseSpectra(ws.chs[:n], cd.grid, &cd.geo, e.omega, e.wts, &e.bands, velOnly, acc, edge, psd) {
+	if !responseSpectra(ws.chs[:n], cd.cache, cd.grid, &cd.geo, e.omega, e.wts, &e.bands, velOnly, acc, edge, psd) {
 		return [nOut]float64{}, fmt.Errorf("%w: road case %q: singular dynamic stiffness", ErrUnstable, cd.rc.Name)
 	}
 	v, err := variances(acc, edge, e.f, velOnly)

@@ -22,18 +22,7 @@ func BenchmarkEvaluate(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				s := demoSetup()
-				var r Result
-				if err := ev.Evaluate(s, &r); err != nil {
-					b.Fatal(err)
-				}
-				b.ReportAllocs()
-				b.ResetTimer()
-				for i := 0; i < b.N; i++ {
-					if err := ev.Evaluate(s, &r); err != nil {
-						b.Fatal(err)
-					}
-				}
+				benchEvaluate(b, ev, demoSetup())
 			})
 		}
 	}
@@ -105,17 +94,12 @@ func BenchmarkEvaluateHeave(b *testing.B) {
 			if err != nil {
 				b.Fatal(err)
 			}
-			var r Result
-			if err := ev.Evaluate(car.s, &r); err != nil {
-				b.Fatal(err)
+			r := benchEvaluate(b, ev, car.s)
+			iters := 0
+			for _, m := range r.Cases {
+				iters += m.Iterations
 			}
-			b.ReportAllocs()
-			b.ResetTimer()
-			for i := 0; i < b.N; i++ {
-				if err := ev.Evaluate(car.s, &r); err != nil {
-					b.Fatal(err)
-				}
-			}
+			b.ReportMetric(float64(iters), "iterations")
 		})
 	}
 }

@@ -44,6 +44,10 @@ type channel struct {
 	bk   [nDOF][nIn]float64  // Pᵀ Bk
 	bc   [nDOF][nIn]float64  // Pᵀ Bc
 	kind int                 // sourceInPhase, sourceAntiPhase or sourceGeneral
+	// src maps y back to x: x_i = y_(src_i - 1) when src_i > 0,
+	// -y_(-src_i - 1) when src_i < 0, 0 when src_i = 0 (every basis
+	// used has at most one entry ±1 per row).
+	src [nDOF]int8
 }
 
 const (
@@ -55,6 +59,20 @@ const (
 // project builds the channel Pᵀ(·)P of a full system for the basis p.
 func project(s *system, n int, p *[nDOF][nDOF]float64, kind int) channel {
 	ch := channel{n: n, p: *p, kind: kind}
+	for i := 0; i < nDOF; i++ {
+		for a := 0; a < n; a++ {
+			switch {
+			case p[i][a] == 0:
+				continue
+			case ch.src[i] != 0 || (p[i][a] != 1 && p[i][a] != -1):
+				panic("model: basis row is not a signed unit vector")
+			case p[i][a] == 1:
+				ch.src[i] = int8(a + 1)
+			default:
+				ch.src[i] = int8(-a - 1)
+			}
+		}
+	}
 	for a := 0; a < n; a++ {
 		for b := 0; b < n; b++ {
 			var kk, cc, mm float64
@@ -169,13 +187,18 @@ type outputGeometry struct {
 // Grid.bandWeights). With velOnly only the wheel-velocity outputs are computed. psd,
 // when not nil, receives the PSD of every output at every point
 // (len(psd) = nOut·points). It allocates nothing.
-func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wts []float64, bw *[4][]float64,
+//
+// cache, when not nil, holds each channel's damper-independent parts at
+// every grid point (fillCache); without it they are computed here, with
+// the same operations, so both give the same bits.
+func responseSpectra(chs []channel, cache []channelCache, cg *caseGrid, geo *outputGeometry, omega, wts []float64, bw *[4][]float64,
 	velOnly bool, acc *[nOut]float64, band *[4][nOut]float64, psd []float64) bool {
 	*acc = [nOut]float64{}
 	*band = [4][nOut]float64{}
 	var a [nDOF][nDOF]complex128
 	var rhs [nDOF][maxRHS]complex128
 	var w [maxRHS][nIn]complex128
+	var kdBuf [nDOF * nDOF]float64
 	var out [nOut]float64
 	// The outputs computed: all, or the wheel velocities alone (the
 	// others stay 0 and need no sums).
@@ -189,37 +212,48 @@ func responseSpectra(chs []channel, cg *caseGrid, geo *outputGeometry, omega, wt
 		for ci := range chs {
 			ch := &chs[ci]
 			n := ch.n
+			ns := sourceCount(ch.kind)
+			// The sources' inputs are read by the outputs other than
+			// the velocities, and by the right-hand side when it is not
+			// cached.
+			if cache == nil || !velOnly {
+				cg.sourceInputs(ch.kind, k, &w)
+			}
+			var kd []float64
+			if cache != nil {
+				cc := &cache[ci]
+				kd = cc.kd[k*n*n : (k+1)*n*n]
+				f := cc.rhs[k*n*ns : (k+1)*n*ns]
+				for r := 0; r < n; r++ {
+					for j := 0; j < ns; j++ {
+						rhs[r][j] = f[r*ns+j]
+					}
+				}
+			} else {
+				kd = kdBuf[:n*n]
+				ch.springMass(om, kd)
+				ch.forcing(om, &w, ns, &rhs)
+			}
 			for r := 0; r < n; r++ {
 				for c := 0; c < n; c++ {
-					a[r][c] = complex(ch.k[r][c], om*ch.c[r][c])
-				}
-				a[r][r] -= complex(om*om*ch.m[r], 0)
-			}
-			ns := cg.sourceInputs(ch.kind, k, &w)
-			for r := 0; r < n; r++ {
-				for j := 0; j < ns; j++ {
-					var s complex128
-					for q := 0; q < nIn; q++ {
-						if w[j][q] != 0 {
-							s += complex(ch.bk[r][q], om*ch.bc[r][q]) * w[j][q]
-						}
-					}
-					rhs[r][j] = s
+					a[r][c] = complex(kd[r*n+c], om*ch.c[r][c])
 				}
 			}
 			if !solveComplex(n, ns, &a, &rhs) {
 				return false
 			}
 			for j := 0; j < ns; j++ {
+				// x = P y: P's entries are 0 and ±1, one per row at
+				// most, so x is a pick of ±y, the value the product
+				// gives (up to the sign of a zero, which |·|² drops).
 				var x [nDOF]complex128
-				for i := 0; i < nDOF; i++ {
-					var s complex128
-					for r := 0; r < n; r++ {
-						if ch.p[i][r] != 0 {
-							s += complex(ch.p[i][r], 0) * rhs[r][j]
-						}
+				for i, sr := range ch.src {
+					switch {
+					case sr > 0:
+						x[i] = rhs[sr-1][j]
+					case sr < 0:
+						x[i] = -rhs[-sr-1][j]
 					}
-					x[i] = s
 				}
 				geo.accumulate(&out, &x, &w[j], jw, om, velOnly)
 			}
@@ -248,7 +282,7 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	var travel [4]complex128
 	for i := 0; i < 4; i++ {
 		d := &g.d[i]
-		s := x[dofWheel+i] + complex(d[0], 0)*x[0] + complex(d[1], 0)*x[1] + complex(d[2], 0)*x[2]
+		s := x[dofWheel+i] + scale(d[0], x[0]) + scale(d[1], x[1]) + scale(d[2], x[2])
 		travel[i] = s
 		out[outWheelVel+i] += om * om * abs2(s)
 		if velOnly {
@@ -260,7 +294,7 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	}
 	if g.heave {
 		for ax := 0; ax < 2; ax++ {
-			u := abs2((travel[2*ax] + travel[2*ax+1]) / 2)
+			u := abs2(scale(0.5, travel[2*ax]+travel[2*ax+1]))
 			out[outWheelVel+dampHeave+ax] += om * om * u
 			if !velOnly {
 				out[outAxleHeave+ax] += u
@@ -270,18 +304,18 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	if velOnly {
 		return
 	}
-	wf := (w[0] + w[1]) / 2
-	wr := (w[2] + w[3]) / 2
-	yc := complex(g.yc, 0) * x[2]
+	wf := scale(0.5, w[0]+w[1])
+	wr := scale(0.5, w[2]+w[3])
+	yc := scale(g.yc, x[2])
 	var p [nPlatform]complex128
-	p[0] = x[0] + complex(g.a, 0)*x[1] + yc - wf
-	p[1] = x[0] - complex(g.b, 0)*x[1] + yc - wr
-	p[2] = x[2] - (w[0]-w[1])/complex(g.tf, 0)
-	p[3] = x[2] - (w[2]-w[3])/complex(g.tr, 0)
+	p[0] = x[0] + scale(g.a, x[1]) + yc - wf
+	p[1] = x[0] - scale(g.b, x[1]) + yc - wr
+	p[2] = x[2] - over(w[0]-w[1], g.tf)
+	p[3] = x[2] - over(w[2]-w[3], g.tr)
 	out[outRide] += abs2(p[0])
 	out[outRide+1] += abs2(p[1])
-	out[outPitch] += abs2(x[1] - (wf-wr)/complex(g.a+g.b, 0))
-	out[outRoll] += abs2(x[2] - ((w[0]-w[1])/complex(g.tf, 0)+(w[2]-w[3])/complex(g.tr, 0))/2)
+	out[outPitch] += abs2(x[1] - over(wf-wr, g.a+g.b))
+	out[outRoll] += abs2(x[2] - scale(0.5, over(w[0]-w[1], g.tf)+over(w[2]-w[3], g.tr)))
 	out[outHeaveAcc] += om * om * om * om * abs2(x[0])
 	out[outRollAxle] += abs2(p[2])
 	out[outRollAxle+1] += abs2(p[3])

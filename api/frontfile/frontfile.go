@@ -58,8 +58,10 @@ var slopeColumns = []struct {
 }
 
 // Columns are the columns of front's rows, in order: index, the genes,
-// the objectives, the four slopes, each constraint's violation, feasible
-// and balanced.
+// the objectives, the four slopes, each constraint's violation,
+// out_of_band_n (the largest excess over the adjuster range, N at the
+// damper, over the corners and directions; 0 inside the band or without
+// one), feasible and balanced.
 func Columns(f *pb.Front) []string {
 	cols := []string{"index"}
 	cols = append(cols, f.GetGeneNames()...)
@@ -72,7 +74,17 @@ func Columns(f *pb.Front) []string {
 	for _, c := range f.GetConstraints() {
 		cols = append(cols, ConstraintColumn(c))
 	}
-	return append(cols, "feasible", "balanced")
+	return append(cols, "out_of_band_n", "feasible", "balanced")
+}
+
+// OutOfBand is the largest excess over the adjuster range of a solution
+// (N at the damper), 0 when it lies inside or the job has no band.
+func OutOfBand(s *pb.Solution) float64 {
+	worst := 0.0
+	for _, e := range s.GetOutOfBand() {
+		worst = max(worst, e.GetOverN())
+	}
+	return worst
 }
 
 // Balanced is the position in f's solutions of the balanced point
@@ -112,7 +124,7 @@ func row(f *pb.Front, s *pb.Solution, balanced bool) []any {
 		}
 		out = append(out, v)
 	}
-	return append(out, s.GetFeasible(), balanced)
+	return append(out, OutOfBand(s), s.GetFeasible(), balanced)
 }
 
 // Number is the text of an SI value in CSV: the shortest that reads back

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"time"
 
+	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/plot"
 	"dampfront/api/sheet"
@@ -226,6 +227,13 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 		hs = append(hs, header{Label: c.label + " bump slope", Unit: qSlope.unit, Numeric: true},
 			header{Label: c.label + " rebound slope", Unit: qSlope.unit, Numeric: true})
 	}
+	band := false
+	for _, s := range front.GetSolutions() {
+		band = band || len(s.GetOutOfBand()) > 0
+	}
+	if band {
+		hs = append(hs, header{Label: "Out of adjuster range", Unit: "N", Numeric: true})
+	}
 	hs = append(hs, header{Label: "Warnings", Numeric: true}, header{Label: "Sheet"})
 
 	base := jobPath(id)
@@ -254,11 +262,24 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 			}
 			row.Cells = append(row.Cells, bump, rebound)
 		}
+		if band {
+			row.Cells = append(row.Cells, bandCell(s))
+		}
 		n := strconv.Itoa(len(s.GetWarnings()))
 		row.Cells = append(row.Cells, cell{Text: n, Sort: n}, cell{Text: "sheet", Sort: ""})
 		rows = append(rows, row)
 	}
 	return hs, rows
+}
+
+// bandCell is the largest excess of a solution's dampers over the
+// adjuster range (frontfile.OutOfBand), empty inside the range.
+func bandCell(s *pb.Solution) cell {
+	x := frontfile.OutOfBand(s)
+	if x == 0 {
+		return cell{Sort: "0"}
+	}
+	return cell{Text: fmt.Sprintf("+%.0f", x), Sort: siText(x)}
 }
 
 // numCell is the table cell of values[i] in q's trade unit, sorting by

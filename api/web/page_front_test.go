@@ -48,6 +48,12 @@ func TestJobPageFront(t *testing.T) {
 	if !strings.Contains(chart[1], ">#11<") {
 		t.Error("the selected solution 11 is not labelled on the front chart")
 	}
+	// The demo's adjustment band (bump 0.3-1.0, rebound 0.5-1.4) is
+	// narrower than the seeded ratios' range (0.2-1.6): solutions outside
+	// it are flagged in their own column.
+	if !strings.Contains(body, "Out of adjuster range") {
+		t.Error("no out-of-band column on the page of a front with solutions outside the adjuster range")
+	}
 	if !strings.Contains(body, "Ashgrove Ring, fast sweepers at 55 m/s") || strings.Contains(body, "km/h") {
 		t.Errorf("road speeds are not in m/s:\n%.1500s", body)
 	}

@@ -139,6 +139,9 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 			fmt.Fprintf(w, "    %s over its limit %s %s by %.1f %%\n", q.label, tradeNum(q, c.GetLimit()), q.unit, pct(s.GetViolations()[k]))
 		}
 	}
+	for _, c := range s.GetClicks() {
+		fmt.Fprintf(w, "  clicks from the stiffest: %s\n", api.ClicksText(c))
+	}
 	for _, wn := range s.GetWarnings() {
 		fmt.Fprintf(w, "  warning: %s\n", plain(wn))
 	}

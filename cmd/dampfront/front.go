@@ -142,6 +142,9 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 	}
 	bal := balancedIndex(sols)
 	cols := newSolutionColumns(f)
+	for _, s := range sols {
+		cols.band = cols.band || len(s.GetOutOfBand()) > 0
+	}
 	_, withSlopes := slopes(sols[0])
 
 	fmt.Fprintln(w)
@@ -180,7 +183,10 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 	}
 	fmt.Fprintf(w, "\n* balanced point: solution %d, nearest the middle of the front with each objective normalised over it.\n", sols[bal].GetIndex())
 	if warned > 0 {
-		fmt.Fprintf(w, "%d solutions carry validity warnings (lift-off or bump-stop contact); see --format json.\n", warned)
+		fmt.Fprintf(w, "%d solutions carry warnings (lift-off, bump-stop contact, outside the adjuster range); see --format json.\n", warned)
+	}
+	if cols.band {
+		fmt.Fprintln(w, "Out of range: the largest excess of the damper force over the adjuster range (25-300 mm/s, at the damper); get such a damper made or widen its adjusters.")
 	}
 	return nil
 }
@@ -192,6 +198,7 @@ type solutionColumns struct {
 	genes []string
 	extra []int      // indices of the genes beyond the four ratios
 	objQ  []quantity // of each objective
+	band  bool       // show the out-of-range column (the front table, when a solution needs it)
 }
 
 func newSolutionColumns(f *pb.Front) *solutionColumns {
@@ -215,6 +222,9 @@ func (c *solutionColumns) headers() (h1, h2 []string) {
 	for _, q := range c.objQ {
 		h1, h2 = append(h1, q.label), append(h2, q.unit)
 	}
+	if c.band {
+		h1, h2 = append(h1, "out of range"), append(h2, "N")
+	}
 	return h1, h2
 }
 
@@ -234,6 +244,13 @@ func (c *solutionColumns) cells(s *pb.Solution, balanced bool) []string {
 	}
 	for k, q := range c.objQ {
 		row = append(row, tradeNum(q, s.GetObjectives()[k]))
+	}
+	if c.band {
+		out := ""
+		if x := frontfile.OutOfBand(s); x > 0 {
+			out = fmt.Sprintf("+%.0f", x)
+		}
+		row = append(row, out)
 	}
 	return row
 }

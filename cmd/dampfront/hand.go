@@ -198,6 +198,9 @@ func writeHandTable(w io.Writer, name string, r *pb.EstimateByHandResponse) erro
 	if err := t.flush(); err != nil {
 		return err
 	}
+	if err := writeHandAxles(w, r.GetAxles()); err != nil {
+		return err
+	}
 	if err := writeHandModes(w, r); err != nil {
 		return err
 	}

@@ -114,3 +114,20 @@ func TestWriteHeave(t *testing.T) {
 		t.Errorf("a car without heave elements got %q (%v)", b.String(), err)
 	}
 }
+
+// hand on the prototype shows each axle's heave figures: the front heave
+// rate is 2 × 80 + 600 × 1.0² = 760 N/mm (Gillespie 1992, ride rate: the
+// heave spring in parallel with the corner springs; worked by hand from
+// testdata/tessaly-p3.yaml), the rear 2 × 90 + 700 × 0.9² = 747 N/mm.
+func TestHandPrototypeHeave(t *testing.T) {
+	t.Parallel()
+	r := mustRun(t, exitOK, nil, "hand", "--spec", testdataPath("prototype-job.yaml"))
+	for _, want := range []string{"Heave per axle", "heave rate    N/mm  760.0  747.0"} {
+		if !strings.Contains(r.stdout, want) {
+			t.Errorf("hand output lacks %q:\n%s", want, r.stdout)
+		}
+	}
+	if r := mustRun(t, exitOK, nil, "hand", "--spec", testdataPath("demo-job.yaml")); strings.Contains(r.stdout, "Heave per axle") {
+		t.Errorf("a car without heave elements shows heave figures:\n%s", r.stdout)
+	}
+}

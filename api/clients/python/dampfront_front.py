@@ -153,7 +153,7 @@ def columns(front):
             + [objective_column(o.kind) for o in front.objectives]
             + [c for _, bump, rebound in SLOPE_COLUMNS for c in (bump, rebound)]
             + [constraint_column(c) for c in front.constraints]
-            + ["feasible", "balanced"])
+            + ["out_of_band_n", "feasible", "balanced"])
 
 
 def objective_column(kind):
@@ -177,7 +177,8 @@ def row(front, s, is_balanced):
                 bump, rebound = dc.bump_slope_n_s_per_m, dc.rebound_slope_n_s_per_m
         values += [bump, rebound]
     values += [s.violations[k] if k < len(s.violations) else 0.0 for k in range(len(front.constraints))]
-    return values + [s.feasible, is_balanced]
+    out_of_band = max((e.over_n for e in s.out_of_band), default=0.0)
+    return values + [out_of_band, s.feasible, is_balanced]
 
 
 def cell(v):

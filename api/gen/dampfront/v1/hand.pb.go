@@ -169,6 +169,138 @@ func (x *HandCorner) GetRebound() *HandBranch {
 	return nil
 }
 
+// HandAxle is the hand method's heave figures of one axle: the heave
+// ride rate puts the heave spring in parallel with the corner springs,
+// 2 k_w + k3 MR3^2 (Gillespie 1992, ride rate), the ride frequency is
+// sqrt(rate / axle sprung mass) / 2 pi with the tyres rigid, and the heave
+// critical damping is 2 sqrt(rate * axle sprung mass).
+type HandAxle struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// "front" or "rear".
+	Axle string `protobuf:"bytes,1,opt,name=axle,proto3" json:"axle,omitempty"`
+	// The axle's heave rate at the wheels, corner springs and heave spring.
+	HeaveRateNPerM float64 `protobuf:"fixed64,2,opt,name=heave_rate_n_per_m,json=heaveRateNPerM,proto3" json:"heave_rate_n_per_m,omitempty"`
+	// The heave spring's share of it, k3 MR3^2; 0 without a heave spring.
+	HeaveSpringRateNPerM float64 `protobuf:"fixed64,3,opt,name=heave_spring_rate_n_per_m,json=heaveSpringRateNPerM,proto3" json:"heave_spring_rate_n_per_m,omitempty"`
+	// The axle's sprung mass.
+	SprungMassKg float64 `protobuf:"fixed64,4,opt,name=sprung_mass_kg,json=sprungMassKg,proto3" json:"sprung_mass_kg,omitempty"`
+	// Heave ride frequency of the axle, tyres rigid.
+	HeaveFrequencyHz float64 `protobuf:"fixed64,5,opt,name=heave_frequency_hz,json=heaveFrequencyHz,proto3" json:"heave_frequency_hz,omitempty"`
+	// The heave element's motion ratio; 0 without one.
+	HeaveMotionRatio float64 `protobuf:"fixed64,6,opt,name=heave_motion_ratio,json=heaveMotionRatio,proto3" json:"heave_motion_ratio,omitempty"`
+	// Heave critical damping on the axle's mean wheel travel.
+	CriticalDampingHeaveNSPerM float64 `protobuf:"fixed64,7,opt,name=critical_damping_heave_n_s_per_m,json=criticalDampingHeaveNSPerM,proto3" json:"critical_damping_heave_n_s_per_m,omitempty"`
+	// The same at the heave element (over MR3^2); 0 without one.
+	CriticalDampingElementNSPerM float64 `protobuf:"fixed64,8,opt,name=critical_damping_element_n_s_per_m,json=criticalDampingElementNSPerM,proto3" json:"critical_damping_element_n_s_per_m,omitempty"`
+	// The heave damper's bump at the element from the targets' heave
+	// setting; absent without one.
+	Bump *HandBranch `protobuf:"bytes,9,opt,name=bump,proto3" json:"bump,omitempty"`
+	// The heave damper's rebound, as bump.
+	Rebound       *HandBranch `protobuf:"bytes,10,opt,name=rebound,proto3" json:"rebound,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *HandAxle) Reset() {
+	*x = HandAxle{}
+	mi := &file_dampfront_v1_hand_proto_msgTypes[1]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *HandAxle) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*HandAxle) ProtoMessage() {}
+
+func (x *HandAxle) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_hand_proto_msgTypes[1]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use HandAxle.ProtoReflect.Descriptor instead.
+func (*HandAxle) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{1}
+}
+
+func (x *HandAxle) GetAxle() string {
+	if x != nil {
+		return x.Axle
+	}
+	return ""
+}
+
+func (x *HandAxle) GetHeaveRateNPerM() float64 {
+	if x != nil {
+		return x.HeaveRateNPerM
+	}
+	return 0
+}
+
+func (x *HandAxle) GetHeaveSpringRateNPerM() float64 {
+	if x != nil {
+		return x.HeaveSpringRateNPerM
+	}
+	return 0
+}
+
+func (x *HandAxle) GetSprungMassKg() float64 {
+	if x != nil {
+		return x.SprungMassKg
+	}
+	return 0
+}
+
+func (x *HandAxle) GetHeaveFrequencyHz() float64 {
+	if x != nil {
+		return x.HeaveFrequencyHz
+	}
+	return 0
+}
+
+func (x *HandAxle) GetHeaveMotionRatio() float64 {
+	if x != nil {
+		return x.HeaveMotionRatio
+	}
+	return 0
+}
+
+func (x *HandAxle) GetCriticalDampingHeaveNSPerM() float64 {
+	if x != nil {
+		return x.CriticalDampingHeaveNSPerM
+	}
+	return 0
+}
+
+func (x *HandAxle) GetCriticalDampingElementNSPerM() float64 {
+	if x != nil {
+		return x.CriticalDampingElementNSPerM
+	}
+	return 0
+}
+
+func (x *HandAxle) GetBump() *HandBranch {
+	if x != nil {
+		return x.Bump
+	}
+	return nil
+}
+
+func (x *HandAxle) GetRebound() *HandBranch {
+	if x != nil {
+		return x.Rebound
+	}
+	return nil
+}
+
 // HandBranch is one direction of a corner's damper at the component.
 type HandBranch struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -196,7 +328,7 @@ type HandBranch struct {
 
 func (x *HandBranch) Reset() {
 	*x = HandBranch{}
-	mi := &file_dampfront_v1_hand_proto_msgTypes[1]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[2]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -208,7 +340,7 @@ func (x *HandBranch) String() string {
 func (*HandBranch) ProtoMessage() {}
 
 func (x *HandBranch) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_hand_proto_msgTypes[1]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[2]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -221,7 +353,7 @@ func (x *HandBranch) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use HandBranch.ProtoReflect.Descriptor instead.
 func (*HandBranch) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{1}
+	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{2}
 }
 
 func (x *HandBranch) GetRatio() float64 {
@@ -312,7 +444,7 @@ type HandMode struct {
 
 func (x *HandMode) Reset() {
 	*x = HandMode{}
-	mi := &file_dampfront_v1_hand_proto_msgTypes[2]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[3]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -324,7 +456,7 @@ func (x *HandMode) String() string {
 func (*HandMode) ProtoMessage() {}
 
 func (x *HandMode) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_hand_proto_msgTypes[2]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[3]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -337,7 +469,7 @@ func (x *HandMode) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use HandMode.ProtoReflect.Descriptor instead.
 func (*HandMode) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{2}
+	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{3}
 }
 
 func (x *HandMode) GetName() string {
@@ -409,7 +541,7 @@ type EstimateByHandRequest struct {
 
 func (x *EstimateByHandRequest) Reset() {
 	*x = EstimateByHandRequest{}
-	mi := &file_dampfront_v1_hand_proto_msgTypes[3]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[4]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -421,7 +553,7 @@ func (x *EstimateByHandRequest) String() string {
 func (*EstimateByHandRequest) ProtoMessage() {}
 
 func (x *EstimateByHandRequest) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_hand_proto_msgTypes[3]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[4]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -434,7 +566,7 @@ func (x *EstimateByHandRequest) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use EstimateByHandRequest.ProtoReflect.Descriptor instead.
 func (*EstimateByHandRequest) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{3}
+	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{4}
 }
 
 func (x *EstimateByHandRequest) GetVehicle() *Vehicle {
@@ -479,14 +611,17 @@ type EstimateByHandResponse struct {
 	// Heave, pitch and roll.
 	Modes []*HandMode `protobuf:"bytes,5,rep,name=modes,proto3" json:"modes,omitempty"`
 	// The caution that goes with every figure of this tool.
-	Caution       string `protobuf:"bytes,6,opt,name=caution,proto3" json:"caution,omitempty"`
+	Caution string `protobuf:"bytes,6,opt,name=caution,proto3" json:"caution,omitempty"`
+	// Heave figures per axle, front and rear: the heave ride rate with the
+	// heave (third) spring and its heave damper at the element.
+	Axles         []*HandAxle `protobuf:"bytes,20,rep,name=axles,proto3" json:"axles,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
 
 func (x *EstimateByHandResponse) Reset() {
 	*x = EstimateByHandResponse{}
-	mi := &file_dampfront_v1_hand_proto_msgTypes[4]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -498,7 +633,7 @@ func (x *EstimateByHandResponse) String() string {
 func (*EstimateByHandResponse) ProtoMessage() {}
 
 func (x *EstimateByHandResponse) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_hand_proto_msgTypes[4]
+	mi := &file_dampfront_v1_hand_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -511,7 +646,7 @@ func (x *EstimateByHandResponse) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use EstimateByHandResponse.ProtoReflect.Descriptor instead.
 func (*EstimateByHandResponse) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_hand_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *EstimateByHandResponse) GetTargets() *Setup {
@@ -556,6 +691,13 @@ func (x *EstimateByHandResponse) GetCaution() string {
 	return ""
 }
 
+func (x *EstimateByHandResponse) GetAxles() []*HandAxle {
+	if x != nil {
+		return x.Axles
+	}
+	return nil
+}
+
 var File_dampfront_v1_hand_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_hand_proto_rawDesc = "" +
@@ -575,7 +717,19 @@ const file_dampfront_v1_hand_proto_rawDesc = "" +
 	"!critical_damping_damper_n_s_per_m\x18\n" +
 	" \x01(\x01R\x1bcriticalDampingDamperNSPerM\x12,\n" +
 	"\x04bump\x18\v \x01(\v2\x18.dampfront.v1.HandBranchR\x04bump\x122\n" +
-	"\arebound\x18\f \x01(\v2\x18.dampfront.v1.HandBranchR\arebound\"\x95\x03\n" +
+	"\arebound\x18\f \x01(\v2\x18.dampfront.v1.HandBranchR\arebound\"\xf7\x03\n" +
+	"\bHandAxle\x12\x12\n" +
+	"\x04axle\x18\x01 \x01(\tR\x04axle\x12*\n" +
+	"\x12heave_rate_n_per_m\x18\x02 \x01(\x01R\x0eheaveRateNPerM\x127\n" +
+	"\x19heave_spring_rate_n_per_m\x18\x03 \x01(\x01R\x14heaveSpringRateNPerM\x12$\n" +
+	"\x0esprung_mass_kg\x18\x04 \x01(\x01R\fsprungMassKg\x12,\n" +
+	"\x12heave_frequency_hz\x18\x05 \x01(\x01R\x10heaveFrequencyHz\x12,\n" +
+	"\x12heave_motion_ratio\x18\x06 \x01(\x01R\x10heaveMotionRatio\x12D\n" +
+	" critical_damping_heave_n_s_per_m\x18\a \x01(\x01R\x1acriticalDampingHeaveNSPerM\x12H\n" +
+	"\"critical_damping_element_n_s_per_m\x18\b \x01(\x01R\x1ccriticalDampingElementNSPerM\x12,\n" +
+	"\x04bump\x18\t \x01(\v2\x18.dampfront.v1.HandBranchR\x04bump\x122\n" +
+	"\arebound\x18\n" +
+	" \x01(\v2\x18.dampfront.v1.HandBranchR\arebound\"\x95\x03\n" +
 	"\n" +
 	"HandBranch\x12\x14\n" +
 	"\x05ratio\x18\x01 \x01(\x01R\x05ratio\x12$\n" +
@@ -604,7 +758,7 @@ const file_dampfront_v1_hand_proto_rawDesc = "" +
 	"adjustment\x18\x03 \x01(\v2\x18.dampfront.v1.AdjustmentR\n" +
 	"adjustment\x12!\n" +
 	"\rspeed_m_per_s\x18\x04 \x01(\x01R\n" +
-	"speedMPerS\"\xa0\x02\n" +
+	"speedMPerS\"\xce\x02\n" +
 	"\x16EstimateByHandResponse\x12-\n" +
 	"\atargets\x18\x01 \x01(\v2\x13.dampfront.v1.SetupR\atargets\x128\n" +
 	"\n" +
@@ -614,7 +768,8 @@ const file_dampfront_v1_hand_proto_rawDesc = "" +
 	"speedMPerS\x122\n" +
 	"\acorners\x18\x04 \x03(\v2\x18.dampfront.v1.HandCornerR\acorners\x12,\n" +
 	"\x05modes\x18\x05 \x03(\v2\x16.dampfront.v1.HandModeR\x05modes\x12\x18\n" +
-	"\acaution\x18\x06 \x01(\tR\acautionB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\acaution\x18\x06 \x01(\tR\acaution\x12,\n" +
+	"\x05axles\x18\x14 \x03(\v2\x16.dampfront.v1.HandAxleR\x05axlesB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_hand_proto_rawDescOnce sync.Once
@@ -628,36 +783,40 @@ func file_dampfront_v1_hand_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_hand_proto_rawDescData
 }
 
-var file_dampfront_v1_hand_proto_msgTypes = make([]protoimpl.MessageInfo, 5)
+var file_dampfront_v1_hand_proto_msgTypes = make([]protoimpl.MessageInfo, 6)
 var file_dampfront_v1_hand_proto_goTypes = []any{
 	(*HandCorner)(nil),             // 0: dampfront.v1.HandCorner
-	(*HandBranch)(nil),             // 1: dampfront.v1.HandBranch
-	(*HandMode)(nil),               // 2: dampfront.v1.HandMode
-	(*EstimateByHandRequest)(nil),  // 3: dampfront.v1.EstimateByHandRequest
-	(*EstimateByHandResponse)(nil), // 4: dampfront.v1.EstimateByHandResponse
-	(CornerPosition)(0),            // 5: dampfront.v1.CornerPosition
-	(*Mode)(nil),                   // 6: dampfront.v1.Mode
-	(*Vehicle)(nil),                // 7: dampfront.v1.Vehicle
-	(*Setup)(nil),                  // 8: dampfront.v1.Setup
-	(*Adjustment)(nil),             // 9: dampfront.v1.Adjustment
+	(*HandAxle)(nil),               // 1: dampfront.v1.HandAxle
+	(*HandBranch)(nil),             // 2: dampfront.v1.HandBranch
+	(*HandMode)(nil),               // 3: dampfront.v1.HandMode
+	(*EstimateByHandRequest)(nil),  // 4: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil), // 5: dampfront.v1.EstimateByHandResponse
+	(CornerPosition)(0),            // 6: dampfront.v1.CornerPosition
+	(*Mode)(nil),                   // 7: dampfront.v1.Mode
+	(*Vehicle)(nil),                // 8: dampfront.v1.Vehicle
+	(*Setup)(nil),                  // 9: dampfront.v1.Setup
+	(*Adjustment)(nil),             // 10: dampfront.v1.Adjustment
 }
 var file_dampfront_v1_hand_proto_depIdxs = []int32{
-	5,  // 0: dampfront.v1.HandCorner.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 1: dampfront.v1.HandCorner.bump:type_name -> dampfront.v1.HandBranch
-	1,  // 2: dampfront.v1.HandCorner.rebound:type_name -> dampfront.v1.HandBranch
-	6,  // 3: dampfront.v1.HandMode.modal:type_name -> dampfront.v1.Mode
-	7,  // 4: dampfront.v1.EstimateByHandRequest.vehicle:type_name -> dampfront.v1.Vehicle
-	8,  // 5: dampfront.v1.EstimateByHandRequest.targets:type_name -> dampfront.v1.Setup
-	9,  // 6: dampfront.v1.EstimateByHandRequest.adjustment:type_name -> dampfront.v1.Adjustment
-	8,  // 7: dampfront.v1.EstimateByHandResponse.targets:type_name -> dampfront.v1.Setup
-	9,  // 8: dampfront.v1.EstimateByHandResponse.adjustment:type_name -> dampfront.v1.Adjustment
-	0,  // 9: dampfront.v1.EstimateByHandResponse.corners:type_name -> dampfront.v1.HandCorner
-	2,  // 10: dampfront.v1.EstimateByHandResponse.modes:type_name -> dampfront.v1.HandMode
-	11, // [11:11] is the sub-list for method output_type
-	11, // [11:11] is the sub-list for method input_type
-	11, // [11:11] is the sub-list for extension type_name
-	11, // [11:11] is the sub-list for extension extendee
-	0,  // [0:11] is the sub-list for field type_name
+	6,  // 0: dampfront.v1.HandCorner.corner:type_name -> dampfront.v1.CornerPosition
+	2,  // 1: dampfront.v1.HandCorner.bump:type_name -> dampfront.v1.HandBranch
+	2,  // 2: dampfront.v1.HandCorner.rebound:type_name -> dampfront.v1.HandBranch
+	2,  // 3: dampfront.v1.HandAxle.bump:type_name -> dampfront.v1.HandBranch
+	2,  // 4: dampfront.v1.HandAxle.rebound:type_name -> dampfront.v1.HandBranch
+	7,  // 5: dampfront.v1.HandMode.modal:type_name -> dampfront.v1.Mode
+	8,  // 6: dampfront.v1.EstimateByHandRequest.vehicle:type_name -> dampfront.v1.Vehicle
+	9,  // 7: dampfront.v1.EstimateByHandRequest.targets:type_name -> dampfront.v1.Setup
+	10, // 8: dampfront.v1.EstimateByHandRequest.adjustment:type_name -> dampfront.v1.Adjustment
+	9,  // 9: dampfront.v1.EstimateByHandResponse.targets:type_name -> dampfront.v1.Setup
+	10, // 10: dampfront.v1.EstimateByHandResponse.adjustment:type_name -> dampfront.v1.Adjustment
+	0,  // 11: dampfront.v1.EstimateByHandResponse.corners:type_name -> dampfront.v1.HandCorner
+	3,  // 12: dampfront.v1.EstimateByHandResponse.modes:type_name -> dampfront.v1.HandMode
+	1,  // 13: dampfront.v1.EstimateByHandResponse.axles:type_name -> dampfront.v1.HandAxle
+	14, // [14:14] is the sub-list for method output_type
+	14, // [14:14] is the sub-list for method input_type
+	14, // [14:14] is the sub-list for extension type_name
+	14, // [14:14] is the sub-list for extension extendee
+	0,  // [0:14] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_hand_proto_init() }
@@ -674,7 +833,7 @@ func file_dampfront_v1_hand_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_hand_proto_rawDesc), len(file_dampfront_v1_hand_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   5,
+			NumMessages:   6,
 			NumExtensions: 0,
 			NumServices:   0,
 		},
