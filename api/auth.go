@@ -53,17 +53,18 @@ const (
 // missing here needs RoleAdmin, so a new RPC is closed until it is given
 // a role.
 var methodRoles = map[string]Role{
-	pb.DampfrontService_GetJob_FullMethodName:          RoleReader,
-	pb.DampfrontService_ListJobs_FullMethodName:        RoleReader,
-	pb.DampfrontService_WatchJob_FullMethodName:        RoleReader,
-	pb.DampfrontService_GetFront_FullMethodName:        RoleReader,
-	pb.DampfrontService_EstimateByHand_FullMethodName:  RoleReader, // no job, no road: the car alone
-	pb.DampfrontService_SubmitJob_FullMethodName:       RoleSubmitter,
-	pb.DampfrontService_EvaluateSetups_FullMethodName:  RoleSubmitter,
-	pb.DampfrontService_CompareSetup_FullMethodName:    RoleSubmitter,
-	pb.DampfrontService_GetDamperCurves_FullMethodName: RoleSubmitter,
-	pb.DampfrontService_VerifySetup_FullMethodName:     RoleSubmitter,
-	pb.DampfrontService_CancelJob_FullMethodName:       RoleSubmitter, // own jobs; others' need RoleAdmin
+	pb.DampfrontService_GetJob_FullMethodName:              RoleReader,
+	pb.DampfrontService_ListJobs_FullMethodName:            RoleReader,
+	pb.DampfrontService_WatchJob_FullMethodName:            RoleReader,
+	pb.DampfrontService_GetFront_FullMethodName:            RoleReader,
+	pb.DampfrontService_EstimateByHand_FullMethodName:      RoleReader, // no job, no road: the car alone
+	pb.DampfrontService_SubmitJob_FullMethodName:           RoleSubmitter,
+	pb.DampfrontService_EvaluateSetups_FullMethodName:      RoleSubmitter,
+	pb.DampfrontService_CompareSetup_FullMethodName:        RoleSubmitter,
+	pb.DampfrontService_GetDamperCurves_FullMethodName:     RoleSubmitter,
+	pb.DampfrontService_VerifySetup_FullMethodName:         RoleSubmitter,
+	pb.DampfrontService_GetTransientHistory_FullMethodName: RoleSubmitter,
+	pb.DampfrontService_CancelJob_FullMethodName:           RoleSubmitter, // own jobs; others' need RoleAdmin
 }
 
 // openServices answer without a token.

@@ -113,6 +113,10 @@ var (
 		pb.ObjectiveKind_OBJECTIVE_KIND_HEAVE_ACCEL:    model.ObjectiveHeaveAccel,
 		pb.ObjectiveKind_OBJECTIVE_KIND_DOWNFORCE:      model.ObjectiveDownforce,
 		pb.ObjectiveKind_OBJECTIVE_KIND_BALANCE:        model.ObjectiveBalance,
+
+		pb.ObjectiveKind_OBJECTIVE_KIND_DRIVER_RESPONSE:   model.ObjectiveDriverResponse,
+		pb.ObjectiveKind_OBJECTIVE_KIND_TRANSIENT_BALANCE: model.ObjectiveTransientBalance,
+		pb.ObjectiveKind_OBJECTIVE_KIND_KERB_LOAD_LOSS:    model.ObjectiveKerbLoadLoss,
 	}
 	aggregations = map[pb.Aggregation]model.Aggregation{
 		pb.Aggregation_AGGREGATION_UNSPECIFIED: model.AggregateMeanSquare,
@@ -127,6 +131,8 @@ var (
 		pb.ConstraintKind_CONSTRAINT_KIND_JACKING:       model.ConstraintJacking,
 		pb.ConstraintKind_CONSTRAINT_KIND_MODAL_RATIO:   model.ConstraintModalRatio,
 		pb.ConstraintKind_CONSTRAINT_KIND_FLOOR_CONTACT: model.ConstraintFloorContact,
+		pb.ConstraintKind_CONSTRAINT_KIND_UNLOADED_TIME: model.ConstraintUnloadedTime,
+		pb.ConstraintKind_CONSTRAINT_KIND_STOP_TIME:     model.ConstraintStopTime,
 	}
 )
 

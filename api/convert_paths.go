@@ -29,6 +29,11 @@ var pathRules = []struct {
 	{regexp.MustCompile(`(^|\.)heave\[1\]`), "${1}rear_heave"},
 	{regexp.MustCompile(`(^|\.)heave_ratio\[0\]`), "${1}front_heave_ratio"},
 	{regexp.MustCompile(`(^|\.)heave_ratio\[1\]`), "${1}rear_heave_ratio"},
+	// Load paths: per-axle pairs.
+	{regexp.MustCompile(`(^|\.)(roll_centre_height_m|anti_brake|anti_drive|unsprung_cg_height_m)\[0\]`), "${1}front_${2}"},
+	{regexp.MustCompile(`(^|\.)(roll_centre_height_m|anti_brake|anti_drive|unsprung_cg_height_m)\[1\]`), "${1}rear_${2}"},
+	// Manoeuvres: accelerations are given in g.
+	{regexp.MustCompile(`(^|\.)(longitudinal|lateral|ax|ay)_m_per_s2$`), "${1}${2}_g"},
 	// "give all four sprung loads or none" concerns the corner list.
 	{regexp.MustCompile(`(^|\.)corners\.sprung_load_n$`), "${1}corners"},
 	// Road case: the power law is a sub-message of the spectrum oneof.

@@ -24,8 +24,17 @@ func solutionToProto(s *study.Solution) *pb.Solution {
 	if s.Curves != nil {
 		out.DamperCurves = damperCurvesToProto(s.Curves)
 	}
+	for i := range s.Transients {
+		out.TransientMetrics = append(out.TransientMetrics, transientMetricsToProto(&s.Transients[i]))
+	}
 	for _, sf := range s.Shortfalls {
-		out.Shortfalls = append(out.Shortfalls, shortfallToProto(sf, s.Cases[sf.Case].Metrics.Case))
+		name := ""
+		if sf.Constraint.Kind.OnTransients() {
+			name = s.Transients[sf.Case].Case
+		} else {
+			name = s.Cases[sf.Case].Metrics.Case
+		}
+		out.Shortfalls = append(out.Shortfalls, shortfallToProto(sf, name))
 	}
 	return finiteSolution(out)
 }

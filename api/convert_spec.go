@@ -15,17 +15,20 @@ import (
 func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 	at := under(prefix)
 	out := &study.Spec{
-		DisplayName: s.GetDisplayName(),
-		Labels:      s.GetLabels(),
-		Vehicle:     vehicleFromProto(s.GetVehicle(), at("vehicle"), p),
-		RoadCases:   roadCasesFromProto(s.GetRoadCases(), at("road_cases"), p),
-		Grid:        gridFromProto(s.GetGrid()),
-		Design:      designFromProto(s.GetDesignSpace(), at("design_space"), p),
-		Objectives:  objectivesFromProto(s.GetObjectives(), at("objectives"), p),
-		Constraints: constraintsFromProto(s.GetConstraints(), at("constraints"), p),
-		Adjustment:  adjustmentFromProto(s.GetAdjustment()),
-		Adjusters:   adjustersFromProto(s.GetAdjusters()),
-		Curves:      study.Curves{MaxVelocity: s.GetCurves().GetMaxVelocityMPerS(), Points: int(s.GetCurves().GetPoints())},
+		DisplayName:  s.GetDisplayName(),
+		Labels:       s.GetLabels(),
+		Vehicle:      vehicleFromProto(s.GetVehicle(), at("vehicle"), p),
+		RoadCases:    roadCasesFromProto(s.GetRoadCases(), at("road_cases"), p),
+		Manoeuvres:   manoeuvresFromProto(s.GetManoeuvres(), at("manoeuvres"), p),
+		Kerbs:        kerbsFromProto(s.GetKerbs(), at("kerbs"), p),
+		LoadFraction: s.GetLoadFraction(),
+		Grid:         gridFromProto(s.GetGrid()),
+		Design:       designFromProto(s.GetDesignSpace(), at("design_space"), p),
+		Objectives:   objectivesFromProto(s.GetObjectives(), at("objectives"), p),
+		Constraints:  constraintsFromProto(s.GetConstraints(), at("constraints"), p),
+		Adjustment:   adjustmentFromProto(s.GetAdjustment()),
+		Adjusters:    adjustersFromProto(s.GetAdjusters()),
+		Curves:       study.Curves{MaxVelocity: s.GetCurves().GetMaxVelocityMPerS(), Points: int(s.GetCurves().GetPoints())},
 	}
 	if ref := s.GetReferenceSetup(); ref != nil {
 		r := setupFromProto(ref, at("reference_setup"), p)

@@ -28,6 +28,7 @@ func vehicleFromProto(v *pb.Vehicle, path string, p *problems) model.Vehicle {
 		AntiRoll:       [2]model.AntiRollBar{antiRollFromProto(v.GetFrontAntiRollBar()), antiRollFromProto(v.GetRearAntiRollBar())},
 		RestRideHeight: [2]float64{v.GetFrontRestRideHeightM(), v.GetRearRestRideHeightM()},
 		Heave:          [2]model.HeaveElement{heaveFromProto(v.GetFrontHeave()), heaveFromProto(v.GetRearHeave())},
+		LoadPaths:      loadPathsFromProto(v.GetLoadPaths()),
 	}
 	if n := len(v.GetCorners()); n != 4 {
 		p.add(path+".corners", "needs exactly 4 corners (front left, front right, rear left, rear right), got %d", n)

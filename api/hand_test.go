@@ -2,7 +2,6 @@ package api
 
 import (
 	"math"
-	"os"
 	"slices"
 	"testing"
 
@@ -20,14 +19,7 @@ import (
 // 1e-12: the same products in another order.
 func TestEstimateByHandAgreesWithJobCurves(t *testing.T) {
 	t.Parallel()
-	b, err := os.ReadFile("../testdata/demo-job.yaml")
-	if err != nil {
-		t.Fatal(err)
-	}
-	spec := &pb.JobSpec{}
-	if err := DecodeText(b, spec); err != nil {
-		t.Fatal(err)
-	}
+	spec := readDemoJob(t, "demo-job.yaml")
 	pl, err := compileSpec(proto.Clone(spec).(*pb.JobSpec))
 	if err != nil {
 		t.Fatal(err)

@@ -1,47 +1,44 @@
 package api
 
 import (
+	"math"
+	"strings"
 	"testing"
 
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-// The hypervolume history in GetJob's full view is the optimiser's own
-// record, one entry per generation from 0, ending at the final progress.
-func TestGetJobHistory(t *testing.T) {
+// GetTransientHistory returns the demo's braking case for a setup: its
+// pitch settles on the quasi-static pitch EvaluateSetups reports (a
+// static solve, K x = f: statics), to 1e-3 relative (the record ends 2 s
+// after the ramp, and the pitch mode, decaying at ζω ≈ 5 1/s, leaves
+// < 1e-4 of the change); an unknown case is refused naming the field.
+func TestGetTransientHistory(t *testing.T) {
 	t.Parallel()
-	b := setup(t, Options{}, shortSlices)
-	job := b.submit(t, testSpec(12))
-	_, final := b.watch(t, job.GetName())
-	if final.GetState() != pb.JobState_JOB_STATE_SUCCEEDED {
-		t.Fatalf("final job %v", final)
-	}
-	got, err := b.client.GetJob(testContext(t), &pb.GetJobRequest{Name: job.GetName(), View: pb.JobView_JOB_VIEW_FULL})
+	spec := readDemoJob(t, "demo-manoeuvre-job.yaml")
+	tb := setup2(t)
+	name := spec.GetManoeuvres()[0].GetName()
+	resp, err := tb.client.GetTransientHistory(testContext(t), &pb.GetTransientHistoryRequest{
+		Source: &pb.GetTransientHistoryRequest_Spec{Spec: spec}, Setup: testSetup(), CaseName: name, MaxPoints: 500})
 	if err != nil {
 		t.Fatal(err)
 	}
-	h := got.GetJob().GetHistory()
-	if len(h) != 13 {
-		t.Fatalf("history of %d generations, want 13 (0..12)", len(h))
+	n := len(resp.GetTimeS())
+	if n == 0 || n > 500 || len(resp.GetPitchRad()) != n || len(resp.GetTyreLoadRrN()) != n || resp.GetKind() != "manoeuvre" {
+		t.Fatalf("history of %d samples, kind %q", n, resp.GetKind())
 	}
-	for i, p := range h {
-		if int(p.GetGeneration()) != i || p.GetGenerations() != 12 {
-			t.Errorf("history[%d] = generation %d of %d", i, p.GetGeneration(), p.GetGenerations())
-		}
-		// Hypervolume of an elitist archive never falls (Deb et al. 2002:
-		// the archive keeps every non-dominated point seen).
-		if i > 0 && p.GetHypervolume() < h[i-1].GetHypervolume() {
-			t.Errorf("hypervolume fell at generation %d: %g < %g", i, p.GetHypervolume(), h[i-1].GetHypervolume())
-		}
-	}
-	if last := h[len(h)-1]; last.GetHypervolume() != final.GetProgress().GetHypervolume() {
-		t.Errorf("last history hypervolume %g, final progress %g", last.GetHypervolume(), final.GetProgress().GetHypervolume())
-	}
-	basic, err := b.client.GetJob(testContext(t), &pb.GetJobRequest{Name: job.GetName(), View: pb.JobView_JOB_VIEW_BASIC})
+	ev, err := tb.client.EvaluateSetups(testContext(t), &pb.EvaluateSetupsRequest{
+		Source: &pb.EvaluateSetupsRequest_Spec{Spec: spec}, Setups: []*pb.Setup{testSetup()}})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(basic.GetJob().GetHistory()) != 0 {
-		t.Error("basic view carries the history")
+	steady := ev.GetEvaluations()[0].GetTransientMetrics()[0].GetPitch().GetSteadyRad()
+	if p := resp.GetPitchRad()[n-1]; !(steady < 0) || math.Abs(p-steady) > 1e-3*math.Abs(steady) {
+		t.Errorf("pitch under braking settles at %v rad, the quasi-static solve gives %v (nose down, < 0)", p, steady)
+	}
+	_, err = tb.client.GetTransientHistory(testContext(t), &pb.GetTransientHistoryRequest{
+		Source: &pb.GetTransientHistoryRequest_Spec{Spec: spec}, Setup: testSetup(), CaseName: "no such case"})
+	if v := violations(t, "unknown case", err); len(v) != 1 || !strings.HasPrefix(v[0], "case_name") {
+		t.Errorf("unknown case: %v (%v)", v, err)
 	}
 }

@@ -50,6 +50,16 @@ var protoLimits = map[string]string{
 	"Adjuster.stiffest": "Adjustment.ratio AxleDamping.high_speed", "Adjuster.softest": "Adjustment.ratio AxleDamping.high_speed",
 	"DynoTable.velocity_m_per_s": "Curves.max_velocity_m_per_s",
 	"Constraint.limit":           "Constraint.probability Constraint.travel_m Constraint.jacking_m",
+
+	"LoadPaths.cg_height_m": "LoadPaths.height_m", "LoadPaths.front_unsprung_cg_height_m": "LoadPaths.height_m",
+	"LoadPaths.rear_unsprung_cg_height_m": "LoadPaths.height_m", "LoadPaths.front_roll_centre_height_m": "LoadPaths.roll_centre_height_m",
+	"LoadPaths.rear_roll_centre_height_m": "LoadPaths.roll_centre_height_m", "LoadPaths.front_anti_brake": "LoadPaths.anti",
+	"LoadPaths.rear_anti_brake": "LoadPaths.anti", "LoadPaths.front_anti_drive": "LoadPaths.anti", "LoadPaths.rear_anti_drive": "LoadPaths.anti",
+	"Manoeuvre.speed_m_per_s": "RoadCase.speed_m_per_s", "Manoeuvre.start_s": "Manoeuvre.time_s", "Manoeuvre.ramp_s": "Manoeuvre.time_s",
+	"Manoeuvre.duration_s": "Manoeuvre.time_s", "Manoeuvre.weight": "RoadCase.weight",
+	"Kerb.height_m": "Kerb.height_m", "Kerb.length_m": "Kerb.length_m", "Kerb.ramp_m": "Kerb.length_m", "Kerb.speed_m_per_s": "RoadCase.speed_m_per_s",
+	"Kerb.start_s": "Manoeuvre.time_s", "Kerb.duration_s": "Manoeuvre.time_s", "Kerb.weight": "RoadCase.weight",
+	"JobSpec.load_fraction": "Transient.load_fraction",
 }
 
 // TestProtoCommentsStateTheRanges: the comment of every physical field in

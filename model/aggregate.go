@@ -84,11 +84,14 @@ func (s *Problem) SetReference(ref Setup) error {
 		if o.Aggregation != AggregateNormalised {
 			continue
 		}
-		table[j] = make([]float64, len(r.Cases))
-		for c := range r.Cases {
-			v := caseObjective(o, &r.Cases[c])
+		table[j] = make([]float64, caseCount(o, &r))
+		for c := range table[j] {
+			v, _, ok := s.caseValue(o, &r, c)
+			if !ok {
+				continue
+			}
 			if !(v > 0) || math.IsInf(v, 0) {
-				p.add(fmt.Sprintf("objectives[%d].aggregation", j), "normalised %s needs the reference setup's value on every case > 0, got %g on %q", o.Kind, v, r.Cases[c].Case)
+				p.add(fmt.Sprintf("objectives[%d].aggregation", j), "normalised %s needs the reference setup's value on every case > 0, got %g on %q", o.Kind, v, caseName(&r, o, c))
 			}
 			table[j][c] = v
 		}
@@ -103,19 +106,25 @@ func (s *Problem) SetReference(ref Setup) error {
 // ObjectiveValue returns objective j's value for an evaluated result.
 func (s *Problem) ObjectiveValue(j int, r *Result) float64 {
 	o := &s.objectives[j]
+	n := caseCount(o, r)
 	switch o.Aggregation {
 	case AggregateWorst:
 		worst := math.Inf(-1)
-		for c := range r.Cases {
-			worst = math.Max(worst, caseObjective(o, &r.Cases[c]))
+		for c := 0; c < n; c++ {
+			if v, _, ok := s.caseValue(o, r, c); ok {
+				worst = math.Max(worst, v)
+			}
 		}
 		return worst
 	case AggregateNormalised:
 		ref := s.reference[j]
 		var sum, refSum, wsum float64
-		for c := range r.Cases {
-			w := s.eval.cases[c].rc.weight()
-			q := caseObjective(o, &r.Cases[c]) / ref[c]
+		for c := 0; c < n; c++ {
+			v, w, ok := s.caseValue(o, r, c)
+			if !ok {
+				continue
+			}
+			q := v / ref[c]
 			sum += w * q * q
 			refSum += w * ref[c] * ref[c]
 			wsum += w
@@ -123,9 +132,11 @@ func (s *Problem) ObjectiveValue(j int, r *Result) float64 {
 		return math.Sqrt(refSum/wsum) * math.Sqrt(sum/wsum)
 	}
 	var sum, wsum float64
-	for c := range r.Cases {
-		w := s.eval.cases[c].rc.weight()
-		v := caseObjective(o, &r.Cases[c])
+	for c := 0; c < n; c++ {
+		v, w, ok := s.caseValue(o, r, c)
+		if !ok {
+			continue
+		}
 		sum += w * v * v
 		wsum += w
 	}
@@ -133,23 +144,28 @@ func (s *Problem) ObjectiveValue(j int, r *Result) float64 {
 }
 
 // CaseShares returns, for objective j and an evaluated result, the share
-// of each road case in the objective's square under its aggregation (see
+// of each case it is read on (the road cases; Result.Transients for an
+// objective on them, 0 where it does not apply) in the objective's
+// square under its aggregation (see
 // Aggregation): fractions summing to 1; for the worst case, 1 for the
 // worst case and 0 for the others.
 func (s *Problem) CaseShares(j int, r *Result) []float64 {
 	o := &s.objectives[j]
-	out := make([]float64, len(r.Cases))
+	out := make([]float64, caseCount(o, r))
 	var sum, most float64
-	worst := 0
-	for c := range r.Cases {
-		g := caseObjective(o, &r.Cases[c])
-		if c == 0 || g > most {
+	worst := -1
+	for c := range out {
+		g, w, ok := s.caseValue(o, r, c)
+		if !ok {
+			continue
+		}
+		if worst < 0 || g > most {
 			worst, most = c, g
 		}
 		if o.Aggregation == AggregateNormalised {
 			g /= s.reference[j][c]
 		}
-		out[c] = s.eval.cases[c].rc.weight() * g * g
+		out[c] = w * g * g
 		sum += out[c]
 	}
 	for c := range out {
@@ -163,4 +179,12 @@ func (s *Problem) CaseShares(j int, r *Result) []float64 {
 		out[c] /= sum
 	}
 	return out
+}
+
+// caseName names case c of objective o's cases.
+func caseName(r *Result, o *Objective, c int) string {
+	if o.Kind.OnTransients() {
+		return r.Transients[c].Case
+	}
+	return r.Cases[c].Case
 }

@@ -1,6 +1,9 @@
 package model
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
 // Range is a closed interval [Min, Max].
 type Range struct{ Min, Max float64 }
@@ -188,4 +191,24 @@ func (d *DesignSpace) Encode(s Setup) []float64 {
 		}
 	}
 	return x
+}
+
+// MaxSlopeRatio is the steepest damper slope any setup of the space can
+// have, as a ratio of critical damping: the largest ratio bound times the
+// largest high-speed factor (at least 1). The manoeuvre and kerb cases
+// choose their step for it (TransientOptions.MaxRatio).
+func (d *DesignSpace) MaxSlopeRatio() float64 {
+	r := 0.0
+	for _, b := range d.Ratios {
+		r = math.Max(r, b.Max)
+	}
+	f := 1.0
+	for ax := 0; ax < 2; ax++ {
+		a := d.Base.Axles[ax]
+		f = math.Max(f, math.Max(a.HighSpeedBump, a.HighSpeedRebound))
+		if hs := d.HighSpeed[ax]; hs != nil {
+			f = math.Max(f, hs.Max)
+		}
+	}
+	return r * f
 }

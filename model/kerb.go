@@ -47,7 +47,7 @@ type Kerb struct {
 	Speed float64 // (m/s)
 	// Start is when the front tyres meet the kerb (s); 0 means 0.1 s.
 	Start float64
-	// Duration is the simulated time (s); 0 means until 1.5 s after the
+	// Duration is the simulated time (s); 0 means until 1 s after the
 	// rear tyres leave the kerb.
 	Duration float64
 	// Road, when not nil, is a road case whose random profile (with its
@@ -60,7 +60,7 @@ type Kerb struct {
 
 const (
 	kerbStartDefault = 0.1 // s
-	kerbTail         = 1.5 // s after the rear leaves the kerb: ride modes decay to ~1 %
+	kerbTail         = 1.0 // s after the rear leaves the kerb: ride modes at ζ ≈ 0.3 decay to ~5 %
 )
 
 func (k *Kerb) start() float64 {

@@ -46,7 +46,7 @@ type Manoeuvre struct {
 	// Start is when the input begins to change (s); Ramp how long it
 	// takes (s, 0 = a step).
 	Start, Ramp float64
-	// Duration is the simulated time (s); 0 means Start + Ramp + 2 s (a
+	// Duration is the simulated time (s); 0 means Start + Ramp + 1.2 s (a
 	// table: its last time).
 	Duration float64
 	// Table is the logged history of ShapeTable, strictly increasing in
@@ -65,8 +65,9 @@ type ManoeuvrePoint struct {
 }
 
 // defaultTail is the time simulated after a built-in shape's ramp (s):
-// a ride mode at 1.5 Hz with ζ = 0.3 decays to 1 % in ln(100)/(ζω) ≈ 1.6 s.
-const defaultTail = 2.0
+// a ride mode at 1.5 Hz with ζ = 0.3 decays to 3 % in ln(33)/(ζω) ≈ 1.2 s
+// (give Duration for a lightly damped car).
+const defaultTail = 1.2
 
 func (m *Manoeuvre) duration() float64 {
 	switch {

@@ -66,6 +66,9 @@ func (k ObjectiveKind) String() string {
 
 // Unit returns the SI unit of the objective's value.
 func (k ObjectiveKind) Unit() string {
+	if k.OnTransients() {
+		return k.transientUnit()
+	}
 	switch k {
 	case ObjectiveGrip:
 		return "-"
@@ -139,6 +142,8 @@ func (k ConstraintKind) limitName() string {
 		return "Constraint.jacking_m"
 	case ConstraintModalRatio:
 		return "Constraint.modal_ratio"
+	case ConstraintUnloadedTime, ConstraintStopTime:
+		return "Constraint.time_s"
 	default:
 		return "Constraint.probability"
 	}
@@ -278,8 +283,13 @@ func NewProblem(e *Evaluator, d DesignSpace, objectives []Objective, constraints
 	if err := ValidateAeroOutputs(e.Vehicle(), objectives, constraints); err != nil {
 		return nil, err
 	}
+	if err := checkTransientObjectives(e, objectives); err != nil {
+		return nil, err
+	}
 	s := &Problem{eval: e, design: d, genes: d.Genes(), objectives: objectives, constraints: constraints}
-	s.pool.New = func() any { return &Result{Cases: make([]CaseMetrics, e.Cases())} }
+	s.pool.New = func() any {
+		return &Result{Cases: make([]CaseMetrics, e.Cases()), Transients: make([]TransientMetrics, e.TransientCases())}
+	}
 	if s.normalises() {
 		if err := s.SetReference(d.Middle()); err != nil {
 			return nil, err
@@ -409,6 +419,9 @@ func (s *Problem) Score(r *Result, obj, viol []float64) {
 // corner of r, and the first case where it is reached; NaN, and its case,
 // when a value is NaN.
 func constraintWorst(c *Constraint, r *Result) (worst float64, at int) {
+	if c.Kind.OnTransients() {
+		return transientWorst(c, r)
+	}
 	for i := range r.Cases {
 		v := caseConstraint(c, &r.Cases[i])
 		if math.IsNaN(v) {

@@ -225,7 +225,9 @@ func responseSpectra(chs []channel, cache []channelCache, cg *caseGrid, geo *out
 				kd = cc.kd[k*n*n : (k+1)*n*n]
 				f := cc.rhs[k*n*ns : (k+1)*n*ns]
 				for r := 0; r < n; r++ {
-					copy(rhs[r][:ns], f[r*ns:(r+1)*ns])
+					for j := 0; j < ns; j++ {
+						rhs[r][j] = f[r*ns+j]
+					}
 				}
 			} else {
 				kd = kdBuf[:n*n]
@@ -280,7 +282,7 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	var travel [4]complex128
 	for i := 0; i < 4; i++ {
 		d := &g.d[i]
-		s := x[dofWheel+i] + complex(d[0], 0)*x[0] + complex(d[1], 0)*x[1] + complex(d[2], 0)*x[2]
+		s := x[dofWheel+i] + scale(d[0], x[0]) + scale(d[1], x[1]) + scale(d[2], x[2])
 		travel[i] = s
 		out[outWheelVel+i] += om * om * abs2(s)
 		if velOnly {
@@ -292,7 +294,7 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	}
 	if g.heave {
 		for ax := 0; ax < 2; ax++ {
-			u := abs2((travel[2*ax] + travel[2*ax+1]) / 2)
+			u := abs2(scale(0.5, travel[2*ax]+travel[2*ax+1]))
 			out[outWheelVel+dampHeave+ax] += om * om * u
 			if !velOnly {
 				out[outAxleHeave+ax] += u
@@ -302,18 +304,18 @@ func (g *outputGeometry) accumulate(out *[nOut]float64, x *[nDOF]complex128, w *
 	if velOnly {
 		return
 	}
-	wf := (w[0] + w[1]) / 2
-	wr := (w[2] + w[3]) / 2
-	yc := complex(g.yc, 0) * x[2]
+	wf := scale(0.5, w[0]+w[1])
+	wr := scale(0.5, w[2]+w[3])
+	yc := scale(g.yc, x[2])
 	var p [nPlatform]complex128
-	p[0] = x[0] + complex(g.a, 0)*x[1] + yc - wf
-	p[1] = x[0] - complex(g.b, 0)*x[1] + yc - wr
-	p[2] = x[2] - (w[0]-w[1])/complex(g.tf, 0)
-	p[3] = x[2] - (w[2]-w[3])/complex(g.tr, 0)
+	p[0] = x[0] + scale(g.a, x[1]) + yc - wf
+	p[1] = x[0] - scale(g.b, x[1]) + yc - wr
+	p[2] = x[2] - over(w[0]-w[1], g.tf)
+	p[3] = x[2] - over(w[2]-w[3], g.tr)
 	out[outRide] += abs2(p[0])
 	out[outRide+1] += abs2(p[1])
-	out[outPitch] += abs2(x[1] - (wf-wr)/complex(g.a+g.b, 0))
-	out[outRoll] += abs2(x[2] - ((w[0]-w[1])/complex(g.tf, 0)+(w[2]-w[3])/complex(g.tr, 0))/2)
+	out[outPitch] += abs2(x[1] - over(wf-wr, g.a+g.b))
+	out[outRoll] += abs2(x[2] - scale(0.5, over(w[0]-w[1], g.tf)+over(w[2]-w[3], g.tr)))
 	out[outHeaveAcc] += om * om * om * om * abs2(x[0])
 	out[outRollAxle] += abs2(p[2])
 	out[outRollAxle+1] += abs2(p[3])

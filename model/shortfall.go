@@ -7,6 +7,9 @@ func (k ConstraintKind) Unit() string {
 	if k == ConstraintTravel || k == ConstraintJacking {
 		return "m"
 	}
+	if k.OnTransients() {
+		return "s"
+	}
 	return "-"
 }
 
@@ -17,7 +20,8 @@ type Shortfall struct {
 	// and corner, in the constraint's unit (ConstraintKind.Unit).
 	Worst float64
 	// Case is the index of the road case where Worst is reached (the
-	// first such case).
+	// first such case); of the manoeuvre or kerb case (Result.Transients)
+	// for a constraint on them (ConstraintKind.OnTransients).
 	Case int
 	// Over is Worst − Limit, in the constraint's unit; ≤ 0 when met. For
 	// a modal-ratio band Worst is the ratio farthest outside it and Over

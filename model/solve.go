@@ -14,6 +14,12 @@ const maxRHS = 2
 // false when a pivot is zero (a singular dynamic stiffness, which a damped
 // stable system never has).
 func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex128) bool {
+	// The pivots' reciprocals, taken once: row col is final once its
+	// column is eliminated, so back substitution divides by the same.
+	var invs [nDOF]complex128
+	if n > nDOF || nr > maxRHS {
+		panic("model: solveComplex size out of range")
+	}
 	for col := 0; col < n; col++ {
 		p, best := col, cabs1(a[col][col])
 		for r := col + 1; r < n; r++ {
@@ -25,29 +31,35 @@ func solveComplex(n, nr int, a *[nDOF][nDOF]complex128, b *[nDOF][maxRHS]complex
 			return false
 		}
 		if p != col {
-			a[p], a[col] = a[col], a[p]
+			// Columns left of col are never read again.
+			for c := col; c < n; c++ {
+				a[p][c], a[col][c] = a[col][c], a[p][c]
+			}
 			b[p], b[col] = b[col], b[p]
 		}
-		inv := recip(a[col][col])
+		pr, pb := &a[col], &b[col]
+		inv := recip(pr[col])
+		invs[col] = inv
 		for r := col + 1; r < n; r++ {
-			f := a[r][col] * inv
+			ar, br := &a[r], &b[r]
+			f := ar[col] * inv
 			if f == 0 {
 				continue
 			}
 			for c := col + 1; c < n; c++ {
-				a[r][c] -= f * a[col][c]
+				ar[c] -= f * pr[c]
 			}
 			for j := 0; j < nr; j++ {
-				b[r][j] -= f * b[col][j]
+				br[j] -= f * pb[j]
 			}
 		}
 	}
 	for col := n - 1; col >= 0; col-- {
-		inv := recip(a[col][col])
+		inv, ar := invs[col], &a[col]
 		for j := 0; j < nr; j++ {
 			s := b[col][j]
 			for c := col + 1; c < n; c++ {
-				s -= a[col][c] * b[c][j]
+				s -= ar[c] * b[c][j]
 			}
 			b[col][j] = s * inv
 		}
@@ -75,3 +87,12 @@ func cabs1(z complex128) float64 { return math.Abs(real(z)) + math.Abs(imag(z)) 
 
 // abs2 is |z|².
 func abs2(z complex128) float64 { return real(z)*real(z) + imag(z)*imag(z) }
+
+// scale is complex(r, 0)·z and over is z/complex(r, 0) for finite z and
+// r ≠ 0, without the complex product's and the runtime division's idle
+// operations on the zero imaginary part: their values are the same
+// (Smith's division, which the runtime uses, divides each part by r
+// when the divisor is real), up to the sign of a zero part.
+func scale(r float64, z complex128) complex128 { return complex(r*real(z), r*imag(z)) }
+
+func over(z complex128, r float64) complex128 { return complex(real(z)/r, imag(z)/r) }

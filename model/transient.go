@@ -74,7 +74,7 @@ func (o TransientOptions) withDefaults() TransientOptions {
 func (o TransientOptions) validate(v *Vehicle) error {
 	var p problems
 	p.inOrZero("load_fraction", o.LoadFraction, "Transient.load_fraction")
-	p.inOrZero("max_ratio", o.MaxRatio, "AxleDamping.ratio")
+	p.nonNegative("max_ratio", o.MaxRatio)
 	p.nonNegative("step_s", o.Step)
 	p.merge("", TimeOptions{BumpStops: o.BumpStops}.validate(v))
 	return p.err()
@@ -102,6 +102,7 @@ type transientCase struct {
 	in     []float64     // (2 steps + 1) samples of inWidthForced
 	x0     [nDOF]float64 // quasi-static start
 	qs     [2][]float64  // quasi-static roll and pitch at each step (rad)
+	qsLoad [4][]float64  // quasi-static tyre load change at each step (N); nil for a kerb
 	final  [nDOF]float64 // quasi-static state under the last input
 	lltdSS float64       // front share of the lateral load transfer at the end (NaN: none)
 	lltdW  float64       // |ΔW_f + ΔW_r| at the end (N)
@@ -253,11 +254,17 @@ func (c *transientCase) fillInputs() error {
 				return err
 			}
 		}
+		for i := range c.qsLoad {
+			c.qsLoad[i] = make([]float64, c.steps)
+		}
 		for k := 0; k < c.steps; k++ {
 			f := force(2 * k)
 			for a := 0; a < nDOF; a++ {
 				c.qs[0][k] += resp[a][dofRoll] * f[a]
 				c.qs[1][k] += resp[a][dofPitch] * f[a]
+				for i := range c.qsLoad {
+					c.qsLoad[i][k] -= c.v.Corners[i].TyreRate * resp[a][dofWheel+i] * f[a]
+				}
 			}
 		}
 	}

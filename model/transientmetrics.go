@@ -23,10 +23,16 @@ type TransientMetrics struct {
 
 	TyreLoadMin [4]float64 // lowest tyre load, static at speed included (N)
 	// TimeBelow is the time each tyre carries less than the set fraction
-	// of its static load at speed (s).
+	// of its reference load P_i(t) (s). The reference is what the tyre
+	// would carry if the car followed the input quasi-statically: the
+	// static load at speed plus the steady load transfer of the input at
+	// that instant (a manoeuvre), or the static load at speed (a kerb).
+	// So the load an input transfers for good is not counted, only what
+	// the car's dynamics take off it.
 	TimeBelow [4]float64
-	// LoadLoss is ∫ max(0, 1 − F_i(t)/P_i) dt, P_i the static load at
-	// speed (s): the load lost below static, in static-load seconds.
+	// LoadLoss is ∫ max(0, 1 − F_i(t)/P_i(t)) dt over the times with
+	// P_i(t) > 0 (s): the load lost below the reference, in
+	// reference-load seconds.
 	LoadLoss [4]float64
 	// RideHeightMin is the lowest ride height, front and rear, relative
 	// to the road (m): at speed (the operating point's ride height plus
@@ -129,11 +135,17 @@ func (c *transientCase) metrics(w *transientWork, tm *TransientMetrics) {
 	}
 	frac := c.opt.LoadFraction
 	for i := 0; i < 4; i++ {
-		p := c.op.TyreLoad[i]
 		low, below, loss := math.Inf(1), 0, 0.0
-		for _, dyn := range w.tyre[i] {
+		for n, dyn := range w.tyre[i] {
+			p := c.op.TyreLoad[i]
 			f := p + dyn
+			if c.qsLoad[i] != nil {
+				p += c.qsLoad[i][n]
+			}
 			low = math.Min(low, f)
+			if p <= 0 {
+				continue // the input itself lifts this tyre: nothing to lose
+			}
 			if f < frac*p {
 				below++
 			}

@@ -107,8 +107,8 @@ func SeedDatabase(ctx context.Context, url string, spec *pb.JobSpec, n int, seed
 }
 
 // DemoSpec is the demo job (testdata/demo-job.yaml, read from path) with
-// a third objective, pitch, the kind of job that leaves the largest
-// fronts, on a coarse frequency grid (61 points) that makes each
+// three objectives (pitch added when it has fewer), the kind of job that
+// leaves the largest fronts, on a coarse frequency grid (61 points) that makes each
 // evaluation some four times cheaper and each stored solution no smaller.
 func DemoSpec(path string) (*pb.JobSpec, error) {
 	b, err := os.ReadFile(path)
@@ -119,7 +119,9 @@ func DemoSpec(path string) (*pb.JobSpec, error) {
 	if err := api.DecodeText(b, spec); err != nil {
 		return nil, fmt.Errorf("%s: %w", path, err)
 	}
-	spec.Objectives = append(spec.Objectives, &pb.Objective{Kind: pb.ObjectiveKind_OBJECTIVE_KIND_PITCH})
+	if len(spec.Objectives) < 3 {
+		spec.Objectives = append(spec.Objectives, &pb.Objective{Kind: pb.ObjectiveKind_OBJECTIVE_KIND_PITCH})
+	}
 	spec.Grid = &pb.Grid{MinHz: 0.1, MaxHz: 250, Points: 61}
 	return spec, nil
 }

@@ -75,7 +75,7 @@ func init() {
 	commands = []*command{
 		serveCommand, workerCommand, migrateCommand, tokenCommand,
 		submitCommand, watchCommand, listCommand, getCommand, cancelCommand,
-		frontCommand, evalCommand, checkCommand, curvesCommand, sheetCommand, handCommand, verifyCommand, spectrumCommand, plotCommand,
+		frontCommand, evalCommand, historyCommand, checkCommand, curvesCommand, sheetCommand, handCommand, verifyCommand, spectrumCommand, plotCommand,
 		demoCommand,
 	}
 }

@@ -192,6 +192,12 @@ func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb
 	if err := writeAeroPlatform(w, s.GetCaseMetrics()); err != nil {
 		return err
 	}
+	if len(s.GetTransientMetrics()) > 0 {
+		fmt.Fprintln(w)
+		if err := writeTransients(w, s.GetTransientMetrics()); err != nil {
+			return err
+		}
+	}
 	fmt.Fprintln(w)
 	if err := writeHeave(w, s.GetCaseMetrics()); err != nil {
 		return err

@@ -41,6 +41,18 @@ func Check(s *Spec) (*Checked, error) {
 	for i := range spec.RoadCases {
 		p.merge(fmt.Sprintf("road_cases[%d].", i), spec.RoadCases[i].Validate())
 	}
+	for i := range spec.Manoeuvres {
+		p.merge(fmt.Sprintf("manoeuvres[%d].", i), spec.Manoeuvres[i].Validate())
+	}
+	for i := range spec.Kerbs {
+		p.merge(fmt.Sprintf("kerbs[%d].", i), spec.Kerbs[i].Validate())
+	}
+	if n := len(spec.Manoeuvres) + len(spec.Kerbs); n > MaxTransientCases {
+		p.add("manoeuvres", "a job takes at most %d manoeuvre and kerb cases together, got %d", MaxTransientCases, n)
+	}
+	if len(spec.Manoeuvres) > 0 && !(spec.Vehicle.LoadPaths.CGHeight > 0) {
+		p.add("vehicle.load_paths.cg_height_m", "is needed by the manoeuvre cases: give the sprung CG height")
+	}
 	p.merge("grid.", spec.Grid.Validate())
 	p.mergeMapped(problemPath, model.ValidateProblem(c.design, spec.Objectives, spec.Constraints))
 	p.mergeMapped(problemPath, model.ValidateAeroOutputs(&spec.Vehicle, spec.Objectives, spec.Constraints))
@@ -90,12 +102,16 @@ func (c *Checked) Spec() *Spec { return c.spec }
 type Size struct {
 	// Cases is the number of road cases.
 	Cases int
+	// Transients is the number of manoeuvre and kerb cases (each costs
+	// about as much as a road case: a few thousand time steps).
+	Transients int
 	// GridPoints is the number of frequencies of each evaluation.
 	GridPoints int
 	// Work is population × islands × (generations + polish budget) ×
-	// road cases, the number of case evaluations the search makes (to
-	// within its initial population, and counting the polish of a front
-	// as large as the population), saturating at the largest int64.
+	// (road cases + transient cases), the number of case evaluations the
+	// search makes (to within its initial population, and counting the
+	// polish of a front as large as the population), saturating at the
+	// largest int64.
 	Work int64
 }
 
@@ -103,10 +119,11 @@ type Size struct {
 func (c *Checked) Size() Size {
 	q := &c.spec.Search
 	work := int64(1)
-	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations + q.PolishBudget, len(c.spec.RoadCases)} {
+	transients := len(c.spec.Manoeuvres) + len(c.spec.Kerbs)
+	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations + q.PolishBudget, len(c.spec.RoadCases) + transients} {
 		work = mulSat(work, int64(n))
 	}
-	return Size{Cases: len(c.spec.RoadCases), GridPoints: c.spec.Grid.Points, Work: work}
+	return Size{Cases: len(c.spec.RoadCases), Transients: transients, GridPoints: c.spec.Grid.Points, Work: work}
 }
 
 // mulSat is a×b for a, b >= 0, or the largest int64 when that overflows.

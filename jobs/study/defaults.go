@@ -187,3 +187,7 @@ func normalises(objectives []model.Objective) bool {
 	}
 	return false
 }
+
+// MaxTransientCases bounds a job's manoeuvre and kerb cases together:
+// each runs the time-domain model at every evaluation.
+const MaxTransientCases = 16

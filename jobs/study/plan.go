@@ -38,6 +38,12 @@ func (c *Checked) Compile(ctx context.Context) (*Plan, error) {
 	if err != nil {
 		return nil, err
 	}
+	if len(spec.Manoeuvres)+len(spec.Kerbs) > 0 {
+		opt := model.TransientOptions{LoadFraction: spec.LoadFraction, MaxRatio: c.design.MaxSlopeRatio()}
+		if err := eval.SetTransientCases(spec.Manoeuvres, spec.Kerbs, opt); err != nil {
+			return nil, err
+		}
+	}
 	problem, err := model.NewProblem(eval, c.design, spec.Objectives, spec.Constraints)
 	// A given reference replaces the middle of the bounds that NewProblem
 	// has already evaluated for a normalised objective: one evaluation more

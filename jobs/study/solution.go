@@ -26,6 +26,9 @@ type Solution struct {
 	// over; empty when every constraint is met.
 	Shortfalls []model.Shortfall
 	Cases      []CaseDetail
+	// Transients are the metrics on the manoeuvre and kerb cases, in the
+	// spec's order (manoeuvres, then kerbs).
+	Transients []model.TransientMetrics
 	Curves     []model.DamperCurve // nil when they cannot be drawn (see Warnings)
 	Warnings   []string            // every case's warnings, then the curves'
 }
@@ -78,6 +81,7 @@ func (pl *Plan) describe(sol *Solution, s model.Setup, r *model.Result) {
 		sol.Cases = append(sol.Cases, c)
 		sol.Warnings = append(sol.Warnings, c.Warnings...)
 	}
+	sol.Transients = r.Transients
 	curves, err := pl.Curves(s, nil, nil)
 	if err != nil {
 		sol.Warnings = append(sol.Warnings, "damper curves: "+err.Error())

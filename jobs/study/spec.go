@@ -10,9 +10,18 @@ type Spec struct {
 	Labels      map[string]string // for filtering; checked by the job engine
 	Vehicle     model.Vehicle
 	RoadCases   []model.RoadCase // weight 0 means 1
-	Grid        model.Grid       // zero fields take model.DefaultGrid's
-	Design      Design
-	Objectives  []model.Objective // empty means DefaultObjectives
+	// Manoeuvres and Kerbs are the driver-input and kerb cases, run on
+	// the nonlinear time-domain model beside the road cases (see
+	// model.Evaluator.SetTransientCases); the transient objectives and
+	// constraints read them.
+	Manoeuvres []model.Manoeuvre
+	Kerbs      []model.Kerb
+	// LoadFraction is the fraction of static load below which a tyre
+	// counts as unloaded on those cases; 0 means 0.5.
+	LoadFraction float64
+	Grid         model.Grid // zero fields take model.DefaultGrid's
+	Design       Design
+	Objectives   []model.Objective // empty means DefaultObjectives
 	// Reference is the setup that normalised objectives are taken
 	// relative to (model.AggregateNormalised); nil is the middle of the
 	// design space's bounds when an objective is normalised. Only a spec

@@ -26,7 +26,7 @@ import (
 
 // StandardGravity is the standard acceleration of gravity, m/s² (3rd
 // CGPM, 1901): one g.
-const StandardGravity = 9.80665
+const StandardGravity = model.StandardGravity
 
 // Unit is a trade unit and its scale from SI.
 type Unit struct {
@@ -66,6 +66,7 @@ var (
 	NewtonPerMM         = Unit{Symbol: "N/mm", Scale: 1 / 1000.0}
 	Hertz               = Unit{Symbol: "Hz", Scale: 1}
 	Kilogram            = Unit{Symbol: "kg", Scale: 1}
+	Millisecond         = Unit{Symbol: "ms", Scale: 1000}
 	// Dimensionless is a ratio shown as it is, with "-" for its unit.
 	Dimensionless = Unit{Symbol: "-", Scale: 1}
 	// MillimetreSquaredPerHertz is a ride-height PSD's unit (m²/Hz in SI).
@@ -98,6 +99,10 @@ var objectives = map[model.ObjectiveKind]Quantity{
 	model.ObjectiveHeaveAccel:    {"heave accel", "Heave acceleration", Gravity, 4, "heave_accel_m_per_s2"},
 	model.ObjectiveDownforce:     {"downforce", "Downforce variation", Newton, 1, "downforce_n"},
 	model.ObjectiveBalance:       {"balance", "Aero balance variation", Percent, 3, "balance"},
+
+	model.ObjectiveDriverResponse:   {"driver response", "Driver response: attitude off quasi-static", Percent, 2, "driver_response"},
+	model.ObjectiveTransientBalance: {"transient balance", "Transient balance: LLTD deviation", Percent, 2, "transient_balance"},
+	model.ObjectiveKerbLoadLoss:     {"kerb load loss", "Kerb load loss", Millisecond, 1, "kerb_load_loss_s"},
 }
 
 // lookup is k's row of table, or for a kind the table does not know its
@@ -145,6 +150,8 @@ var constraints = map[model.ConstraintKind]Quantity{
 	model.ConstraintJacking:      {"ride-height shift", "Ride-height shift", Millimetre, 2, "ride_height_shift_m"},
 	model.ConstraintModalRatio:   {"modal ratio", "Modal ratio", Dimensionless, 3, "modal_damping_ratio"},
 	model.ConstraintFloorContact: {"floor-contact probability", "Floor-contact probability", Percent, 3, "floor_contact_probability"},
+	model.ConstraintUnloadedTime: {"unloaded time", "Time unloaded", Millisecond, 1, "unloaded_time_s"},
+	model.ConstraintStopTime:     {"stop time", "Bump-stop contact time", Millisecond, 1, "stop_time_s"},
 }
 
 // Gene is how a searched variable of the design space is shown, by its

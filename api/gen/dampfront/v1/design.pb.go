@@ -48,33 +48,49 @@ const (
 	// Aero balance variation, sqrt(sd^2 + jacking shift^2) of the front
 	// share of the downforce (dimensionless); needs aero.
 	ObjectiveKind_OBJECTIVE_KIND_BALANCE ObjectiveKind = 9
+	// Driver response on the manoeuvre cases: RMS of roll and pitch off their
+	// quasi-static values over their steady change (dimensionless).
+	ObjectiveKind_OBJECTIVE_KIND_DRIVER_RESPONSE ObjectiveKind = 20
+	// Transient balance on the manoeuvre cases with a lateral input: largest
+	// deviation of the front share of lateral load transfer from steady
+	// (dimensionless).
+	ObjectiveKind_OBJECTIVE_KIND_TRANSIENT_BALANCE ObjectiveKind = 21
+	// Kerb load loss: sum over the corners of the load lost below static on
+	// the kerb cases (s, static-load seconds).
+	ObjectiveKind_OBJECTIVE_KIND_KERB_LOAD_LOSS ObjectiveKind = 22
 )
 
 // Enum value maps for ObjectiveKind.
 var (
 	ObjectiveKind_name = map[int32]string{
-		0: "OBJECTIVE_KIND_UNSPECIFIED",
-		1: "OBJECTIVE_KIND_GRIP",
-		2: "OBJECTIVE_KIND_PLATFORM",
-		3: "OBJECTIVE_KIND_FRONT_PLATFORM",
-		4: "OBJECTIVE_KIND_REAR_PLATFORM",
-		5: "OBJECTIVE_KIND_PITCH",
-		6: "OBJECTIVE_KIND_ROLL",
-		7: "OBJECTIVE_KIND_HEAVE_ACCEL",
-		8: "OBJECTIVE_KIND_DOWNFORCE",
-		9: "OBJECTIVE_KIND_BALANCE",
+		0:  "OBJECTIVE_KIND_UNSPECIFIED",
+		1:  "OBJECTIVE_KIND_GRIP",
+		2:  "OBJECTIVE_KIND_PLATFORM",
+		3:  "OBJECTIVE_KIND_FRONT_PLATFORM",
+		4:  "OBJECTIVE_KIND_REAR_PLATFORM",
+		5:  "OBJECTIVE_KIND_PITCH",
+		6:  "OBJECTIVE_KIND_ROLL",
+		7:  "OBJECTIVE_KIND_HEAVE_ACCEL",
+		8:  "OBJECTIVE_KIND_DOWNFORCE",
+		9:  "OBJECTIVE_KIND_BALANCE",
+		20: "OBJECTIVE_KIND_DRIVER_RESPONSE",
+		21: "OBJECTIVE_KIND_TRANSIENT_BALANCE",
+		22: "OBJECTIVE_KIND_KERB_LOAD_LOSS",
 	}
 	ObjectiveKind_value = map[string]int32{
-		"OBJECTIVE_KIND_UNSPECIFIED":    0,
-		"OBJECTIVE_KIND_GRIP":           1,
-		"OBJECTIVE_KIND_PLATFORM":       2,
-		"OBJECTIVE_KIND_FRONT_PLATFORM": 3,
-		"OBJECTIVE_KIND_REAR_PLATFORM":  4,
-		"OBJECTIVE_KIND_PITCH":          5,
-		"OBJECTIVE_KIND_ROLL":           6,
-		"OBJECTIVE_KIND_HEAVE_ACCEL":    7,
-		"OBJECTIVE_KIND_DOWNFORCE":      8,
-		"OBJECTIVE_KIND_BALANCE":        9,
+		"OBJECTIVE_KIND_UNSPECIFIED":       0,
+		"OBJECTIVE_KIND_GRIP":              1,
+		"OBJECTIVE_KIND_PLATFORM":          2,
+		"OBJECTIVE_KIND_FRONT_PLATFORM":    3,
+		"OBJECTIVE_KIND_REAR_PLATFORM":     4,
+		"OBJECTIVE_KIND_PITCH":             5,
+		"OBJECTIVE_KIND_ROLL":              6,
+		"OBJECTIVE_KIND_HEAVE_ACCEL":       7,
+		"OBJECTIVE_KIND_DOWNFORCE":         8,
+		"OBJECTIVE_KIND_BALANCE":           9,
+		"OBJECTIVE_KIND_DRIVER_RESPONSE":   20,
+		"OBJECTIVE_KIND_TRANSIENT_BALANCE": 21,
+		"OBJECTIVE_KIND_KERB_LOAD_LOSS":    22,
 	}
 )
 
@@ -185,18 +201,25 @@ const (
 	// Ground-contact probability of every reference point of the vehicle
 	// (Vehicle.reference_points), worst point and case; a probability.
 	ConstraintKind_CONSTRAINT_KIND_FLOOR_CONTACT ConstraintKind = 6
+	// Time a tyre carries less than the job's load fraction of static on the
+	// manoeuvre and kerb cases (s).
+	ConstraintKind_CONSTRAINT_KIND_UNLOADED_TIME ConstraintKind = 20
+	// Time past the bump-stop gap on the manoeuvre and kerb cases (s).
+	ConstraintKind_CONSTRAINT_KIND_STOP_TIME ConstraintKind = 21
 )
 
 // Enum value maps for ConstraintKind.
 var (
 	ConstraintKind_name = map[int32]string{
-		0: "CONSTRAINT_KIND_UNSPECIFIED",
-		1: "CONSTRAINT_KIND_LIFT_OFF",
-		2: "CONSTRAINT_KIND_BUMP_STOP",
-		3: "CONSTRAINT_KIND_TRAVEL",
-		4: "CONSTRAINT_KIND_JACKING",
-		5: "CONSTRAINT_KIND_MODAL_RATIO",
-		6: "CONSTRAINT_KIND_FLOOR_CONTACT",
+		0:  "CONSTRAINT_KIND_UNSPECIFIED",
+		1:  "CONSTRAINT_KIND_LIFT_OFF",
+		2:  "CONSTRAINT_KIND_BUMP_STOP",
+		3:  "CONSTRAINT_KIND_TRAVEL",
+		4:  "CONSTRAINT_KIND_JACKING",
+		5:  "CONSTRAINT_KIND_MODAL_RATIO",
+		6:  "CONSTRAINT_KIND_FLOOR_CONTACT",
+		20: "CONSTRAINT_KIND_UNLOADED_TIME",
+		21: "CONSTRAINT_KIND_STOP_TIME",
 	}
 	ConstraintKind_value = map[string]int32{
 		"CONSTRAINT_KIND_UNSPECIFIED":   0,
@@ -206,6 +229,8 @@ var (
 		"CONSTRAINT_KIND_JACKING":       4,
 		"CONSTRAINT_KIND_MODAL_RATIO":   5,
 		"CONSTRAINT_KIND_FLOOR_CONTACT": 6,
+		"CONSTRAINT_KIND_UNLOADED_TIME": 20,
+		"CONSTRAINT_KIND_STOP_TIME":     21,
 	}
 )
 
@@ -1661,7 +1686,7 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x04rear\x18\x02 \x01(\v2\x1d.dampfront.v1.DamperAdjustersR\x04rear\"W\n" +
 	"\rCurveSettings\x12.\n" +
 	"\x14max_velocity_m_per_s\x18\x01 \x01(\x01R\x10maxVelocityMPerS\x12\x16\n" +
-	"\x06points\x18\x02 \x01(\x05R\x06points*\xb7\x02\n" +
+	"\x06points\x18\x02 \x01(\x05R\x06points*\xa4\x03\n" +
 	"\rObjectiveKind\x12\x1e\n" +
 	"\x1aOBJECTIVE_KIND_UNSPECIFIED\x10\x00\x12\x17\n" +
 	"\x13OBJECTIVE_KIND_GRIP\x10\x01\x12\x1b\n" +
@@ -1672,12 +1697,15 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x13OBJECTIVE_KIND_ROLL\x10\x06\x12\x1e\n" +
 	"\x1aOBJECTIVE_KIND_HEAVE_ACCEL\x10\a\x12\x1c\n" +
 	"\x18OBJECTIVE_KIND_DOWNFORCE\x10\b\x12\x1a\n" +
-	"\x16OBJECTIVE_KIND_BALANCE\x10\t*z\n" +
+	"\x16OBJECTIVE_KIND_BALANCE\x10\t\x12\"\n" +
+	"\x1eOBJECTIVE_KIND_DRIVER_RESPONSE\x10\x14\x12$\n" +
+	" OBJECTIVE_KIND_TRANSIENT_BALANCE\x10\x15\x12!\n" +
+	"\x1dOBJECTIVE_KIND_KERB_LOAD_LOSS\x10\x16*z\n" +
 	"\vAggregation\x12\x1b\n" +
 	"\x17AGGREGATION_UNSPECIFIED\x10\x00\x12\x1b\n" +
 	"\x17AGGREGATION_MEAN_SQUARE\x10\x01\x12\x15\n" +
 	"\x11AGGREGATION_WORST\x10\x02\x12\x1a\n" +
-	"\x16AGGREGATION_NORMALISED\x10\x03*\xeb\x01\n" +
+	"\x16AGGREGATION_NORMALISED\x10\x03*\xad\x02\n" +
 	"\x0eConstraintKind\x12\x1f\n" +
 	"\x1bCONSTRAINT_KIND_UNSPECIFIED\x10\x00\x12\x1c\n" +
 	"\x18CONSTRAINT_KIND_LIFT_OFF\x10\x01\x12\x1d\n" +
@@ -1685,7 +1713,9 @@ const file_dampfront_v1_design_proto_rawDesc = "" +
 	"\x16CONSTRAINT_KIND_TRAVEL\x10\x03\x12\x1b\n" +
 	"\x17CONSTRAINT_KIND_JACKING\x10\x04\x12\x1f\n" +
 	"\x1bCONSTRAINT_KIND_MODAL_RATIO\x10\x05\x12!\n" +
-	"\x1dCONSTRAINT_KIND_FLOOR_CONTACT\x10\x06*\xdb\x01\n" +
+	"\x1dCONSTRAINT_KIND_FLOOR_CONTACT\x10\x06\x12!\n" +
+	"\x1dCONSTRAINT_KIND_UNLOADED_TIME\x10\x14\x12\x1d\n" +
+	"\x19CONSTRAINT_KIND_STOP_TIME\x10\x15*\xdb\x01\n" +
 	"\bModeName\x12\x19\n" +
 	"\x15MODE_NAME_UNSPECIFIED\x10\x00\x12\x13\n" +
 	"\x0fMODE_NAME_HEAVE\x10\x01\x12\x13\n" +

@@ -341,7 +341,15 @@ type JobSpec struct {
 	ReferenceSetup *Setup `protobuf:"bytes,12,opt,name=reference_setup,json=referenceSetup,proto3" json:"reference_setup,omitempty"`
 	// The dampers' adjusters and clicks; with them every solution reports
 	// its clicks, and the out-of-band check uses them instead of adjustment.
-	Adjusters     *Adjusters `protobuf:"bytes,13,opt,name=adjusters,proto3" json:"adjusters,omitempty"`
+	Adjusters *Adjusters `protobuf:"bytes,13,opt,name=adjusters,proto3" json:"adjusters,omitempty"`
+	// Driver-input cases, beside the road cases (field numbers from 20 on).
+	Manoeuvres []*Manoeuvre `protobuf:"bytes,20,rep,name=manoeuvres,proto3" json:"manoeuvres,omitempty"`
+	// Kerb cases.
+	Kerbs []*Kerb `protobuf:"bytes,21,rep,name=kerbs,proto3" json:"kerbs,omitempty"`
+	// Fraction of static load below which a tyre counts as unloaded on the
+	// manoeuvre and kerb cases; 0 means 0.5.
+	// Plausible range when given (not 0): (0, 1].
+	LoadFraction  float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -465,6 +473,27 @@ func (x *JobSpec) GetAdjusters() *Adjusters {
 		return x.Adjusters
 	}
 	return nil
+}
+
+func (x *JobSpec) GetManoeuvres() []*Manoeuvre {
+	if x != nil {
+		return x.Manoeuvres
+	}
+	return nil
+}
+
+func (x *JobSpec) GetKerbs() []*Kerb {
+	if x != nil {
+		return x.Kerbs
+	}
+	return nil
+}
+
+func (x *JobSpec) GetLoadFraction() float64 {
+	if x != nil {
+		return x.LoadFraction
+	}
+	return 0
 }
 
 // Job is one optimisation run, a resource named "jobs/{job_id}".
@@ -909,7 +938,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -930,7 +959,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\xff\x05\n" +
+	"\r_mutation_eta\"\x87\a\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -950,7 +979,12 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"adjustment\x123\n" +
 	"\x06curves\x18\v \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curves\x12<\n" +
 	"\x0freference_setup\x18\f \x01(\v2\x13.dampfront.v1.SetupR\x0ereferenceSetup\x125\n" +
-	"\tadjusters\x18\r \x01(\v2\x17.dampfront.v1.AdjustersR\tadjusters\x1a9\n" +
+	"\tadjusters\x18\r \x01(\v2\x17.dampfront.v1.AdjustersR\tadjusters\x127\n" +
+	"\n" +
+	"manoeuvres\x18\x14 \x03(\v2\x17.dampfront.v1.ManoeuvreR\n" +
+	"manoeuvres\x12(\n" +
+	"\x05kerbs\x18\x15 \x03(\v2\x12.dampfront.v1.KerbR\x05kerbs\x12#\n" +
+	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xcf\x06\n" +
@@ -1055,8 +1089,10 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*CurveSettings)(nil),         // 16: dampfront.v1.CurveSettings
 	(*Setup)(nil),                 // 17: dampfront.v1.Setup
 	(*Adjusters)(nil),             // 18: dampfront.v1.Adjusters
-	(*timestamppb.Timestamp)(nil), // 19: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 20: dampfront.v1.ConstraintShortfall
+	(*Manoeuvre)(nil),             // 19: dampfront.v1.Manoeuvre
+	(*Kerb)(nil),                  // 20: dampfront.v1.Kerb
+	(*timestamppb.Timestamp)(nil), // 21: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 22: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -1071,22 +1107,24 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	16, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
 	17, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
 	18, // 11: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
-	0,  // 12: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	8,  // 13: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	19, // 14: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	19, // 15: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	19, // 16: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	6,  // 17: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 18: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	6,  // 19: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	20, // 20: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 21: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	19, // 22: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	23, // [23:23] is the sub-list for method output_type
-	23, // [23:23] is the sub-list for method input_type
-	23, // [23:23] is the sub-list for extension type_name
-	23, // [23:23] is the sub-list for extension extendee
-	0,  // [0:23] is the sub-list for field type_name
+	19, // 12: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
+	20, // 13: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
+	0,  // 14: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	8,  // 15: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	21, // 16: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	21, // 17: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	21, // 18: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	6,  // 19: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 20: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	6,  // 21: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	22, // 22: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 23: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	21, // 24: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	25, // [25:25] is the sub-list for method output_type
+	25, // [25:25] is the sub-list for method input_type
+	25, // [25:25] is the sub-list for extension type_name
+	25, // [25:25] is the sub-list for extension extendee
+	0,  // [0:25] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -1096,6 +1134,7 @@ func file_dampfront_v1_job_proto_init() {
 	}
 	file_dampfront_v1_design_proto_init()
 	file_dampfront_v1_road_proto_init()
+	file_dampfront_v1_transient_proto_init()
 	file_dampfront_v1_vehicle_proto_init()
 	file_dampfront_v1_job_proto_msgTypes[0].OneofWrappers = []any{}
 	type x struct{}

@@ -170,9 +170,12 @@ type Solution struct {
 	// 200, 250 and 300 mm/s: per corner and direction out of it, the point
 	// furthest out relative to the band. Empty when inside or without a
 	// band; each is also a warning.
-	OutOfBand     []*BandExcess `protobuf:"bytes,13,rep,name=out_of_band,json=outOfBand,proto3" json:"out_of_band,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	OutOfBand []*BandExcess `protobuf:"bytes,13,rep,name=out_of_band,json=outOfBand,proto3" json:"out_of_band,omitempty"`
+	// Metrics on the manoeuvre and kerb cases, manoeuvres first, in the
+	// spec's order (field numbers from 20 on).
+	TransientMetrics []*TransientMetrics `protobuf:"bytes,20,rep,name=transient_metrics,json=transientMetrics,proto3" json:"transient_metrics,omitempty"`
+	unknownFields    protoimpl.UnknownFields
+	sizeCache        protoimpl.SizeCache
 }
 
 func (x *Solution) Reset() {
@@ -292,6 +295,13 @@ func (x *Solution) GetClicks() []*CornerClicks {
 func (x *Solution) GetOutOfBand() []*BandExcess {
 	if x != nil {
 		return x.OutOfBand
+	}
+	return nil
+}
+
+func (x *Solution) GetTransientMetrics() []*TransientMetrics {
+	if x != nil {
+		return x.TransientMetrics
 	}
 	return nil
 }
@@ -1661,7 +1671,7 @@ var File_dampfront_v1_result_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\n" +
-	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\"\xb5\x04\n" +
+	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x1cdampfront/v1/transient.proto\"\x82\x05\n" +
 	"\bSolution\x12\x14\n" +
 	"\x05index\x18\x01 \x01(\x05R\x05index\x12\x14\n" +
 	"\x05genes\x18\x02 \x03(\x01R\x05genes\x12)\n" +
@@ -1682,7 +1692,8 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"shortfalls\x18\v \x03(\v2!.dampfront.v1.ConstraintShortfallR\n" +
 	"shortfalls\x122\n" +
 	"\x06clicks\x18\f \x03(\v2\x1a.dampfront.v1.CornerClicksR\x06clicks\x128\n" +
-	"\vout_of_band\x18\r \x03(\v2\x18.dampfront.v1.BandExcessR\toutOfBand\"\xc0\x01\n" +
+	"\vout_of_band\x18\r \x03(\v2\x18.dampfront.v1.BandExcessR\toutOfBand\x12K\n" +
+	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\"\xc0\x01\n" +
 	"\fCornerClicks\x124\n" +
 	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12\x19\n" +
 	"\blow_bump\x18\x02 \x01(\x05R\alowBump\x12\x1f\n" +
@@ -1859,9 +1870,10 @@ var file_dampfront_v1_result_proto_goTypes = []any{
 	(*Front)(nil),                 // 13: dampfront.v1.Front
 	(*Setup)(nil),                 // 14: dampfront.v1.Setup
 	(*ConstraintShortfall)(nil),   // 15: dampfront.v1.ConstraintShortfall
-	(*DamperStage)(nil),           // 16: dampfront.v1.DamperStage
-	(*Objective)(nil),             // 17: dampfront.v1.Objective
-	(*Constraint)(nil),            // 18: dampfront.v1.Constraint
+	(*TransientMetrics)(nil),      // 16: dampfront.v1.TransientMetrics
+	(*DamperStage)(nil),           // 17: dampfront.v1.DamperStage
+	(*Objective)(nil),             // 18: dampfront.v1.Objective
+	(*Constraint)(nil),            // 19: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
 	14, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
@@ -1870,27 +1882,28 @@ var file_dampfront_v1_result_proto_depIdxs = []int32{
 	15, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
 	3,  // 4: dampfront.v1.Solution.clicks:type_name -> dampfront.v1.CornerClicks
 	4,  // 5: dampfront.v1.Solution.out_of_band:type_name -> dampfront.v1.BandExcess
-	1,  // 6: dampfront.v1.CornerClicks.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 7: dampfront.v1.BandExcess.corner:type_name -> dampfront.v1.CornerPosition
-	9,  // 8: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	10, // 9: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	10, // 10: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	11, // 11: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	8,  // 12: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
-	6,  // 13: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
-	7,  // 14: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
-	1,  // 15: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 16: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	16, // 17: dampfront.v1.DamperCurve.stages_bump:type_name -> dampfront.v1.DamperStage
-	16, // 18: dampfront.v1.DamperCurve.stages_rebound:type_name -> dampfront.v1.DamperStage
-	17, // 19: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	18, // 20: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 21: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	22, // [22:22] is the sub-list for method output_type
-	22, // [22:22] is the sub-list for method input_type
-	22, // [22:22] is the sub-list for extension type_name
-	22, // [22:22] is the sub-list for extension extendee
-	0,  // [0:22] is the sub-list for field type_name
+	16, // 6: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
+	1,  // 7: dampfront.v1.CornerClicks.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 8: dampfront.v1.BandExcess.corner:type_name -> dampfront.v1.CornerPosition
+	9,  // 9: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	10, // 10: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	10, // 11: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	11, // 12: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	8,  // 13: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	6,  // 14: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
+	7,  // 15: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
+	1,  // 16: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 17: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
+	17, // 18: dampfront.v1.DamperCurve.stages_bump:type_name -> dampfront.v1.DamperStage
+	17, // 19: dampfront.v1.DamperCurve.stages_rebound:type_name -> dampfront.v1.DamperStage
+	18, // 20: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	19, // 21: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	2,  // 22: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	23, // [23:23] is the sub-list for method output_type
+	23, // [23:23] is the sub-list for method input_type
+	23, // [23:23] is the sub-list for extension type_name
+	23, // [23:23] is the sub-list for extension extendee
+	0,  // [0:23] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }
@@ -1899,6 +1912,7 @@ func file_dampfront_v1_result_proto_init() {
 		return
 	}
 	file_dampfront_v1_design_proto_init()
+	file_dampfront_v1_transient_proto_init()
 	type x struct{}
 	out := protoimpl.TypeBuilder{
 		File: protoimpl.DescBuilder{

@@ -1709,6 +1709,267 @@ func (x *VerifiedMetric) GetVerdict() Verdict {
 	return Verdict_VERDICT_UNSPECIFIED
 }
 
+// GetTransientHistoryRequest is the input of GetTransientHistory.
+type GetTransientHistoryRequest struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Where the car and the cases come from.
+	//
+	// Types that are valid to be assigned to Source:
+	//
+	//	*GetTransientHistoryRequest_Spec
+	//	*GetTransientHistoryRequest_Job
+	Source isGetTransientHistoryRequest_Source `protobuf_oneof:"source"`
+	// The setup to simulate.
+	Setup *Setup `protobuf:"bytes,3,opt,name=setup,proto3" json:"setup,omitempty"`
+	// Name of the manoeuvre or kerb case; empty means the first.
+	CaseName string `protobuf:"bytes,4,opt,name=case_name,json=caseName,proto3" json:"case_name,omitempty"`
+	// Most samples returned (every k-th step); 0 means 2000.
+	MaxPoints     int32 `protobuf:"varint,5,opt,name=max_points,json=maxPoints,proto3" json:"max_points,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *GetTransientHistoryRequest) Reset() {
+	*x = GetTransientHistoryRequest{}
+	mi := &file_dampfront_v1_service_proto_msgTypes[22]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *GetTransientHistoryRequest) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*GetTransientHistoryRequest) ProtoMessage() {}
+
+func (x *GetTransientHistoryRequest) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_service_proto_msgTypes[22]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use GetTransientHistoryRequest.ProtoReflect.Descriptor instead.
+func (*GetTransientHistoryRequest) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{22}
+}
+
+func (x *GetTransientHistoryRequest) GetSource() isGetTransientHistoryRequest_Source {
+	if x != nil {
+		return x.Source
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryRequest) GetSpec() *JobSpec {
+	if x != nil {
+		if x, ok := x.Source.(*GetTransientHistoryRequest_Spec); ok {
+			return x.Spec
+		}
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryRequest) GetJob() string {
+	if x != nil {
+		if x, ok := x.Source.(*GetTransientHistoryRequest_Job); ok {
+			return x.Job
+		}
+	}
+	return ""
+}
+
+func (x *GetTransientHistoryRequest) GetSetup() *Setup {
+	if x != nil {
+		return x.Setup
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryRequest) GetCaseName() string {
+	if x != nil {
+		return x.CaseName
+	}
+	return ""
+}
+
+func (x *GetTransientHistoryRequest) GetMaxPoints() int32 {
+	if x != nil {
+		return x.MaxPoints
+	}
+	return 0
+}
+
+type isGetTransientHistoryRequest_Source interface {
+	isGetTransientHistoryRequest_Source()
+}
+
+type GetTransientHistoryRequest_Spec struct {
+	// A spec given here.
+	Spec *JobSpec `protobuf:"bytes,1,opt,name=spec,proto3,oneof"`
+}
+
+type GetTransientHistoryRequest_Job struct {
+	// The stored spec of a job, "jobs/{job_id}".
+	Job string `protobuf:"bytes,2,opt,name=job,proto3,oneof"`
+}
+
+func (*GetTransientHistoryRequest_Spec) isGetTransientHistoryRequest_Source() {}
+
+func (*GetTransientHistoryRequest_Job) isGetTransientHistoryRequest_Source() {}
+
+// GetTransientHistoryResponse is the output of GetTransientHistory: one
+// value per returned sample in each list.
+type GetTransientHistoryResponse struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// The case simulated.
+	CaseName string `protobuf:"bytes,1,opt,name=case_name,json=caseName,proto3" json:"case_name,omitempty"`
+	// "manoeuvre" or "kerb".
+	Kind string `protobuf:"bytes,2,opt,name=kind,proto3" json:"kind,omitempty"`
+	// Time from the start.
+	TimeS []float64 `protobuf:"fixed64,3,rep,packed,name=time_s,json=timeS,proto3" json:"time_s,omitempty"`
+	// Roll relative to the road.
+	RollRad []float64 `protobuf:"fixed64,4,rep,packed,name=roll_rad,json=rollRad,proto3" json:"roll_rad,omitempty"`
+	// Pitch relative to the road.
+	PitchRad []float64 `protobuf:"fixed64,5,rep,packed,name=pitch_rad,json=pitchRad,proto3" json:"pitch_rad,omitempty"`
+	// Front share of the lateral load transfer (the steady share where the
+	// transfer is under 10 % of steady; 0 without a lateral input).
+	LltdFront []float64 `protobuf:"fixed64,6,rep,packed,name=lltd_front,json=lltdFront,proto3" json:"lltd_front,omitempty"`
+	// Tyre loads, static at speed included.
+	TyreLoadFlN []float64 `protobuf:"fixed64,7,rep,packed,name=tyre_load_fl_n,json=tyreLoadFlN,proto3" json:"tyre_load_fl_n,omitempty"`
+	// Front right.
+	TyreLoadFrN []float64 `protobuf:"fixed64,8,rep,packed,name=tyre_load_fr_n,json=tyreLoadFrN,proto3" json:"tyre_load_fr_n,omitempty"`
+	// Rear left.
+	TyreLoadRlN []float64 `protobuf:"fixed64,9,rep,packed,name=tyre_load_rl_n,json=tyreLoadRlN,proto3" json:"tyre_load_rl_n,omitempty"`
+	// Rear right.
+	TyreLoadRrN []float64 `protobuf:"fixed64,10,rep,packed,name=tyre_load_rr_n,json=tyreLoadRrN,proto3" json:"tyre_load_rr_n,omitempty"`
+	// Input longitudinal acceleration (manoeuvres).
+	AxMPerS2 []float64 `protobuf:"fixed64,11,rep,packed,name=ax_m_per_s2,json=axMPerS2,proto3" json:"ax_m_per_s2,omitempty"`
+	// Input lateral acceleration (manoeuvres).
+	AyMPerS2      []float64 `protobuf:"fixed64,12,rep,packed,name=ay_m_per_s2,json=ayMPerS2,proto3" json:"ay_m_per_s2,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *GetTransientHistoryResponse) Reset() {
+	*x = GetTransientHistoryResponse{}
+	mi := &file_dampfront_v1_service_proto_msgTypes[23]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *GetTransientHistoryResponse) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*GetTransientHistoryResponse) ProtoMessage() {}
+
+func (x *GetTransientHistoryResponse) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_service_proto_msgTypes[23]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use GetTransientHistoryResponse.ProtoReflect.Descriptor instead.
+func (*GetTransientHistoryResponse) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{23}
+}
+
+func (x *GetTransientHistoryResponse) GetCaseName() string {
+	if x != nil {
+		return x.CaseName
+	}
+	return ""
+}
+
+func (x *GetTransientHistoryResponse) GetKind() string {
+	if x != nil {
+		return x.Kind
+	}
+	return ""
+}
+
+func (x *GetTransientHistoryResponse) GetTimeS() []float64 {
+	if x != nil {
+		return x.TimeS
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetRollRad() []float64 {
+	if x != nil {
+		return x.RollRad
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetPitchRad() []float64 {
+	if x != nil {
+		return x.PitchRad
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetLltdFront() []float64 {
+	if x != nil {
+		return x.LltdFront
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetTyreLoadFlN() []float64 {
+	if x != nil {
+		return x.TyreLoadFlN
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetTyreLoadFrN() []float64 {
+	if x != nil {
+		return x.TyreLoadFrN
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetTyreLoadRlN() []float64 {
+	if x != nil {
+		return x.TyreLoadRlN
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetTyreLoadRrN() []float64 {
+	if x != nil {
+		return x.TyreLoadRrN
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetAxMPerS2() []float64 {
+	if x != nil {
+		return x.AxMPerS2
+	}
+	return nil
+}
+
+func (x *GetTransientHistoryResponse) GetAyMPerS2() []float64 {
+	if x != nil {
+		return x.AyMPerS2
+	}
+	return nil
+}
+
 var File_dampfront_v1_service_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_service_proto_rawDesc = "" +
@@ -1835,12 +2096,35 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"difference\x12/\n" +
 	"\x13relative_difference\x18\x05 \x01(\x01R\x12relativeDifference\x12+\n" +
 	"\x11statistical_error\x18\x06 \x01(\x01R\x10statisticalError\x12/\n" +
-	"\averdict\x18\a \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict*b\n" +
+	"\averdict\x18\a \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict\"\xce\x01\n" +
+	"\x1aGetTransientHistoryRequest\x12+\n" +
+	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecH\x00R\x04spec\x12\x12\n" +
+	"\x03job\x18\x02 \x01(\tH\x00R\x03job\x12)\n" +
+	"\x05setup\x18\x03 \x01(\v2\x13.dampfront.v1.SetupR\x05setup\x12\x1b\n" +
+	"\tcase_name\x18\x04 \x01(\tR\bcaseName\x12\x1d\n" +
+	"\n" +
+	"max_points\x18\x05 \x01(\x05R\tmaxPointsB\b\n" +
+	"\x06source\"\x8e\x03\n" +
+	"\x1bGetTransientHistoryResponse\x12\x1b\n" +
+	"\tcase_name\x18\x01 \x01(\tR\bcaseName\x12\x12\n" +
+	"\x04kind\x18\x02 \x01(\tR\x04kind\x12\x15\n" +
+	"\x06time_s\x18\x03 \x03(\x01R\x05timeS\x12\x19\n" +
+	"\broll_rad\x18\x04 \x03(\x01R\arollRad\x12\x1b\n" +
+	"\tpitch_rad\x18\x05 \x03(\x01R\bpitchRad\x12\x1d\n" +
+	"\n" +
+	"lltd_front\x18\x06 \x03(\x01R\tlltdFront\x12#\n" +
+	"\x0etyre_load_fl_n\x18\a \x03(\x01R\vtyreLoadFlN\x12#\n" +
+	"\x0etyre_load_fr_n\x18\b \x03(\x01R\vtyreLoadFrN\x12#\n" +
+	"\x0etyre_load_rl_n\x18\t \x03(\x01R\vtyreLoadRlN\x12#\n" +
+	"\x0etyre_load_rr_n\x18\n" +
+	" \x03(\x01R\vtyreLoadRrN\x12\x1d\n" +
+	"\vax_m_per_s2\x18\v \x03(\x01R\baxMPerS2\x12\x1d\n" +
+	"\vay_m_per_s2\x18\f \x03(\x01R\bayMPerS2*b\n" +
 	"\aVerdict\x12\x17\n" +
 	"\x13VERDICT_UNSPECIFIED\x10\x00\x12\x11\n" +
 	"\rVERDICT_HOLDS\x10\x01\x12\x13\n" +
 	"\x0fVERDICT_DIFFERS\x10\x02\x12\x16\n" +
-	"\x12VERDICT_NOT_JUDGED\x10\x032\x9b\a\n" +
+	"\x12VERDICT_NOT_JUDGED\x10\x032\x87\b\n" +
 	"\x10DampfrontService\x12L\n" +
 	"\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12C\n" +
 	"\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n" +
@@ -1852,7 +2136,8 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\fCompareSetup\x12!.dampfront.v1.CompareSetupRequest\x1a\".dampfront.v1.CompareSetupResponse\x12^\n" +
 	"\x0fGetDamperCurves\x12$.dampfront.v1.GetDamperCurvesRequest\x1a%.dampfront.v1.GetDamperCurvesResponse\x12R\n" +
 	"\vVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponse\x12[\n" +
-	"\x0eEstimateByHand\x12#.dampfront.v1.EstimateByHandRequest\x1a$.dampfront.v1.EstimateByHandResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\x0eEstimateByHand\x12#.dampfront.v1.EstimateByHandRequest\x1a$.dampfront.v1.EstimateByHandResponse\x12j\n" +
+	"\x13GetTransientHistory\x12(.dampfront.v1.GetTransientHistoryRequest\x1a).dampfront.v1.GetTransientHistoryResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_service_proto_rawDescOnce sync.Once
@@ -1867,112 +2152,118 @@ func file_dampfront_v1_service_proto_rawDescGZIP() []byte {
 }
 
 var file_dampfront_v1_service_proto_enumTypes = make([]protoimpl.EnumInfo, 1)
-var file_dampfront_v1_service_proto_msgTypes = make([]protoimpl.MessageInfo, 23)
+var file_dampfront_v1_service_proto_msgTypes = make([]protoimpl.MessageInfo, 25)
 var file_dampfront_v1_service_proto_goTypes = []any{
-	(Verdict)(0),                    // 0: dampfront.v1.Verdict
-	(*SubmitJobRequest)(nil),        // 1: dampfront.v1.SubmitJobRequest
-	(*SubmitJobResponse)(nil),       // 2: dampfront.v1.SubmitJobResponse
-	(*GetJobRequest)(nil),           // 3: dampfront.v1.GetJobRequest
-	(*GetJobResponse)(nil),          // 4: dampfront.v1.GetJobResponse
-	(*ListJobsRequest)(nil),         // 5: dampfront.v1.ListJobsRequest
-	(*ListJobsResponse)(nil),        // 6: dampfront.v1.ListJobsResponse
-	(*CancelJobRequest)(nil),        // 7: dampfront.v1.CancelJobRequest
-	(*CancelJobResponse)(nil),       // 8: dampfront.v1.CancelJobResponse
-	(*WatchJobRequest)(nil),         // 9: dampfront.v1.WatchJobRequest
-	(*WatchJobResponse)(nil),        // 10: dampfront.v1.WatchJobResponse
-	(*GetFrontRequest)(nil),         // 11: dampfront.v1.GetFrontRequest
-	(*GetFrontResponse)(nil),        // 12: dampfront.v1.GetFrontResponse
-	(*EvaluateSetupsRequest)(nil),   // 13: dampfront.v1.EvaluateSetupsRequest
-	(*EvaluateSetupsResponse)(nil),  // 14: dampfront.v1.EvaluateSetupsResponse
-	(*CompareSetupRequest)(nil),     // 15: dampfront.v1.CompareSetupRequest
-	(*CompareSetupResponse)(nil),    // 16: dampfront.v1.CompareSetupResponse
-	(*GetDamperCurvesRequest)(nil),  // 17: dampfront.v1.GetDamperCurvesRequest
-	(*GetDamperCurvesResponse)(nil), // 18: dampfront.v1.GetDamperCurvesResponse
-	(*VerifySetupRequest)(nil),      // 19: dampfront.v1.VerifySetupRequest
-	(*VerifySetupResponse)(nil),     // 20: dampfront.v1.VerifySetupResponse
-	(*VerifiedCase)(nil),            // 21: dampfront.v1.VerifiedCase
-	(*VerifiedMetric)(nil),          // 22: dampfront.v1.VerifiedMetric
-	nil,                             // 23: dampfront.v1.ListJobsRequest.LabelsEntry
-	(*JobSpec)(nil),                 // 24: dampfront.v1.JobSpec
-	(*Job)(nil),                     // 25: dampfront.v1.Job
-	(JobView)(0),                    // 26: dampfront.v1.JobView
-	(JobState)(0),                   // 27: dampfront.v1.JobState
-	(*Progress)(nil),                // 28: dampfront.v1.Progress
-	(SolutionView)(0),               // 29: dampfront.v1.SolutionView
-	(*Front)(nil),                   // 30: dampfront.v1.Front
-	(*Setup)(nil),                   // 31: dampfront.v1.Setup
-	(*Solution)(nil),                // 32: dampfront.v1.Solution
-	(*Objective)(nil),               // 33: dampfront.v1.Objective
-	(*Constraint)(nil),              // 34: dampfront.v1.Constraint
-	(*Adjustment)(nil),              // 35: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),           // 36: dampfront.v1.CurveSettings
-	(*DamperCurve)(nil),             // 37: dampfront.v1.DamperCurve
-	(*EstimateByHandRequest)(nil),   // 38: dampfront.v1.EstimateByHandRequest
-	(*EstimateByHandResponse)(nil),  // 39: dampfront.v1.EstimateByHandResponse
+	(Verdict)(0),                        // 0: dampfront.v1.Verdict
+	(*SubmitJobRequest)(nil),            // 1: dampfront.v1.SubmitJobRequest
+	(*SubmitJobResponse)(nil),           // 2: dampfront.v1.SubmitJobResponse
+	(*GetJobRequest)(nil),               // 3: dampfront.v1.GetJobRequest
+	(*GetJobResponse)(nil),              // 4: dampfront.v1.GetJobResponse
+	(*ListJobsRequest)(nil),             // 5: dampfront.v1.ListJobsRequest
+	(*ListJobsResponse)(nil),            // 6: dampfront.v1.ListJobsResponse
+	(*CancelJobRequest)(nil),            // 7: dampfront.v1.CancelJobRequest
+	(*CancelJobResponse)(nil),           // 8: dampfront.v1.CancelJobResponse
+	(*WatchJobRequest)(nil),             // 9: dampfront.v1.WatchJobRequest
+	(*WatchJobResponse)(nil),            // 10: dampfront.v1.WatchJobResponse
+	(*GetFrontRequest)(nil),             // 11: dampfront.v1.GetFrontRequest
+	(*GetFrontResponse)(nil),            // 12: dampfront.v1.GetFrontResponse
+	(*EvaluateSetupsRequest)(nil),       // 13: dampfront.v1.EvaluateSetupsRequest
+	(*EvaluateSetupsResponse)(nil),      // 14: dampfront.v1.EvaluateSetupsResponse
+	(*CompareSetupRequest)(nil),         // 15: dampfront.v1.CompareSetupRequest
+	(*CompareSetupResponse)(nil),        // 16: dampfront.v1.CompareSetupResponse
+	(*GetDamperCurvesRequest)(nil),      // 17: dampfront.v1.GetDamperCurvesRequest
+	(*GetDamperCurvesResponse)(nil),     // 18: dampfront.v1.GetDamperCurvesResponse
+	(*VerifySetupRequest)(nil),          // 19: dampfront.v1.VerifySetupRequest
+	(*VerifySetupResponse)(nil),         // 20: dampfront.v1.VerifySetupResponse
+	(*VerifiedCase)(nil),                // 21: dampfront.v1.VerifiedCase
+	(*VerifiedMetric)(nil),              // 22: dampfront.v1.VerifiedMetric
+	(*GetTransientHistoryRequest)(nil),  // 23: dampfront.v1.GetTransientHistoryRequest
+	(*GetTransientHistoryResponse)(nil), // 24: dampfront.v1.GetTransientHistoryResponse
+	nil,                                 // 25: dampfront.v1.ListJobsRequest.LabelsEntry
+	(*JobSpec)(nil),                     // 26: dampfront.v1.JobSpec
+	(*Job)(nil),                         // 27: dampfront.v1.Job
+	(JobView)(0),                        // 28: dampfront.v1.JobView
+	(JobState)(0),                       // 29: dampfront.v1.JobState
+	(*Progress)(nil),                    // 30: dampfront.v1.Progress
+	(SolutionView)(0),                   // 31: dampfront.v1.SolutionView
+	(*Front)(nil),                       // 32: dampfront.v1.Front
+	(*Setup)(nil),                       // 33: dampfront.v1.Setup
+	(*Solution)(nil),                    // 34: dampfront.v1.Solution
+	(*Objective)(nil),                   // 35: dampfront.v1.Objective
+	(*Constraint)(nil),                  // 36: dampfront.v1.Constraint
+	(*Adjustment)(nil),                  // 37: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),               // 38: dampfront.v1.CurveSettings
+	(*DamperCurve)(nil),                 // 39: dampfront.v1.DamperCurve
+	(*EstimateByHandRequest)(nil),       // 40: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil),      // 41: dampfront.v1.EstimateByHandResponse
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
-	24, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
-	25, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
-	26, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
-	25, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
-	27, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
-	23, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
-	26, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
-	25, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
-	25, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
-	28, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
-	25, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
-	29, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
-	30, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
-	24, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
-	31, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
-	29, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
-	32, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
-	33, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
-	34, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
-	31, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
-	32, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
-	33, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
-	34, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
-	31, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
-	35, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
-	36, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
-	31, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
-	37, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
-	24, // 28: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
-	31, // 29: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
+	26, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
+	27, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
+	28, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
+	27, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
+	29, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
+	25, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
+	28, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
+	27, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
+	27, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
+	30, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
+	27, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
+	31, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
+	32, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
+	26, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
+	33, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
+	31, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
+	34, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
+	35, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
+	36, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
+	33, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
+	34, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
+	35, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
+	36, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
+	33, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
+	37, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
+	38, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
+	33, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
+	39, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
+	26, // 28: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
+	33, // 29: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
 	21, // 30: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
 	0,  // 31: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
 	22, // 32: dampfront.v1.VerifiedCase.metrics:type_name -> dampfront.v1.VerifiedMetric
 	0,  // 33: dampfront.v1.VerifiedCase.verdict:type_name -> dampfront.v1.Verdict
 	0,  // 34: dampfront.v1.VerifiedMetric.verdict:type_name -> dampfront.v1.Verdict
-	1,  // 35: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
-	3,  // 36: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
-	5,  // 37: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
-	7,  // 38: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
-	9,  // 39: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
-	11, // 40: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
-	13, // 41: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
-	15, // 42: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
-	17, // 43: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
-	19, // 44: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
-	38, // 45: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
-	2,  // 46: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	4,  // 47: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	6,  // 48: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	8,  // 49: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	10, // 50: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	12, // 51: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	14, // 52: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	16, // 53: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	18, // 54: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	20, // 55: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
-	39, // 56: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
-	46, // [46:57] is the sub-list for method output_type
-	35, // [35:46] is the sub-list for method input_type
-	35, // [35:35] is the sub-list for extension type_name
-	35, // [35:35] is the sub-list for extension extendee
-	0,  // [0:35] is the sub-list for field type_name
+	26, // 35: dampfront.v1.GetTransientHistoryRequest.spec:type_name -> dampfront.v1.JobSpec
+	33, // 36: dampfront.v1.GetTransientHistoryRequest.setup:type_name -> dampfront.v1.Setup
+	1,  // 37: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
+	3,  // 38: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
+	5,  // 39: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
+	7,  // 40: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
+	9,  // 41: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
+	11, // 42: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
+	13, // 43: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
+	15, // 44: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
+	17, // 45: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
+	19, // 46: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
+	40, // 47: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
+	23, // 48: dampfront.v1.DampfrontService.GetTransientHistory:input_type -> dampfront.v1.GetTransientHistoryRequest
+	2,  // 49: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	4,  // 50: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	6,  // 51: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	8,  // 52: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	10, // 53: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	12, // 54: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	14, // 55: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	16, // 56: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	18, // 57: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	20, // 58: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	41, // 59: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
+	24, // 60: dampfront.v1.DampfrontService.GetTransientHistory:output_type -> dampfront.v1.GetTransientHistoryResponse
+	49, // [49:61] is the sub-list for method output_type
+	37, // [37:49] is the sub-list for method input_type
+	37, // [37:37] is the sub-list for extension type_name
+	37, // [37:37] is the sub-list for extension extendee
+	0,  // [0:37] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_service_proto_init() }
@@ -2000,13 +2291,17 @@ func file_dampfront_v1_service_proto_init() {
 		(*VerifySetupRequest_Spec)(nil),
 		(*VerifySetupRequest_Job)(nil),
 	}
+	file_dampfront_v1_service_proto_msgTypes[22].OneofWrappers = []any{
+		(*GetTransientHistoryRequest_Spec)(nil),
+		(*GetTransientHistoryRequest_Job)(nil),
+	}
 	type x struct{}
 	out := protoimpl.TypeBuilder{
 		File: protoimpl.DescBuilder{
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_service_proto_rawDesc), len(file_dampfront_v1_service_proto_rawDesc)),
 			NumEnums:      1,
-			NumMessages:   23,
+			NumMessages:   25,
 			NumExtensions: 0,
 			NumServices:   1,
 		},

@@ -19,17 +19,18 @@ import (
 const _ = grpc.SupportPackageIsVersion9
 
 const (
-	DampfrontService_SubmitJob_FullMethodName       = "/dampfront.v1.DampfrontService/SubmitJob"
-	DampfrontService_GetJob_FullMethodName          = "/dampfront.v1.DampfrontService/GetJob"
-	DampfrontService_ListJobs_FullMethodName        = "/dampfront.v1.DampfrontService/ListJobs"
-	DampfrontService_CancelJob_FullMethodName       = "/dampfront.v1.DampfrontService/CancelJob"
-	DampfrontService_WatchJob_FullMethodName        = "/dampfront.v1.DampfrontService/WatchJob"
-	DampfrontService_GetFront_FullMethodName        = "/dampfront.v1.DampfrontService/GetFront"
-	DampfrontService_EvaluateSetups_FullMethodName  = "/dampfront.v1.DampfrontService/EvaluateSetups"
-	DampfrontService_CompareSetup_FullMethodName    = "/dampfront.v1.DampfrontService/CompareSetup"
-	DampfrontService_GetDamperCurves_FullMethodName = "/dampfront.v1.DampfrontService/GetDamperCurves"
-	DampfrontService_VerifySetup_FullMethodName     = "/dampfront.v1.DampfrontService/VerifySetup"
-	DampfrontService_EstimateByHand_FullMethodName  = "/dampfront.v1.DampfrontService/EstimateByHand"
+	DampfrontService_SubmitJob_FullMethodName           = "/dampfront.v1.DampfrontService/SubmitJob"
+	DampfrontService_GetJob_FullMethodName              = "/dampfront.v1.DampfrontService/GetJob"
+	DampfrontService_ListJobs_FullMethodName            = "/dampfront.v1.DampfrontService/ListJobs"
+	DampfrontService_CancelJob_FullMethodName           = "/dampfront.v1.DampfrontService/CancelJob"
+	DampfrontService_WatchJob_FullMethodName            = "/dampfront.v1.DampfrontService/WatchJob"
+	DampfrontService_GetFront_FullMethodName            = "/dampfront.v1.DampfrontService/GetFront"
+	DampfrontService_EvaluateSetups_FullMethodName      = "/dampfront.v1.DampfrontService/EvaluateSetups"
+	DampfrontService_CompareSetup_FullMethodName        = "/dampfront.v1.DampfrontService/CompareSetup"
+	DampfrontService_GetDamperCurves_FullMethodName     = "/dampfront.v1.DampfrontService/GetDamperCurves"
+	DampfrontService_VerifySetup_FullMethodName         = "/dampfront.v1.DampfrontService/VerifySetup"
+	DampfrontService_EstimateByHand_FullMethodName      = "/dampfront.v1.DampfrontService/EstimateByHand"
+	DampfrontService_GetTransientHistory_FullMethodName = "/dampfront.v1.DampfrontService/GetTransientHistory"
 )
 
 // DampfrontServiceClient is the client API for DampfrontService service.
@@ -78,6 +79,10 @@ type DampfrontServiceClient interface {
 	// ride frequencies and the damper at target ratios, and the body modes
 	// beside the full car's. Needs no job and no road.
 	EstimateByHand(ctx context.Context, in *EstimateByHandRequest, opts ...grpc.CallOption) (*EstimateByHandResponse, error)
+	// Simulates a setup on one manoeuvre or kerb case of a spec or a job and
+	// returns its time history: roll, pitch, the front share of the lateral
+	// load transfer and the tyre loads.
+	GetTransientHistory(ctx context.Context, in *GetTransientHistoryRequest, opts ...grpc.CallOption) (*GetTransientHistoryResponse, error)
 }
 
 type dampfrontServiceClient struct {
@@ -207,6 +212,16 @@ func (c *dampfrontServiceClient) EstimateByHand(ctx context.Context, in *Estimat
 	return out, nil
 }
 
+func (c *dampfrontServiceClient) GetTransientHistory(ctx context.Context, in *GetTransientHistoryRequest, opts ...grpc.CallOption) (*GetTransientHistoryResponse, error) {
+	cOpts := append([]grpc.CallOption{grpc.StaticMethod()}, opts...)
+	out := new(GetTransientHistoryResponse)
+	err := c.cc.Invoke(ctx, DampfrontService_GetTransientHistory_FullMethodName, in, out, cOpts...)
+	if err != nil {
+		return nil, err
+	}
+	return out, nil
+}
+
 // DampfrontServiceServer is the server API for DampfrontService service.
 // All implementations must embed UnimplementedDampfrontServiceServer
 // for forward compatibility.
@@ -253,6 +268,10 @@ type DampfrontServiceServer interface {
 	// ride frequencies and the damper at target ratios, and the body modes
 	// beside the full car's. Needs no job and no road.
 	EstimateByHand(context.Context, *EstimateByHandRequest) (*EstimateByHandResponse, error)
+	// Simulates a setup on one manoeuvre or kerb case of a spec or a job and
+	// returns its time history: roll, pitch, the front share of the lateral
+	// load transfer and the tyre loads.
+	GetTransientHistory(context.Context, *GetTransientHistoryRequest) (*GetTransientHistoryResponse, error)
 	mustEmbedUnimplementedDampfrontServiceServer()
 }
 
@@ -295,6 +314,9 @@ func (UnimplementedDampfrontServiceServer) VerifySetup(context.Context, *VerifyS
 }
 func (UnimplementedDampfrontServiceServer) EstimateByHand(context.Context, *EstimateByHandRequest) (*EstimateByHandResponse, error) {
 	return nil, status.Error(codes.Unimplemented, "method EstimateByHand not implemented")
+}
+func (UnimplementedDampfrontServiceServer) GetTransientHistory(context.Context, *GetTransientHistoryRequest) (*GetTransientHistoryResponse, error) {
+	return nil, status.Error(codes.Unimplemented, "method GetTransientHistory not implemented")
 }
 func (UnimplementedDampfrontServiceServer) mustEmbedUnimplementedDampfrontServiceServer() {}
 func (UnimplementedDampfrontServiceServer) testEmbeddedByValue()                          {}
@@ -508,6 +530,24 @@ func _DampfrontService_EstimateByHand_Handler(srv interface{}, ctx context.Conte
 	return interceptor(ctx, in, info, handler)
 }
 
+func _DampfrontService_GetTransientHistory_Handler(srv interface{}, ctx context.Context, dec func(interface{}) error, interceptor grpc.UnaryServerInterceptor) (interface{}, error) {
+	in := new(GetTransientHistoryRequest)
+	if err := dec(in); err != nil {
+		return nil, err
+	}
+	if interceptor == nil {
+		return srv.(DampfrontServiceServer).GetTransientHistory(ctx, in)
+	}
+	info := &grpc.UnaryServerInfo{
+		Server:     srv,
+		FullMethod: DampfrontService_GetTransientHistory_FullMethodName,
+	}
+	handler := func(ctx context.Context, req interface{}) (interface{}, error) {
+		return srv.(DampfrontServiceServer).GetTransientHistory(ctx, req.(*GetTransientHistoryRequest))
+	}
+	return interceptor(ctx, in, info, handler)
+}
+
 // DampfrontService_ServiceDesc is the grpc.ServiceDesc for DampfrontService service.
 // It's only intended for direct use with grpc.RegisterService,
 // and not to be introspected or modified (even as a copy)
@@ -554,6 +594,10 @@ var DampfrontService_ServiceDesc = grpc.ServiceDesc{
 		{
 			MethodName: "EstimateByHand",
 			Handler:    _DampfrontService_EstimateByHand_Handler,
+		},
+		{
+			MethodName: "GetTransientHistory",
+			Handler:    _DampfrontService_GetTransientHistory_Handler,
 		},
 	},
 	Streams: []grpc.StreamDesc{

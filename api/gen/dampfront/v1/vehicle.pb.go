@@ -80,7 +80,10 @@ type Vehicle struct {
 	// Front heave (third) spring and damper; absent means none.
 	FrontHeave *HeaveElement `protobuf:"bytes,20,opt,name=front_heave,json=frontHeave,proto3" json:"front_heave,omitempty"`
 	// Rear heave (third) spring and damper; absent means none.
-	RearHeave     *HeaveElement `protobuf:"bytes,21,opt,name=rear_heave,json=rearHeave,proto3" json:"rear_heave,omitempty"`
+	RearHeave *HeaveElement `protobuf:"bytes,21,opt,name=rear_heave,json=rearHeave,proto3" json:"rear_heave,omitempty"`
+	// Heights and link geometry for the manoeuvre cases (field numbers from
+	// 30 on).
+	LoadPaths     *LoadPaths `protobuf:"bytes,30,opt,name=load_paths,json=loadPaths,proto3" json:"load_paths,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -237,6 +240,13 @@ func (x *Vehicle) GetFrontHeave() *HeaveElement {
 func (x *Vehicle) GetRearHeave() *HeaveElement {
 	if x != nil {
 		return x.RearHeave
+	}
+	return nil
+}
+
+func (x *Vehicle) GetLoadPaths() *LoadPaths {
+	if x != nil {
+		return x.LoadPaths
 	}
 	return nil
 }
@@ -960,7 +970,7 @@ var File_dampfront_v1_vehicle_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\"\xf6\x06\n" +
+	"\x1adampfront/v1/vehicle.proto\x12\fdampfront.v1\x1a\x1cdampfront/v1/transient.proto\"\xae\a\n" +
 	"\aVehicle\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12$\n" +
 	"\x0esprung_mass_kg\x18\x02 \x01(\x01R\fsprungMassKg\x12-\n" +
@@ -984,7 +994,9 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\vfront_heave\x18\x14 \x01(\v2\x1a.dampfront.v1.HeaveElementR\n" +
 	"frontHeave\x129\n" +
 	"\n" +
-	"rear_heave\x18\x15 \x01(\v2\x1a.dampfront.v1.HeaveElementR\trearHeave\"\xaf\x01\n" +
+	"rear_heave\x18\x15 \x01(\v2\x1a.dampfront.v1.HeaveElementR\trearHeave\x126\n" +
+	"\n" +
+	"load_paths\x18\x1e \x01(\v2\x17.dampfront.v1.LoadPathsR\tloadPaths\"\xaf\x01\n" +
 	"\fHeaveElement\x12!\n" +
 	"\fmotion_ratio\x18\x01 \x01(\x01R\vmotionRatio\x12,\n" +
 	"\x13spring_rate_n_per_m\x18\x02 \x01(\x01R\x0fspringRateNPerM\x12 \n" +
@@ -1063,6 +1075,7 @@ var file_dampfront_v1_vehicle_proto_goTypes = []any{
 	(*AeroTable)(nil),      // 6: dampfront.v1.AeroTable
 	(*AeroPolynomial)(nil), // 7: dampfront.v1.AeroPolynomial
 	(*AeroTerm)(nil),       // 8: dampfront.v1.AeroTerm
+	(*LoadPaths)(nil),      // 9: dampfront.v1.LoadPaths
 }
 var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
 	3,  // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
@@ -1072,14 +1085,15 @@ var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
 	2,  // 4: dampfront.v1.Vehicle.reference_points:type_name -> dampfront.v1.ReferencePoint
 	1,  // 5: dampfront.v1.Vehicle.front_heave:type_name -> dampfront.v1.HeaveElement
 	1,  // 6: dampfront.v1.Vehicle.rear_heave:type_name -> dampfront.v1.HeaveElement
-	6,  // 7: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
-	7,  // 8: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
-	8,  // 9: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
-	10, // [10:10] is the sub-list for method output_type
-	10, // [10:10] is the sub-list for method input_type
-	10, // [10:10] is the sub-list for extension type_name
-	10, // [10:10] is the sub-list for extension extendee
-	0,  // [0:10] is the sub-list for field type_name
+	9,  // 7: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
+	6,  // 8: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
+	7,  // 9: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
+	8,  // 10: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
+	11, // [11:11] is the sub-list for method output_type
+	11, // [11:11] is the sub-list for method input_type
+	11, // [11:11] is the sub-list for extension type_name
+	11, // [11:11] is the sub-list for extension extendee
+	0,  // [0:11] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_vehicle_proto_init() }
@@ -1087,6 +1101,7 @@ func file_dampfront_v1_vehicle_proto_init() {
 	if File_dampfront_v1_vehicle_proto != nil {
 		return
 	}
+	file_dampfront_v1_transient_proto_init()
 	type x struct{}
 	out := protoimpl.TypeBuilder{
 		File: protoimpl.DescBuilder{
