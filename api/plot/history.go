@@ -194,3 +194,15 @@ func tyrePanel(t []float64, loads [4][]float64, leg *gplot.Legend) (*gplot.Plot,
 	}
 	return p, nil
 }
+
+// SolutionTransient is a front solution's metrics on the manoeuvre or
+// kerb case named name (full view), for HistoryOptions.Steady; nil when
+// the solution carries none of that name.
+func SolutionTransient(s *pb.Solution, name string) *pb.TransientMetrics {
+	for _, m := range s.GetTransientMetrics() {
+		if m.GetName() == name {
+			return m
+		}
+	}
+	return nil
+}
