@@ -155,6 +155,21 @@ func historyPanel(title string, q quantity, t, ys []float64, withSteady bool, st
 	if len(ys) == 0 {
 		return p, nil
 	}
+	l, err := timeLine(t, ys, q, historyLine)
+	if err != nil {
+		return nil, err
+	}
+	p.Add(l)
+	if lo, hi := p.Y.Min, p.Y.Max; hi-lo < 1e-9*math.Max(1, math.Abs(hi)) {
+		// A flat series (no pitch on a pure turn-in): give the axis a span.
+		p.Y.Min, p.Y.Max = lo-1, hi+1
+	}
+	return p, nil
+}
+
+// timeLine is the line of the SI series ys against time t in q's trade
+// unit, in style ls.
+func timeLine(t, ys []float64, q quantity, ls draw.LineStyle) (*plotter.Line, error) {
 	pts := make(plotter.XYs, len(t))
 	for i := range t {
 		pts[i] = plotter.XY{X: t[i], Y: q.of(ys[i])}
@@ -163,13 +178,8 @@ func historyPanel(title string, q quantity, t, ys []float64, withSteady bool, st
 	if err != nil {
 		return nil, err
 	}
-	l.LineStyle = historyLine
-	p.Add(l)
-	if lo, hi := p.Y.Min, p.Y.Max; hi-lo < 1e-9*math.Max(1, math.Abs(hi)) {
-		// A flat series (no pitch on a pure turn-in): give the axis a span.
-		p.Y.Min, p.Y.Max = lo-1, hi+1
-	}
-	return p, nil
+	l.LineStyle = ls
+	return l, nil
 }
 
 // tyrePanel is the panel of the four tyre loads against time, their
@@ -180,15 +190,10 @@ func tyrePanel(t []float64, loads [4][]float64, leg *gplot.Legend) (*gplot.Plot,
 	p.X.Label.Text, p.Y.Label.Text = qTime.label(), qTyreLoad.label()
 	p.X.Min, p.X.Max = t[0], t[len(t)-1]
 	for k, ys := range loads {
-		pts := make(plotter.XYs, len(t))
-		for i := range t {
-			pts[i] = plotter.XY{X: t[i], Y: qTyreLoad.of(ys[i])}
-		}
-		l, err := plotter.NewLine(pts)
+		l, err := timeLine(t, ys, qTyreLoad, lineStyle(tyreColours[k], 1.2))
 		if err != nil {
 			return nil, err
 		}
-		l.LineStyle = lineStyle(tyreColours[k], 1.2)
 		p.Add(l)
 		leg.Add("tyre "+tyreNames[k], l)
 	}
