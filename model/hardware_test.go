@@ -280,3 +280,21 @@ func TestGoodHardwareCheckAllocatesNothing(t *testing.T) {
 		t.Errorf("Setup.ok allocates %g times", n)
 	}
 }
+
+// TestEvaluateWithHardwareAllocatesNothing: the evaluation hot path stays
+// allocation-free with multi-stage curves, blow-off and friction.
+func TestEvaluateWithHardwareAllocatesNothing(t *testing.T) {
+	e, err := NewEvaluator(demoCar(), demoCases(), EvaluatorOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := Setup{Axles: [2]AxleDamping{withRatios(hardwareCases[0].a), withRatios(hardwareCases[2].a)}}
+	s.Axles[1].Friction = 40
+	var r Result
+	if err := e.Evaluate(s, &r); err != nil {
+		t.Fatal(err)
+	}
+	if n := testing.AllocsPerRun(5, func() { _ = e.Evaluate(s, &r) }); n != 0 {
+		t.Errorf("Evaluate with damper hardware allocates %g times", n)
+	}
+}
