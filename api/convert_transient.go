@@ -46,7 +46,7 @@ func manoeuvresFromProto(ms []*pb.Manoeuvre, path string, p *problems) []model.M
 	if len(ms) == 0 {
 		return nil
 	}
-	g := model.StandardGravity
+	g := model.Gravity
 	out := make([]model.Manoeuvre, len(ms))
 	for i, m := range ms {
 		shape, ok := manoeuvreShapes[m.GetShape()]

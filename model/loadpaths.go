@@ -2,9 +2,6 @@ package model
 
 import "math"
 
-// StandardGravity is g (m/s²), for accelerations given in g (ISO 80000-3).
-const StandardGravity = 9.80665
-
 // LoadPaths says how the inertial loads of a manoeuvre reach the tyres
 // (see the manoeuvre cases): the centre-of-gravity heights, and the
 // geometric part carried by the links, which loads the tyres without

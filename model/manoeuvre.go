@@ -185,7 +185,7 @@ func (m *Manoeuvre) Validate() error {
 // time (s), a_x (g), a_y (g), speed (m/s), separated by commas or
 // blanks; a first line that does not parse as numbers is a header, lines
 // starting with # are comments. Accelerations are converted to m/s² with
-// StandardGravity. Errors name the line. The rows are checked by
+// Gravity. Errors name the line. The rows are checked by
 // Manoeuvre.Validate.
 func ReadManoeuvreTable(r io.Reader) ([]ManoeuvrePoint, error) {
 	var out []ManoeuvrePoint
@@ -218,7 +218,7 @@ func ReadManoeuvreTable(r io.Reader) ([]ManoeuvrePoint, error) {
 		if len(out) >= maxManoeuvrePoints {
 			return nil, &ValidationError{Problems: []FieldError{{Field: "table", Reason: fmt.Sprintf("has more than %d rows", maxManoeuvrePoints)}}}
 		}
-		out = append(out, ManoeuvrePoint{Time: v[0], Ax: v[1] * StandardGravity, Ay: v[2] * StandardGravity, Speed: v[3]})
+		out = append(out, ManoeuvrePoint{Time: v[0], Ax: v[1] * Gravity, Ay: v[2] * Gravity, Speed: v[3]})
 	}
 	if err := sc.Err(); err != nil {
 		return nil, err

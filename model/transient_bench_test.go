@@ -15,8 +15,8 @@ func BenchmarkTransientCase(b *testing.B) {
 		man  *Manoeuvre
 		kerb *Kerb
 	}{
-		{"brake", &Manoeuvre{Name: "brake", Shape: ShapeBrake, Speed: 55, Longitudinal: 1.8 * StandardGravity, Start: 0.1, Ramp: 0.15}, nil},
-		{"turn_in", &Manoeuvre{Name: "turn", Shape: ShapeTurnIn, Speed: 45, Lateral: 1.6 * StandardGravity, Start: 0.1, Ramp: 0.3}, nil},
+		{"brake", &Manoeuvre{Name: "brake", Shape: ShapeBrake, Speed: 55, Longitudinal: 1.8 * Gravity, Start: 0.1, Ramp: 0.15}, nil},
+		{"turn_in", &Manoeuvre{Name: "turn", Shape: ShapeTurnIn, Speed: 45, Lateral: 1.6 * Gravity, Start: 0.1, Ramp: 0.3}, nil},
 		{"kerb", nil, &Kerb{Name: "kerb", Shape: KerbTrapezoid, Side: KerbLeft, Height: 0.03, Length: 1.5, Speed: 40}},
 	} {
 		b.Run(bc.name, func(b *testing.B) {

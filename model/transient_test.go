@@ -72,7 +72,7 @@ func TestTransientLateralTransferMilliken(t *testing.T) {
 	front := msA[0]*lp.RollCentreHeight[0] + mu[0]*lp.UnsprungCGHeight[0]
 	lp.RollCentreHeight[1] = (front*kt[1]/kt[0] - mu[1]*lp.UnsprungCGHeight[1]) / msA[1]
 
-	ay := 1.2 * StandardGravity
+	ay := 1.2 * Gravity
 	d := linearDampers(&v, 0.6)
 	man := &Manoeuvre{Name: "turn", Shape: ShapeTurnIn, Speed: 40, Lateral: ay, Start: 0.1, Ramp: 0.3, Duration: 8}
 	c := prepare(t, &v, man, nil, TransientOptions{}, &d)
@@ -117,7 +117,7 @@ func TestTransientBrakingTransferAndAntiDive(t *testing.T) {
 		v := transientCar()
 		v.LoadPaths.AntiBrake = [2]float64{anti, anti}
 		lp := v.LoadPaths
-		ax := -1.1 * StandardGravity
+		ax := -1.1 * Gravity
 		d := linearDampers(&v, 0.6)
 		man := &Manoeuvre{Name: "brake", Shape: ShapeBrake, Speed: 40, Longitudinal: -ax, Start: 0.1, Ramp: 0.2, Duration: 8}
 		c := prepare(t, &v, man, nil, TransientOptions{}, &d)
@@ -417,7 +417,7 @@ func TestTransientValidation(t *testing.T) {
 		}
 	}
 	rows, err := ReadManoeuvreTable(strings.NewReader("time_s,ax_g,ay_g,speed\n0,0,0,50\n0.5,-1.5,0.2,45\n"))
-	if err != nil || len(rows) != 2 || rows[1].Ax != -1.5*StandardGravity {
+	if err != nil || len(rows) != 2 || rows[1].Ax != -1.5*Gravity {
 		t.Errorf("table: %v %v", rows, err)
 	}
 	if _, err := ReadManoeuvreTable(strings.NewReader("0,0,0,50\n0.5,x,0,45\n")); err == nil || !strings.Contains(err.Error(), "line 2") {

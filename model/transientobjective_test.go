@@ -18,8 +18,8 @@ func transientProblem(t testing.TB) *Problem {
 		t.Fatal(err)
 	}
 	ms := []Manoeuvre{
-		{Name: "brake", Shape: ShapeBrake, Speed: 55, Longitudinal: 1.8 * StandardGravity, Start: 0.1, Ramp: 0.15},
-		{Name: "turn", Shape: ShapeTurnIn, Speed: 45, Lateral: 1.6 * StandardGravity, Start: 0.1, Ramp: 0.3, Weight: 2},
+		{Name: "brake", Shape: ShapeBrake, Speed: 55, Longitudinal: 1.8 * Gravity, Start: 0.1, Ramp: 0.15},
+		{Name: "turn", Shape: ShapeTurnIn, Speed: 45, Lateral: 1.6 * Gravity, Start: 0.1, Ramp: 0.3, Weight: 2},
 	}
 	ks := []Kerb{{Name: "kerb", Shape: KerbTrapezoid, Side: KerbLeft, Height: 0.03, Length: 1.5, Speed: 40}}
 	if err := e.SetTransientCases(ms, ks, TransientOptions{}); err != nil {
@@ -45,7 +45,7 @@ func TestDriverResponseSeesTheSplit(t *testing.T) {
 	t.Parallel()
 	v := transientCar()
 	response := func(d *[4]wheelDamper, shape ManoeuvreShape) float64 {
-		man := &Manoeuvre{Name: "m", Shape: shape, Speed: 40, Longitudinal: 0.8 * StandardGravity, Start: 0.1, Ramp: 0.1, Duration: 2.5}
+		man := &Manoeuvre{Name: "m", Shape: shape, Speed: 40, Longitudinal: 0.8 * Gravity, Start: 0.1, Ramp: 0.1, Duration: 2.5}
 		c := prepare(t, &v, man, nil, TransientOptions{MaxRatio: 2}, d)
 		var m TransientMetrics
 		if err := c.evaluate(d, &m); err != nil {

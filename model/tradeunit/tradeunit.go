@@ -24,10 +24,6 @@ import (
 	"dampfront/model"
 )
 
-// StandardGravity is the standard acceleration of gravity, m/s² (3rd
-// CGPM, 1901): one g.
-const StandardGravity = model.StandardGravity
-
 // Unit is a trade unit and its scale from SI.
 type Unit struct {
 	Symbol string // as a table writes it: "mm", "% static"; "" when dimensionless
@@ -61,7 +57,7 @@ var (
 	MillimetrePerSecond = Unit{Symbol: "mm/s", Scale: 1000}
 	NewtonSecondPerMM   = Unit{Symbol: "N s/mm", Scale: 1 / 1000.0}
 	Degree              = Unit{Symbol: "deg", Scale: 180 / math.Pi}
-	Gravity             = Unit{Symbol: "g", Scale: 1 / StandardGravity}
+	Gravity             = Unit{Symbol: "g", Scale: 1 / model.Gravity}
 	Newton              = Unit{Symbol: "N", Scale: 1}
 	NewtonPerMM         = Unit{Symbol: "N/mm", Scale: 1 / 1000.0}
 	Hertz               = Unit{Symbol: "Hz", Scale: 1}
