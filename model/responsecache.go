@@ -18,7 +18,7 @@ package model
 // computes the rest as before; the cache is written once in
 // NewEvaluator and only read after, so goroutines share it.
 
-// cacheBudget bounds an Evaluator's cache (bytes): 32 MiB holds 100
+// cacheBudget bounds an Evaluator's cache (bytes): 32 MiB holds 107
 // symmetric cases on a 1001-point grid; cases past it are not cached.
 const cacheBudget = 32 << 20
 

@@ -72,6 +72,9 @@ func TestResponseCacheSameBits(t *testing.T) {
 // size it holds.
 func TestResponseCacheBudget(t *testing.T) {
 	t.Parallel()
+	if testing.Short() {
+		t.Skip("prepares 28 cases on a 2001-point grid")
+	}
 	grid := Grid{MinHz: 0.1, MaxHz: 250, Points: 2001}
 	var cases []RoadCase
 	for i := 0; i < 28; i++ { // one past what fits

@@ -208,14 +208,20 @@ func testdataPath(name string) string { return filepath.Join("..", "..", "testda
 // a temporary file and returns its path.
 func writeSpec(t *testing.T, replacements ...string) string {
 	t.Helper()
-	b, err := os.ReadFile(testdataPath("demo-job.yaml"))
+	return writeSpecOf(t, "demo-job.yaml", replacements...)
+}
+
+// writeSpecOf is writeSpec of another spec of testdata.
+func writeSpecOf(t *testing.T, name string, replacements ...string) string {
+	t.Helper()
+	b, err := os.ReadFile(testdataPath(name))
 	if err != nil {
 		t.Fatal(err)
 	}
 	s := string(b)
 	for i := 0; i+1 < len(replacements); i += 2 {
 		if !strings.Contains(s, replacements[i]) {
-			t.Fatalf("demo-job.yaml has no %q to replace", replacements[i])
+			t.Fatalf("%s has no %q to replace", name, replacements[i])
 		}
 		s = strings.Replace(s, replacements[i], replacements[i+1], 1)
 	}

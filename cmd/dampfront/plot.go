@@ -21,7 +21,7 @@ import (
 )
 
 var plotCommand = &command{name: "plot", synopsis: "CHART [flags] [JOB] (--svg FILE | --png FILE)", maxArgs: 2, client: true,
-	summary: "write a chart as SVG or PNG: front, damper curves, modal ratios, hypervolume, road input, output spectra", about: plotAbout, flags: bindPlot}
+	summary: "write a chart as SVG or PNG: front, damper curves, modal ratios, hypervolume, road input, output spectra, time history", about: plotAbout, flags: bindPlot}
 
 // plotCharts are the charts of "plot", each with the flags of its own;
 // the flags of the page and the files, and the client's, go with every
@@ -33,6 +33,7 @@ var plotCharts = map[string][]string{
 	"hypervolume": nil,
 	"road":        {"spec"},
 	"spectra":     {"spec", "setup", "case", "solution", "balanced"},
+	"history":     {"case", "solution", "balanced"},
 }
 
 // plotAbout is the help text of plot.
@@ -61,6 +62,13 @@ Writes one chart to --svg FILE, --png FILE or both. Charts:
                      front (the default), its --solution N, or a --setup
                      FILE on the job's car and roads; or a setup on a spec
                      file's, with no server. Computed here.
+  history JOB [--solution N] [--case NAME]
+                     time history of the balanced point (the default) or
+                     of --solution N on the job's manoeuvre or kerb case
+                     NAME (the first by default), simulated by the server:
+                     roll, pitch, the front share of the lateral load
+                     transfer with their steady values, and the four tyre
+                     loads
 
 The page is --width by --height in mm (0: the chart's own size), PNGs at
 --dpi. Every chart carries the model's caution in its footnote.`
@@ -76,20 +84,20 @@ func bindPlot(fs *flagSet, e *env) (runFunc, error) {
 	fs.Var(&objectives, "objectives", "front: the `positions` of the two or three objectives drawn, as 0,1 (default: all); modes: the one along x")
 	colour := fs.String("colour", "", "front: colour the points by this `gene` (default: the front/rear balance)")
 	fs.Var(&marked, "mark", "front: box the solutions of these `indices`, as 3,17 (repeatable)")
-	solution := fs.Int("solution", -1, "curves, spectra: `index` of a solution of the job's front")
-	fs.Bool("balanced", false, "curves, spectra: the balanced point of the front (the default)")
+	solution := fs.Int("solution", -1, "curves, spectra, history: `index` of a solution of the job's front")
+	fs.Bool("balanced", false, "curves, spectra, history: the balanced point of the front (the default)")
 	specPath := fs.String("spec", "", "road, spectra: job spec `file` giving the car and the road cases")
 	setupPath := fs.String("setup", "", "spectra: setup `file` whose spectra to draw (with --spec, or on a JOB's car and roads)")
-	roadCase := fs.Int("case", 0, "spectra: `index` of the road case in the spec, from 0")
+	caseArg := fs.String("case", "", "spectra: the road `case`'s index in the spec, from 0 (default 0); history: the manoeuvre or kerb case's name (default: the first)")
 	return func(ctx context.Context, e *env, in *parsed) error {
 		pos, cf := in.args, in.client
 		if len(pos) == 0 {
-			return usagef("plot", "name a chart: front, curves, modes, hypervolume, road or spectra")
+			return usagef("plot", "name a chart: front, curves, modes, hypervolume, road, spectra or history")
 		}
 		chart := pos[0]
 		own, ok := plotCharts[chart]
 		if !ok {
-			return usagef("plot", "unknown chart %q (want front, curves, modes, hypervolume, road or spectra)", chart)
+			return usagef("plot", "unknown chart %q (want front, curves, modes, hypervolume, road, spectra or history)", chart)
 		}
 		if err := checkChartFlags(fs, chart, own); err != nil {
 			return err
@@ -107,8 +115,6 @@ func bindPlot(fs *flagSet, e *env) (runFunc, error) {
 		switch {
 		case isFlagSet(fs, "solution") && *solution < 0:
 			return usagef("plot", "--solution must be a front index >= 0")
-		case *roadCase < 0:
-			return usagef("plot", "--case must be a road case index >= 0")
 		case !(*width >= 0) || !(*height >= 0) || math.IsInf(*width, 0) || math.IsInf(*height, 0) || *dpi < 0:
 			return usagef("plot", "--width, --height and --dpi must be numbers >= 0")
 		}
@@ -118,7 +124,9 @@ func bindPlot(fs *flagSet, e *env) (runFunc, error) {
 		page := plotPage{title: *title, width: vg.Length(*width) * vg.Millimeter, height: vg.Length(*height) * vg.Millimeter}
 		switch chart {
 		case "spectra":
-			fig, err = plotSpectra(ctx, e, cf, job, *specPath, *setupPath, *solution, *roadCase, page)
+			fig, err = plotSpectra(ctx, e, cf, job, *specPath, *setupPath, *solution, *caseArg, page)
+		case "history":
+			fig, err = plotHistory(ctx, cf, job, *solution, *caseArg, page)
 		case "road":
 			if job == "" {
 				var spec *pb.JobSpec
@@ -163,7 +171,7 @@ func plotOfJob(ctx context.Context, cf *clientFlags, chart, job string, opt plot
 // more than one of the setups to draw.
 func checkPlotSource(fs *flagSet, chart, job, specPath, setupPath string) error {
 	switch {
-	case (chart == "front" || chart == "curves" || chart == "modes" || chart == "hypervolume") && job == "":
+	case (chart == "front" || chart == "curves" || chart == "modes" || chart == "hypervolume" || chart == "history") && job == "":
 		return usagef("plot", "the %s chart needs a JOB", chart)
 	case chart == "road" && (job == "") == (specPath == ""):
 		return usagef("plot", "the road chart needs a JOB or --spec FILE, not both")
@@ -347,7 +355,15 @@ func plotRoad(spec *pb.JobSpec, page plotPage) (*plot.Figure, error) {
 // road case, with the car's modes at the case's speed: a setup file on a
 // spec file's car and roads, or a solution of a job's front (or a setup
 // file) on the job's, fetched from the server.
-func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, setupPath string, solution, ci int, page plotPage) (*plot.Figure, error) {
+func plotSpectra(ctx context.Context, e *env, cf *clientFlags, job, specPath, setupPath string, solution int, caseArg string, page plotPage) (*plot.Figure, error) {
+	ci := 0
+	if caseArg != "" {
+		n, err := strconv.Atoi(caseArg)
+		if err != nil || n < 0 {
+			return nil, usagef("plot", "--case must be a road case index >= 0, got %q", caseArg)
+		}
+		ci = n
+	}
 	var spec *pb.JobSpec
 	var setup *pb.Setup
 	source := ""

@@ -4,7 +4,6 @@ import (
 	"context"
 	"dampfront/api"
 	"errors"
-	"fmt"
 	"math"
 	"runtime"
 
@@ -227,20 +226,11 @@ func fetchJobSetup(ctx context.Context, cf *clientFlags, name string, setup *pb.
 	if err != nil {
 		return nil, nil, "", err
 	}
-	sols := fd.front.GetSolutions()
-	if solution >= 0 {
-		for _, s := range sols {
-			if int(s.GetIndex()) == solution {
-				return fd.job.GetSpec(), s.GetSetup(), fmt.Sprintf("solution %d of %s", solution, name), nil
-			}
-		}
-		return nil, nil, "", &exitError{code: exitUsage, msg: fmt.Sprintf("the front of %s has no solution %d (it has %d solutions)", name, solution, len(sols))}
+	s, what, err := pickSolution(fd, name, solution)
+	if err != nil {
+		return nil, nil, "", err
 	}
-	b := balancedIndex(sols)
-	if b < 0 {
-		return nil, nil, "", &exitError{code: exitFailure, msg: "the front of " + name + " is empty: no balanced point"}
-	}
-	return fd.job.GetSpec(), sols[b].GetSetup(), fmt.Sprintf("balanced point, solution %d of %s", sols[b].GetIndex(), name), nil
+	return fd.job.GetSpec(), s.GetSetup(), what + " of " + name, nil
 }
 
 // setupToModel converts a setup read from path; a bad one is an input
