@@ -109,7 +109,9 @@
 //
 // Search.Polish refines the archive once by a local search per point
 // (polish.go: a compass search on an achievement scalarising function,
-// after Sindhya, Miettinen & Deb 2013), and CheckFront checks any front in
+// after Sindhya, Miettinen & Deb 2013, polishsearch.go; after each failed
+// poll round a step along the common descent direction that the poll
+// points estimate, polishdescent.go), and CheckFront checks any front in
 // decision space: each point against its twin and a few seeded neighbours
 // (frontcheck.go). The stagnation rule of Settings (StagnationWindow,
 // StagnationTolerance; off by default) ends a search whose hypervolume has
