@@ -2,6 +2,8 @@ package web
 
 import (
 	"context"
+	"fmt"
+	"math/rand/v2"
 	"net/http"
 	"net/url"
 	"path/filepath"
@@ -81,5 +83,22 @@ func TestJobPageHistory(t *testing.T) {
 	wantStatus(t, "unknown case", res, body, http.StatusBadRequest)
 	if !strings.Contains(body, `no manoeuvre or kerb case named "no such case"`) {
 		t.Errorf("unknown case: %q", body)
+	}
+
+	// A reader may see the job but not run the simulation: the section
+	// says why in place of the chart, and the rest of the page stands.
+	reader, err := api.NewToken(rand.NewChaCha8([32]byte{12})) // seeded, in this test only
+	if err != nil {
+		t.Fatal(err)
+	}
+	tokens, err := api.ParseTokens([]byte(fmt.Sprintf("- {name: reader, role: reader, sha256: %q}\n", api.HashToken(reader))))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rb := setupOn(t, db, 0, api.Options{Tokens: tokens})
+	res, body = get(t, rb, "/jobs/"+id+"?solution=2", "Authorization", "Bearer "+reader)
+	wantStatus(t, "job page of a reader", res, body, http.StatusOK)
+	if !strings.Contains(body, "The time history cannot be drawn: token &#34;reader&#34; has role") || !strings.Contains(body, `id="curves-chart"><svg`) {
+		t.Errorf("a reader's page does not say why the history is missing, or lacks the curves:\n%.4000s", body)
 	}
 }
