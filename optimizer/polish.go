@@ -4,7 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-	randv2 "math/rand/v2"
 	"slices"
 	"sync"
 )
@@ -39,7 +38,10 @@ import (
 // bounds, poll x ± Δ e_i (clipped to the box) in a seeded random order,
 // move to the first poll point that lowers s, halve Δ when none does, and
 // stop when Δ < MinStep or the point's budget is spent. Fixed genes
-// (Lo = Hi) are not polled.
+// (Lo = Hi) are not polled. With Descent set, a poll round that fails is
+// followed by one step along a common descent direction estimated from
+// its poll points before Δ is halved (polishdescent.go), which takes the
+// diagonal moves a search along the axes cannot.
 //
 // The end point of each point's search, when it moved, is offered to the
 // archive, which keeps what no other point dominates; an archive member
@@ -64,6 +66,9 @@ type Polish struct {
 	// sum). The twin is tried first, as a poll point. It must not
 	// retain x or dst.
 	Twin func(x, dst []float64) bool
+	// Descent adds the descent step after each failed poll round (see
+	// descentStep); false is the plain compass search.
+	Descent bool
 	// Seed selects the poll order; the search's seed is a good choice.
 	Seed uint64
 	// Workers is the number of points polished at once; at least 1.
@@ -71,11 +76,11 @@ type Polish struct {
 }
 
 // DefaultPolish returns a polish of 40 evaluations per point, first step
-// 5 % of each gene's range, last 0.1 %: enough for a few accepted moves
-// and two or three halvings on four genes (this project's choice, not a
-// published figure).
+// 5 % of each gene's range, last 0.1 %, with the descent step: enough for
+// a few accepted moves and two or three halvings on four genes (this
+// project's choice, not a published figure).
 func DefaultPolish(seed uint64) Polish {
-	return Polish{Budget: 40, Step: 0.05, MinStep: 0.001, Seed: seed, Workers: 1}
+	return Polish{Budget: 40, Step: 0.05, MinStep: 0.001, Descent: true, Seed: seed, Workers: 1}
 }
 
 // asfAugmentation is ρ of the augmented achievement scalarising function
@@ -273,72 +278,4 @@ func finiteAll(v []float64) bool {
 		}
 	}
 	return true
-}
-
-// compassSearch minimises the scalarised function from x0 (see Polish)
-// and returns its end point (none when it did not move) and how many
-// evaluations it made. It stops early, without error, when ctx is done; the caller
-// checks ctx.
-func compassSearch(ctx context.Context, prob Problem, shape problemShape, x0 *Solution, w []float64, p Polish, index uint64) ([]Solution, int) {
-	b := shape.bounds
-	z := x0.Objectives
-	x := slices.Clone(x0.Genes)
-	fx := 0.0 // s(x0) = 0 by construction
-	var best *Solution
-	evals := 0
-	try := func(y []float64) bool {
-		if evals >= p.Budget || ctx.Err() != nil {
-			return false
-		}
-		evals++
-		sol := evaluateAt(prob, shape, y)
-		if !sol.Feasible {
-			return false // s = +Inf
-		}
-		if fy := asf(sol.Objectives, z, w); fy < fx {
-			x, fx, best = slices.Clone(y), fy, &sol
-			return true
-		}
-		return false
-	}
-	if p.Twin != nil {
-		y := make([]float64, len(x))
-		if p.Twin(x, y) && !slices.Equal(x, y) {
-			try(y)
-		}
-	}
-	var dirs []int // 2i: +e_i, 2i+1: −e_i
-	for i, bi := range b {
-		if bi.Hi > bi.Lo {
-			dirs = append(dirs, 2*i, 2*i+1)
-		}
-	}
-	rng := randv2.New(randv2.NewPCG(mix64(p.Seed^0x3c6ef372fe94f82b), mix64(index^0xa54ff53a5f1d36f1)))
-	for step := p.Step; step >= p.MinStep && evals < p.Budget && ctx.Err() == nil; {
-		rng.Shuffle(len(dirs), func(a, c int) { dirs[a], dirs[c] = dirs[c], dirs[a] })
-		moved := false
-		for _, d := range dirs {
-			i := d / 2
-			delta := step * (b[i].Hi - b[i].Lo)
-			if d%2 == 1 {
-				delta = -delta
-			}
-			y := slices.Clone(x)
-			y[i] = min(b[i].Hi, max(b[i].Lo, x[i]+delta))
-			if y[i] == x[i] {
-				continue
-			}
-			if try(y) {
-				moved = true
-				break
-			}
-		}
-		if !moved {
-			step /= 2
-		}
-	}
-	if best == nil {
-		return nil, evals
-	}
-	return []Solution{*best}, evals
 }
