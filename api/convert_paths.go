@@ -1,6 +1,11 @@
 package api
 
-import "regexp"
+import (
+	"regexp"
+	"strconv"
+
+	"dampfront/model"
+)
 
 // The model names the fields of its validation errors in the API's
 // lower_snake_case, but its structs are not shaped quite like the
@@ -33,7 +38,7 @@ var pathRules = []struct {
 	{regexp.MustCompile(`(^|\.)(roll_centre_height_m|anti_brake|anti_drive|unsprung_cg_height_m)\[0\]`), "${1}front_${2}"},
 	{regexp.MustCompile(`(^|\.)(roll_centre_height_m|anti_brake|anti_drive|unsprung_cg_height_m)\[1\]`), "${1}rear_${2}"},
 	// Manoeuvres: accelerations are given in g.
-	{regexp.MustCompile(`(^|\.)(longitudinal|lateral|ax|ay)_m_per_s2$`), "${1}${2}_g"},
+	{gPath, "${1}${2}_g"},
 	// "give all four sprung loads or none" concerns the corner list.
 	{regexp.MustCompile(`(^|\.)corners\.sprung_load_n$`), "${1}corners"},
 	// Road case: the power law is a sub-message of the spectrum oneof.
@@ -62,4 +67,41 @@ func protoPath(modelPath string) string {
 		p = r.re.ReplaceAllString(p, r.repl)
 	}
 	return p
+}
+
+// gPath matches the model's accelerations that the messages give in g
+// (Manoeuvre.longitudinal_g, lateral_g, the table's ax_g and ay_g).
+var gPath = regexp.MustCompile(`(^|\.)(longitudinal|lateral|ax|ay)_m_per_s2$`)
+
+// The numbers a model's reason quotes in m/s²: its range ("must be in
+// [-78.4532, 78.4532] m/s^2") and the value given ("got 98.0665").
+var (
+	siAccelRange = regexp.MustCompile(`\[([^,\]]+), ([^\]]+)\] m/s\^2`)
+	siAccelGot   = regexp.MustCompile(`got (\S+)`)
+)
+
+// protoProblem is a model problem as the API states it: the path of the
+// same field in the messages, and for a field given in g the reason's
+// range and value in g too, as the user wrote them.
+func protoProblem(q model.FieldError) model.FieldError {
+	out := model.FieldError{Field: protoPath(q.Field), Reason: q.Reason}
+	if !gPath.MatchString(q.Field) {
+		return out
+	}
+	toG := func(si string) string {
+		v, err := strconv.ParseFloat(si, 64)
+		if err != nil {
+			return si
+		}
+		// 10 significant figures drop the last bits that g and back leave.
+		return strconv.FormatFloat(v/model.Gravity, 'g', 10, 64)
+	}
+	out.Reason = siAccelRange.ReplaceAllStringFunc(out.Reason, func(m string) string {
+		sub := siAccelRange.FindStringSubmatch(m)
+		return "[" + toG(sub[1]) + ", " + toG(sub[2]) + "] g"
+	})
+	out.Reason = siAccelGot.ReplaceAllStringFunc(out.Reason, func(m string) string {
+		return "got " + toG(siAccelGot.FindStringSubmatch(m)[1])
+	})
+	return out
 }

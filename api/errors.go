@@ -80,9 +80,10 @@ func (p *problems) mergeModel(paths pathMapper, err error) {
 	}
 	before := append(problems(nil), (*p)...)
 	for _, q := range ve.Problems {
-		f := paths(protoPath(q.Field))
+		pq := protoProblem(q)
+		f := paths(pq.Field)
 		if !before.covers(f) {
-			p.add(f, "%s", q.Reason)
+			p.add(f, "%s", pq.Reason)
 		}
 	}
 }
@@ -204,7 +205,8 @@ func toStatus(err error, paths pathMapper) error {
 	case errors.As(err, &ve):
 		var p problems
 		for _, q := range ve.Problems {
-			p.add(paths(protoPath(q.Field)), "%s", q.Reason)
+			pq := protoProblem(q)
+			p.add(paths(pq.Field), "%s", pq.Reason)
 		}
 		return invalidArgument(p)
 	case errors.As(err, &nf):

@@ -152,8 +152,9 @@ var plausible = map[string]Limit{
 	"LoadPaths.roll_centre_height_m": {Min: -0.3, Max: 0.8, Unit: "m", Slips: slipMm},
 	"LoadPaths.anti":                 {Min: -0.5, Max: 1.5, Slips: slipPercent},
 	// A downforce car peaks near 5-6 g in braking and cornering; 8 g
-	// (78.5 m/s²) leaves a margin (common practice, no single source).
-	"Manoeuvre.acceleration_m_per_s2": {Min: -78.5, Max: 78.5, Unit: "m/s^2"},
+	// (78.4532 m/s²) leaves a margin (common practice, no single source).
+	// The API gives these in g and states the range as [-8, 8] g.
+	"Manoeuvre.acceleration_m_per_s2": {Min: -8 * Gravity, Max: 8 * Gravity, Unit: "m/s^2"},
 	"Manoeuvre.time_s":                {Min: 0, Max: 60, Unit: "s"},
 	"Kerb.height_m":                   {Min: 0.002, Max: 0.2, Unit: "m", Slips: slipMm},
 	"Kerb.length_m":                   {Min: 0.05, Max: 20, Unit: "m", Slips: slipMm},

@@ -20,6 +20,7 @@ type Client interface {
 	GetJob(ctx context.Context, in *pb.GetJobRequest, opts ...grpc.CallOption) (*pb.GetJobResponse, error)
 	ListJobs(ctx context.Context, in *pb.ListJobsRequest, opts ...grpc.CallOption) (*pb.ListJobsResponse, error)
 	GetFront(ctx context.Context, in *pb.GetFrontRequest, opts ...grpc.CallOption) (*pb.GetFrontResponse, error)
+	GetTransientHistory(ctx context.Context, in *pb.GetTransientHistoryRequest, opts ...grpc.CallOption) (*pb.GetTransientHistoryResponse, error)
 }
 
 var _ Client = pb.DampfrontServiceClient(nil)
@@ -103,6 +104,7 @@ func New(client Client, opt Options) (*Handler, error) {
 		{"GET /jobs/{id}/front.json", "front_json", h.frontJSON},
 		{"GET /jobs/{id}/front.svg", "front_svg", h.frontSVG},
 		{"GET /jobs/{id}/solutions/{index}/curves.svg", "curves_svg", h.curvesSVG},
+		{"GET /jobs/{id}/solutions/{index}/history.svg", "history_svg", h.historySVG},
 		{"GET /jobs/{id}/solutions/{index}/sheet.html", "sheet", h.sheet},
 		{"GET /jobs/{id}/solutions/{index}/modes.html", "modes", h.modes},
 		{"GET /login", "login", h.loginForm},

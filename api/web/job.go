@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"html/template"
 	"net/http"
+	"net/url"
 	"strconv"
 	"strings"
 	"time"
@@ -81,6 +82,7 @@ type jobView struct {
 	Modes          *modesView
 	ModalSVG       template.HTML // modal ratios across the front
 	AtSpeed        *atSpeedView
+	History        *historyView // a solution on a manoeuvre or kerb case
 	Downloads      []link
 }
 
@@ -134,12 +136,12 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 			h.serviceError(w, r, err, true)
 			return
 		}
-		h.frontSection(v, id, front, r.URL.Query().Get("solution"))
+		h.frontSection(ctx, v, id, front, r.URL.Query())
 	case j.GetState() == pb.JobState_JOB_STATE_RUNNING:
 		// The front so far, as of the last checkpoint; none yet is no
 		// error, the page shows its progress alone.
 		if front, err := h.wholeFront(ctx, j.GetName()); err == nil && len(front.GetSolutions()) > 0 {
-			h.frontSection(v, id, front, r.URL.Query().Get("solution"))
+			h.frontSection(ctx, v, id, front, r.URL.Query())
 			v.FrontNote = "The front so far, as of the job's last checkpoint; it grows until the job ends."
 		}
 	}
@@ -147,8 +149,10 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 }
 
 // frontSection fills the front chart, the table and the curves of the
-// selected solution.
-func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected string) {
+// solution the query selects (?solution=N, else the balanced point), and
+// its time history on the case ?case= names.
+func (h *Handler) frontSection(ctx context.Context, v *jobView, id string, front *pb.Front, query url.Values) {
+	selected := query.Get("solution")
 	sols := front.GetSolutions()
 	v.ShowFront, v.WideFront = true, len(front.GetObjectives()) >= 3
 	v.Total = front.GetTotalSize()
@@ -190,6 +194,7 @@ func (h *Handler) frontSection(v *jobView, id string, front *pb.Front, selected 
 		v.Curves = c
 		v.Modes = newModesView(id, pick, sheet.Modes(s))
 		v.AtSpeed = newAtSpeedView(s)
+		v.History = h.newHistoryView(ctx, id, s, query.Get("case"))
 	}
 	if fig, err := plot.ModalRatios(front, plot.ModalOptions{}); err == nil {
 		if b, err := svgBytes(fig); err == nil {

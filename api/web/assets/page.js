@@ -45,6 +45,45 @@ function atSpeedOf(index) {
   }
 }
 
+// Fetch an SVG chart of the page's own and return it as an element of
+// this document; a refusal rejects with the server's words.
+function fetchSVG(url) {
+  return fetch(url, { credentials: "same-origin" }).then(function (res) {
+    return res.text().then(function (body) {
+      if (!res.ok) { throw new Error(body.trim() || res.statusText); }
+      return body;
+    });
+  }).then(function (body) {
+    var doc = new DOMParser().parseFromString(body, "image/svg+xml");
+    if (doc.querySelector("parsererror")) { throw new Error("the chart did not arrive whole"); }
+    return document.importNode(doc.documentElement, true);
+  });
+}
+
+// Show the time history of solution index on the case chosen in the
+// section's form: fetch its chart and put it in place of the one shown.
+function showHistory(index) {
+  var section = document.getElementById("history");
+  if (!section) { return; }
+  var select = document.getElementById("history-case");
+  var problem = document.getElementById("history-problem");
+  var base = section.dataset.chart.replace(/\/solutions\/\d+\//, "/solutions/" + index + "/");
+  var url = base + "?case=" + encodeURIComponent(select.value);
+  fetchSVG(url).then(function (svg) {
+    document.getElementById("history-chart").replaceChildren(svg);
+    problem.hidden = true;
+    section.dataset.solution = index;
+    section.dataset.chart = base;
+    document.getElementById("history-index").textContent = index;
+    document.getElementById("history-solution").value = index;
+    document.getElementById("history-download").href = url + "&download=1";
+    history.replaceState(null, "", "?solution=" + index + "&case=" + encodeURIComponent(select.value));
+  }).catch(function (err) {
+    problem.textContent = "The time history could not be shown: " + err.message;
+    problem.hidden = false;
+  });
+}
+
 // Show the damper curves of a row's solution: fetch its chart and put it
 // in place of the one shown.
 function selectable(table, panel) {
@@ -52,15 +91,8 @@ function selectable(table, panel) {
   var problem = document.getElementById("curves-problem");
   function show(row) {
     var url = row.dataset.curves;
-    fetch(url, { credentials: "same-origin" }).then(function (res) {
-      return res.text().then(function (body) {
-        if (!res.ok) { throw new Error(body.trim() || res.statusText); }
-        return body;
-      });
-    }).then(function (body) {
-      var doc = new DOMParser().parseFromString(body, "image/svg+xml");
-      if (doc.querySelector("parsererror")) { throw new Error("the chart did not arrive whole"); }
-      chart.replaceChildren(document.importNode(doc.documentElement, true));
+    fetchSVG(url).then(function (svg) {
+      chart.replaceChildren(svg);
       problem.hidden = true;
       table.querySelectorAll("tbody tr.selected").forEach(function (r) {
         r.classList.remove("selected");
@@ -74,6 +106,7 @@ function selectable(table, panel) {
       history.replaceState(null, "", "?solution=" + row.dataset.index);
       showModes(row);
       atSpeedOf(row.dataset.index);
+      showHistory(row.dataset.index);
     }).catch(function (err) {
       problem.textContent = "The damper curves could not be shown: " + err.message;
       problem.hidden = false;
@@ -149,6 +182,15 @@ document.addEventListener("DOMContentLoaded", function () {
     sortable(table);
     var panel = document.getElementById("curves");
     if (panel) { selectable(table, panel); }
+  }
+  var historyForm = document.querySelector("#history form");
+  if (historyForm) {
+    var pick = function (ev) {
+      ev.preventDefault();
+      showHistory(document.getElementById("history").dataset.solution);
+    };
+    historyForm.addEventListener("submit", pick);
+    document.getElementById("history-case").addEventListener("change", pick);
   }
   var progress = document.getElementById("progress");
   if (progress && progress.dataset.terminal !== "true") { follow(progress); }
