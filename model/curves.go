@@ -93,36 +93,83 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	cc := v.CriticalDamping()
 	out := make([]DamperCurve, 4)
 	for i := range out {
-		a := &s.Axles[i/2]
-		mr2 := v.Corners[i].DamperMotionRatio * v.Corners[i].DamperMotionRatio
-		dc := DamperCurve{
-			Corner:    i,
-			BumpSlope: a.BumpRatio * cc[i] / mr2, ReboundSlope: a.ReboundRatio * cc[i] / mr2,
-			KneeBump: a.KneeBump, KneeRebound: a.KneeRebound,
-			HighSpeedBump: factorOr1(a.HighSpeedBump), HighSpeedRebound: factorOr1(a.HighSpeedRebound),
-			StagesBump: activeStages(&a.StagesBump), StagesRebound: activeStages(&a.StagesRebound),
-			BlowOffBump: a.BlowOffBump, BlowOffRebound: a.BlowOffRebound, Friction: a.Friction, GasForce: a.GasForce,
-			Velocity: make([]float64, points), Force: make([]float64, points),
-		}
-		law := func(zb, zr, vel float64) float64 {
-			d := a.axleDamper(zb*cc[i]/mr2, zr*cc[i]/mr2, 1)
-			return d.force(vel)
-		}
-		if band {
-			dc.Softest, dc.Stiffest = make([]float64, points), make([]float64, points)
-		}
-		for k := range dc.Velocity {
-			vel := -vmax + 2*vmax*float64(k)/float64(points-1)
-			dc.Velocity[k] = vel
-			dc.Force[k] = law(a.BumpRatio, a.ReboundRatio, vel)
-			if band {
-				dc.Softest[k] = law(adj.BumpSoftest, adj.ReboundSoftest, vel)
-				dc.Stiffest[k] = law(adj.BumpStiffest, adj.ReboundStiffest, vel)
-			}
-		}
-		out[i] = dc
+		mr := v.Corners[i].DamperMotionRatio
+		out[i] = componentCurve(&s.Axles[i/2], cc[i]/(mr*mr), adj, band, vmax, points)
+		out[i].Corner = i
 	}
 	return out, nil
+}
+
+// componentCurve tabulates one damper's curve at the component: setting
+// a with its ratios taken of the slope per unit ratio c1 = c_crit/MR²
+// (N s/m at the damper), the adjuster band when band is set.
+func componentCurve(a *AxleDamping, c1 float64, adj Adjustment, band bool, vmax float64, points int) DamperCurve {
+	dc := DamperCurve{
+		BumpSlope: a.BumpRatio * c1, ReboundSlope: a.ReboundRatio * c1,
+		KneeBump: a.KneeBump, KneeRebound: a.KneeRebound,
+		HighSpeedBump: factorOr1(a.HighSpeedBump), HighSpeedRebound: factorOr1(a.HighSpeedRebound),
+		StagesBump: activeStages(&a.StagesBump), StagesRebound: activeStages(&a.StagesRebound),
+		BlowOffBump: a.BlowOffBump, BlowOffRebound: a.BlowOffRebound, Friction: a.Friction, GasForce: a.GasForce,
+		Velocity: make([]float64, points), Force: make([]float64, points),
+	}
+	law := func(zb, zr, vel float64) float64 {
+		d := a.axleDamper(zb*c1, zr*c1, 1)
+		return d.force(vel)
+	}
+	if band {
+		dc.Softest, dc.Stiffest = make([]float64, points), make([]float64, points)
+	}
+	for k := range dc.Velocity {
+		vel := -vmax + 2*vmax*float64(k)/float64(points-1)
+		dc.Velocity[k] = vel
+		dc.Force[k] = law(a.BumpRatio, a.ReboundRatio, vel)
+		if band {
+			dc.Softest[k] = law(adj.BumpSoftest, adj.ReboundSoftest, vel)
+			dc.Stiffest[k] = law(adj.BumpStiffest, adj.ReboundStiffest, vel)
+		}
+	}
+	return dc
+}
+
+// HeaveCurve is one axle's heave damper curve at the component (the
+// element: element velocity and force), signs as DamperCurve's; its
+// Corner field is unused (0) and there is no adjuster band.
+type HeaveCurve struct {
+	Axle int // Front, Rear
+	DamperCurve
+}
+
+// HeaveDamperCurves returns the curve at the element of every axle whose
+// heave damper the setup sets (nil for a car or setup without one): slopes
+// c_element = ζ_heave c_crit,heave / MR3² (Vehicle.HeaveCriticalDamping,
+// at the mean wheel travel, referred to the element through its motion
+// ratio MR3 as a corner damper through its own), knees, factors and the
+// rest of the hardware as DamperCurves, at points velocities from -vmax
+// to vmax (m/s, element).
+func HeaveDamperCurves(v *Vehicle, s *Setup, vmax float64, points int) ([]HeaveCurve, error) {
+	var p problems
+	p.merge("vehicle.", v.Validate())
+	p.merge("setup.", s.Validate())
+	p.merge("setup.", v.CheckSetup(s))
+	p.merge("", ValidateCurveRange(vmax, points))
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	cc := v.HeaveCriticalDamping()
+	var out []HeaveCurve
+	for ax := range s.Heave {
+		if !s.Heave[ax].given() || !v.Heave[ax].has() {
+			continue
+		}
+		mr := v.Heave[ax].MotionRatio
+		out = append(out, HeaveCurve{Axle: ax, DamperCurve: componentCurve(&s.Heave[ax], cc[ax]/(mr*mr), Adjustment{}, false, vmax, points)})
+	}
+	return out, nil
+}
+
+// String names the axle of a heave curve.
+func (c *HeaveCurve) String() string {
+	return fmt.Sprintf("%s heave damper: bump %.0f N s/m, rebound %.0f N s/m", AxleNames[c.Axle], c.BumpSlope, c.ReboundSlope)
 }
 
 // String names the corner of a curve.

@@ -43,6 +43,57 @@ type TestBranch struct {
 // same law and adjuster band) at the damper velocities given (m/s, each
 // > 0, at most 5 m/s), in bump and in rebound.
 func DamperTestForces(v *Vehicle, s *Setup, adj Adjustment, velocities []float64) ([]TestForces, error) {
+	br, err := readTestForces(velocities, 4, func(vel float64) ([]DamperCurve, error) {
+		return DamperCurves(v, s, adj, vel, 3)
+	})
+	if err != nil {
+		return nil, err
+	}
+	out := make([]TestForces, len(br))
+	for i, b := range br {
+		out[i] = TestForces{Corner: i, Velocity: append([]float64(nil), velocities...), Bump: b[0], Rebound: b[1]}
+	}
+	return out, nil
+}
+
+// HeaveTestForces are one axle's heave damper forces at the test
+// velocities, at the element, as TestForces (no adjuster band).
+type HeaveTestForces struct {
+	Axle          int
+	Velocity      []float64 // element velocity (m/s), > 0
+	Bump, Rebound TestBranch
+}
+
+// HeaveDamperTestForces reads each heave damper's curve
+// (HeaveDamperCurves) at the element velocities given, as
+// DamperTestForces does the corners'; nil for a car without heave dampers.
+func HeaveDamperTestForces(v *Vehicle, s *Setup, velocities []float64) ([]HeaveTestForces, error) {
+	curves, err := HeaveDamperCurves(v, s, 1, 3)
+	if err != nil || len(curves) == 0 {
+		return nil, err
+	}
+	br, err := readTestForces(velocities, len(curves), func(vel float64) ([]DamperCurve, error) {
+		hc, err := HeaveDamperCurves(v, s, vel, 3)
+		out := make([]DamperCurve, len(hc))
+		for i := range hc {
+			out[i] = hc[i].DamperCurve
+		}
+		return out, err
+	})
+	if err != nil {
+		return nil, err
+	}
+	out := make([]HeaveTestForces, len(br))
+	for i, b := range br {
+		out[i] = HeaveTestForces{Axle: curves[i].Axle, Velocity: append([]float64(nil), velocities...), Bump: b[0], Rebound: b[1]}
+	}
+	return out, nil
+}
+
+// readTestForces checks the velocities and reads n curves (three points
+// each from -vel to +vel, as curves returns them) at each: per curve, the
+// bump and the rebound branch.
+func readTestForces(velocities []float64, n int, curves func(vel float64) ([]DamperCurve, error)) ([][2]TestBranch, error) {
 	var p problems
 	if len(velocities) == 0 {
 		p.add("velocities", "give at least one test velocity")
@@ -53,21 +104,18 @@ func DamperTestForces(v *Vehicle, s *Setup, adj Adjustment, velocities []float64
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	out := make([]TestForces, 4)
-	for i := range out {
-		out[i] = TestForces{Corner: i, Velocity: append([]float64(nil), velocities...)}
-	}
+	out := make([][2]TestBranch, n)
 	for _, vel := range velocities {
 		// Three points from -vel to +vel: the table's ends are ±vel
 		// exactly (-vel + 2 vel).
-		curves, err := DamperCurves(v, s, adj, vel, 3)
+		cs, err := curves(vel)
 		if err != nil {
 			return nil, err
 		}
 		for i := range out {
-			c := &curves[i]
-			out[i].Bump.add(c.Force[2], c.Softest, c.Stiffest, 2)
-			out[i].Rebound.add(-c.Force[0], c.Softest, c.Stiffest, 0)
+			c := &cs[i]
+			out[i][0].add(c.Force[2], c.Softest, c.Stiffest, 2)
+			out[i][1].add(-c.Force[0], c.Softest, c.Stiffest, 0)
 		}
 	}
 	return out, nil
