@@ -53,8 +53,11 @@ type Sheet struct {
 	// spec gives no adjusters.
 	Clicks []ClickRow
 
-	Velocities    []string // test velocities, mm/s
-	ForceTables   []ForceTable
+	Velocities  []string // test velocities, mm/s
+	ForceTables []ForceTable
+	// HeaveTables is the heave dampers' forces at the element, one per
+	// axle with a heave damper; empty for a car without.
+	HeaveTables   []ForceTable
 	TestNote      string // where the test velocities and the band come from
 	CurvesSVG     template.HTML
 	CurvesProblem string
@@ -188,10 +191,29 @@ func Build(job *pb.Job, sol *pb.Solution, balanced bool) (*Sheet, error) {
 		return nil, fmt.Errorf("sheet: the hand figures of solution %d: %w", s.Index, err)
 	}
 	s.Setup = axleRows(sol.GetSetup(), hand)
+	if err := s.addHeave(&in.Vehicle, &setup, sol.GetSetup()); err != nil {
+		return nil, fmt.Errorf("sheet: solution %d: %w", s.Index, err)
+	}
 	s.CornerNames, s.CornerRows = cornerRows(hand)
 	s.Modes = Modes(sol)
 	s.CurvesSVG, s.CurvesProblem = curvesSVG(sol)
 	return s, nil
+}
+
+// addHeave adds the heave dampers' setting rows and force tables, when
+// the setup has heave dampers.
+func (s *Sheet) addHeave(v *model.Vehicle, setup *model.Setup, ps *pb.Setup) error {
+	curves, err := model.HeaveDamperCurves(v, setup, model.BandVelocities[0], 3)
+	if err != nil || len(curves) == 0 {
+		return err
+	}
+	forces, err := model.HeaveDamperTestForces(v, setup, model.BandVelocities)
+	if err != nil {
+		return err
+	}
+	s.Setup = append(s.Setup, heaveRows(ps, curves)...)
+	s.HeaveTables = heaveForceTables(forces)
+	return nil
 }
 
 // stamp is a time as the sheet prints it, empty when unknown.

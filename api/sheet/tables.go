@@ -41,23 +41,7 @@ func forceTables(forces []model.TestForces) []ForceTable {
 			names[k] = model.CornerNames[forces[i].Corner]
 		}
 		f := &forces[g[0]]
-		t := ForceTable{Corners: strings.Join(names, ", "), Band: f.Bump.Softest != nil}
-		n := func(xs []float64, k int) string {
-			if xs == nil {
-				return ""
-			}
-			return trade(tradeunit.Newton, xs[k], 0)
-		}
-		for k, v := range f.Velocity {
-			t.Rows = append(t.Rows, ForceRow{
-				Velocity: trade(tradeunit.MillimetrePerSecond, v, 0),
-				Bump:     n(f.Bump.Force, k), BumpMin: n(f.Bump.Min, k), BumpMax: n(f.Bump.Max, k),
-				BumpSoft: n(f.Bump.Softest, k), BumpStiff: n(f.Bump.Stiffest, k),
-				Rebound: n(f.Rebound.Force, k), RebMin: n(f.Rebound.Min, k), RebMax: n(f.Rebound.Max, k),
-				RebSoft: n(f.Rebound.Softest, k), RebStiff: n(f.Rebound.Stiffest, k),
-			})
-		}
-		out = append(out, t)
+		out = append(out, forceTable(strings.Join(names, ", "), f.Velocity, &f.Bump, &f.Rebound))
 	}
 	return out
 }
@@ -80,24 +64,74 @@ func sameForces(a, b *model.TestForces) bool {
 	return true
 }
 
+// heaveForceTables is one table per heave damper, named by its axle.
+func heaveForceTables(forces []model.HeaveTestForces) []ForceTable {
+	var out []ForceTable
+	for i := range forces {
+		f := &forces[i]
+		out = append(out, forceTable(model.AxleNames[f.Axle]+" heave", f.Velocity, &f.Bump, &f.Rebound))
+	}
+	return out
+}
+
+// forceTable is one damper's forces at the test velocities in trade
+// units, the adjuster band's columns filled when the branches carry one.
+func forceTable(name string, velocity []float64, bump, rebound *model.TestBranch) ForceTable {
+	t := ForceTable{Corners: name, Band: bump.Softest != nil}
+	n := func(xs []float64, k int) string {
+		if xs == nil {
+			return ""
+		}
+		return trade(tradeunit.Newton, xs[k], 0)
+	}
+	for k, v := range velocity {
+		t.Rows = append(t.Rows, ForceRow{
+			Velocity: trade(tradeunit.MillimetrePerSecond, v, 0),
+			Bump:     n(bump.Force, k), BumpMin: n(bump.Min, k), BumpMax: n(bump.Max, k),
+			BumpSoft: n(bump.Softest, k), BumpStiff: n(bump.Stiffest, k),
+			Rebound: n(rebound.Force, k), RebMin: n(rebound.Min, k), RebMax: n(rebound.Max, k),
+			RebSoft: n(rebound.Softest, k), RebStiff: n(rebound.Stiffest, k),
+		})
+	}
+	return t
+}
+
 // axleRows is the setting per axle: ratios at the wheel, knees,
 // high-speed factors, and the low-speed slopes at the damper of the
 // axle's left corner.
 func axleRows(s *pb.Setup, hand *pb.EstimateByHandResponse) []AxleRow {
 	var out []AxleRow
 	for ax, a := range []*pb.AxleDamping{s.GetFront(), s.GetRear()} {
-		row := AxleRow{Axle: [2]string{"front", "rear"}[ax],
-			BumpRatio: num(a.GetBumpRatio(), 3), ReboundRatio: num(a.GetReboundRatio(), 3),
-			KneeBump: trade(tradeunit.MillimetrePerSecond, a.GetKneeBumpMPerS(), 0), KneeRebound: trade(tradeunit.MillimetrePerSecond, a.GetKneeReboundMPerS(), 0),
-			HighSpeedBump: num(factorOr1(a.GetHighSpeedBumpFactor()), 2), HighSpeedRebound: num(factorOr1(a.GetHighSpeedReboundFactor()), 2)}
+		var bump, rebound float64
 		if cs := hand.GetCorners(); 2*ax < len(cs) {
-			c := cs[2*ax]
-			row.BumpSlopeDamper = trade(tradeunit.NewtonSecondPerMM, c.GetBump().GetSlopeNSPerM(), 2)
-			row.ReboundSlopeDamper = trade(tradeunit.NewtonSecondPerMM, c.GetRebound().GetSlopeNSPerM(), 2)
+			bump, rebound = cs[2*ax].GetBump().GetSlopeNSPerM(), cs[2*ax].GetRebound().GetSlopeNSPerM()
 		}
-		out = append(out, row)
+		out = append(out, axleRow([2]string{"front", "rear"}[ax], a, bump, rebound))
 	}
 	return out
+}
+
+// heaveRows is the setting of each heave damper: its ratios of the axle's
+// heave critical damping, knees and slopes at the element (the curves of
+// model.HeaveDamperCurves).
+func heaveRows(s *pb.Setup, curves []model.HeaveCurve) []AxleRow {
+	var out []AxleRow
+	for _, c := range curves {
+		a := [2]*pb.AxleDamping{s.GetFrontHeave(), s.GetRearHeave()}[c.Axle]
+		out = append(out, axleRow(model.AxleNames[c.Axle]+" heave", a, c.BumpSlope, c.ReboundSlope))
+	}
+	return out
+}
+
+// axleRow is one damper's setting row, its low-speed slopes (N s/m at
+// the damper) given.
+func axleRow(name string, a *pb.AxleDamping, bump, rebound float64) AxleRow {
+	return AxleRow{Axle: name,
+		BumpRatio: num(a.GetBumpRatio(), 3), ReboundRatio: num(a.GetReboundRatio(), 3),
+		KneeBump: trade(tradeunit.MillimetrePerSecond, a.GetKneeBumpMPerS(), 0), KneeRebound: trade(tradeunit.MillimetrePerSecond, a.GetKneeReboundMPerS(), 0),
+		HighSpeedBump: num(factorOr1(a.GetHighSpeedBumpFactor()), 2), HighSpeedRebound: num(factorOr1(a.GetHighSpeedReboundFactor()), 2),
+		BumpSlopeDamper:    trade(tradeunit.NewtonSecondPerMM, bump, 2),
+		ReboundSlopeDamper: trade(tradeunit.NewtonSecondPerMM, rebound, 2)}
 }
 
 // factorOr1 is a high-speed factor as the model reads it: 0 (unset)
