@@ -4,14 +4,11 @@ import (
 	"context"
 	"log/slog"
 	"net/http/httptest"
-	"os"
 	"path/filepath"
 	"testing"
 	"time"
 
-	"google.golang.org/protobuf/encoding/protojson"
 	"google.golang.org/protobuf/proto"
-	"sigs.k8s.io/yaml"
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -110,18 +107,7 @@ func setupOn(t *testing.T, db string, workers int, opt api.Options) *bundle {
 // a small population so that it runs in about a second.
 func demoSpec(t *testing.T, population, generations int32) *pb.JobSpec {
 	t.Helper()
-	b, err := os.ReadFile(filepath.Join("..", "..", "testdata", "demo-job.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	j, err := yaml.YAMLToJSON(b)
-	if err != nil {
-		t.Fatal(err)
-	}
-	spec := &pb.JobSpec{}
-	if err := protojson.Unmarshal(j, spec); err != nil {
-		t.Fatal(err)
-	}
+	spec := specFile(t, "demo-job.yaml")
 	spec.Search.PopulationSize, spec.Search.Generations = population, generations
 	spec.Search.Seed = proto.Uint64(11)
 	spec.Labels["suite"] = "web"
