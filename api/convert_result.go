@@ -171,3 +171,14 @@ func damperCurvesToProto(curves []model.DamperCurve) []*pb.DamperCurve {
 	}
 	return out
 }
+
+// heaveCurvesToProto converts heave damper curves (nil when none).
+func heaveCurvesToProto(curves []model.HeaveCurve) []*pb.HeaveDamperCurve {
+	var out []*pb.HeaveDamperCurve
+	for i := range curves {
+		dc := damperCurvesToProto([]model.DamperCurve{curves[i].DamperCurve})[0]
+		dc.Corner = pb.CornerPosition_CORNER_POSITION_UNSPECIFIED
+		out = append(out, &pb.HeaveDamperCurve{Axle: pb.AxlePosition(curves[i].Axle + 1), Curve: dc})
+	}
+	return out
+}

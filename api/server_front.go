@@ -257,9 +257,14 @@ func (s *Server) GetDamperCurves(ctx context.Context, req *pb.GetDamperCurvesReq
 		a := adjustmentFromProto(req.GetAdjustment())
 		adj = &a
 	}
-	curves, err := pl.Curves(setup, adj, &study.Curves{MaxVelocity: req.GetCurves().GetMaxVelocityMPerS(), Points: int(req.GetCurves().GetPoints())})
+	cs := &study.Curves{MaxVelocity: req.GetCurves().GetMaxVelocityMPerS(), Points: int(req.GetCurves().GetPoints())}
+	curves, err := pl.Curves(setup, adj, cs)
 	if err != nil {
 		return nil, toStatus(err, curvesPaths)
 	}
-	return &pb.GetDamperCurvesResponse{Setup: setupToProto(setup), Curves: damperCurvesToProto(curves)}, nil
+	heave, err := pl.HeaveCurves(setup, cs)
+	if err != nil {
+		return nil, toStatus(err, curvesPaths)
+	}
+	return &pb.GetDamperCurvesResponse{Setup: setupToProto(setup), Curves: damperCurvesToProto(curves), HeaveCurves: heaveCurvesToProto(heave)}, nil
 }

@@ -87,7 +87,7 @@ func bindCurves(fs *flagSet, e *env) (runFunc, error) {
 			return writeCurvesCSV(e.stdout, resp.GetCurves())
 		}
 		fmt.Fprintf(e.stdout, "Damper curves of %s of %s: %s\n", title, req.Job, setupText(resp.GetSetup()))
-		if err := writeCurvesTable(e.stdout, resp.GetCurves()); err != nil {
+		if err := writeCurvesTables(e.stdout, resp); err != nil {
 			return err
 		}
 		printCaution(e.stdout)
@@ -163,6 +163,27 @@ func writeCurvesTable(w io.Writer, curves []*pb.DamperCurve) error {
 			i++
 		}
 		if err := writeCurveTable(w, name, dc); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// writeCurvesTables prints the corner dampers' tables, then the heave
+// dampers' when the car has them.
+func writeCurvesTables(w io.Writer, resp *pb.GetDamperCurvesResponse) error {
+	if err := writeCurvesTable(w, resp.GetCurves()); err != nil {
+		return err
+	}
+	return writeHeaveCurvesTable(w, resp.GetHeaveCurves())
+}
+
+// writeHeaveCurvesTable prints one table per heave damper, at the heave
+// element (nothing for a car without).
+func writeHeaveCurvesTable(w io.Writer, curves []*pb.HeaveDamperCurve) error {
+	for _, hc := range curves {
+		name := map[pb.AxlePosition]string{pb.AxlePosition_AXLE_POSITION_FRONT: "front", pb.AxlePosition_AXLE_POSITION_REAR: "rear"}[hc.GetAxle()]
+		if err := writeCurveTable(w, name+" heave", hc.GetCurve()); err != nil {
 			return err
 		}
 	}

@@ -197,5 +197,5 @@ func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool
 	sol := fd.front.GetSolutions()[bal]
 	fmt.Fprintf(e.stdout, "\nDamper curves of the balanced point, solution %d: %s\n", idx, setupText(cr.GetSetup()))
 	fmt.Fprintf(e.stdout, "Its objectives: %s.\n", objectivesText(sol.GetObjectives(), fd.front.GetObjectives()))
-	return writeCurvesTable(e.stdout, cr.GetCurves())
+	return writeCurvesTables(e.stdout, cr)
 }

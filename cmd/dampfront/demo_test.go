@@ -32,6 +32,9 @@ func TestDemo(t *testing.T) {
 			t.Errorf("demo output lacks %q:\n%s", want, r.stdout)
 		}
 	}
+	if strings.Contains(r.stdout, "heave damper") {
+		t.Errorf("the road car's demo prints heave damper tables:\n%s", r.stdout)
+	}
 	if !strings.HasSuffix(strings.TrimSpace(r.stdout), cautionText) {
 		t.Errorf("demo output does not end with the caution:\n%s", r.stdout)
 	}

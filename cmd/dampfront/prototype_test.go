@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"os"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -82,11 +83,12 @@ func TestPrototypeDemoData(t *testing.T) {
 
 // demo --prototype runs the second demo job end to end: the search over
 // corner and heave damper ratios finishes and the front shows the heave
-// ratio genes.
+// ratio genes, and the damper curves of the balanced point end with both
+// heave dampers' tables (at the element).
 func TestDemoPrototype(t *testing.T) {
 	t.Parallel()
 	r := mustRun(t, exitOK, []string{"TMPDIR=" + t.TempDir()}, "demo", "--quiet", "--prototype")
-	for _, want := range []string{"succeeded: 12 of 12 generations", "front heave ratio  rear heave ratio", "Damper curves of the balanced point", cautionText} {
+	for _, want := range []string{"succeeded: 12 of 12 generations", "front heave ratio  rear heave ratio", "Damper curves of the balanced point", "\nFront heave damper, at the component", "\nRear heave damper, at the component", cautionText} {
 		if !strings.Contains(r.stdout, want) {
 			t.Errorf("demo --prototype output lacks %q:\n%s", want, r.stdout)
 		}
@@ -129,5 +131,28 @@ func TestHandPrototypeHeave(t *testing.T) {
 	}
 	if r := mustRun(t, exitOK, nil, "hand", "--spec", testdataPath("demo-job.yaml")); strings.Contains(r.stdout, "Heave per axle") {
 		t.Errorf("a car without heave elements shows heave figures:\n%s", r.stdout)
+	}
+}
+
+// The heave dampers' tables follow the corner ones, named by axle, each
+// speed's bump and rebound force (rebound signed, as in the corner
+// tables) on one row in trade units; nothing is printed without heave
+// curves. Figures worked by hand:
+// 0.1 m/s = 100 mm/s, 1234 N bump, -2345 N rebound.
+func TestWriteHeaveCurvesTable(t *testing.T) {
+	t.Parallel()
+	dc := &pb.DamperCurve{VelocityMPerS: []float64{-0.1, 0, 0.1}, ForceN: []float64{-2345, 0, 1234}, BumpSlopeNSPerM: 12340, ReboundSlopeNSPerM: 23450}
+	resp := &pb.GetDamperCurvesResponse{HeaveCurves: []*pb.HeaveDamperCurve{{Axle: pb.AxlePosition_AXLE_POSITION_REAR, Curve: dc}}}
+	var b strings.Builder
+	if err := writeCurvesTables(&b, resp); err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(b.String(), "Rear heave damper, at the component: low-speed slopes bump 12.34, rebound 23.45 N s/mm") ||
+		!regexp.MustCompile(`\n\s*100\s+1234\s+-2345\n`).MatchString(b.String()) {
+		t.Errorf("heave table:\n%s", b.String())
+	}
+	b.Reset()
+	if err := writeCurvesTables(&b, &pb.GetDamperCurvesResponse{}); err != nil || b.Len() != 0 {
+		t.Errorf("no curves printed %q (%v)", b.String(), err)
 	}
 }

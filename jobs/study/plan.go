@@ -109,6 +109,21 @@ func (pl *Plan) Curves(s model.Setup, adj *model.Adjustment, curves *Curves) ([]
 	if adj != nil {
 		a = *adj
 	}
+	vmax, points := pl.curveRange(curves)
+	return model.DamperCurves(pl.eval.Vehicle(), &s, a, vmax, points)
+}
+
+// HeaveCurves returns the heave damper curves of setup s
+// (model.HeaveDamperCurves, nil without heave dampers) at the plan's
+// curve settings or curves' as Curves does.
+func (pl *Plan) HeaveCurves(s model.Setup, curves *Curves) ([]model.HeaveCurve, error) {
+	vmax, points := pl.curveRange(curves)
+	return model.HeaveDamperCurves(pl.eval.Vehicle(), &s, vmax, points)
+}
+
+// curveRange is the plan's curve settings, overridden by curves' non-zero
+// fields.
+func (pl *Plan) curveRange(curves *Curves) (float64, int) {
 	vmax, points := pl.spec.Curves.MaxVelocity, pl.spec.Curves.Points
 	if curves != nil && curves.MaxVelocity != 0 {
 		vmax = curves.MaxVelocity
@@ -116,7 +131,7 @@ func (pl *Plan) Curves(s model.Setup, adj *model.Adjustment, curves *Curves) ([]
 	if curves != nil && curves.Points != 0 {
 		points = curves.Points
 	}
-	return model.DamperCurves(pl.eval.Vehicle(), &s, a, vmax, points)
+	return vmax, points
 }
 
 // searchProblem adapts a model.Problem to optimizer.Problem: the genes'

@@ -135,6 +135,56 @@ func (CornerPosition) EnumDescriptor() ([]byte, []int) {
 	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{1}
 }
 
+// AxlePosition names an axle.
+type AxlePosition int32
+
+const (
+	AxlePosition_AXLE_POSITION_UNSPECIFIED AxlePosition = 0
+	AxlePosition_AXLE_POSITION_FRONT       AxlePosition = 1
+	AxlePosition_AXLE_POSITION_REAR        AxlePosition = 2
+)
+
+// Enum value maps for AxlePosition.
+var (
+	AxlePosition_name = map[int32]string{
+		0: "AXLE_POSITION_UNSPECIFIED",
+		1: "AXLE_POSITION_FRONT",
+		2: "AXLE_POSITION_REAR",
+	}
+	AxlePosition_value = map[string]int32{
+		"AXLE_POSITION_UNSPECIFIED": 0,
+		"AXLE_POSITION_FRONT":       1,
+		"AXLE_POSITION_REAR":        2,
+	}
+)
+
+func (x AxlePosition) Enum() *AxlePosition {
+	p := new(AxlePosition)
+	*p = x
+	return p
+}
+
+func (x AxlePosition) String() string {
+	return protoimpl.X.EnumStringOf(x.Descriptor(), protoreflect.EnumNumber(x))
+}
+
+func (AxlePosition) Descriptor() protoreflect.EnumDescriptor {
+	return file_dampfront_v1_result_proto_enumTypes[2].Descriptor()
+}
+
+func (AxlePosition) Type() protoreflect.EnumType {
+	return &file_dampfront_v1_result_proto_enumTypes[2]
+}
+
+func (x AxlePosition) Number() protoreflect.EnumNumber {
+	return protoreflect.EnumNumber(x)
+}
+
+// Deprecated: Use AxlePosition.Descriptor instead.
+func (AxlePosition) EnumDescriptor() ([]byte, []int) {
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{2}
+}
+
 // Solution is one evaluated setup: a member of a front, or a setup given
 // to EvaluateSetups or CompareSetup.
 type Solution struct {
@@ -1566,6 +1616,63 @@ func (x *DamperCurve) GetGasForceN() float64 {
 	return 0
 }
 
+// HeaveDamperCurve is one axle's heave (third) damper curve at the heave
+// element (element velocity and force); curve.corner is unspecified and
+// there is no adjuster band.
+type HeaveDamperCurve struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Which axle.
+	Axle AxlePosition `protobuf:"varint,1,opt,name=axle,proto3,enum=dampfront.v1.AxlePosition" json:"axle,omitempty"`
+	// The curve, signs and fields as a corner's.
+	Curve         *DamperCurve `protobuf:"bytes,2,opt,name=curve,proto3" json:"curve,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *HeaveDamperCurve) Reset() {
+	*x = HeaveDamperCurve{}
+	mi := &file_dampfront_v1_result_proto_msgTypes[11]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *HeaveDamperCurve) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*HeaveDamperCurve) ProtoMessage() {}
+
+func (x *HeaveDamperCurve) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_result_proto_msgTypes[11]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use HeaveDamperCurve.ProtoReflect.Descriptor instead.
+func (*HeaveDamperCurve) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{11}
+}
+
+func (x *HeaveDamperCurve) GetAxle() AxlePosition {
+	if x != nil {
+		return x.Axle
+	}
+	return AxlePosition_AXLE_POSITION_UNSPECIFIED
+}
+
+func (x *HeaveDamperCurve) GetCurve() *DamperCurve {
+	if x != nil {
+		return x.Curve
+	}
+	return nil
+}
+
 // Front is (a page of) a job's Pareto front: the feasible solutions no
 // other feasible solution seen dominates, sorted by objectives.
 type Front struct {
@@ -1590,7 +1697,7 @@ type Front struct {
 
 func (x *Front) Reset() {
 	*x = Front{}
-	mi := &file_dampfront_v1_result_proto_msgTypes[11]
+	mi := &file_dampfront_v1_result_proto_msgTypes[12]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1602,7 +1709,7 @@ func (x *Front) String() string {
 func (*Front) ProtoMessage() {}
 
 func (x *Front) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_result_proto_msgTypes[11]
+	mi := &file_dampfront_v1_result_proto_msgTypes[12]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1615,7 +1722,7 @@ func (x *Front) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Front.ProtoReflect.Descriptor instead.
 func (*Front) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{11}
+	return file_dampfront_v1_result_proto_rawDescGZIP(), []int{12}
 }
 
 func (x *Front) GetJob() string {
@@ -1815,7 +1922,10 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x12blow_off_rebound_n\x18\x0f \x01(\x01R\x0fblowOffReboundN\x12\x1d\n" +
 	"\n" +
 	"friction_n\x18\x10 \x01(\x01R\tfrictionN\x12\x1e\n" +
-	"\vgas_force_n\x18\x11 \x01(\x01R\tgasForceN\"\x9c\x02\n" +
+	"\vgas_force_n\x18\x11 \x01(\x01R\tgasForceN\"s\n" +
+	"\x10HeaveDamperCurve\x12.\n" +
+	"\x04axle\x18\x01 \x01(\x0e2\x1a.dampfront.v1.AxlePositionR\x04axle\x12/\n" +
+	"\x05curve\x18\x02 \x01(\v2\x19.dampfront.v1.DamperCurveR\x05curve\"\x9c\x02\n" +
 	"\x05Front\x12\x10\n" +
 	"\x03job\x18\x01 \x01(\tR\x03job\x12\x1d\n" +
 	"\n" +
@@ -1837,7 +1947,11 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\x1aCORNER_POSITION_FRONT_LEFT\x10\x01\x12\x1f\n" +
 	"\x1bCORNER_POSITION_FRONT_RIGHT\x10\x02\x12\x1d\n" +
 	"\x19CORNER_POSITION_REAR_LEFT\x10\x03\x12\x1e\n" +
-	"\x1aCORNER_POSITION_REAR_RIGHT\x10\x04B,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
+	"\x1aCORNER_POSITION_REAR_RIGHT\x10\x04*^\n" +
+	"\fAxlePosition\x12\x1d\n" +
+	"\x19AXLE_POSITION_UNSPECIFIED\x10\x00\x12\x17\n" +
+	"\x13AXLE_POSITION_FRONT\x10\x01\x12\x16\n" +
+	"\x12AXLE_POSITION_REAR\x10\x02B,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3"
 
 var (
 	file_dampfront_v1_result_proto_rawDescOnce sync.Once
@@ -1851,59 +1965,63 @@ func file_dampfront_v1_result_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_result_proto_rawDescData
 }
 
-var file_dampfront_v1_result_proto_enumTypes = make([]protoimpl.EnumInfo, 2)
-var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 12)
+var file_dampfront_v1_result_proto_enumTypes = make([]protoimpl.EnumInfo, 3)
+var file_dampfront_v1_result_proto_msgTypes = make([]protoimpl.MessageInfo, 13)
 var file_dampfront_v1_result_proto_goTypes = []any{
 	(SolutionView)(0),             // 0: dampfront.v1.SolutionView
 	(CornerPosition)(0),           // 1: dampfront.v1.CornerPosition
-	(*Solution)(nil),              // 2: dampfront.v1.Solution
-	(*CornerClicks)(nil),          // 3: dampfront.v1.CornerClicks
-	(*BandExcess)(nil),            // 4: dampfront.v1.BandExcess
-	(*CaseMetrics)(nil),           // 5: dampfront.v1.CaseMetrics
-	(*AeroMetrics)(nil),           // 6: dampfront.v1.AeroMetrics
-	(*ReferencePointMetrics)(nil), // 7: dampfront.v1.ReferencePointMetrics
-	(*OperatingPoint)(nil),        // 8: dampfront.v1.OperatingPoint
-	(*CornerMetrics)(nil),         // 9: dampfront.v1.CornerMetrics
-	(*AxleMetrics)(nil),           // 10: dampfront.v1.AxleMetrics
-	(*Mode)(nil),                  // 11: dampfront.v1.Mode
-	(*DamperCurve)(nil),           // 12: dampfront.v1.DamperCurve
-	(*Front)(nil),                 // 13: dampfront.v1.Front
-	(*Setup)(nil),                 // 14: dampfront.v1.Setup
-	(*ConstraintShortfall)(nil),   // 15: dampfront.v1.ConstraintShortfall
-	(*TransientMetrics)(nil),      // 16: dampfront.v1.TransientMetrics
-	(*DamperStage)(nil),           // 17: dampfront.v1.DamperStage
-	(*Objective)(nil),             // 18: dampfront.v1.Objective
-	(*Constraint)(nil),            // 19: dampfront.v1.Constraint
+	(AxlePosition)(0),             // 2: dampfront.v1.AxlePosition
+	(*Solution)(nil),              // 3: dampfront.v1.Solution
+	(*CornerClicks)(nil),          // 4: dampfront.v1.CornerClicks
+	(*BandExcess)(nil),            // 5: dampfront.v1.BandExcess
+	(*CaseMetrics)(nil),           // 6: dampfront.v1.CaseMetrics
+	(*AeroMetrics)(nil),           // 7: dampfront.v1.AeroMetrics
+	(*ReferencePointMetrics)(nil), // 8: dampfront.v1.ReferencePointMetrics
+	(*OperatingPoint)(nil),        // 9: dampfront.v1.OperatingPoint
+	(*CornerMetrics)(nil),         // 10: dampfront.v1.CornerMetrics
+	(*AxleMetrics)(nil),           // 11: dampfront.v1.AxleMetrics
+	(*Mode)(nil),                  // 12: dampfront.v1.Mode
+	(*DamperCurve)(nil),           // 13: dampfront.v1.DamperCurve
+	(*HeaveDamperCurve)(nil),      // 14: dampfront.v1.HeaveDamperCurve
+	(*Front)(nil),                 // 15: dampfront.v1.Front
+	(*Setup)(nil),                 // 16: dampfront.v1.Setup
+	(*ConstraintShortfall)(nil),   // 17: dampfront.v1.ConstraintShortfall
+	(*TransientMetrics)(nil),      // 18: dampfront.v1.TransientMetrics
+	(*DamperStage)(nil),           // 19: dampfront.v1.DamperStage
+	(*Objective)(nil),             // 20: dampfront.v1.Objective
+	(*Constraint)(nil),            // 21: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
-	14, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
-	5,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
-	12, // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
-	15, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
-	3,  // 4: dampfront.v1.Solution.clicks:type_name -> dampfront.v1.CornerClicks
-	4,  // 5: dampfront.v1.Solution.out_of_band:type_name -> dampfront.v1.BandExcess
-	16, // 6: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
+	16, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
+	6,  // 1: dampfront.v1.Solution.case_metrics:type_name -> dampfront.v1.CaseMetrics
+	13, // 2: dampfront.v1.Solution.damper_curves:type_name -> dampfront.v1.DamperCurve
+	17, // 3: dampfront.v1.Solution.shortfalls:type_name -> dampfront.v1.ConstraintShortfall
+	4,  // 4: dampfront.v1.Solution.clicks:type_name -> dampfront.v1.CornerClicks
+	5,  // 5: dampfront.v1.Solution.out_of_band:type_name -> dampfront.v1.BandExcess
+	18, // 6: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
 	1,  // 7: dampfront.v1.CornerClicks.corner:type_name -> dampfront.v1.CornerPosition
 	1,  // 8: dampfront.v1.BandExcess.corner:type_name -> dampfront.v1.CornerPosition
-	9,  // 9: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	10, // 10: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	10, // 11: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	11, // 12: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	8,  // 13: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
-	6,  // 14: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
-	7,  // 15: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
+	10, // 9: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	11, // 10: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	11, // 11: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	12, // 12: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	9,  // 13: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	7,  // 14: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
+	8,  // 15: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
 	1,  // 16: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
 	1,  // 17: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	17, // 18: dampfront.v1.DamperCurve.stages_bump:type_name -> dampfront.v1.DamperStage
-	17, // 19: dampfront.v1.DamperCurve.stages_rebound:type_name -> dampfront.v1.DamperStage
-	18, // 20: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	19, // 21: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 22: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	23, // [23:23] is the sub-list for method output_type
-	23, // [23:23] is the sub-list for method input_type
-	23, // [23:23] is the sub-list for extension type_name
-	23, // [23:23] is the sub-list for extension extendee
-	0,  // [0:23] is the sub-list for field type_name
+	19, // 18: dampfront.v1.DamperCurve.stages_bump:type_name -> dampfront.v1.DamperStage
+	19, // 19: dampfront.v1.DamperCurve.stages_rebound:type_name -> dampfront.v1.DamperStage
+	2,  // 20: dampfront.v1.HeaveDamperCurve.axle:type_name -> dampfront.v1.AxlePosition
+	13, // 21: dampfront.v1.HeaveDamperCurve.curve:type_name -> dampfront.v1.DamperCurve
+	20, // 22: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	21, // 23: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	3,  // 24: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	25, // [25:25] is the sub-list for method output_type
+	25, // [25:25] is the sub-list for method input_type
+	25, // [25:25] is the sub-list for extension type_name
+	25, // [25:25] is the sub-list for extension extendee
+	0,  // [0:25] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }
@@ -1918,8 +2036,8 @@ func file_dampfront_v1_result_proto_init() {
 		File: protoimpl.DescBuilder{
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_result_proto_rawDesc), len(file_dampfront_v1_result_proto_rawDesc)),
-			NumEnums:      2,
-			NumMessages:   12,
+			NumEnums:      3,
+			NumMessages:   13,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

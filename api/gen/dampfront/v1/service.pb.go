@@ -1259,7 +1259,10 @@ type GetDamperCurvesResponse struct {
 	// The setup the curves are of.
 	Setup *Setup `protobuf:"bytes,1,opt,name=setup,proto3" json:"setup,omitempty"`
 	// One curve per corner, front left, front right, rear left, rear right.
-	Curves        []*DamperCurve `protobuf:"bytes,2,rep,name=curves,proto3" json:"curves,omitempty"`
+	Curves []*DamperCurve `protobuf:"bytes,2,rep,name=curves,proto3" json:"curves,omitempty"`
+	// One curve per axle with a heave (third) damper, at the heave element;
+	// empty for a car or setup without one.
+	HeaveCurves   []*HeaveDamperCurve `protobuf:"bytes,3,rep,name=heave_curves,json=heaveCurves,proto3" json:"heave_curves,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -1304,6 +1307,13 @@ func (x *GetDamperCurvesResponse) GetSetup() *Setup {
 func (x *GetDamperCurvesResponse) GetCurves() []*DamperCurve {
 	if x != nil {
 		return x.Curves
+	}
+	return nil
+}
+
+func (x *GetDamperCurvesResponse) GetHeaveCurves() []*HeaveDamperCurve {
+	if x != nil {
+		return x.HeaveCurves
 	}
 	return nil
 }
@@ -2058,10 +2068,11 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"adjustment\x18\x04 \x01(\v2\x18.dampfront.v1.AdjustmentR\n" +
 	"adjustment\x123\n" +
 	"\x06curves\x18\x05 \x01(\v2\x1b.dampfront.v1.CurveSettingsR\x06curvesB\b\n" +
-	"\x06target\"w\n" +
+	"\x06target\"\xba\x01\n" +
 	"\x17GetDamperCurvesResponse\x12)\n" +
 	"\x05setup\x18\x01 \x01(\v2\x13.dampfront.v1.SetupR\x05setup\x121\n" +
-	"\x06curves\x18\x02 \x03(\v2\x19.dampfront.v1.DamperCurveR\x06curves\"\xcb\x01\n" +
+	"\x06curves\x18\x02 \x03(\v2\x19.dampfront.v1.DamperCurveR\x06curves\x12A\n" +
+	"\fheave_curves\x18\x03 \x03(\v2\x1e.dampfront.v1.HeaveDamperCurveR\vheaveCurves\"\xcb\x01\n" +
 	"\x12VerifySetupRequest\x12+\n" +
 	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecH\x00R\x04spec\x12\x12\n" +
 	"\x03job\x18\x02 \x01(\tH\x00R\x03job\x12)\n" +
@@ -2194,8 +2205,9 @@ var file_dampfront_v1_service_proto_goTypes = []any{
 	(*Adjustment)(nil),                  // 37: dampfront.v1.Adjustment
 	(*CurveSettings)(nil),               // 38: dampfront.v1.CurveSettings
 	(*DamperCurve)(nil),                 // 39: dampfront.v1.DamperCurve
-	(*EstimateByHandRequest)(nil),       // 40: dampfront.v1.EstimateByHandRequest
-	(*EstimateByHandResponse)(nil),      // 41: dampfront.v1.EstimateByHandResponse
+	(*HeaveDamperCurve)(nil),            // 40: dampfront.v1.HeaveDamperCurve
+	(*EstimateByHandRequest)(nil),       // 41: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil),      // 42: dampfront.v1.EstimateByHandResponse
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
 	26, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
@@ -2226,44 +2238,45 @@ var file_dampfront_v1_service_proto_depIdxs = []int32{
 	38, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
 	33, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
 	39, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
-	26, // 28: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
-	33, // 29: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
-	21, // 30: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
-	0,  // 31: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
-	22, // 32: dampfront.v1.VerifiedCase.metrics:type_name -> dampfront.v1.VerifiedMetric
-	0,  // 33: dampfront.v1.VerifiedCase.verdict:type_name -> dampfront.v1.Verdict
-	0,  // 34: dampfront.v1.VerifiedMetric.verdict:type_name -> dampfront.v1.Verdict
-	26, // 35: dampfront.v1.GetTransientHistoryRequest.spec:type_name -> dampfront.v1.JobSpec
-	33, // 36: dampfront.v1.GetTransientHistoryRequest.setup:type_name -> dampfront.v1.Setup
-	1,  // 37: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
-	3,  // 38: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
-	5,  // 39: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
-	7,  // 40: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
-	9,  // 41: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
-	11, // 42: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
-	13, // 43: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
-	15, // 44: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
-	17, // 45: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
-	19, // 46: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
-	40, // 47: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
-	23, // 48: dampfront.v1.DampfrontService.GetTransientHistory:input_type -> dampfront.v1.GetTransientHistoryRequest
-	2,  // 49: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	4,  // 50: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	6,  // 51: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	8,  // 52: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	10, // 53: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	12, // 54: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	14, // 55: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	16, // 56: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	18, // 57: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	20, // 58: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
-	41, // 59: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
-	24, // 60: dampfront.v1.DampfrontService.GetTransientHistory:output_type -> dampfront.v1.GetTransientHistoryResponse
-	49, // [49:61] is the sub-list for method output_type
-	37, // [37:49] is the sub-list for method input_type
-	37, // [37:37] is the sub-list for extension type_name
-	37, // [37:37] is the sub-list for extension extendee
-	0,  // [0:37] is the sub-list for field type_name
+	40, // 28: dampfront.v1.GetDamperCurvesResponse.heave_curves:type_name -> dampfront.v1.HeaveDamperCurve
+	26, // 29: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
+	33, // 30: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
+	21, // 31: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
+	0,  // 32: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
+	22, // 33: dampfront.v1.VerifiedCase.metrics:type_name -> dampfront.v1.VerifiedMetric
+	0,  // 34: dampfront.v1.VerifiedCase.verdict:type_name -> dampfront.v1.Verdict
+	0,  // 35: dampfront.v1.VerifiedMetric.verdict:type_name -> dampfront.v1.Verdict
+	26, // 36: dampfront.v1.GetTransientHistoryRequest.spec:type_name -> dampfront.v1.JobSpec
+	33, // 37: dampfront.v1.GetTransientHistoryRequest.setup:type_name -> dampfront.v1.Setup
+	1,  // 38: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
+	3,  // 39: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
+	5,  // 40: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
+	7,  // 41: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
+	9,  // 42: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
+	11, // 43: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
+	13, // 44: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
+	15, // 45: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
+	17, // 46: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
+	19, // 47: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
+	41, // 48: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
+	23, // 49: dampfront.v1.DampfrontService.GetTransientHistory:input_type -> dampfront.v1.GetTransientHistoryRequest
+	2,  // 50: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	4,  // 51: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	6,  // 52: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	8,  // 53: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	10, // 54: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	12, // 55: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	14, // 56: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	16, // 57: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	18, // 58: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	20, // 59: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	42, // 60: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
+	24, // 61: dampfront.v1.DampfrontService.GetTransientHistory:output_type -> dampfront.v1.GetTransientHistoryResponse
+	50, // [50:62] is the sub-list for method output_type
+	38, // [38:50] is the sub-list for method input_type
+	38, // [38:38] is the sub-list for extension type_name
+	38, // [38:38] is the sub-list for extension extendee
+	0,  // [0:38] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_service_proto_init() }
