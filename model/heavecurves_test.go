@@ -71,14 +71,18 @@ func TestHeaveDamperTestForcesClosedForm(t *testing.T) {
 }
 
 // TestHeaveDamperCurvesAbsent checks that a car without heave dampers
-// gets no heave tables, and that a heave damper set on an axle without a
-// heave element is refused, naming the field.
+// gets no heave tables (bad test velocities still refused), and that a
+// heave damper set on an axle without a heave element is refused, naming
+// the field.
 func TestHeaveDamperCurvesAbsent(t *testing.T) {
 	t.Parallel()
 	v, s := demoCar(), demoSetup()
 	got, err := HeaveDamperTestForces(&v, &s, BandVelocities)
 	if err != nil || got != nil {
 		t.Fatalf("road car: got %v, %v; want nil, nil", got, err)
+	}
+	if _, err := HeaveDamperTestForces(&v, &s, []float64{0.1, -1}); err == nil || !strings.Contains(err.Error(), "velocities[1]") {
+		t.Fatalf("bad velocity: err %v, want one naming velocities[1]", err)
 	}
 	s.Heave[Front] = AxleDamping{BumpRatio: 0.5, ReboundRatio: 0.5}
 	if _, err := HeaveDamperCurves(&v, &s, 0.3, 11); err == nil || !strings.Contains(err.Error(), "heave[0]") {

@@ -68,6 +68,9 @@ type HeaveTestForces struct {
 // (HeaveDamperCurves) at the element velocities given, as
 // DamperTestForces does the corners'; nil for a car without heave dampers.
 func HeaveDamperTestForces(v *Vehicle, s *Setup, velocities []float64) ([]HeaveTestForces, error) {
+	if err := checkTestVelocities(velocities); err != nil {
+		return nil, err
+	}
 	curves, err := HeaveDamperCurves(v, s, 1, 3)
 	if err != nil || len(curves) == 0 {
 		return nil, err
@@ -94,14 +97,7 @@ func HeaveDamperTestForces(v *Vehicle, s *Setup, velocities []float64) ([]HeaveT
 // each from -vel to +vel, as curves returns them) at each: per curve, the
 // bump and the rebound branch.
 func readTestForces(velocities []float64, n int, curves func(vel float64) ([]DamperCurve, error)) ([][2]TestBranch, error) {
-	var p problems
-	if len(velocities) == 0 {
-		p.add("velocities", "give at least one test velocity")
-	}
-	for k, vel := range velocities {
-		p.in(fmt.Sprintf("velocities[%d]", k), vel, "Curves.max_velocity_m_per_s")
-	}
-	if err := p.err(); err != nil {
+	if err := checkTestVelocities(velocities); err != nil {
 		return nil, err
 	}
 	out := make([][2]TestBranch, n)
@@ -119,6 +115,19 @@ func readTestForces(velocities []float64, n int, curves func(vel float64) ([]Dam
 		}
 	}
 	return out, nil
+}
+
+// checkTestVelocities checks that there is at least one test velocity and
+// each is in the curves' range, naming the bad one.
+func checkTestVelocities(velocities []float64) error {
+	var p problems
+	if len(velocities) == 0 {
+		p.add("velocities", "give at least one test velocity")
+	}
+	for k, vel := range velocities {
+		p.in(fmt.Sprintf("velocities[%d]", k), vel, "Curves.max_velocity_m_per_s")
+	}
+	return p.err()
 }
 
 // add appends one velocity's force, band and adjuster forces (at index k
