@@ -94,18 +94,20 @@ func DamperCurves(v *Vehicle, s *Setup, adj Adjustment, vmax float64, points int
 	out := make([]DamperCurve, 4)
 	for i := range out {
 		mr := v.Corners[i].DamperMotionRatio
-		out[i] = componentCurve(&s.Axles[i/2], cc[i]/(mr*mr), adj, band, vmax, points)
+		out[i] = componentCurve(&s.Axles[i/2], cc[i], mr*mr, adj, band, vmax, points)
 		out[i].Corner = i
 	}
 	return out, nil
 }
 
 // componentCurve tabulates one damper's curve at the component: setting
-// a with its ratios taken of the slope per unit ratio c1 = c_crit/MR²
-// (N s/m at the damper), the adjuster band when band is set.
-func componentCurve(a *AxleDamping, c1 float64, adj Adjustment, band bool, vmax float64, points int) DamperCurve {
+// a with its ratios taken of the critical damping cc (at the wheel, or
+// the heave element's mean wheel travel) and referred through mr2 = MR²
+// (slope ζ·cc/mr2 at the damper, in that order of operations, which the
+// stored fronts' bytes hold), the adjuster band when band is set.
+func componentCurve(a *AxleDamping, cc, mr2 float64, adj Adjustment, band bool, vmax float64, points int) DamperCurve {
 	dc := DamperCurve{
-		BumpSlope: a.BumpRatio * c1, ReboundSlope: a.ReboundRatio * c1,
+		BumpSlope: a.BumpRatio * cc / mr2, ReboundSlope: a.ReboundRatio * cc / mr2,
 		KneeBump: a.KneeBump, KneeRebound: a.KneeRebound,
 		HighSpeedBump: factorOr1(a.HighSpeedBump), HighSpeedRebound: factorOr1(a.HighSpeedRebound),
 		StagesBump: activeStages(&a.StagesBump), StagesRebound: activeStages(&a.StagesRebound),
@@ -113,7 +115,7 @@ func componentCurve(a *AxleDamping, c1 float64, adj Adjustment, band bool, vmax 
 		Velocity: make([]float64, points), Force: make([]float64, points),
 	}
 	law := func(zb, zr, vel float64) float64 {
-		d := a.axleDamper(zb*c1, zr*c1, 1)
+		d := a.axleDamper(zb*cc/mr2, zr*cc/mr2, 1)
 		return d.force(vel)
 	}
 	if band {
@@ -162,7 +164,7 @@ func HeaveDamperCurves(v *Vehicle, s *Setup, vmax float64, points int) ([]HeaveC
 			continue
 		}
 		mr := v.Heave[ax].MotionRatio
-		out = append(out, HeaveCurve{Axle: ax, DamperCurve: componentCurve(&s.Heave[ax], cc[ax]/(mr*mr), Adjustment{}, false, vmax, points)})
+		out = append(out, HeaveCurve{Axle: ax, DamperCurve: componentCurve(&s.Heave[ax], cc[ax], mr*mr, Adjustment{}, false, vmax, points)})
 	}
 	return out, nil
 }
