@@ -3,6 +3,7 @@ package plot
 import (
 	"bytes"
 	"fmt"
+	"html/template"
 	"io"
 	"strings"
 
@@ -168,6 +169,16 @@ func (f *Figure) WriteSVG(w io.Writer) error {
 	}
 	_, err := w.Write(bytes.ReplaceAll(b.Bytes(), []byte(svgFamily), []byte(svgFamilies)))
 	return err
+}
+
+// InlineSVG is an SVG document of WriteSVG as an element of an HTML page:
+// the XML declaration and comments before the svg element are dropped.
+// The figures of this package escape every text they draw.
+func InlineSVG(doc []byte) template.HTML {
+	if i := bytes.Index(doc, []byte("<svg")); i >= 0 {
+		doc = doc[i:]
+	}
+	return template.HTML(doc) // #nosec: drawn by this package, text escaped
 }
 
 // The font family vgsvg writes for the house face, and what it becomes.

@@ -221,11 +221,7 @@ func curvesSVG(sol *pb.Solution) (template.HTML, string) {
 	if err := fig.WriteSVG(&b); err != nil {
 		return "", "the damper curves cannot be drawn: " + err.Error()
 	}
-	doc := b.Bytes()
-	if i := bytes.Index(doc, []byte("<svg")); i >= 0 {
-		doc = doc[i:]
-	}
-	return template.HTML(doc), "" // #nosec: drawn by package plot, which escapes every text
+	return plot.InlineSVG(b.Bytes()), ""
 }
 
 // clickRows is the click table: each corner's clicks out of its

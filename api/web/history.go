@@ -61,7 +61,7 @@ func (h *Handler) newHistoryView(ctx context.Context, id string, s *pb.Solution,
 	if err == nil {
 		var b []byte
 		if b, err = svgBytes(fig); err == nil {
-			v.SVG = inlineSVG(b)
+			v.SVG = plot.InlineSVG(b)
 		}
 	}
 	if err != nil {

@@ -125,7 +125,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 	if hist := j.GetHistory(); len(hist) > 1 {
 		if fig, err := plot.Hypervolume(hist, objs, plot.HypervolumeOptions{}); err == nil {
 			if b, err := svgBytes(fig); err == nil {
-				v.HypervolumeSVG = inlineSVG(b)
+				v.HypervolumeSVG = plot.InlineSVG(b)
 			}
 		}
 	}
@@ -179,7 +179,7 @@ func (h *Handler) frontSection(ctx context.Context, v *jobView, id string, front
 	} else if b, err := svgBytes(fig); err != nil {
 		v.FrontProblem = "The front chart cannot be drawn: " + err.Error()
 	} else {
-		v.FrontSVG = inlineSVG(b)
+		v.FrontSVG = plot.InlineSVG(b)
 	}
 	v.Headers, v.Rows = solutionTable(id, front, v.Balanced, pick)
 	if s := solutionAt(front, int(pick)); s != nil {
@@ -189,7 +189,7 @@ func (h *Handler) frontSection(ctx context.Context, v *jobView, id string, front
 		} else if b, err := svgBytes(fig); err != nil {
 			c.Problem = "The damper curves cannot be drawn: " + err.Error()
 		} else {
-			c.SVG = inlineSVG(b)
+			c.SVG = plot.InlineSVG(b)
 		}
 		v.Curves = c
 		v.Modes = newModesView(id, pick, sheet.Modes(s))
@@ -198,7 +198,7 @@ func (h *Handler) frontSection(ctx context.Context, v *jobView, id string, front
 	}
 	if fig, err := plot.ModalRatios(front, plot.ModalOptions{}); err == nil {
 		if b, err := svgBytes(fig); err == nil {
-			v.ModalSVG = inlineSVG(b)
+			v.ModalSVG = plot.InlineSVG(b)
 		}
 	}
 }
