@@ -29,6 +29,7 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 		Adjustment:   adjustmentFromProto(s.GetAdjustment()),
 		Adjusters:    adjustersFromProto(s.GetAdjusters()),
 		Curves:       study.Curves{MaxVelocity: s.GetCurves().GetMaxVelocityMPerS(), Points: int(s.GetCurves().GetPoints())},
+		Refinement:   refinementFromProto(s.GetRefinement()),
 	}
 	if ref := s.GetReferenceSetup(); ref != nil {
 		r := setupFromProto(ref, at("reference_setup"), p)
@@ -156,5 +157,6 @@ func fillDefaults(spec *pb.JobSpec, d *study.Spec) *pb.JobSpec {
 			*f.to = proto.Float64(**f.from)
 		}
 	}
+	fillRefinementDefaults(s.Refinement, &d.Refinement)
 	return s
 }

@@ -88,6 +88,7 @@ func Check(s *Spec) (*Checked, error) {
 	if b := spec.Search.PolishBudget; b < 0 || b > MaxPolishBudget {
 		p.add("search.polish_budget", "must be 0 (no polish) to %d evaluations per front point, got %d", MaxPolishBudget, b)
 	}
+	spec.Refinement.check(&p)
 	if err := p.err(); err != nil {
 		return nil, err
 	}
@@ -263,7 +264,11 @@ func (p problems) err() error {
 // checkpoint of the checked spec's run, read back without compiling the
 // spec: restoring a search needs only the problem's shape.
 func (c *Checked) History(checkpoint []byte) ([]optimizer.Progress, error) {
-	s, err := optimizer.Restore(shapeOnly{c}, c.settings, checkpoint)
+	search, _, err := splitCheckpoint(checkpoint)
+	if err != nil {
+		return nil, err
+	}
+	s, err := optimizer.Restore(shapeOnly{c}, c.settings, search)
 	if err != nil {
 		return nil, err
 	}

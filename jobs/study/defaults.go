@@ -137,6 +137,7 @@ func WithDefaults(s *Spec) *Spec {
 	orDefault(&q.CrossoverEta, DefaultCrossoverEta)
 	orDefault(&q.MutationProbability, 1/float64(out.Design.geneCount()))
 	orDefault(&q.MutationEta, DefaultMutationEta)
+	out.Refinement = s.Refinement.withDefaults(*q.Seed)
 	return &out
 }
 

@@ -35,6 +35,9 @@ type Spec struct {
 	Adjusters model.Adjusters
 	Curves    Curves
 	Search    Search
+	// Refinement is the optional stage after the search: every front
+	// point checked on the nonlinear car (see Refinement); off by default.
+	Refinement Refinement
 }
 
 // Design is the design space as a spec gives it: model.DesignSpace with

@@ -349,7 +349,10 @@ type JobSpec struct {
 	// Fraction of static load below which a tyre counts as unloaded on the
 	// manoeuvre and kerb cases; 0 means 0.5.
 	// Plausible range when given (not 0): (0, 1].
-	LoadFraction  float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
+	LoadFraction float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
+	// The optional refinement of the front on the nonlinear car; absent
+	// means none.
+	Refinement    *Refinement `protobuf:"bytes,23,opt,name=refinement,proto3" json:"refinement,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -496,6 +499,13 @@ func (x *JobSpec) GetLoadFraction() float64 {
 	return 0
 }
 
+func (x *JobSpec) GetRefinement() *Refinement {
+	if x != nil {
+		return x.Refinement
+	}
+	return nil
+}
+
 // Job is one optimisation run, a resource named "jobs/{job_id}".
 type Job struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -540,9 +550,12 @@ type Job struct {
 	Closest []*ConstraintShortfall `protobuf:"bytes,17,rep,name=closest,proto3" json:"closest,omitempty"`
 	// The check of the finished front in decision space (GetJob, WatchJob
 	// and ListJobs once the job has succeeded); unset before.
-	FrontCheck    *FrontCheck `protobuf:"bytes,18,opt,name=front_check,json=frontCheck,proto3" json:"front_check,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	FrontCheck *FrontCheck `protobuf:"bytes,18,opt,name=front_check,json=frontCheck,proto3" json:"front_check,omitempty"`
+	// What the refinement did to the finished front (as front_check);
+	// unset without a refinement.
+	RefinementSummary *RefinementSummary `protobuf:"bytes,19,opt,name=refinement_summary,json=refinementSummary,proto3" json:"refinement_summary,omitempty"`
+	unknownFields     protoimpl.UnknownFields
+	sizeCache         protoimpl.SizeCache
 }
 
 func (x *Job) Reset() {
@@ -697,6 +710,13 @@ func (x *Job) GetClosest() []*ConstraintShortfall {
 func (x *Job) GetFrontCheck() *FrontCheck {
 	if x != nil {
 		return x.FrontCheck
+	}
+	return nil
+}
+
+func (x *Job) GetRefinementSummary() *RefinementSummary {
+	if x != nil {
+		return x.RefinementSummary
 	}
 	return nil
 }
@@ -938,7 +958,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x19dampfront/v1/refine.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -959,7 +979,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\x87\a\n" +
+	"\r_mutation_eta\"\xc1\a\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -984,10 +1004,13 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"manoeuvres\x18\x14 \x03(\v2\x17.dampfront.v1.ManoeuvreR\n" +
 	"manoeuvres\x12(\n" +
 	"\x05kerbs\x18\x15 \x03(\v2\x12.dampfront.v1.KerbR\x05kerbs\x12#\n" +
-	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x1a9\n" +
+	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x128\n" +
+	"\n" +
+	"refinement\x18\x17 \x01(\v2\x18.dampfront.v1.RefinementR\n" +
+	"refinement\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xcf\x06\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\x9f\a\n" +
 	"\x03Job\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12\x15\n" +
 	"\x06job_id\x18\x02 \x01(\tR\x05jobId\x12!\n" +
@@ -1013,7 +1036,8 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"infeasible\x12;\n" +
 	"\aclosest\x18\x11 \x03(\v2!.dampfront.v1.ConstraintShortfallR\aclosest\x129\n" +
 	"\vfront_check\x18\x12 \x01(\v2\x18.dampfront.v1.FrontCheckR\n" +
-	"frontCheck\x1a9\n" +
+	"frontCheck\x12N\n" +
+	"\x12refinement_summary\x18\x13 \x01(\v2\x1f.dampfront.v1.RefinementSummaryR\x11refinementSummary\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x02\n" +
@@ -1091,8 +1115,10 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Adjusters)(nil),             // 18: dampfront.v1.Adjusters
 	(*Manoeuvre)(nil),             // 19: dampfront.v1.Manoeuvre
 	(*Kerb)(nil),                  // 20: dampfront.v1.Kerb
-	(*timestamppb.Timestamp)(nil), // 21: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 22: dampfront.v1.ConstraintShortfall
+	(*Refinement)(nil),            // 21: dampfront.v1.Refinement
+	(*timestamppb.Timestamp)(nil), // 22: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 23: dampfront.v1.ConstraintShortfall
+	(*RefinementSummary)(nil),     // 24: dampfront.v1.RefinementSummary
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -1109,22 +1135,24 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	18, // 11: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
 	19, // 12: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
 	20, // 13: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
-	0,  // 14: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	8,  // 15: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	21, // 16: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	21, // 17: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	21, // 18: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	6,  // 19: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 20: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	6,  // 21: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	22, // 22: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 23: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	21, // 24: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	25, // [25:25] is the sub-list for method output_type
-	25, // [25:25] is the sub-list for method input_type
-	25, // [25:25] is the sub-list for extension type_name
-	25, // [25:25] is the sub-list for extension extendee
-	0,  // [0:25] is the sub-list for field type_name
+	21, // 14: dampfront.v1.JobSpec.refinement:type_name -> dampfront.v1.Refinement
+	0,  // 15: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	8,  // 16: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	22, // 17: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	22, // 18: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	22, // 19: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	6,  // 20: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 21: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	6,  // 22: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	23, // 23: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 24: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	24, // 25: dampfront.v1.Job.refinement_summary:type_name -> dampfront.v1.RefinementSummary
+	22, // 26: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	27, // [27:27] is the sub-list for method output_type
+	27, // [27:27] is the sub-list for method input_type
+	27, // [27:27] is the sub-list for extension type_name
+	27, // [27:27] is the sub-list for extension extendee
+	0,  // [0:27] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -1133,6 +1161,7 @@ func file_dampfront_v1_job_proto_init() {
 		return
 	}
 	file_dampfront_v1_design_proto_init()
+	file_dampfront_v1_refine_proto_init()
 	file_dampfront_v1_road_proto_init()
 	file_dampfront_v1_transient_proto_init()
 	file_dampfront_v1_vehicle_proto_init()
