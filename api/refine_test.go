@@ -27,7 +27,9 @@ func refineSpec(t *testing.T) []byte {
 	return b
 }
 
-// runWithSummary is frontOf with the run's summary bytes as well.
+// runWithSummary runs a study from its spec to the end in steps of step
+// generations, reopening it from its checkpoint after every step when
+// resume is set, and returns its front and its summary's bytes.
 func runWithSummary(t *testing.T, spec []byte, step int, resume bool) ([]jobs.Solution, []byte) {
 	t.Helper()
 	o := NewOpener(2)
