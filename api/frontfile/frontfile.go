@@ -61,7 +61,10 @@ var slopeColumns = []struct {
 // the objectives, the four slopes, each constraint's violation,
 // out_of_band_n (the largest excess over the adjuster range, N at the
 // damper, over the corners and directions; 0 inside the band or without
-// one), feasible and balanced.
+// one), feasible and balanced; then, for a refined front (Refined), each
+// objective's refined value and statistical error ("refined_grip_rel",
+// "refined_grip_rel_error"), refined_feasible, refined_rank and
+// refined_unsettled.
 func Columns(f *pb.Front) []string {
 	cols := []string{"index"}
 	cols = append(cols, f.GetGeneNames()...)
@@ -74,7 +77,22 @@ func Columns(f *pb.Front) []string {
 	for _, c := range f.GetConstraints() {
 		cols = append(cols, ConstraintColumn(c))
 	}
-	return append(cols, "out_of_band_n", "feasible", "balanced")
+	cols = append(cols, "out_of_band_n", "feasible", "balanced")
+	if !Refined(f) {
+		return cols
+	}
+	for _, o := range f.GetObjectives() {
+		c := "refined_" + ObjectiveColumn(o.GetKind())
+		cols = append(cols, c, c+"_error")
+	}
+	return append(cols, "refined_feasible", "refined_rank", "refined_unsettled")
+}
+
+// Refined reports whether the front carries refined figures (a job with a
+// refinement, once it is done): its first solution has them.
+func Refined(f *pb.Front) bool {
+	s := f.GetSolutions()
+	return len(s) > 0 && s[0].GetRefined() != nil
 }
 
 // OutOfBand is the largest excess over the adjuster range of a solution
@@ -124,7 +142,19 @@ func row(f *pb.Front, s *pb.Solution, balanced bool) []any {
 		}
 		out = append(out, v)
 	}
-	return append(out, OutOfBand(s), s.GetFeasible(), balanced)
+	out = append(out, OutOfBand(s), s.GetFeasible(), balanced)
+	if !Refined(f) {
+		return out
+	}
+	r := s.GetRefined()
+	for k := range f.GetObjectives() {
+		var v, e any // none for a point whose check failed
+		if k < len(r.GetObjectives()) {
+			v, e = r.GetObjectives()[k], r.GetObjectiveErrors()[k]
+		}
+		out = append(out, v, e)
+	}
+	return append(out, r.GetFeasible(), int(r.GetRank()), r.GetUnsettled())
 }
 
 // Number is the text of an SI value in CSV: the shortest that reads back

@@ -89,6 +89,9 @@ func writeJob(w io.Writer, j *pb.Job) error {
 	if v := web.FrontCheckText(j); v != "" {
 		t.row("front check", v)
 	}
+	if v := web.RefinementText(j); v != "" {
+		t.row("refinement", v)
+	}
 	return t.flush()
 }
 
