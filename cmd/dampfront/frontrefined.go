@@ -67,6 +67,6 @@ func (c *refinedColumns) note(w io.Writer, job *pb.Job) {
 	fmt.Fprintf(w, "Nonlinear: each point checked in the time domain (%g s of road a case, seed %d); objectives from those records ± one statistical error,\n"+
 		"an error-free figure is linear (no time-domain counterpart) or already from the manoeuvre and kerb cases.\n"+
 		"rank: non-dominated sorting on the nonlinear figures (1 = on the refined front): %d of %d points off it, %d infeasible;\n"+
-		"? marks the %d points whose place on or off it is not settled within %g statistical errors.\n",
+		"? marks the %d points that dominate another, or are dominated, only within %g statistical errors (or near a limit).\n",
 		rs.GetDurationS(), rs.GetSeed(), rs.GetOffFront(), rs.GetPoints(), rs.GetInfeasible(), rs.GetUnsettled(), rs.GetSigmas())
 }

@@ -3,7 +3,6 @@ package study
 import (
 	"context"
 	"fmt"
-	"math"
 	"sync"
 
 	"dampfront/model"
@@ -85,14 +84,16 @@ func (r *Refinement) check(p *problems) {
 //
 //	f_b,m + k e_b,m ≤ f_a,m - k e_a,m   for every objective m,
 //
-// and b may dominate a when f_b,m - k e_b,m ≤ f_a,m + k e_a,m for every
-// m (and their refined objectives differ). Errors of two points add:
-// under the common road of the check they are correlated, and the sum is
-// the bound whatever the correlation. A point is unsettled when its place
-// on or off the refined front is not settled within k errors: a feasible
-// point of rank 1 that another feasible point may dominate, a feasible
-// point of rank above 1 that no feasible point surely dominates, or any
-// point whose feasibility is unsettled (model.Refined).
+// Errors of two points add: under the common road of the check they are
+// correlated, and the sum is the bound whatever the correlation. A
+// feasible point is unsettled when it dominates, or is dominated by,
+// another feasible point on the refined figures but not surely: that
+// order is within k statistical errors, and the re-sorting that rests on
+// it is not settled by the records. Any point whose feasibility is
+// unsettled (model.Refined) is unsettled too. A point of rank 1 that
+// dominates no other is settled: nothing says more than that it may be
+// dominated within the errors, as every near neighbour on a dense front
+// may.
 type RefinedPoint struct {
 	model.Refined
 	// Cases are the time-domain check of the point, one per road case in
@@ -269,22 +270,20 @@ func rankRefined(points []*RefinedPoint, opt Refinement) *RefineSummary {
 	return sum
 }
 
-// orderUnsettled reports whether feasible point a's place on or off the
-// refined front is unsettled within k statistical errors.
+// orderUnsettled reports whether feasible point a dominates, or is
+// dominated by, another feasible point only within k statistical errors.
 func orderUnsettled(a *RefinedPoint, points []*RefinedPoint, idx []int, k float64) bool {
 	for _, j := range idx {
 		b := points[j]
 		if b == a || !b.Feasible {
 			continue
 		}
-		if a.Rank > 1 && surelyDominates(b, a, k) {
-			return false
-		}
-		if a.Rank == 1 && mayDominate(b, a, k) {
+		if optimizer.Dominates(b.Objectives, a.Objectives) && !surelyDominates(b, a, k) ||
+			optimizer.Dominates(a.Objectives, b.Objectives) && !surelyDominates(a, b, k) {
 			return true
 		}
 	}
-	return a.Rank > 1
+	return false
 }
 
 // surelyDominates: b ≺ a and f_b + k e_b ≤ f_a - k e_a in every objective.
@@ -298,17 +297,4 @@ func surelyDominates(b, a *RefinedPoint, k float64) bool {
 		}
 	}
 	return true
-}
-
-// mayDominate: f_b - k e_b ≤ f_a + k e_a in every objective, the refined
-// objectives differing.
-func mayDominate(b, a *RefinedPoint, k float64) bool {
-	same := true
-	for m := range a.Objectives {
-		if b.Objectives[m]-k*b.ObjectiveErrors[m] > a.Objectives[m]+k*a.ObjectiveErrors[m] {
-			return false
-		}
-		same = same && math.Float64bits(b.Objectives[m]) == math.Float64bits(a.Objectives[m])
-	}
-	return !same
 }

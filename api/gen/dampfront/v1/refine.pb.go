@@ -184,19 +184,19 @@ type RefinedSolution struct {
 	// domination): 1 on the refined front, 2 dominated only by rank 1, ...;
 	// 0 when the check failed.
 	Rank int32 `protobuf:"varint,8,opt,name=rank,proto3" json:"rank,omitempty"`
-	// The point's place on or off the refined front is not settled within
-	// Refinement.sigmas statistical errors: a feasible point of rank 1 that
-	// another may dominate (every objective within the errors of both
-	// added), a feasible point of higher rank that no feasible point
-	// surely dominates, or a time-domain constraint within that many errors
-	// of its limit.
+	// An order the re-sorting rests on is not settled within
+	// Refinement.sigmas statistical errors: the point dominates, or is
+	// dominated by, another feasible point on the refined figures, but not
+	// surely (some objective's difference is within sigmas times the two
+	// points' errors added), or a time-domain constraint is within that
+	// many errors of its limit.
 	Unsettled bool `protobuf:"varint,9,opt,name=unsettled,proto3" json:"unsettled,omitempty"`
 	// Some time-domain constraint is within sigmas errors of its limit.
 	FeasibilityUnsettled bool `protobuf:"varint,10,opt,name=feasibility_unsettled,json=feasibilityUnsettled,proto3" json:"feasibility_unsettled,omitempty"`
 	// Why the time-domain check could not run; empty when it ran.
 	Failed string `protobuf:"bytes,11,opt,name=failed,proto3" json:"failed,omitempty"`
 	// The time-domain check of the point per road case, as VerifySetup
-	// gives it (warnings left out).
+	// gives it (warnings left out; absent in SOLUTION_VIEW_BASIC).
 	Cases         []*VerifiedCase `protobuf:"bytes,12,rep,name=cases,proto3" json:"cases,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
