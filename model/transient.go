@@ -95,7 +95,7 @@ type transientCase struct {
 
 	op     OperatingPoint
 	tm     timeModel // template: its dampers are set per evaluation
-	slope  [4]float64
+	slope  [nDamp]float64 // steepest damper slope prepared for, per damper coordinate (N s/m)
 	h      float64
 	steps  int
 	start  float64       // when the input begins (s)
@@ -143,8 +143,9 @@ func (w *transientWork) add(o *timeSample) {
 }
 
 // newTransientCase prepares a case for dampers whose steepest slope at
-// each corner is at most slope (N s/m at the wheel).
-func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptions, slope [4]float64) (*transientCase, error) {
+// each damper coordinate is at most slope (N s/m: the corners' at the
+// wheel, the heave dampers' on the axle's mean wheel travel).
+func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptions, slope [nDamp]float64) (*transientCase, error) {
 	c := &transientCase{v: v, opt: opt, man: man, kerb: kerb, slope: slope}
 	speed := 0.0
 	if man != nil {
@@ -336,7 +337,7 @@ func (c *transientCase) kerbInputs(n int) error {
 }
 
 // covers reports whether the case's step was prepared for the dampers.
-func (c *transientCase) covers(d *[4]wheelDamper) bool {
+func (c *transientCase) covers(d *[nDamp]wheelDamper) bool {
 	for i, w := range d {
 		if w.steepest() > c.slope[i]*(1+1e-12) {
 			return false
@@ -362,11 +363,11 @@ func (c *transientCase) work() *transientWork {
 	return w
 }
 
-// run integrates the case for the dampers into a pooled workspace, which
-// the caller returns with c.pool.Put.
-func (c *transientCase) run(d *[4]wheelDamper) (*transientWork, error) {
+// run integrates the case for the dampers (corners and heave dampers)
+// into a pooled workspace, which the caller returns with c.pool.Put.
+func (c *transientCase) run(d *[nDamp]wheelDamper) (*transientWork, error) {
 	m := c.tm
-	copy(m.damp[:4], d[:]) // the corners; heave dampers are not in the transient cases yet
+	m.damp = *d
 	w := c.work()
 	w.n = 0
 	w.rideMin = [2]float64{math.Inf(1), math.Inf(1)}
@@ -381,17 +382,10 @@ func (c *transientCase) run(d *[4]wheelDamper) (*transientWork, error) {
 }
 
 // evaluate runs the case for the dampers and fills tm.
-func (c *transientCase) evaluate(d *[4]wheelDamper, tm *TransientMetrics) error {
-	if !c.covers(d) {
-		var slope [4]float64
-		for i := range d {
-			slope[i] = math.Max(c.slope[i], d[i].steepest())
-		}
-		fresh, err := newTransientCase(c.v, c.man, c.kerb, c.opt, slope)
-		if err != nil {
-			return err
-		}
-		c = fresh
+func (c *transientCase) evaluate(d *[nDamp]wheelDamper, tm *TransientMetrics) error {
+	c, err := c.coveringCase(d)
+	if err != nil {
+		return err
 	}
 	w, err := c.run(d)
 	if err != nil {
@@ -400,4 +394,17 @@ func (c *transientCase) evaluate(d *[4]wheelDamper, tm *TransientMetrics) error 
 	c.metrics(w, tm)
 	c.pool.Put(w)
 	return nil
+}
+
+// coveringCase returns c when its step was prepared for the dampers, and
+// otherwise a case prepared afresh for them (allocating).
+func (c *transientCase) coveringCase(d *[nDamp]wheelDamper) (*transientCase, error) {
+	if c.covers(d) {
+		return c, nil
+	}
+	var slope [nDamp]float64
+	for i := range d {
+		slope[i] = math.Max(c.slope[i], d[i].steepest())
+	}
+	return newTransientCase(c.v, c.man, c.kerb, c.opt, slope)
 }

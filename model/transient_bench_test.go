@@ -9,7 +9,7 @@ func BenchmarkTransientCase(b *testing.B) {
 	v := demoCar()
 	v.LoadPaths = LoadPaths{CGHeight: 0.45, RollCentreHeight: [2]float64{0.05, 0.08}, UnsprungCGHeight: [2]float64{0.33, 0.34}}
 	s := demoSetup()
-	d := v.wheelDampers(&s)
+	d := v.dampers(&s)
 	for _, bc := range []struct {
 		name string
 		man  *Manoeuvre
@@ -20,7 +20,7 @@ func BenchmarkTransientCase(b *testing.B) {
 		{"kerb", nil, &Kerb{Name: "kerb", Shape: KerbTrapezoid, Side: KerbLeft, Height: 0.03, Length: 1.5, Speed: 40}},
 	} {
 		b.Run(bc.name, func(b *testing.B) {
-			c := prepare(b, &v, bc.man, bc.kerb, TransientOptions{}, &[4]wheelDamper{{cb: 2 * d[0].cr}, {cb: 2 * d[1].cr}, {cb: 2 * d[2].cr}, {cb: 2 * d[3].cr}})
+			c := prepare(b, &v, bc.man, bc.kerb, TransientOptions{}, &[nDamp]wheelDamper{{cb: 2 * d[0].cr}, {cb: 2 * d[1].cr}, {cb: 2 * d[2].cr}, {cb: 2 * d[3].cr}})
 			var m TransientMetrics
 			if err := c.evaluate(&d, &m); err != nil {
 				b.Fatal(err)
