@@ -94,7 +94,7 @@ type transientCase struct {
 	kerb   *Kerb
 
 	op     OperatingPoint
-	tm     timeModel // template: its dampers are set per evaluation
+	tm     timeModel      // template: its dampers are set per evaluation
 	slope  [nDamp]float64 // steepest damper slope prepared for, per damper coordinate (N s/m)
 	h      float64
 	steps  int
@@ -168,6 +168,9 @@ func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptio
 		return fail(err)
 	}
 	tm.width = inWidthForced
+	if c.speedFollows() {
+		tm.width = inWidthSpeed
+	}
 	for i := range slope {
 		tm.damp[i] = wheelDamper{cb: slope[i], cr: slope[i], rb: 1, rr: 1}
 	}
@@ -208,24 +211,24 @@ func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptio
 // quasi-static start and end, and the quasi-static attitude at each step.
 func (c *transientCase) fillInputs() error {
 	n := 2*c.steps + 1
-	c.in = make([]float64, n*inWidthForced)
+	wd := c.tm.width
+	c.in = make([]float64, n*wd)
 	il := newInertialLoads(c.v, c.tm.sys, &c.op)
 	if c.man != nil {
-		v0 := c.op.Speed
 		for j := 0; j < n; j++ {
 			ax, ay, sp := c.man.input(float64(j) * c.h / 2)
-			q := 0.0
-			if v0 > 0 {
-				q = sp*sp/(v0*v0) - 1
+			q := c.speedRatio(sp)
+			il.at(ax, ay, q, c.in[j*wd+inWidthRoad:j*wd+inWidthForced])
+			if wd == inWidthSpeed {
+				c.in[j*wd+inWidthForced] = q
 			}
-			il.at(ax, ay, q, c.in[j*inWidthForced+inWidthRoad:(j+1)*inWidthForced])
 		}
 	} else if err := c.kerbInputs(n); err != nil {
 		return err
 	}
 	sys := c.tm.sys
 	force := func(j int) [nDOF]float64 {
-		s := c.in[j*inWidthForced : (j+1)*inWidthForced]
+		s := c.in[j*wd : (j+1)*wd]
 		var f [nDOF]float64
 		for a := 0; a < nDOF; a++ {
 			f[a] = s[inWidthRoad+a]
@@ -243,7 +246,14 @@ func (c *transientCase) fillInputs() error {
 		return err
 	}
 	c.qs = [2][]float64{make([]float64, c.steps), make([]float64, c.steps)}
-	if c.man != nil {
+	if wd == inWidthSpeed {
+		for i := range c.qsLoad {
+			c.qsLoad[i] = make([]float64, c.steps)
+		}
+		if err := c.quasiStaticAtSpeed(force); err != nil {
+			return err
+		}
+	} else if c.man != nil {
 		var unit [nDOF]float64
 		// Quasi-static attitude: K x = f is linear, so x_qs(t) is the
 		// combination of the unit responses to each generalised force.
