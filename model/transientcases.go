@@ -26,7 +26,7 @@ func (e *Evaluator) SetTransientCases(ms []Manoeuvre, ks []Kerb, opt TransientOp
 		return err
 	}
 	opt = opt.withDefaults()
-	cc := e.v.CriticalDamping()
+	cc := e.ref.CriticalDamping()
 	var slope [4]float64
 	for i := range slope {
 		slope[i] = opt.MaxRatio * cc[i]
@@ -106,7 +106,7 @@ func (e *Evaluator) History(s Setup, i int) (*TransientHistory, error) {
 		return nil, &ValidationError{Problems: []FieldError{{Field: "case", Reason: fmt.Sprintf("must be in [0, %d), got %d", len(e.transients), i)}}}
 	}
 	c := e.transients[i]
-	d := e.v.wheelDampers(&s)
+	d := e.ref.wheelDampers(&s)
 	if !c.covers(&d) {
 		var slope [4]float64
 		for k := range d {
