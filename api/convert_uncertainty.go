@@ -1,6 +1,8 @@
 package api
 
 import (
+	"fmt"
+
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs/study"
 	"dampfront/model"
@@ -39,8 +41,9 @@ func uncertaintyFromProto(u *pb.Uncertainty, path string, p *problems) *model.Un
 	}
 	return &model.Uncertainty{
 		FuelMass: rangeOrNil(u.GetFuelMassKg()), FuelPosition: rangeOrNil(u.GetFuelPositionM()), FuelHeight: rangeOrNil(u.GetFuelHeightM()),
-		TyreRateScale:  [2]*model.Range{rangeOrNil(u.GetFrontTyreRateScale()), rangeOrNil(u.GetRearTyreRateScale())},
-		DownforceScale: rangeOrNil(u.GetDownforceScale()), BalanceShift: rangeOrNil(u.GetBalanceShift()),
+		TyreRateScaleAll: rangeOrNil(u.GetTyreRateScale()),
+		TyreRateScale:    [2]*model.Range{rangeOrNil(u.GetFrontTyreRateScale()), rangeOrNil(u.GetRearTyreRateScale())},
+		DownforceScale:   rangeOrNil(u.GetDownforceScale()), BalanceShift: rangeOrNil(u.GetBalanceShift()),
 		AeroStiffnessScale: rangeOrNil(u.GetAeroStiffnessScale()),
 		Method:             method, Nodes: int(u.GetNodes()), Samples: int(u.GetSamples()), Measure: measure, K: u.GetK(),
 	}
@@ -88,4 +91,30 @@ func robustToProto(r *study.Robust) *pb.RobustObjectives {
 		return nil
 	}
 	return &pb.RobustObjectives{Nominal: r.Nominal, Mean: r.Mean, Sd: r.SD, Worst: r.Worst}
+}
+
+// robustMeasureWords word the measure of a robust job's objectives.
+var robustMeasureWords = map[pb.RobustMeasure]string{
+	pb.RobustMeasure_ROBUST_MEASURE_MEAN:  "the mean",
+	pb.RobustMeasure_ROBUST_MEASURE_WORST: "the worst",
+}
+
+// RobustText says what a robust job's objectives are, for the CLI's
+// tables and the page: "Robust front: every setup evaluated on 27
+// uncertain cars; ..."; "" for a job without uncertainty.
+func RobustText(j *pb.Job) string {
+	u := j.GetSpec().GetUncertainty()
+	if j.GetUncertainCars() == 0 || u == nil {
+		return ""
+	}
+	measure, ok := robustMeasureWords[u.GetMeasure()]
+	if !ok {
+		measure = fmt.Sprintf("mean + %g sd", u.GetK())
+	}
+	how := fmt.Sprintf("Gauss-Legendre, %d nodes per range", u.GetNodes())
+	if u.GetMethod() == pb.RobustMethod_ROBUST_METHOD_SAMPLE {
+		how = fmt.Sprintf("a sample seeded by the job's seed %d", j.GetSeed())
+	}
+	return fmt.Sprintf("Robust front: every setup evaluated on %d uncertain cars (%s); the objectives are %s over them, each constraint the worst; nominal is the car as given, sd and worst are over the uncertain cars",
+		j.GetUncertainCars(), how, measure)
 }

@@ -31,8 +31,11 @@ type Uncertainty struct {
 	// LoadPaths.CGHeight; nil is at the sprung CG's height. Needs FuelMass
 	// and the vehicle's load_paths.cg_height_m.
 	FuelHeight *Range
+	// TyreRateScaleAll is a factor on every tyre's rate (-), one for all
+	// four (a warmer or colder set); nil is 1.
+	TyreRateScaleAll *Range
 	// TyreRateScale is a factor on each axle's tyre rates (-), front and
-	// rear; nil is 1.
+	// rear, on top of TyreRateScaleAll; nil is 1.
 	TyreRateScale [2]*Range
 	// DownforceScale is a factor on the aero map's downforce, slopes
 	// included (-); needs aero.
@@ -128,21 +131,21 @@ const (
 
 // uncertainDims is the number of ranges an Uncertainty can hold, in the
 // order of ranges().
-const uncertainDims = 8
+const uncertainDims = 9
 
 // uncertainNames are the ranges' field names, in the order of ranges().
 var uncertainNames = [uncertainDims]string{
-	"fuel_mass_kg", "fuel_position_m", "fuel_height_m", "front_tyre_rate_scale", "rear_tyre_rate_scale",
+	"fuel_mass_kg", "fuel_position_m", "fuel_height_m", "tyre_rate_scale", "front_tyre_rate_scale", "rear_tyre_rate_scale",
 	"downforce_scale", "balance_shift", "aero_stiffness_scale",
 }
 
 var uncertainLimits = [uncertainDims]string{
-	"Uncertainty.fuel_mass_kg", "Uncertainty.fuel_position_m", "LoadPaths.height_m", "Uncertainty.tyre_rate_scale",
+	"Uncertainty.fuel_mass_kg", "Uncertainty.fuel_position_m", "LoadPaths.height_m", "Uncertainty.tyre_rate_scale", "Uncertainty.tyre_rate_scale",
 	"Uncertainty.tyre_rate_scale", "Uncertainty.downforce_scale", "Uncertainty.balance_shift", "Uncertainty.aero_stiffness_scale",
 }
 
 func (u *Uncertainty) ranges() [uncertainDims]*Range {
-	return [uncertainDims]*Range{u.FuelMass, u.FuelPosition, u.FuelHeight, u.TyreRateScale[0], u.TyreRateScale[1],
+	return [uncertainDims]*Range{u.FuelMass, u.FuelPosition, u.FuelHeight, u.TyreRateScaleAll, u.TyreRateScale[0], u.TyreRateScale[1],
 		u.DownforceScale, u.BalanceShift, u.AeroStiffnessScale}
 }
 
@@ -182,7 +185,7 @@ func (u *Uncertainty) Validate(v *Vehicle) error {
 		p.bounds(uncertainNames[i], *r, uncertainLimits[i])
 	}
 	if given == 0 {
-		p.add("", "gives no range: give at least one (fuel_mass_kg, front_tyre_rate_scale, downforce_scale, ...) or leave uncertainty out")
+		p.add("", "gives no range: give at least one (fuel_mass_kg, tyre_rate_scale, downforce_scale, ...) or leave uncertainty out")
 	}
 	if u.FuelMass == nil && (u.FuelPosition != nil || u.FuelHeight != nil) {
 		p.add("fuel_mass_kg", "is needed by fuel_position_m and fuel_height_m")
@@ -192,7 +195,7 @@ func (u *Uncertainty) Validate(v *Vehicle) error {
 	}
 	for i, r := range []*Range{u.DownforceScale, u.BalanceShift, u.AeroStiffnessScale} {
 		if r != nil && !v.Aero.has() {
-			p.add(uncertainNames[5+i], "needs aero on the vehicle (vehicle.aero)")
+			p.add(uncertainNames[6+i], "needs aero on the vehicle (vehicle.aero)")
 		}
 	}
 	if _, ok := robustMethodNames[u.Method]; !ok {
@@ -262,7 +265,9 @@ type Perturbation struct {
 	FuelMass     float64 // kg
 	FuelPosition float64 // m forward of the sprung CG
 	// FuelHeight is the fuel's CG height (m); NaN is at the sprung CG's.
-	FuelHeight         float64
+	FuelHeight float64
+	// TyreRateScale is the factor on each axle's tyre rates, front and
+	// rear (TyreRateScaleAll times the axle's own).
 	TyreRateScale      [2]float64
 	DownforceScale     float64
 	BalanceShift       float64
@@ -271,11 +276,11 @@ type Perturbation struct {
 
 // nominalValues are the values of a range not given, in the order of
 // ranges().
-var nominalValues = [uncertainDims]float64{0, 0, math.NaN(), 1, 1, 1, 0, 1}
+var nominalValues = [uncertainDims]float64{0, 0, math.NaN(), 1, 1, 1, 1, 0, 1}
 
 func perturbationOf(x *[uncertainDims]float64) Perturbation {
-	return Perturbation{FuelMass: x[0], FuelPosition: x[1], FuelHeight: x[2], TyreRateScale: [2]float64{x[3], x[4]},
-		DownforceScale: x[5], BalanceShift: x[6], AeroStiffnessScale: x[7]}
+	return Perturbation{FuelMass: x[0], FuelPosition: x[1], FuelHeight: x[2], TyreRateScale: [2]float64{x[3] * x[4], x[3] * x[5]},
+		DownforceScale: x[6], BalanceShift: x[7], AeroStiffnessScale: x[8]}
 }
 
 // UncertainPoints returns the cars of a validated uncertainty (after

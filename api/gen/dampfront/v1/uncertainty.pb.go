@@ -153,9 +153,14 @@ type Uncertainty struct {
 	// fuel_mass_kg and vehicle.load_paths.cg_height_m.
 	// Plausible range: [0.02, 1.5] m.
 	FuelHeightM *Range `protobuf:"bytes,3,opt,name=fuel_height_m,json=fuelHeightM,proto3" json:"fuel_height_m,omitempty"`
-	// Factor on the front tyres' rate. Plausible range: [0.5, 1.5].
+	// Factor on every tyre's rate, one for all four (a warmer or colder
+	// set). Plausible range: [0.5, 1.5].
+	TyreRateScale *Range `protobuf:"bytes,14,opt,name=tyre_rate_scale,json=tyreRateScale,proto3" json:"tyre_rate_scale,omitempty"`
+	// Factor on the front tyres' rate, on top of tyre_rate_scale.
+	// Plausible range: [0.5, 1.5].
 	FrontTyreRateScale *Range `protobuf:"bytes,4,opt,name=front_tyre_rate_scale,json=frontTyreRateScale,proto3" json:"front_tyre_rate_scale,omitempty"`
-	// Factor on the rear tyres' rate. Plausible range: [0.5, 1.5].
+	// Factor on the rear tyres' rate, on top of tyre_rate_scale.
+	// Plausible range: [0.5, 1.5].
 	RearTyreRateScale *Range `protobuf:"bytes,5,opt,name=rear_tyre_rate_scale,json=rearTyreRateScale,proto3" json:"rear_tyre_rate_scale,omitempty"`
 	// Factor on the aero map's downforce, slopes included; needs aero.
 	// Plausible range: [0.5, 1.5].
@@ -230,6 +235,13 @@ func (x *Uncertainty) GetFuelPositionM() *Range {
 func (x *Uncertainty) GetFuelHeightM() *Range {
 	if x != nil {
 		return x.FuelHeightM
+	}
+	return nil
+}
+
+func (x *Uncertainty) GetTyreRateScale() *Range {
+	if x != nil {
+		return x.TyreRateScale
 	}
 	return nil
 }
@@ -382,12 +394,13 @@ var File_dampfront_v1_uncertainty_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_uncertainty_proto_rawDesc = "" +
 	"\n" +
-	"\x1edampfront/v1/uncertainty.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\"\xb0\x05\n" +
+	"\x1edampfront/v1/uncertainty.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\"\xed\x05\n" +
 	"\vUncertainty\x125\n" +
 	"\ffuel_mass_kg\x18\x01 \x01(\v2\x13.dampfront.v1.RangeR\n" +
 	"fuelMassKg\x12;\n" +
 	"\x0ffuel_position_m\x18\x02 \x01(\v2\x13.dampfront.v1.RangeR\rfuelPositionM\x127\n" +
-	"\rfuel_height_m\x18\x03 \x01(\v2\x13.dampfront.v1.RangeR\vfuelHeightM\x12F\n" +
+	"\rfuel_height_m\x18\x03 \x01(\v2\x13.dampfront.v1.RangeR\vfuelHeightM\x12;\n" +
+	"\x0ftyre_rate_scale\x18\x0e \x01(\v2\x13.dampfront.v1.RangeR\rtyreRateScale\x12F\n" +
 	"\x15front_tyre_rate_scale\x18\x04 \x01(\v2\x13.dampfront.v1.RangeR\x12frontTyreRateScale\x12D\n" +
 	"\x14rear_tyre_rate_scale\x18\x05 \x01(\v2\x13.dampfront.v1.RangeR\x11rearTyreRateScale\x12<\n" +
 	"\x0fdownforce_scale\x18\x06 \x01(\v2\x13.dampfront.v1.RangeR\x0edownforceScale\x128\n" +
@@ -439,18 +452,19 @@ var file_dampfront_v1_uncertainty_proto_depIdxs = []int32{
 	4,  // 0: dampfront.v1.Uncertainty.fuel_mass_kg:type_name -> dampfront.v1.Range
 	4,  // 1: dampfront.v1.Uncertainty.fuel_position_m:type_name -> dampfront.v1.Range
 	4,  // 2: dampfront.v1.Uncertainty.fuel_height_m:type_name -> dampfront.v1.Range
-	4,  // 3: dampfront.v1.Uncertainty.front_tyre_rate_scale:type_name -> dampfront.v1.Range
-	4,  // 4: dampfront.v1.Uncertainty.rear_tyre_rate_scale:type_name -> dampfront.v1.Range
-	4,  // 5: dampfront.v1.Uncertainty.downforce_scale:type_name -> dampfront.v1.Range
-	4,  // 6: dampfront.v1.Uncertainty.balance_shift:type_name -> dampfront.v1.Range
-	4,  // 7: dampfront.v1.Uncertainty.aero_stiffness_scale:type_name -> dampfront.v1.Range
-	0,  // 8: dampfront.v1.Uncertainty.method:type_name -> dampfront.v1.RobustMethod
-	1,  // 9: dampfront.v1.Uncertainty.measure:type_name -> dampfront.v1.RobustMeasure
-	10, // [10:10] is the sub-list for method output_type
-	10, // [10:10] is the sub-list for method input_type
-	10, // [10:10] is the sub-list for extension type_name
-	10, // [10:10] is the sub-list for extension extendee
-	0,  // [0:10] is the sub-list for field type_name
+	4,  // 3: dampfront.v1.Uncertainty.tyre_rate_scale:type_name -> dampfront.v1.Range
+	4,  // 4: dampfront.v1.Uncertainty.front_tyre_rate_scale:type_name -> dampfront.v1.Range
+	4,  // 5: dampfront.v1.Uncertainty.rear_tyre_rate_scale:type_name -> dampfront.v1.Range
+	4,  // 6: dampfront.v1.Uncertainty.downforce_scale:type_name -> dampfront.v1.Range
+	4,  // 7: dampfront.v1.Uncertainty.balance_shift:type_name -> dampfront.v1.Range
+	4,  // 8: dampfront.v1.Uncertainty.aero_stiffness_scale:type_name -> dampfront.v1.Range
+	0,  // 9: dampfront.v1.Uncertainty.method:type_name -> dampfront.v1.RobustMethod
+	1,  // 10: dampfront.v1.Uncertainty.measure:type_name -> dampfront.v1.RobustMeasure
+	11, // [11:11] is the sub-list for method output_type
+	11, // [11:11] is the sub-list for method input_type
+	11, // [11:11] is the sub-list for extension type_name
+	11, // [11:11] is the sub-list for extension extendee
+	0,  // [0:11] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_uncertainty_proto_init() }

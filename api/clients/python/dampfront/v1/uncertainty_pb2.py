@@ -14,7 +14,7 @@ _sym_db = _symbol_database.Default()
 from dampfront.v1 import design_pb2 as dampfront_dot_v1_dot_design__pb2
 
 
-DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x1e\x64\x61mpfront/v1/uncertainty.proto\x12\x0c\x64\x61mpfront.v1\x1a\x19\x64\x61mpfront/v1/design.proto\"\x8b\x04\n\x0bUncertainty\x12)\n\x0c\x66uel_mass_kg\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Range\x12,\n\x0f\x66uel_position_m\x18\x02 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\rfuel_height_m\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x32\n\x15\x66ront_tyre_rate_scale\x18\x04 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x31\n\x14rear_tyre_rate_scale\x18\x05 \x01(\x0b\x32\x13.dampfront.v1.Range\x12,\n\x0f\x64ownforce_scale\x18\x06 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\rbalance_shift\x18\x07 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x31\n\x14\x61\x65ro_stiffness_scale\x18\x08 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\x06method\x18\t \x01(\x0e\x32\x1a.dampfront.v1.RobustMethod\x12\r\n\x05nodes\x18\n \x01(\x05\x12\x0f\n\x07samples\x18\x0b \x01(\x05\x12,\n\x07measure\x18\x0c \x01(\x0e\x32\x1b.dampfront.v1.RobustMeasure\x12\t\n\x01k\x18\r \x01(\x01\"L\n\x10RobustObjectives\x12\x0f\n\x07nominal\x18\x01 \x03(\x01\x12\x0c\n\x04mean\x18\x02 \x03(\x01\x12\n\n\x02sd\x18\x03 \x03(\x01\x12\r\n\x05worst\x18\x04 \x03(\x01*e\n\x0cRobustMethod\x12\x1d\n\x19ROBUST_METHOD_UNSPECIFIED\x10\x00\x12\x1c\n\x18ROBUST_METHOD_QUADRATURE\x10\x01\x12\x18\n\x14ROBUST_METHOD_SAMPLE\x10\x02*~\n\rRobustMeasure\x12\x1e\n\x1aROBUST_MEASURE_UNSPECIFIED\x10\x00\x12\x17\n\x13ROBUST_MEASURE_MEAN\x10\x01\x12\x18\n\x14ROBUST_MEASURE_WORST\x10\x02\x12\x1a\n\x16ROBUST_MEASURE_MEAN_SD\x10\x03\x42,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3')
+DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x1e\x64\x61mpfront/v1/uncertainty.proto\x12\x0c\x64\x61mpfront.v1\x1a\x19\x64\x61mpfront/v1/design.proto\"\xb9\x04\n\x0bUncertainty\x12)\n\x0c\x66uel_mass_kg\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Range\x12,\n\x0f\x66uel_position_m\x18\x02 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\rfuel_height_m\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Range\x12,\n\x0ftyre_rate_scale\x18\x0e \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x32\n\x15\x66ront_tyre_rate_scale\x18\x04 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x31\n\x14rear_tyre_rate_scale\x18\x05 \x01(\x0b\x32\x13.dampfront.v1.Range\x12,\n\x0f\x64ownforce_scale\x18\x06 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\rbalance_shift\x18\x07 \x01(\x0b\x32\x13.dampfront.v1.Range\x12\x31\n\x14\x61\x65ro_stiffness_scale\x18\x08 \x01(\x0b\x32\x13.dampfront.v1.Range\x12*\n\x06method\x18\t \x01(\x0e\x32\x1a.dampfront.v1.RobustMethod\x12\r\n\x05nodes\x18\n \x01(\x05\x12\x0f\n\x07samples\x18\x0b \x01(\x05\x12,\n\x07measure\x18\x0c \x01(\x0e\x32\x1b.dampfront.v1.RobustMeasure\x12\t\n\x01k\x18\r \x01(\x01\"L\n\x10RobustObjectives\x12\x0f\n\x07nominal\x18\x01 \x03(\x01\x12\x0c\n\x04mean\x18\x02 \x03(\x01\x12\n\n\x02sd\x18\x03 \x03(\x01\x12\r\n\x05worst\x18\x04 \x03(\x01*e\n\x0cRobustMethod\x12\x1d\n\x19ROBUST_METHOD_UNSPECIFIED\x10\x00\x12\x1c\n\x18ROBUST_METHOD_QUADRATURE\x10\x01\x12\x18\n\x14ROBUST_METHOD_SAMPLE\x10\x02*~\n\rRobustMeasure\x12\x1e\n\x1aROBUST_MEASURE_UNSPECIFIED\x10\x00\x12\x17\n\x13ROBUST_MEASURE_MEAN\x10\x01\x12\x18\n\x14ROBUST_MEASURE_WORST\x10\x02\x12\x1a\n\x16ROBUST_MEASURE_MEAN_SD\x10\x03\x42,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3')
 
 _builder.BuildMessageAndEnumDescriptors(DESCRIPTOR, globals())
 _builder.BuildTopDescriptorsAndMessages(DESCRIPTOR, 'dampfront.v1.uncertainty_pb2', globals())
@@ -22,12 +22,12 @@ if _descriptor._USE_C_DESCRIPTORS == False:
 
   DESCRIPTOR._options = None
   DESCRIPTOR._serialized_options = b'Z*dampfront/api/gen/dampfront/v1;dampfrontv1'
-  _ROBUSTMETHOD._serialized_start=679
-  _ROBUSTMETHOD._serialized_end=780
-  _ROBUSTMEASURE._serialized_start=782
-  _ROBUSTMEASURE._serialized_end=908
+  _ROBUSTMETHOD._serialized_start=725
+  _ROBUSTMETHOD._serialized_end=826
+  _ROBUSTMEASURE._serialized_start=828
+  _ROBUSTMEASURE._serialized_end=954
   _UNCERTAINTY._serialized_start=76
-  _UNCERTAINTY._serialized_end=599
-  _ROBUSTOBJECTIVES._serialized_start=601
-  _ROBUSTOBJECTIVES._serialized_end=677
+  _UNCERTAINTY._serialized_end=645
+  _ROBUSTOBJECTIVES._serialized_start=647
+  _ROBUSTOBJECTIVES._serialized_end=723
 # @@protoc_insertion_point(module_scope)
