@@ -1,7 +1,6 @@
 package api
 
 import (
-	"bytes"
 	"math"
 	"strings"
 	"testing"
@@ -34,16 +33,7 @@ func TestRobustStudyResumeIsBitIdentical(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	whole := frontOf(t, spec, 100, false)
-	sliced := frontOf(t, spec, 2, true)
-	if len(whole) == 0 || len(whole) != len(sliced) {
-		t.Fatalf("front sizes %d and %d", len(whole), len(sliced))
-	}
-	for i := range whole {
-		if !bytes.Equal(whole[i].Detail, sliced[i].Detail) || geneKey(whole[i].Objectives) != geneKey(sliced[i].Objectives) {
-			t.Fatalf("solution %d differs after resume", i)
-		}
-	}
+	sameResumedFront(t, spec)
 }
 
 // TestRobustFrontDetail: each solution of a robust front carries its

@@ -435,3 +435,69 @@ func TestRobustMeasures(t *testing.T) {
 		t.Error("no car violates the travel limit: pick a tighter one, the check is void")
 	}
 }
+
+// TestRobustTransientObjectives: the manoeuvre and kerb objectives are
+// robust too. With the fuel high and forward and the tyres uncertain,
+// the worst of each transient objective over the cars equals the largest
+// value of the cars evaluated alone (the definition of RobustWorst), and
+// the cars differ (sd > 0: the perturbation reaches the time-domain
+// cases).
+func TestRobustTransientObjectives(t *testing.T) {
+	t.Parallel()
+	nominal := transientProblem(t)
+	v := *nominal.Evaluator().Vehicle()
+	ms := []Manoeuvre{
+		{Name: "brake", Shape: ShapeBrake, Speed: 55, Longitudinal: 1.8 * Gravity, Start: 0.1, Ramp: 0.15},
+		{Name: "turn", Shape: ShapeTurnIn, Speed: 45, Lateral: 1.6 * Gravity, Start: 0.1, Ramp: 0.3, Weight: 2},
+	}
+	ks := []Kerb{{Name: "kerb", Shape: KerbTrapezoid, Side: KerbLeft, Height: 0.03, Length: 1.5, Speed: 40}}
+	u := Uncertainty{FuelMass: &Range{20, 100}, FuelHeight: &Range{0.3, 0.5}, TyreRateScaleAll: &Range{0.9, 1.1}, Nodes: 2, Measure: RobustWorst}
+	u = u.WithDefaults()
+	if err := u.Validate(&v); err != nil {
+		t.Fatal(err)
+	}
+	pts := u.UncertainPoints()
+	evals := make([]*Evaluator, len(pts))
+	worst := make([]float64, nominal.NumObjectives())
+	for i := range worst {
+		worst[i] = math.Inf(-1)
+	}
+	x := []float64{0.5, 0.8, 0.6, 0.9}
+	for j := range pts {
+		vj, err := pts[j].Apply(&v)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if evals[j], err = NewEvaluator(vj, demoCases()[:1], EvaluatorOptions{DampingReference: &v}); err != nil {
+			t.Fatal(err)
+		}
+		if err := evals[j].SetTransientCases(ms, ks, TransientOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		pj := newMemberProblem(nominal, evals[j])
+		o, vi := make([]float64, len(worst)), make([]float64, 1)
+		if err := pj.EvaluateGenes(x, o, vi); err != nil {
+			t.Fatal(err)
+		}
+		for i := range o {
+			worst[i] = math.Max(worst[i], o[i])
+		}
+	}
+	rp, err := NewRobustProblem(nominal, &u, pts, evals)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, viol := make([]float64, len(worst)), make([]float64, 1)
+	var fig RobustFigures
+	if err := rp.EvaluateRobust(nominal.Design().Decode(x), got, viol, &fig); err != nil {
+		t.Fatal(err)
+	}
+	for i := range got {
+		if got[i] != worst[i] {
+			t.Errorf("objective %s: robust worst %.17g, max over the cars %.17g", nominal.Objectives()[i].Kind, got[i], worst[i])
+		}
+		if !(fig.SD[i] > 0) {
+			t.Errorf("objective %s: sd %g over the cars, want > 0", nominal.Objectives()[i].Kind, fig.SD[i])
+		}
+	}
+}
