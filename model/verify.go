@@ -127,7 +127,7 @@ func (vf *Verifier) Verify(s Setup) (*VerifyReport, error) {
 		return nil, err
 	}
 	rep := &VerifyReport{Setup: s, Seed: opt.Seed}
-	dampers := e.v.dampers(&s)
+	dampers := e.ref.dampers(&s)
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)
 	psd := make([]float64, nOut*len(e.f))

@@ -64,8 +64,52 @@ var slopeColumns = []struct {
 // one), feasible and balanced; then, for a refined front (Refined), each
 // objective's refined value and statistical error ("refined_grip_rel",
 // "refined_grip_rel_error"), refined_feasible, refined_rank and
-// refined_unsettled.
+// refined_unsettled; then, for a robust front (its solutions
+// carry Solution.robust), per objective its value on the nominal car,
+// its sd and its worst over the uncertain cars: "grip_rel_nominal",
+// "grip_rel_sd", "grip_rel_worst".
 func Columns(f *pb.Front) []string {
+	cols := baseColumns(f)
+	if !Robust(f) {
+		return cols
+	}
+	for _, o := range f.GetObjectives() {
+		c := ObjectiveColumn(o.GetKind())
+		cols = append(cols, c+"_nominal", c+"_sd", c+"_worst")
+	}
+	return cols
+}
+
+// Robust reports whether f is a robust front: a solution carries the
+// figures over the uncertain cars.
+func Robust(f *pb.Front) bool {
+	for _, s := range f.GetSolutions() {
+		if s.GetRobust() != nil {
+			return true
+		}
+	}
+	return false
+}
+
+// robustValues are a solution's robust columns: nominal, sd and worst per
+// objective, NaN-free as the solution is; nil values (an infeasible
+// solution without figures) where it has none.
+func robustValues(f *pb.Front, s *pb.Solution) []any {
+	var out []any
+	r := s.GetRobust()
+	for i := range f.GetObjectives() {
+		for _, vs := range [][]float64{r.GetNominal(), r.GetSd(), r.GetWorst()} {
+			if i < len(vs) {
+				out = append(out, vs[i])
+			} else {
+				out = append(out, nil)
+			}
+		}
+	}
+	return out
+}
+
+func baseColumns(f *pb.Front) []string {
 	cols := []string{"index"}
 	cols = append(cols, f.GetGeneNames()...)
 	for _, o := range f.GetObjectives() {
@@ -143,12 +187,23 @@ func row(f *pb.Front, s *pb.Solution, balanced bool) []any {
 		out = append(out, v)
 	}
 	out = append(out, OutOfBand(s), s.GetFeasible(), balanced)
-	if !Refined(f) {
-		return out
+	if Refined(f) {
+		out = append(out, refinedValues(f, s)...)
 	}
+	if Robust(f) {
+		out = append(out, robustValues(f, s)...)
+	}
+	return out
+}
+
+// refinedValues are a solution's refined columns: value and error per
+// objective (nil for a point whose check failed), then refined_feasible,
+// refined_rank and refined_unsettled.
+func refinedValues(f *pb.Front, s *pb.Solution) []any {
+	var out []any
 	r := s.GetRefined()
 	for k := range f.GetObjectives() {
-		var v, e any // none for a point whose check failed
+		var v, e any
 		if k < len(r.GetObjectives()) {
 			v, e = r.GetObjectives()[k], r.GetObjectiveErrors()[k]
 		}

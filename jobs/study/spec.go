@@ -38,6 +38,11 @@ type Spec struct {
 	// Refinement is the optional stage after the search: every front
 	// point checked on the nonlinear car (see Refinement); off by default.
 	Refinement Refinement
+	// Uncertainty, when not nil, makes the objectives robust: every setup
+	// is evaluated on the uncertain cars of its ranges, the objectives
+	// are their mean, worst or mean + k·sd, each constraint the worst
+	// over them (model.NewRobustProblem). Its Seed is the search's seed.
+	Uncertainty *model.Uncertainty
 }
 
 // Design is the design space as a spec gives it: model.DesignSpace with

@@ -352,7 +352,10 @@ type JobSpec struct {
 	LoadFraction float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
 	// The optional refinement of the front on the nonlinear car; absent
 	// means none.
-	Refinement    *Refinement `protobuf:"bytes,23,opt,name=refinement,proto3" json:"refinement,omitempty"`
+	Refinement *Refinement `protobuf:"bytes,23,opt,name=refinement,proto3" json:"refinement,omitempty"`
+	// Uncertainty ranges (fuel, tyre rate, aero): with them the objectives
+	// are robust over the uncertain cars; absent is the nominal car only.
+	Uncertainty   *Uncertainty `protobuf:"bytes,24,opt,name=uncertainty,proto3" json:"uncertainty,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -506,6 +509,13 @@ func (x *JobSpec) GetRefinement() *Refinement {
 	return nil
 }
 
+func (x *JobSpec) GetUncertainty() *Uncertainty {
+	if x != nil {
+		return x.Uncertainty
+	}
+	return nil
+}
+
 // Job is one optimisation run, a resource named "jobs/{job_id}".
 type Job struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -554,8 +564,11 @@ type Job struct {
 	// What the refinement did to the finished front (as front_check);
 	// unset without a refinement.
 	RefinementSummary *RefinementSummary `protobuf:"bytes,19,opt,name=refinement_summary,json=refinementSummary,proto3" json:"refinement_summary,omitempty"`
-	unknownFields     protoimpl.UnknownFields
-	sizeCache         protoimpl.SizeCache
+	// Uncertain cars each setup is evaluated on (the spec's uncertainty);
+	// 0 without uncertainty.
+	UncertainCars int32 `protobuf:"varint,20,opt,name=uncertain_cars,json=uncertainCars,proto3" json:"uncertain_cars,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
 }
 
 func (x *Job) Reset() {
@@ -719,6 +732,13 @@ func (x *Job) GetRefinementSummary() *RefinementSummary {
 		return x.RefinementSummary
 	}
 	return nil
+}
+
+func (x *Job) GetUncertainCars() int32 {
+	if x != nil {
+		return x.UncertainCars
+	}
+	return 0
 }
 
 // FrontCheck is the check of a finished front where the engineer acts on
@@ -958,7 +978,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x19dampfront/v1/refine.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x19dampfront/v1/refine.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -979,7 +999,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\xc1\a\n" +
+	"\r_mutation_eta\"\xfe\a\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -1007,10 +1027,11 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x128\n" +
 	"\n" +
 	"refinement\x18\x17 \x01(\v2\x18.dampfront.v1.RefinementR\n" +
-	"refinement\x1a9\n" +
+	"refinement\x12;\n" +
+	"\vuncertainty\x18\x18 \x01(\v2\x19.dampfront.v1.UncertaintyR\vuncertainty\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\x9f\a\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xc6\a\n" +
 	"\x03Job\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12\x15\n" +
 	"\x06job_id\x18\x02 \x01(\tR\x05jobId\x12!\n" +
@@ -1037,7 +1058,8 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\aclosest\x18\x11 \x03(\v2!.dampfront.v1.ConstraintShortfallR\aclosest\x129\n" +
 	"\vfront_check\x18\x12 \x01(\v2\x18.dampfront.v1.FrontCheckR\n" +
 	"frontCheck\x12N\n" +
-	"\x12refinement_summary\x18\x13 \x01(\v2\x1f.dampfront.v1.RefinementSummaryR\x11refinementSummary\x1a9\n" +
+	"\x12refinement_summary\x18\x13 \x01(\v2\x1f.dampfront.v1.RefinementSummaryR\x11refinementSummary\x12%\n" +
+	"\x0euncertain_cars\x18\x14 \x01(\x05R\runcertainCars\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x02\n" +
@@ -1116,9 +1138,10 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Manoeuvre)(nil),             // 19: dampfront.v1.Manoeuvre
 	(*Kerb)(nil),                  // 20: dampfront.v1.Kerb
 	(*Refinement)(nil),            // 21: dampfront.v1.Refinement
-	(*timestamppb.Timestamp)(nil), // 22: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 23: dampfront.v1.ConstraintShortfall
-	(*RefinementSummary)(nil),     // 24: dampfront.v1.RefinementSummary
+	(*Uncertainty)(nil),           // 22: dampfront.v1.Uncertainty
+	(*timestamppb.Timestamp)(nil), // 23: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 24: dampfront.v1.ConstraintShortfall
+	(*RefinementSummary)(nil),     // 25: dampfront.v1.RefinementSummary
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -1136,23 +1159,24 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	19, // 12: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
 	20, // 13: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
 	21, // 14: dampfront.v1.JobSpec.refinement:type_name -> dampfront.v1.Refinement
-	0,  // 15: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	8,  // 16: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	22, // 17: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	22, // 18: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	22, // 19: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	6,  // 20: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 21: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	6,  // 22: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	23, // 23: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 24: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	24, // 25: dampfront.v1.Job.refinement_summary:type_name -> dampfront.v1.RefinementSummary
-	22, // 26: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	27, // [27:27] is the sub-list for method output_type
-	27, // [27:27] is the sub-list for method input_type
-	27, // [27:27] is the sub-list for extension type_name
-	27, // [27:27] is the sub-list for extension extendee
-	0,  // [0:27] is the sub-list for field type_name
+	22, // 15: dampfront.v1.JobSpec.uncertainty:type_name -> dampfront.v1.Uncertainty
+	0,  // 16: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	8,  // 17: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	23, // 18: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	23, // 19: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	23, // 20: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	6,  // 21: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 22: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	6,  // 23: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	24, // 24: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 25: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	25, // 26: dampfront.v1.Job.refinement_summary:type_name -> dampfront.v1.RefinementSummary
+	23, // 27: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	28, // [28:28] is the sub-list for method output_type
+	28, // [28:28] is the sub-list for method input_type
+	28, // [28:28] is the sub-list for extension type_name
+	28, // [28:28] is the sub-list for extension extendee
+	0,  // [0:28] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -1164,6 +1188,7 @@ func file_dampfront_v1_job_proto_init() {
 	file_dampfront_v1_refine_proto_init()
 	file_dampfront_v1_road_proto_init()
 	file_dampfront_v1_transient_proto_init()
+	file_dampfront_v1_uncertainty_proto_init()
 	file_dampfront_v1_vehicle_proto_init()
 	file_dampfront_v1_job_proto_msgTypes[0].OneofWrappers = []any{}
 	type x struct{}
