@@ -89,6 +89,9 @@ func Check(s *Spec) (*Checked, error) {
 		p.add("search.polish_budget", "must be 0 (no polish) to %d evaluations per front point, got %d", MaxPolishBudget, b)
 	}
 	spec.Refinement.check(&p)
+	if spec.Refinement.Enabled && spec.Uncertainty != nil {
+		p.add("refinement.enabled", "cannot go with uncertainty: the time-domain check runs the nominal car, while the objectives are robust over the uncertain cars; leave one of them out")
+	}
 	if u := spec.Uncertainty; u != nil {
 		p.merge("uncertainty.", u.Validate(&spec.Vehicle))
 	}

@@ -46,3 +46,32 @@ func TestRankRefined(t *testing.T) {
 		t.Errorf("without errors %d points unsettled, want 0", sum.Unsettled)
 	}
 }
+
+// TestRefinementChecks: the refinement's settings are checked with the
+// spec, each problem at its path.
+func TestRefinementChecks(t *testing.T) {
+	t.Parallel()
+	s := testSpec()
+	seed := uint64(2)
+	s.Refinement = Refinement{Duration: 10, Seed: &seed}
+	_, err := Check(s)
+	if got := problemPaths(t, err); len(got) != 1 || got[0] != "refinement.enabled" {
+		t.Errorf("settings without enabled: problems at %v", got)
+	}
+	s.Refinement = Refinement{Enabled: true, Duration: -1, Sigmas: 11}
+	_, err = Check(s)
+	if got := problemPaths(t, err); len(got) != 2 || got[0] != "refinement.duration_s" || got[1] != "refinement.sigmas" {
+		t.Errorf("bad duration and sigmas: problems at %v", got)
+	}
+	s.Refinement = Refinement{Enabled: true}
+	c, err := Check(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The defaults are the time-domain check's (model.DefaultDuration,
+	// model.VerdictSigmas) and the search's seed.
+	r := c.Spec().Refinement
+	if r.Duration != model.DefaultDuration || r.Sigmas != model.VerdictSigmas || *r.Seed != *s.Search.Seed {
+		t.Errorf("defaults %+v (seed %d)", r, *r.Seed)
+	}
+}
