@@ -84,3 +84,35 @@ func (b *BumpStop) validate(p *problems, prefix string, gap float64) {
 		p.add(prefix+"deflection_m", "a bump-stop force curve needs the corner's bump_stop_gap_m (> 0), where it starts")
 	}
 }
+
+// BumpStopPoint is one point of a corner's bump-stop curve, at the wheel
+// as the vehicle gives it and at the damper for a rubber on the damper's
+// shaft: compression MR·δ and force F/MR with MR the damper's motion
+// ratio (the rubber referred through it as the damper is; the work
+// F·δ is the same at both ends).
+type BumpStopPoint struct {
+	Deflection float64 // compression past the gap at the wheel (m)
+	Force      float64 // force at the wheel (N)
+	// Rate is the slope of the segment ending at this point, at the
+	// wheel (N/m).
+	Rate             float64
+	DamperDeflection float64 // compression at the damper (m)
+	DamperForce      float64 // force at the damper (N)
+}
+
+// BumpStopPoints lists the corner's bump-stop curve (nil without one).
+func (c *Corner) BumpStopPoints() []BumpStopPoint {
+	b := &c.BumpStop
+	if !b.has() || len(b.Deflection) != len(b.Force) {
+		return nil
+	}
+	mr := c.DamperMotionRatio
+	out := make([]BumpStopPoint, len(b.Deflection))
+	x0, f0 := 0.0, 0.0
+	for k, x := range b.Deflection {
+		f := b.Force[k]
+		out[k] = BumpStopPoint{Deflection: x, Force: f, Rate: (f - f0) / (x - x0), DamperDeflection: mr * x, DamperForce: f / mr}
+		x0, f0 = x, f
+	}
+	return out
+}

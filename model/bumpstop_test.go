@@ -109,3 +109,31 @@ func TestBumpStopValidation(t *testing.T) {
 		t.Errorf("a good curve: %v", err)
 	}
 }
+
+// The points at the damper keep the work F·δ of each point (a rubber
+// referred through the motion ratio as a damper is), and each rate is
+// its segment's slope: values by hand for MR 0.8.
+func TestBumpStopPoints(t *testing.T) {
+	t.Parallel()
+	c := Corner{DamperMotionRatio: 0.8, BumpStop: BumpStop{Deflection: []float64{0.004, 0.010}, Force: []float64{400, 2400}}}
+	want := []BumpStopPoint{
+		{Deflection: 0.004, Force: 400, Rate: 1e5, DamperDeflection: 0.0032, DamperForce: 500},
+		{Deflection: 0.010, Force: 2400, Rate: 2000 / 0.006, DamperDeflection: 0.008, DamperForce: 3000},
+	}
+	got := c.BumpStopPoints()
+	if len(got) != len(want) {
+		t.Fatalf("%d points, want %d", len(got), len(want))
+	}
+	for k := range want {
+		g, w := got[k], want[k]
+		for _, p := range [][2]float64{{g.Deflection, w.Deflection}, {g.Force, w.Force}, {g.Rate, w.Rate}, {g.DamperDeflection, w.DamperDeflection}, {g.DamperForce, w.DamperForce}} {
+			if relErr(p[0], p[1]) > 1e-12 { // rounding
+				t.Errorf("point %d: %+v, want %+v", k, g, w)
+				break
+			}
+		}
+	}
+	if (&Corner{}).BumpStopPoints() != nil {
+		t.Error("points without a curve")
+	}
+}
