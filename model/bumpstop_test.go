@@ -53,14 +53,7 @@ func TestBumpStopStaticsHooke(t *testing.T) {
 	travel := func(v *Vehicle) (float64, int) {
 		d := linearDampers(v, 0.5)
 		c := prepare(t, v, man, nil, TransientOptions{}, &d)
-		m := c.tm
-		m.damp = d
-		var log sampleLog
-		m.integrate(c.in, c.steps, 0, c.h, c.x0, &log)
-		w, err := c.run(&d)
-		if err != nil {
-			t.Fatal(err)
-		}
+		log, w := logRun(t, c, &d)
 		defer c.pool.Put(w)
 		return log.out[len(log.out)-1][outTravel+FL], w.stop[FL]
 	}
