@@ -91,7 +91,7 @@ func Verify(v Vehicle, cases []RoadCase, s Setup, opt VerifyOptions) (*VerifyRep
 		return nil, err
 	}
 	rep := &VerifyReport{Setup: s, Seed: opt.Seed}
-	dampers := e.v.dampers(&s)
+	dampers := e.ref.dampers(&s)
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)
 	psd := make([]float64, nOut*len(e.f))
