@@ -110,7 +110,7 @@ func NewVerifier(v Vehicle, cases []RoadCase, opt VerifyOptions) (*Verifier, err
 		return nil, err
 	}
 	var p problems
-	p.merge("time.", opt.Time.validate(&v))
+	p.merge("time.", opt.Time.validate())
 	if err := p.err(); err != nil {
 		return nil, err
 	}
