@@ -209,8 +209,7 @@ func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
 			return err
 		}
 	}
-	corners := [4]wheelDamper(dampers[:4])
-	return e.evaluateTransients(&corners, dst)
+	return e.evaluateTransients(&dampers, dst)
 }
 
 // evaluateCase runs the linearisation to its fixed point on case ci and

@@ -148,9 +148,12 @@ type timeModel struct {
 	a, b   float64
 	tf, tr float64
 	// width is the number of input values per half-step sample: 8 (the
-	// road, w and ẇ) or inWidthForced (then nDOF generalised forces
-	// follow, see timeModel.accel).
+	// road, w and ẇ), inWidthForced (then nDOF generalised forces
+	// follow, see timeModel.accel) or inWidthSpeed (then the speed ratio
+	// q, see aeroSpeed).
 	width int
+	ka    [2][2]float64    // aero stiffness at the operating point (N/m), for aeroSpeed
+	axle  [2][nDOF]float64 // the axle rows T_a (see Vehicle.axleRows)
 	// xTerms and inTerms are the non-zero entries of K, C and of Bk, Bc
 	// (see sparseTerms): the matrices are mostly zero, and accel is the
 	// hot loop of every time-domain run.
@@ -197,7 +200,7 @@ type sampleRecorder interface {
 func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) (*timeModel, error) {
 	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.dampers(s), static: op.TyreLoad,
 		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, width: inWidthRoad,
-		heave: v.hasHeave(), mr3: v.heaveRatios(), packer: op.PackerGap}
+		heave: v.hasHeave(), mr3: v.heaveRatios(), packer: op.PackerGap, ka: op.AeroStiffness, axle: v.axleRows()}
 	for ax := range m.kp {
 		m.kp[ax] = v.Heave[ax].PackerRate
 	}
@@ -242,7 +245,9 @@ type timeSample struct {
 // that would pull the tyre down (P_i its static load): the tyre force
 // P_i + T_i is clipped at zero. An input sample of inWidthForced values
 // carries generalised forces f_e after the road (a manoeuvre's inertial
-// and link loads, see inertialLoads), added to the right-hand side. When
+// and link loads, see inertialLoads), added to the right-hand side, and
+// one of inWidthSpeed also the speed ratio q whose aero stiffness
+// q K_a adds its force (see aeroSpeed). When
 // o is not nil it also receives the outputs, the heave acceleration
 // included.
 // A heave element adds R_hᵀ(F_h + P_h) to the sum, R_h = (D_L + D_R)/2
@@ -254,6 +259,9 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 	var f [nDOF]float64
 	if len(in) >= inWidthForced {
 		copy(f[:], in[inWidthRoad:inWidthForced])
+		if len(in) > inWidthForced {
+			m.aeroSpeed(x, in, in[inWidthForced], &f)
+		}
 	}
 	in = in[:inWidthRoad]
 	for _, t := range m.xTerms {
