@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"slices"
 	"testing"
 
 	"github.com/MaxHalford/eaopt"
@@ -76,7 +77,7 @@ func TestDifferentialChildLaw(t *testing.T) {
 		if !found {
 			t.Fatalf("child %v of base %v is not x1 + F (x2 − x3) for distinct survivors", c.genes, x1)
 		}
-		if changed := !slicesEqual(c.genes, x1); c.evaluated == changed {
+		if changed := !slices.Equal(c.genes, x1); c.evaluated == changed {
 			t.Fatalf("child %v of %v: evaluated %v", c.genes, x1, c.evaluated)
 		}
 	}
@@ -168,13 +169,4 @@ func TestDifferentialCheckpoint(t *testing.T) {
 	if ck, _ := again.Checkpoint(); !bytes.Equal(ck, polished) {
 		t.Error("polished differential checkpoint does not restore to the same bytes")
 	}
-}
-
-func slicesEqual(a, b []float64) bool {
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return len(a) == len(b)
 }
