@@ -59,4 +59,3 @@ func TestDifferentialVariationSpec(t *testing.T) {
 		t.Error("the differential job gives the SBX job's front: the variation did not reach the search")
 	}
 }
-

@@ -21,12 +21,12 @@ func (e *Evaluator) SetTransientCases(ms []Manoeuvre, ks []Kerb, opt TransientOp
 	if len(ms) > 0 && !(e.v.LoadPaths.CGHeight > 0) {
 		p.add("vehicle.load_paths.cg_height_m", "is needed by the manoeuvre cases, got %s", num(e.v.LoadPaths.CGHeight))
 	}
-	p.merge("transient.", opt.validate(&e.v))
+	p.merge("transient.", opt.validate())
 	if err := p.err(); err != nil {
 		return err
 	}
 	opt = opt.withDefaults()
-	cc, hc := e.v.CriticalDamping(), e.v.HeaveCriticalDamping()
+	cc, hc := e.ref.CriticalDamping(), e.ref.HeaveCriticalDamping()
 	var slope [nDamp]float64
 	for i := range cc {
 		slope[i] = opt.MaxRatio * cc[i]
@@ -114,7 +114,7 @@ func (e *Evaluator) History(s Setup, i int) (*TransientHistory, error) {
 	if i < 0 || i >= len(e.transients) {
 		return nil, &ValidationError{Problems: []FieldError{{Field: "case", Reason: fmt.Sprintf("must be in [0, %d), got %d", len(e.transients), i)}}}
 	}
-	d := e.v.dampers(&s)
+	d := e.ref.dampers(&s)
 	c, err := e.transients[i].coveringCase(&d)
 	if err != nil {
 		return nil, err

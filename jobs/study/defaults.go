@@ -142,6 +142,13 @@ func WithDefaults(s *Spec) *Spec {
 		orDefault(&q.DifferentialWeight, optimizer.DefaultDifferentialWeight)
 		orDefault(&q.DifferentialCrossover, optimizer.DefaultDifferentialCrossover)
 	}
+	if s.Uncertainty != nil {
+		// The method, measure and point count are the model's defaults;
+		// the sample's seed is the job's one seed.
+		u := s.Uncertainty.WithDefaults()
+		u.Seed = *q.Seed
+		out.Uncertainty = &u
+	}
 	return &out
 }
 
