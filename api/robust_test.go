@@ -103,6 +103,12 @@ func TestRobustSpecDefaultsAndPaths(t *testing.T) {
 			t.Errorf("error %v does not name %s", err, want)
 		}
 	}
+	empty := testSpec(2)
+	empty.Uncertainty = &pb.Uncertainty{}
+	_, err = SpecToModel(empty)
+	if err == nil || !strings.Contains(err.Error(), "spec.uncertainty: gives no range") {
+		t.Errorf("an uncertainty without ranges: %v, want it refused at spec.uncertainty", err)
+	}
 }
 
 // TestRobustWorkCountsTheCars: a robust job's work and a robust
