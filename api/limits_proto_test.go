@@ -23,6 +23,7 @@ var protoLimits = map[string]string{
 	"Corner.unsprung_mass_kg": "Corner.unsprung_mass_kg", "Corner.tyre_rate_n_per_m": "Corner.tyre_rate_n_per_m",
 	"Corner.tyre_damping_n_s_per_m": "Corner.tyre_damping_n_s_per_m", "Corner.tyre_envelope_length_m": "Corner.tyre_envelope_length_m",
 	"Corner.bump_stop_gap_m": "Corner.bump_stop_gap_m", "Corner.sprung_load_n": "Corner.sprung_load_n",
+	"BumpStop.deflection_m": "BumpStop.deflection_m", "BumpStop.force_n": "BumpStop.force_n",
 	"AntiRollBar.wheel_rate_n_per_m": "AntiRollBar.wheel_rate_n_per_m", "AntiRollBar.bar_rate_n_per_m": "AntiRollBar.bar_rate_n_per_m",
 	"AntiRollBar.motion_ratio": "AntiRollBar.motion_ratio", "HeaveElement.motion_ratio": "HeaveElement.motion_ratio",
 	"HeaveElement.spring_rate_n_per_m": "HeaveElement.spring_rate_n_per_m", "HeaveElement.packer_gap_m": "HeaveElement.packer_gap_m",

@@ -26,9 +26,6 @@ func (k TransientKind) String() string {
 // TransientOptions tune the manoeuvre and kerb cases. The zero value
 // gives the defaults.
 type TransientOptions struct {
-	// BumpStops are the bump rubbers of the front and rear axle; nil
-	// means none (the travel beyond the gap is then only counted).
-	BumpStops [2]*BumpStop
 	// LoadFraction is the fraction of its static load at speed below
 	// which a tyre counts as unloaded (TransientMetrics.TimeBelow);
 	// 0 means 0.5.
@@ -71,12 +68,11 @@ func (o TransientOptions) withDefaults() TransientOptions {
 	return o
 }
 
-func (o TransientOptions) validate(v *Vehicle) error {
+func (o TransientOptions) validate() error {
 	var p problems
 	p.inOrZero("load_fraction", o.LoadFraction, "Transient.load_fraction")
 	p.nonNegative("max_ratio", o.MaxRatio)
 	p.nonNegative("step_s", o.Step)
-	p.merge("", TimeOptions{BumpStops: o.BumpStops}.validate(v))
 	return p.err()
 }
 
@@ -163,10 +159,7 @@ func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptio
 		return fail(err)
 	}
 	c.op = op
-	tm, err := newTimeModel(v, &Setup{}, &op, opt.BumpStops)
-	if err != nil {
-		return fail(err)
-	}
+	tm := newTimeModel(v, &Setup{}, &op)
 	tm.width = inWidthForced
 	if c.speedFollows() {
 		tm.width = inWidthSpeed

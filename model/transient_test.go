@@ -206,6 +206,22 @@ func TestTransientSingleRollDOF(t *testing.T) {
 	}
 }
 
+// logRun integrates case c for the dampers d keeping every sample, and
+// runs it as its metrics do; the caller returns the workspace with
+// c.pool.Put.
+func logRun(t testing.TB, c *transientCase, d *[nDamp]wheelDamper) (*sampleLog, *transientWork) {
+	t.Helper()
+	m := c.tm
+	m.damp = *d
+	var log sampleLog
+	m.integrate(c.in, c.steps, 0, c.h, c.x0, &log)
+	w, err := c.run(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return &log, w
+}
+
 // sampleLog keeps every recorded sample's outputs.
 type sampleLog struct {
 	out [][nOut]float64
@@ -333,16 +349,9 @@ func kerbAgainstFrequencyDomain(t *testing.T, v Vehicle, d [nDamp]wheelDamper) {
 	}
 	kerb := &Kerb{Name: "kerb", Shape: KerbHalfSine, Side: KerbLeft, Height: 0.005, Length: 1.2, Speed: 25, Duration: 4}
 	c := prepare(t, &v, nil, kerb, TransientOptions{Step: 1e-4}, &d)
-	m := c.tm
-	m.damp = d
-	var log sampleLog
-	m.integrate(c.in, c.steps, 0, c.h, c.x0, &log)
 	// The case's own run (what its metrics read) integrates the same
 	// dampers, heave dampers included: the same bits.
-	w, err := c.run(&d)
-	if err != nil {
-		t.Fatal(err)
-	}
+	log, w := logRun(t, c, &d)
 	defer c.pool.Put(w)
 	for k := range w.roll {
 		if w.roll[k] != log.out[k][outRoll] || w.tyre[RL][k] != log.out[k][outTyre+RL] {

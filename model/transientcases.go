@@ -21,7 +21,7 @@ func (e *Evaluator) SetTransientCases(ms []Manoeuvre, ks []Kerb, opt TransientOp
 	if len(ms) > 0 && !(e.v.LoadPaths.CGHeight > 0) {
 		p.add("vehicle.load_paths.cg_height_m", "is needed by the manoeuvre cases, got %s", num(e.v.LoadPaths.CGHeight))
 	}
-	p.merge("transient.", opt.validate(&e.v))
+	p.merge("transient.", opt.validate())
 	if err := p.err(); err != nil {
 		return err
 	}

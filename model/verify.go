@@ -86,7 +86,7 @@ func Verify(v Vehicle, cases []RoadCase, s Setup, opt VerifyOptions) (*VerifyRep
 	var p problems
 	p.merge("setup.", s.Validate())
 	p.merge("setup.", e.v.CheckSetup(&s))
-	p.merge("time.", opt.Time.validate(&v))
+	p.merge("time.", opt.Time.validate())
 	if err := p.err(); err != nil {
 		return nil, err
 	}
