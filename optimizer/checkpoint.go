@@ -13,6 +13,7 @@ import (
 //
 //	magic "dfnsga2\n", version u32 (= checkpointVersion)
 //	settings:  Settings.fingerprint, u64 each;
+//	           (version 4 only) Settings.variationFingerprint, u64 each;
 //	           ReferencePoint: present u8 [+ M f64]
 //	problem:   genes u32, bounds (Lo, Hi f64) per gene, M u32, constraints u32
 //	state:     started u8, generation u64, evaluations u64,
@@ -25,8 +26,8 @@ import (
 //	           reason str (version 2 on; version 1 has no such part)
 //	history:   count u32; per entry generation u64, evaluations u64,
 //	           hypervolume f64, best: present u8 [+ M f64]
-//	polish:    (version 3 only) points u64, evaluations u64, improved u64,
-//	           hypervolume f64
+//	polish:    (version 3) points u64, evaluations u64, improved u64,
+//	           hypervolume f64; (version 4) present u8 [+ the same]
 //	checksum   CRC-32 (IEEE) of everything before it, u32
 //
 // where str is a u32 length and the bytes. The settings and problem shape
@@ -36,12 +37,26 @@ import (
 // that has found no feasible point yet fills it again from the next
 // generation on). Version 3 is written only by a polished search (see
 // Search.Polish), so an unpolished search keeps writing the bytes of
-// version 2.
+// version 2. Version 4 is written only by a search whose Variation is not
+// VariationSBX, so searches with the earlier settings keep writing the
+// bytes of versions 2 and 3.
 const (
 	checkpointMagic   = "dfnsga2\n"
-	checkpointVersion = 3
+	checkpointVersion = 4
 	unpolishedVersion = 2
+	polishedVersion   = 3
 )
+
+// version is the checkpoint version s writes.
+func (s *Search) version() uint32 {
+	switch {
+	case s.settings.Variation != VariationSBX:
+		return checkpointVersion
+	case s.polish != nil:
+		return polishedVersion
+	}
+	return unpolishedVersion
+}
 
 // Checkpoint returns the full state of the search: populations, archive,
 // generation, counters, reference point, history and the settings that
@@ -49,14 +64,16 @@ const (
 func (s *Search) Checkpoint() ([]byte, error) {
 	var e encoder
 	e.buf = append(e.buf, checkpointMagic...)
-	if s.polish != nil {
-		e.u32(checkpointVersion)
-	} else {
-		e.u32(unpolishedVersion)
-	}
+	version := s.version()
+	e.u32(version)
 
 	for _, f := range s.settings.fingerprint() {
 		e.u64(f.bits)
+	}
+	if version >= 4 {
+		for _, f := range s.settings.variationFingerprint() {
+			e.u64(f.bits)
+		}
 	}
 	e.optional(s.settings.ReferencePoint)
 
@@ -111,6 +128,9 @@ func (s *Search) Checkpoint() ([]byte, error) {
 		e.f64(p.Hypervolume)
 		e.optional(p.Best)
 	}
+	if version >= 4 {
+		e.bool(s.polish != nil)
+	}
 	if r := s.polish; r != nil {
 		e.u64(uint64(r.Points))
 		e.u64(uint64(r.Evaluations))
@@ -143,7 +163,7 @@ func Restore(p Problem, s Settings, checkpoint []byte) (*Search, error) {
 	if v < 1 || v > checkpointVersion {
 		return nil, fmt.Errorf("%w: version %d, this package reads 1 to %d", ErrCheckpoint, v, checkpointVersion)
 	}
-	if err := st.readSettings(&d); err != nil {
+	if err := st.readSettings(&d, v); err != nil {
 		return nil, err
 	}
 	if err := st.readState(&d, v); err != nil {
@@ -158,15 +178,24 @@ func Restore(p Problem, s Settings, checkpoint []byte) (*Search, error) {
 	return st, nil
 }
 
-// readSettings compares the stored settings and problem shape with the
-// search's.
-func (s *Search) readSettings(d *decoder) error {
+// readSettings compares the stored settings and problem shape of a
+// checkpoint of the given version with the search's.
+func (s *Search) readSettings(d *decoder, version uint32) error {
 	st := &s.settings
 	mismatch := func(field string, stored, given any) error {
 		return &FieldError{Field: field, Msg: fmt.Sprintf("checkpoint was written with %v, given %v", stored, given)}
 	}
 	for _, f := range st.fingerprint() {
 		if v := d.u64(); d.err == nil && v != f.bits {
+			return mismatch("Settings."+f.field, f.show(v), f.show(f.bits))
+		}
+	}
+	for _, f := range st.variationFingerprint() {
+		v := uint64(0) // before version 4: SBX, weights 0
+		if version >= 4 {
+			v = d.u64()
+		}
+		if d.err == nil && v != f.bits {
 			return mismatch("Settings."+f.field, f.show(v), f.show(f.bits))
 		}
 	}
@@ -259,7 +288,7 @@ func (s *Search) readState(d *decoder, version uint32) error {
 		d.fail("%d history entries for generation %d", len(s.history), s.generation)
 	}
 	s.polish = nil
-	if version >= 3 {
+	if version == 3 || version >= 4 && d.bool() {
 		s.polish = &PolishReport{Points: d.int(), Evaluations: d.int(), Improved: d.int(), Hypervolume: d.f64()}
 	}
 	return d.err
