@@ -93,7 +93,7 @@ func Check(s *Spec) (*Checked, error) {
 		p.add("refinement.enabled", "cannot go with uncertainty: the time-domain check runs the nominal car, while the objectives are robust over the uncertain cars; leave one of them out")
 	}
 	if u := spec.Uncertainty; u != nil {
-		p.merge("uncertainty.", u.Validate(&spec.Vehicle))
+		p.mergeMapped(func(f string) string { return strings.TrimSuffix("uncertainty."+f, ".") }, u.Validate(&spec.Vehicle))
 	}
 	if err := p.err(); err != nil {
 		return nil, err
