@@ -25,8 +25,8 @@ import (
 //	           reason str (version 2 on; version 1 has no such part)
 //	history:   count u32; per entry generation u64, evaluations u64,
 //	           hypervolume f64, best: present u8 [+ M f64]
-//	polish:    (version 3 only) points u64, evaluations u64, improved u64,
-//	           hypervolume f64
+//	polish:    (version 3 on) points u64, evaluations u64, improved u64,
+//	           hypervolume f64; (version 4) rounds u64, replaced u64
 //	checksum   CRC-32 (IEEE) of everything before it, u32
 //
 // where str is a u32 length and the bytes. The settings and problem shape
@@ -36,10 +36,12 @@ import (
 // that has found no feasible point yet fills it again from the next
 // generation on). Version 3 is written only by a polished search (see
 // Search.Polish), so an unpolished search keeps writing the bytes of
-// version 2.
+// version 2; version 4 only by a polish that ran neighbourhood rounds
+// (Polish.Neighbourhood), so a polish without them keeps version 3.
 const (
 	checkpointMagic   = "dfnsga2\n"
-	checkpointVersion = 3
+	checkpointVersion = 4
+	polishedVersion   = 3
 	unpolishedVersion = 2
 )
 
@@ -49,9 +51,12 @@ const (
 func (s *Search) Checkpoint() ([]byte, error) {
 	var e encoder
 	e.buf = append(e.buf, checkpointMagic...)
-	if s.polish != nil {
+	switch {
+	case s.polish != nil && s.polish.Rounds > 0:
 		e.u32(checkpointVersion)
-	} else {
+	case s.polish != nil:
+		e.u32(polishedVersion)
+	default:
 		e.u32(unpolishedVersion)
 	}
 
@@ -116,6 +121,10 @@ func (s *Search) Checkpoint() ([]byte, error) {
 		e.u64(uint64(r.Evaluations))
 		e.u64(uint64(r.Improved))
 		e.f64(r.Hypervolume)
+		if r.Rounds > 0 {
+			e.u64(uint64(r.Rounds))
+			e.u64(uint64(r.Replaced))
+		}
 	}
 	e.u32(crc32.ChecksumIEEE(e.buf))
 	return e.buf, nil
@@ -261,6 +270,12 @@ func (s *Search) readState(d *decoder, version uint32) error {
 	s.polish = nil
 	if version >= 3 {
 		s.polish = &PolishReport{Points: d.int(), Evaluations: d.int(), Improved: d.int(), Hypervolume: d.f64()}
+	}
+	if version >= 4 {
+		s.polish.Rounds, s.polish.Replaced = d.int(), d.int()
+		if d.err == nil && s.polish.Rounds == 0 {
+			d.fail("version 4 with no neighbourhood rounds")
+		}
 	}
 	return d.err
 }

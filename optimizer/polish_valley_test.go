@@ -55,7 +55,7 @@ func TestPolishDiagonalValley(t *testing.T) {
 		for _, seed := range []uint64{1, 2, 3} {
 			pol := DefaultPolish(seed)
 			pol.Budget, pol.Descent = 40, tc.descent
-			found, evals, err := polishPoints(context.Background(), prob, shape, []*Solution{start}, pol)
+			found, evals, err := polishPoints(context.Background(), prob, shape, []*Solution{start}, asfWeights([]*Solution{start}, shape.nObj), pol, 0)
 			if err != nil {
 				t.Fatal(err)
 			}
