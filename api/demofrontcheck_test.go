@@ -95,4 +95,3 @@ func TestPolishedFrontCheck(t *testing.T) {
 		t.Errorf("with the rounds %d of %d points are beaten (%d rounds)", with.Beaten, with.Points, with.PolishRounds)
 	}
 }
-
