@@ -80,6 +80,7 @@ func jobToProto(j *jobs.Job, full bool) (*pb.Job, error) {
 		ErrorMessage:    j.Error,
 		Partial:         j.Partial,
 		CancelRequested: j.CancelRequested,
+		UncertainCars:   uncertainCars(spec),
 	}
 	if full {
 		out.Spec = spec

@@ -17,7 +17,7 @@ var cornerPositions = [4]pb.CornerPosition{
 // solutionToProto converts a solution's detail.
 func solutionToProto(s *study.Solution) *pb.Solution {
 	out := &pb.Solution{Genes: s.Genes, Setup: setupToProto(s.Setup), Objectives: s.Objectives, Violations: s.Violations,
-		Feasible: s.Feasible, InfeasibleReason: s.InfeasibleReason, Warnings: s.Warnings}
+		Feasible: s.Feasible, InfeasibleReason: s.InfeasibleReason, Warnings: s.Warnings, Robust: robustToProto(s.Robust)}
 	for i := range s.Cases {
 		out.CaseMetrics = append(out.CaseMetrics, caseMetricsToProto(&s.Cases[i]))
 	}

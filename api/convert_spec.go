@@ -29,6 +29,7 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 		Adjustment:   adjustmentFromProto(s.GetAdjustment()),
 		Adjusters:    adjustersFromProto(s.GetAdjusters()),
 		Curves:       study.Curves{MaxVelocity: s.GetCurves().GetMaxVelocityMPerS(), Points: int(s.GetCurves().GetPoints())},
+		Uncertainty:  uncertaintyFromProto(s.GetUncertainty(), at("uncertainty"), p),
 	}
 	if ref := s.GetReferenceSetup(); ref != nil {
 		r := setupFromProto(ref, at("reference_setup"), p)
@@ -118,6 +119,8 @@ func fillDefaults(spec *pb.JobSpec, d *study.Spec) *pb.JobSpec {
 	if s.ReferenceSetup == nil && d.Reference != nil {
 		s.ReferenceSetup = setupToProto(*d.Reference)
 	}
+
+	fillUncertaintyDefaults(s.Uncertainty, d.Uncertainty)
 
 	if s.Curves == nil {
 		s.Curves = &pb.CurveSettings{}

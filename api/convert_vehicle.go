@@ -49,6 +49,9 @@ func vehicleFromProto(v *pb.Vehicle, path string, p *problems) model.Vehicle {
 			BumpStopGap:        c.GetBumpStopGapM(),
 			SprungLoad:         c.GetSprungLoadN(),
 		}
+		if b := c.GetBumpStop(); b != nil {
+			out.Corners[i].BumpStop = model.BumpStop{Deflection: cloneOrNil(b.GetDeflectionM()), Force: cloneOrNil(b.GetForceN())}
+		}
 	}
 	for _, r := range v.GetReferencePoints() {
 		out.ReferencePoints = append(out.ReferencePoints, model.ReferencePoint{Name: r.GetName(), X: r.GetXFromFrontAxleM(),

@@ -23,6 +23,7 @@ var protoLimits = map[string]string{
 	"Corner.unsprung_mass_kg": "Corner.unsprung_mass_kg", "Corner.tyre_rate_n_per_m": "Corner.tyre_rate_n_per_m",
 	"Corner.tyre_damping_n_s_per_m": "Corner.tyre_damping_n_s_per_m", "Corner.tyre_envelope_length_m": "Corner.tyre_envelope_length_m",
 	"Corner.bump_stop_gap_m": "Corner.bump_stop_gap_m", "Corner.sprung_load_n": "Corner.sprung_load_n",
+	"BumpStop.deflection_m": "BumpStop.deflection_m", "BumpStop.force_n": "BumpStop.force_n",
 	"AntiRollBar.wheel_rate_n_per_m": "AntiRollBar.wheel_rate_n_per_m", "AntiRollBar.bar_rate_n_per_m": "AntiRollBar.bar_rate_n_per_m",
 	"AntiRollBar.motion_ratio": "AntiRollBar.motion_ratio", "HeaveElement.motion_ratio": "HeaveElement.motion_ratio",
 	"HeaveElement.spring_rate_n_per_m": "HeaveElement.spring_rate_n_per_m", "HeaveElement.packer_gap_m": "HeaveElement.packer_gap_m",
@@ -60,6 +61,12 @@ var protoLimits = map[string]string{
 	"Kerb.height_m": "Kerb.height_m", "Kerb.length_m": "Kerb.length_m", "Kerb.ramp_m": "Kerb.length_m", "Kerb.speed_m_per_s": "RoadCase.speed_m_per_s",
 	"Kerb.start_s": "Manoeuvre.time_s", "Kerb.duration_s": "Manoeuvre.time_s", "Kerb.weight": "RoadCase.weight",
 	"JobSpec.load_fraction": "Transient.load_fraction",
+
+	"Uncertainty.fuel_mass_kg": "Uncertainty.fuel_mass_kg", "Uncertainty.fuel_position_m": "Uncertainty.fuel_position_m",
+	"Uncertainty.fuel_height_m": "LoadPaths.height_m", "Uncertainty.tyre_rate_scale": "Uncertainty.tyre_rate_scale",
+	"Uncertainty.front_tyre_rate_scale": "Uncertainty.tyre_rate_scale", "Uncertainty.rear_tyre_rate_scale": "Uncertainty.tyre_rate_scale",
+	"Uncertainty.downforce_scale": "Uncertainty.downforce_scale", "Uncertainty.balance_shift": "Uncertainty.balance_shift",
+	"Uncertainty.aero_stiffness_scale": "Uncertainty.aero_stiffness_scale", "Uncertainty.k": "Uncertainty.k",
 }
 
 // TestProtoCommentsStateTheRanges: the comment of every physical field in

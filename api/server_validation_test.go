@@ -130,6 +130,15 @@ var badSpecs = []struct {
 	// road case; each is reported.
 	{"unstable at speed", func(s *pb.JobSpec) { s.Vehicle.Aero.RearStiffnessNPerM = 4e6 },
 		[]string{"spec.road_cases[0].speed_m_per_s", "spec.road_cases[1].speed_m_per_s"}},
+	// A bump-stop force curve: a falling force, a NaN compression, and a
+	// curve on a corner without a gap.
+	{"bump-stop curves: falling, NaN, no gap", func(s *pb.JobSpec) {
+		s.Vehicle.Corners[0].BumpStop = &pb.BumpStop{DeflectionM: []float64{0.004, 0.01}, ForceN: []float64{800, 400}}
+		s.Vehicle.Corners[1].BumpStop = &pb.BumpStop{DeflectionM: []float64{math.NaN()}, ForceN: []float64{800}}
+		s.Vehicle.Corners[2].BumpStopGapM = 0
+		s.Vehicle.Corners[2].BumpStop = &pb.BumpStop{DeflectionM: []float64{0.01}, ForceN: []float64{800}}
+	}, []string{"spec.vehicle.corners[0].bump_stop.force_n[1]", "spec.vehicle.corners[1].bump_stop.deflection_m[0]",
+		"spec.vehicle.corners[2].bump_stop.deflection_m"}},
 	// Reference points and what needs them.
 	{"reference points: no name, both positions, a name twice, off the car", func(s *pb.JobSpec) {
 		s.Vehicle.ReferencePoints = []*pb.ReferencePoint{

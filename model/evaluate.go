@@ -22,6 +22,11 @@ type EvaluatorOptions struct {
 	WarnThreshold float64
 	// General forces the full 7-DOF path even for a symmetric car.
 	General bool
+	// DampingReference is the car whose critical damping a setup's ratios
+	// are taken of (see Vehicle.CriticalDamping); nil is the evaluator's
+	// own. An uncertain car (Perturbation.Apply) takes the nominal car's,
+	// so that every car runs the same dampers.
+	DampingReference *Vehicle
 }
 
 func (o EvaluatorOptions) withDefaults() EvaluatorOptions {
@@ -45,6 +50,7 @@ func (o EvaluatorOptions) withDefaults() EvaluatorOptions {
 // when dst has room for the cases.
 type Evaluator struct {
 	v     Vehicle
+	ref   *Vehicle // the car the setups' ratios refer to (EvaluatorOptions.DampingReference)
 	opt   EvaluatorOptions
 	f     []float64    // grid frequencies (Hz)
 	omega []float64    // 2πf
@@ -106,6 +112,11 @@ func NewEvaluatorContext(ctx context.Context, v Vehicle, cases []RoadCase, opt E
 		return nil, err
 	}
 	e := &Evaluator{v: v, opt: opt}
+	e.ref = &e.v
+	if opt.DampingReference != nil {
+		ref := *opt.DampingReference
+		e.ref, e.opt.DampingReference = &ref, nil
+	}
 	e.f = opt.Grid.Frequencies()
 	e.wts = opt.Grid.weights(e.f)
 	e.bands, _ = opt.Grid.bandWeights(e.f)
@@ -203,14 +214,13 @@ func (e *Evaluator) Evaluate(s Setup, dst *Result) error {
 	dst.Cases = dst.Cases[:len(e.cases)]
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)
-	dampers := e.v.dampers(&s)
+	dampers := e.ref.dampers(&s)
 	for i := range e.cases {
 		if err := e.evaluateCase(i, &dampers, ws, &dst.Cases[i], nil); err != nil {
 			return err
 		}
 	}
-	corners := [4]wheelDamper(dampers[:4])
-	return e.evaluateTransients(&corners, dst)
+	return e.evaluateTransients(&dampers, dst)
 }
 
 // evaluateCase runs the linearisation to its fixed point on case ci and

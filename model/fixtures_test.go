@@ -58,17 +58,13 @@ func systemAt(t testing.TB, v *Vehicle, speed float64) *system {
 
 // timeModelAt builds the time-domain model of v about its operating point
 // at speed.
-func timeModelAt(t testing.TB, v *Vehicle, s *Setup, speed float64, stops [2]*BumpStop) *timeModel {
+func timeModelAt(t testing.TB, v *Vehicle, s *Setup, speed float64) *timeModel {
 	t.Helper()
 	op, err := v.operatingPoint(speed)
 	if err != nil {
 		t.Fatal(err)
 	}
-	m, err := newTimeModel(v, s, &op, stops)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return m
+	return newTimeModel(v, s, &op)
 }
 
 // crossAeroCar is the demo car with a first-order ride-height aero map

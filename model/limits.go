@@ -160,6 +160,20 @@ var plausible = map[string]Limit{
 	"Kerb.length_m":                   {Min: 0.05, Max: 20, Unit: "m", Slips: slipMm},
 	"Transient.load_fraction":         {Min: 0, Max: 1, OpenMin: true},
 	"Constraint.time_s":               {Min: 0, Max: 60, OpenMin: true, Unit: "s"},
+
+	// The uncertainty ranges (common practice, no source): a race car's
+	// fuel load is tens of kilograms up to about 120 kg, its tank within a
+	// metre of the CG; hot and cold tyres, pressures and wear move the
+	// tyre rate by some ±20 %; wing settings and air density the
+	// downforce by ±20 % and the balance by a few per cent. The ranges
+	// leave a margin; a value beyond is more likely a slip.
+	"Uncertainty.fuel_mass_kg":         {Min: -300, Max: 300, Unit: "kg"},
+	"Uncertainty.fuel_position_m":      {Min: -3, Max: 3, Unit: "m", Slips: slipMm},
+	"Uncertainty.tyre_rate_scale":      {Min: 0.5, Max: 1.5, Slips: slipPercent},
+	"Uncertainty.downforce_scale":      {Min: 0.5, Max: 1.5, Slips: slipPercent},
+	"Uncertainty.balance_shift":        {Min: -0.2, Max: 0.2, Slips: slipPercent},
+	"Uncertainty.aero_stiffness_scale": {Min: 0, Max: 3, Slips: slipPercent},
+	"Uncertainty.k":                    {Min: 0, Max: 5},
 }
 
 // PlausibleRanges returns the limits of every physical input, by the

@@ -272,6 +272,9 @@ type Problem struct {
 	// reference holds, per objective, its value on every road case for
 	// the reference setup; nil for objectives not normalised.
 	reference [][]float64
+	// robust, when not nil, evaluates every setup over uncertain cars
+	// (NewRobustProblem).
+	robust *robustSet
 }
 
 // NewProblem checks the design space, objectives and constraints (see
@@ -389,7 +392,13 @@ func (s *Problem) NumConstraints() int { return len(s.constraints) }
 // EvaluateGenes evaluates the setup decoded from x and writes the
 // objective values to obj and the constraint violations to viol
 // (max(0, value/limit - 1), 0 when satisfied).
+//
+// A robust problem (NewRobustProblem) gives the robust objectives and
+// the worst violations over its uncertain cars (EvaluateRobust).
 func (s *Problem) EvaluateGenes(x, obj, viol []float64) error {
+	if s.robust != nil {
+		return s.EvaluateRobust(s.design.Decode(x), obj, viol, nil)
+	}
 	r := s.pool.Get().(*Result)
 	defer s.pool.Put(r)
 	if err := s.eval.Evaluate(s.design.Decode(x), r); err != nil {

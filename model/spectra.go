@@ -30,7 +30,7 @@ func (e *Evaluator) Spectra(s Setup, ci int) (*Spectra, *CaseMetrics, error) {
 	}
 	n := len(e.f)
 	psd := make([]float64, nOut*n)
-	dampers := e.v.dampers(&s)
+	dampers := e.ref.dampers(&s)
 	var m CaseMetrics
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)

@@ -9,63 +9,6 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// BumpStop is a bump rubber of one axle (both sides alike), referred to
-// the wheel: a force that pushes body and wheel apart once the travel in
-// bump exceeds the gap.
-type BumpStop struct {
-	// Gap is the wheel travel in bump from the rest ride height to
-	// contact (m); 0 means each corner's Corner.BumpStopGap. The time
-	// domain starts from the operating point, with the gap left there.
-	Gap float64
-	// Deflection (m, increasing, the first > 0) and Force (N, >= 0,
-	// non-decreasing) tabulate the force at the wheel against the
-	// compression δ = travel - gap, from F(0) = 0; linear between points
-	// and beyond the last point with the last segment's slope.
-	Deflection, Force []float64
-}
-
-// force is the bump-stop force at compression delta (m), 0 for delta <= 0.
-func (b *BumpStop) force(delta float64) float64 {
-	if delta <= 0 {
-		return 0
-	}
-	x0, f0 := 0.0, 0.0
-	for k, x1 := range b.Deflection {
-		f1 := b.Force[k]
-		if delta <= x1 || k == len(b.Deflection)-1 {
-			return f0 + (f1-f0)*(delta-x0)/(x1-x0)
-		}
-		x0, f0 = x1, f1
-	}
-	return 0
-}
-
-// maxSlope is the largest slope of the force curve (N/m).
-func (b *BumpStop) maxSlope() float64 {
-	x0, f0, s := 0.0, 0.0, 0.0
-	for k, x1 := range b.Deflection {
-		s = math.Max(s, (b.Force[k]-f0)/(x1-x0))
-		x0, f0 = x1, b.Force[k]
-	}
-	return s
-}
-
-func (b *BumpStop) validate(p *problems, prefix string) {
-	p.in(prefix+"gap_m", b.Gap, "Corner.bump_stop_gap_m")
-	if len(b.Deflection) == 0 || len(b.Deflection) != len(b.Force) {
-		p.add(prefix+"deflection_m", "needs at least one point and as many as force_n, got %d and %d", len(b.Deflection), len(b.Force))
-		return
-	}
-	p.table(prefix+"deflection_m", b.Deflection, "BumpStop.deflection_m", true)
-	p.table(prefix+"force_n", b.Force, "BumpStop.force_n", false)
-	for k := 1; k < len(b.Force); k++ {
-		if b.Force[k] < b.Force[k-1] {
-			p.add(fmt.Sprintf("%sforce_n[%d]", prefix, k), "must be non-decreasing, got %s after %s", num(b.Force[k]), num(b.Force[k-1]))
-			return
-		}
-	}
-}
-
 // TimeOptions tune the time-domain check. The zero value gives the
 // defaults.
 type TimeOptions struct {
@@ -77,9 +20,6 @@ type TimeOptions struct {
 	// Settle is the time integrated before recording starts (s); 0
 	// chooses it from the slowest mode (see SimulateCase).
 	Settle float64
-	// BumpStops are the bump rubbers of the front and rear axle; nil
-	// means none (the travel beyond the gap is then only counted).
-	BumpStops [2]*BumpStop
 	// WarnThreshold is the lift-off or bump-stop time fraction above
 	// which the metrics are flagged; 0 means 0.01.
 	WarnThreshold float64
@@ -102,34 +42,20 @@ const (
 	stepLimit     = 2.5  // ρ·h above which a caller's step is refused (RK4 is stable below 2.78)
 )
 
-func (o TimeOptions) validate(v *Vehicle) error {
+func (o TimeOptions) validate() error {
 	var p problems
 	p.nonNegative("duration_s", o.Duration)
 	p.nonNegative("step_s", o.Step)
 	p.nonNegative("settle_s", o.Settle)
 	p.in("warn_threshold", o.WarnThreshold, "EvaluatorOptions.warn_threshold")
-	for ax, b := range o.BumpStops {
-		if b == nil {
-			continue
-		}
-		prefix := fmt.Sprintf("bump_stops[%d].", ax)
-		b.validate(&p, prefix)
-		if b.Gap == 0 {
-			for i := 2 * ax; i < 2*ax+2; i++ {
-				if v.Corners[i].BumpStopGap == 0 {
-					p.add(prefix+"gap_m", "must be > 0: corner %s has no bump_stop_gap_m either", CornerNames[i])
-				}
-			}
-		}
-	}
 	return p.err()
 }
 
 // timeModel is the nonlinear 7-DOF car about its operating point at the
 // case's speed: the linear system of newSystem (springs, bars, tyres, the
 // aero map linearised at the point, tyre damping: the same matrices as
-// the frequency-domain model) plus the piecewise dampers, the bump stops
-// (at the gap left at speed), a tyre that cannot pull (from its load
+// the frequency-domain model) plus the piecewise dampers, each corner's
+// bump stop (Corner.BumpStop, at the gap left at speed), a tyre that cannot pull (from its load
 // at speed), and each axle's heave damper and packer (at the packer gap
 // left at speed).
 type timeModel struct {
@@ -148,9 +74,12 @@ type timeModel struct {
 	a, b   float64
 	tf, tr float64
 	// width is the number of input values per half-step sample: 8 (the
-	// road, w and ẇ) or inWidthForced (then nDOF generalised forces
-	// follow, see timeModel.accel).
+	// road, w and ẇ), inWidthForced (then nDOF generalised forces
+	// follow, see timeModel.accel) or inWidthSpeed (then the speed ratio
+	// q, see aeroSpeed).
 	width int
+	ka    [2][2]float64    // aero stiffness at the operating point (N/m), for aeroSpeed
+	axle  [2][nDOF]float64 // the axle rows T_a (see Vehicle.axleRows)
 	// xTerms and inTerms are the non-zero entries of K, C and of Bk, Bc
 	// (see sparseTerms): the matrices are mostly zero, and accel is the
 	// hot loop of every time-domain run.
@@ -194,10 +123,10 @@ type sampleRecorder interface {
 	buffer() *timeSample
 }
 
-func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) (*timeModel, error) {
+func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint) *timeModel {
 	m := &timeModel{sys: newSystem(v, &op.AeroStiffness), damp: v.dampers(s), static: op.TyreLoad,
 		a: v.CGToFrontAxle, b: v.CGToRearAxle, tf: v.TrackFront, tr: v.TrackRear, width: inWidthRoad,
-		heave: v.hasHeave(), mr3: v.heaveRatios(), packer: op.PackerGap}
+		heave: v.hasHeave(), mr3: v.heaveRatios(), packer: op.PackerGap, ka: op.AeroStiffness, axle: v.axleRows()}
 	for ax := range m.kp {
 		m.kp[ax] = v.Heave[ax].PackerRate
 	}
@@ -209,18 +138,11 @@ func newTimeModel(v *Vehicle, s *Setup, op *OperatingPoint, stops [2]*BumpStop) 
 		m.kt[i], m.ct[i] = v.Corners[i].TyreRate, v.Corners[i].TyreDamping
 		m.mr[i] = v.Corners[i].DamperMotionRatio
 		m.gap[i] = op.BumpStopGap[i]
-		if b := stops[i/2]; b != nil {
+		if b := &v.Corners[i].BumpStop; b.has() {
 			m.stop[i] = b
-			if b.Gap > 0 {
-				m.gap[i] = b.Gap - op.Compression[i]
-				if m.gap[i] <= 0 {
-					return nil, fmt.Errorf("%w: at %g m/s the downforce compresses corner %s by %.4g mm, onto its bump stop (gap %.4g mm)",
-						ErrNoEquilibrium, op.Speed, CornerNames[i], op.Compression[i]*1e3, b.Gap*1e3)
-				}
-			}
 		}
 	}
-	return m, nil
+	return m
 }
 
 // timeSample is what one evaluation of the equations of motion yields
@@ -242,7 +164,9 @@ type timeSample struct {
 // that would pull the tyre down (P_i its static load): the tyre force
 // P_i + T_i is clipped at zero. An input sample of inWidthForced values
 // carries generalised forces f_e after the road (a manoeuvre's inertial
-// and link loads, see inertialLoads), added to the right-hand side. When
+// and link loads, see inertialLoads), added to the right-hand side, and
+// one of inWidthSpeed also the speed ratio q whose aero stiffness
+// q K_a adds its force (see aeroSpeed). When
 // o is not nil it also receives the outputs, the heave acceleration
 // included.
 // A heave element adds R_hᵀ(F_h + P_h) to the sum, R_h = (D_L + D_R)/2
@@ -254,6 +178,9 @@ func (m *timeModel) accel(x, xd *[nDOF]float64, in []float64, acc *[nDOF]float64
 	var f [nDOF]float64
 	if len(in) >= inWidthForced {
 		copy(f[:], in[inWidthRoad:inWidthForced])
+		if len(in) > inWidthForced {
+			m.aeroSpeed(x, in, in[inWidthForced], &f)
+		}
 	}
 	in = in[:inWidthRoad]
 	for _, t := range m.xTerms {
@@ -512,7 +439,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	if err := p.err(); err != nil {
 		return nil, err
 	}
-	if err := opt.validate(v); err != nil {
+	if err := opt.validate(); err != nil {
 		return nil, err
 	}
 	if rnd == nil {
@@ -522,10 +449,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	if err != nil {
 		return nil, fmt.Errorf("road case %q: %w", rc.Name, err)
 	}
-	m, err := newTimeModel(v, s, &op, opt.BumpStops)
-	if err != nil {
-		return nil, fmt.Errorf("road case %q: %w", rc.Name, err)
-	}
+	m := newTimeModel(v, s, &op)
 	hRule, settle, rho, err := m.timing()
 	if err != nil {
 		return nil, fmt.Errorf("road case %q: %w", rc.Name, err)

@@ -26,9 +26,6 @@ func (k TransientKind) String() string {
 // TransientOptions tune the manoeuvre and kerb cases. The zero value
 // gives the defaults.
 type TransientOptions struct {
-	// BumpStops are the bump rubbers of the front and rear axle; nil
-	// means none (the travel beyond the gap is then only counted).
-	BumpStops [2]*BumpStop
 	// LoadFraction is the fraction of its static load at speed below
 	// which a tyre counts as unloaded (TransientMetrics.TimeBelow);
 	// 0 means 0.5.
@@ -71,12 +68,11 @@ func (o TransientOptions) withDefaults() TransientOptions {
 	return o
 }
 
-func (o TransientOptions) validate(v *Vehicle) error {
+func (o TransientOptions) validate() error {
 	var p problems
 	p.inOrZero("load_fraction", o.LoadFraction, "Transient.load_fraction")
 	p.nonNegative("max_ratio", o.MaxRatio)
 	p.nonNegative("step_s", o.Step)
-	p.merge("", TimeOptions{BumpStops: o.BumpStops}.validate(v))
 	return p.err()
 }
 
@@ -94,8 +90,8 @@ type transientCase struct {
 	kerb   *Kerb
 
 	op     OperatingPoint
-	tm     timeModel // template: its dampers are set per evaluation
-	slope  [4]float64
+	tm     timeModel      // template: its dampers are set per evaluation
+	slope  [nDamp]float64 // steepest damper slope prepared for, per damper coordinate (N s/m)
 	h      float64
 	steps  int
 	start  float64       // when the input begins (s)
@@ -143,8 +139,9 @@ func (w *transientWork) add(o *timeSample) {
 }
 
 // newTransientCase prepares a case for dampers whose steepest slope at
-// each corner is at most slope (N s/m at the wheel).
-func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptions, slope [4]float64) (*transientCase, error) {
+// each damper coordinate is at most slope (N s/m: the corners' at the
+// wheel, the heave dampers' on the axle's mean wheel travel).
+func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptions, slope [nDamp]float64) (*transientCase, error) {
 	c := &transientCase{v: v, opt: opt, man: man, kerb: kerb, slope: slope}
 	speed := 0.0
 	if man != nil {
@@ -162,11 +159,11 @@ func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptio
 		return fail(err)
 	}
 	c.op = op
-	tm, err := newTimeModel(v, &Setup{}, &op, opt.BumpStops)
-	if err != nil {
-		return fail(err)
-	}
+	tm := newTimeModel(v, &Setup{}, &op)
 	tm.width = inWidthForced
+	if c.speedFollows() {
+		tm.width = inWidthSpeed
+	}
 	for i := range slope {
 		tm.damp[i] = wheelDamper{cb: slope[i], cr: slope[i], rb: 1, rr: 1}
 	}
@@ -207,24 +204,24 @@ func newTransientCase(v *Vehicle, man *Manoeuvre, kerb *Kerb, opt TransientOptio
 // quasi-static start and end, and the quasi-static attitude at each step.
 func (c *transientCase) fillInputs() error {
 	n := 2*c.steps + 1
-	c.in = make([]float64, n*inWidthForced)
+	wd := c.tm.width
+	c.in = make([]float64, n*wd)
 	il := newInertialLoads(c.v, c.tm.sys, &c.op)
 	if c.man != nil {
-		v0 := c.op.Speed
 		for j := 0; j < n; j++ {
 			ax, ay, sp := c.man.input(float64(j) * c.h / 2)
-			q := 0.0
-			if v0 > 0 {
-				q = sp*sp/(v0*v0) - 1
+			q := c.speedRatio(sp)
+			il.at(ax, ay, q, c.in[j*wd+inWidthRoad:j*wd+inWidthForced])
+			if wd == inWidthSpeed {
+				c.in[j*wd+inWidthForced] = q
 			}
-			il.at(ax, ay, q, c.in[j*inWidthForced+inWidthRoad:(j+1)*inWidthForced])
 		}
 	} else if err := c.kerbInputs(n); err != nil {
 		return err
 	}
 	sys := c.tm.sys
 	force := func(j int) [nDOF]float64 {
-		s := c.in[j*inWidthForced : (j+1)*inWidthForced]
+		s := c.in[j*wd : (j+1)*wd]
 		var f [nDOF]float64
 		for a := 0; a < nDOF; a++ {
 			f[a] = s[inWidthRoad+a]
@@ -242,7 +239,14 @@ func (c *transientCase) fillInputs() error {
 		return err
 	}
 	c.qs = [2][]float64{make([]float64, c.steps), make([]float64, c.steps)}
-	if c.man != nil {
+	if wd == inWidthSpeed {
+		for i := range c.qsLoad {
+			c.qsLoad[i] = make([]float64, c.steps)
+		}
+		if err := c.quasiStaticAtSpeed(force); err != nil {
+			return err
+		}
+	} else if c.man != nil {
 		var unit [nDOF]float64
 		// Quasi-static attitude: K x = f is linear, so x_qs(t) is the
 		// combination of the unit responses to each generalised force.
@@ -336,7 +340,7 @@ func (c *transientCase) kerbInputs(n int) error {
 }
 
 // covers reports whether the case's step was prepared for the dampers.
-func (c *transientCase) covers(d *[4]wheelDamper) bool {
+func (c *transientCase) covers(d *[nDamp]wheelDamper) bool {
 	for i, w := range d {
 		if w.steepest() > c.slope[i]*(1+1e-12) {
 			return false
@@ -362,11 +366,11 @@ func (c *transientCase) work() *transientWork {
 	return w
 }
 
-// run integrates the case for the dampers into a pooled workspace, which
-// the caller returns with c.pool.Put.
-func (c *transientCase) run(d *[4]wheelDamper) (*transientWork, error) {
+// run integrates the case for the dampers (corners and heave dampers)
+// into a pooled workspace, which the caller returns with c.pool.Put.
+func (c *transientCase) run(d *[nDamp]wheelDamper) (*transientWork, error) {
 	m := c.tm
-	copy(m.damp[:4], d[:]) // the corners; heave dampers are not in the transient cases yet
+	m.damp = *d
 	w := c.work()
 	w.n = 0
 	w.rideMin = [2]float64{math.Inf(1), math.Inf(1)}
@@ -381,17 +385,10 @@ func (c *transientCase) run(d *[4]wheelDamper) (*transientWork, error) {
 }
 
 // evaluate runs the case for the dampers and fills tm.
-func (c *transientCase) evaluate(d *[4]wheelDamper, tm *TransientMetrics) error {
-	if !c.covers(d) {
-		var slope [4]float64
-		for i := range d {
-			slope[i] = math.Max(c.slope[i], d[i].steepest())
-		}
-		fresh, err := newTransientCase(c.v, c.man, c.kerb, c.opt, slope)
-		if err != nil {
-			return err
-		}
-		c = fresh
+func (c *transientCase) evaluate(d *[nDamp]wheelDamper, tm *TransientMetrics) error {
+	c, err := c.coveringCase(d)
+	if err != nil {
+		return err
 	}
 	w, err := c.run(d)
 	if err != nil {
@@ -400,4 +397,17 @@ func (c *transientCase) evaluate(d *[4]wheelDamper, tm *TransientMetrics) error 
 	c.metrics(w, tm)
 	c.pool.Put(w)
 	return nil
+}
+
+// coveringCase returns c when its step was prepared for the dampers, and
+// otherwise a case prepared afresh for them (allocating).
+func (c *transientCase) coveringCase(d *[nDamp]wheelDamper) (*transientCase, error) {
+	if c.covers(d) {
+		return c, nil
+	}
+	var slope [nDamp]float64
+	for i := range d {
+		slope[i] = math.Max(c.slope[i], d[i].steepest())
+	}
+	return newTransientCase(c.v, c.man, c.kerb, c.opt, slope)
 }

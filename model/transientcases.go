@@ -21,15 +21,20 @@ func (e *Evaluator) SetTransientCases(ms []Manoeuvre, ks []Kerb, opt TransientOp
 	if len(ms) > 0 && !(e.v.LoadPaths.CGHeight > 0) {
 		p.add("vehicle.load_paths.cg_height_m", "is needed by the manoeuvre cases, got %s", num(e.v.LoadPaths.CGHeight))
 	}
-	p.merge("transient.", opt.validate(&e.v))
+	p.merge("transient.", opt.validate())
 	if err := p.err(); err != nil {
 		return err
 	}
 	opt = opt.withDefaults()
-	cc := e.v.CriticalDamping()
-	var slope [4]float64
-	for i := range slope {
+	cc, hc := e.ref.CriticalDamping(), e.ref.HeaveCriticalDamping()
+	var slope [nDamp]float64
+	for i := range cc {
 		slope[i] = opt.MaxRatio * cc[i]
+	}
+	for ax := range hc {
+		if e.v.Heave[ax].has() {
+			slope[dampHeave+ax] = opt.MaxRatio * hc[ax]
+		}
 	}
 	cases := make([]*transientCase, 0, len(ms)+len(ks))
 	for i := range ms {
@@ -65,8 +70,9 @@ func (e *Evaluator) TransientCase(i int) (string, TransientKind) {
 	return e.transients[i].name, e.transients[i].kind
 }
 
-// evaluateTransients fills dst.Transients for the dampers.
-func (e *Evaluator) evaluateTransients(d *[4]wheelDamper, dst *Result) error {
+// evaluateTransients fills dst.Transients for the dampers (corners and
+// heave dampers).
+func (e *Evaluator) evaluateTransients(d *[nDamp]wheelDamper, dst *Result) error {
 	if cap(dst.Transients) < len(e.transients) {
 		dst.Transients = make([]TransientMetrics, len(e.transients))
 	}
@@ -102,21 +108,16 @@ func (e *Evaluator) History(s Setup, i int) (*TransientHistory, error) {
 	if err := s.Validate(); err != nil {
 		return nil, err
 	}
+	if err := e.v.CheckSetup(&s); err != nil {
+		return nil, err
+	}
 	if i < 0 || i >= len(e.transients) {
 		return nil, &ValidationError{Problems: []FieldError{{Field: "case", Reason: fmt.Sprintf("must be in [0, %d), got %d", len(e.transients), i)}}}
 	}
-	c := e.transients[i]
-	d := e.v.wheelDampers(&s)
-	if !c.covers(&d) {
-		var slope [4]float64
-		for k := range d {
-			slope[k] = math.Max(c.slope[k], d[k].steepest())
-		}
-		fresh, err := newTransientCase(c.v, c.man, c.kerb, c.opt, slope)
-		if err != nil {
-			return nil, err
-		}
-		c = fresh
+	d := e.ref.dampers(&s)
+	c, err := e.transients[i].coveringCase(&d)
+	if err != nil {
+		return nil, err
 	}
 	w, err := c.run(&d)
 	if err != nil {

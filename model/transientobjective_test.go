@@ -44,7 +44,7 @@ func transientProblem(t testing.TB) *Problem {
 func TestDriverResponseSeesTheSplit(t *testing.T) {
 	t.Parallel()
 	v := transientCar()
-	response := func(d *[4]wheelDamper, shape ManoeuvreShape) float64 {
+	response := func(d *[nDamp]wheelDamper, shape ManoeuvreShape) float64 {
 		man := &Manoeuvre{Name: "m", Shape: shape, Speed: 40, Longitudinal: 0.8 * Gravity, Start: 0.1, Ramp: 0.1, Duration: 2.5}
 		c := prepare(t, &v, man, nil, TransientOptions{MaxRatio: 2}, d)
 		var m TransientMetrics

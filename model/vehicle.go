@@ -93,6 +93,10 @@ type Corner struct {
 	// is reported for the corner. At speed the downforce uses part of it
 	// (see OperatingPoint).
 	BumpStopGap float64
+	// BumpStop is the bump stop's force curve past BumpStopGap (see
+	// BumpStop), used by the time-domain models; the zero value has no
+	// force (the travel past the gap is counted only).
+	BumpStop BumpStop
 
 	// SprungLoad optionally gives the static sprung load on this corner (N)
 	// for a car whose corner weights do not follow from the CG position; 0
@@ -246,6 +250,7 @@ func (v *Vehicle) Validate() error {
 			p.add(f+"tyre_envelope_length_m", "must be > 0 when tyre damping is set: without it the tyre-force variance on an ISO 8608 road is infinite")
 		}
 		p.in(f+"bump_stop_gap_m", c.BumpStopGap, "Corner.bump_stop_gap_m")
+		c.BumpStop.validate(&p, f+"bump_stop.", c.BumpStopGap)
 		p.inOrZero(f+"sprung_load_n", c.SprungLoad, "Corner.sprung_load_n")
 		if c.SprungLoad != 0 {
 			given++

@@ -86,12 +86,12 @@ func Verify(v Vehicle, cases []RoadCase, s Setup, opt VerifyOptions) (*VerifyRep
 	var p problems
 	p.merge("setup.", s.Validate())
 	p.merge("setup.", e.v.CheckSetup(&s))
-	p.merge("time.", opt.Time.validate(&v))
+	p.merge("time.", opt.Time.validate())
 	if err := p.err(); err != nil {
 		return nil, err
 	}
 	rep := &VerifyReport{Setup: s, Seed: opt.Seed}
-	dampers := e.v.dampers(&s)
+	dampers := e.ref.dampers(&s)
 	ws := e.pool.Get().(*workspace)
 	defer e.pool.Put(ws)
 	psd := make([]float64, nOut*len(e.f))

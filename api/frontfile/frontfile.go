@@ -61,8 +61,52 @@ var slopeColumns = []struct {
 // the objectives, the four slopes, each constraint's violation,
 // out_of_band_n (the largest excess over the adjuster range, N at the
 // damper, over the corners and directions; 0 inside the band or without
-// one), feasible and balanced.
+// one), feasible and balanced; then, for a robust front (its solutions
+// carry Solution.robust), per objective its value on the nominal car,
+// its sd and its worst over the uncertain cars: "grip_rel_nominal",
+// "grip_rel_sd", "grip_rel_worst".
 func Columns(f *pb.Front) []string {
+	cols := baseColumns(f)
+	if !Robust(f) {
+		return cols
+	}
+	for _, o := range f.GetObjectives() {
+		c := ObjectiveColumn(o.GetKind())
+		cols = append(cols, c+"_nominal", c+"_sd", c+"_worst")
+	}
+	return cols
+}
+
+// Robust reports whether f is a robust front: a solution carries the
+// figures over the uncertain cars.
+func Robust(f *pb.Front) bool {
+	for _, s := range f.GetSolutions() {
+		if s.GetRobust() != nil {
+			return true
+		}
+	}
+	return false
+}
+
+// robustValues are a solution's robust columns: nominal, sd and worst per
+// objective, NaN-free as the solution is; nil values (an infeasible
+// solution without figures) where it has none.
+func robustValues(f *pb.Front, s *pb.Solution) []any {
+	var out []any
+	r := s.GetRobust()
+	for i := range f.GetObjectives() {
+		for _, vs := range [][]float64{r.GetNominal(), r.GetSd(), r.GetWorst()} {
+			if i < len(vs) {
+				out = append(out, vs[i])
+			} else {
+				out = append(out, nil)
+			}
+		}
+	}
+	return out
+}
+
+func baseColumns(f *pb.Front) []string {
 	cols := []string{"index"}
 	cols = append(cols, f.GetGeneNames()...)
 	for _, o := range f.GetObjectives() {
@@ -124,7 +168,11 @@ func row(f *pb.Front, s *pb.Solution, balanced bool) []any {
 		}
 		out = append(out, v)
 	}
-	return append(out, OutOfBand(s), s.GetFeasible(), balanced)
+	out = append(out, OutOfBand(s), s.GetFeasible(), balanced)
+	if Robust(f) {
+		out = append(out, robustValues(f, s)...)
+	}
+	return out
 }
 
 // Number is the text of an SI value in CSV: the shortest that reads back

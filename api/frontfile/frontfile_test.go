@@ -66,3 +66,32 @@ func TestReadmeDocumentsEveryColumn(t *testing.T) {
 		}
 	}
 }
+
+// TestRobustColumns: a robust front (a solution carries Solution.robust)
+// gets each objective's nominal, sd and worst after the other columns, in
+// that order; a front without them keeps its columns as before.
+func TestRobustColumns(t *testing.T) {
+	t.Parallel()
+	f := &pb.Front{GeneNames: []string{"front_ratio", "rear_ratio"},
+		Objectives: []*pb.Objective{{Kind: pb.ObjectiveKind_OBJECTIVE_KIND_GRIP}, {Kind: pb.ObjectiveKind_OBJECTIVE_KIND_PLATFORM}},
+		Solutions:  []*pb.Solution{{Genes: []float64{0.5, 0.6}, Objectives: []float64{0.08, 0.002}}}}
+	plain := Columns(f)
+	if Robust(f) || strings.Contains(strings.Join(plain, ","), "_nominal") {
+		t.Fatalf("a front without robust figures got robust columns: %v", plain)
+	}
+	f.Solutions[0].Robust = &pb.RobustObjectives{Nominal: []float64{0.07, 0.0019}, Mean: []float64{0.075, 0.00195},
+		Sd: []float64{0.003, 0.00004}, Worst: []float64{0.082, 0.0021}}
+	cols := Columns(f)
+	wantCols := []string{"grip_rel_nominal", "grip_rel_sd", "grip_rel_worst", "platform_m_nominal", "platform_m_sd", "platform_m_worst"}
+	if got := cols[len(plain):]; strings.Join(got, ",") != strings.Join(wantCols, ",") || strings.Join(cols[:len(plain)], ",") != strings.Join(plain, ",") {
+		t.Fatalf("columns %v, want %v then %v", cols, plain, wantCols)
+	}
+	var b strings.Builder
+	if err := WriteCSV(&b, f); err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(b.String()), "\n")
+	if len(lines) != 2 || !strings.HasSuffix(lines[1], ",0.07,0.003,0.082,0.0019,4e-05,0.0021") {
+		t.Errorf("CSV %q does not end with nominal, sd, worst per objective", b.String())
+	}
+}

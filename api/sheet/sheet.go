@@ -64,7 +64,10 @@ type Sheet struct {
 
 	CornerNames []string // FL, FR, RL, RR
 	CornerRows  []CornerRow
-	Modes       []CaseModes
+	// BumpStops is the corners' bump-stop force curves, empty for a car
+	// without them.
+	BumpStops []BumpStopTable
+	Modes     []CaseModes
 
 	Warnings []string
 	Caution  string
@@ -195,6 +198,7 @@ func Build(job *pb.Job, sol *pb.Solution, balanced bool) (*Sheet, error) {
 		return nil, fmt.Errorf("sheet: solution %d: %w", s.Index, err)
 	}
 	s.CornerNames, s.CornerRows = cornerRows(hand)
+	s.BumpStops = bumpStopTables(&in.Vehicle)
 	s.Modes = Modes(sol)
 	s.CurvesSVG, s.CurvesProblem = curvesSVG(sol)
 	return s, nil

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"time"
 
+	"dampfront/api"
 	"dampfront/api/frontfile"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/plot"
@@ -63,6 +64,7 @@ type jobView struct {
 	Partial         bool
 	Infeasible      string // the verdict of a job no setup of which met every constraint
 	FrontCheck      string // the check of a finished front in decision space (FrontCheckText)
+	Robust          string // what a robust job's objectives are (api.RobustText); "" without uncertainty
 	CancelRequested bool
 	Terminal        bool
 	ProgressURL     string
@@ -101,7 +103,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 	v := &jobView{
 		pageView: pageView{Title: j.GetDisplayName()},
 		Job:      newJobRow(j), Seed: j.GetSeed(), Car: spec.GetVehicle().GetName(),
-		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), FrontCheck: FrontCheckText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
+		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), FrontCheck: FrontCheckText(j), Robust: api.RobustText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
 		ProgressURL: jobPath(id) + "/progress.json", PollMS: h.opt.PollInterval.Milliseconds(),
 		Balanced: -1,
 	}
@@ -228,6 +230,14 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 		objQ[i] = objectiveQuantity(o)
 		hs = append(hs, header{Label: objQ[i].label, Unit: objQ[i].unit, Numeric: true})
 	}
+	robust := frontfile.Robust(front)
+	if robust {
+		for _, q := range objQ {
+			for _, what := range []string{"nominal", "sd", "worst"} {
+				hs = append(hs, header{Label: q.label + " " + what, Unit: q.unit, Numeric: true})
+			}
+		}
+	}
 	for _, c := range slopeCorners {
 		hs = append(hs, header{Label: c.label + " bump slope", Unit: qSlope.unit, Numeric: true},
 			header{Label: c.label + " rebound slope", Unit: qSlope.unit, Numeric: true})
@@ -256,6 +266,12 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 		}
 		for i, q := range objQ {
 			row.Cells = append(row.Cells, numCell(q, s.GetObjectives(), i))
+		}
+		if robust {
+			r := s.GetRobust()
+			for i, q := range objQ {
+				row.Cells = append(row.Cells, numCell(q, r.GetNominal(), i), numCell(q, r.GetSd(), i), numCell(q, r.GetWorst(), i))
+			}
 		}
 		for _, c := range slopeCorners {
 			bump, rebound := cell{}, cell{}

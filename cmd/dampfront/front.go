@@ -185,6 +185,9 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 	if warned > 0 {
 		fmt.Fprintf(w, "%d solutions carry warnings (lift-off, bump-stop contact, outside the adjuster range); see --format json.\n", warned)
 	}
+	if cols.robust {
+		fmt.Fprintln(w, api.RobustText(j)+".")
+	}
 	if cols.band {
 		fmt.Fprintln(w, "Out of range: the largest excess of the damper force over the adjuster range (25-300 mm/s, at the damper); get such a damper made or widen its adjusters.")
 	}
@@ -195,14 +198,15 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 // the balanced mark and index, the four damping ratios, the other genes
 // the study searched, and the objectives, in trade units.
 type solutionColumns struct {
-	genes []string
-	extra []int      // indices of the genes beyond the four ratios
-	objQ  []quantity // of each objective
-	band  bool       // show the out-of-range column (the front table, when a solution needs it)
+	genes  []string
+	extra  []int      // indices of the genes beyond the four ratios
+	objQ   []quantity // of each objective
+	band   bool       // show the out-of-range column (the front table, when a solution needs it)
+	robust bool       // show each objective's nominal, sd and worst (a robust front)
 }
 
 func newSolutionColumns(f *pb.Front) *solutionColumns {
-	c := &solutionColumns{genes: f.GetGeneNames(), extra: extraGenes(f.GetGeneNames())}
+	c := &solutionColumns{genes: f.GetGeneNames(), extra: extraGenes(f.GetGeneNames()), robust: frontfile.Robust(f)}
 	for _, o := range f.GetObjectives() {
 		c.objQ = append(c.objQ, objectiveQuantity(o.GetKind()))
 	}
@@ -221,6 +225,13 @@ func (c *solutionColumns) headers() (h1, h2 []string) {
 	}
 	for _, q := range c.objQ {
 		h1, h2 = append(h1, q.label), append(h2, q.unit)
+	}
+	if c.robust {
+		for _, q := range c.objQ {
+			for _, what := range robustHeaders {
+				h1, h2 = append(h1, q.label+" "+what), append(h2, q.unit)
+			}
+		}
 	}
 	if c.band {
 		h1, h2 = append(h1, "out of range"), append(h2, "N")
@@ -244,6 +255,9 @@ func (c *solutionColumns) cells(s *pb.Solution, balanced bool) []string {
 	}
 	for k, q := range c.objQ {
 		row = append(row, tradeNum(q, s.GetObjectives()[k]))
+	}
+	if c.robust {
+		row = append(row, robustCells(c.objQ, s.GetRobust())...)
 	}
 	if c.band {
 		out := ""

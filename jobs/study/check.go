@@ -88,6 +88,9 @@ func Check(s *Spec) (*Checked, error) {
 	if b := spec.Search.PolishBudget; b < 0 || b > MaxPolishBudget {
 		p.add("search.polish_budget", "must be 0 (no polish) to %d evaluations per front point, got %d", MaxPolishBudget, b)
 	}
+	if u := spec.Uncertainty; u != nil {
+		p.merge("uncertainty.", u.Validate(&spec.Vehicle))
+	}
 	if err := p.err(); err != nil {
 		return nil, err
 	}
@@ -111,8 +114,11 @@ type Size struct {
 	// (road cases + transient cases), the number of case evaluations the
 	// search makes (to within its initial population, and counting the
 	// polish of a front as large as the population), saturating at the
-	// largest int64.
+	// largest int64; with uncertainty, times the uncertain cars per setup.
 	Work int64
+	// RobustPoints is the number of uncertain cars each setup is
+	// evaluated on; 0 without uncertainty.
+	RobustPoints int
 }
 
 // Size counts the work of the checked spec.
@@ -123,7 +129,12 @@ func (c *Checked) Size() Size {
 	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations + q.PolishBudget, len(c.spec.RoadCases) + transients} {
 		work = mulSat(work, int64(n))
 	}
-	return Size{Cases: len(c.spec.RoadCases), Transients: transients, GridPoints: c.spec.Grid.Points, Work: work}
+	points := 0
+	if u := c.spec.Uncertainty; u != nil {
+		points = u.Points()
+		work = mulSat(work, int64(points))
+	}
+	return Size{Cases: len(c.spec.RoadCases), Transients: transients, GridPoints: c.spec.Grid.Points, Work: work, RobustPoints: points}
 }
 
 // mulSat is a×b for a, b >= 0, or the largest int64 when that overflows.

@@ -137,6 +137,13 @@ func WithDefaults(s *Spec) *Spec {
 	orDefault(&q.CrossoverEta, DefaultCrossoverEta)
 	orDefault(&q.MutationProbability, 1/float64(out.Design.geneCount()))
 	orDefault(&q.MutationEta, DefaultMutationEta)
+	if s.Uncertainty != nil {
+		// The method, measure and point count are the model's defaults;
+		// the sample's seed is the job's one seed.
+		u := s.Uncertainty.WithDefaults()
+		u.Seed = *q.Seed
+		out.Uncertainty = &u
+	}
 	return &out
 }
 

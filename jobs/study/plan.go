@@ -34,15 +34,9 @@ func Compile(ctx context.Context, s *Spec) (*Plan, error) {
 // speed is a *model.ValidationError at that case.
 func (c *Checked) Compile(ctx context.Context) (*Plan, error) {
 	spec := c.spec
-	eval, err := model.NewEvaluatorContext(ctx, spec.Vehicle, spec.RoadCases, model.EvaluatorOptions{Grid: spec.Grid})
+	eval, err := compileEvaluator(ctx, c, spec.Vehicle, nil)
 	if err != nil {
 		return nil, err
-	}
-	if len(spec.Manoeuvres)+len(spec.Kerbs) > 0 {
-		opt := model.TransientOptions{LoadFraction: spec.LoadFraction, MaxRatio: c.design.MaxSlopeRatio()}
-		if err := eval.SetTransientCases(spec.Manoeuvres, spec.Kerbs, opt); err != nil {
-			return nil, err
-		}
 	}
 	problem, err := model.NewProblem(eval, c.design, spec.Objectives, spec.Constraints)
 	// A given reference replaces the middle of the bounds that NewProblem
@@ -55,6 +49,11 @@ func (c *Checked) Compile(ctx context.Context) (*Plan, error) {
 		var p problems
 		p.mergeMapped(problemPath, err)
 		return nil, p.err()
+	}
+	if spec.Uncertainty != nil {
+		if problem, err = robustProblem(ctx, c, problem); err != nil {
+			return nil, err
+		}
 	}
 	return &Plan{spec: spec, eval: eval, problem: problem, settings: c.settings}, nil
 }

@@ -31,6 +31,19 @@ type Solution struct {
 	Transients []model.TransientMetrics
 	Curves     []model.DamperCurve // nil when they cannot be drawn (see Warnings)
 	Warnings   []string            // every case's warnings, then the curves'
+	// Robust holds, for a spec with uncertainty, the objectives of the
+	// nominal car and their spread over the uncertain cars; nil without.
+	// Objectives and Violations are then the robust ones (the measure over
+	// the cars, the worst violation), while Cases, Transients and
+	// Shortfalls are the nominal car's.
+	Robust *Robust
+}
+
+// Robust is a solution's objectives over the uncertain cars, each slice
+// in the order of the objectives, in their units.
+type Robust struct {
+	Nominal []float64 // on the nominal car (the vehicle as given)
+	model.RobustFigures
 }
 
 // CaseDetail is one road case of a solution.
@@ -57,6 +70,16 @@ func (pl *Plan) Evaluate(s model.Setup) *Solution {
 	sol.Objectives = make([]float64, pl.problem.NumObjectives())
 	sol.Violations = make([]float64, pl.problem.NumConstraints())
 	pl.problem.Score(&r, sol.Objectives, sol.Violations)
+	if pl.problem.IsRobust() {
+		rb := &Robust{Nominal: sol.Objectives}
+		sol.Objectives = make([]float64, pl.problem.NumObjectives())
+		if err := pl.problem.EvaluateRobust(s, sol.Objectives, sol.Violations, &rb.RobustFigures); err != nil {
+			sol.Objectives, sol.Violations = nil, nil
+			sol.InfeasibleReason = "evaluation failed: " + err.Error()
+			return sol
+		}
+		sol.Robust = rb
+	}
 	sol.Feasible, sol.InfeasibleReason = pl.feasibility(sol.Objectives, sol.Violations)
 	sol.Shortfalls = violated(pl.problem.Shortfalls(&r))
 	pl.describe(sol, s, &r)

@@ -35,6 +35,11 @@ type Spec struct {
 	Adjusters model.Adjusters
 	Curves    Curves
 	Search    Search
+	// Uncertainty, when not nil, makes the objectives robust: every setup
+	// is evaluated on the uncertain cars of its ranges, the objectives
+	// are their mean, worst or mean + k·sd, each constraint the worst
+	// over them (model.NewRobustProblem). Its Seed is the search's seed.
+	Uncertainty *model.Uncertainty
 }
 
 // Design is the design space as a spec gives it: model.DesignSpace with

@@ -149,11 +149,21 @@ def balanced(front):
 
 def columns(front):
     """The schema's columns for this front, in order."""
-    return (["index"] + list(front.gene_names)
+    cols = (["index"] + list(front.gene_names)
             + [objective_column(o.kind) for o in front.objectives]
             + [c for _, bump, rebound in SLOPE_COLUMNS for c in (bump, rebound)]
             + [constraint_column(c) for c in front.constraints]
             + ["out_of_band_n", "feasible", "balanced"])
+    if is_robust(front):
+        for o in front.objectives:
+            c = objective_column(o.kind)
+            cols += [c + "_nominal", c + "_sd", c + "_worst"]
+    return cols
+
+
+def is_robust(front):
+    """A robust front: a solution carries its figures over the uncertain cars."""
+    return any(s.HasField("robust") for s in front.solutions)
 
 
 def objective_column(kind):
@@ -178,7 +188,13 @@ def row(front, s, is_balanced):
         values += [bump, rebound]
     values += [s.violations[k] if k < len(s.violations) else 0.0 for k in range(len(front.constraints))]
     out_of_band = max((e.over_n for e in s.out_of_band), default=0.0)
-    return values + [out_of_band, s.feasible, is_balanced]
+    values += [out_of_band, s.feasible, is_balanced]
+    if is_robust(front):
+        r = s.robust
+        for i in range(len(front.objectives)):
+            for vs in (r.nominal, r.sd, r.worst):
+                values.append(vs[i] if i < len(vs) else None)
+    return values
 
 
 def cell(v):

@@ -349,7 +349,10 @@ type JobSpec struct {
 	// Fraction of static load below which a tyre counts as unloaded on the
 	// manoeuvre and kerb cases; 0 means 0.5.
 	// Plausible range when given (not 0): (0, 1].
-	LoadFraction  float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
+	LoadFraction float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
+	// Uncertainty ranges (fuel, tyre rate, aero): with them the objectives
+	// are robust over the uncertain cars; absent is the nominal car only.
+	Uncertainty   *Uncertainty `protobuf:"bytes,24,opt,name=uncertainty,proto3" json:"uncertainty,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -496,6 +499,13 @@ func (x *JobSpec) GetLoadFraction() float64 {
 	return 0
 }
 
+func (x *JobSpec) GetUncertainty() *Uncertainty {
+	if x != nil {
+		return x.Uncertainty
+	}
+	return nil
+}
+
 // Job is one optimisation run, a resource named "jobs/{job_id}".
 type Job struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -540,7 +550,10 @@ type Job struct {
 	Closest []*ConstraintShortfall `protobuf:"bytes,17,rep,name=closest,proto3" json:"closest,omitempty"`
 	// The check of the finished front in decision space (GetJob, WatchJob
 	// and ListJobs once the job has succeeded); unset before.
-	FrontCheck    *FrontCheck `protobuf:"bytes,18,opt,name=front_check,json=frontCheck,proto3" json:"front_check,omitempty"`
+	FrontCheck *FrontCheck `protobuf:"bytes,18,opt,name=front_check,json=frontCheck,proto3" json:"front_check,omitempty"`
+	// Uncertain cars each setup is evaluated on (the spec's uncertainty);
+	// 0 without uncertainty.
+	UncertainCars int32 `protobuf:"varint,20,opt,name=uncertain_cars,json=uncertainCars,proto3" json:"uncertain_cars,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -699,6 +712,13 @@ func (x *Job) GetFrontCheck() *FrontCheck {
 		return x.FrontCheck
 	}
 	return nil
+}
+
+func (x *Job) GetUncertainCars() int32 {
+	if x != nil {
+		return x.UncertainCars
+	}
+	return 0
 }
 
 // FrontCheck is the check of a finished front where the engineer acts on
@@ -957,7 +977,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -978,7 +998,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\x87\a\n" +
+	"\r_mutation_eta\"\xc4\a\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -1003,10 +1023,11 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"manoeuvres\x18\x14 \x03(\v2\x17.dampfront.v1.ManoeuvreR\n" +
 	"manoeuvres\x12(\n" +
 	"\x05kerbs\x18\x15 \x03(\v2\x12.dampfront.v1.KerbR\x05kerbs\x12#\n" +
-	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x1a9\n" +
+	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x12;\n" +
+	"\vuncertainty\x18\x18 \x01(\v2\x19.dampfront.v1.UncertaintyR\vuncertainty\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xcf\x06\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x06\n" +
 	"\x03Job\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12\x15\n" +
 	"\x06job_id\x18\x02 \x01(\tR\x05jobId\x12!\n" +
@@ -1032,7 +1053,8 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"infeasible\x12;\n" +
 	"\aclosest\x18\x11 \x03(\v2!.dampfront.v1.ConstraintShortfallR\aclosest\x129\n" +
 	"\vfront_check\x18\x12 \x01(\v2\x18.dampfront.v1.FrontCheckR\n" +
-	"frontCheck\x1a9\n" +
+	"frontCheck\x12%\n" +
+	"\x0euncertain_cars\x18\x14 \x01(\x05R\runcertainCars\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
 	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xc4\x03\n" +
@@ -1112,8 +1134,9 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Adjusters)(nil),             // 18: dampfront.v1.Adjusters
 	(*Manoeuvre)(nil),             // 19: dampfront.v1.Manoeuvre
 	(*Kerb)(nil),                  // 20: dampfront.v1.Kerb
-	(*timestamppb.Timestamp)(nil), // 21: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 22: dampfront.v1.ConstraintShortfall
+	(*Uncertainty)(nil),           // 21: dampfront.v1.Uncertainty
+	(*timestamppb.Timestamp)(nil), // 22: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 23: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
@@ -1130,22 +1153,23 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	18, // 11: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
 	19, // 12: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
 	20, // 13: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
-	0,  // 14: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	8,  // 15: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	21, // 16: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	21, // 17: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	21, // 18: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	6,  // 19: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 20: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	6,  // 21: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	22, // 22: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 23: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	21, // 24: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	25, // [25:25] is the sub-list for method output_type
-	25, // [25:25] is the sub-list for method input_type
-	25, // [25:25] is the sub-list for extension type_name
-	25, // [25:25] is the sub-list for extension extendee
-	0,  // [0:25] is the sub-list for field type_name
+	21, // 14: dampfront.v1.JobSpec.uncertainty:type_name -> dampfront.v1.Uncertainty
+	0,  // 15: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	8,  // 16: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	22, // 17: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	22, // 18: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	22, // 19: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	6,  // 20: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	3,  // 21: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	6,  // 22: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	23, // 23: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	5,  // 24: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	22, // 25: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	26, // [26:26] is the sub-list for method output_type
+	26, // [26:26] is the sub-list for method input_type
+	26, // [26:26] is the sub-list for extension type_name
+	26, // [26:26] is the sub-list for extension extendee
+	0,  // [0:26] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -1156,6 +1180,7 @@ func file_dampfront_v1_job_proto_init() {
 	file_dampfront_v1_design_proto_init()
 	file_dampfront_v1_road_proto_init()
 	file_dampfront_v1_transient_proto_init()
+	file_dampfront_v1_uncertainty_proto_init()
 	file_dampfront_v1_vehicle_proto_init()
 	file_dampfront_v1_job_proto_msgTypes[0].OneofWrappers = []any{}
 	type x struct{}

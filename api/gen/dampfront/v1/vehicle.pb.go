@@ -465,7 +465,11 @@ type Corner struct {
 	// Static sprung load on this corner; 0 derives it from the centre of
 	// gravity. Give all four or none.
 	// Plausible range when given (not 0): [100, 50000] N.
-	SprungLoadN   float64 `protobuf:"fixed64,10,opt,name=sprung_load_n,json=sprungLoadN,proto3" json:"sprung_load_n,omitempty"`
+	SprungLoadN float64 `protobuf:"fixed64,10,opt,name=sprung_load_n,json=sprungLoadN,proto3" json:"sprung_load_n,omitempty"`
+	// Bump-stop force curve past bump_stop_gap_m, used by every time-domain
+	// model (the check, manoeuvres, kerbs); absent means no force (contact
+	// is counted only). Needs bump_stop_gap_m > 0.
+	BumpStop      *BumpStop `protobuf:"bytes,11,opt,name=bump_stop,json=bumpStop,proto3" json:"bump_stop,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -570,6 +574,77 @@ func (x *Corner) GetSprungLoadN() float64 {
 	return 0
 }
 
+func (x *Corner) GetBumpStop() *BumpStop {
+	if x != nil {
+		return x.BumpStop
+	}
+	return nil
+}
+
+// BumpStop is a corner's bump rubber referred to the wheel: the force
+// that pushes body and wheel apart against its compression past the gap,
+// tabulated from F(0) = 0, linear between points and beyond the last
+// point with the last segment's slope (a rate with a progressive term is
+// given as its points). The frequency domain reports the probability of
+// reaching the gap only.
+type BumpStop struct {
+	state protoimpl.MessageState `protogen:"open.v1"`
+	// Compression past the gap at each point, increasing, the first > 0;
+	// 1 to 64 points.
+	// Plausible range: (0, 0.3] m.
+	DeflectionM []float64 `protobuf:"fixed64,1,rep,packed,name=deflection_m,json=deflectionM,proto3" json:"deflection_m,omitempty"`
+	// Force at the wheel at each point, non-decreasing; as many as
+	// deflection_m.
+	// Plausible range: [0, 1e+06] N.
+	ForceN        []float64 `protobuf:"fixed64,2,rep,packed,name=force_n,json=forceN,proto3" json:"force_n,omitempty"`
+	unknownFields protoimpl.UnknownFields
+	sizeCache     protoimpl.SizeCache
+}
+
+func (x *BumpStop) Reset() {
+	*x = BumpStop{}
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+	ms.StoreMessageInfo(mi)
+}
+
+func (x *BumpStop) String() string {
+	return protoimpl.X.MessageStringOf(x)
+}
+
+func (*BumpStop) ProtoMessage() {}
+
+func (x *BumpStop) ProtoReflect() protoreflect.Message {
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	if x != nil {
+		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
+		if ms.LoadMessageInfo() == nil {
+			ms.StoreMessageInfo(mi)
+		}
+		return ms
+	}
+	return mi.MessageOf(x)
+}
+
+// Deprecated: Use BumpStop.ProtoReflect.Descriptor instead.
+func (*BumpStop) Descriptor() ([]byte, []int) {
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
+}
+
+func (x *BumpStop) GetDeflectionM() []float64 {
+	if x != nil {
+		return x.DeflectionM
+	}
+	return nil
+}
+
+func (x *BumpStop) GetForceN() []float64 {
+	if x != nil {
+		return x.ForceN
+	}
+	return nil
+}
+
 // AntiRollBar is one axle's bar: each wheel of the axle sees its wheel rate
 // in addition to its own when the two wheels move in opposite directions.
 type AntiRollBar struct {
@@ -589,7 +664,7 @@ type AntiRollBar struct {
 
 func (x *AntiRollBar) Reset() {
 	*x = AntiRollBar{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -601,7 +676,7 @@ func (x *AntiRollBar) String() string {
 func (*AntiRollBar) ProtoMessage() {}
 
 func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[4]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -614,7 +689,7 @@ func (x *AntiRollBar) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AntiRollBar.ProtoReflect.Descriptor instead.
 func (*AntiRollBar) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{4}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
 }
 
 func (x *AntiRollBar) GetWheelRateNPerM() float64 {
@@ -672,7 +747,7 @@ type Aero struct {
 
 func (x *Aero) Reset() {
 	*x = Aero{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -684,7 +759,7 @@ func (x *Aero) String() string {
 func (*Aero) ProtoMessage() {}
 
 func (x *Aero) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[5]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -697,7 +772,7 @@ func (x *Aero) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use Aero.ProtoReflect.Descriptor instead.
 func (*Aero) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{5}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
 }
 
 func (x *Aero) GetReferenceSpeedMPerS() float64 {
@@ -771,7 +846,7 @@ type AeroTable struct {
 
 func (x *AeroTable) Reset() {
 	*x = AeroTable{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -783,7 +858,7 @@ func (x *AeroTable) String() string {
 func (*AeroTable) ProtoMessage() {}
 
 func (x *AeroTable) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[6]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -796,7 +871,7 @@ func (x *AeroTable) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTable.ProtoReflect.Descriptor instead.
 func (*AeroTable) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{6}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{7}
 }
 
 func (x *AeroTable) GetFrontRideHeightM() []float64 {
@@ -843,7 +918,7 @@ type AeroPolynomial struct {
 
 func (x *AeroPolynomial) Reset() {
 	*x = AeroPolynomial{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[8]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -855,7 +930,7 @@ func (x *AeroPolynomial) String() string {
 func (*AeroPolynomial) ProtoMessage() {}
 
 func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[7]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[8]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -868,7 +943,7 @@ func (x *AeroPolynomial) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroPolynomial.ProtoReflect.Descriptor instead.
 func (*AeroPolynomial) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{7}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{8}
 }
 
 func (x *AeroPolynomial) GetFrontOriginM() float64 {
@@ -910,7 +985,7 @@ type AeroTerm struct {
 
 func (x *AeroTerm) Reset() {
 	*x = AeroTerm{}
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[8]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[9]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -922,7 +997,7 @@ func (x *AeroTerm) String() string {
 func (*AeroTerm) ProtoMessage() {}
 
 func (x *AeroTerm) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_vehicle_proto_msgTypes[8]
+	mi := &file_dampfront_v1_vehicle_proto_msgTypes[9]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -935,7 +1010,7 @@ func (x *AeroTerm) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use AeroTerm.ProtoReflect.Descriptor instead.
 func (*AeroTerm) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{8}
+	return file_dampfront_v1_vehicle_proto_rawDescGZIP(), []int{9}
 }
 
 func (x *AeroTerm) GetFrontPower() uint32 {
@@ -1008,7 +1083,7 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\x13x_from_front_axle_m\x18\x02 \x01(\x01R\x0fxFromFrontAxleM\x12-\n" +
 	"\x12wheelbase_fraction\x18\x03 \x01(\x01R\x11wheelbaseFraction\x12\x0f\n" +
 	"\x03y_m\x18\x04 \x01(\x01R\x02yM\x12\"\n" +
-	"\rrest_height_m\x18\x05 \x01(\x01R\vrestHeightM\"\xc9\x03\n" +
+	"\rrest_height_m\x18\x05 \x01(\x01R\vrestHeightM\"\xfe\x03\n" +
 	"\x06Corner\x12,\n" +
 	"\x13spring_rate_n_per_m\x18\x01 \x01(\x01R\x0fspringRateNPerM\x12.\n" +
 	"\x13spring_motion_ratio\x18\x02 \x01(\x01R\x11springMotionRatio\x12*\n" +
@@ -1020,7 +1095,11 @@ const file_dampfront_v1_vehicle_proto_rawDesc = "" +
 	"\x16tyre_envelope_length_m\x18\b \x01(\x01R\x13tyreEnvelopeLengthM\x12%\n" +
 	"\x0fbump_stop_gap_m\x18\t \x01(\x01R\fbumpStopGapM\x12\"\n" +
 	"\rsprung_load_n\x18\n" +
-	" \x01(\x01R\vsprungLoadN\"\x84\x01\n" +
+	" \x01(\x01R\vsprungLoadN\x123\n" +
+	"\tbump_stop\x18\v \x01(\v2\x16.dampfront.v1.BumpStopR\bbumpStop\"F\n" +
+	"\bBumpStop\x12!\n" +
+	"\fdeflection_m\x18\x01 \x03(\x01R\vdeflectionM\x12\x17\n" +
+	"\aforce_n\x18\x02 \x03(\x01R\x06forceN\"\x84\x01\n" +
 	"\vAntiRollBar\x12*\n" +
 	"\x12wheel_rate_n_per_m\x18\x01 \x01(\x01R\x0ewheelRateNPerM\x12&\n" +
 	"\x10bar_rate_n_per_m\x18\x02 \x01(\x01R\fbarRateNPerM\x12!\n" +
@@ -1064,36 +1143,38 @@ func file_dampfront_v1_vehicle_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_vehicle_proto_rawDescData
 }
 
-var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 9)
+var file_dampfront_v1_vehicle_proto_msgTypes = make([]protoimpl.MessageInfo, 10)
 var file_dampfront_v1_vehicle_proto_goTypes = []any{
 	(*Vehicle)(nil),        // 0: dampfront.v1.Vehicle
 	(*HeaveElement)(nil),   // 1: dampfront.v1.HeaveElement
 	(*ReferencePoint)(nil), // 2: dampfront.v1.ReferencePoint
 	(*Corner)(nil),         // 3: dampfront.v1.Corner
-	(*AntiRollBar)(nil),    // 4: dampfront.v1.AntiRollBar
-	(*Aero)(nil),           // 5: dampfront.v1.Aero
-	(*AeroTable)(nil),      // 6: dampfront.v1.AeroTable
-	(*AeroPolynomial)(nil), // 7: dampfront.v1.AeroPolynomial
-	(*AeroTerm)(nil),       // 8: dampfront.v1.AeroTerm
-	(*LoadPaths)(nil),      // 9: dampfront.v1.LoadPaths
+	(*BumpStop)(nil),       // 4: dampfront.v1.BumpStop
+	(*AntiRollBar)(nil),    // 5: dampfront.v1.AntiRollBar
+	(*Aero)(nil),           // 6: dampfront.v1.Aero
+	(*AeroTable)(nil),      // 7: dampfront.v1.AeroTable
+	(*AeroPolynomial)(nil), // 8: dampfront.v1.AeroPolynomial
+	(*AeroTerm)(nil),       // 9: dampfront.v1.AeroTerm
+	(*LoadPaths)(nil),      // 10: dampfront.v1.LoadPaths
 }
 var file_dampfront_v1_vehicle_proto_depIdxs = []int32{
 	3,  // 0: dampfront.v1.Vehicle.corners:type_name -> dampfront.v1.Corner
-	4,  // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	4,  // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
-	5,  // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
+	5,  // 1: dampfront.v1.Vehicle.front_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	5,  // 2: dampfront.v1.Vehicle.rear_anti_roll_bar:type_name -> dampfront.v1.AntiRollBar
+	6,  // 3: dampfront.v1.Vehicle.aero:type_name -> dampfront.v1.Aero
 	2,  // 4: dampfront.v1.Vehicle.reference_points:type_name -> dampfront.v1.ReferencePoint
 	1,  // 5: dampfront.v1.Vehicle.front_heave:type_name -> dampfront.v1.HeaveElement
 	1,  // 6: dampfront.v1.Vehicle.rear_heave:type_name -> dampfront.v1.HeaveElement
-	9,  // 7: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
-	6,  // 8: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
-	7,  // 9: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
-	8,  // 10: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
-	11, // [11:11] is the sub-list for method output_type
-	11, // [11:11] is the sub-list for method input_type
-	11, // [11:11] is the sub-list for extension type_name
-	11, // [11:11] is the sub-list for extension extendee
-	0,  // [0:11] is the sub-list for field type_name
+	10, // 7: dampfront.v1.Vehicle.load_paths:type_name -> dampfront.v1.LoadPaths
+	4,  // 8: dampfront.v1.Corner.bump_stop:type_name -> dampfront.v1.BumpStop
+	7,  // 9: dampfront.v1.Aero.table:type_name -> dampfront.v1.AeroTable
+	8,  // 10: dampfront.v1.Aero.polynomial:type_name -> dampfront.v1.AeroPolynomial
+	9,  // 11: dampfront.v1.AeroPolynomial.terms:type_name -> dampfront.v1.AeroTerm
+	12, // [12:12] is the sub-list for method output_type
+	12, // [12:12] is the sub-list for method input_type
+	12, // [12:12] is the sub-list for extension type_name
+	12, // [12:12] is the sub-list for extension extendee
+	0,  // [0:12] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_vehicle_proto_init() }
@@ -1108,7 +1189,7 @@ func file_dampfront_v1_vehicle_proto_init() {
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_vehicle_proto_rawDesc), len(file_dampfront_v1_vehicle_proto_rawDesc)),
 			NumEnums:      0,
-			NumMessages:   9,
+			NumMessages:   10,
 			NumExtensions: 0,
 			NumServices:   0,
 		},

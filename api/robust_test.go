@@ -1,0 +1,105 @@
+package api
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"google.golang.org/protobuf/proto"
+
+	pb "dampfront/api/gen/dampfront/v1"
+)
+
+// robustTestSpec is testSpec with uncertain fuel and tyre rate, on a
+// seeded sample (so that the seed matters) of few cars, mean + 1 sd.
+func robustTestSpec(generations int32) *pb.JobSpec {
+	s := testSpec(generations)
+	s.Uncertainty = &pb.Uncertainty{
+		FuelMassKg: &pb.Range{Min: 10, Max: 90}, FuelPositionM: &pb.Range{Min: -0.4, Max: -0.2},
+		TyreRateScale: &pb.Range{Min: 0.9, Max: 1.1},
+		Method:        pb.RobustMethod_ROBUST_METHOD_SAMPLE, Samples: 4,
+		Measure: pb.RobustMeasure_ROBUST_MEASURE_MEAN_SD, K: 1,
+	}
+	return s
+}
+
+// TestRobustStudyResumeIsBitIdentical: a robust job run in one go and in
+// steps of two generations through checkpoints and fresh studies gives
+// the same front byte for byte (the sample is drawn from the stored seed,
+// the cars rebuilt on every open).
+func TestRobustStudyResumeIsBitIdentical(t *testing.T) {
+	t.Parallel()
+	spec, err := MarshalSpec(withDefaults(robustTestSpec(4)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	sameResumedFront(t, spec)
+}
+
+// TestRobustFrontDetail: each solution of a robust front carries its
+// figures; its objectives are mean + k·sd of them (the definition of
+// ROBUST_MEASURE_MEAN_SD; tolerance sumTol, the same sums), the nominal
+// grip equals the one recomputed from the nominal car's case metrics
+// (the definition of the grip objective, as TestFrontDetailIsConsistent),
+// and the worst is at least the mean.
+func TestRobustFrontDetail(t *testing.T) {
+	t.Parallel()
+	spec, _ := MarshalSpec(withDefaults(robustTestSpec(3)))
+	front := frontOf(t, spec, 100, false)
+	if len(front) == 0 {
+		t.Fatal("empty front")
+	}
+	weights := []float64{1, 0.5} // testRoadCases
+	for _, s := range front {
+		var sol pb.Solution
+		if err := proto.Unmarshal(s.Detail, &sol); err != nil {
+			t.Fatal(err)
+		}
+		r := sol.GetRobust()
+		if r == nil || len(r.Nominal) != 2 || len(r.Mean) != 2 || len(r.Sd) != 2 || len(r.Worst) != 2 {
+			t.Fatalf("solution %d: robust figures %v", s.Index, r)
+		}
+		for j := range s.Objectives {
+			want := r.Mean[j] + 1*r.Sd[j]
+			if math.Abs(s.Objectives[j]-want) > sumTol*want {
+				t.Errorf("solution %d objective %d = %.17g, mean + 1 sd %.17g", s.Index, j, s.Objectives[j], want)
+			}
+			if !(r.Worst[j] >= r.Mean[j]) || !(r.Sd[j] > 0) {
+				t.Errorf("solution %d objective %d: mean %g sd %g worst %g", s.Index, j, r.Mean[j], r.Sd[j], r.Worst[j])
+			}
+		}
+		var grip, wsum float64
+		for c, cm := range sol.CaseMetrics {
+			g := 0.0
+			for _, k := range cm.Corners {
+				g += k.RelativeTyreLoadSd * k.RelativeTyreLoadSd
+			}
+			grip += weights[c] * g / 4
+			wsum += weights[c]
+		}
+		if want := math.Sqrt(grip / wsum); math.Abs(r.Nominal[0]-want) > sumTol*want {
+			t.Errorf("solution %d: nominal grip %.17g, recomputed from the nominal metrics %.17g", s.Index, r.Nominal[0], want)
+		}
+	}
+}
+
+// TestRobustSpecDefaultsAndPaths: the stored spec carries the
+// uncertainty's defaults; bad ranges are refused naming the field.
+func TestRobustSpecDefaultsAndPaths(t *testing.T) {
+	t.Parallel()
+	s := testSpec(2)
+	s.Uncertainty = &pb.Uncertainty{DownforceScale: &pb.Range{Min: 0.9, Max: 1.1}}
+	d := withDefaults(s).GetUncertainty()
+	if d.GetMethod() != pb.RobustMethod_ROBUST_METHOD_QUADRATURE || d.GetMeasure() != pb.RobustMeasure_ROBUST_MEASURE_MEAN || d.GetNodes() != 3 || d.GetSamples() != 0 {
+		t.Errorf("defaults not stored: %v", d)
+	}
+	bad := testSpec(2)
+	bad.Uncertainty = &pb.Uncertainty{FuelMassKg: &pb.Range{Min: 80, Max: 20}, FrontTyreRateScale: &pb.Range{Min: math.NaN(), Max: 1},
+		Nodes: 3, Method: pb.RobustMethod(9)}
+	_, err := SpecToModel(bad)
+	for _, want := range []string{"spec.uncertainty.fuel_mass_kg.max", "spec.uncertainty.front_tyre_rate_scale.min", "spec.uncertainty.method"} {
+		if err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("error %v does not name %s", err, want)
+		}
+	}
+}
