@@ -3,8 +3,8 @@ package optimizer
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"reflect"
-	"slices"
 	"testing"
 )
 
@@ -42,14 +42,7 @@ func TestPolishNeighbourhoodZDT1(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		after := st.Front()
-		for i, x := range before {
-			if !slices.ContainsFunc(after, func(y Solution) bool {
-				return Dominates(y.Objectives, x.Objectives) || slices.Equal(y.Objectives, x.Objectives)
-			}) {
-				t.Errorf("rounds %v: point %d %v is neither kept nor dominated after the polish", rounds, i, x.Objectives)
-			}
-		}
+		neverWorse(t, fmt.Sprintf("rounds %v", rounds), before, st.Front())
 		return st, rep
 	}
 	for _, rounds := range []bool{false, true} {
