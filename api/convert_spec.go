@@ -5,6 +5,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs/study"
+	"dampfront/optimizer"
 )
 
 // specFromProto converts a JobSpec to the study's spec. Problems of shape
@@ -39,6 +40,10 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 	if q == nil {
 		return out
 	}
+	variation, ok := variations[q.GetVariation()]
+	if !ok {
+		p.add(at("search.variation"), "must be VARIATION_SBX or VARIATION_DIFFERENTIAL, got %d", int32(q.GetVariation()))
+	}
 	out.Search = study.Search{
 		PopulationSize: int(q.GetPopulationSize()),
 		Generations:    int(q.GetGenerations()),
@@ -56,8 +61,20 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 		StagnationWindow:    int(q.GetStagnationWindow()),
 		StagnationTolerance: q.GetStagnationTolerance(),
 		PolishBudget:        int(q.GetPolishBudget()),
+
+		Variation:             variation,
+		DifferentialWeight:    q.DifferentialWeight,
+		DifferentialCrossover: q.DifferentialCrossover,
 	}
 	return out
+}
+
+// variations maps the spec's variation to the optimiser's; unset is SBX,
+// and stays unset in a stored spec.
+var variations = map[pb.Variation]optimizer.Variation{
+	pb.Variation_VARIATION_UNSPECIFIED:  optimizer.VariationSBX,
+	pb.Variation_VARIATION_SBX:          optimizer.VariationSBX,
+	pb.Variation_VARIATION_DIFFERENTIAL: optimizer.VariationDifferential,
 }
 
 // withDefaults returns a copy of spec with the study's defaults (see
@@ -154,8 +171,9 @@ func fillDefaults(spec *pb.JobSpec, d *study.Spec) *pb.JobSpec {
 	for _, f := range []struct{ to, from **float64 }{
 		{&q.CrossoverProbability, &dq.CrossoverProbability}, {&q.CrossoverEta, &dq.CrossoverEta},
 		{&q.MutationProbability, &dq.MutationProbability}, {&q.MutationEta, &dq.MutationEta},
+		{&q.DifferentialWeight, &dq.DifferentialWeight}, {&q.DifferentialCrossover, &dq.DifferentialCrossover},
 	} {
-		if *f.to == nil {
+		if *f.to == nil && *f.from != nil {
 			*f.to = proto.Float64(**f.from)
 		}
 	}

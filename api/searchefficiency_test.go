@@ -2,7 +2,6 @@ package api
 
 import (
 	"context"
-	"fmt"
 	"math"
 	"runtime"
 	"sync"
@@ -15,19 +14,31 @@ import (
 // efficiencyPlan is demoSpec on its own road cases or, when rough, on one
 // ISO 8608 class C road at 50 m/s instead (a road far rougher than a
 // track, where the fixed point needs more iterations and the front
-// another shape).
-func efficiencyPlan(tb testing.TB, rough bool) *compiledSpec {
+// another shape), with edit applied to its search settings (nil leaves
+// them).
+func efficiencyPlan(tb testing.TB, rough bool, edit func(*pb.SearchSettings)) *compiledSpec {
 	tb.Helper()
 	spec := demoSpec(tb)
 	if rough {
 		spec.RoadCases = []*pb.RoadCase{{Name: "Rough road, ISO 8608 class C", SpeedMPerS: 50,
 			Spectrum: &pb.RoadCase_IsoClass{IsoClass: pb.IsoClass_ISO_CLASS_C}}}
 	}
+	if edit != nil {
+		edit(spec.Search)
+	}
 	pl, err := compileSpec(spec)
 	if err != nil {
 		tb.Fatal(err)
 	}
 	return pl
+}
+
+// efficientSearch is the search the README recommends for a job that
+// must reach the front in few evaluations: the differential variation
+// with its defaults and a population of 24.
+func efficientSearch(q *pb.SearchSettings) {
+	q.Variation = pb.Variation_VARIATION_DIFFERENTIAL
+	q.PopulationSize = 24
 }
 
 // gridFront evaluates the full-factorial grid of levels values per gene
@@ -90,6 +101,42 @@ func gridReference(front [][]float64) []float64 {
 	return ref
 }
 
+// efficiencyTarget is what a search is measured against on one car: the
+// 11-level grid's evaluations, its front's reference point (worst values
+// plus 10 % of the range) and hypervolume.
+type efficiencyTarget struct {
+	total  int
+	ref    []float64
+	target float64
+}
+
+// efficiencyTargets holds the grid of each car, computed once per test
+// binary (the test and the benchmark share it); index 1 is the rough road.
+var efficiencyTargets [2]struct {
+	once sync.Once
+	t    efficiencyTarget
+}
+
+// gridTarget returns the grid target of the car (see efficiencyPlan):
+// 14 641 evaluations, about 20 s on two cores for both cars.
+func gridTarget(tb testing.TB, rough bool) efficiencyTarget {
+	tb.Helper()
+	k := 0
+	if rough {
+		k = 1
+	}
+	e := &efficiencyTargets[k]
+	e.once.Do(func() {
+		front, total := gridFront(efficiencyPlan(tb, rough, nil).SearchProblem(), 11)
+		ref := gridReference(front)
+		e.t = efficiencyTarget{total: total, ref: ref, target: optimizer.Hypervolume(front, ref)}
+	})
+	if e.t.total == 0 {
+		tb.Fatal("grid target not computed")
+	}
+	return e.t
+}
+
 // efficiencyBudget caps the evaluations one seed may take to reach the
 // target before it counts as not reached.
 const efficiencyBudget = 1500
@@ -103,18 +150,18 @@ func hvOf(front []optimizer.Solution, ref []float64) float64 {
 	return optimizer.Hypervolume(pts, ref)
 }
 
-// evalsTo99 runs the search of pl with population n and the seed one
-// generation at a time and returns the evaluations after which the
-// archive first holds 99 % of target's hypervolume against ref (0 when
-// not within efficiencyBudget). With a polish budget it also tries, at
-// every second generation before that, to stop the search there and
-// polish its archive (the search restored from its checkpoint there as
-// finished), and returns the fewest search plus polish evaluations that
-// reach the target, the search alone included.
-func evalsTo99(tb testing.TB, pl *compiledSpec, n int, seed uint64, ref []float64, target float64, polish int) int {
+// evalsTo99 runs the search of pl with the seed one generation at a time
+// and returns the evaluations after which the archive first holds 99 %
+// of the grid target's hypervolume (0 when not within efficiencyBudget).
+// With a polish budget it also tries, at every second generation before
+// that, to stop the search there and polish its archive (the search
+// restored from its checkpoint there as finished), and returns the
+// fewest search plus polish evaluations that reach the target, the
+// search alone included.
+func evalsTo99(tb testing.TB, pl *compiledSpec, seed uint64, g efficiencyTarget, polish int) int {
 	prob := pl.SearchProblem()
 	s := pl.Settings(1, nil)
-	s.PopulationSize, s.Generations, s.Seed, s.ReferencePoint = n, efficiencyBudget/n, seed, ref
+	s.Generations, s.Seed, s.ReferencePoint = efficiencyBudget/s.PopulationSize, seed, g.ref
 	st, err := optimizer.New(prob, s)
 	if err != nil {
 		tb.Fatal(err)
@@ -129,7 +176,7 @@ func evalsTo99(tb testing.TB, pl *compiledSpec, n int, seed uint64, ref []float6
 		if _, err := st.Step(context.Background(), 1); err != nil {
 			tb.Fatal(err)
 		}
-		if hvOf(st.Front(), ref) >= 0.99*target {
+		if hvOf(st.Front(), g.ref) >= 0.99*g.target {
 			reached = st.Evaluations()
 			break
 		}
@@ -158,60 +205,107 @@ func evalsTo99(tb testing.TB, pl *compiledSpec, n int, seed uint64, ref []float6
 		if reached != 0 && e >= reached {
 			break
 		}
-		if rep.Hypervolume >= 0.99*target {
+		if rep.Hypervolume >= 0.99*g.target {
 			return e
 		}
 	}
 	return reached
 }
 
+// efficiencyCars are the two cars of the measurement.
+var efficiencyCars = []struct {
+	name  string
+	rough bool
+}{{"demo", false}, {"classC50", true}}
+
+// maxGridShare is the issue's target: every seed reaches 99 % of the
+// grid front's hypervolume within 3 % of the grid's evaluations.
+const maxGridShare = 0.03
+
+// TestSearchEfficiency checks the recommended efficient search (the
+// differential variation, population 24: efficientSearch) against an
+// 11-level full-factorial grid over the four damping ratios (14 641
+// evaluations), the exhaustive search an engineer would otherwise run:
+// on the demo car on its own road cases and on one ISO 8608 class C road
+// at 50 m/s, each of seeds 1 to 8 must reach 99 % of the grid front's
+// hypervolume (both against the grid front's worst values plus 10 % of
+// its range) within 3 % of the grid's evaluations (439). The 3 % and
+// 99 % are the project's target, not published figures; measured worst
+// seeds are 1.8 % and 2.3 % (README), so the margin is about a quarter
+// of the budget. With SBX (the default variation) the same check fails:
+// worst seeds 4.7 % and 7.1 % at population 48.
+func TestSearchEfficiency(t *testing.T) {
+	if testing.Short() {
+		t.Skip("evaluates two grids of 14 641 setups (about 20 s on two cores)")
+	}
+	t.Parallel()
+	for _, car := range efficiencyCars {
+		t.Run(car.name, func(t *testing.T) {
+			g := gridTarget(t, car.rough)
+			pl := efficiencyPlan(t, car.rough, efficientSearch)
+			limit := int(maxGridShare * float64(g.total))
+			for seed := uint64(1); seed <= 8; seed++ {
+				e := evalsTo99(t, pl, seed, g, 0)
+				t.Logf("seed %d: %d evaluations (%.2f %% of %d)", seed, e, 100*float64(e)/float64(g.total), g.total)
+				if e == 0 || e > limit {
+					t.Errorf("seed %d: %d evaluations to 99 %% of the grid's hypervolume, want 1 to %d (0: not within %d)",
+						seed, e, limit, efficiencyBudget)
+				}
+			}
+		})
+	}
+}
+
 // BenchmarkEvaluationsTo99 measures search efficiency (issue: at most 3 %
-// of a dense grid's evaluations to reach 99 % of its hypervolume): on the
-// demo car on its own road cases and on one ISO 8608 class C road at
-// 50 m/s, the full-factorial grid of 11 levels over the four damping
-// ratios (14 641 evaluations) gives the target front; for seeds 1 to 5
+// of a dense grid's evaluations to reach 99 % of its hypervolume) on the
+// cars and against the grids of TestSearchEfficiency: for seeds 1 to 8
 // the search runs generation by generation and the benchmark reports the
 // evaluations each seed needs until its archive holds 99 % of the grid
-// front's hypervolume (both against the grid front's worst values plus
-// 10 % of its range), for the default population of 48 and for 16, and
-// for 16 with a polish of 4 evaluations per point tried at every second
-// generation (the evaluations of a search stopped there and polished). 0 means not
-// reached within 1500 evaluations. Run it once; it takes a few minutes
-// on two cores:
+// front's hypervolume, for SBX (the default variation) with the default
+// population of 48, with 16, and with 16 and a polish of 4 evaluations
+// per point tried at every second generation (the evaluations of a
+// search stopped there and polished), and for the differential variation
+// with populations of 48 and 24. 0 means not reached within 1500
+// evaluations. Run it once; it takes a few minutes on two cores:
 //
 //	go test -run xxx -bench EvaluationsTo99 -benchtime 1x -timeout 0 ./api/
 func BenchmarkEvaluationsTo99(b *testing.B) {
-	for _, car := range []struct {
-		name  string
-		rough bool
-	}{{"demo", false}, {"classC50", true}} {
+	rows := []struct {
+		name   string
+		edit   func(*pb.SearchSettings)
+		polish int
+	}{
+		{"SBX/N=48", nil, 0},
+		{"SBX/N=16", func(q *pb.SearchSettings) { q.PopulationSize = 16 }, 0},
+		{"SBX/N=16/polish=4", func(q *pb.SearchSettings) { q.PopulationSize = 16 }, 4},
+		{"differential/N=48", func(q *pb.SearchSettings) {
+			efficientSearch(q)
+			q.PopulationSize = 48
+		}, 0},
+		{"differential/N=24", efficientSearch, 0},
+	}
+	for _, car := range efficiencyCars {
 		b.Run(car.name, func(b *testing.B) {
-			pl := efficiencyPlan(b, car.rough)
-			front, total := gridFront(pl.SearchProblem(), 11)
-			ref := gridReference(front)
-			target := optimizer.Hypervolume(front, ref)
-			for _, n := range []int{48, 16} {
-				for _, polish := range []int{0, 4} {
-					if n == 48 && polish > 0 {
-						continue // the default population is measured before the polish only
-					}
-					b.Run(fmt.Sprintf("N=%d/polish=%d", n, polish), func(b *testing.B) {
-						for b.Loop() {
-							worst, sum := 0, 0
-							for seed := uint64(1); seed <= 5; seed++ {
-								e := evalsTo99(b, pl, n, seed, ref, target, polish)
-								b.Logf("seed %d: %d evaluations (%.2f %% of %d)", seed, e, 100*float64(e)/float64(total), total)
-								if e == 0 {
-									e = math.MaxInt32
-								}
-								worst, sum = max(worst, e), sum+e
+			g := gridTarget(b, car.rough)
+			for _, row := range rows {
+				pl := efficiencyPlan(b, car.rough, row.edit)
+				b.Run(row.name, func(b *testing.B) {
+					for b.Loop() {
+						worst, sum := 0, 0
+						const seeds = 8
+						for seed := uint64(1); seed <= seeds; seed++ {
+							e := evalsTo99(b, pl, seed, g, row.polish)
+							b.Logf("seed %d: %d evaluations (%.2f %% of %d)", seed, e, 100*float64(e)/float64(g.total), g.total)
+							if e == 0 {
+								e = math.MaxInt32
 							}
-							b.ReportMetric(float64(worst), "worst-evals")
-							b.ReportMetric(100*float64(worst)/float64(total), "worst-%grid")
-							b.ReportMetric(float64(sum)/5, "mean-evals")
+							worst, sum = max(worst, e), sum+e
 						}
-					})
-				}
+						b.ReportMetric(float64(worst), "worst-evals")
+						b.ReportMetric(100*float64(worst)/float64(g.total), "worst-%grid")
+						b.ReportMetric(float64(sum)/seeds, "mean-evals")
+					}
+				})
 			}
 		})
 	}

@@ -88,6 +88,15 @@ var badSpecs = []struct {
 	{"polish budget and stagnation out of range", func(s *pb.JobSpec) {
 		s.Search.PolishBudget, s.Search.StagnationWindow, s.Search.StagnationTolerance = -1, -1, 1.5
 	}, []string{"spec.search.polish_budget", "spec.search.stagnation_tolerance", "spec.search.stagnation_window"}},
+	{"differential weight without the differential variation", func(s *pb.JobSpec) {
+		s.Search.DifferentialWeight = proto.Float64(0.5)
+	}, []string{"spec.search.differential_weight"}},
+	{"differential weight 3 and crossover -1", func(s *pb.JobSpec) {
+		s.Search.Variation = pb.Variation_VARIATION_DIFFERENTIAL
+		s.Search.DifferentialWeight, s.Search.DifferentialCrossover = proto.Float64(3), proto.Float64(-1)
+	}, []string{"spec.search.differential_crossover", "spec.search.differential_weight"}},
+	{"unknown variation", func(s *pb.JobSpec) { s.Search.Variation = 7 },
+		[]string{"spec.search.variation"}},
 	{"adjustment crossed", func(s *pb.JobSpec) { s.Adjustment.BumpStiffestRatio = 0.1 },
 		[]string{"spec.adjustment.bump_stiffest_ratio"}},
 	{"two curve points", func(s *pb.JobSpec) { s.Curves.Points = 2 },

@@ -13,6 +13,7 @@ import (
 //
 //	magic "dfnsga2\n", version u32 (= checkpointVersion)
 //	settings:  Settings.fingerprint, u64 each;
+//	           (version 4 on) Settings.variationFingerprint, u64 each;
 //	           ReferencePoint: present u8 [+ M f64]
 //	problem:   genes u32, bounds (Lo, Hi f64) per gene, M u32, constraints u32
 //	state:     started u8, generation u64, evaluations u64,
@@ -25,8 +26,9 @@ import (
 //	           reason str (version 2 on; version 1 has no such part)
 //	history:   count u32; per entry generation u64, evaluations u64,
 //	           hypervolume f64, best: present u8 [+ M f64]
-//	polish:    (version 3 on) points u64, evaluations u64, improved u64,
-//	           hypervolume f64; (version 4) rounds u64, replaced u64
+//	polish:    (version 3) points u64, evaluations u64, improved u64,
+//	           hypervolume f64; (version 4) present u8 [+ the same];
+//	           (version 5) present u8 [+ the same, rounds u64, replaced u64]
 //	checksum   CRC-32 (IEEE) of everything before it, u32
 //
 // where str is a u32 length and the bytes. The settings and problem shape
@@ -36,14 +38,31 @@ import (
 // that has found no feasible point yet fills it again from the next
 // generation on). Version 3 is written only by a polished search (see
 // Search.Polish), so an unpolished search keeps writing the bytes of
-// version 2; version 4 only by a polish that ran neighbourhood rounds
-// (Polish.Neighbourhood), so a polish without them keeps version 3.
+// version 2. Version 4 is written only by a search whose Variation is not
+// VariationSBX, so searches with the earlier settings keep writing the
+// bytes of versions 2 and 3. Version 5 is written only by a search whose
+// polish ran neighbourhood rounds (Polish.Neighbourhood), so a polish
+// without them keeps writing the bytes of versions 3 and 4.
 const (
 	checkpointMagic   = "dfnsga2\n"
-	checkpointVersion = 4
-	polishedVersion   = 3
+	checkpointVersion = 5
 	unpolishedVersion = 2
+	polishedVersion   = 3
+	variationVersion  = 4
 )
+
+// version is the checkpoint version s writes.
+func (s *Search) version() uint32 {
+	switch {
+	case s.polish != nil && s.polish.Rounds > 0:
+		return checkpointVersion
+	case s.settings.Variation != VariationSBX:
+		return variationVersion
+	case s.polish != nil:
+		return polishedVersion
+	}
+	return unpolishedVersion
+}
 
 // Checkpoint returns the full state of the search: populations, archive,
 // generation, counters, reference point, history and the settings that
@@ -51,17 +70,16 @@ const (
 func (s *Search) Checkpoint() ([]byte, error) {
 	var e encoder
 	e.buf = append(e.buf, checkpointMagic...)
-	switch {
-	case s.polish != nil && s.polish.Rounds > 0:
-		e.u32(checkpointVersion)
-	case s.polish != nil:
-		e.u32(polishedVersion)
-	default:
-		e.u32(unpolishedVersion)
-	}
+	version := s.version()
+	e.u32(version)
 
 	for _, f := range s.settings.fingerprint() {
 		e.u64(f.bits)
+	}
+	if version >= 4 {
+		for _, f := range s.settings.variationFingerprint() {
+			e.u64(f.bits)
+		}
 	}
 	e.optional(s.settings.ReferencePoint)
 
@@ -116,12 +134,15 @@ func (s *Search) Checkpoint() ([]byte, error) {
 		e.f64(p.Hypervolume)
 		e.optional(p.Best)
 	}
+	if version >= 4 {
+		e.bool(s.polish != nil)
+	}
 	if r := s.polish; r != nil {
 		e.u64(uint64(r.Points))
 		e.u64(uint64(r.Evaluations))
 		e.u64(uint64(r.Improved))
 		e.f64(r.Hypervolume)
-		if r.Rounds > 0 {
+		if version >= 5 {
 			e.u64(uint64(r.Rounds))
 			e.u64(uint64(r.Replaced))
 		}
@@ -152,7 +173,7 @@ func Restore(p Problem, s Settings, checkpoint []byte) (*Search, error) {
 	if v < 1 || v > checkpointVersion {
 		return nil, fmt.Errorf("%w: version %d, this package reads 1 to %d", ErrCheckpoint, v, checkpointVersion)
 	}
-	if err := st.readSettings(&d); err != nil {
+	if err := st.readSettings(&d, v); err != nil {
 		return nil, err
 	}
 	if err := st.readState(&d, v); err != nil {
@@ -167,15 +188,24 @@ func Restore(p Problem, s Settings, checkpoint []byte) (*Search, error) {
 	return st, nil
 }
 
-// readSettings compares the stored settings and problem shape with the
-// search's.
-func (s *Search) readSettings(d *decoder) error {
+// readSettings compares the stored settings and problem shape of a
+// checkpoint of the given version with the search's.
+func (s *Search) readSettings(d *decoder, version uint32) error {
 	st := &s.settings
 	mismatch := func(field string, stored, given any) error {
 		return &FieldError{Field: field, Msg: fmt.Sprintf("checkpoint was written with %v, given %v", stored, given)}
 	}
 	for _, f := range st.fingerprint() {
 		if v := d.u64(); d.err == nil && v != f.bits {
+			return mismatch("Settings."+f.field, f.show(v), f.show(f.bits))
+		}
+	}
+	for _, f := range st.variationFingerprint() {
+		v := uint64(0) // before version 4: SBX, weights 0
+		if version >= 4 {
+			v = d.u64()
+		}
+		if d.err == nil && v != f.bits {
 			return mismatch("Settings."+f.field, f.show(v), f.show(f.bits))
 		}
 	}
@@ -268,13 +298,17 @@ func (s *Search) readState(d *decoder, version uint32) error {
 		d.fail("%d history entries for generation %d", len(s.history), s.generation)
 	}
 	s.polish = nil
-	if version >= 3 {
+	if version == 3 || version >= 4 && d.bool() {
 		s.polish = &PolishReport{Points: d.int(), Evaluations: d.int(), Improved: d.int(), Hypervolume: d.f64()}
 	}
-	if version >= 4 {
+	if version >= 5 {
+		if s.polish == nil {
+			d.fail("version 5 without a polish")
+			return d.err
+		}
 		s.polish.Rounds, s.polish.Replaced = d.int(), d.int()
 		if d.err == nil && s.polish.Rounds == 0 {
-			d.fail("version 4 with no neighbourhood rounds")
+			d.fail("version 5 with no neighbourhood rounds")
 		}
 	}
 	return d.err

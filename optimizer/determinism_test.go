@@ -22,6 +22,9 @@ func determinismCases() []struct {
 	islands.Islands, islands.MigrationEvery, islands.Migrants = 3, 2, 5
 	odd := base(12)
 	odd.PopulationSize = 13
+	deIslands := withVariation(islands, VariationDifferential)
+	deOdd := withVariation(odd, VariationDifferential)
+	deOdd.DifferentialCrossover = 0.7
 	return []struct {
 		name string
 		p    Problem
@@ -33,6 +36,10 @@ func determinismCases() []struct {
 		{"DTLZ2 odd population", dtlz2{n: 12}, odd},
 		{"faulty", faulty{}, base(10)},
 		{"no feasible point", unreachable{}, base(2)},
+		{"ZDT1 differential", zdt{n: 30, h: zdt1H}, withVariation(base(30), VariationDifferential)},
+		{"ZDT1 differential three islands", zdt{n: 30, h: zdt1H}, deIslands},
+		{"CONSTR differential", constr{}, withVariation(base(2), VariationDifferential)},
+		{"DTLZ2 differential odd population", dtlz2{n: 12}, deOdd},
 	}
 }
 

@@ -53,7 +53,14 @@
 //	genetic algorithms", International Journal of Artificial Intelligence
 //	and Soft Computing 4(1):1-28, 2014, doi:10.1504/IJAISC.2014.059280,
 //
-// written out in operators.go.
+// written out in operators.go. With Settings.Variation set to
+// VariationDifferential each child is instead bred by differential
+// evolution's DE/rand/1/bin from a tournament winner and two other
+// survivors, then mutated the same way (differential.go; the NSGA-II-DE
+// of Li & Zhang 2009): its difference vectors move all genes together,
+// which follows a Pareto set that runs diagonally through the box, as a
+// damper front does, in a fraction of SBX's evaluations. Survival is
+// NSGA-II's either way.
 //
 // # How the search sits on eaopt
 //

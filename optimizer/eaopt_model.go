@@ -3,6 +3,7 @@ package optimizer
 import (
 	"fmt"
 	"math"
+	"math/rand"
 	"slices"
 
 	"github.com/MaxHalford/eaopt"
@@ -22,6 +23,10 @@ type nsga2 struct {
 	n         int // survivors per island
 	crossProb float64
 	selector  eaopt.SelTournament
+	// variation breeds the children; with VariationDifferential, deF and
+	// deCR are its F and CR.
+	variation Variation
+	deF, deCR float64
 }
 
 var _ eaopt.Model = (*nsga2)(nil)
@@ -50,20 +55,40 @@ func (m *nsga2) Apply(pop *eaopt.Population) error {
 		survivors[k] = s
 	}
 
+	var children eaopt.Individuals
+	var err error
+	if m.variation == VariationDifferential {
+		children, err = m.breedDifferential(survivors, born, pop.RNG)
+	} else {
+		children, err = m.breedSBX(survivors, born, pop.RNG)
+	}
+	if err != nil {
+		return err
+	}
+	for k := 0; k < m.n; k++ {
+		indis[2*k] = survivors[k]
+		indis[2*k+1] = children[k]
+	}
+	return nil
+}
+
+// breedSBX breeds N children from the survivors: pairs of binary
+// tournament winners, SBX with probability p_c, polynomial mutation.
+func (m *nsga2) breedSBX(survivors eaopt.Individuals, born int, rng *rand.Rand) (eaopt.Individuals, error) {
 	children := make(eaopt.Individuals, 0, m.n+1)
 	for len(children) < m.n {
 		// SelTournament returns clones of two distinct winners of binary
 		// tournaments on Fitness, which is the crowded-comparison order.
-		pair, _, err := m.selector.Apply(2, survivors, pop.RNG)
+		pair, _, err := m.selector.Apply(2, survivors, rng)
 		if err != nil {
-			return err
+			return nil, err
 		}
 		a, b := pair[0].Genome.(*genome), pair[1].Genome.(*genome)
-		if pop.RNG.Float64() < m.crossProb {
-			a.Crossover(b, pop.RNG)
+		if rng.Float64() < m.crossProb {
+			a.Crossover(b, rng)
 		}
-		a.Mutate(pop.RNG)
-		b.Mutate(pop.RNG)
+		a.Mutate(rng)
+		b.Mutate(rng)
 		for k, c := range [2]*genome{a, b} {
 			if len(children) == m.n {
 				break // N odd: the second child of the last pair is dropped
@@ -73,11 +98,25 @@ func (m *nsga2) Apply(pop *eaopt.Population) error {
 			children = append(children, eaopt.Individual{Genome: c, Fitness: c.fitness, ID: pair[k].ID})
 		}
 	}
-	for k := 0; k < m.n; k++ {
-		indis[2*k] = survivors[k]
-		indis[2*k+1] = children[k]
+	return children, nil
+}
+
+// breedDifferential breeds N children from the survivors, one per binary
+// tournament winner, by deChild.
+func (m *nsga2) breedDifferential(survivors eaopt.Individuals, born int, rng *rand.Rand) (eaopt.Individuals, error) {
+	children := make(eaopt.Individuals, 0, m.n)
+	for len(children) < m.n {
+		pick, _, err := m.selector.Apply(1, survivors, rng)
+		if err != nil {
+			return nil, err
+		}
+		// A survivor's Fitness is its index in survivors (Apply).
+		c := deChild(survivors, int(pick[0].Fitness), m.deF, m.deCR, rng)
+		c.born = born
+		c.fitness = float64(m.n + len(children))
+		children = append(children, eaopt.Individual{Genome: c, Fitness: c.fitness, ID: pick[0].ID})
 	}
-	return nil
+	return children, nil
 }
 
 // crowdedOrder returns the indices of indis in NSGA-II's crowded-comparison

@@ -19,7 +19,7 @@ import (
 // extent) is twice theirs. With the rounds the polish never makes a point
 // worse (every point before it is dominated or kept, exact comparison),
 // the rounds end before their bound, and the result is the same on 1 and
-// 3 workers and after a checkpoint (version 4) and restore.
+// 3 workers and after a checkpoint (version 5) and restore.
 func TestPolishNeighbourhoodZDT1(t *testing.T) {
 	t.Parallel()
 	prob := zdt{n: 4, h: zdt1H}

@@ -62,6 +62,9 @@ func New(p Problem, s Settings) (*Search, error) {
 			n:         s.PopulationSize,
 			crossProb: s.CrossoverProbability,
 			selector:  eaopt.SelTournament{NContestants: 2},
+			variation: s.Variation,
+			deF:       s.DifferentialWeight,
+			deCR:      s.DifferentialCrossover,
 		},
 		ref: slices.Clone(s.ReferencePoint),
 	}

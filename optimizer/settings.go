@@ -42,6 +42,18 @@ type Settings struct {
 	// MutationEta is η_m, the distribution index of polynomial mutation.
 	// Deb et al. (2002) used 20.
 	MutationEta float64
+	// Variation is the operator that breeds children: VariationSBX (the
+	// zero value, NSGA-II's SBX and polynomial mutation) or
+	// VariationDifferential (DE/rand/1/bin and polynomial mutation, see
+	// deChild), which reaches a damper front in a fraction of SBX's
+	// evaluations. CrossoverProbability and CrossoverEta are not used
+	// by VariationDifferential; the mutation settings are.
+	Variation Variation
+	// DifferentialWeight is DE's F, in (0, 2]; DifferentialCrossover is
+	// its CR, in [0, 1] (see DefaultDifferentialWeight). Both are used
+	// only by VariationDifferential and must be 0 with VariationSBX.
+	DifferentialWeight    float64
+	DifferentialCrossover float64
 	// Workers is the largest number of evaluations run at once. 1 runs
 	// them one after the other; more turns on eaopt's parallel
 	// evaluation, which starts GOMAXPROCS goroutines per island, so the
@@ -139,6 +151,24 @@ func (s Settings) Validate(nObj int) error {
 	if !(s.MutationEta >= 0) || math.IsInf(s.MutationEta, 0) {
 		bad("MutationEta", "must be finite and not negative, got %g", s.MutationEta)
 	}
+	switch s.Variation {
+	case VariationSBX:
+		if s.DifferentialWeight != 0 {
+			bad("DifferentialWeight", "is used only with the differential variation; leave it 0, got %g", s.DifferentialWeight)
+		}
+		if s.DifferentialCrossover != 0 {
+			bad("DifferentialCrossover", "is used only with the differential variation; leave it 0, got %g", s.DifferentialCrossover)
+		}
+	case VariationDifferential:
+		if !(s.DifferentialWeight > 0 && s.DifferentialWeight <= 2) {
+			bad("DifferentialWeight", "must be in (0, 2], got %g", s.DifferentialWeight)
+		}
+		if !(s.DifferentialCrossover >= 0 && s.DifferentialCrossover <= 1) {
+			bad("DifferentialCrossover", "must be in [0, 1], got %g", s.DifferentialCrossover)
+		}
+	default:
+		bad("Variation", "must be SBX (%d) or differential (%d), got %d", VariationSBX, VariationDifferential, int(s.Variation))
+	}
 	if s.Workers < 1 {
 		bad("Workers", "must be at least 1, got %d", s.Workers)
 	}
@@ -189,7 +219,8 @@ func (f settingField) show(bits uint64) any {
 // fingerprint lists the settings a checkpoint must match, in checkpoint
 // order (ReferencePoint is stored after them). Generations, Workers,
 // the stagnation rule and Progress are not in it: they do not change the
-// course of a run, only where it ends.
+// course of a run, only where it ends. The variation's settings follow
+// in a checkpoint of version 4 only (variationFingerprint).
 func (s *Settings) fingerprint() []settingField {
 	fl := func(name string, v float64) settingField {
 		return settingField{field: name, bits: math.Float64bits(v), float: true}
@@ -204,5 +235,16 @@ func (s *Settings) fingerprint() []settingField {
 		fl("CrossoverEta", s.CrossoverEta),
 		fl("MutationProbability", s.MutationProbability),
 		fl("MutationEta", s.MutationEta),
+	}
+}
+
+// variationFingerprint lists the variation's settings, which a checkpoint
+// of version 4 stores after fingerprint's; earlier versions were all
+// written by VariationSBX with both weights 0.
+func (s *Settings) variationFingerprint() []settingField {
+	return []settingField{
+		{field: "Variation", bits: uint64(s.Variation)},
+		{field: "DifferentialWeight", bits: math.Float64bits(s.DifferentialWeight), float: true},
+		{field: "DifferentialCrossover", bits: math.Float64bits(s.DifferentialCrossover), float: true},
 	}
 }

@@ -127,12 +127,24 @@ func objectives(sols []Solution) [][]float64 {
 // The thresholds leave margin below what seeds 1-3 reach (0.993-0.999 of
 // the hypervolume, mean distance 3×10⁻⁴-1.2×10⁻³); they are this test's
 // pass marks, not published figures.
+//
+// The same runs with VariationDifferential (DE/rand/1/bin, F = 0.5, in
+// place of SBX) use CR = 0.2: the ZDT problems are separable, where DE
+// wants a small CR (Storn & Price 1997, from memory; with CR = 1, the
+// damper default, ZDT1 reaches 0.59-0.83 of the hypervolume in the same
+// budget). Their marks are looser, again below what seeds 1-3 reach
+// (0.979-0.994 of the hypervolume, mean distance 1.5×10⁻³-3.9×10⁻³).
 func TestZDT(t *testing.T) {
 	t.Parallel()
-	const (
-		minFraction = 0.98 // of the analytic hypervolume
-		maxDistance = 2e-3 // mean distance to the analytic front, objective units
-	)
+	variations := []struct {
+		v           Variation
+		cr          float64
+		minFraction float64 // of the analytic hypervolume
+		maxDistance float64 // mean distance to the analytic front, objective units
+	}{
+		{VariationSBX, 0, 0.98, 2e-3},
+		{VariationDifferential, 0.2, 0.975, 5e-3},
+	}
 	zdt3, zdt3Err := zdt3Hypervolume()
 	cases := []struct {
 		name  string
@@ -145,32 +157,38 @@ func TestZDT(t *testing.T) {
 	}
 	for _, tc := range cases {
 		ref := analyticFront(tc.h, frontSamples)
-		for _, seed := range []uint64{1, 2, 3} {
-			t.Run(fmt.Sprintf("%s/seed%d", tc.name, seed), func(t *testing.T) {
-				t.Parallel()
-				s := DefaultSettings(30)
-				s.Seed = seed
-				s.ReferencePoint = []float64{1, 1}
-				st := mustNew(t, zdt{n: 30, h: tc.h}, s)
-				if err := st.Run(context.Background()); err != nil {
-					t.Fatal(err)
-				}
-				front := st.Front()
-				hv := Hypervolume(objectives(front), s.ReferencePoint)
-				frac := hv / tc.exact
-				gd := meanDistance(front, ref)
-				t.Logf("seed %d: %d evaluations, %d archive points, hypervolume %.6f of %.6f (%.4f), mean distance %.2e",
-					seed, st.Evaluations(), len(front), hv, tc.exact, frac, gd)
-				if frac < minFraction {
-					t.Errorf("hypervolume fraction %.4f, want >= %v", frac, minFraction)
-				}
-				if gd > maxDistance {
-					t.Errorf("mean distance to the analytic front %.3g, want <= %v", gd, maxDistance)
-				}
-				if h := st.History(); h[len(h)-1].Hypervolume != hv {
-					t.Errorf("last progress hypervolume %v, archive's %v", h[len(h)-1].Hypervolume, hv)
-				}
-			})
+		for _, vc := range variations {
+			minFraction, maxDistance := vc.minFraction, vc.maxDistance
+			for _, seed := range []uint64{1, 2, 3} {
+				t.Run(fmt.Sprintf("%s/%v/seed%d", tc.name, vc.v, seed), func(t *testing.T) {
+					t.Parallel()
+					s := withVariation(DefaultSettings(30), vc.v)
+					if vc.v == VariationDifferential {
+						s.DifferentialCrossover = vc.cr
+					}
+					s.Seed = seed
+					s.ReferencePoint = []float64{1, 1}
+					st := mustNew(t, zdt{n: 30, h: tc.h}, s)
+					if err := st.Run(context.Background()); err != nil {
+						t.Fatal(err)
+					}
+					front := st.Front()
+					hv := Hypervolume(objectives(front), s.ReferencePoint)
+					frac := hv / tc.exact
+					gd := meanDistance(front, ref)
+					t.Logf("seed %d: %d evaluations, %d archive points, hypervolume %.6f of %.6f (%.4f), mean distance %.2e",
+						seed, st.Evaluations(), len(front), hv, tc.exact, frac, gd)
+					if frac < minFraction {
+						t.Errorf("hypervolume fraction %.4f, want >= %v", frac, minFraction)
+					}
+					if gd > maxDistance {
+						t.Errorf("mean distance to the analytic front %.3g, want <= %v", gd, maxDistance)
+					}
+					if h := st.History(); h[len(h)-1].Hypervolume != hv {
+						t.Errorf("last progress hypervolume %v, archive's %v", h[len(h)-1].Hypervolume, hv)
+					}
+				})
+			}
 		}
 	}
 	if zdt3Err > 2e-5 { // far below the 2% margin of minFraction
@@ -237,4 +255,14 @@ func TestDTLZ2(t *testing.T) {
 	if gd > maxDistance {
 		t.Errorf("mean distance %.3g, want <= %v", gd, maxDistance)
 	}
+}
+
+// withVariation returns s with variation v and, for the differential
+// one, its default F and CR.
+func withVariation(s Settings, v Variation) Settings {
+	s.Variation = v
+	if v == VariationDifferential {
+		s.DifferentialWeight, s.DifferentialCrossover = DefaultDifferentialWeight, DefaultDifferentialCrossover
+	}
+	return s
 }

@@ -164,7 +164,14 @@ func searchSettings(q *Search) optimizer.Settings {
 		ReferencePoint:       q.ReferencePoint,
 		StagnationWindow:     q.StagnationWindow,
 		StagnationTolerance:  q.StagnationTolerance,
+		Variation:            q.Variation,
 		Workers:              1,
+	}
+	if q.DifferentialWeight != nil {
+		s.DifferentialWeight = *q.DifferentialWeight
+	}
+	if q.DifferentialCrossover != nil {
+		s.DifferentialCrossover = *q.DifferentialCrossover
 	}
 	if !(s.Islands > 1 && s.MigrationEvery > 0) {
 		s.Migrants = 0

@@ -5,6 +5,7 @@ import (
 	"slices"
 
 	"dampfront/model"
+	"dampfront/optimizer"
 )
 
 // Defaults where a spec is silent; the one place for each. A stored spec
@@ -137,6 +138,10 @@ func WithDefaults(s *Spec) *Spec {
 	orDefault(&q.CrossoverEta, DefaultCrossoverEta)
 	orDefault(&q.MutationProbability, 1/float64(out.Design.geneCount()))
 	orDefault(&q.MutationEta, DefaultMutationEta)
+	if q.Variation == optimizer.VariationDifferential {
+		orDefault(&q.DifferentialWeight, optimizer.DefaultDifferentialWeight)
+		orDefault(&q.DifferentialCrossover, optimizer.DefaultDifferentialCrossover)
+	}
 	if s.Uncertainty != nil {
 		// The method, measure and point count are the model's defaults;
 		// the sample's seed is the job's one seed.

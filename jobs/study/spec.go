@@ -1,6 +1,9 @@
 package study
 
-import "dampfront/model"
+import (
+	"dampfront/model"
+	"dampfront/optimizer"
+)
 
 // Spec is a job: the car, its road cases, what is searched and how. Zero
 // and nil fields take the defaults of WithDefaults; a stored spec has
@@ -105,4 +108,12 @@ type Search struct {
 	// local polish after the last generation (optimizer.Polish); 0 (the
 	// default) polishes nothing, at most MaxPolishBudget.
 	PolishBudget int
+
+	// Variation breeds the children (optimizer.Settings.Variation); the
+	// zero value is SBX. DifferentialWeight and DifferentialCrossover
+	// are DE's F and CR, only for optimizer.VariationDifferential, where
+	// nil means DefaultDifferentialWeight and DefaultDifferentialCrossover.
+	Variation             optimizer.Variation
+	DifferentialWeight    *float64
+	DifferentialCrossover *float64
 }

@@ -22,6 +22,62 @@ const (
 	_ = protoimpl.EnforceVersion(protoimpl.MaxVersion - 20)
 )
 
+// Variation is the operator that breeds a generation's children.
+type Variation int32
+
+const (
+	// Not given: VARIATION_SBX.
+	Variation_VARIATION_UNSPECIFIED Variation = 0
+	// NSGA-II's own: simulated binary crossover of two tournament winners
+	// (crossover_probability, crossover_eta), then polynomial mutation.
+	Variation_VARIATION_SBX Variation = 1
+	// Differential evolution's DE/rand/1/bin from a tournament winner and
+	// two other survivors (differential_weight, differential_crossover),
+	// then polynomial mutation (Li & Zhang 2009).
+	Variation_VARIATION_DIFFERENTIAL Variation = 2
+)
+
+// Enum value maps for Variation.
+var (
+	Variation_name = map[int32]string{
+		0: "VARIATION_UNSPECIFIED",
+		1: "VARIATION_SBX",
+		2: "VARIATION_DIFFERENTIAL",
+	}
+	Variation_value = map[string]int32{
+		"VARIATION_UNSPECIFIED":  0,
+		"VARIATION_SBX":          1,
+		"VARIATION_DIFFERENTIAL": 2,
+	}
+)
+
+func (x Variation) Enum() *Variation {
+	p := new(Variation)
+	*p = x
+	return p
+}
+
+func (x Variation) String() string {
+	return protoimpl.X.EnumStringOf(x.Descriptor(), protoreflect.EnumNumber(x))
+}
+
+func (Variation) Descriptor() protoreflect.EnumDescriptor {
+	return file_dampfront_v1_job_proto_enumTypes[0].Descriptor()
+}
+
+func (Variation) Type() protoreflect.EnumType {
+	return &file_dampfront_v1_job_proto_enumTypes[0]
+}
+
+func (x Variation) Number() protoreflect.EnumNumber {
+	return protoreflect.EnumNumber(x)
+}
+
+// Deprecated: Use Variation.Descriptor instead.
+func (Variation) EnumDescriptor() ([]byte, []int) {
+	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{0}
+}
+
 // JobState is the life-cycle state of a job (AIP-216).
 type JobState int32
 
@@ -71,11 +127,11 @@ func (x JobState) String() string {
 }
 
 func (JobState) Descriptor() protoreflect.EnumDescriptor {
-	return file_dampfront_v1_job_proto_enumTypes[0].Descriptor()
+	return file_dampfront_v1_job_proto_enumTypes[1].Descriptor()
 }
 
 func (JobState) Type() protoreflect.EnumType {
-	return &file_dampfront_v1_job_proto_enumTypes[0]
+	return &file_dampfront_v1_job_proto_enumTypes[1]
 }
 
 func (x JobState) Number() protoreflect.EnumNumber {
@@ -84,7 +140,7 @@ func (x JobState) Number() protoreflect.EnumNumber {
 
 // Deprecated: Use JobState.Descriptor instead.
 func (JobState) EnumDescriptor() ([]byte, []int) {
-	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{0}
+	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{1}
 }
 
 // JobView selects how much of a job is returned (AIP-157).
@@ -124,11 +180,11 @@ func (x JobView) String() string {
 }
 
 func (JobView) Descriptor() protoreflect.EnumDescriptor {
-	return file_dampfront_v1_job_proto_enumTypes[1].Descriptor()
+	return file_dampfront_v1_job_proto_enumTypes[2].Descriptor()
 }
 
 func (JobView) Type() protoreflect.EnumType {
-	return &file_dampfront_v1_job_proto_enumTypes[1]
+	return &file_dampfront_v1_job_proto_enumTypes[2]
 }
 
 func (x JobView) Number() protoreflect.EnumNumber {
@@ -137,7 +193,7 @@ func (x JobView) Number() protoreflect.EnumNumber {
 
 // Deprecated: Use JobView.Descriptor instead.
 func (JobView) EnumDescriptor() ([]byte, []int) {
-	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{1}
+	return file_dampfront_v1_job_proto_rawDescGZIP(), []int{2}
 }
 
 // SearchSettings configure the NSGA-II search. Zero or absent fields take
@@ -176,9 +232,20 @@ type SearchSettings struct {
 	// Evaluations per front point of the local polish after the last
 	// generation (a pattern search on an achievement scalarising function
 	// from each point), 0 to 1000; 0 (the default) polishes nothing.
-	PolishBudget  int32 `protobuf:"varint,14,opt,name=polish_budget,json=polishBudget,proto3" json:"polish_budget,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	PolishBudget int32 `protobuf:"varint,14,opt,name=polish_budget,json=polishBudget,proto3" json:"polish_budget,omitempty"`
+	// How the children of each generation are bred: unset means
+	// VARIATION_SBX. VARIATION_DIFFERENTIAL reaches a damper front in far
+	// fewer evaluations (see the README's search efficiency section).
+	Variation Variation `protobuf:"varint,15,opt,name=variation,proto3,enum=dampfront.v1.Variation" json:"variation,omitempty"`
+	// Differential evolution's weight F in (0, 2]; only with
+	// VARIATION_DIFFERENTIAL, where unset means 0.5.
+	DifferentialWeight *float64 `protobuf:"fixed64,16,opt,name=differential_weight,json=differentialWeight,proto3,oneof" json:"differential_weight,omitempty"`
+	// Differential evolution's crossover rate CR in [0, 1]; only with
+	// VARIATION_DIFFERENTIAL, where unset means 1 (every ratio from the
+	// difference vector: a damper front runs diagonally through the box).
+	DifferentialCrossover *float64 `protobuf:"fixed64,17,opt,name=differential_crossover,json=differentialCrossover,proto3,oneof" json:"differential_crossover,omitempty"`
+	unknownFields         protoimpl.UnknownFields
+	sizeCache             protoimpl.SizeCache
 }
 
 func (x *SearchSettings) Reset() {
@@ -305,6 +372,27 @@ func (x *SearchSettings) GetStagnationTolerance() float64 {
 func (x *SearchSettings) GetPolishBudget() int32 {
 	if x != nil {
 		return x.PolishBudget
+	}
+	return 0
+}
+
+func (x *SearchSettings) GetVariation() Variation {
+	if x != nil {
+		return x.Variation
+	}
+	return Variation_VARIATION_UNSPECIFIED
+}
+
+func (x *SearchSettings) GetDifferentialWeight() float64 {
+	if x != nil && x.DifferentialWeight != nil {
+		return *x.DifferentialWeight
+	}
+	return 0
+}
+
+func (x *SearchSettings) GetDifferentialCrossover() float64 {
+	if x != nil && x.DifferentialCrossover != nil {
+		return *x.DifferentialCrossover
 	}
 	return 0
 }
@@ -977,7 +1065,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\xa4\x05\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\x80\a\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -993,12 +1081,17 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x0freference_point\x18\v \x03(\x01R\x0ereferencePoint\x12+\n" +
 	"\x11stagnation_window\x18\f \x01(\x05R\x10stagnationWindow\x121\n" +
 	"\x14stagnation_tolerance\x18\r \x01(\x01R\x13stagnationTolerance\x12#\n" +
-	"\rpolish_budget\x18\x0e \x01(\x05R\fpolishBudgetB\a\n" +
+	"\rpolish_budget\x18\x0e \x01(\x05R\fpolishBudget\x125\n" +
+	"\tvariation\x18\x0f \x01(\x0e2\x17.dampfront.v1.VariationR\tvariation\x124\n" +
+	"\x13differential_weight\x18\x10 \x01(\x01H\x05R\x12differentialWeight\x88\x01\x01\x12:\n" +
+	"\x16differential_crossover\x18\x11 \x01(\x01H\x06R\x15differentialCrossover\x88\x01\x01B\a\n" +
 	"\x05_seedB\x18\n" +
 	"\x16_crossover_probabilityB\x10\n" +
 	"\x0e_crossover_etaB\x17\n" +
 	"\x15_mutation_probabilityB\x0f\n" +
-	"\r_mutation_eta\"\xc4\a\n" +
+	"\r_mutation_etaB\x16\n" +
+	"\x14_differential_weightB\x19\n" +
+	"\x17_differential_crossover\"\xc4\a\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -1085,7 +1178,11 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\vhypervolume\x18\x04 \x01(\x01R\vhypervolume\x12'\n" +
 	"\x0fbest_objectives\x18\x05 \x03(\x01R\x0ebestObjectives\x12;\n" +
 	"\vupdate_time\x18\x06 \x01(\v2\x1a.google.protobuf.TimestampR\n" +
-	"updateTime*\x9a\x01\n" +
+	"updateTime*U\n" +
+	"\tVariation\x12\x19\n" +
+	"\x15VARIATION_UNSPECIFIED\x10\x00\x12\x11\n" +
+	"\rVARIATION_SBX\x10\x01\x12\x1a\n" +
+	"\x16VARIATION_DIFFERENTIAL\x10\x02*\x9a\x01\n" +
 	"\bJobState\x12\x19\n" +
 	"\x15JOB_STATE_UNSPECIFIED\x10\x00\x12\x14\n" +
 	"\x10JOB_STATE_QUEUED\x10\x01\x12\x15\n" +
@@ -1110,66 +1207,68 @@ func file_dampfront_v1_job_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_job_proto_rawDescData
 }
 
-var file_dampfront_v1_job_proto_enumTypes = make([]protoimpl.EnumInfo, 2)
+var file_dampfront_v1_job_proto_enumTypes = make([]protoimpl.EnumInfo, 3)
 var file_dampfront_v1_job_proto_msgTypes = make([]protoimpl.MessageInfo, 7)
 var file_dampfront_v1_job_proto_goTypes = []any{
-	(JobState)(0),                 // 0: dampfront.v1.JobState
-	(JobView)(0),                  // 1: dampfront.v1.JobView
-	(*SearchSettings)(nil),        // 2: dampfront.v1.SearchSettings
-	(*JobSpec)(nil),               // 3: dampfront.v1.JobSpec
-	(*Job)(nil),                   // 4: dampfront.v1.Job
-	(*FrontCheck)(nil),            // 5: dampfront.v1.FrontCheck
-	(*Progress)(nil),              // 6: dampfront.v1.Progress
-	nil,                           // 7: dampfront.v1.JobSpec.LabelsEntry
-	nil,                           // 8: dampfront.v1.Job.LabelsEntry
-	(*Vehicle)(nil),               // 9: dampfront.v1.Vehicle
-	(*RoadCase)(nil),              // 10: dampfront.v1.RoadCase
-	(*Grid)(nil),                  // 11: dampfront.v1.Grid
-	(*DesignSpace)(nil),           // 12: dampfront.v1.DesignSpace
-	(*Objective)(nil),             // 13: dampfront.v1.Objective
-	(*Constraint)(nil),            // 14: dampfront.v1.Constraint
-	(*Adjustment)(nil),            // 15: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),         // 16: dampfront.v1.CurveSettings
-	(*Setup)(nil),                 // 17: dampfront.v1.Setup
-	(*Adjusters)(nil),             // 18: dampfront.v1.Adjusters
-	(*Manoeuvre)(nil),             // 19: dampfront.v1.Manoeuvre
-	(*Kerb)(nil),                  // 20: dampfront.v1.Kerb
-	(*Uncertainty)(nil),           // 21: dampfront.v1.Uncertainty
-	(*timestamppb.Timestamp)(nil), // 22: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 23: dampfront.v1.ConstraintShortfall
+	(Variation)(0),                // 0: dampfront.v1.Variation
+	(JobState)(0),                 // 1: dampfront.v1.JobState
+	(JobView)(0),                  // 2: dampfront.v1.JobView
+	(*SearchSettings)(nil),        // 3: dampfront.v1.SearchSettings
+	(*JobSpec)(nil),               // 4: dampfront.v1.JobSpec
+	(*Job)(nil),                   // 5: dampfront.v1.Job
+	(*FrontCheck)(nil),            // 6: dampfront.v1.FrontCheck
+	(*Progress)(nil),              // 7: dampfront.v1.Progress
+	nil,                           // 8: dampfront.v1.JobSpec.LabelsEntry
+	nil,                           // 9: dampfront.v1.Job.LabelsEntry
+	(*Vehicle)(nil),               // 10: dampfront.v1.Vehicle
+	(*RoadCase)(nil),              // 11: dampfront.v1.RoadCase
+	(*Grid)(nil),                  // 12: dampfront.v1.Grid
+	(*DesignSpace)(nil),           // 13: dampfront.v1.DesignSpace
+	(*Objective)(nil),             // 14: dampfront.v1.Objective
+	(*Constraint)(nil),            // 15: dampfront.v1.Constraint
+	(*Adjustment)(nil),            // 16: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),         // 17: dampfront.v1.CurveSettings
+	(*Setup)(nil),                 // 18: dampfront.v1.Setup
+	(*Adjusters)(nil),             // 19: dampfront.v1.Adjusters
+	(*Manoeuvre)(nil),             // 20: dampfront.v1.Manoeuvre
+	(*Kerb)(nil),                  // 21: dampfront.v1.Kerb
+	(*Uncertainty)(nil),           // 22: dampfront.v1.Uncertainty
+	(*timestamppb.Timestamp)(nil), // 23: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 24: dampfront.v1.ConstraintShortfall
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
-	7,  // 0: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
-	9,  // 1: dampfront.v1.JobSpec.vehicle:type_name -> dampfront.v1.Vehicle
-	10, // 2: dampfront.v1.JobSpec.road_cases:type_name -> dampfront.v1.RoadCase
-	11, // 3: dampfront.v1.JobSpec.grid:type_name -> dampfront.v1.Grid
-	12, // 4: dampfront.v1.JobSpec.design_space:type_name -> dampfront.v1.DesignSpace
-	13, // 5: dampfront.v1.JobSpec.objectives:type_name -> dampfront.v1.Objective
-	14, // 6: dampfront.v1.JobSpec.constraints:type_name -> dampfront.v1.Constraint
-	2,  // 7: dampfront.v1.JobSpec.search:type_name -> dampfront.v1.SearchSettings
-	15, // 8: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
-	16, // 9: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
-	17, // 10: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
-	18, // 11: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
-	19, // 12: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
-	20, // 13: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
-	21, // 14: dampfront.v1.JobSpec.uncertainty:type_name -> dampfront.v1.Uncertainty
-	0,  // 15: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	8,  // 16: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	22, // 17: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	22, // 18: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	22, // 19: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	6,  // 20: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	3,  // 21: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	6,  // 22: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	23, // 23: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	5,  // 24: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	22, // 25: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	26, // [26:26] is the sub-list for method output_type
-	26, // [26:26] is the sub-list for method input_type
-	26, // [26:26] is the sub-list for extension type_name
-	26, // [26:26] is the sub-list for extension extendee
-	0,  // [0:26] is the sub-list for field type_name
+	0,  // 0: dampfront.v1.SearchSettings.variation:type_name -> dampfront.v1.Variation
+	8,  // 1: dampfront.v1.JobSpec.labels:type_name -> dampfront.v1.JobSpec.LabelsEntry
+	10, // 2: dampfront.v1.JobSpec.vehicle:type_name -> dampfront.v1.Vehicle
+	11, // 3: dampfront.v1.JobSpec.road_cases:type_name -> dampfront.v1.RoadCase
+	12, // 4: dampfront.v1.JobSpec.grid:type_name -> dampfront.v1.Grid
+	13, // 5: dampfront.v1.JobSpec.design_space:type_name -> dampfront.v1.DesignSpace
+	14, // 6: dampfront.v1.JobSpec.objectives:type_name -> dampfront.v1.Objective
+	15, // 7: dampfront.v1.JobSpec.constraints:type_name -> dampfront.v1.Constraint
+	3,  // 8: dampfront.v1.JobSpec.search:type_name -> dampfront.v1.SearchSettings
+	16, // 9: dampfront.v1.JobSpec.adjustment:type_name -> dampfront.v1.Adjustment
+	17, // 10: dampfront.v1.JobSpec.curves:type_name -> dampfront.v1.CurveSettings
+	18, // 11: dampfront.v1.JobSpec.reference_setup:type_name -> dampfront.v1.Setup
+	19, // 12: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
+	20, // 13: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
+	21, // 14: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
+	22, // 15: dampfront.v1.JobSpec.uncertainty:type_name -> dampfront.v1.Uncertainty
+	1,  // 16: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	9,  // 17: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	23, // 18: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	23, // 19: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	23, // 20: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	7,  // 21: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	4,  // 22: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	7,  // 23: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	24, // 24: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	6,  // 25: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	23, // 26: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	27, // [27:27] is the sub-list for method output_type
+	27, // [27:27] is the sub-list for method input_type
+	27, // [27:27] is the sub-list for extension type_name
+	27, // [27:27] is the sub-list for extension extendee
+	0,  // [0:27] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -1188,7 +1287,7 @@ func file_dampfront_v1_job_proto_init() {
 		File: protoimpl.DescBuilder{
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_job_proto_rawDesc), len(file_dampfront_v1_job_proto_rawDesc)),
-			NumEnums:      2,
+			NumEnums:      3,
 			NumMessages:   7,
 			NumExtensions: 0,
 			NumServices:   0,
