@@ -2,6 +2,8 @@ package api
 
 import (
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -135,4 +137,42 @@ func TestRobustWorkCountsTheCars(t *testing.T) {
 	one.Setups = append(one.Setups, testSetup())
 	_, err = b.client.EvaluateSetups(testContext(t), one)
 	wantCode(t, "two setups over the limit", err, codes.ResourceExhausted, ReasonTooManySetups)
+}
+
+// TestRobustManoeuvreSpec: a robust spec with manoeuvre and kerb cases
+// (testdata/demo-manoeuvre-job.yaml with fuel high in the car and the
+// tyres uncertain) evaluates every car on them too: the driver-response
+// objective has a spread over the cars, and its worst is at least its
+// mean (the definitions of RobustFigures).
+func TestRobustManoeuvreSpec(t *testing.T) {
+	t.Parallel()
+	text, err := os.ReadFile(filepath.Join("..", "testdata", "demo-manoeuvre-job.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec := &pb.JobSpec{}
+	if err := DecodeText(text, spec); err != nil {
+		t.Fatal(err)
+	}
+	spec.Uncertainty = &pb.Uncertainty{FuelMassKg: &pb.Range{Min: 20, Max: 100}, FuelHeightM: &pb.Range{Min: 0.3, Max: 0.5},
+		TyreRateScale: &pb.Range{Min: 0.9, Max: 1.1}, Nodes: 2}
+	b := setup(t, Options{})
+	res, err := b.client.EvaluateSetups(testContext(t), &pb.EvaluateSetupsRequest{
+		Source: &pb.EvaluateSetupsRequest_Spec{Spec: spec}, Setups: []*pb.Setup{testSetup()}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sol := res.GetEvaluations()[0]
+	r := sol.GetRobust()
+	if r == nil || len(r.GetSd()) != 3 || len(sol.GetTransientMetrics()) == 0 {
+		t.Fatalf("robust figures %v, %d transient cases", r, len(sol.GetTransientMetrics()))
+	}
+	for j := range r.GetSd() {
+		if !(r.GetSd()[j] > 0) || !(r.GetWorst()[j] >= r.GetMean()[j]) {
+			t.Errorf("objective %d: mean %g sd %g worst %g", j, r.GetMean()[j], r.GetSd()[j], r.GetWorst()[j])
+		}
+		if got := sol.GetObjectives()[j]; got != r.GetMean()[j] {
+			t.Errorf("objective %d is %.17g, the mean over the cars (the default measure) %.17g", j, got, r.GetMean()[j])
+		}
+	}
 }
