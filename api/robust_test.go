@@ -11,6 +11,7 @@ import (
 	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
 )
 
 // robustTestSpec is testSpec with uncertain fuel and tyre rate, on a
@@ -173,6 +174,43 @@ func TestRobustManoeuvreSpec(t *testing.T) {
 		}
 		if got := sol.GetObjectives()[j]; got != r.GetMean()[j] {
 			t.Errorf("objective %d is %.17g, the mean over the cars (the default measure) %.17g", j, got, r.GetMean()[j])
+		}
+	}
+}
+
+// TestStoredRobustSpecResumeBitIdentical holds a robust job's bytes as
+// testdata/stored holds the nominal ones: the stored spec (robustTestSpec
+// with its defaults, this version's encoding) must open and resume to the
+// front whose digest this version stored, details included.
+// DAMPFRONT_WRITE_STORED_ROBUST=1 writes the two files instead (only ever
+// from the version whose bytes they are meant to keep).
+func TestStoredRobustSpecResumeBitIdentical(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Join("testdata", "stored")
+	specPath, digestPath := filepath.Join(dir, "robust-sample.jobspec.pb"), filepath.Join(dir, "robust-sample.front.sha256")
+	if os.Getenv("DAMPFRONT_WRITE_STORED_ROBUST") == "1" {
+		b, err := MarshalSpec(withDefaults(robustTestSpec(4)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(specPath, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(digestPath, []byte(frontDigest(frontOf(t, b, 100, false))+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	spec, err := os.ReadFile(specPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := os.ReadFile(digestPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, front := range map[string][]jobs.Solution{"in one go": frontOf(t, spec, 100, false), "resumed every 2 generations": frontOf(t, spec, 2, true)} {
+		if got := frontDigest(front); got != strings.TrimSpace(string(want)) {
+			t.Errorf("front of the stored robust spec run %s: digest %s, stored %s", name, got, want)
 		}
 	}
 }
