@@ -5,6 +5,7 @@ import (
 	"strings"
 	"testing"
 
+	"google.golang.org/grpc/codes"
 	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
@@ -102,4 +103,36 @@ func TestRobustSpecDefaultsAndPaths(t *testing.T) {
 			t.Errorf("error %v does not name %s", err, want)
 		}
 	}
+	empty := testSpec(2)
+	empty.Uncertainty = &pb.Uncertainty{}
+	_, err = SpecToModel(empty)
+	if err == nil || !strings.Contains(err.Error(), "spec.uncertainty: gives no range") {
+		t.Errorf("an uncertainty without ranges: %v, want it refused at spec.uncertainty", err)
+	}
+}
+
+// TestRobustWorkCountsTheCars: a robust job's work and a robust
+// evaluation's count every uncertain car against the server's limits.
+func TestRobustWorkCountsTheCars(t *testing.T) {
+	t.Parallel()
+	b := setup(t, Options{MaxJobWork: 8 * 1 * 10 * 2 * 4, MaxSyncWork: 2 * 4}) // testSpec's population, generations and cases; 4 cars
+	if _, err := b.client.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: robustTestSpec(10)}); err != nil {
+		t.Fatalf("a robust job at the limit: %v", err)
+	}
+	_, err := b.client.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: robustTestSpec(11)})
+	wantCode(t, "a robust job over the limit", err, codes.ResourceExhausted, ReasonJobTooLarge)
+	if err == nil || !strings.Contains(err.Error(), "uncertain cars") {
+		t.Errorf("the refusal %v does not name the uncertain cars", err)
+	}
+	one := &pb.EvaluateSetupsRequest{Source: &pb.EvaluateSetupsRequest_Spec{Spec: robustTestSpec(2)}, Setups: []*pb.Setup{testSetup()}}
+	res, err := b.client.EvaluateSetups(testContext(t), one)
+	if err != nil {
+		t.Fatalf("one setup at the limit: %v", err)
+	}
+	if r := res.GetEvaluations()[0].GetRobust(); r == nil || len(r.GetWorst()) != 2 {
+		t.Errorf("the evaluated setup has no robust figures: %v", r)
+	}
+	one.Setups = append(one.Setups, testSetup())
+	_, err = b.client.EvaluateSetups(testContext(t), one)
+	wantCode(t, "two setups over the limit", err, codes.ResourceExhausted, ReasonTooManySetups)
 }

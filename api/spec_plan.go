@@ -89,18 +89,27 @@ func (s *Server) checkGrid(size study.Size) error {
 // checkJobWork refuses a job larger than Options.MaxJobWork.
 func (s *Server) checkJobWork(size study.Size) error {
 	if w := size.Work; w > s.opt.MaxJobWork {
+		what, fix := "population_size × islands × generations × road cases", "reduce the population or the generations, or split the road cases over jobs"
+		if size.RobustPoints > 0 {
+			what, fix = what+" × uncertain cars", fix+", or take fewer uncertain cars"
+		}
 		return resourceExhausted(ReasonJobTooLarge,
-			fmt.Sprintf("the job is too large: population_size × islands × generations × road cases = %d, the server allows %d; reduce the population or the generations, or split the road cases over jobs", w, s.opt.MaxJobWork),
+			fmt.Sprintf("the job is too large: %s = %d, the server allows %d; %s", what, w, s.opt.MaxJobWork, fix),
 			map[string]string{"work": strconv.FormatInt(w, 10), "limit": strconv.FormatInt(s.opt.MaxJobWork, 10)}, 0)
 	}
 	return nil
 }
 
-// checkSyncWork refuses setups × road cases over Options.MaxSyncWork.
+// checkSyncWork refuses setups × road cases (× uncertain cars, for a
+// robust spec) over Options.MaxSyncWork.
 func (s *Server) checkSyncWork(setups int, size study.Size) error {
-	if w := setups * size.Cases; w > s.opt.MaxSyncWork {
+	w, what := setups*size.Cases, "setups × road cases"
+	if size.RobustPoints > 0 {
+		w, what = w*size.RobustPoints, what+" × uncertain cars"
+	}
+	if w > s.opt.MaxSyncWork {
 		return resourceExhausted(ReasonTooManySetups,
-			fmt.Sprintf("setups × road cases = %d is over the server's %d for one call; split the setups over several calls", w, s.opt.MaxSyncWork),
+			fmt.Sprintf("%s = %d is over the server's %d for one call; split the setups over several calls", what, w, s.opt.MaxSyncWork),
 			map[string]string{"work": strconv.Itoa(w), "limit": strconv.Itoa(s.opt.MaxSyncWork)}, 0)
 	}
 	return nil

@@ -194,9 +194,11 @@ func (d *DesignSpace) Encode(s Setup) []float64 {
 }
 
 // MaxSlopeRatio is the steepest damper slope any setup of the space can
-// have, as a ratio of critical damping: the largest ratio bound times the
-// largest high-speed factor (at least 1). The manoeuvre and kerb cases
-// choose their step for it (TransientOptions.MaxRatio).
+// have, as a ratio of critical damping (the corners' of theirs, the heave
+// dampers' of the axle's heave critical damping): the largest ratio
+// bound or base heave ratio times the largest high-speed factor (at least
+// 1). The manoeuvre and kerb cases choose their step for it
+// (TransientOptions.MaxRatio), the heave dampers' included.
 func (d *DesignSpace) MaxSlopeRatio() float64 {
 	r := 0.0
 	for _, b := range d.Ratios {
@@ -204,10 +206,15 @@ func (d *DesignSpace) MaxSlopeRatio() float64 {
 	}
 	f := 1.0
 	for ax := 0; ax < 2; ax++ {
-		a := d.Base.Axles[ax]
+		a, h := d.Base.Axles[ax], d.Base.Heave[ax]
 		f = math.Max(f, math.Max(a.HighSpeedBump, a.HighSpeedRebound))
 		if hs := d.HighSpeed[ax]; hs != nil {
 			f = math.Max(f, hs.Max)
+		}
+		r = math.Max(r, math.Max(h.BumpRatio, h.ReboundRatio))
+		f = math.Max(f, math.Max(h.HighSpeedBump, h.HighSpeedRebound))
+		if hr := d.HeaveRatio[ax]; hr != nil {
+			r = math.Max(r, hr.Max)
 		}
 	}
 	return r * f

@@ -97,3 +97,32 @@ func TestTransientHeaveDamperSingleDOF(t *testing.T) {
 		}
 	}
 }
+
+// A design space whose heave ratio reaches past the corners' prepares
+// its manoeuvre and kerb cases for it: a setup at the heave ratio's bound
+// (times its high-speed factor) is covered by the step the case chose
+// (else every evaluation would prepare the case afresh, allocating).
+func TestTransientCasesCoverTheHeaveRange(t *testing.T) {
+	t.Parallel()
+	v := heaveCar()
+	v.LoadPaths = transientCar().LoadPaths
+	e, err := NewEvaluator(v, demoCases()[:1], EvaluatorOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	base := heaveSetup(demoSetup(), 0.5)
+	base.Heave[Rear].HighSpeedBump = 1.2
+	d := DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}, HeaveRatio: [2]*Range{{0.2, 2.5}, {0.2, 2.5}}, Base: base}
+	ks := []Kerb{{Name: "kerb", Shape: KerbHalfSine, Side: KerbBoth, Height: 0.02, Length: 1, Speed: 40}}
+	if err := e.SetTransientCases(nil, ks, TransientOptions{MaxRatio: d.MaxSlopeRatio()}); err != nil {
+		t.Fatal(err)
+	}
+	s := base
+	for ax := range s.Heave {
+		s.Heave[ax].BumpRatio, s.Heave[ax].ReboundRatio = 2.5, 2.5
+	}
+	dampers := v.dampers(&s)
+	if !e.transients[0].covers(&dampers) {
+		t.Errorf("MaxSlopeRatio %g: the kerb case's step does not cover heave dampers at ratio 2.5 × 1.2", d.MaxSlopeRatio())
+	}
+}

@@ -128,9 +128,7 @@ func objectivesText(values []float64, objectives []*pb.Objective) string {
 func writeEvaluation(w io.Writer, title string, s *pb.Solution, objectives []*pb.Objective, constraints []*pb.Constraint) error {
 	fmt.Fprintf(w, "Setup %s: %s\n", title, setupText(s.GetSetup()))
 	fmt.Fprintf(w, "  objectives: %s\n", objectivesText(s.GetObjectives(), objectives))
-	if r := robustText(s.GetRobust(), objectives); r != "" {
-		fmt.Fprintf(w, "  robust over the uncertain cars; %s\n", r)
-	}
+	writeRobust(w, s.GetRobust(), objectives)
 	if s.GetFeasible() {
 		fmt.Fprintln(w, "  constraints: all met")
 	} else {

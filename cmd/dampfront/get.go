@@ -10,6 +10,7 @@ import (
 	"google.golang.org/protobuf/encoding/protojson"
 	"google.golang.org/protobuf/types/known/timestamppb"
 
+	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/api/web"
 )
@@ -88,6 +89,9 @@ func writeJob(w io.Writer, j *pb.Job) error {
 	}
 	if v := web.FrontCheckText(j); v != "" {
 		t.row("front check", v)
+	}
+	if v := api.RobustText(j); v != "" {
+		t.row("uncertainty", v)
 	}
 	return t.flush()
 }

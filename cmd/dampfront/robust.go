@@ -1,7 +1,8 @@
 package main
 
 import (
-	"strings"
+	"fmt"
+	"io"
 
 	pb "dampfront/api/gen/dampfront/v1"
 )
@@ -26,16 +27,14 @@ func robustCells(objQ []quantity, r *pb.RobustObjectives) []string {
 	return out
 }
 
-// robustText is "on the nominal car grip 8.10 % static, ...; sd over the
-// uncertain cars ...; worst ..." for eval, or "" without figures.
-func robustText(r *pb.RobustObjectives, objectives []*pb.Objective) string {
+// writeRobust prints a solution's objectives on the nominal car and
+// their sd and worst over the uncertain cars, for eval; nothing without
+// figures.
+func writeRobust(w io.Writer, r *pb.RobustObjectives, objectives []*pb.Objective) {
 	if r == nil {
-		return ""
+		return
 	}
-	parts := []string{
-		"on the nominal car: " + objectivesText(r.GetNominal(), objectives),
-		"sd over the uncertain cars: " + objectivesText(r.GetSd(), objectives),
-		"worst: " + objectivesText(r.GetWorst(), objectives),
-	}
-	return strings.Join(parts, "; ")
+	fmt.Fprintf(w, "    on the nominal car: %s\n", objectivesText(r.GetNominal(), objectives))
+	fmt.Fprintf(w, "    sd over the uncertain cars: %s\n", objectivesText(r.GetSd(), objectives))
+	fmt.Fprintf(w, "    worst over the uncertain cars: %s\n", objectivesText(r.GetWorst(), objectives))
 }

@@ -89,7 +89,7 @@ func Check(s *Spec) (*Checked, error) {
 		p.add("search.polish_budget", "must be 0 (no polish) to %d evaluations per front point, got %d", MaxPolishBudget, b)
 	}
 	if u := spec.Uncertainty; u != nil {
-		p.merge("uncertainty.", u.Validate(&spec.Vehicle))
+		p.mergeMapped(func(f string) string { return strings.TrimSuffix("uncertainty."+f, ".") }, u.Validate(&spec.Vehicle))
 	}
 	if err := p.err(); err != nil {
 		return nil, err
