@@ -47,10 +47,22 @@ func (storedCodec) EncodeSolution(s *study.Solution) ([]byte, error) {
 	return proto.MarshalOptions{Deterministic: true}.Marshal(solutionToProto(s))
 }
 
-// EncodeCheck encodes the check of a finished front, stored as the job's
-// summary and read back by jobToProto.
-func (storedCodec) EncodeCheck(c *study.FrontCheck) ([]byte, error) {
-	return proto.MarshalOptions{Deterministic: true}.Marshal(frontCheckToProto(c))
+// EncodeCheck encodes the check of a finished front and what the
+// refinement did (nil without one), stored as the job's summary and read
+// back by jobToProto (see encodeSummary).
+func (storedCodec) EncodeCheck(c *study.FrontCheck, refined *study.RefineSummary) ([]byte, error) {
+	return encodeSummary(frontCheckToProto(c), refineSummaryToProto(refined))
+}
+
+// EncodeRefined adds a front member's refined figures (Solution.refined)
+// to its encoded detail.
+func (storedCodec) EncodeRefined(detail []byte, p *study.RefinedPoint) ([]byte, error) {
+	sol := &pb.Solution{}
+	if err := proto.Unmarshal(detail, sol); err != nil {
+		return nil, fmt.Errorf("solution detail does not decode: %w", err)
+	}
+	sol.Refined = refinedToProto(p)
+	return proto.MarshalOptions{Deterministic: true}.Marshal(sol)
 }
 
 // MarshalSpec returns the bytes the engine stores for a spec: its

@@ -86,8 +86,8 @@ func jobToProto(j *jobs.Job, full bool) (*pb.Job, error) {
 		out.Spec = spec
 	}
 	if len(j.Summary) > 0 && j.State == jobs.StateSucceeded {
-		out.FrontCheck = &pb.FrontCheck{}
-		if err := proto.Unmarshal(j.Summary, out.FrontCheck); err != nil {
+		var err error
+		if out.FrontCheck, out.RefinementSummary, err = decodeSummary(j.Summary); err != nil {
 			return nil, fmt.Errorf("stored front check of job %q does not decode: %w", j.ID, err)
 		}
 	}

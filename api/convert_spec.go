@@ -30,6 +30,7 @@ func specFromProto(s *pb.JobSpec, prefix string, p *problems) *study.Spec {
 		Adjustment:   adjustmentFromProto(s.GetAdjustment()),
 		Adjusters:    adjustersFromProto(s.GetAdjusters()),
 		Curves:       study.Curves{MaxVelocity: s.GetCurves().GetMaxVelocityMPerS(), Points: int(s.GetCurves().GetPoints())},
+		Refinement:   refinementFromProto(s.GetRefinement()),
 		Uncertainty:  uncertaintyFromProto(s.GetUncertainty(), at("uncertainty"), p),
 	}
 	if ref := s.GetReferenceSetup(); ref != nil {
@@ -177,5 +178,6 @@ func fillDefaults(spec *pb.JobSpec, d *study.Spec) *pb.JobSpec {
 			*f.to = proto.Float64(**f.from)
 		}
 	}
+	fillRefinementDefaults(s.Refinement, &d.Refinement)
 	return s
 }

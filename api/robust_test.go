@@ -2,6 +2,8 @@ package api
 
 import (
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -9,6 +11,7 @@ import (
 	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/jobs"
 )
 
 // robustTestSpec is testSpec with uncertain fuel and tyre rate, on a
@@ -135,4 +138,79 @@ func TestRobustWorkCountsTheCars(t *testing.T) {
 	one.Setups = append(one.Setups, testSetup())
 	_, err = b.client.EvaluateSetups(testContext(t), one)
 	wantCode(t, "two setups over the limit", err, codes.ResourceExhausted, ReasonTooManySetups)
+}
+
+// TestRobustManoeuvreSpec: a robust spec with manoeuvre and kerb cases
+// (testdata/demo-manoeuvre-job.yaml with fuel high in the car and the
+// tyres uncertain) evaluates every car on them too: the driver-response
+// objective has a spread over the cars, and its worst is at least its
+// mean (the definitions of RobustFigures).
+func TestRobustManoeuvreSpec(t *testing.T) {
+	t.Parallel()
+	text, err := os.ReadFile(filepath.Join("..", "testdata", "demo-manoeuvre-job.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec := &pb.JobSpec{}
+	if err := DecodeText(text, spec); err != nil {
+		t.Fatal(err)
+	}
+	spec.Uncertainty = &pb.Uncertainty{FuelMassKg: &pb.Range{Min: 20, Max: 100}, FuelHeightM: &pb.Range{Min: 0.3, Max: 0.5},
+		TyreRateScale: &pb.Range{Min: 0.9, Max: 1.1}, Nodes: 2}
+	b := setup(t, Options{})
+	res, err := b.client.EvaluateSetups(testContext(t), &pb.EvaluateSetupsRequest{
+		Source: &pb.EvaluateSetupsRequest_Spec{Spec: spec}, Setups: []*pb.Setup{testSetup()}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	sol := res.GetEvaluations()[0]
+	r := sol.GetRobust()
+	if r == nil || len(r.GetSd()) != 3 || len(sol.GetTransientMetrics()) == 0 {
+		t.Fatalf("robust figures %v, %d transient cases", r, len(sol.GetTransientMetrics()))
+	}
+	for j := range r.GetSd() {
+		if !(r.GetSd()[j] > 0) || !(r.GetWorst()[j] >= r.GetMean()[j]) {
+			t.Errorf("objective %d: mean %g sd %g worst %g", j, r.GetMean()[j], r.GetSd()[j], r.GetWorst()[j])
+		}
+		if got := sol.GetObjectives()[j]; got != r.GetMean()[j] {
+			t.Errorf("objective %d is %.17g, the mean over the cars (the default measure) %.17g", j, got, r.GetMean()[j])
+		}
+	}
+}
+
+// TestStoredRobustSpecResumeBitIdentical holds a robust job's bytes as
+// testdata/stored holds the nominal ones: the stored spec (robustTestSpec
+// with its defaults, this version's encoding) must open and resume to the
+// front whose digest this version stored, details included.
+// DAMPFRONT_WRITE_STORED_ROBUST=1 writes the two files instead (only ever
+// from the version whose bytes they are meant to keep).
+func TestStoredRobustSpecResumeBitIdentical(t *testing.T) {
+	t.Parallel()
+	dir := filepath.Join("testdata", "stored")
+	specPath, digestPath := filepath.Join(dir, "robust-sample.jobspec.pb"), filepath.Join(dir, "robust-sample.front.sha256")
+	if os.Getenv("DAMPFRONT_WRITE_STORED_ROBUST") == "1" {
+		b, err := MarshalSpec(withDefaults(robustTestSpec(4)))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(specPath, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(digestPath, []byte(frontDigest(frontOf(t, b, 100, false))+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	spec, err := os.ReadFile(specPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := os.ReadFile(digestPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, front := range map[string][]jobs.Solution{"in one go": frontOf(t, spec, 100, false), "resumed every 2 generations": frontOf(t, spec, 2, true)} {
+		if got := frontDigest(front); got != strings.TrimSpace(string(want)) {
+			t.Errorf("front of the stored robust spec run %s: digest %s, stored %s", name, got, want)
+		}
+	}
 }

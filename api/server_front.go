@@ -79,6 +79,9 @@ func (s *Server) GetFront(ctx context.Context, req *pb.GetFrontRequest) (*pb.Get
 			addAdjusting(sol, st)
 			if basic {
 				sol.CaseMetrics, sol.DamperCurves = nil, nil
+				if sol.Refined != nil {
+					sol.Refined.Cases = nil
+				}
 			}
 			n := proto.Size(sol)
 			if len(front.Solutions) > 0 && size+n > budget {

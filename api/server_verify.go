@@ -94,20 +94,27 @@ func verifyReportToProto(rep *model.VerifyReport, duration, threshold float64) *
 		Verdict: verdictToProto(rep.Verdict()), VerdictSigmas: model.VerdictSigmas}
 	for i := range rep.Cases {
 		c := &rep.Cases[i]
-		vc := &pb.VerifiedCase{RoadCase: c.Case, StepS: c.Time.Step, SettleS: c.Time.Settle,
-			Warnings: c.Frequency.WarningStrings(threshold), Verdict: verdictToProto(c.Verdict())}
-		for _, r := range c.Rows {
-			se := r.StatError
-			if math.IsInf(se, 0) || math.IsNaN(se) {
-				se = 0
-			}
-			vc.Metrics = append(vc.Metrics, &pb.VerifiedMetric{Metric: r.Metric, FrequencyDomain: r.Frequency,
-				TimeDomain: r.Time, Difference: r.Diff, RelativeDifference: r.RelDiff, StatisticalError: se,
-				Verdict: verdictToProto(r.Verdict())})
-		}
+		vc := verifiedCaseToProto(c)
+		vc.Warnings = c.Frequency.WarningStrings(threshold)
 		out.Cases = append(out.Cases, vc)
 	}
 	return out
+}
+
+// verifiedCaseToProto converts the check of one road case: its name,
+// step, settling time, rows and verdict (no warnings).
+func verifiedCaseToProto(c *model.VerifyCase) *pb.VerifiedCase {
+	vc := &pb.VerifiedCase{RoadCase: c.Case, StepS: c.Time.Step, SettleS: c.Time.Settle, Verdict: verdictToProto(c.Verdict())}
+	for _, r := range c.Rows {
+		se := r.StatError
+		if math.IsInf(se, 0) || math.IsNaN(se) {
+			se = 0
+		}
+		vc.Metrics = append(vc.Metrics, &pb.VerifiedMetric{Metric: r.Metric, FrequencyDomain: r.Frequency,
+			TimeDomain: r.Time, Difference: r.Diff, RelativeDifference: r.RelDiff, StatisticalError: se,
+			Verdict: verdictToProto(r.Verdict())})
+	}
+	return vc
 }
 
 // verdictToProto converts a verdict of the time-domain check.

@@ -62,33 +62,7 @@ func TestWithDefaultsFillsAndIsIdempotent(t *testing.T) {
 // resume is set, and returns its front.
 func frontOf(t *testing.T, spec []byte, step int, resume bool) []jobs.Solution {
 	t.Helper()
-	o := NewOpener(2)
-	st, err := o.Open(spec, nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	for {
-		done, err := st.Step(context.Background(), step)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if done {
-			break
-		}
-		if resume {
-			ck, err := st.Checkpoint()
-			if err != nil {
-				t.Fatal(err)
-			}
-			if st, err = o.Open(spec, ck); err != nil {
-				t.Fatal(err)
-			}
-		}
-	}
-	f, err := st.Front()
-	if err != nil {
-		t.Fatal(err)
-	}
+	f, _ := runWithSummary(t, spec, step, resume)
 	return f
 }
 

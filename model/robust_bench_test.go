@@ -22,16 +22,7 @@ func BenchmarkRobustEvaluate(b *testing.B) {
 	u := Uncertainty{FuelMass: &Range{10, 100}, TyreRateScaleAll: &Range{0.9, 1.1}, DownforceScale: &Range{0.9, 1.05}, Nodes: 3}
 	u = u.WithDefaults()
 	pts := u.UncertainPoints()
-	evals := make([]*Evaluator, len(pts))
-	for j := range pts {
-		vj, err := pts[j].Apply(&v)
-		if err != nil {
-			b.Fatal(err)
-		}
-		if evals[j], err = NewEvaluator(vj, cases, EvaluatorOptions{DampingReference: &v}); err != nil {
-			b.Fatal(err)
-		}
-	}
+	evals := uncertainEvaluators(b, &v, cases, pts, nil)
 	rp, err := NewRobustProblem(p, &u, pts, evals)
 	if err != nil {
 		b.Fatal(err)

@@ -213,7 +213,7 @@ func (u *Uncertainty) Validate(v *Vehicle) error {
 		if u.Nodes < 1 || u.Nodes > MaxRobustNodes {
 			p.add("nodes", "must be in [1, %d], got %d", MaxRobustNodes, u.Nodes)
 		} else if n := u.count(); n > MaxRobustPoints {
-			p.add("nodes", "%d nodes on %d ranges make %d cars per setup, more than %d: give fewer nodes or use the sample method", u.Nodes, given, n, MaxRobustPoints)
+			p.add("nodes", "%d nodes on every range of positive width make %d cars per setup, more than %d: give fewer nodes or ranges, or use the sample method", u.Nodes, n, MaxRobustPoints)
 		}
 		if u.Samples != 0 {
 			p.add("samples", "is for the sample method only, got %d", u.Samples)

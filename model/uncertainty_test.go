@@ -371,16 +371,7 @@ func TestRobustMeasures(t *testing.T) {
 	u := Uncertainty{FuelMass: &Range{0, 100}, FuelPosition: &Range{-0.5, 0.3}, TyreRateScale: [2]*Range{{0.85, 1.15}, nil}, Nodes: 2}
 	u = u.WithDefaults()
 	pts := u.UncertainPoints()
-	evals := make([]*Evaluator, len(pts))
-	for j := range pts {
-		vj, err := pts[j].Apply(&v)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if evals[j], err = NewEvaluator(vj, cases, EvaluatorOptions{DampingReference: &v}); err != nil {
-			t.Fatal(err)
-		}
-	}
+	evals := uncertainEvaluators(t, &v, cases, pts, nil)
 	robust := func(m RobustMeasure, k float64) *Problem {
 		uu := u
 		uu.Measure, uu.K = m, k
@@ -457,23 +448,15 @@ func TestRobustTransientObjectives(t *testing.T) {
 		t.Fatal(err)
 	}
 	pts := u.UncertainPoints()
-	evals := make([]*Evaluator, len(pts))
+	evals := uncertainEvaluators(t, &v, demoCases()[:1], pts, func(e *Evaluator) error {
+		return e.SetTransientCases(ms, ks, TransientOptions{})
+	})
 	worst := make([]float64, nominal.NumObjectives())
 	for i := range worst {
 		worst[i] = math.Inf(-1)
 	}
 	x := []float64{0.5, 0.8, 0.6, 0.9}
 	for j := range pts {
-		vj, err := pts[j].Apply(&v)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if evals[j], err = NewEvaluator(vj, demoCases()[:1], EvaluatorOptions{DampingReference: &v}); err != nil {
-			t.Fatal(err)
-		}
-		if err := evals[j].SetTransientCases(ms, ks, TransientOptions{}); err != nil {
-			t.Fatal(err)
-		}
 		pj := newMemberProblem(nominal, evals[j])
 		o, vi := make([]float64, len(worst)), make([]float64, 1)
 		if err := pj.EvaluateGenes(x, o, vi); err != nil {
@@ -500,4 +483,25 @@ func TestRobustTransientObjectives(t *testing.T) {
 			t.Errorf("objective %s: sd %g over the cars, want > 0", nominal.Objectives()[i].Kind, fig.SD[i])
 		}
 	}
+}
+
+// uncertainEvaluators builds the evaluator of every uncertain car of pts
+// (Perturbation.Apply of v) on cases, with v's critical damping as the
+// damping reference, and more, when not nil, on each.
+func uncertainEvaluators(tb testing.TB, v *Vehicle, cases []RoadCase, pts []UncertainPoint, more func(*Evaluator) error) []*Evaluator {
+	tb.Helper()
+	evals := make([]*Evaluator, len(pts))
+	for j := range pts {
+		vj, err := pts[j].Apply(v)
+		if err == nil {
+			evals[j], err = NewEvaluator(vj, cases, EvaluatorOptions{DampingReference: v})
+		}
+		if err == nil && more != nil {
+			err = more(evals[j])
+		}
+		if err != nil {
+			tb.Fatal(err)
+		}
+	}
+	return evals
 }

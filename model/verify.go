@@ -90,6 +90,42 @@ func Verify(v Vehicle, cases []RoadCase, s Setup, opt VerifyOptions) (*VerifyRep
 	if err := p.err(); err != nil {
 		return nil, err
 	}
+	return (&Verifier{e: e, v: v, opt: opt}).Verify(s)
+}
+
+// Verifier runs Verify for many setups on one car, road cases and
+// options, with the frequency-domain evaluator prepared once. It is safe
+// for concurrent use, and its reports are those of Verify, bit for bit.
+type Verifier struct {
+	e   *Evaluator
+	v   Vehicle
+	opt VerifyOptions
+}
+
+// NewVerifier prepares the evaluator of Verify; problems of the car, the
+// cases and the options are a *ValidationError as Verify's.
+func NewVerifier(v Vehicle, cases []RoadCase, opt VerifyOptions) (*Verifier, error) {
+	e, err := NewEvaluator(v, cases, opt.Model)
+	if err != nil {
+		return nil, err
+	}
+	var p problems
+	p.merge("time.", opt.Time.validate())
+	if err := p.err(); err != nil {
+		return nil, err
+	}
+	return &Verifier{e: e, v: v, opt: opt}, nil
+}
+
+// Verify runs the check of one setup (see Verify).
+func (vf *Verifier) Verify(s Setup) (*VerifyReport, error) {
+	e, v, opt := vf.e, vf.v, vf.opt
+	var p problems
+	p.merge("setup.", s.Validate())
+	p.merge("setup.", e.v.CheckSetup(&s))
+	if err := p.err(); err != nil {
+		return nil, err
+	}
 	rep := &VerifyReport{Setup: s, Seed: opt.Seed}
 	dampers := e.ref.dampers(&s)
 	ws := e.pool.Get().(*workspace)
@@ -167,8 +203,7 @@ func verifyRows(f *CaseMetrics, tm *TimeMetrics, v *Vehicle, wts, psd []float64,
 		}
 		rows = append(rows, r)
 	}
-	corner := func(name string, i int) string { return fmt.Sprintf("%s[%s]", name, CornerNames[i]) }
-	axle := func(name string, ax int) string { return fmt.Sprintf("%s[%s]", name, AxleNames[ax]) }
+	corner, axle := cornerMetric, axleMetric
 	for i := 0; i < 4; i++ {
 		add(corner("tyre_load_sd_n", i), f.TyreLoadSD[i], t.TyreLoadSD[i], ss.sdError(outTyre+i, f.TyreLoadSD[i]))
 	}
@@ -224,6 +259,12 @@ func verifyRows(f *CaseMetrics, tm *TimeMetrics, v *Vehicle, wts, psd []float64,
 	}
 	return rows
 }
+
+// cornerMetric names a corner's row of the check ("travel_sd_m[FL]").
+func cornerMetric(name string, i int) string { return fmt.Sprintf("%s[%s]", name, CornerNames[i]) }
+
+// axleMetric names an axle's row of the check ("ride_height_sd_m[front]").
+func axleMetric(name string, ax int) string { return fmt.Sprintf("%s[%s]", name, AxleNames[ax]) }
 
 // Row returns the row of a metric by name, or false.
 func (c *VerifyCase) Row(metric string) (VerifyRow, bool) {

@@ -61,7 +61,10 @@ var slopeColumns = []struct {
 // the objectives, the four slopes, each constraint's violation,
 // out_of_band_n (the largest excess over the adjuster range, N at the
 // damper, over the corners and directions; 0 inside the band or without
-// one), feasible and balanced; then, for a robust front (its solutions
+// one), feasible and balanced; then, for a refined front (Refined), each
+// objective's refined value and statistical error ("refined_grip_rel",
+// "refined_grip_rel_error"), refined_feasible, refined_rank and
+// refined_unsettled; then, for a robust front (its solutions
 // carry Solution.robust), per objective its value on the nominal car,
 // its sd and its worst over the uncertain cars: "grip_rel_nominal",
 // "grip_rel_sd", "grip_rel_worst".
@@ -118,7 +121,22 @@ func baseColumns(f *pb.Front) []string {
 	for _, c := range f.GetConstraints() {
 		cols = append(cols, ConstraintColumn(c))
 	}
-	return append(cols, "out_of_band_n", "feasible", "balanced")
+	cols = append(cols, "out_of_band_n", "feasible", "balanced")
+	if !Refined(f) {
+		return cols
+	}
+	for _, o := range f.GetObjectives() {
+		c := "refined_" + ObjectiveColumn(o.GetKind())
+		cols = append(cols, c, c+"_error")
+	}
+	return append(cols, "refined_feasible", "refined_rank", "refined_unsettled")
+}
+
+// Refined reports whether the front carries refined figures (a job with a
+// refinement, once it is done): its first solution has them.
+func Refined(f *pb.Front) bool {
+	s := f.GetSolutions()
+	return len(s) > 0 && s[0].GetRefined() != nil
 }
 
 // OutOfBand is the largest excess over the adjuster range of a solution
@@ -169,10 +187,29 @@ func row(f *pb.Front, s *pb.Solution, balanced bool) []any {
 		out = append(out, v)
 	}
 	out = append(out, OutOfBand(s), s.GetFeasible(), balanced)
+	if Refined(f) {
+		out = append(out, refinedValues(f, s)...)
+	}
 	if Robust(f) {
 		out = append(out, robustValues(f, s)...)
 	}
 	return out
+}
+
+// refinedValues are a solution's refined columns: value and error per
+// objective (nil for a point whose check failed), then refined_feasible,
+// refined_rank and refined_unsettled.
+func refinedValues(f *pb.Front, s *pb.Solution) []any {
+	var out []any
+	r := s.GetRefined()
+	for k := range f.GetObjectives() {
+		var v, e any
+		if k < len(r.GetObjectives()) {
+			v, e = r.GetObjectives()[k], r.GetObjectiveErrors()[k]
+		}
+		out = append(out, v, e)
+	}
+	return append(out, r.GetFeasible(), int(r.GetRank()), r.GetUnsettled())
 }
 
 // Number is the text of an SI value in CSV: the shortest that reads back

@@ -64,9 +64,13 @@ func WriteJSON(w io.Writer, job *pb.Job, f *pb.Front) error {
 		rows[i] = r
 	}
 	objs := []record{}
-	for _, o := range f.GetObjectives() {
-		objs = append(objs, record{keys: []string{"column", "kind", "aggregation"},
-			values: []any{ObjectiveColumn(o.GetKind()), o.GetKind().String(), o.GetAggregation().String()}})
+	for k, o := range f.GetObjectives() {
+		r := record{keys: []string{"column", "kind", "aggregation"},
+			values: []any{ObjectiveColumn(o.GetKind()), o.GetKind().String(), o.GetAggregation().String()}}
+		if src := refinedSource(f, k); src != "" {
+			r.keys, r.values = append(r.keys, "refined_source"), append(r.values, src)
+		}
+		objs = append(objs, r)
 	}
 	cons := []record{}
 	for _, c := range f.GetConstraints() {
@@ -92,6 +96,21 @@ func WriteJSON(w io.Writer, job *pb.Job, f *pb.Front) error {
 	}
 	_, err = fmt.Fprintf(w, "%s\n", b)
 	return err
+}
+
+// refinedSource names where objective k's refined value comes from
+// ("time_domain", "linear", "transient"), the same for every point; ""
+// for a front without refined figures.
+func refinedSource(f *pb.Front, k int) string {
+	if !Refined(f) {
+		return ""
+	}
+	for _, s := range f.GetSolutions() {
+		if src := s.GetRefined().GetObjectiveSources(); k < len(src) {
+			return strings.ToLower(strings.TrimPrefix(src[k].String(), "REFINE_SOURCE_"))
+		}
+	}
+	return ""
 }
 
 // StateName is a job state as the files and tables write it: "succeeded".

@@ -64,6 +64,7 @@ type jobView struct {
 	Partial         bool
 	Infeasible      string // the verdict of a job no setup of which met every constraint
 	FrontCheck      string // the check of a finished front in decision space (FrontCheckText)
+	Refinement      string // the refinement of a finished front on the nonlinear car (RefinementText)
 	Robust          string // what a robust job's objectives are (api.RobustText); "" without uncertainty
 	CancelRequested bool
 	Terminal        bool
@@ -103,7 +104,7 @@ func (h *Handler) job(w http.ResponseWriter, r *http.Request) {
 	v := &jobView{
 		pageView: pageView{Title: j.GetDisplayName()},
 		Job:      newJobRow(j), Seed: j.GetSeed(), Car: spec.GetVehicle().GetName(),
-		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), FrontCheck: FrontCheckText(j), Robust: api.RobustText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
+		Partial: j.GetPartial(), Infeasible: InfeasibleText(j), FrontCheck: FrontCheckText(j), Refinement: RefinementText(j), Robust: api.RobustText(j), CancelRequested: j.GetCancelRequested(), Terminal: terminal(j.GetState()),
 		ProgressURL: jobPath(id) + "/progress.json", PollMS: h.opt.PollInterval.Milliseconds(),
 		Balanced: -1,
 	}
@@ -249,6 +250,7 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 	if band {
 		hs = append(hs, header{Label: "Out of adjuster range", Unit: "N", Numeric: true})
 	}
+	hs = append(hs, refinedHeaders(front, objQ)...)
 	hs = append(hs, header{Label: "Warnings", Numeric: true}, header{Label: "Sheet"})
 
 	base := jobPath(id)
@@ -286,6 +288,7 @@ func solutionTable(id string, front *pb.Front, balanced, selected int32) ([]head
 		if band {
 			row.Cells = append(row.Cells, bandCell(s))
 		}
+		row.Cells = append(row.Cells, refinedCells(front, s, objQ)...)
 		n := strconv.Itoa(len(s.GetWarnings()))
 		row.Cells = append(row.Cells, cell{Text: n, Sort: n}, cell{Text: "sheet", Sort: ""})
 		rows = append(rows, row)

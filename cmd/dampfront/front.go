@@ -146,6 +146,7 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 		cols.band = cols.band || len(s.GetOutOfBand()) > 0
 	}
 	_, withSlopes := slopes(sols[0])
+	refined := newRefinedColumns(f)
 
 	fmt.Fprintln(w)
 	t := newTable(w, true)
@@ -155,6 +156,7 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 			h1, h2 = append(h1, h), append(h2, qSlope.unit)
 		}
 	}
+	h1, h2 = refined.headers(h1, h2)
 	t.row(h1...)
 	t.row(h2...)
 	warned, shown := 0, 0
@@ -173,7 +175,7 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 				row = append(row, tradeNum(qSlope, v))
 			}
 		}
-		t.row(row...)
+		t.row(refined.cells(row, s)...)
 	}
 	if err := t.flush(); err != nil {
 		return err
@@ -181,17 +183,25 @@ func writeFrontTable(w io.Writer, fd *frontData, rows int, more string) error {
 	if shown < len(sols) {
 		fmt.Fprintf(w, "\nShowing %d of %d solutions, spread along the front; %s.\n", shown, len(sols), more)
 	}
+	writeFrontNotes(w, fd, cols, bal, warned)
+	refined.note(w, j)
+	return nil
+}
+
+// writeFrontNotes explains the balanced mark, the warnings and the
+// out-of-range column under the front table.
+func writeFrontNotes(w io.Writer, fd *frontData, cols *solutionColumns, bal, warned int) {
+	sols := fd.front.GetSolutions()
 	fmt.Fprintf(w, "\n* balanced point: solution %d, nearest the middle of the front with each objective normalised over it.\n", sols[bal].GetIndex())
 	if warned > 0 {
 		fmt.Fprintf(w, "%d solutions carry warnings (lift-off, bump-stop contact, outside the adjuster range); see --format json.\n", warned)
 	}
 	if cols.robust {
-		fmt.Fprintln(w, api.RobustText(j)+".")
+		fmt.Fprintln(w, api.RobustText(fd.job)+".")
 	}
 	if cols.band {
 		fmt.Fprintln(w, "Out of range: the largest excess of the damper force over the adjuster range (25-300 mm/s, at the damper); get such a damper made or widen its adjusters.")
 	}
-	return nil
 }
 
 // solutionColumns are the leading columns of a table of front solutions:

@@ -90,6 +90,9 @@ func writeJob(w io.Writer, j *pb.Job) error {
 	if v := web.FrontCheckText(j); v != "" {
 		t.row("front check", v)
 	}
+	if v := web.RefinementText(j); v != "" {
+		t.row("refinement", v)
+	}
 	if v := api.RobustText(j); v != "" {
 		t.row("uncertainty", v)
 	}

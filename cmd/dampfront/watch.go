@@ -179,6 +179,9 @@ func finalLine(j *pb.Job) string {
 	if v := web.FrontCheckText(j); v != "" {
 		s += "\n" + v
 	}
+	if v := web.RefinementText(j); v != "" {
+		s += "\n" + v
+	}
 	return s
 }
 

@@ -88,6 +88,10 @@ func Check(s *Spec) (*Checked, error) {
 	if b := spec.Search.PolishBudget; b < 0 || b > MaxPolishBudget {
 		p.add("search.polish_budget", "must be 0 (no polish) to %d evaluations per front point, got %d", MaxPolishBudget, b)
 	}
+	spec.Refinement.check(&p)
+	if spec.Refinement.Enabled && spec.Uncertainty != nil {
+		p.add("refinement.enabled", "cannot go with uncertainty: the time-domain check runs the nominal car, while the objectives are robust over the uncertain cars; leave one of them out")
+	}
 	if u := spec.Uncertainty; u != nil {
 		p.mergeMapped(func(f string) string { return strings.TrimSuffix("uncertainty."+f, ".") }, u.Validate(&spec.Vehicle))
 	}
@@ -281,7 +285,11 @@ func (p problems) err() error {
 // checkpoint of the checked spec's run, read back without compiling the
 // spec: restoring a search needs only the problem's shape.
 func (c *Checked) History(checkpoint []byte) ([]optimizer.Progress, error) {
-	s, err := optimizer.Restore(shapeOnly{c}, c.settings, checkpoint)
+	search, _, err := splitCheckpoint(checkpoint)
+	if err != nil {
+		return nil, err
+	}
+	s, err := optimizer.Restore(shapeOnly{c}, c.settings, search)
 	if err != nil {
 		return nil, err
 	}

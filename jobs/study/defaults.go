@@ -142,6 +142,7 @@ func WithDefaults(s *Spec) *Spec {
 		orDefault(&q.DifferentialWeight, optimizer.DefaultDifferentialWeight)
 		orDefault(&q.DifferentialCrossover, optimizer.DefaultDifferentialCrossover)
 	}
+	out.Refinement = s.Refinement.withDefaults(*q.Seed)
 	if s.Uncertainty != nil {
 		// The method, measure and point count are the model's defaults;
 		// the sample's seed is the job's one seed.

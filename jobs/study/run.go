@@ -19,9 +19,13 @@ import (
 type Codec interface {
 	DecodeSpec(b []byte) (*Spec, error)
 	EncodeSolution(s *Solution) ([]byte, error)
-	// EncodeCheck encodes the check of a finished front, the job's
-	// summary (jobs.Summarizer).
-	EncodeCheck(c *FrontCheck) ([]byte, error)
+	// EncodeRefined adds a front member's refined figures to its encoded
+	// detail.
+	EncodeRefined(detail []byte, p *RefinedPoint) ([]byte, error)
+	// EncodeCheck encodes the check of a finished front and, for a spec
+	// with a refinement, what it did (nil without one): the job's summary
+	// (jobs.Summarizer).
+	EncodeCheck(c *FrontCheck, refined *RefineSummary) ([]byte, error)
 }
 
 // Opener opens the job engine's runs from stored specs and checkpoints:
@@ -81,15 +85,21 @@ func (o *Opener) workers() int {
 // OpenRun makes the search of a plan, restored from checkpoint unless it
 // is nil. Its Front needs a codec: use Opener.Open for the engine's runs.
 func OpenRun(pl *Plan, workers int, checkpoint []byte) (*run, error) {
-	r := &run{plan: pl, workers: max(1, workers)}
+	r := &run{plan: pl, workers: max(1, workers), refine: newRefineStage(pl)}
 	settings := pl.Settings(workers, r.record)
-	var err error
-	if checkpoint == nil {
+	search, refined, err := splitCheckpoint(checkpoint)
+	if err != nil {
+		return nil, err
+	}
+	if search == nil {
 		r.search, err = optimizer.New(pl.SearchProblem(), settings)
 	} else {
-		r.search, err = optimizer.Restore(pl.SearchProblem(), settings, checkpoint)
+		r.search, err = optimizer.Restore(pl.SearchProblem(), settings, search)
 	}
 	if err != nil {
+		return nil, err
+	}
+	if err := r.refine.restore(refined); err != nil {
 		return nil, err
 	}
 	if h := r.search.History(); len(h) > 0 {
@@ -107,6 +117,8 @@ type run struct {
 	// check is the check of the finished front, nil until the search is
 	// done, polished (when the spec asks) and checked.
 	check *FrontCheck
+	// refine is the refinement stage, nil when the spec has none.
+	refine *refineStage
 
 	mu   sync.Mutex
 	last optimizer.Progress // after the last completed generation
@@ -126,9 +138,11 @@ func (r *run) record(p optimizer.Progress) {
 }
 
 // Step steps the search; once it is done, it polishes the archive (when
-// the spec asks for it) and checks the front (see FrontCheck) before it
-// reports done. Both are functions of the final archive and the seed, so
-// a run cut anywhere, even during them, ends the same.
+// the spec asks for it) and checks the front (see FrontCheck), and then
+// refines the front a few points a step (when the spec asks for it,
+// see Refinement) before it reports done. All are functions of the final
+// archive and the seed, so a run cut anywhere, even during them, ends the
+// same; the refined points are kept in the checkpoint.
 func (r *run) Step(ctx context.Context, maxGenerations int) (bool, error) {
 	done, err := r.search.Step(ctx, maxGenerations)
 	if err != nil || !done {
@@ -136,6 +150,9 @@ func (r *run) Step(ctx context.Context, maxGenerations int) (bool, error) {
 	}
 	if err := r.finish(ctx); err != nil {
 		return false, err
+	}
+	if r.refine != nil {
+		return r.refine.step(ctx, r.plan, r.search.Front(), r.workers)
 	}
 	return true, nil
 }
@@ -171,10 +188,29 @@ func (r *run) Summary() ([]byte, error) {
 	if r.check == nil || r.codec == nil {
 		return nil, nil
 	}
-	return r.codec.EncodeCheck(r.check)
+	var refined *RefineSummary
+	if r.refine != nil {
+		refined = r.refine.summary
+	}
+	return r.codec.EncodeCheck(r.check, refined)
 }
 
-func (r *run) Checkpoint() ([]byte, error) { return r.search.Checkpoint() }
+// Refined returns the refined front points in front order and the
+// refinement's summary, nil until the refinement is done or without one.
+func (r *run) Refined() ([]*RefinedPoint, *RefineSummary) {
+	if r.refine == nil || r.refine.summary == nil {
+		return nil, nil
+	}
+	return r.refine.points, r.refine.summary
+}
+
+func (r *run) Checkpoint() ([]byte, error) {
+	b, err := r.search.Checkpoint()
+	if err != nil {
+		return nil, err
+	}
+	return r.refine.wrapCheckpoint(b), nil
+}
 
 func (r *run) Progress() jobs.Progress {
 	r.mu.Lock()
@@ -204,6 +240,12 @@ func (r *run) Front() ([]jobs.Solution, error) {
 				return nil, err
 			}
 			r.cache.put(key, detail)
+		}
+		if pts, _ := r.Refined(); pts != nil {
+			var err error
+			if detail, err = r.codec.EncodeRefined(detail, pts[i]); err != nil {
+				return nil, err
+			}
 		}
 		out[i] = jobs.Solution{Index: i, Genes: s.Genes, Objectives: s.Objectives, Violations: s.Violations, Feasible: s.Feasible, Detail: detail}
 	}

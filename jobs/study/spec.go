@@ -38,6 +38,9 @@ type Spec struct {
 	Adjusters model.Adjusters
 	Curves    Curves
 	Search    Search
+	// Refinement is the optional stage after the search: every front
+	// point checked on the nonlinear car (see Refinement); off by default.
+	Refinement Refinement
 	// Uncertainty, when not nil, makes the objectives robust: every setup
 	// is evaluated on the uncertain cars of its ranges, the objectives
 	// are their mean, worst or mean + k·sd, each constraint the worst

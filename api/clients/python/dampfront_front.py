@@ -36,7 +36,7 @@ import sys
 import grpc
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
-from dampfront.v1 import design_pb2, job_pb2, result_pb2, service_pb2  # noqa: E402
+from dampfront.v1 import design_pb2, job_pb2, refine_pb2, result_pb2, service_pb2  # noqa: E402
 
 SERVICE = "/dampfront.v1.DampfrontService/"
 
@@ -153,7 +153,8 @@ def columns(front):
             + [objective_column(o.kind) for o in front.objectives]
             + [c for _, bump, rebound in SLOPE_COLUMNS for c in (bump, rebound)]
             + [constraint_column(c) for c in front.constraints]
-            + ["out_of_band_n", "feasible", "balanced"])
+            + ["out_of_band_n", "feasible", "balanced"]
+            + (refined_columns(front) if refined(front) else []))
     if is_robust(front):
         for o in front.objectives:
             c = objective_column(o.kind)
@@ -164,6 +165,29 @@ def columns(front):
 def is_robust(front):
     """A robust front: a solution carries its figures over the uncertain cars."""
     return any(s.HasField("robust") for s in front.solutions)
+
+
+def refined(front):
+    """The front carries refined figures: its first solution has them."""
+    return len(front.solutions) > 0 and front.solutions[0].HasField("refined")
+
+
+def refined_columns(front):
+    cols = []
+    for o in front.objectives:
+        c = "refined_" + objective_column(o.kind)
+        cols += [c, c + "_error"]
+    return cols + ["refined_feasible", "refined_rank", "refined_unsettled"]
+
+
+def refined_source(front, k):
+    """Where objective k's refined value comes from, "" without refined figures."""
+    if not refined(front):
+        return ""
+    for s in front.solutions:
+        if k < len(s.refined.objective_sources):
+            return refine_pb2.RefineSource.Name(s.refined.objective_sources[k])[len("REFINE_SOURCE_"):].lower()
+    return ""
 
 
 def objective_column(kind):
@@ -189,6 +213,14 @@ def row(front, s, is_balanced):
     values += [s.violations[k] if k < len(s.violations) else 0.0 for k in range(len(front.constraints))]
     out_of_band = max((e.over_n for e in s.out_of_band), default=0.0)
     values += [out_of_band, s.feasible, is_balanced]
+    if refined(front):
+        r = s.refined
+        for k in range(len(front.objectives)):
+            if k < len(r.objectives):
+                values += [r.objectives[k], r.objective_errors[k]]
+            else:
+                values += [None, None]
+        values += [r.feasible, r.rank, r.unsettled]
     if is_robust(front):
         r = s.robust
         for i in range(len(front.objectives)):
@@ -215,6 +247,15 @@ def write_csv(out, front):
         w.writerow([cell(v) for v in row(front, s, i == bal)])
 
 
+def objective_header(front, k, o):
+    h = {"column": objective_column(o.kind), "kind": design_pb2.ObjectiveKind.Name(o.kind),
+         "aggregation": design_pb2.Aggregation.Name(o.aggregation)}
+    src = refined_source(front, k)
+    if src:
+        h["refined_source"] = src
+    return h
+
+
 def write_json(out, job, front):
     cols = columns(front)
     bal = balanced(front)
@@ -232,8 +273,7 @@ def write_json(out, job, front):
         "partial": front.partial,
         "total_size": front.total_size,
         "gene_names": list(front.gene_names),
-        "objectives": [{"column": objective_column(o.kind), "kind": design_pb2.ObjectiveKind.Name(o.kind),
-                        "aggregation": design_pb2.Aggregation.Name(o.aggregation)} for o in front.objectives],
+        "objectives": [objective_header(front, k, o) for k, o in enumerate(front.objectives)],
         "constraints": [{"column": constraint_column(c), "kind": design_pb2.ConstraintKind.Name(c.kind),
                          "limit": c.limit} for c in front.constraints],
         "balanced_index": front.solutions[bal].index if bal >= 0 else -1,

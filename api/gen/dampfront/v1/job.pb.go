@@ -438,6 +438,9 @@ type JobSpec struct {
 	// manoeuvre and kerb cases; 0 means 0.5.
 	// Plausible range when given (not 0): (0, 1].
 	LoadFraction float64 `protobuf:"fixed64,22,opt,name=load_fraction,json=loadFraction,proto3" json:"load_fraction,omitempty"`
+	// The optional refinement of the front on the nonlinear car; absent
+	// means none.
+	Refinement *Refinement `protobuf:"bytes,23,opt,name=refinement,proto3" json:"refinement,omitempty"`
 	// Uncertainty ranges (fuel, tyre rate, aero): with them the objectives
 	// are robust over the uncertain cars; absent is the nominal car only.
 	Uncertainty   *Uncertainty `protobuf:"bytes,24,opt,name=uncertainty,proto3" json:"uncertainty,omitempty"`
@@ -587,6 +590,13 @@ func (x *JobSpec) GetLoadFraction() float64 {
 	return 0
 }
 
+func (x *JobSpec) GetRefinement() *Refinement {
+	if x != nil {
+		return x.Refinement
+	}
+	return nil
+}
+
 func (x *JobSpec) GetUncertainty() *Uncertainty {
 	if x != nil {
 		return x.Uncertainty
@@ -639,6 +649,9 @@ type Job struct {
 	// The check of the finished front in decision space (GetJob, WatchJob
 	// and ListJobs once the job has succeeded); unset before.
 	FrontCheck *FrontCheck `protobuf:"bytes,18,opt,name=front_check,json=frontCheck,proto3" json:"front_check,omitempty"`
+	// What the refinement did to the finished front (as front_check);
+	// unset without a refinement.
+	RefinementSummary *RefinementSummary `protobuf:"bytes,19,opt,name=refinement_summary,json=refinementSummary,proto3" json:"refinement_summary,omitempty"`
 	// Uncertain cars each setup is evaluated on (the spec's uncertainty);
 	// 0 without uncertainty.
 	UncertainCars int32 `protobuf:"varint,20,opt,name=uncertain_cars,json=uncertainCars,proto3" json:"uncertain_cars,omitempty"`
@@ -798,6 +811,13 @@ func (x *Job) GetClosest() []*ConstraintShortfall {
 func (x *Job) GetFrontCheck() *FrontCheck {
 	if x != nil {
 		return x.FrontCheck
+	}
+	return nil
+}
+
+func (x *Job) GetRefinementSummary() *RefinementSummary {
+	if x != nil {
+		return x.RefinementSummary
 	}
 	return nil
 }
@@ -1046,7 +1066,7 @@ var File_dampfront_v1_job_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\n" +
-	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\x80\a\n" +
+	"\x16dampfront/v1/job.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x19dampfront/v1/refine.proto\x1a\x17dampfront/v1/road.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\x1a\x1adampfront/v1/vehicle.proto\x1a\x1fgoogle/protobuf/timestamp.proto\"\x80\a\n" +
 	"\x0eSearchSettings\x12'\n" +
 	"\x0fpopulation_size\x18\x01 \x01(\x05R\x0epopulationSize\x12 \n" +
 	"\vgenerations\x18\x02 \x01(\x05R\vgenerations\x12\x17\n" +
@@ -1072,7 +1092,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x15_mutation_probabilityB\x0f\n" +
 	"\r_mutation_etaB\x16\n" +
 	"\x14_differential_weightB\x19\n" +
-	"\x17_differential_crossover\"\xc4\a\n" +
+	"\x17_differential_crossover\"\xfe\a\n" +
 	"\aJobSpec\x12!\n" +
 	"\fdisplay_name\x18\x01 \x01(\tR\vdisplayName\x129\n" +
 	"\x06labels\x18\x02 \x03(\v2!.dampfront.v1.JobSpec.LabelsEntryR\x06labels\x12/\n" +
@@ -1097,11 +1117,14 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"manoeuvres\x18\x14 \x03(\v2\x17.dampfront.v1.ManoeuvreR\n" +
 	"manoeuvres\x12(\n" +
 	"\x05kerbs\x18\x15 \x03(\v2\x12.dampfront.v1.KerbR\x05kerbs\x12#\n" +
-	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x12;\n" +
+	"\rload_fraction\x18\x16 \x01(\x01R\floadFraction\x128\n" +
+	"\n" +
+	"refinement\x18\x17 \x01(\v2\x18.dampfront.v1.RefinementR\n" +
+	"refinement\x12;\n" +
 	"\vuncertainty\x18\x18 \x01(\v2\x19.dampfront.v1.UncertaintyR\vuncertainty\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x06\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xc6\a\n" +
 	"\x03Job\x12\x12\n" +
 	"\x04name\x18\x01 \x01(\tR\x04name\x12\x15\n" +
 	"\x06job_id\x18\x02 \x01(\tR\x05jobId\x12!\n" +
@@ -1127,7 +1150,8 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"infeasible\x12;\n" +
 	"\aclosest\x18\x11 \x03(\v2!.dampfront.v1.ConstraintShortfallR\aclosest\x129\n" +
 	"\vfront_check\x18\x12 \x01(\v2\x18.dampfront.v1.FrontCheckR\n" +
-	"frontCheck\x12%\n" +
+	"frontCheck\x12N\n" +
+	"\x12refinement_summary\x18\x13 \x01(\v2\x1f.dampfront.v1.RefinementSummaryR\x11refinementSummary\x12%\n" +
 	"\x0euncertain_cars\x18\x14 \x01(\x05R\runcertainCars\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
@@ -1211,9 +1235,11 @@ var file_dampfront_v1_job_proto_goTypes = []any{
 	(*Adjusters)(nil),             // 19: dampfront.v1.Adjusters
 	(*Manoeuvre)(nil),             // 20: dampfront.v1.Manoeuvre
 	(*Kerb)(nil),                  // 21: dampfront.v1.Kerb
-	(*Uncertainty)(nil),           // 22: dampfront.v1.Uncertainty
-	(*timestamppb.Timestamp)(nil), // 23: google.protobuf.Timestamp
-	(*ConstraintShortfall)(nil),   // 24: dampfront.v1.ConstraintShortfall
+	(*Refinement)(nil),            // 22: dampfront.v1.Refinement
+	(*Uncertainty)(nil),           // 23: dampfront.v1.Uncertainty
+	(*timestamppb.Timestamp)(nil), // 24: google.protobuf.Timestamp
+	(*ConstraintShortfall)(nil),   // 25: dampfront.v1.ConstraintShortfall
+	(*RefinementSummary)(nil),     // 26: dampfront.v1.RefinementSummary
 }
 var file_dampfront_v1_job_proto_depIdxs = []int32{
 	0,  // 0: dampfront.v1.SearchSettings.variation:type_name -> dampfront.v1.Variation
@@ -1231,23 +1257,25 @@ var file_dampfront_v1_job_proto_depIdxs = []int32{
 	19, // 12: dampfront.v1.JobSpec.adjusters:type_name -> dampfront.v1.Adjusters
 	20, // 13: dampfront.v1.JobSpec.manoeuvres:type_name -> dampfront.v1.Manoeuvre
 	21, // 14: dampfront.v1.JobSpec.kerbs:type_name -> dampfront.v1.Kerb
-	22, // 15: dampfront.v1.JobSpec.uncertainty:type_name -> dampfront.v1.Uncertainty
-	1,  // 16: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
-	9,  // 17: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
-	23, // 18: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
-	23, // 19: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
-	23, // 20: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
-	7,  // 21: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
-	4,  // 22: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
-	7,  // 23: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
-	24, // 24: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
-	6,  // 25: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
-	23, // 26: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
-	27, // [27:27] is the sub-list for method output_type
-	27, // [27:27] is the sub-list for method input_type
-	27, // [27:27] is the sub-list for extension type_name
-	27, // [27:27] is the sub-list for extension extendee
-	0,  // [0:27] is the sub-list for field type_name
+	22, // 15: dampfront.v1.JobSpec.refinement:type_name -> dampfront.v1.Refinement
+	23, // 16: dampfront.v1.JobSpec.uncertainty:type_name -> dampfront.v1.Uncertainty
+	1,  // 17: dampfront.v1.Job.state:type_name -> dampfront.v1.JobState
+	9,  // 18: dampfront.v1.Job.labels:type_name -> dampfront.v1.Job.LabelsEntry
+	24, // 19: dampfront.v1.Job.create_time:type_name -> google.protobuf.Timestamp
+	24, // 20: dampfront.v1.Job.start_time:type_name -> google.protobuf.Timestamp
+	24, // 21: dampfront.v1.Job.finish_time:type_name -> google.protobuf.Timestamp
+	7,  // 22: dampfront.v1.Job.progress:type_name -> dampfront.v1.Progress
+	4,  // 23: dampfront.v1.Job.spec:type_name -> dampfront.v1.JobSpec
+	7,  // 24: dampfront.v1.Job.history:type_name -> dampfront.v1.Progress
+	25, // 25: dampfront.v1.Job.closest:type_name -> dampfront.v1.ConstraintShortfall
+	6,  // 26: dampfront.v1.Job.front_check:type_name -> dampfront.v1.FrontCheck
+	26, // 27: dampfront.v1.Job.refinement_summary:type_name -> dampfront.v1.RefinementSummary
+	24, // 28: dampfront.v1.Progress.update_time:type_name -> google.protobuf.Timestamp
+	29, // [29:29] is the sub-list for method output_type
+	29, // [29:29] is the sub-list for method input_type
+	29, // [29:29] is the sub-list for extension type_name
+	29, // [29:29] is the sub-list for extension extendee
+	0,  // [0:29] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_job_proto_init() }
@@ -1256,6 +1284,7 @@ func file_dampfront_v1_job_proto_init() {
 		return
 	}
 	file_dampfront_v1_design_proto_init()
+	file_dampfront_v1_refine_proto_init()
 	file_dampfront_v1_road_proto_init()
 	file_dampfront_v1_transient_proto_init()
 	file_dampfront_v1_uncertainty_proto_init()

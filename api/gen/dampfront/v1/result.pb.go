@@ -224,6 +224,9 @@ type Solution struct {
 	// Metrics on the manoeuvre and kerb cases, manoeuvres first, in the
 	// spec's order (field numbers from 20 on).
 	TransientMetrics []*TransientMetrics `protobuf:"bytes,20,rep,name=transient_metrics,json=transientMetrics,proto3" json:"transient_metrics,omitempty"`
+	// The point refined on the nonlinear car, for a job with a refinement
+	// once it is done; unset otherwise.
+	Refined *RefinedSolution `protobuf:"bytes,21,opt,name=refined,proto3" json:"refined,omitempty"`
 	// With the job's uncertainty: the objectives on the nominal car and
 	// their spread over the uncertain cars (objectives above are then the
 	// robust ones, the metrics the nominal car's); absent without.
@@ -356,6 +359,13 @@ func (x *Solution) GetOutOfBand() []*BandExcess {
 func (x *Solution) GetTransientMetrics() []*TransientMetrics {
 	if x != nil {
 		return x.TransientMetrics
+	}
+	return nil
+}
+
+func (x *Solution) GetRefined() *RefinedSolution {
+	if x != nil {
+		return x.Refined
 	}
 	return nil
 }
@@ -1789,7 +1799,7 @@ var File_dampfront_v1_result_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_result_proto_rawDesc = "" +
 	"\n" +
-	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\"\xba\x05\n" +
+	"\x19dampfront/v1/result.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x19dampfront/v1/refine.proto\x1a\x1cdampfront/v1/transient.proto\x1a\x1edampfront/v1/uncertainty.proto\"\xf3\x05\n" +
 	"\bSolution\x12\x14\n" +
 	"\x05index\x18\x01 \x01(\x05R\x05index\x12\x14\n" +
 	"\x05genes\x18\x02 \x03(\x01R\x05genes\x12)\n" +
@@ -1811,7 +1821,8 @@ const file_dampfront_v1_result_proto_rawDesc = "" +
 	"shortfalls\x122\n" +
 	"\x06clicks\x18\f \x03(\v2\x1a.dampfront.v1.CornerClicksR\x06clicks\x128\n" +
 	"\vout_of_band\x18\r \x03(\v2\x18.dampfront.v1.BandExcessR\toutOfBand\x12K\n" +
-	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\x126\n" +
+	"\x11transient_metrics\x18\x14 \x03(\v2\x1e.dampfront.v1.TransientMetricsR\x10transientMetrics\x127\n" +
+	"\arefined\x18\x15 \x01(\v2\x1d.dampfront.v1.RefinedSolutionR\arefined\x126\n" +
 	"\x06robust\x18\x16 \x01(\v2\x1e.dampfront.v1.RobustObjectivesR\x06robust\"\xc0\x01\n" +
 	"\fCornerClicks\x124\n" +
 	"\x06corner\x18\x01 \x01(\x0e2\x1c.dampfront.v1.CornerPositionR\x06corner\x12\x19\n" +
@@ -1999,10 +2010,11 @@ var file_dampfront_v1_result_proto_goTypes = []any{
 	(*Setup)(nil),                 // 16: dampfront.v1.Setup
 	(*ConstraintShortfall)(nil),   // 17: dampfront.v1.ConstraintShortfall
 	(*TransientMetrics)(nil),      // 18: dampfront.v1.TransientMetrics
-	(*RobustObjectives)(nil),      // 19: dampfront.v1.RobustObjectives
-	(*DamperStage)(nil),           // 20: dampfront.v1.DamperStage
-	(*Objective)(nil),             // 21: dampfront.v1.Objective
-	(*Constraint)(nil),            // 22: dampfront.v1.Constraint
+	(*RefinedSolution)(nil),       // 19: dampfront.v1.RefinedSolution
+	(*RobustObjectives)(nil),      // 20: dampfront.v1.RobustObjectives
+	(*DamperStage)(nil),           // 21: dampfront.v1.DamperStage
+	(*Objective)(nil),             // 22: dampfront.v1.Objective
+	(*Constraint)(nil),            // 23: dampfront.v1.Constraint
 }
 var file_dampfront_v1_result_proto_depIdxs = []int32{
 	16, // 0: dampfront.v1.Solution.setup:type_name -> dampfront.v1.Setup
@@ -2012,30 +2024,31 @@ var file_dampfront_v1_result_proto_depIdxs = []int32{
 	4,  // 4: dampfront.v1.Solution.clicks:type_name -> dampfront.v1.CornerClicks
 	5,  // 5: dampfront.v1.Solution.out_of_band:type_name -> dampfront.v1.BandExcess
 	18, // 6: dampfront.v1.Solution.transient_metrics:type_name -> dampfront.v1.TransientMetrics
-	19, // 7: dampfront.v1.Solution.robust:type_name -> dampfront.v1.RobustObjectives
-	1,  // 8: dampfront.v1.CornerClicks.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 9: dampfront.v1.BandExcess.corner:type_name -> dampfront.v1.CornerPosition
-	10, // 10: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
-	11, // 11: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
-	11, // 12: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
-	12, // 13: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
-	9,  // 14: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
-	7,  // 15: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
-	8,  // 16: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
-	1,  // 17: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
-	1,  // 18: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
-	20, // 19: dampfront.v1.DamperCurve.stages_bump:type_name -> dampfront.v1.DamperStage
-	20, // 20: dampfront.v1.DamperCurve.stages_rebound:type_name -> dampfront.v1.DamperStage
-	2,  // 21: dampfront.v1.HeaveDamperCurve.axle:type_name -> dampfront.v1.AxlePosition
-	13, // 22: dampfront.v1.HeaveDamperCurve.curve:type_name -> dampfront.v1.DamperCurve
-	21, // 23: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
-	22, // 24: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
-	3,  // 25: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
-	26, // [26:26] is the sub-list for method output_type
-	26, // [26:26] is the sub-list for method input_type
-	26, // [26:26] is the sub-list for extension type_name
-	26, // [26:26] is the sub-list for extension extendee
-	0,  // [0:26] is the sub-list for field type_name
+	19, // 7: dampfront.v1.Solution.refined:type_name -> dampfront.v1.RefinedSolution
+	20, // 8: dampfront.v1.Solution.robust:type_name -> dampfront.v1.RobustObjectives
+	1,  // 9: dampfront.v1.CornerClicks.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 10: dampfront.v1.BandExcess.corner:type_name -> dampfront.v1.CornerPosition
+	10, // 11: dampfront.v1.CaseMetrics.corners:type_name -> dampfront.v1.CornerMetrics
+	11, // 12: dampfront.v1.CaseMetrics.front:type_name -> dampfront.v1.AxleMetrics
+	11, // 13: dampfront.v1.CaseMetrics.rear:type_name -> dampfront.v1.AxleMetrics
+	12, // 14: dampfront.v1.CaseMetrics.modes:type_name -> dampfront.v1.Mode
+	9,  // 15: dampfront.v1.CaseMetrics.at_speed:type_name -> dampfront.v1.OperatingPoint
+	7,  // 16: dampfront.v1.CaseMetrics.aero:type_name -> dampfront.v1.AeroMetrics
+	8,  // 17: dampfront.v1.CaseMetrics.reference_points:type_name -> dampfront.v1.ReferencePointMetrics
+	1,  // 18: dampfront.v1.CornerMetrics.corner:type_name -> dampfront.v1.CornerPosition
+	1,  // 19: dampfront.v1.DamperCurve.corner:type_name -> dampfront.v1.CornerPosition
+	21, // 20: dampfront.v1.DamperCurve.stages_bump:type_name -> dampfront.v1.DamperStage
+	21, // 21: dampfront.v1.DamperCurve.stages_rebound:type_name -> dampfront.v1.DamperStage
+	2,  // 22: dampfront.v1.HeaveDamperCurve.axle:type_name -> dampfront.v1.AxlePosition
+	13, // 23: dampfront.v1.HeaveDamperCurve.curve:type_name -> dampfront.v1.DamperCurve
+	22, // 24: dampfront.v1.Front.objectives:type_name -> dampfront.v1.Objective
+	23, // 25: dampfront.v1.Front.constraints:type_name -> dampfront.v1.Constraint
+	3,  // 26: dampfront.v1.Front.solutions:type_name -> dampfront.v1.Solution
+	27, // [27:27] is the sub-list for method output_type
+	27, // [27:27] is the sub-list for method input_type
+	27, // [27:27] is the sub-list for extension type_name
+	27, // [27:27] is the sub-list for extension extendee
+	0,  // [0:27] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_result_proto_init() }
@@ -2044,6 +2057,7 @@ func file_dampfront_v1_result_proto_init() {
 		return
 	}
 	file_dampfront_v1_design_proto_init()
+	file_dampfront_v1_refine_proto_init()
 	file_dampfront_v1_transient_proto_init()
 	file_dampfront_v1_uncertainty_proto_init()
 	type x struct{}

@@ -21,65 +21,6 @@ const (
 	_ = protoimpl.EnforceVersion(protoimpl.MaxVersion - 20)
 )
 
-// Verdict is the time-domain check's judgement of the linear answer.
-type Verdict int32
-
-const (
-	Verdict_VERDICT_UNSPECIFIED Verdict = 0
-	// Within verdict_sigmas statistical errors (a case or a report: no
-	// metric differs).
-	Verdict_VERDICT_HOLDS Verdict = 1
-	// More than verdict_sigmas statistical errors off (a case or a report:
-	// some metric differs).
-	Verdict_VERDICT_DIFFERS Verdict = 2
-	// A metric without a statistical error (equivalent damping, mean
-	// damper force) is shown, not judged.
-	Verdict_VERDICT_NOT_JUDGED Verdict = 3
-)
-
-// Enum value maps for Verdict.
-var (
-	Verdict_name = map[int32]string{
-		0: "VERDICT_UNSPECIFIED",
-		1: "VERDICT_HOLDS",
-		2: "VERDICT_DIFFERS",
-		3: "VERDICT_NOT_JUDGED",
-	}
-	Verdict_value = map[string]int32{
-		"VERDICT_UNSPECIFIED": 0,
-		"VERDICT_HOLDS":       1,
-		"VERDICT_DIFFERS":     2,
-		"VERDICT_NOT_JUDGED":  3,
-	}
-)
-
-func (x Verdict) Enum() *Verdict {
-	p := new(Verdict)
-	*p = x
-	return p
-}
-
-func (x Verdict) String() string {
-	return protoimpl.X.EnumStringOf(x.Descriptor(), protoreflect.EnumNumber(x))
-}
-
-func (Verdict) Descriptor() protoreflect.EnumDescriptor {
-	return file_dampfront_v1_service_proto_enumTypes[0].Descriptor()
-}
-
-func (Verdict) Type() protoreflect.EnumType {
-	return &file_dampfront_v1_service_proto_enumTypes[0]
-}
-
-func (x Verdict) Number() protoreflect.EnumNumber {
-	return protoreflect.EnumNumber(x)
-}
-
-// Deprecated: Use Verdict.Descriptor instead.
-func (Verdict) EnumDescriptor() ([]byte, []int) {
-	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{0}
-}
-
 // SubmitJobRequest is the input of SubmitJob.
 type SubmitJobRequest struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -1525,200 +1466,6 @@ func (x *VerifySetupResponse) GetVerdictSigmas() float64 {
 	return 0
 }
 
-// VerifiedCase is the check on one road case.
-type VerifiedCase struct {
-	state protoimpl.MessageState `protogen:"open.v1"`
-	// The road case's name.
-	RoadCase string `protobuf:"bytes,1,opt,name=road_case,json=roadCase,proto3" json:"road_case,omitempty"`
-	// The metrics, frequency domain against time domain.
-	Metrics []*VerifiedMetric `protobuf:"bytes,2,rep,name=metrics,proto3" json:"metrics,omitempty"`
-	// Integration step and settling time of the time domain, s.
-	StepS   float64 `protobuf:"fixed64,3,opt,name=step_s,json=stepS,proto3" json:"step_s,omitempty"`
-	SettleS float64 `protobuf:"fixed64,4,opt,name=settle_s,json=settleS,proto3" json:"settle_s,omitempty"`
-	// Frequency-domain warnings (lift-off, bump-stop contact, ...).
-	Warnings []string `protobuf:"bytes,5,rep,name=warnings,proto3" json:"warnings,omitempty"`
-	// VERDICT_HOLDS when no metric differs, else VERDICT_DIFFERS.
-	Verdict       Verdict `protobuf:"varint,6,opt,name=verdict,proto3,enum=dampfront.v1.Verdict" json:"verdict,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
-}
-
-func (x *VerifiedCase) Reset() {
-	*x = VerifiedCase{}
-	mi := &file_dampfront_v1_service_proto_msgTypes[20]
-	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
-	ms.StoreMessageInfo(mi)
-}
-
-func (x *VerifiedCase) String() string {
-	return protoimpl.X.MessageStringOf(x)
-}
-
-func (*VerifiedCase) ProtoMessage() {}
-
-func (x *VerifiedCase) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_service_proto_msgTypes[20]
-	if x != nil {
-		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
-		if ms.LoadMessageInfo() == nil {
-			ms.StoreMessageInfo(mi)
-		}
-		return ms
-	}
-	return mi.MessageOf(x)
-}
-
-// Deprecated: Use VerifiedCase.ProtoReflect.Descriptor instead.
-func (*VerifiedCase) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{20}
-}
-
-func (x *VerifiedCase) GetRoadCase() string {
-	if x != nil {
-		return x.RoadCase
-	}
-	return ""
-}
-
-func (x *VerifiedCase) GetMetrics() []*VerifiedMetric {
-	if x != nil {
-		return x.Metrics
-	}
-	return nil
-}
-
-func (x *VerifiedCase) GetStepS() float64 {
-	if x != nil {
-		return x.StepS
-	}
-	return 0
-}
-
-func (x *VerifiedCase) GetSettleS() float64 {
-	if x != nil {
-		return x.SettleS
-	}
-	return 0
-}
-
-func (x *VerifiedCase) GetWarnings() []string {
-	if x != nil {
-		return x.Warnings
-	}
-	return nil
-}
-
-func (x *VerifiedCase) GetVerdict() Verdict {
-	if x != nil {
-		return x.Verdict
-	}
-	return Verdict_VERDICT_UNSPECIFIED
-}
-
-// VerifiedMetric is one metric in both models, in SI units as its name
-// says (e.g. "tyre_load_sd_n[FL]", "ride_height_shift_m[front]").
-type VerifiedMetric struct {
-	state  protoimpl.MessageState `protogen:"open.v1"`
-	Metric string                 `protobuf:"bytes,1,opt,name=metric,proto3" json:"metric,omitempty"`
-	// The statistically linearised frequency-domain value.
-	FrequencyDomain float64 `protobuf:"fixed64,2,opt,name=frequency_domain,json=frequencyDomain,proto3" json:"frequency_domain,omitempty"`
-	// The nonlinear time-domain value from the recorded history.
-	TimeDomain float64 `protobuf:"fixed64,3,opt,name=time_domain,json=timeDomain,proto3" json:"time_domain,omitempty"`
-	// time_domain - frequency_domain, and that over |frequency_domain|
-	// (0 when the frequency-domain value is 0).
-	Difference         float64 `protobuf:"fixed64,4,opt,name=difference,proto3" json:"difference,omitempty"`
-	RelativeDifference float64 `protobuf:"fixed64,5,opt,name=relative_difference,json=relativeDifference,proto3" json:"relative_difference,omitempty"`
-	// Standard deviation of the time-domain value from the record length
-	// (see the model's statistical error); 0 where none is estimated
-	// (equivalent damping, mean damper force). A difference of more than
-	// about 3 of these is more than sampling error.
-	StatisticalError float64 `protobuf:"fixed64,6,opt,name=statistical_error,json=statisticalError,proto3" json:"statistical_error,omitempty"`
-	// The metric's verdict: VERDICT_NOT_JUDGED without a statistical
-	// error, else whether |difference| is within verdict_sigmas of them.
-	Verdict       Verdict `protobuf:"varint,7,opt,name=verdict,proto3,enum=dampfront.v1.Verdict" json:"verdict,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
-}
-
-func (x *VerifiedMetric) Reset() {
-	*x = VerifiedMetric{}
-	mi := &file_dampfront_v1_service_proto_msgTypes[21]
-	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
-	ms.StoreMessageInfo(mi)
-}
-
-func (x *VerifiedMetric) String() string {
-	return protoimpl.X.MessageStringOf(x)
-}
-
-func (*VerifiedMetric) ProtoMessage() {}
-
-func (x *VerifiedMetric) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_service_proto_msgTypes[21]
-	if x != nil {
-		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
-		if ms.LoadMessageInfo() == nil {
-			ms.StoreMessageInfo(mi)
-		}
-		return ms
-	}
-	return mi.MessageOf(x)
-}
-
-// Deprecated: Use VerifiedMetric.ProtoReflect.Descriptor instead.
-func (*VerifiedMetric) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{21}
-}
-
-func (x *VerifiedMetric) GetMetric() string {
-	if x != nil {
-		return x.Metric
-	}
-	return ""
-}
-
-func (x *VerifiedMetric) GetFrequencyDomain() float64 {
-	if x != nil {
-		return x.FrequencyDomain
-	}
-	return 0
-}
-
-func (x *VerifiedMetric) GetTimeDomain() float64 {
-	if x != nil {
-		return x.TimeDomain
-	}
-	return 0
-}
-
-func (x *VerifiedMetric) GetDifference() float64 {
-	if x != nil {
-		return x.Difference
-	}
-	return 0
-}
-
-func (x *VerifiedMetric) GetRelativeDifference() float64 {
-	if x != nil {
-		return x.RelativeDifference
-	}
-	return 0
-}
-
-func (x *VerifiedMetric) GetStatisticalError() float64 {
-	if x != nil {
-		return x.StatisticalError
-	}
-	return 0
-}
-
-func (x *VerifiedMetric) GetVerdict() Verdict {
-	if x != nil {
-		return x.Verdict
-	}
-	return Verdict_VERDICT_UNSPECIFIED
-}
-
 // GetTransientHistoryRequest is the input of GetTransientHistory.
 type GetTransientHistoryRequest struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
@@ -1741,7 +1488,7 @@ type GetTransientHistoryRequest struct {
 
 func (x *GetTransientHistoryRequest) Reset() {
 	*x = GetTransientHistoryRequest{}
-	mi := &file_dampfront_v1_service_proto_msgTypes[22]
+	mi := &file_dampfront_v1_service_proto_msgTypes[20]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1753,7 +1500,7 @@ func (x *GetTransientHistoryRequest) String() string {
 func (*GetTransientHistoryRequest) ProtoMessage() {}
 
 func (x *GetTransientHistoryRequest) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_service_proto_msgTypes[22]
+	mi := &file_dampfront_v1_service_proto_msgTypes[20]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1766,7 +1513,7 @@ func (x *GetTransientHistoryRequest) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use GetTransientHistoryRequest.ProtoReflect.Descriptor instead.
 func (*GetTransientHistoryRequest) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{22}
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{20}
 }
 
 func (x *GetTransientHistoryRequest) GetSource() isGetTransientHistoryRequest_Source {
@@ -1868,7 +1615,7 @@ type GetTransientHistoryResponse struct {
 
 func (x *GetTransientHistoryResponse) Reset() {
 	*x = GetTransientHistoryResponse{}
-	mi := &file_dampfront_v1_service_proto_msgTypes[23]
+	mi := &file_dampfront_v1_service_proto_msgTypes[21]
 	ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 	ms.StoreMessageInfo(mi)
 }
@@ -1880,7 +1627,7 @@ func (x *GetTransientHistoryResponse) String() string {
 func (*GetTransientHistoryResponse) ProtoMessage() {}
 
 func (x *GetTransientHistoryResponse) ProtoReflect() protoreflect.Message {
-	mi := &file_dampfront_v1_service_proto_msgTypes[23]
+	mi := &file_dampfront_v1_service_proto_msgTypes[21]
 	if x != nil {
 		ms := protoimpl.X.MessageStateOf(protoimpl.Pointer(x))
 		if ms.LoadMessageInfo() == nil {
@@ -1893,7 +1640,7 @@ func (x *GetTransientHistoryResponse) ProtoReflect() protoreflect.Message {
 
 // Deprecated: Use GetTransientHistoryResponse.ProtoReflect.Descriptor instead.
 func (*GetTransientHistoryResponse) Descriptor() ([]byte, []int) {
-	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{23}
+	return file_dampfront_v1_service_proto_rawDescGZIP(), []int{21}
 }
 
 func (x *GetTransientHistoryResponse) GetCaseName() string {
@@ -1984,7 +1731,7 @@ var File_dampfront_v1_service_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/hand.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/result.proto\"=\n" +
+	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/hand.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/result.proto\x1a\x19dampfront/v1/verify.proto\"=\n" +
 	"\x10SubmitJobRequest\x12)\n" +
 	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecR\x04spec\"8\n" +
 	"\x11SubmitJobResponse\x12#\n" +
@@ -2089,25 +1836,7 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"duration_s\x18\x03 \x01(\x01R\tdurationS\x12\x18\n" +
 	"\acaution\x18\x04 \x01(\tR\acaution\x12/\n" +
 	"\averdict\x18\x05 \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict\x12%\n" +
-	"\x0everdict_sigmas\x18\x06 \x01(\x01R\rverdictSigmas\"\xe2\x01\n" +
-	"\fVerifiedCase\x12\x1b\n" +
-	"\troad_case\x18\x01 \x01(\tR\broadCase\x126\n" +
-	"\ametrics\x18\x02 \x03(\v2\x1c.dampfront.v1.VerifiedMetricR\ametrics\x12\x15\n" +
-	"\x06step_s\x18\x03 \x01(\x01R\x05stepS\x12\x19\n" +
-	"\bsettle_s\x18\x04 \x01(\x01R\asettleS\x12\x1a\n" +
-	"\bwarnings\x18\x05 \x03(\tR\bwarnings\x12/\n" +
-	"\averdict\x18\x06 \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict\"\xa3\x02\n" +
-	"\x0eVerifiedMetric\x12\x16\n" +
-	"\x06metric\x18\x01 \x01(\tR\x06metric\x12)\n" +
-	"\x10frequency_domain\x18\x02 \x01(\x01R\x0ffrequencyDomain\x12\x1f\n" +
-	"\vtime_domain\x18\x03 \x01(\x01R\n" +
-	"timeDomain\x12\x1e\n" +
-	"\n" +
-	"difference\x18\x04 \x01(\x01R\n" +
-	"difference\x12/\n" +
-	"\x13relative_difference\x18\x05 \x01(\x01R\x12relativeDifference\x12+\n" +
-	"\x11statistical_error\x18\x06 \x01(\x01R\x10statisticalError\x12/\n" +
-	"\averdict\x18\a \x01(\x0e2\x15.dampfront.v1.VerdictR\averdict\"\xce\x01\n" +
+	"\x0everdict_sigmas\x18\x06 \x01(\x01R\rverdictSigmas\"\xce\x01\n" +
 	"\x1aGetTransientHistoryRequest\x12+\n" +
 	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecH\x00R\x04spec\x12\x12\n" +
 	"\x03job\x18\x02 \x01(\tH\x00R\x03job\x12)\n" +
@@ -2130,12 +1859,7 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\x0etyre_load_rr_n\x18\n" +
 	" \x03(\x01R\vtyreLoadRrN\x12\x1d\n" +
 	"\vax_m_per_s2\x18\v \x03(\x01R\baxMPerS2\x12\x1d\n" +
-	"\vay_m_per_s2\x18\f \x03(\x01R\bayMPerS2*b\n" +
-	"\aVerdict\x12\x17\n" +
-	"\x13VERDICT_UNSPECIFIED\x10\x00\x12\x11\n" +
-	"\rVERDICT_HOLDS\x10\x01\x12\x13\n" +
-	"\x0fVERDICT_DIFFERS\x10\x02\x12\x16\n" +
-	"\x12VERDICT_NOT_JUDGED\x10\x032\x87\b\n" +
+	"\vay_m_per_s2\x18\f \x03(\x01R\bayMPerS22\x87\b\n" +
 	"\x10DampfrontService\x12L\n" +
 	"\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12C\n" +
 	"\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n" +
@@ -2162,121 +1886,116 @@ func file_dampfront_v1_service_proto_rawDescGZIP() []byte {
 	return file_dampfront_v1_service_proto_rawDescData
 }
 
-var file_dampfront_v1_service_proto_enumTypes = make([]protoimpl.EnumInfo, 1)
-var file_dampfront_v1_service_proto_msgTypes = make([]protoimpl.MessageInfo, 25)
+var file_dampfront_v1_service_proto_msgTypes = make([]protoimpl.MessageInfo, 23)
 var file_dampfront_v1_service_proto_goTypes = []any{
-	(Verdict)(0),                        // 0: dampfront.v1.Verdict
-	(*SubmitJobRequest)(nil),            // 1: dampfront.v1.SubmitJobRequest
-	(*SubmitJobResponse)(nil),           // 2: dampfront.v1.SubmitJobResponse
-	(*GetJobRequest)(nil),               // 3: dampfront.v1.GetJobRequest
-	(*GetJobResponse)(nil),              // 4: dampfront.v1.GetJobResponse
-	(*ListJobsRequest)(nil),             // 5: dampfront.v1.ListJobsRequest
-	(*ListJobsResponse)(nil),            // 6: dampfront.v1.ListJobsResponse
-	(*CancelJobRequest)(nil),            // 7: dampfront.v1.CancelJobRequest
-	(*CancelJobResponse)(nil),           // 8: dampfront.v1.CancelJobResponse
-	(*WatchJobRequest)(nil),             // 9: dampfront.v1.WatchJobRequest
-	(*WatchJobResponse)(nil),            // 10: dampfront.v1.WatchJobResponse
-	(*GetFrontRequest)(nil),             // 11: dampfront.v1.GetFrontRequest
-	(*GetFrontResponse)(nil),            // 12: dampfront.v1.GetFrontResponse
-	(*EvaluateSetupsRequest)(nil),       // 13: dampfront.v1.EvaluateSetupsRequest
-	(*EvaluateSetupsResponse)(nil),      // 14: dampfront.v1.EvaluateSetupsResponse
-	(*CompareSetupRequest)(nil),         // 15: dampfront.v1.CompareSetupRequest
-	(*CompareSetupResponse)(nil),        // 16: dampfront.v1.CompareSetupResponse
-	(*GetDamperCurvesRequest)(nil),      // 17: dampfront.v1.GetDamperCurvesRequest
-	(*GetDamperCurvesResponse)(nil),     // 18: dampfront.v1.GetDamperCurvesResponse
-	(*VerifySetupRequest)(nil),          // 19: dampfront.v1.VerifySetupRequest
-	(*VerifySetupResponse)(nil),         // 20: dampfront.v1.VerifySetupResponse
-	(*VerifiedCase)(nil),                // 21: dampfront.v1.VerifiedCase
-	(*VerifiedMetric)(nil),              // 22: dampfront.v1.VerifiedMetric
-	(*GetTransientHistoryRequest)(nil),  // 23: dampfront.v1.GetTransientHistoryRequest
-	(*GetTransientHistoryResponse)(nil), // 24: dampfront.v1.GetTransientHistoryResponse
-	nil,                                 // 25: dampfront.v1.ListJobsRequest.LabelsEntry
-	(*JobSpec)(nil),                     // 26: dampfront.v1.JobSpec
-	(*Job)(nil),                         // 27: dampfront.v1.Job
-	(JobView)(0),                        // 28: dampfront.v1.JobView
-	(JobState)(0),                       // 29: dampfront.v1.JobState
-	(*Progress)(nil),                    // 30: dampfront.v1.Progress
-	(SolutionView)(0),                   // 31: dampfront.v1.SolutionView
-	(*Front)(nil),                       // 32: dampfront.v1.Front
-	(*Setup)(nil),                       // 33: dampfront.v1.Setup
-	(*Solution)(nil),                    // 34: dampfront.v1.Solution
-	(*Objective)(nil),                   // 35: dampfront.v1.Objective
-	(*Constraint)(nil),                  // 36: dampfront.v1.Constraint
-	(*Adjustment)(nil),                  // 37: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),               // 38: dampfront.v1.CurveSettings
-	(*DamperCurve)(nil),                 // 39: dampfront.v1.DamperCurve
-	(*HeaveDamperCurve)(nil),            // 40: dampfront.v1.HeaveDamperCurve
-	(*EstimateByHandRequest)(nil),       // 41: dampfront.v1.EstimateByHandRequest
-	(*EstimateByHandResponse)(nil),      // 42: dampfront.v1.EstimateByHandResponse
+	(*SubmitJobRequest)(nil),            // 0: dampfront.v1.SubmitJobRequest
+	(*SubmitJobResponse)(nil),           // 1: dampfront.v1.SubmitJobResponse
+	(*GetJobRequest)(nil),               // 2: dampfront.v1.GetJobRequest
+	(*GetJobResponse)(nil),              // 3: dampfront.v1.GetJobResponse
+	(*ListJobsRequest)(nil),             // 4: dampfront.v1.ListJobsRequest
+	(*ListJobsResponse)(nil),            // 5: dampfront.v1.ListJobsResponse
+	(*CancelJobRequest)(nil),            // 6: dampfront.v1.CancelJobRequest
+	(*CancelJobResponse)(nil),           // 7: dampfront.v1.CancelJobResponse
+	(*WatchJobRequest)(nil),             // 8: dampfront.v1.WatchJobRequest
+	(*WatchJobResponse)(nil),            // 9: dampfront.v1.WatchJobResponse
+	(*GetFrontRequest)(nil),             // 10: dampfront.v1.GetFrontRequest
+	(*GetFrontResponse)(nil),            // 11: dampfront.v1.GetFrontResponse
+	(*EvaluateSetupsRequest)(nil),       // 12: dampfront.v1.EvaluateSetupsRequest
+	(*EvaluateSetupsResponse)(nil),      // 13: dampfront.v1.EvaluateSetupsResponse
+	(*CompareSetupRequest)(nil),         // 14: dampfront.v1.CompareSetupRequest
+	(*CompareSetupResponse)(nil),        // 15: dampfront.v1.CompareSetupResponse
+	(*GetDamperCurvesRequest)(nil),      // 16: dampfront.v1.GetDamperCurvesRequest
+	(*GetDamperCurvesResponse)(nil),     // 17: dampfront.v1.GetDamperCurvesResponse
+	(*VerifySetupRequest)(nil),          // 18: dampfront.v1.VerifySetupRequest
+	(*VerifySetupResponse)(nil),         // 19: dampfront.v1.VerifySetupResponse
+	(*GetTransientHistoryRequest)(nil),  // 20: dampfront.v1.GetTransientHistoryRequest
+	(*GetTransientHistoryResponse)(nil), // 21: dampfront.v1.GetTransientHistoryResponse
+	nil,                                 // 22: dampfront.v1.ListJobsRequest.LabelsEntry
+	(*JobSpec)(nil),                     // 23: dampfront.v1.JobSpec
+	(*Job)(nil),                         // 24: dampfront.v1.Job
+	(JobView)(0),                        // 25: dampfront.v1.JobView
+	(JobState)(0),                       // 26: dampfront.v1.JobState
+	(*Progress)(nil),                    // 27: dampfront.v1.Progress
+	(SolutionView)(0),                   // 28: dampfront.v1.SolutionView
+	(*Front)(nil),                       // 29: dampfront.v1.Front
+	(*Setup)(nil),                       // 30: dampfront.v1.Setup
+	(*Solution)(nil),                    // 31: dampfront.v1.Solution
+	(*Objective)(nil),                   // 32: dampfront.v1.Objective
+	(*Constraint)(nil),                  // 33: dampfront.v1.Constraint
+	(*Adjustment)(nil),                  // 34: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),               // 35: dampfront.v1.CurveSettings
+	(*DamperCurve)(nil),                 // 36: dampfront.v1.DamperCurve
+	(*HeaveDamperCurve)(nil),            // 37: dampfront.v1.HeaveDamperCurve
+	(*VerifiedCase)(nil),                // 38: dampfront.v1.VerifiedCase
+	(Verdict)(0),                        // 39: dampfront.v1.Verdict
+	(*EstimateByHandRequest)(nil),       // 40: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil),      // 41: dampfront.v1.EstimateByHandResponse
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
-	26, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
-	27, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
-	28, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
-	27, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
-	29, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
-	25, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
-	28, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
-	27, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
-	27, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
-	30, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
-	27, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
-	31, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
-	32, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
-	26, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
-	33, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
-	31, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
-	34, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
-	35, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
-	36, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
-	33, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
-	34, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
-	35, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
-	36, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
-	33, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
-	37, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
-	38, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
-	33, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
-	39, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
-	40, // 28: dampfront.v1.GetDamperCurvesResponse.heave_curves:type_name -> dampfront.v1.HeaveDamperCurve
-	26, // 29: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
-	33, // 30: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
-	21, // 31: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
-	0,  // 32: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
-	22, // 33: dampfront.v1.VerifiedCase.metrics:type_name -> dampfront.v1.VerifiedMetric
-	0,  // 34: dampfront.v1.VerifiedCase.verdict:type_name -> dampfront.v1.Verdict
-	0,  // 35: dampfront.v1.VerifiedMetric.verdict:type_name -> dampfront.v1.Verdict
-	26, // 36: dampfront.v1.GetTransientHistoryRequest.spec:type_name -> dampfront.v1.JobSpec
-	33, // 37: dampfront.v1.GetTransientHistoryRequest.setup:type_name -> dampfront.v1.Setup
-	1,  // 38: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
-	3,  // 39: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
-	5,  // 40: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
-	7,  // 41: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
-	9,  // 42: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
-	11, // 43: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
-	13, // 44: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
-	15, // 45: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
-	17, // 46: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
-	19, // 47: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
-	41, // 48: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
-	23, // 49: dampfront.v1.DampfrontService.GetTransientHistory:input_type -> dampfront.v1.GetTransientHistoryRequest
-	2,  // 50: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	4,  // 51: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	6,  // 52: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	8,  // 53: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	10, // 54: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	12, // 55: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	14, // 56: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	16, // 57: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	18, // 58: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	20, // 59: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
-	42, // 60: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
-	24, // 61: dampfront.v1.DampfrontService.GetTransientHistory:output_type -> dampfront.v1.GetTransientHistoryResponse
-	50, // [50:62] is the sub-list for method output_type
-	38, // [38:50] is the sub-list for method input_type
-	38, // [38:38] is the sub-list for extension type_name
-	38, // [38:38] is the sub-list for extension extendee
-	0,  // [0:38] is the sub-list for field type_name
+	23, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
+	24, // 1: dampfront.v1.SubmitJobResponse.job:type_name -> dampfront.v1.Job
+	25, // 2: dampfront.v1.GetJobRequest.view:type_name -> dampfront.v1.JobView
+	24, // 3: dampfront.v1.GetJobResponse.job:type_name -> dampfront.v1.Job
+	26, // 4: dampfront.v1.ListJobsRequest.states:type_name -> dampfront.v1.JobState
+	22, // 5: dampfront.v1.ListJobsRequest.labels:type_name -> dampfront.v1.ListJobsRequest.LabelsEntry
+	25, // 6: dampfront.v1.ListJobsRequest.view:type_name -> dampfront.v1.JobView
+	24, // 7: dampfront.v1.ListJobsResponse.jobs:type_name -> dampfront.v1.Job
+	24, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
+	27, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
+	24, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
+	28, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
+	29, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
+	23, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
+	30, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
+	28, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
+	31, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
+	32, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
+	33, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
+	30, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
+	31, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
+	32, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
+	33, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
+	30, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
+	34, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
+	35, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
+	30, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
+	36, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
+	37, // 28: dampfront.v1.GetDamperCurvesResponse.heave_curves:type_name -> dampfront.v1.HeaveDamperCurve
+	23, // 29: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
+	30, // 30: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
+	38, // 31: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
+	39, // 32: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
+	23, // 33: dampfront.v1.GetTransientHistoryRequest.spec:type_name -> dampfront.v1.JobSpec
+	30, // 34: dampfront.v1.GetTransientHistoryRequest.setup:type_name -> dampfront.v1.Setup
+	0,  // 35: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
+	2,  // 36: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
+	4,  // 37: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
+	6,  // 38: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
+	8,  // 39: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
+	10, // 40: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
+	12, // 41: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
+	14, // 42: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
+	16, // 43: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
+	18, // 44: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
+	40, // 45: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
+	20, // 46: dampfront.v1.DampfrontService.GetTransientHistory:input_type -> dampfront.v1.GetTransientHistoryRequest
+	1,  // 47: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	3,  // 48: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	5,  // 49: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	7,  // 50: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	9,  // 51: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	11, // 52: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	13, // 53: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	15, // 54: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	17, // 55: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	19, // 56: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	41, // 57: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
+	21, // 58: dampfront.v1.DampfrontService.GetTransientHistory:output_type -> dampfront.v1.GetTransientHistoryResponse
+	47, // [47:59] is the sub-list for method output_type
+	35, // [35:47] is the sub-list for method input_type
+	35, // [35:35] is the sub-list for extension type_name
+	35, // [35:35] is the sub-list for extension extendee
+	0,  // [0:35] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_service_proto_init() }
@@ -2288,6 +2007,7 @@ func file_dampfront_v1_service_proto_init() {
 	file_dampfront_v1_hand_proto_init()
 	file_dampfront_v1_job_proto_init()
 	file_dampfront_v1_result_proto_init()
+	file_dampfront_v1_verify_proto_init()
 	file_dampfront_v1_service_proto_msgTypes[9].OneofWrappers = []any{
 		(*WatchJobResponse_Progress)(nil),
 		(*WatchJobResponse_Job)(nil),
@@ -2304,7 +2024,7 @@ func file_dampfront_v1_service_proto_init() {
 		(*VerifySetupRequest_Spec)(nil),
 		(*VerifySetupRequest_Job)(nil),
 	}
-	file_dampfront_v1_service_proto_msgTypes[22].OneofWrappers = []any{
+	file_dampfront_v1_service_proto_msgTypes[20].OneofWrappers = []any{
 		(*GetTransientHistoryRequest_Spec)(nil),
 		(*GetTransientHistoryRequest_Job)(nil),
 	}
@@ -2313,14 +2033,13 @@ func file_dampfront_v1_service_proto_init() {
 		File: protoimpl.DescBuilder{
 			GoPackagePath: reflect.TypeOf(x{}).PkgPath(),
 			RawDescriptor: unsafe.Slice(unsafe.StringData(file_dampfront_v1_service_proto_rawDesc), len(file_dampfront_v1_service_proto_rawDesc)),
-			NumEnums:      1,
-			NumMessages:   25,
+			NumEnums:      0,
+			NumMessages:   23,
 			NumExtensions: 0,
 			NumServices:   1,
 		},
 		GoTypes:           file_dampfront_v1_service_proto_goTypes,
 		DependencyIndexes: file_dampfront_v1_service_proto_depIdxs,
-		EnumInfos:         file_dampfront_v1_service_proto_enumTypes,
 		MessageInfos:      file_dampfront_v1_service_proto_msgTypes,
 	}.Build()
 	File_dampfront_v1_service_proto = out.File
