@@ -44,7 +44,7 @@ type Sheet struct {
 	Objectives []Figure
 	// Robust says how a robust job's objectives were made (api.RobustText);
 	// "" without uncertainty.
-	Robust string
+	Robust     string
 	Feasible   bool
 	Infeasible string // why not, when not feasible
 	// Band is whether the spec gives an adjuster range; OutOfBand names
