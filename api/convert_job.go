@@ -100,7 +100,7 @@ func frontCheckToProto(c *study.FrontCheck) *pb.FrontCheck {
 		Points: int32(c.Points), Polished: int32(c.Polished), PolishEvaluations: int32(c.PolishEvaluations),
 		Twins: int32(c.Twins), Neighbours: int32(c.Neighbours), Radius: c.Radius, MarginFraction: c.Margin,
 		BeatenByTwin: int32(c.BeatenByTwin), BeatenByNeighbour: int32(c.BeatenByNeighbour), Beaten: int32(c.Beaten),
-		Evaluations: int32(c.Evaluations),
+		Evaluations: int32(c.Evaluations), PolishRounds: int32(c.PolishRounds), PolishReplaced: int32(c.PolishReplaced),
 	}
 }
 

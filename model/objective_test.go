@@ -33,7 +33,10 @@ func TestSameSumSplitsDifferOnlyInPlatform(t *testing.T) {
 	if err := e.Evaluate(mk(0.4, 1.0), &ra); err != nil {
 		t.Fatal(err)
 	}
-	if err := e.Evaluate(mk(0.7, 0.7), &rb); err != nil {
+	if twin := mk(0.4, 1.0).SameSumTwin(); twin != mk(0.7, 0.7) {
+		t.Fatalf("the same-sum twin of 0.4/1.0 is %+v, want 0.7/0.7 on both axles", twin.Axles)
+	}
+	if err := e.Evaluate(mk(0.4, 1.0).SameSumTwin(), &rb); err != nil {
 		t.Fatal(err)
 	}
 	study, err := NewProblem(e, DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}}, DefaultObjectives(), nil)

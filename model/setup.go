@@ -52,6 +52,21 @@ type Setup struct {
 	Heave [2]AxleDamping
 }
 
+// SameSumTwin returns s with each axle's bump and rebound ratios both set
+// to their mean: the same sum per axle, so under statistical
+// linearisation with equal knees and high-speed factors every RMS metric
+// of a road case is the same as s's, and only the mean damper force (the
+// jacking shift) and the time-domain cases (manoeuvres, kerbs) tell the
+// two apart. The heave dampers are left as they are.
+func (s Setup) SameSumTwin() Setup {
+	for ax := range s.Axles {
+		a := &s.Axles[ax]
+		m := (a.BumpRatio + a.ReboundRatio) / 2
+		a.BumpRatio, a.ReboundRatio = m, m
+	}
+	return s
+}
+
 // given reports whether a heave damper setting is given (any field set).
 func (a *AxleDamping) given() bool { return *a != AxleDamping{} }
 

@@ -13,7 +13,7 @@ import (
 //
 //	magic "dfnsga2\n", version u32 (= checkpointVersion)
 //	settings:  Settings.fingerprint, u64 each;
-//	           (version 4 only) Settings.variationFingerprint, u64 each;
+//	           (version 4 on) Settings.variationFingerprint, u64 each;
 //	           ReferencePoint: present u8 [+ M f64]
 //	problem:   genes u32, bounds (Lo, Hi f64) per gene, M u32, constraints u32
 //	state:     started u8, generation u64, evaluations u64,
@@ -27,7 +27,8 @@ import (
 //	history:   count u32; per entry generation u64, evaluations u64,
 //	           hypervolume f64, best: present u8 [+ M f64]
 //	polish:    (version 3) points u64, evaluations u64, improved u64,
-//	           hypervolume f64; (version 4) present u8 [+ the same]
+//	           hypervolume f64; (version 4) present u8 [+ the same];
+//	           (version 5) present u8 [+ the same, rounds u64, replaced u64]
 //	checksum   CRC-32 (IEEE) of everything before it, u32
 //
 // where str is a u32 length and the bytes. The settings and problem shape
@@ -39,19 +40,24 @@ import (
 // Search.Polish), so an unpolished search keeps writing the bytes of
 // version 2. Version 4 is written only by a search whose Variation is not
 // VariationSBX, so searches with the earlier settings keep writing the
-// bytes of versions 2 and 3.
+// bytes of versions 2 and 3. Version 5 is written only by a search whose
+// polish ran neighbourhood rounds (Polish.Neighbourhood), so a polish
+// without them keeps writing the bytes of versions 3 and 4.
 const (
 	checkpointMagic   = "dfnsga2\n"
-	checkpointVersion = 4
+	checkpointVersion = 5
 	unpolishedVersion = 2
 	polishedVersion   = 3
+	variationVersion  = 4
 )
 
 // version is the checkpoint version s writes.
 func (s *Search) version() uint32 {
 	switch {
-	case s.settings.Variation != VariationSBX:
+	case s.polish != nil && s.polish.Rounds > 0:
 		return checkpointVersion
+	case s.settings.Variation != VariationSBX:
+		return variationVersion
 	case s.polish != nil:
 		return polishedVersion
 	}
@@ -136,6 +142,10 @@ func (s *Search) Checkpoint() ([]byte, error) {
 		e.u64(uint64(r.Evaluations))
 		e.u64(uint64(r.Improved))
 		e.f64(r.Hypervolume)
+		if version >= 5 {
+			e.u64(uint64(r.Rounds))
+			e.u64(uint64(r.Replaced))
+		}
 	}
 	e.u32(crc32.ChecksumIEEE(e.buf))
 	return e.buf, nil
@@ -290,6 +300,16 @@ func (s *Search) readState(d *decoder, version uint32) error {
 	s.polish = nil
 	if version == 3 || version >= 4 && d.bool() {
 		s.polish = &PolishReport{Points: d.int(), Evaluations: d.int(), Improved: d.int(), Hypervolume: d.f64()}
+	}
+	if version >= 5 {
+		if s.polish == nil {
+			d.fail("version 5 without a polish")
+			return d.err
+		}
+		s.polish.Rounds, s.polish.Replaced = d.int(), d.int()
+		if d.err == nil && s.polish.Rounds == 0 {
+			d.fail("version 5 with no neighbourhood rounds")
+		}
 	}
 	return d.err
 }

@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"sync"
 )
 
 // Polish is the local refinement of the archive that a search can run
@@ -69,6 +68,10 @@ type Polish struct {
 	// Descent adds the descent step after each failed poll round (see
 	// descentStep); false is the plain compass search.
 	Descent bool
+	// Neighbourhood, when not nil, closes the polish with rounds of a
+	// local search on a fixed neighbourhood of every archive point (see
+	// Neighbourhood).
+	Neighbourhood *Neighbourhood
 	// Seed selects the poll order; the search's seed is a good choice.
 	Seed uint64
 	// Workers is the number of points polished at once; at least 1.
@@ -97,13 +100,18 @@ type PolishReport struct {
 	// Improved is the number of those points that a point found by the
 	// polish dominates: each left the archive for a better one.
 	Improved int
+	// Rounds is the number of neighbourhood rounds run (0 without a
+	// Neighbourhood); Replaced the members they replaced by a neighbour
+	// that beats them.
+	Rounds, Replaced int
 	// Hypervolume is the archive's hypervolume against the search's
 	// reference point after the polish (0 without one).
 	Hypervolume float64
 }
 
-// validate checks the polish settings; fields are named "Polish.X".
-func (p Polish) validate() error {
+// validate checks the polish settings for n genes; fields are named
+// "Polish.X".
+func (p Polish) validate(n int) error {
 	switch {
 	case p.Budget < 1:
 		return &FieldError{Field: "Polish.Budget", Msg: fmt.Sprintf("must be at least 1, got %d", p.Budget)}
@@ -113,6 +121,9 @@ func (p Polish) validate() error {
 		return &FieldError{Field: "Polish.MinStep", Msg: fmt.Sprintf("must be in (0, Step = %g], got %g", p.Step, p.MinStep)}
 	case p.Workers < 1:
 		return &FieldError{Field: "Polish.Workers", Msg: fmt.Sprintf("must be at least 1, got %d", p.Workers)}
+	}
+	if p.Neighbourhood != nil {
+		return p.Neighbourhood.validate(n)
 	}
 	return nil
 }
@@ -139,26 +150,38 @@ func (s *Search) Polish(ctx context.Context, p Polish) (PolishReport, error) {
 	if s.polish != nil {
 		return *s.polish, nil
 	}
-	if err := p.validate(); err != nil {
+	if err := p.validate(len(s.shape.bounds)); err != nil {
 		return PolishReport{}, err
 	}
 	if !s.Done() {
 		return PolishReport{}, &FieldError{Field: "Polish", Msg: fmt.Sprintf("the search is not done (generation %d of %d)", s.generation, s.settings.Generations)}
 	}
 	start := slices.Clone(s.front.sols)
-	found, evals, err := polishPoints(ctx, s.env.problem, s.shape, start, p)
+	w := asfWeights(start, s.shape.nObj)
+	found, evals, err := polishPoints(ctx, s.env.problem, s.shape, start, w, p, 0)
 	if err != nil {
 		return PolishReport{}, err
 	}
+	// The rounds work on a copy, so that a done ctx leaves the search as
+	// it was.
+	front := archive{sols: slices.Clone(s.front.sols)}
 	for _, sol := range found {
-		s.front.add(sol)
+		front.add(sol)
 	}
 	rep := PolishReport{Points: len(start), Evaluations: evals}
+	if p.Neighbourhood != nil && len(start) > 0 {
+		rounds, replaced, n, err := neighbourhoodRounds(ctx, s.env.problem, s.shape, &front, w, p)
+		if err != nil {
+			return PolishReport{}, err
+		}
+		rep.Rounds, rep.Replaced, rep.Evaluations = rounds, replaced, rep.Evaluations+n
+	}
 	for _, x := range start {
-		if !slices.Contains(s.front.sols, x) && s.front.dominated(x.Objectives) {
+		if !slices.Contains(front.sols, x) && front.dominated(x.Objectives) {
 			rep.Improved++
 		}
 	}
+	s.front.sols = front.sols
 	if s.ref != nil {
 		rep.Hypervolume = Hypervolume(s.front.points(), s.ref)
 	}
@@ -176,35 +199,18 @@ func (a *archive) dominated(f []float64) bool {
 	return false
 }
 
-// polishPoints runs the compass search from every start point and returns
-// the end points of those that moved, in start order, with the evaluation
-// count.
-func polishPoints(ctx context.Context, prob Problem, shape problemShape, start []*Solution, p Polish) ([]Solution, int, error) {
+// polishPoints runs the compass search, with weights w, from every start
+// point and returns the end points of those that moved, in start order,
+// with the evaluation count. Point i's poll order is seeded by base + i.
+func polishPoints(ctx context.Context, prob Problem, shape problemShape, start []*Solution, w []float64, p Polish, base uint64) ([]Solution, int, error) {
 	if len(start) == 0 {
 		return nil, 0, nil
 	}
-	w := asfWeights(start, shape.nObj)
 	found := make([][]Solution, len(start))
 	counts := make([]int, len(start))
-	next := make(chan int)
-	var wg sync.WaitGroup
-	for range min(p.Workers, len(start)) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range next {
-				found[i], counts[i] = compassSearch(ctx, prob, shape, start[i], w, p, uint64(i))
-			}
-		}()
-	}
-	for i := range start {
-		if ctx.Err() != nil {
-			break
-		}
-		next <- i
-	}
-	close(next)
-	wg.Wait()
+	forEachPoint(ctx, len(start), p.Workers, func(i int) {
+		found[i], counts[i] = compassSearch(ctx, prob, shape, start[i], w, p, base+uint64(i))
+	})
 	if err := ctx.Err(); err != nil {
 		return nil, 0, err
 	}

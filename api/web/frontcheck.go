@@ -19,7 +19,11 @@ func FrontCheckText(j *pb.Job) string {
 	}
 	s := fmt.Sprintf("Decision space: %d of %d points beaten (%d by the same-sum twin, %d by a ±%.2g neighbour of %d; margin %.2g %% of the front's extent)",
 		c.GetBeaten(), c.GetPoints(), c.GetBeatenByTwin(), c.GetBeatenByNeighbour(), c.GetRadius(), c.GetNeighbours(), 100*c.GetMarginFraction())
-	if c.GetPolishEvaluations() > 0 {
+	switch {
+	case c.GetPolishRounds() > 0:
+		return s + fmt.Sprintf("; the polish improved %d points (%d evaluations; its %d rounds on the twin and every corner of the box replaced %d)",
+			c.GetPolished(), c.GetPolishEvaluations(), c.GetPolishRounds(), c.GetPolishReplaced())
+	case c.GetPolishEvaluations() > 0:
 		return s + fmt.Sprintf("; the polish improved %d points (%d evaluations)", c.GetPolished(), c.GetPolishEvaluations())
 	}
 	return s + "; no polish"

@@ -7,7 +7,8 @@ import (
 )
 
 // FrontCheckText words the check of a finished front in one line, with
-// or without a polish, and nothing for a job without one.
+// or without a polish, with the polish's neighbourhood rounds when it ran
+// them, and nothing for a job without one.
 func TestFrontCheckText(t *testing.T) {
 	t.Parallel()
 	c := &pb.FrontCheck{Points: 156, Twins: 150, Neighbours: 4, Radius: 0.03, MarginFraction: 0.001,
@@ -19,6 +20,10 @@ func TestFrontCheckText(t *testing.T) {
 	c.Polished, c.PolishEvaluations = 40, 6240
 	if got := FrontCheckText(&pb.Job{FrontCheck: c}); got != head+"; the polish improved 40 points (6240 evaluations)" {
 		t.Errorf("with a polish: %q", got)
+	}
+	c.PolishRounds, c.PolishReplaced = 3, 25
+	if got := FrontCheckText(&pb.Job{FrontCheck: c}); got != head+"; the polish improved 40 points (6240 evaluations; its 3 rounds on the twin and every corner of the box replaced 25)" {
+		t.Errorf("with the polish's rounds: %q", got)
 	}
 	if got := FrontCheckText(&pb.Job{}); got != "" {
 		t.Errorf("no check: %q", got)

@@ -15,8 +15,15 @@ import (
 	"dampfront/jobs"
 )
 
-// demoJob is testdata/demo-job.yaml, embedded so that the binary runs the
-// demo from any directory; a test keeps the two files equal.
+// manoeuvreJob is testdata/demo-manoeuvre-job.yaml, the demo's job,
+// embedded so that the binary runs the demo from any directory; a test
+// keeps the two files equal.
+//
+//go:embed demodata/demo-manoeuvre-job.yaml
+var manoeuvreJob []byte
+
+// demoJob is testdata/demo-job.yaml, the road cases alone (demo
+// --road-only), embedded alike.
 //
 //go:embed demodata/demo-job.yaml
 var demoJob []byte
@@ -36,21 +43,26 @@ var demoCommand = &command{name: "demo", synopsis: "[flags]",
 // demoAbout is the help text of demo.
 const demoAbout = `
 Starts a server with an embedded worker on a temporary SQLite file and a
-free port of 127.0.0.1, submits the demo job (testdata/demo-job.yaml: the
-invented Quillon GT on three invented road cases), watches it with a
-progress bar, prints the Pareto front and the damper curves of its
-balanced point, stops the server and removes the temporary files. While
-it runs, the job page (live progress, the front chart, the solutions and
-their damper curves) is served at the address printed; --serve-page
-keeps it open after the demo, until interrupted. --prototype runs the
-second demo instead (testdata/prototype-job.yaml: the invented Tessaly P3
-prototype, heave springs, packers and heave dampers, a ride-height aero
-map, on three invented tracks).`
+free port of 127.0.0.1, submits the demo job
+(testdata/demo-manoeuvre-job.yaml: the invented Quillon GT on three
+invented road cases, a braking and a turn-in manoeuvre and a kerb, with
+the front polished and checked in the genes), watches it with a progress
+bar, prints the Pareto front, a few front points beside their bump =
+rebound twins (what sets the split) and the damper curves of its balanced
+point, stops the server and removes the temporary files. While it runs,
+the job page (live progress, the front chart, the solutions and their
+damper curves) is served at the address printed; --serve-page keeps it
+open after the demo, until interrupted. --road-only runs the road cases
+alone (testdata/demo-job.yaml: grip and platform, no polish);
+--prototype runs the second demo (testdata/prototype-job.yaml: the
+invented Tessaly P3 prototype, heave springs, packers and heave dampers,
+a ride-height aero map, on three invented tracks).`
 
 func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 	keep := fs.Bool("keep", false, "keep the temporary directory with the database and print how to serve it")
 	specPath := fs.String("spec", "", "run this job spec `file` instead of the demo's")
 	prototype := fs.Bool("prototype", false, "run the second demo: the invented prototype with heave elements")
+	roadOnly := fs.Bool("road-only", false, "run the demo car on its road cases alone (testdata/demo-job.yaml)")
 	workers := fs.Int("eval-workers", 0, "evaluations run at once; 0 means one per CPU")
 	verbose := fs.Bool("verbose", false, "log the server's and the engine's messages on standard error")
 	quiet := fs.Bool("quiet", false, "no progress bar")
@@ -60,7 +72,7 @@ func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 			return usagef("demo", "--eval-workers must not be negative")
 		}
 		start := time.Now()
-		spec, err := demoSpec(e, *specPath, *prototype)
+		spec, err := demoSpec(e, *specPath, *prototype, *roadOnly)
 		if err != nil {
 			return err
 		}
@@ -119,15 +131,19 @@ func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 }
 
 // demoSpec is the job spec of the demo: the file's, or an embedded one.
-func demoSpec(e *env, path string, prototype bool) (*pb.JobSpec, error) {
+func demoSpec(e *env, path string, prototype, roadOnly bool) (*pb.JobSpec, error) {
 	spec := &pb.JobSpec{}
 	switch {
+	case path != "" && (prototype || roadOnly), prototype && roadOnly:
+		return nil, usagef("demo", "give one of --spec, --prototype and --road-only")
 	case path != "":
 		return spec, readMessage(e, path, spec)
 	case prototype:
 		return spec, decodeMessage("testdata/prototype-job.yaml", prototypeJob, spec)
+	case roadOnly:
+		return spec, decodeMessage("testdata/demo-job.yaml", demoJob, spec)
 	}
-	return spec, decodeMessage("testdata/demo-job.yaml", demoJob, spec)
+	return spec, decodeMessage("testdata/demo-manoeuvre-job.yaml", manoeuvreJob, spec)
 }
 
 // demoConfig is the engine's configuration of the demo on the SQLite file db.
@@ -192,6 +208,9 @@ func demo(ctx context.Context, e *env, addr string, spec *pb.JobSpec, quiet bool
 		Target: &pb.GetDamperCurvesRequest_SolutionIndex{SolutionIndex: idx}})
 	cancel()
 	if err != nil {
+		return err
+	}
+	if err := printTwins(ctx, e, c, name, fd, bal); err != nil {
 		return err
 	}
 	sol := fd.front.GetSolutions()[bal]

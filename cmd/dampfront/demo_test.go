@@ -10,18 +10,27 @@ import (
 )
 
 // The demo runs end to end: an embedded server on a temporary SQLite file
-// and a loopback port, the demo job, the front, the damper curves of the
-// balanced point and the caution, and it leaves no file behind.
+// and a loopback port, the demo job with its manoeuvres and kerb, its
+// front check in decision space (no point beaten: the issue's bar), the
+// front, the balanced point and the two of largest split beside their
+// bump = rebound twins, the damper curves of the balanced point and the
+// caution, and it leaves no file behind.
 func TestDemo(t *testing.T) {
 	t.Parallel()
 	tmp := t.TempDir()
-	r := mustRun(t, exitOK, []string{"TMPDIR=" + tmp}, "demo", "--quiet")
+	r := dampfrontWithin(t, demoTimeout, []string{"TMPDIR=" + tmp}, "demo", "--quiet")
+	if r.code != exitOK {
+		t.Fatalf("demo: exit code %d\nstdout:\n%s\nstderr:\n%s", r.code, r.stdout, r.stderr)
+	}
 	for _, want := range []string{
 		"dampfront demo: server on 127.0.0.1:",
+		`submitting "Quillon GT, demo tracks with manoeuvres and a kerb"`,
 		"succeeded: 30 of 30 generations",
 		"Pareto front of jobs/",
-		"grip", "platform", "% static", "N s/mm",
+		"grip", "platform", "driver response", "% static", "N s/mm",
 		"* balanced point: solution ",
+		"What sets the split: the balanced point and the two of largest split",
+		"twin minus solution, in % of the front's extent: grip ",
 		"Damper curves of the balanced point",
 		"Front left = front right damper, at the component",
 		"Rear left = rear right damper, at the component",
@@ -31,6 +40,12 @@ func TestDemo(t *testing.T) {
 		if !strings.Contains(r.stdout, want) {
 			t.Errorf("demo output lacks %q:\n%s", want, r.stdout)
 		}
+	}
+	if m := regexp.MustCompile(`Decision space: (\d+) of (\d+) points beaten`).FindStringSubmatch(r.stdout); m == nil || m[1] != "0" {
+		t.Errorf("the demo's front check does not say 0 points beaten: %v\n%s", m, r.stdout)
+	}
+	if n := strings.Count(r.stdout, "  solution "); n != 3 {
+		t.Errorf("want 3 solutions beside their twins, found %d:\n%s", n, r.stdout)
 	}
 	if strings.Contains(r.stdout, "heave damper") {
 		t.Errorf("the road car's demo prints heave damper tables:\n%s", r.stdout)
@@ -54,11 +69,17 @@ func TestDemo(t *testing.T) {
 	}
 }
 
-// demo --keep keeps the database and says where it is.
+// demo --keep keeps the database and says where it is; --road-only runs
+// the road cases alone (testdata/demo-job.yaml), which has no twins to
+// print; --road-only with --prototype is a usage error.
 func TestDemoKeep(t *testing.T) {
 	t.Parallel()
 	tmp := t.TempDir()
-	r := mustRun(t, exitOK, []string{"TMPDIR=" + tmp}, "demo", "--quiet", "--keep")
+	r := mustRun(t, exitOK, []string{"TMPDIR=" + tmp}, "demo", "--quiet", "--keep", "--road-only")
+	if !strings.Contains(r.stdout, `submitting "Quillon GT, demo tracks"`) || strings.Contains(r.stdout, "driver response") {
+		t.Errorf("demo --road-only does not run the road-only job:\n%s", r.stdout)
+	}
+	mustRun(t, exitUsage, nil, "demo", "--road-only", "--prototype")
 	m := regexp.MustCompile(`Kept (\S+); serve it with: dampfront serve --database (\S+)`).FindStringSubmatch(r.stdout)
 	if m == nil {
 		t.Fatalf("demo --keep does not say what it kept:\n%s", r.stdout)

@@ -48,6 +48,7 @@ func TestMain(m *testing.M) {
 // they bound hangs, they do not measure speed).
 const (
 	commandTimeout = 60 * time.Second // one client command, a watch included
+	demoTimeout    = 5 * time.Minute  // the whole demo: a job with its polish
 	serverStart    = 30 * time.Second // until the address file appears
 	serverStop     = 30 * time.Second // SIGTERM to exit
 )
@@ -61,7 +62,14 @@ type result struct {
 // dampfront runs the binary with args and extra environment "K=V" pairs.
 func dampfront(t *testing.T, env []string, args ...string) result {
 	t.Helper()
-	ctx, cancel := context.WithTimeout(context.Background(), commandTimeout)
+	return dampfrontWithin(t, commandTimeout, env, args...)
+}
+
+// dampfrontWithin is dampfront with another bound than commandTimeout,
+// for a command that runs a whole job (the demo).
+func dampfrontWithin(t *testing.T, timeout time.Duration, env []string, args ...string) result {
+	t.Helper()
+	ctx, cancel := context.WithTimeout(context.Background(), timeout)
 	defer cancel()
 	cmd := exec.CommandContext(ctx, binary, args...)
 	cmd.Env = append(cleanEnv(), env...)
@@ -75,7 +83,7 @@ func dampfront(t *testing.T, env []string, args ...string) result {
 	case errors.As(err, &ee) && ctx.Err() == nil:
 		r.code = ee.ExitCode()
 	default:
-		t.Fatalf("dampfront %s: %v (timeout %v)\nstdout:\n%s\nstderr:\n%s", strings.Join(args, " "), err, commandTimeout, r.stdout, r.stderr)
+		t.Fatalf("dampfront %s: %v (timeout %v)\nstdout:\n%s\nstderr:\n%s", strings.Join(args, " "), err, timeout, r.stdout, r.stderr)
 	}
 	return r
 }

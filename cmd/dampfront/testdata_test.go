@@ -10,17 +10,38 @@ import (
 	pb "dampfront/api/gen/dampfront/v1"
 )
 
-// The demo job embedded in the binary is testdata/demo-job.yaml, byte for
-// byte; and the demo job's car and road cases are those of
-// testdata/quillon-gt.yaml and testdata/roads.yaml.
+// The demo jobs embedded in the binary are testdata/demo-manoeuvre-job.yaml
+// and testdata/demo-job.yaml, byte for byte; the demo job's car and road
+// cases are those of testdata/quillon-gt.yaml and testdata/roads.yaml, and
+// the manoeuvre job is the road job with manoeuvres, kerbs, a third
+// objective, a constraint and the polish added.
 func TestDemoDataConsistent(t *testing.T) {
 	t.Parallel()
-	want, err := os.ReadFile(testdataPath("demo-job.yaml"))
-	if err != nil {
+	for name, embedded := range map[string][]byte{"demo-job.yaml": demoJob, "demo-manoeuvre-job.yaml": manoeuvreJob} {
+		want, err := os.ReadFile(testdataPath(name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(embedded, want) {
+			t.Fatalf("cmd/dampfront/demodata/%s differs from testdata/%s: copy the latter over the former", name, name)
+		}
+	}
+	e0 := &env{getenv: func(string) string { return "" }}
+	road, man := &pb.JobSpec{}, &pb.JobSpec{}
+	if err := readMessage(e0, testdataPath("demo-job.yaml"), road); err != nil {
 		t.Fatal(err)
 	}
-	if !bytes.Equal(demoJob, want) {
-		t.Fatal("cmd/dampfront/demodata/demo-job.yaml differs from testdata/demo-job.yaml: copy the latter over the former")
+	if err := readMessage(e0, testdataPath("demo-manoeuvre-job.yaml"), man); err != nil {
+		t.Fatal(err)
+	}
+	if len(man.GetManoeuvres()) != 2 || len(man.GetKerbs()) != 1 || man.GetSearch().GetPolishBudget() == 0 {
+		t.Errorf("the demo job has %d manoeuvres, %d kerbs, polish budget %d", len(man.GetManoeuvres()), len(man.GetKerbs()), man.GetSearch().GetPolishBudget())
+	}
+	man.Manoeuvres, man.Kerbs, man.DisplayName = nil, nil, road.GetDisplayName()
+	man.Objectives, man.Constraints = man.Objectives[:len(road.Objectives)], man.Constraints[:len(road.Constraints)]
+	man.Search.PolishBudget = 0
+	if !proto.Equal(man, road) {
+		t.Errorf("the manoeuvre demo job is not the road demo job with manoeuvres, kerbs, an objective, a constraint and a polish:\n%v\n%v", man, road)
 	}
 	e := &env{getenv: func(string) string { return "" }}
 	spec := &pb.JobSpec{}

@@ -22,6 +22,18 @@ const (
 	CheckMargin     = 0.001 // fraction of the front's extent per objective
 	// MaxPolishBudget bounds Search.PolishBudget (evaluations per point).
 	MaxPolishBudget = 1000
+	// PolishRounds bounds the neighbourhood rounds that close a polish
+	// (optimizer.Neighbourhood): each point the check's neighbourhood
+	// (the twin and every corner of the ±CheckRadius box) beats by more
+	// than PolishMargin is replaced by the neighbour that beats it, which
+	// is polished in turn. This project's choice: on the demo job one or
+	// two rounds clear the front.
+	PolishRounds = 8
+	// PolishMargin is the rounds' margin, half the check's, so that a
+	// front the rounds cleared stays clear under the check's margin
+	// although its extent may shrink a little after the rounds it was
+	// measured on.
+	PolishMargin = CheckMargin / 2
 )
 
 // FrontCheck is the check of a finished job's front in decision space,
@@ -30,6 +42,8 @@ type FrontCheck struct {
 	Points            int     // feasible front points checked
 	Polished          int     // archive points the polish replaced by one that dominates them
 	PolishEvaluations int     // evaluations of the polish; 0 without one
+	PolishRounds      int     // neighbourhood rounds the polish ran (PolishRounds at most)
+	PolishReplaced    int     // points those rounds replaced by a neighbour that beats them
 	Twins             int     // points whose same-sum twin differs from them
 	Neighbours        int     // random neighbours per point (CheckNeighbours)
 	Radius            float64 // half-width of the neighbours in each ratio (CheckRadius)
@@ -58,13 +72,7 @@ func (pl *Plan) twin(x, dst []float64) bool {
 	if d.Symmetric {
 		return false
 	}
-	s := d.Decode(x)
-	for ax := range s.Axles {
-		a := &s.Axles[ax]
-		m := (a.BumpRatio + a.ReboundRatio) / 2
-		a.BumpRatio, a.ReboundRatio = m, m
-	}
-	y := d.Encode(s)
+	y := d.Encode(d.Decode(x).SameSumTwin())
 	for i, g := range pl.problem.Genes() {
 		dst[i] = min(g.Max, max(g.Min, y[i]))
 	}
@@ -84,15 +92,17 @@ func (pl *Plan) checkRadius() []float64 {
 	return r
 }
 
-// Polish returns the plan's polish settings (nil without one) with the
-// same-sum twin as the first poll point.
-func (pl *Plan) polish(workers int) *optimizer.Polish {
+// PolishSettings returns the plan's polish settings (nil without one) with the
+// same-sum twin as the first poll point, closed by the neighbourhood
+// rounds on the check's neighbourhood.
+func (pl *Plan) PolishSettings(workers int) *optimizer.Polish {
 	b := pl.spec.Search.PolishBudget
 	if b == 0 {
 		return nil
 	}
 	p := optimizer.DefaultPolish(pl.settings.Seed)
 	p.Budget, p.Twin, p.Workers = b, pl.twin, max(1, workers)
+	p.Neighbourhood = &optimizer.Neighbourhood{Radius: pl.checkRadius(), Margin: PolishMargin, Rounds: PolishRounds}
 	return &p
 }
 
@@ -114,6 +124,7 @@ func (pl *Plan) CheckFront(ctx context.Context, front []optimizer.Solution, poli
 	}
 	if polished != nil {
 		fc.Polished, fc.PolishEvaluations = polished.Improved, polished.Evaluations
+		fc.PolishRounds, fc.PolishReplaced = polished.Rounds, polished.Replaced
 	}
 	for i, pc := range rep.Checks {
 		if pc.Beaten {

@@ -163,7 +163,7 @@ func (r *run) finish(ctx context.Context) error {
 		return nil
 	}
 	var polished *optimizer.PolishReport
-	if p := r.plan.polish(r.workers); p != nil {
+	if p := r.plan.PolishSettings(r.workers); p != nil {
 		rep, err := r.search.Polish(ctx, *p)
 		if err != nil {
 			return err

@@ -858,9 +858,14 @@ type FrontCheck struct {
 	// beaten_by_twin + beaten_by_neighbour.
 	Beaten int32 `protobuf:"varint,10,opt,name=beaten,proto3" json:"beaten,omitempty"`
 	// Evaluations the check made.
-	Evaluations   int32 `protobuf:"varint,11,opt,name=evaluations,proto3" json:"evaluations,omitempty"`
-	unknownFields protoimpl.UnknownFields
-	sizeCache     protoimpl.SizeCache
+	Evaluations int32 `protobuf:"varint,11,opt,name=evaluations,proto3" json:"evaluations,omitempty"`
+	// Rounds of the polish's closing local search on the check's
+	// neighbourhood (the twin and every corner of the box); 0 without.
+	PolishRounds int32 `protobuf:"varint,12,opt,name=polish_rounds,json=polishRounds,proto3" json:"polish_rounds,omitempty"`
+	// Points those rounds replaced by a neighbour that beats them.
+	PolishReplaced int32 `protobuf:"varint,13,opt,name=polish_replaced,json=polishReplaced,proto3" json:"polish_replaced,omitempty"`
+	unknownFields  protoimpl.UnknownFields
+	sizeCache      protoimpl.SizeCache
 }
 
 func (x *FrontCheck) Reset() {
@@ -966,6 +971,20 @@ func (x *FrontCheck) GetBeaten() int32 {
 func (x *FrontCheck) GetEvaluations() int32 {
 	if x != nil {
 		return x.Evaluations
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetPolishRounds() int32 {
+	if x != nil {
+		return x.PolishRounds
+	}
+	return 0
+}
+
+func (x *FrontCheck) GetPolishReplaced() int32 {
+	if x != nil {
+		return x.PolishReplaced
 	}
 	return 0
 }
@@ -1155,7 +1174,7 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x0euncertain_cars\x18\x14 \x01(\x05R\runcertainCars\x1a9\n" +
 	"\vLabelsEntry\x12\x10\n" +
 	"\x03key\x18\x01 \x01(\tR\x03key\x12\x14\n" +
-	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xf6\x02\n" +
+	"\x05value\x18\x02 \x01(\tR\x05value:\x028\x01\"\xc4\x03\n" +
 	"\n" +
 	"FrontCheck\x12\x16\n" +
 	"\x06points\x18\x01 \x01(\x05R\x06points\x12\x1a\n" +
@@ -1171,7 +1190,9 @@ const file_dampfront_v1_job_proto_rawDesc = "" +
 	"\x13beaten_by_neighbour\x18\t \x01(\x05R\x11beatenByNeighbour\x12\x16\n" +
 	"\x06beaten\x18\n" +
 	" \x01(\x05R\x06beaten\x12 \n" +
-	"\vevaluations\x18\v \x01(\x05R\vevaluations\"\xf6\x01\n" +
+	"\vevaluations\x18\v \x01(\x05R\vevaluations\x12#\n" +
+	"\rpolish_rounds\x18\f \x01(\x05R\fpolishRounds\x12'\n" +
+	"\x0fpolish_replaced\x18\r \x01(\x05R\x0epolishReplaced\"\xf6\x01\n" +
 	"\bProgress\x12\x1e\n" +
 	"\n" +
 	"generation\x18\x01 \x01(\x05R\n" +
