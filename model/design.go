@@ -196,8 +196,8 @@ func (d *DesignSpace) Encode(s Setup) []float64 {
 // MaxSlopeRatio is the steepest damper slope any setup of the space can
 // have, as a ratio of critical damping (the corners' of theirs, the heave
 // dampers' of the axle's heave critical damping): the largest ratio
-// bound or base heave ratio times the largest high-speed factor (at least
-// 1). The manoeuvre and kerb cases choose their step for it
+// bound or base heave ratio times the largest high-speed or stage factor
+// (at least 1). The manoeuvre and kerb cases choose their step for it
 // (TransientOptions.MaxRatio), the heave dampers' included.
 func (d *DesignSpace) MaxSlopeRatio() float64 {
 	r := 0.0
@@ -206,16 +206,27 @@ func (d *DesignSpace) MaxSlopeRatio() float64 {
 	}
 	f := 1.0
 	for ax := 0; ax < 2; ax++ {
-		a, h := d.Base.Axles[ax], d.Base.Heave[ax]
-		f = math.Max(f, math.Max(a.HighSpeedBump, a.HighSpeedRebound))
+		a, h := &d.Base.Axles[ax], &d.Base.Heave[ax]
+		f = math.Max(f, math.Max(a.steepestFactor(), h.steepestFactor()))
 		if hs := d.HighSpeed[ax]; hs != nil {
 			f = math.Max(f, hs.Max)
 		}
 		r = math.Max(r, math.Max(h.BumpRatio, h.ReboundRatio))
-		f = math.Max(f, math.Max(h.HighSpeedBump, h.HighSpeedRebound))
 		if hr := d.HeaveRatio[ax]; hr != nil {
 			r = math.Max(r, hr.Max)
 		}
 	}
 	return r * f
+}
+
+// steepestFactor is the largest slope factor over the low-speed slope of
+// the damper's curve: high-speed factors and stages (0 for none).
+func (a *AxleDamping) steepestFactor() float64 {
+	f := math.Max(a.HighSpeedBump, a.HighSpeedRebound)
+	for _, st := range [2]*[MaxStages]Stage{&a.StagesBump, &a.StagesRebound} {
+		for _, s := range st {
+			f = math.Max(f, s.Factor)
+		}
+	}
+	return f
 }

@@ -349,9 +349,10 @@ func (c *transientCase) covers(d *[nDamp]wheelDamper) bool {
 	return true
 }
 
-// steepest is the damper's largest slope (N s/m).
+// steepest is the damper's largest slope (N s/m), its stages' included.
 func (d wheelDamper) steepest() float64 {
-	return math.Max(math.Max(d.cb, d.cb*d.rb), math.Max(d.cr, d.cr*d.rr))
+	_, hi := d.slopeRange()
+	return hi
 }
 
 func (c *transientCase) work() *transientWork {

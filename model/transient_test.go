@@ -489,3 +489,34 @@ func TestTransientValidation(t *testing.T) {
 		t.Errorf("bad table row: %v", err)
 	}
 }
+
+// A valid damper whose progressive stage is steeper than the slope the
+// cases were prepared for gets a case prepared for it (its stage counts
+// in the damper's steepest slope), instead of running at a step beyond
+// RK4's stability and diverging (|λ|h above 2.78, the stability limit on
+// the real axis of the classical RK4 method: Hairer & Wanner, Solving
+// ODEs II, §IV.2, from memory). A design space with such a base prepares
+// its cases for it (MaxSlopeRatio counts stage factors).
+func TestTransientCasesCoverProgressiveStages(t *testing.T) {
+	t.Parallel()
+	v := transientCar()
+	e, err := NewEvaluator(v, demoCases()[:1], EvaluatorOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ms := []Manoeuvre{{Name: "brake", Shape: ShapeBrake, Speed: 55, Longitudinal: 1.8 * Gravity, Start: 0.1, Ramp: 0.05}}
+	if err := e.SetTransientCases(ms, nil, TransientOptions{MaxRatio: 1.6}); err != nil {
+		t.Fatal(err)
+	}
+	a := AxleDamping{BumpRatio: 1.6, ReboundRatio: 1.6, KneeBump: 0.01, KneeRebound: 0.01,
+		StagesBump: [MaxStages]Stage{{0.05, 8}}, StagesRebound: [MaxStages]Stage{{0.05, 8}}}
+	s := Setup{Axles: [2]AxleDamping{a, a}}
+	var r Result
+	if err := e.Evaluate(s, &r); err != nil {
+		t.Errorf("a stage 8 times the low-speed slope: %v", err)
+	}
+	d := DesignSpace{Ratios: [4]Range{{0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}, {0.2, 1.6}}, Base: s}
+	if got := d.MaxSlopeRatio(); got != 1.6*8 {
+		t.Errorf("MaxSlopeRatio %g, want 1.6 × 8", got)
+	}
+}

@@ -484,7 +484,8 @@ type ManoeuvrePoint struct {
 	AxG float64 `protobuf:"fixed64,2,opt,name=ax_g,json=axG,proto3" json:"ax_g,omitempty"`
 	// Lateral acceleration in g, left positive.
 	AyG float64 `protobuf:"fixed64,3,opt,name=ay_g,json=ayG,proto3" json:"ay_g,omitempty"`
-	// Speed at that time.
+	// Speed at that time: the downforce and the aero stiffness follow it,
+	// both scaled by (V/V_0)^2 from the car at the first row's speed V_0.
 	SpeedMPerS    float64 `protobuf:"fixed64,4,opt,name=speed_m_per_s,json=speedMPerS,proto3" json:"speed_m_per_s,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
