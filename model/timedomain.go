@@ -55,9 +55,9 @@ func (o TimeOptions) validate() error {
 // case's speed: the linear system of newSystem (springs, bars, tyres, the
 // aero map linearised at the point, tyre damping: the same matrices as
 // the frequency-domain model) plus the piecewise dampers, each corner's
-// bump stop (Corner.BumpStop, at the gap left at speed), a tyre that cannot pull (from its load
-// at speed), and each axle's heave damper and packer (at the packer gap
-// left at speed).
+// bump stop (Corner.BumpStop, at the gap left at speed), a tyre that
+// cannot pull (from its load at speed), and each axle's heave damper and
+// packer (at the packer gap left at speed).
 type timeModel struct {
 	sys    *system
 	minv   [nDOF]float64
