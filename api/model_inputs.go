@@ -26,7 +26,8 @@ type ModelInputs struct {
 // SubmitJob does and returns it in the model's types, for a command that
 // runs the model in its own process. Problems are a *model.ValidationError
 // whose paths are the request's ("spec.vehicle.sprung_mass_kg"), not a
-// status: no server is involved.
+// status: no server is involved. A spec with uncertainty is checked
+// whole, and its nominal car returned.
 func SpecToModel(spec *pb.JobSpec) (*ModelInputs, error) {
 	var p problems
 	s := specFromProto(spec, "spec.", &p)
@@ -35,7 +36,8 @@ func SpecToModel(spec *pb.JobSpec) (*ModelInputs, error) {
 	if err := p.validationError(); err != nil {
 		return nil, err
 	}
-	pl, err := c.Compile(context.Background())
+	// The inputs are the nominal car's: an uncertain car is not built.
+	pl, err := c.Nominal().Compile(context.Background())
 	if err != nil {
 		p.mergeModel(under("spec."), err)
 		return nil, p.validationError()

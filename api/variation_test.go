@@ -10,7 +10,7 @@ import (
 )
 
 // TestDifferentialVariationSpec checks the path of the variation settings
-// from a spec to the search: a spec that leaves the variation unset stores
+// from a spec to the search: the README's spec line decodes, a spec that leaves the variation unset stores
 // none of its fields (so specs stored before them keep their bytes, see
 // TestStoredSpecsResumeBitIdentical), one with VARIATION_DIFFERENTIAL
 // stores F = 0.5 and CR = 1 and hands them to the optimiser, and a seeded
@@ -26,8 +26,16 @@ func TestDifferentialVariationSpec(t *testing.T) {
 			sbx.Variation, sbx.DifferentialWeight, sbx.DifferentialCrossover)
 	}
 
+	// The README's line for an efficient search.
+	var readme pb.JobSpec
+	if err := DecodeText([]byte("search: {population_size: 24, variation: VARIATION_DIFFERENTIAL}\n"), &readme); err != nil {
+		t.Fatal(err)
+	}
+	if q := readme.GetSearch(); q.GetVariation() != pb.Variation_VARIATION_DIFFERENTIAL || q.GetPopulationSize() != 24 {
+		t.Errorf("README's search line decodes to %v", q)
+	}
 	de := proto.Clone(base).(*pb.JobSpec)
-	de.Search.Variation = pb.Variation_VARIATION_DIFFERENTIAL
+	de.Search.Variation = readme.GetSearch().GetVariation()
 	q := withDefaults(de).GetSearch()
 	if q.GetDifferentialWeight() != optimizer.DefaultDifferentialWeight || q.GetDifferentialCrossover() != optimizer.DefaultDifferentialCrossover ||
 		q.DifferentialWeight == nil || q.DifferentialCrossover == nil {

@@ -56,9 +56,9 @@ const (
 //	Evolutionary Computation 13(2):284-302, 2009,
 //	doi:10.1109/TEVC.2008.925798
 //
-// (cited from memory), who show that it follows Pareto sets that run
-// diagonally through the box far better than SBX, which recombines each
-// gene on its own. A damper front is such a set: along it all four
+// (both cited from memory), who found it to follow Pareto sets with
+// linked genes, such as sets that run diagonally through the box, far
+// better than SBX, which recombines each gene on its own. A damper front is such a set: along it all four
 // ratios grow together. With x1 the survivor at base (a binary
 // tournament winner on the crowded-comparison order, which keeps
 // NSGA-II's selection pressure), x2 and x3 two other survivors drawn

@@ -42,6 +42,9 @@ type Sheet struct {
 
 	Setup      []AxleRow
 	Objectives []Figure
+	// Robust says how a robust job's objectives were made (api.RobustText);
+	// "" without uncertainty.
+	Robust     string
 	Feasible   bool
 	Infeasible string // why not, when not feasible
 	// Band is whether the spec gives an adjuster range; OutOfBand names
@@ -162,9 +165,11 @@ func Build(job *pb.Job, sol *pb.Solution, balanced bool) (*Sheet, error) {
 	s.Title = fmt.Sprintf("Damper specification: %s, solution %d", name, s.Index)
 	for j, o := range spec.GetObjectives() {
 		if j < len(sol.GetObjectives()) {
-			s.Objectives = append(s.Objectives, objectiveFigure(o, sol.GetObjectives()[j]))
+			s.Objectives = append(s.Objectives, objectiveFigure(o, sol.GetObjectives()[j], ""))
 		}
 	}
+	s.Objectives = append(s.Objectives, robustFigures(spec.GetObjectives(), sol.GetRobust())...)
+	s.Robust = api.RobustText(job)
 	in, err := api.SpecToModel(spec)
 	if err != nil {
 		return nil, fmt.Errorf("sheet: the job's spec: %w", err)
@@ -242,13 +247,30 @@ func trade(u tradeunit.Unit, si float64, prec int) string { return num(u.Of(si),
 
 // objectiveFigure is an objective's value in its trade unit; a
 // worst-case aggregation says so.
-func objectiveFigure(o *pb.Objective, v float64) Figure {
+func objectiveFigure(o *pb.Objective, v float64, what string) Figure {
 	q := tradeunit.Objective(api.ModelObjectiveKind(o.GetKind()))
 	label := q.Label
 	if o.GetAggregation() == pb.Aggregation_AGGREGATION_WORST {
 		label += ", worst case"
 	}
-	return Figure{Label: label, Value: trade(q.Unit, v, q.Prec), Unit: q.Unit.Symbol}
+	return Figure{Label: label + what, Value: trade(q.Unit, v, q.Prec), Unit: q.Unit.Symbol}
+}
+
+// robustFigures are a robust solution's objectives on the nominal car and
+// their sd and worst over the uncertain cars; none without figures.
+func robustFigures(objectives []*pb.Objective, r *pb.RobustObjectives) []Figure {
+	var out []Figure
+	for _, f := range []struct {
+		what string
+		vs   []float64
+	}{{", nominal car", r.GetNominal()}, {", sd over the uncertain cars", r.GetSd()}, {", worst over the uncertain cars", r.GetWorst()}} {
+		for j, o := range objectives {
+			if j < len(f.vs) {
+				out = append(out, objectiveFigure(o, f.vs[j], f.what))
+			}
+		}
+	}
+	return out
 }
 
 // velocityList is the test velocities in mm/s, "25, 50, ..., 300".

@@ -13,7 +13,8 @@ import (
 // TestJobPageRobust: the page of a robust job (testdata/robust-job.yaml,
 // cut to a few generations and 2 nodes per range, 8 cars) says how its
 // front was made and shows each objective's nominal, sd and worst in the
-// solutions table, and its CSV download carries them.
+// solutions table and each solution's sheet, and its CSV download
+// carries them.
 func TestJobPageRobust(t *testing.T) {
 	t.Parallel()
 	spec := specFile(t, "robust-job.yaml")
@@ -29,6 +30,13 @@ func TestJobPageRobust(t *testing.T) {
 		"mean &#43; 1 sd", "Grip nominal", "Grip sd", "Platform worst"} {
 		if !strings.Contains(body, want) {
 			t.Errorf("the robust job's page lacks %q", want)
+		}
+	}
+	res, sheet := get(t, b, "/jobs/"+id+"/solutions/0/sheet.html")
+	wantStatus(t, "sheet", res, sheet, http.StatusOK)
+	for _, want := range []string{"Robust front: every setup evaluated on 8 uncertain cars", "grip, nominal car", "platform, sd over the uncertain cars", "grip, worst over the uncertain cars"} {
+		if !strings.Contains(sheet, want) {
+			t.Errorf("the robust solution's sheet lacks %q", want)
 		}
 	}
 	res, csv := get(t, b, "/jobs/"+id+"/front.csv")

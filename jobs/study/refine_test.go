@@ -1,6 +1,8 @@
 package study
 
 import (
+	"context"
+	"errors"
 	"testing"
 
 	"dampfront/model"
@@ -73,5 +75,48 @@ func TestRefinementChecks(t *testing.T) {
 	r := c.Spec().Refinement
 	if r.Duration != model.DefaultDuration || r.Sigmas != model.VerdictSigmas || *r.Seed != *s.Search.Seed {
 		t.Errorf("defaults %+v (seed %d)", r, *r.Seed)
+	}
+}
+
+// TestRefinementStopsWithItsContext: a step whose context is done checks
+// no further point and reports not done, with no error or the context's
+// (jobs.Run), and the points checked before are kept; the next step goes
+// on. (A run that reported done here would be stored as finished with its
+// refinement cut short.)
+func TestRefinementStopsWithItsContext(t *testing.T) {
+	t.Parallel()
+	spec := testSpec()
+	spec.Refinement = Refinement{Enabled: true, Duration: 5}
+	pl, err := Compile(context.Background(), spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := OpenRun(pl, 1, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checked := func() int {
+		n := 0
+		for _, p := range r.refine.points {
+			if p != nil {
+				n++
+			}
+		}
+		return n
+	}
+	for checked() == 0 {
+		if done, err := r.Step(context.Background(), 100); err != nil || done {
+			t.Fatalf("step: done %v, %v before any point was refined", done, err)
+		}
+	}
+	before := checked()
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	done, err := r.Step(ctx, 100)
+	if done || err != nil && !errors.Is(err, context.Canceled) || checked() != before {
+		t.Fatalf("cancelled step: done %v, error %v, %d points checked (before %d)", done, err, checked(), before)
+	}
+	if _, err := r.Step(context.Background(), 100); err != nil || checked() != before+1 {
+		t.Fatalf("next step: error %v, %d points checked (before %d)", err, checked(), before)
 	}
 }

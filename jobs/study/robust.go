@@ -63,3 +63,18 @@ func describePoint(pt *model.UncertainPoint) string {
 	return fmt.Sprintf("fuel %g kg at %g m, tyre rate ×%g front ×%g rear, downforce ×%g, balance %+g, aero stiffness ×%g",
 		pt.FuelMass, pt.FuelPosition, pt.TyreRateScale[0], pt.TyreRateScale[1], pt.DownforceScale, pt.BalanceShift, pt.AeroStiffnessScale)
 }
+
+// Nominal returns the checked spec without its uncertainty: what compiles
+// to the nominal car alone, for a caller that needs only it (the model
+// inputs of a command running the time domain, the sheet), without
+// building every uncertain car. It is c itself without uncertainty.
+func (c *Checked) Nominal() *Checked {
+	if c.spec.Uncertainty == nil {
+		return c
+	}
+	spec := *c.spec
+	spec.Uncertainty = nil
+	out := *c
+	out.spec = &spec
+	return &out
+}

@@ -146,7 +146,9 @@ func (r *run) record(p optimizer.Progress) {
 func (r *run) Step(ctx context.Context, maxGenerations int) (bool, error) {
 	done, err := r.search.Step(ctx, maxGenerations)
 	if err != nil || !done {
-		return done, err
+		// A done search whose step was refused (its context ended) is not
+		// a done run while the stages after it are still to come.
+		return done && r.finished(), err
 	}
 	if err := r.finish(ctx); err != nil {
 		return false, err
@@ -155,6 +157,12 @@ func (r *run) Step(ctx context.Context, maxGenerations int) (bool, error) {
 		return r.refine.step(ctx, r.plan, r.search.Front(), r.workers)
 	}
 	return true, nil
+}
+
+// finished reports whether the stages after the search (the polish and
+// check, the refinement) are done.
+func (r *run) finished() bool {
+	return r.check != nil && (r.refine == nil || r.refine.summary != nil)
 }
 
 // finish polishes and checks a done search once.
