@@ -275,7 +275,7 @@ func BenchmarkEvaluationsTo99(b *testing.B) {
 		edit   func(*pb.SearchSettings)
 		polish int
 	}{
-		{"SBX/N=48", nil, 0},
+		{"SBX/N=48", func(q *pb.SearchSettings) { q.PopulationSize = 48 }, 0},
 		{"SBX/N=16", func(q *pb.SearchSettings) { q.PopulationSize = 16 }, 0},
 		{"SBX/N=16/polish=4", func(q *pb.SearchSettings) { q.PopulationSize = 16 }, 4},
 		{"differential/N=48", func(q *pb.SearchSettings) {

@@ -94,7 +94,8 @@ func TestDemoKeep(t *testing.T) {
 
 // BenchmarkDemo is the wall time of "dampfront demo" as a process, start
 // to exit: server start on a fresh SQLite file, the demo job (36 x 30
-// generations on three road cases), the front and curves, shutdown. Run
+// generations on three road cases, two manoeuvres and a kerb, then its
+// polish and front check), the front, the twins and curves, shutdown. Run
 // it with -benchtime 3x; the figure belongs in the notes, no test
 // asserts on it.
 func BenchmarkDemo(b *testing.B) {
