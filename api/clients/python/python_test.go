@@ -6,6 +6,7 @@ package pyclient
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -16,6 +17,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 	"time"
@@ -362,6 +364,61 @@ for line in sys.stdin:
 			if bad++; bad <= 5 {
 				t.Errorf("%v: python writes %q, Go %q", vals[i], g[i], w[i])
 			}
+		}
+	}
+}
+
+// TestFrontRefined runs the script on a job with a refinement: its CSV
+// is byte for byte frontfile.WriteCSV's, refined columns included, and
+// its JSON field for field frontfile.WriteJSON's (the objectives with
+// their refined_source).
+func TestFrontRefined(t *testing.T) {
+	t.Parallel()
+	needPython(t)
+	ctx := testContext(t)
+	addr, c := serve(t, api.Options{})
+	spec := demoSpec(t, map[string]string{"suite": "python-refined"})
+	spec.Refinement = &pb.Refinement{Enabled: true, DurationS: 5}
+	job := runJob(t, ctx, c, spec)
+	if job.GetState() != pb.JobState_JOB_STATE_SUCCEEDED {
+		t.Fatalf("job ended %v: %s", job.GetState(), job.GetErrorMessage())
+	}
+	front := wholeFront(t, ctx, c, job.GetName())
+	if len(front.GetSolutions()) < 2 || !frontfile.Refined(front) {
+		t.Fatalf("front of %d solutions, refined %v", len(front.GetSolutions()), frontfile.Refined(front))
+	}
+	var wantCSV, wantJSON bytes.Buffer
+	if err := frontfile.WriteCSV(&wantCSV, front); err != nil {
+		t.Fatal(err)
+	}
+	if err := frontfile.WriteJSON(&wantJSON, job, front); err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	for _, f := range []string{"csv", "json"} {
+		out := filepath.Join(dir, "front."+f)
+		if code, stderr := script(t, nil, "--addr", addr, "--job", job.GetName(), "--format", f, "-o", out); code != 0 {
+			t.Fatalf("%s: exit code %d:\n%s", f, code, stderr)
+		}
+		b, err := os.ReadFile(out)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if f == "csv" {
+			if !bytes.Equal(b, wantCSV.Bytes()) || !bytes.Contains(b, []byte("refined_rank")) {
+				t.Errorf("the script's CSV differs from frontfile.WriteCSV:\n%s\nwant:\n%s", b, wantCSV.Bytes())
+			}
+			continue
+		}
+		var got, want any
+		if err := json.Unmarshal(b, &got); err != nil {
+			t.Fatal(err)
+		}
+		if err := json.Unmarshal(wantJSON.Bytes(), &want); err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(got, want) || !bytes.Contains(b, []byte(`"refined_source"`)) {
+			t.Errorf("the script's JSON differs from frontfile.WriteJSON:\n%.2000s\nwant:\n%.2000s", b, wantJSON.Bytes())
 		}
 	}
 }
