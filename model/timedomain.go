@@ -363,6 +363,34 @@ func (m *timeModel) integrate(in []float64, steps, settleSteps int, h float64, x
 // settling time is ln(10⁴)/α, α the slowest decay rate -Re λ with every
 // damper at its softest slope, within [1 s, 30 s].
 func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand.Rand) (*TimeMetrics, error) {
+	var src roadInputSource
+	if rnd != nil {
+		src = func(steps, kmax int, length float64) []float64 {
+			return caseTyreInputs(v, rc, length, steps, kmax, rnd)
+		}
+	}
+	return simulateCase(v, rc, s, opt, src)
+}
+
+// roadInputSource gives the tyre inputs of a case's road realisation for
+// a record of steps steps with kmax bins over length (see
+// caseTyreInputs); the slice is only read.
+type roadInputSource func(steps, kmax int, length float64) []float64
+
+// caseTyreInputs synthesises the road realisation of a case from rnd
+// (kmax bins over length) and samples the tyres' inputs at 2·steps
+// half-steps over its period. It depends on the car, the case, the
+// source's seed, the record length and the step counts only, never on
+// the setup.
+func caseTyreInputs(v *Vehicle, rc *RoadCase, length float64, steps, kmax int, rnd *rand.Rand) []float64 {
+	track := (v.TrackFront + v.TrackRear) / 2
+	rcf := newRoadCoefficients(rc, track, length, kmax, rnd)
+	return rcf.tyreInputs(v, rc.Speed, 2*steps)
+}
+
+// simulateCase is SimulateCase with the road's tyre inputs from src (nil:
+// no seeded source).
+func simulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, src roadInputSource) (*TimeMetrics, error) {
 	var p problems
 	p.merge("vehicle.", v.Validate())
 	p.merge("road_case.", rc.Validate())
@@ -374,7 +402,7 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	if err := opt.validate(); err != nil {
 		return nil, err
 	}
-	if rnd == nil {
+	if src == nil {
 		return nil, &ValidationError{Problems: []FieldError{{Field: "seed", Reason: "a seeded random source is needed"}}}
 	}
 	op, err := v.operatingPoint(rc.Speed)
@@ -411,9 +439,8 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	// The road's band is set by the step rule, not by a step the caller
 	// gives, so that a finer step integrates the same road.
 	length := rc.Speed * dur
-	track := (v.TrackFront + v.TrackRear) / 2
-	rcf := newRoadCoefficients(rc, track, length, min(steps, stepsRule)-1, rnd)
-	in := rcf.tyreInputs(v, rc.Speed, 2*steps)
+	kmax := min(steps, stepsRule) - 1
+	in := src(steps, kmax, length)
 
 	// Quasi-static start under the road at t_0 = -settle.
 	start := ((-2*settleSteps)%(2*steps) + 2*steps) % (2 * steps)
@@ -438,6 +465,6 @@ func SimulateCase(v *Vehicle, rc *RoadCase, s *Setup, opt TimeOptions, rnd *rand
 	}
 	tm := stats.metrics(m, rc.Name, warn)
 	tm.Step, tm.Settle, tm.Duration = h, settle, dur
-	tm.RoadMaxN = float64(len(rcf.left)-1) / length
+	tm.RoadMaxN = float64(kmax) / length
 	return tm, nil
 }
