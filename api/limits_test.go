@@ -4,6 +4,7 @@ import (
 	"context"
 	"log/slog"
 	"math"
+	"strings"
 	"sync/atomic"
 	"testing"
 
@@ -212,4 +213,52 @@ func TestCompilesPerJob(t *testing.T) {
 		t.Errorf("%d compiles of the opener for %d slices, want one per slice", n, last.Slices)
 	}
 	t.Logf("compiles of one job: 1 at submit + %d for %d slices", opens.Load(), last.Slices)
+}
+
+// The job-work limit counts the polish's neighbourhood rounds and the
+// refinement (study.Size), and a job over it because of either is refused
+// naming the field. Bounds worked out by hand for testSpec(2): population
+// 8, one island, 2 generations, 2 road cases, four ratio genes; its front
+// holds at most 8 × 1 × (2 + 1) = 24 points.
+//
+//   - polish_budget 4: search 8 × 1 × (2 + 4) × 2 = 96, rounds 24 points ×
+//     8 rounds × (1 twin + 2^4 corners + 4) × 2 cases = 8064: 8160, the
+//     limit here, so it is accepted at the limit;
+//   - polish_budget 5: 8 × 7 × 2 = 112 + 24 × 8 × 22 × 2 = 8448: 8560, over
+//     it (112 alone, all that was counted before, is far under);
+//   - refinement of 10 s: 8 × 2 × 2 = 32 + 24 points × 2 road cases ×
+//     ⌈8 × 10⌉ = 3840: 3872, under it;
+//   - refinement of 30 s: 32 + 24 × 2 × 240 = 11 552, over it.
+func TestJobWorkCountsPolishRoundsAndRefinement(t *testing.T) {
+	t.Parallel()
+	b := setup(t, Options{MaxJobWork: 8160})
+	polished := func(budget int32) *pb.JobSpec {
+		s := testSpec(2)
+		s.Search.PolishBudget = budget
+		return s
+	}
+	refined := func(seconds float64) *pb.JobSpec {
+		s := testSpec(2)
+		s.Refinement = &pb.Refinement{Enabled: true, DurationS: seconds}
+		return s
+	}
+	for _, c := range []struct {
+		what, field, work string
+		spec              *pb.JobSpec
+	}{
+		{"polish budget 5", "search.polish_budget", "8560", polished(5)},
+		{"refinement of 30 s", "refinement.duration_s", "11552", refined(30)},
+	} {
+		_, err := b.server.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: c.spec})
+		wantErrorInfo(t, c.what, err, codes.ResourceExhausted, ReasonJobTooLarge, "field", c.field)
+		wantErrorInfo(t, c.what, err, codes.ResourceExhausted, ReasonJobTooLarge, "work", c.work)
+		if st := status.Convert(err); !strings.Contains(st.Message(), c.field) {
+			t.Errorf("%s: message %q does not name %s", c.what, st.Message(), c.field)
+		}
+	}
+	for what, spec := range map[string]*pb.JobSpec{"polish budget 4 (at the limit)": polished(4), "refinement of 10 s": refined(10)} {
+		if _, err := b.server.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: spec}); err != nil {
+			t.Errorf("%s: %v", what, err)
+		}
+	}
 }

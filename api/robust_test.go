@@ -187,27 +187,7 @@ func TestRobustManoeuvreSpec(t *testing.T) {
 func TestStoredRobustSpecResumeBitIdentical(t *testing.T) {
 	t.Parallel()
 	dir := filepath.Join("testdata", "stored")
-	specPath, digestPath := filepath.Join(dir, "robust-sample.jobspec.pb"), filepath.Join(dir, "robust-sample.front.sha256")
-	if os.Getenv("DAMPFRONT_WRITE_STORED_ROBUST") == "1" {
-		b, err := MarshalSpec(withDefaults(robustTestSpec(4)))
-		if err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(specPath, b, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		if err := os.WriteFile(digestPath, []byte(frontDigest(frontOf(t, b, 100, false))+"\n"), 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
-	spec, err := os.ReadFile(specPath)
-	if err != nil {
-		t.Fatal(err)
-	}
-	want, err := os.ReadFile(digestPath)
-	if err != nil {
-		t.Fatal(err)
-	}
+	spec, want := readStored(t, dir, "robust-sample", "DAMPFRONT_WRITE_STORED_ROBUST", func() *pb.JobSpec { return withDefaults(robustTestSpec(4)) })
 	for name, front := range map[string][]jobs.Solution{"in one go": frontOf(t, spec, 100, false), "resumed every 2 generations": frontOf(t, spec, 2, true)} {
 		if got := frontDigest(front); got != strings.TrimSpace(string(want)) {
 			t.Errorf("front of the stored robust spec run %s: digest %s, stored %s", name, got, want)

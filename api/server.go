@@ -47,9 +47,11 @@ type Options struct {
 	// all, the job engine's (jobs.Config.MaxSpecBytes) by default; more is
 	// InvalidArgument on "spec". Default jobs.DefaultMaxSpecBytes (1 MiB).
 	MaxSpecBytes int
-	// MaxJobWork limits a submitted job's population_size × islands ×
-	// generations × road cases, the number of case evaluations it makes
-	// (to within its initial population); more is ResourceExhausted.
+	// MaxJobWork limits a submitted job's work in case evaluations (one
+	// setup on one case): population_size × islands × (generations +
+	// polish_budget) × cases, plus the bounds of the polish's
+	// neighbourhood rounds and of the refinement (study.Size); more is
+	// ResourceExhausted naming the fields behind the largest part.
 	// Default 50 000 000, about a night on two cores.
 	MaxJobWork int64
 	// MaxGridPoints limits the frequency grid of a submitted or evaluated

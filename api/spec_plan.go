@@ -86,18 +86,38 @@ func (s *Server) checkGrid(size study.Size) error {
 		map[string]string{"points": strconv.Itoa(n), "limit": strconv.Itoa(s.opt.MaxGridPoints)}, 0)
 }
 
-// checkJobWork refuses a job larger than Options.MaxJobWork.
+// checkJobWork refuses a job larger than Options.MaxJobWork, naming the
+// parts of its work (study.Size) and, in the ErrorInfo's "field", the
+// spec's fields behind the largest part.
 func (s *Server) checkJobWork(size study.Size) error {
-	if w := size.Work; w > s.opt.MaxJobWork {
-		what, fix := "population_size × islands × generations × road cases", "reduce the population or the generations, or split the road cases over jobs"
-		if size.RobustPoints > 0 {
-			what, fix = what+" × uncertain cars", fix+", or take fewer uncertain cars"
-		}
-		return resourceExhausted(ReasonJobTooLarge,
-			fmt.Sprintf("the job is too large: %s = %d, the server allows %d; %s", what, w, s.opt.MaxJobWork, fix),
-			map[string]string{"work": strconv.FormatInt(w, 10), "limit": strconv.FormatInt(s.opt.MaxJobWork, 10)}, 0)
+	w := size.Work
+	if w <= s.opt.MaxJobWork {
+		return nil
 	}
-	return nil
+	what, fix := "population_size × islands × (generations + polish_budget) × cases", "reduce the population or the generations, or split the road cases over jobs"
+	if size.RobustPoints > 0 {
+		what, fix = what+" × uncertain cars", fix+", or take fewer uncertain cars"
+	}
+	search := w - size.PolishRounds - size.Refine
+	parts, field := fmt.Sprintf("%s = %d", what, search), "search.population_size, search.generations"
+	largest := search
+	if n := size.PolishRounds; n > 0 {
+		parts += fmt.Sprintf(", polish rounds (search.polish_budget: up to %d rounds of the twin and the ratios' corners on each of at most %d front points) = %d", study.PolishRounds, size.FrontBound, n)
+		fix += ", or polish less (search.polish_budget, 0 for none)"
+		if n > largest {
+			largest, field = n, "search.polish_budget"
+		}
+	}
+	if n := size.Refine; n > 0 {
+		parts += fmt.Sprintf(", refinement (refinement.duration_s on each road case of at most %d front points, %d case evaluations per case-second) = %d", size.FrontBound, study.RefineWorkPerSecond, n)
+		fix += ", or refine a shorter record (refinement.duration_s) or not at all (refinement.enabled)"
+		if n > largest {
+			field = "refinement.duration_s"
+		}
+	}
+	return resourceExhausted(ReasonJobTooLarge,
+		fmt.Sprintf("the job is too large: %s; %d case evaluations in all, the server allows %d; %s", parts, w, s.opt.MaxJobWork, fix),
+		map[string]string{"field": field, "work": strconv.FormatInt(w, 10), "limit": strconv.FormatInt(s.opt.MaxJobWork, 10)}, 0)
 }
 
 // checkSyncWork refuses setups × road cases (× uncertain cars, for a

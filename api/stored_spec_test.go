@@ -107,27 +107,7 @@ func TestStoredSpecsResumeBitIdentical(t *testing.T) {
 	for _, c := range storedSpecs {
 		t.Run(c.name, func(t *testing.T) {
 			t.Parallel()
-			specPath, digestPath := filepath.Join(dir, c.name+".jobspec.pb"), filepath.Join(dir, c.name+".front.sha256")
-			if os.Getenv("DAMPFRONT_WRITE_STORED") == "1" {
-				b, err := MarshalSpec(c.spec())
-				if err != nil {
-					t.Fatal(err)
-				}
-				if err := os.WriteFile(specPath, b, 0o644); err != nil {
-					t.Fatal(err)
-				}
-				if err := os.WriteFile(digestPath, []byte(frontDigest(frontOf(t, b, 100, false))+"\n"), 0o644); err != nil {
-					t.Fatal(err)
-				}
-			}
-			spec, err := os.ReadFile(specPath)
-			if err != nil {
-				t.Fatal(err)
-			}
-			want, err := os.ReadFile(digestPath)
-			if err != nil {
-				t.Fatal(err)
-			}
+			spec, want := readStored(t, dir, c.name, "DAMPFRONT_WRITE_STORED", c.spec)
 			// Today's encoding of the same spec is the same bytes: equal
 			// specs keep giving equal stored specs across versions.
 			if now, err := MarshalSpec(c.spec()); err != nil || string(now) != string(spec) {
@@ -147,4 +127,35 @@ func TestStoredSpecsResumeBitIdentical(t *testing.T) {
 			}
 		})
 	}
+}
+
+// readStored reads a stored spec and the digest of its front from dir
+// (NAME.jobspec.pb, NAME.front.sha256). With the environment variable
+// env set to 1 it first writes both from spec() as this version encodes
+// and runs it (only ever from the version whose bytes they are meant to
+// keep).
+func readStored(t *testing.T, dir, name, env string, spec func() *pb.JobSpec) (specBytes, want []byte) {
+	t.Helper()
+	specPath, digestPath := filepath.Join(dir, name+".jobspec.pb"), filepath.Join(dir, name+".front.sha256")
+	if os.Getenv(env) == "1" {
+		b, err := MarshalSpec(spec())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(specPath, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(digestPath, []byte(frontDigest(frontOf(t, b, 100, false))+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	specBytes, err := os.ReadFile(specPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err = os.ReadFile(digestPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return specBytes, want
 }

@@ -147,7 +147,7 @@ type limitFlags struct {
 func addLimitFlags(fs *flagSet, e *env) (*limitFlags, error) {
 	l := &limitFlags{}
 	d := &envDefaults{e: e, cmd: fs.name}
-	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(d.int("DAMPFRONT_MAX_JOB_WORK", api.DefaultMaxJobWork)), "largest job accepted, as population x islands x generations x road cases ($DAMPFRONT_MAX_JOB_WORK)")
+	fs.Int64Var(&l.maxJobWork, "max-job-work", int64(d.int("DAMPFRONT_MAX_JOB_WORK", api.DefaultMaxJobWork)), "largest job accepted, in case evaluations: population x islands x generations x cases, plus the polish and the refinement (README) ($DAMPFRONT_MAX_JOB_WORK)")
 	fs.IntVar(&l.maxGridPoints, "max-grid-points", d.int("DAMPFRONT_MAX_GRID_POINTS", api.DefaultMaxGridPoints), "finest frequency grid of a spec, in points ($DAMPFRONT_MAX_GRID_POINTS)")
 	fs.IntVar(&l.maxSyncWork, "max-sync-work", d.int("DAMPFRONT_MAX_SYNC_WORK", api.DefaultMaxSyncWork), "largest eval call, as setups x road cases ($DAMPFRONT_MAX_SYNC_WORK)")
 	fs.IntVar(&l.maxEvaluations, "max-concurrent-evaluations", d.int("DAMPFRONT_MAX_CONCURRENT_EVALUATIONS", 0), "EvaluateSetups, CompareSetup and VerifySetup calls served at once; 0 means one per CPU ($DAMPFRONT_MAX_CONCURRENT_EVALUATIONS)")

@@ -3,6 +3,7 @@ package study
 import (
 	"errors"
 	"fmt"
+	"math"
 	"strings"
 	"unicode"
 
@@ -114,31 +115,90 @@ type Size struct {
 	Transients int
 	// GridPoints is the number of frequencies of each evaluation.
 	GridPoints int
-	// Work is population × islands × (generations + polish budget) ×
-	// (road cases + transient cases), the number of case evaluations the
-	// search makes (to within its initial population, and counting the
-	// polish of a front as large as the population), saturating at the
-	// largest int64; with uncertainty, times the uncertain cars per setup.
+	// Work is the job's work in case evaluations (one setup on one case
+	// of the linear model), saturating at the largest int64: the search
+	// and the polish budget, population × islands × (generations +
+	// polish budget) × (road cases + transient cases) (to within the
+	// initial population, and counting the polish budget of a front as
+	// large as the population), plus PolishRounds and Refine; with
+	// uncertainty, the search's and the polish's parts times the
+	// uncertain cars per setup.
 	Work int64
+	// PolishRounds is the part of Work the polish's neighbourhood rounds
+	// may make (0 without a polish): every point of the front (at most
+	// FrontBound) in each of PolishRounds rounds evaluates its twin and
+	// the 2^n corners of its box (n the ratio genes) and, when it is
+	// replaced, gives way to a point polished with the whole budget:
+	// FrontBound × PolishRounds × (1 + 2^n + polish budget) × cases
+	// (× uncertain cars).
+	PolishRounds int64
+	// Refine is the part of Work the refinement makes (0 without one),
+	// in the same unit: FrontBound × road cases × ⌈RefineWorkPerSecond ×
+	// duration_s⌉.
+	Refine int64
+	// FrontBound bounds the points of the search's front: the archive
+	// keeps only points the search evaluated, one per objective vector,
+	// and the search evaluates population × islands × (generations + 1)
+	// setups. It is not bounded by the population (a search of 500 for
+	// 16 generations ended with a front of 586 points, README).
+	FrontBound int64
 	// RobustPoints is the number of uncertain cars each setup is
 	// evaluated on; 0 without uncertainty.
 	RobustPoints int
 }
+
+// RefineWorkPerSecond converts the refinement's time-domain check into
+// case evaluations of the linear model: one road case of one front point
+// checked for one second of road costs about 8 of them. Measured on this
+// project's 2-core machine (README, "Refinement on the nonlinear car" and
+// the table of "Uncertain cars"): a front point on three road cases of
+// 120 s took 1.01 s CPU, 2.81 ms per case-second, against 0.73 ms CPU for
+// one setup on the demo car's two road cases (BenchmarkRobustEvaluate,
+// -cpu 1), 0.365 ms per case evaluation: 2.81 / 0.365 = 7.7, rounded up.
+const RefineWorkPerSecond = 8
 
 // Size counts the work of the checked spec.
 func (c *Checked) Size() Size {
 	q := &c.spec.Search
 	work := int64(1)
 	transients := len(c.spec.Manoeuvres) + len(c.spec.Kerbs)
-	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations + q.PolishBudget, len(c.spec.RoadCases) + transients} {
+	cases := len(c.spec.RoadCases) + transients
+	for _, n := range []int{q.PopulationSize, q.Islands, q.Generations + q.PolishBudget, cases} {
 		work = mulSat(work, int64(n))
+	}
+	front := mulSat(mulSat(int64(q.PopulationSize), int64(q.Islands)), int64(q.Generations)+1)
+	var rounds, refine int64
+	if q.PolishBudget > 0 {
+		n := 0
+		for _, g := range c.design.Genes() {
+			if isRatioGene(g.Name) {
+				n++
+			}
+		}
+		perPoint := int64(PolishRounds) * (1 + int64(1)<<n + int64(q.PolishBudget))
+		rounds = mulSat(mulSat(front, perPoint), int64(cases))
 	}
 	points := 0
 	if u := c.spec.Uncertainty; u != nil {
 		points = u.Points()
 		work = mulSat(work, int64(points))
+		rounds = mulSat(rounds, int64(points))
 	}
-	return Size{Cases: len(c.spec.RoadCases), Transients: transients, GridPoints: c.spec.Grid.Points, Work: work, RobustPoints: points}
+	if r := c.spec.Refinement; r.Enabled {
+		perCase := int64(math.Ceil(RefineWorkPerSecond * r.Duration))
+		refine = mulSat(mulSat(front, int64(len(c.spec.RoadCases))), perCase)
+	}
+	return Size{Cases: len(c.spec.RoadCases), Transients: transients, GridPoints: c.spec.Grid.Points,
+		Work: addSat(addSat(work, rounds), refine), PolishRounds: rounds, Refine: refine, FrontBound: front, RobustPoints: points}
+}
+
+// addSat is a+b for a, b >= 0, or the largest int64 when that overflows.
+func addSat(a, b int64) int64 {
+	const maxInt64 = 1<<63 - 1
+	if b > maxInt64-a {
+		return maxInt64
+	}
+	return a + b
 }
 
 // mulSat is a×b for a, b >= 0, or the largest int64 when that overflows.

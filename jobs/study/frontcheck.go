@@ -85,12 +85,16 @@ func (pl *Plan) checkRadius() []float64 {
 	genes := pl.problem.Genes()
 	r := make([]float64, len(genes))
 	for i, g := range genes {
-		if strings.HasSuffix(g.Name, "ratio") {
+		if isRatioGene(g.Name) {
 			r[i] = CheckRadius
 		}
 	}
 	return r
 }
+
+// isRatioGene reports whether a gene is a damping ratio, which the check's
+// neighbourhood moves: its name ends in "ratio".
+func isRatioGene(name string) bool { return strings.HasSuffix(name, "ratio") }
 
 // PolishSettings returns the plan's polish settings (nil without one) with the
 // same-sum twin as the first poll point, closed by the neighbourhood

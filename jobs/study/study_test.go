@@ -117,7 +117,7 @@ func TestSize(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got, want := c.Size(), (Size{Cases: 2, GridPoints: 121, Work: 8 * 1 * 3 * 2}); got != want {
+	if got, want := c.Size(), (Size{Cases: 2, GridPoints: 121, Work: 8 * 1 * 3 * 2, FrontBound: 8 * 1 * (3 + 1)}); got != want {
 		t.Errorf("Size %+v, want %+v", got, want)
 	}
 	s := testSpec()
@@ -127,6 +127,35 @@ func TestSize(t *testing.T) {
 	}
 	if w := c.Size().Work; w != math.MaxInt64 {
 		t.Errorf("work of (2^31-1)^3 x 2 = %d, want the largest int64", w)
+	}
+}
+
+// The polish's neighbourhood rounds and the refinement count in Size,
+// each by its bound worked out by hand (testSpec: population 8, one
+// island, 3 generations, 2 road cases, four ratio genes). The front holds
+// at most 8 × 1 × (3 + 1) = 32 points. Polish budget 4: per point 8
+// rounds × (1 twin + 2^4 corners + 4) = 168 evaluations, × 2 cases ×
+// 32 points = 10 752, beside the search's 8 × 1 × (3 + 4) × 2 = 112.
+// Refinement of 10 s: ⌈8 × 10⌉ = 80 per point and road case, × 2 × 32 =
+// 5120.
+func TestSizeCountsPolishRoundsAndRefinement(t *testing.T) {
+	t.Parallel()
+	s := testSpec()
+	s.Search.PolishBudget = 4
+	c, err := Check(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := c.Size(); got.PolishRounds != 10_752 || got.Refine != 0 || got.Work != 112+10_752 {
+		t.Errorf("polished: Size %+v, want PolishRounds 10752, Refine 0, Work 10864", got)
+	}
+	s = testSpec()
+	s.Refinement = Refinement{Enabled: true, Duration: 10}
+	if c, err = Check(s); err != nil {
+		t.Fatal(err)
+	}
+	if got := c.Size(); got.Refine != 5120 || got.PolishRounds != 0 || got.Work != 48+5120 {
+		t.Errorf("refined: Size %+v, want Refine 5120, PolishRounds 0, Work 5168", got)
 	}
 }
 
