@@ -3,6 +3,7 @@ package api
 import (
 	"fmt"
 
+	"google.golang.org/protobuf/encoding/protowire"
 	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
@@ -55,14 +56,56 @@ func (storedCodec) EncodeCheck(c *study.FrontCheck, refined *study.RefineSummary
 }
 
 // EncodeRefined adds a front member's refined figures (Solution.refined)
-// to its encoded detail.
+// to its encoded detail. A protobuf message followed by more fields
+// decodes as their merge, and the deterministic encoding writes the
+// fields in number order, so while the detail holds no field at or above
+// refined's (21) the encoding of field 21 alone is appended: the bytes of
+// the whole solution encoded at once, without decoding the detail
+// (decoding and encoding every detail again made some 30 MB of garbage
+// when a 586-point refined front was saved). Any other detail is decoded,
+// given the figures and encoded again.
 func (storedCodec) EncodeRefined(detail []byte, p *study.RefinedPoint) ([]byte, error) {
-	sol := &pb.Solution{}
-	if err := proto.Unmarshal(detail, sol); err != nil {
+	det := proto.MarshalOptions{Deterministic: true}
+	top, err := highestField(detail)
+	if err != nil {
 		return nil, fmt.Errorf("solution detail does not decode: %w", err)
 	}
-	sol.Refined = refinedToProto(p)
-	return proto.MarshalOptions{Deterministic: true}.Marshal(sol)
+	if top >= refinedField {
+		sol := &pb.Solution{}
+		if err := proto.Unmarshal(detail, sol); err != nil {
+			return nil, fmt.Errorf("solution detail does not decode: %w", err)
+		}
+		sol.Refined = refinedToProto(p)
+		return det.Marshal(sol)
+	}
+	b, err := det.Marshal(&pb.Solution{Refined: refinedToProto(p)})
+	if err != nil {
+		return nil, err
+	}
+	return append(append(make([]byte, 0, len(detail)+len(b)), detail...), b...), nil
+}
+
+// refinedField is Solution.refined's field number.
+var refinedField = (&pb.Solution{}).ProtoReflect().Descriptor().Fields().ByName("refined").Number()
+
+// highestField returns the highest field number at the top level of an
+// encoded message (0 for an empty one).
+func highestField(b []byte) (protowire.Number, error) {
+	var top protowire.Number
+	for len(b) > 0 {
+		num, typ, n := protowire.ConsumeTag(b)
+		if n < 0 {
+			return 0, protowire.ParseError(n)
+		}
+		b = b[n:]
+		n = protowire.ConsumeFieldValue(num, typ, b)
+		if n < 0 {
+			return 0, protowire.ParseError(n)
+		}
+		b = b[n:]
+		top = max(top, num)
+	}
+	return top, nil
 }
 
 // MarshalSpec returns the bytes the engine stores for a spec: its

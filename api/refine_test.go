@@ -10,6 +10,7 @@ import (
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
+	"dampfront/jobs/study"
 	"dampfront/model"
 )
 
@@ -101,6 +102,12 @@ func TestRefinementMatchesVerify(t *testing.T) {
 		}
 		if sol.GetRefined() == nil {
 			t.Fatalf("solution %d has no refined figures", s.Index)
+		}
+		// The refined figures are appended to the stored detail
+		// (EncodeRefined): the bytes must be what the protobuf library's
+		// deterministic encoding of the whole solution gives.
+		if whole, err := (proto.MarshalOptions{Deterministic: true}).Marshal(sol); err != nil || !bytes.Equal(whole, s.Detail) {
+			t.Fatalf("solution %d: stored detail is not the deterministic encoding of the whole solution (%v)", s.Index, err)
 		}
 		su, err := SetupToModel(sol.GetSetup(), "setup")
 		if err != nil {
@@ -195,5 +202,41 @@ func TestSummaryEnvelope(t *testing.T) {
 	}
 	if _, _, err := decodeSummary(b[:3]); err == nil {
 		t.Error("a truncated envelope decodes")
+	}
+}
+
+// TestEncodeRefinedBytes: EncodeRefined appends the refined figures to a
+// detail with no field at or above refined's and decodes and encodes any
+// other; either way the bytes must be the protobuf library's
+// deterministic encoding of the whole solution.
+func TestEncodeRefinedBytes(t *testing.T) {
+	t.Parallel()
+	p := &study.RefinedPoint{Rank: 1, Feasible: true}
+	p.Objectives = []float64{0.1}
+	for _, tc := range []struct {
+		name string
+		sol  *pb.Solution
+	}{
+		{"plain", &pb.Solution{Index: 3, Objectives: []float64{0.2}}},
+		{"robust, a later field", &pb.Solution{Index: 3, Robust: &pb.RobustObjectives{Mean: []float64{0.3}}}},
+		{"refined already", &pb.Solution{Index: 3, Refined: &pb.RefinedSolution{Rank: 2}}},
+	} {
+		detail, err := proto.MarshalOptions{Deterministic: true}.Marshal(tc.sol)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := storedCodec{}.EncodeRefined(detail, p)
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
+		whole := proto.Clone(tc.sol).(*pb.Solution)
+		whole.Refined = refinedToProto(p)
+		want, _ := proto.MarshalOptions{Deterministic: true}.Marshal(whole)
+		if !bytes.Equal(got, want) {
+			t.Errorf("%s: stored bytes differ from the whole solution's deterministic encoding", tc.name)
+		}
+	}
+	if _, err := (storedCodec{}).EncodeRefined([]byte{0xff}, p); err == nil {
+		t.Error("a detail that does not decode is accepted")
 	}
 }

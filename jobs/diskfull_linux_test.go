@@ -29,7 +29,10 @@ func TestDiskFullSpendsNoAttempts(t *testing.T) {
 		c.Workers, c.MaxAttempts = 1, 2
 		c.Logger = slog.New(waits)
 	})
-	spec := toySpec{Generations: 300, Size: 5, Seed: 3, StepDelay: 2 * time.Millisecond}
+	// 3 s of work at least: the job must not be able to finish in the
+	// rooms between fills before the slice has met the full disk (300
+	// generations, 0.6 s, did once with the machine loaded).
+	spec := toySpec{Generations: 1500, Size: 5, Seed: 3, StepDelay: 2 * time.Millisecond}
 	j := b.submit(t, spec, nil)
 	waitFor(t, b.engine, j.ID, "checkpointed", func(j *Job) bool { return j.Progress.Generation > 0 })
 

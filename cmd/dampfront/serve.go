@@ -68,6 +68,7 @@ func bindServe(fs *flagSet, e *env) (runFunc, error) {
 		if err := wf.check(sec, sf.insecureNoAuth); err != nil {
 			return err
 		}
+		ef.applyGC()
 		log := ef.logger(e.stderr)
 		cfg := ef.jobsConfig(log)
 		wf.configure(&cfg, log)

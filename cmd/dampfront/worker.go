@@ -45,6 +45,7 @@ func bindWorker(fs *flagSet, e *env) (runFunc, error) {
 		if err := mf.check(); err != nil {
 			return err
 		}
+		ef.applyGC()
 		log := ef.logger(e.stderr)
 		cfg := ef.jobsConfig(log)
 		mf.configure(&cfg, log)

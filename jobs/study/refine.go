@@ -175,6 +175,10 @@ func (st *refineStage) step(ctx context.Context, pl *Plan, front []optimizer.Sol
 		return false, nil
 	}
 	st.summary = rankRefined(st.points, st.opt)
+	// Every point is checked: let the verifier go, and with it the road
+	// inputs it keeps (some 15 MB a road case at the default duration),
+	// before the job saves its refined front.
+	st.verifier = nil
 	return true, nil
 }
 

@@ -119,4 +119,21 @@ func TestRefinementStopsWithItsContext(t *testing.T) {
 	if _, err := r.Step(context.Background(), 100); err != nil || checked() != before+1 {
 		t.Fatalf("next step: error %v, %d points checked (before %d)", err, checked(), before)
 	}
+	// Run to the end: the finished stage lets its verifier (and the road
+	// inputs it keeps) go before the run saves its refined front.
+	for {
+		done, err := r.Step(context.Background(), 100)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if done {
+			break
+		}
+		if r.refine.verifier == nil {
+			t.Fatal("the verifier went before every point was checked")
+		}
+	}
+	if r.refine.summary == nil || r.refine.verifier != nil {
+		t.Errorf("finished refinement: summary %v, verifier still held %v", r.refine.summary != nil, r.refine.verifier != nil)
+	}
 }
