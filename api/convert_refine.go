@@ -75,13 +75,32 @@ func refinedToProto(p *study.RefinedPoint) *pb.RefinedSolution {
 	return out
 }
 
-// refineSummaryToProto converts what the refinement did; nil is nil.
+// refineSummaryToProto converts what the refinement did, or how far it
+// is; nil is nil. The fields of a refinement in progress are set only
+// while it is, so that a done one encodes to the bytes it always had.
 func refineSummaryToProto(s *study.RefineSummary) *pb.RefinementSummary {
 	if s == nil {
 		return nil
 	}
-	return &pb.RefinementSummary{Points: int32(s.Points), Failed: int32(s.Failed), OffFront: int32(s.OffFront),
+	out := &pb.RefinementSummary{Points: int32(s.Points), Failed: int32(s.Failed), OffFront: int32(s.OffFront),
 		Infeasible: int32(s.Infeasible), Unsettled: int32(s.Unsettled), DurationS: s.Duration, Seed: s.Seed, Sigmas: s.Sigmas}
+	if s.InProgress {
+		out.InProgress, out.PointsChecked = true, int32(s.Checked)
+	}
+	return out
+}
+
+// refinementInProgress is the refinement summary of a job's stored
+// summary b while the refinement runs (or of a job stopped before it
+// ended), nil when there is none in progress or b does not decode.
+func refinementInProgress(b []byte) *pb.RefinementSummary {
+	if len(b) == 0 {
+		return nil
+	}
+	if _, rs, err := decodeSummary(b); err == nil && rs.GetInProgress() {
+		return rs
+	}
+	return nil
 }
 
 // The job's stored summary. Without a refinement it is the front check's

@@ -108,7 +108,13 @@ func startEngineWith(t *testing.T, opener jobs.RunOpener, mods ...func(*jobs.Con
 // setup serves a Server with opt over bufconn.
 func setup(t *testing.T, opt Options, mods ...func(*jobs.Config)) *testBundle {
 	t.Helper()
-	e := startEngine(t, mods...)
+	return setupWith(t, NewOpener(1), opt, mods...)
+}
+
+// setupWith is setup with the engine's runs from opener.
+func setupWith(t *testing.T, opener jobs.RunOpener, opt Options, mods ...func(*jobs.Config)) *testBundle {
+	t.Helper()
+	e := startEngineWith(t, opener, mods...)
 	if opt.Logger == nil {
 		opt.Logger = slog.New(slog.DiscardHandler)
 	}

@@ -7,6 +7,7 @@ import (
 
 	"google.golang.org/grpc"
 	"google.golang.org/grpc/codes"
+	"google.golang.org/protobuf/proto"
 
 	pb "dampfront/api/gen/dampfront/v1"
 	"dampfront/jobs"
@@ -144,9 +145,10 @@ func (s *Server) CancelJob(ctx context.Context, req *pb.CancelJobRequest) (*pb.C
 	return &pb.CancelJobResponse{Job: job}, nil
 }
 
-// WatchJob streams the job's progress whenever it changes, then the job
-// in its terminal state. A job already finished gives that last event at
-// once. When the server shuts down the stream ends with Unavailable, and
+// WatchJob streams the job's progress whenever it changes (and, while
+// the job refines its front, the refinement's whenever a checkpoint moves
+// it), then the job in its terminal state. A job already finished gives
+// that last event at once. When the server shuts down the stream ends with Unavailable, and
 // the client watches again elsewhere or later.
 func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingServer[pb.WatchJobResponse]) error {
 	id, err := jobNameArgument(req.GetName())
@@ -167,6 +169,7 @@ func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingSe
 		return toStatus(err, nil)
 	}
 	var last *jobs.Progress
+	var refining *pb.RefinementSummary
 	for j := range ch {
 		if j.State.Terminal() {
 			job, err := jobToProto(j, false)
@@ -178,12 +181,17 @@ func (s *Server) WatchJob(req *pb.WatchJobRequest, stream grpc.ServerStreamingSe
 			}
 			return stream.Send(&pb.WatchJobResponse{Event: &pb.WatchJobResponse_Job{Job: job}})
 		}
-		if last != nil && !progressChanged(last, &j.Progress) {
-			continue
+		if last == nil || progressChanged(last, &j.Progress) {
+			last = &j.Progress
+			if err := stream.Send(&pb.WatchJobResponse{Event: &pb.WatchJobResponse_Progress{Progress: progressToProto(&j.Progress)}}); err != nil {
+				return err
+			}
 		}
-		last = &j.Progress
-		if err := stream.Send(&pb.WatchJobResponse{Event: &pb.WatchJobResponse_Progress{Progress: progressToProto(&j.Progress)}}); err != nil {
-			return err
+		if rs := refinementInProgress(j.Summary); rs != nil && !proto.Equal(rs, refining) {
+			refining = rs
+			if err := stream.Send(&pb.WatchJobResponse{Event: &pb.WatchJobResponse_Refinement{Refinement: rs}}); err != nil {
+				return err
+			}
 		}
 	}
 	switch {

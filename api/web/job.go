@@ -64,7 +64,7 @@ type jobView struct {
 	Partial         bool
 	Infeasible      string // the verdict of a job no setup of which met every constraint
 	FrontCheck      string // the check of a finished front in decision space (FrontCheckText)
-	Refinement      string // the refinement of a finished front on the nonlinear car (RefinementText)
+	Refinement      string // the refinement on the nonlinear car, finished or how far (RefinementText)
 	Robust          string // what a robust job's objectives are (api.RobustText); "" without uncertainty
 	CancelRequested bool
 	Terminal        bool

@@ -12,11 +12,21 @@ import (
 // "Nonlinear refinement: 152 points checked in the time domain (120 s of
 // road a case, seed 7); 9 off the refined front, 0 infeasible, 31
 // unsettled within 3 statistical errors"; empty while the job has none.
-// The page and the command line's get and watch print it.
+// While the refinement runs it says how far it is, as of the job's last
+// checkpoint ("Refining on the nonlinear car: 212 of 586 points checked
+// (as of the last checkpoint)"), and for a job stopped before it ended,
+// how far it came. The page and the command line's get and watch print
+// it.
 func RefinementText(j *pb.Job) string {
 	r := j.GetRefinementSummary()
-	if r == nil {
+	switch {
+	case r == nil:
 		return ""
+	case r.GetInProgress() && terminal(j.GetState()):
+		return fmt.Sprintf("Nonlinear refinement not finished: %d of %d points checked when the job stopped; the front has no refined figures",
+			r.GetPointsChecked(), r.GetPoints())
+	case r.GetInProgress():
+		return fmt.Sprintf("Refining on the nonlinear car: %d of %d points checked (as of the last checkpoint)", r.GetPointsChecked(), r.GetPoints())
 	}
 	s := fmt.Sprintf("Nonlinear refinement: %d points checked in the time domain (%g s of road a case, seed %d); %d off the refined front, %d infeasible, %d unsettled within %g statistical errors",
 		r.GetPoints(), r.GetDurationS(), r.GetSeed(), r.GetOffFront(), r.GetInfeasible(), r.GetUnsettled(), r.GetSigmas())

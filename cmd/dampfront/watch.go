@@ -18,10 +18,12 @@ import (
 // watchAbout is the help text of watch.
 const watchAbout = `
 Follows a job until it ends: a progress bar of generations on standard
-error with the hypervolume and the best value of each objective, then one
-line with the final state on standard output. The exit code is 0 when the
-job succeeded and 1 when it failed or was cancelled. If the server goes
-away (restart, crash) the watch reconnects for up to --reconnect.`
+error with the hypervolume and the best value of each objective (for a
+job with a refinement, then a bar of the front's points checked on the
+nonlinear car, moved at each checkpoint), then one line with the final
+state on standard output. The exit code is 0 when the job succeeded and
+1 when it failed or was cancelled. If the server goes away (restart,
+crash) the watch reconnects for up to --reconnect.`
 
 var watchCommand = &command{name: "watch", synopsis: "[flags] JOB", minArgs: 1, maxArgs: 1, client: true,
 	summary: "follow a job with a progress bar until it ends", about: watchAbout, flags: bindWatch}
@@ -107,7 +109,7 @@ func watchJob(ctx context.Context, e *env, c *client, name string, w *watchModes
 		}
 	}
 	if bar != nil {
-		bar.finish(final.GetProgress())
+		bar.finish(final)
 	}
 	if !w.json {
 		fmt.Fprintln(e.stdout, finalLine(final))
@@ -150,6 +152,10 @@ func watchOnce(ctx context.Context, e *env, c *client, name string, w *watchMode
 			if bar != nil {
 				bar.update(ev.Progress)
 			}
+		case *pb.WatchJobResponse_Refinement:
+			if bar != nil {
+				bar.refine(ev.Refinement)
+			}
 		case *pb.WatchJobResponse_Job:
 			if ev.Job.GetState() == pb.JobState_JOB_STATE_QUEUED || ev.Job.GetState() == pb.JobState_JOB_STATE_RUNNING {
 				if bar != nil {
@@ -185,13 +191,20 @@ func finalLine(j *pb.Job) string {
 	return s
 }
 
-// progressBar shows generations done, hypervolume and best objectives.
+// progressBar shows generations done, hypervolume and best objectives;
+// then, for a job with a refinement, the front's points checked on the
+// nonlinear car.
 type progressBar struct {
 	bar        *progressbar.ProgressBar
 	w          io.Writer
 	objectives []*pb.Objective
 	max        int
+	refining   bool // the bar counts the refinement's points (refine)
 }
+
+// refiningText describes the refinement's bar: its count moves at each
+// checkpoint of the job, when the points checked are stored.
+const refiningText = "refining on the nonlinear car: points checked, as of the last checkpoint"
 
 func newProgressBar(w io.Writer, objectives []*pb.Objective) *progressBar {
 	return &progressBar{w: w, objectives: objectives, bar: newCountBar(w, 1, "queued", "gen")}
@@ -199,23 +212,23 @@ func newProgressBar(w io.Writer, objectives []*pb.Objective) *progressBar {
 
 // newCountBar is the look of the CLI's progress bars on w: 30 wide,
 // counting to max items of the unit, with elapsed and predicted time,
-// redrawn at most every 100 ms.
-func newCountBar(w io.Writer, max int, description, unit string) *progressbar.ProgressBar {
-	return progressbar.NewOptions(max,
+// redrawn at most every 100 ms; extra options follow these.
+func newCountBar(w io.Writer, max int, description, unit string, extra ...progressbar.Option) *progressbar.ProgressBar {
+	return progressbar.NewOptions(max, append([]progressbar.Option{
 		progressbar.OptionSetWriter(w),
 		progressbar.OptionSetWidth(30),
 		progressbar.OptionShowCount(),
 		progressbar.OptionSetPredictTime(true),
 		progressbar.OptionSetElapsedTime(true),
-		progressbar.OptionThrottle(100*time.Millisecond),
+		progressbar.OptionThrottle(100 * time.Millisecond),
 		progressbar.OptionSetDescription(description),
 		progressbar.OptionSetItsString(unit),
 		progressbar.OptionSetRenderBlankState(true),
-	)
+	}, extra...)...)
 }
 
 func (b *progressBar) update(p *pb.Progress) {
-	if p == nil || p.GetGenerations() == 0 {
+	if p == nil || p.GetGenerations() == 0 || b.refining {
 		return
 	}
 	if int(p.GetGenerations()) != b.max {
@@ -227,10 +240,41 @@ func (b *progressBar) update(p *pb.Progress) {
 	b.bar.Describe(progressText(p, b.objectives))
 }
 
-// finish draws the last state (unthrottled) and leaves the bar.
-func (b *progressBar) finish(p *pb.Progress) {
-	b.update(p)
-	if b.max > 0 && int(p.GetGeneration()) >= b.max {
+// refine leaves the search's bar complete, at the first report of a
+// refinement in progress, for a bar of the front's points checked, and
+// moves that to r.
+func (b *progressBar) refine(r *pb.RefinementSummary) {
+	if !b.refining {
+		if b.max > 0 {
+			_ = b.bar.Set(b.max)
+		}
+		b.abandon()
+		b.refining, b.max = true, int(r.GetPoints())
+		// Unthrottled: the count moves once a checkpoint, and each
+		// move must show at once. No predicted time: a watch begun
+		// while the job refines counts the points checked before it.
+		b.bar = newCountBar(b.w, b.max, refiningText, "points", progressbar.OptionThrottle(0), progressbar.OptionSetPredictTime(false))
+	}
+	_ = b.bar.Set(int(r.GetPointsChecked()))
+}
+
+// finish draws the last state of job j (unthrottled) and leaves the bar.
+func (b *progressBar) finish(j *pb.Job) {
+	p, rs := j.GetProgress(), j.GetRefinementSummary()
+	done := int(p.GetGeneration())
+	switch {
+	case !b.refining:
+		b.update(p)
+	case rs == nil:
+		done = 0
+	case rs.GetInProgress():
+		done = int(rs.GetPointsChecked())
+		_ = b.bar.Set(done)
+	default:
+		done = int(rs.GetPoints())
+		_ = b.bar.Set(done)
+	}
+	if b.max > 0 && done >= b.max {
 		_ = b.bar.Finish()
 	}
 	b.abandon()

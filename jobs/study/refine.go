@@ -109,9 +109,10 @@ type RefinedPoint struct {
 	Unsettled bool
 }
 
-// RefineSummary is what the refinement did to the front.
+// RefineSummary is what the refinement did to the front, or, with
+// InProgress set, how far it is.
 type RefineSummary struct {
-	Points     int // front points checked
+	Points     int // front points checked; while InProgress, the front's points
 	Failed     int // points the time-domain check could not run
 	OffFront   int // points of rank above 1: dominated on the refined figures
 	Infeasible int // points whose refined violations are not all 0
@@ -119,6 +120,27 @@ type RefineSummary struct {
 	Duration   float64
 	Seed       uint64
 	Sigmas     float64
+	// InProgress marks the summary of a refinement still running:
+	// Checked is then the points checked so far, Points the front's, and
+	// the counts between them are 0 (known only once every point is).
+	// A done refinement's summary has neither.
+	InProgress bool
+	Checked    int
+}
+
+// progress is the summary of a refinement under way, nil before it has
+// its front (see RefineSummary.InProgress).
+func (st *refineStage) progress() *RefineSummary {
+	if st.points == nil {
+		return nil
+	}
+	sum := &RefineSummary{Points: len(st.points), Duration: st.opt.Duration, Seed: *st.opt.Seed, Sigmas: st.opt.Sigmas, InProgress: true}
+	for _, p := range st.points {
+		if p != nil {
+			sum.Checked++
+		}
+	}
+	return sum
 }
 
 // refineStage is the refinement of a done run's front, resumable point by

@@ -23,8 +23,8 @@ type Codec interface {
 	// detail.
 	EncodeRefined(detail []byte, p *RefinedPoint) ([]byte, error)
 	// EncodeCheck encodes the check of a finished front and, for a spec
-	// with a refinement, what it did (nil without one): the job's summary
-	// (jobs.Summarizer).
+	// with a refinement, what it did or how far it is (nil without one):
+	// the job's summary (jobs.Summarizer).
 	EncodeCheck(c *FrontCheck, refined *RefineSummary) ([]byte, error)
 }
 
@@ -190,17 +190,28 @@ func (r *run) finish(ctx context.Context) error {
 // reported done.
 func (r *run) Check() *FrontCheck { return r.check }
 
-// Summary is the encoded check of the finished front (jobs.Summarizer),
-// nil before it exists or without a codec.
+// Summary is the encoded check of the finished front (jobs.Summarizer)
+// with the refinement's summary, or while the refinement runs how far it
+// is (RefineSummary.InProgress); nil before the check exists or without
+// a codec.
 func (r *run) Summary() ([]byte, error) {
 	if r.check == nil || r.codec == nil {
 		return nil, nil
 	}
-	var refined *RefineSummary
-	if r.refine != nil {
-		refined = r.refine.summary
+	return r.codec.EncodeCheck(r.check, r.refineSummary())
+}
+
+// refineSummary is the refinement's summary: what it did once done, how
+// far it is while it runs (InProgress set), nil without a refinement or
+// before it has begun.
+func (r *run) refineSummary() *RefineSummary {
+	switch {
+	case r.refine == nil:
+		return nil
+	case r.refine.summary != nil:
+		return r.refine.summary
 	}
-	return r.codec.EncodeCheck(r.check, refined)
+	return r.refine.progress()
 }
 
 // Refined returns the refined front points in front order and the

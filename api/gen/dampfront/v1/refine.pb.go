@@ -319,7 +319,8 @@ func (x *RefinedSolution) GetCases() []*VerifiedCase {
 // RefinementSummary is what the refinement did to a job's front.
 type RefinementSummary struct {
 	state protoimpl.MessageState `protogen:"open.v1"`
-	// Front points checked.
+	// Front points checked; while in_progress, the front's points, all of
+	// which are to be checked.
 	Points int32 `protobuf:"varint,1,opt,name=points,proto3" json:"points,omitempty"`
 	// Points whose check failed.
 	Failed int32 `protobuf:"varint,2,opt,name=failed,proto3" json:"failed,omitempty"`
@@ -330,9 +331,18 @@ type RefinementSummary struct {
 	// Points marked unsettled.
 	Unsettled int32 `protobuf:"varint,5,opt,name=unsettled,proto3" json:"unsettled,omitempty"`
 	// The settings it ran with (defaults filled in).
-	DurationS     float64 `protobuf:"fixed64,6,opt,name=duration_s,json=durationS,proto3" json:"duration_s,omitempty"`
-	Seed          uint64  `protobuf:"varint,7,opt,name=seed,proto3" json:"seed,omitempty"`
-	Sigmas        float64 `protobuf:"fixed64,8,opt,name=sigmas,proto3" json:"sigmas,omitempty"`
+	DurationS float64 `protobuf:"fixed64,6,opt,name=duration_s,json=durationS,proto3" json:"duration_s,omitempty"`
+	Seed      uint64  `protobuf:"varint,7,opt,name=seed,proto3" json:"seed,omitempty"`
+	Sigmas    float64 `protobuf:"fixed64,8,opt,name=sigmas,proto3" json:"sigmas,omitempty"`
+	// Set while the refinement runs, in the summary a job stores at each
+	// checkpoint (and keeps when it is stopped before the refinement ends):
+	// points is then the front's size, points_checked how many of them are
+	// checked, and failed, off_front, infeasible and unsettled are 0 (they
+	// are known only once every point is). Unset once the refinement is
+	// done.
+	InProgress bool `protobuf:"varint,9,opt,name=in_progress,json=inProgress,proto3" json:"in_progress,omitempty"`
+	// Front points checked so far while in_progress; 0 once done.
+	PointsChecked int32 `protobuf:"varint,10,opt,name=points_checked,json=pointsChecked,proto3" json:"points_checked,omitempty"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
 }
@@ -423,6 +433,20 @@ func (x *RefinementSummary) GetSigmas() float64 {
 	return 0
 }
 
+func (x *RefinementSummary) GetInProgress() bool {
+	if x != nil {
+		return x.InProgress
+	}
+	return false
+}
+
+func (x *RefinementSummary) GetPointsChecked() int32 {
+	if x != nil {
+		return x.PointsChecked
+	}
+	return 0
+}
+
 var File_dampfront_v1_refine_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_refine_proto_rawDesc = "" +
@@ -453,7 +477,7 @@ const file_dampfront_v1_refine_proto_rawDesc = "" +
 	"\x15feasibility_unsettled\x18\n" +
 	" \x01(\bR\x14feasibilityUnsettled\x12\x16\n" +
 	"\x06failed\x18\v \x01(\tR\x06failed\x120\n" +
-	"\x05cases\x18\f \x03(\v2\x1a.dampfront.v1.VerifiedCaseR\x05cases\"\xe9\x01\n" +
+	"\x05cases\x18\f \x03(\v2\x1a.dampfront.v1.VerifiedCaseR\x05cases\"\xb1\x02\n" +
 	"\x11RefinementSummary\x12\x16\n" +
 	"\x06points\x18\x01 \x01(\x05R\x06points\x12\x16\n" +
 	"\x06failed\x18\x02 \x01(\x05R\x06failed\x12\x1b\n" +
@@ -465,7 +489,11 @@ const file_dampfront_v1_refine_proto_rawDesc = "" +
 	"\n" +
 	"duration_s\x18\x06 \x01(\x01R\tdurationS\x12\x12\n" +
 	"\x04seed\x18\a \x01(\x04R\x04seed\x12\x16\n" +
-	"\x06sigmas\x18\b \x01(\x01R\x06sigmas*\x83\x01\n" +
+	"\x06sigmas\x18\b \x01(\x01R\x06sigmas\x12\x1f\n" +
+	"\vin_progress\x18\t \x01(\bR\n" +
+	"inProgress\x12%\n" +
+	"\x0epoints_checked\x18\n" +
+	" \x01(\x05R\rpointsChecked*\x83\x01\n" +
 	"\fRefineSource\x12\x1d\n" +
 	"\x19REFINE_SOURCE_UNSPECIFIED\x10\x00\x12\x1d\n" +
 	"\x19REFINE_SOURCE_TIME_DOMAIN\x10\x01\x12\x18\n" +

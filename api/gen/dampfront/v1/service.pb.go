@@ -499,6 +499,7 @@ type WatchJobResponse struct {
 	//
 	//	*WatchJobResponse_Progress
 	//	*WatchJobResponse_Job
+	//	*WatchJobResponse_Refinement
 	Event         isWatchJobResponse_Event `protobuf_oneof:"event"`
 	unknownFields protoimpl.UnknownFields
 	sizeCache     protoimpl.SizeCache
@@ -559,6 +560,15 @@ func (x *WatchJobResponse) GetJob() *Job {
 	return nil
 }
 
+func (x *WatchJobResponse) GetRefinement() *RefinementSummary {
+	if x != nil {
+		if x, ok := x.Event.(*WatchJobResponse_Refinement); ok {
+			return x.Refinement
+		}
+	}
+	return nil
+}
+
 type isWatchJobResponse_Event interface {
 	isWatchJobResponse_Event()
 }
@@ -573,9 +583,17 @@ type WatchJobResponse_Job struct {
 	Job *Job `protobuf:"bytes,2,opt,name=job,proto3,oneof"`
 }
 
+type WatchJobResponse_Refinement struct {
+	// The refinement's progress changed (in_progress set), as of the
+	// job's last checkpoint; sent while the job refines its front.
+	Refinement *RefinementSummary `protobuf:"bytes,3,opt,name=refinement,proto3,oneof"`
+}
+
 func (*WatchJobResponse_Progress) isWatchJobResponse_Event() {}
 
 func (*WatchJobResponse_Job) isWatchJobResponse_Event() {}
+
+func (*WatchJobResponse_Refinement) isWatchJobResponse_Event() {}
 
 // GetFrontRequest is the input of GetFront.
 type GetFrontRequest struct {
@@ -1731,7 +1749,7 @@ var File_dampfront_v1_service_proto protoreflect.FileDescriptor
 
 const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\n" +
-	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/hand.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/result.proto\x1a\x19dampfront/v1/verify.proto\"=\n" +
+	"\x1adampfront/v1/service.proto\x12\fdampfront.v1\x1a\x19dampfront/v1/design.proto\x1a\x17dampfront/v1/hand.proto\x1a\x16dampfront/v1/job.proto\x1a\x19dampfront/v1/refine.proto\x1a\x19dampfront/v1/result.proto\x1a\x19dampfront/v1/verify.proto\"=\n" +
 	"\x10SubmitJobRequest\x12)\n" +
 	"\x04spec\x18\x01 \x01(\v2\x15.dampfront.v1.JobSpecR\x04spec\"8\n" +
 	"\x11SubmitJobResponse\x12#\n" +
@@ -1759,10 +1777,13 @@ const file_dampfront_v1_service_proto_rawDesc = "" +
 	"\x11CancelJobResponse\x12#\n" +
 	"\x03job\x18\x01 \x01(\v2\x11.dampfront.v1.JobR\x03job\"%\n" +
 	"\x0fWatchJobRequest\x12\x12\n" +
-	"\x04name\x18\x01 \x01(\tR\x04name\"x\n" +
+	"\x04name\x18\x01 \x01(\tR\x04name\"\xbb\x01\n" +
 	"\x10WatchJobResponse\x124\n" +
 	"\bprogress\x18\x01 \x01(\v2\x16.dampfront.v1.ProgressH\x00R\bprogress\x12%\n" +
-	"\x03job\x18\x02 \x01(\v2\x11.dampfront.v1.JobH\x00R\x03jobB\a\n" +
+	"\x03job\x18\x02 \x01(\v2\x11.dampfront.v1.JobH\x00R\x03job\x12A\n" +
+	"\n" +
+	"refinement\x18\x03 \x01(\v2\x1f.dampfront.v1.RefinementSummaryH\x00R\n" +
+	"refinementB\a\n" +
 	"\x05event\"\x8f\x01\n" +
 	"\x0fGetFrontRequest\x12\x10\n" +
 	"\x03job\x18\x01 \x01(\tR\x03job\x12\x1b\n" +
@@ -1916,20 +1937,21 @@ var file_dampfront_v1_service_proto_goTypes = []any{
 	(JobView)(0),                        // 25: dampfront.v1.JobView
 	(JobState)(0),                       // 26: dampfront.v1.JobState
 	(*Progress)(nil),                    // 27: dampfront.v1.Progress
-	(SolutionView)(0),                   // 28: dampfront.v1.SolutionView
-	(*Front)(nil),                       // 29: dampfront.v1.Front
-	(*Setup)(nil),                       // 30: dampfront.v1.Setup
-	(*Solution)(nil),                    // 31: dampfront.v1.Solution
-	(*Objective)(nil),                   // 32: dampfront.v1.Objective
-	(*Constraint)(nil),                  // 33: dampfront.v1.Constraint
-	(*Adjustment)(nil),                  // 34: dampfront.v1.Adjustment
-	(*CurveSettings)(nil),               // 35: dampfront.v1.CurveSettings
-	(*DamperCurve)(nil),                 // 36: dampfront.v1.DamperCurve
-	(*HeaveDamperCurve)(nil),            // 37: dampfront.v1.HeaveDamperCurve
-	(*VerifiedCase)(nil),                // 38: dampfront.v1.VerifiedCase
-	(Verdict)(0),                        // 39: dampfront.v1.Verdict
-	(*EstimateByHandRequest)(nil),       // 40: dampfront.v1.EstimateByHandRequest
-	(*EstimateByHandResponse)(nil),      // 41: dampfront.v1.EstimateByHandResponse
+	(*RefinementSummary)(nil),           // 28: dampfront.v1.RefinementSummary
+	(SolutionView)(0),                   // 29: dampfront.v1.SolutionView
+	(*Front)(nil),                       // 30: dampfront.v1.Front
+	(*Setup)(nil),                       // 31: dampfront.v1.Setup
+	(*Solution)(nil),                    // 32: dampfront.v1.Solution
+	(*Objective)(nil),                   // 33: dampfront.v1.Objective
+	(*Constraint)(nil),                  // 34: dampfront.v1.Constraint
+	(*Adjustment)(nil),                  // 35: dampfront.v1.Adjustment
+	(*CurveSettings)(nil),               // 36: dampfront.v1.CurveSettings
+	(*DamperCurve)(nil),                 // 37: dampfront.v1.DamperCurve
+	(*HeaveDamperCurve)(nil),            // 38: dampfront.v1.HeaveDamperCurve
+	(*VerifiedCase)(nil),                // 39: dampfront.v1.VerifiedCase
+	(Verdict)(0),                        // 40: dampfront.v1.Verdict
+	(*EstimateByHandRequest)(nil),       // 41: dampfront.v1.EstimateByHandRequest
+	(*EstimateByHandResponse)(nil),      // 42: dampfront.v1.EstimateByHandResponse
 }
 var file_dampfront_v1_service_proto_depIdxs = []int32{
 	23, // 0: dampfront.v1.SubmitJobRequest.spec:type_name -> dampfront.v1.JobSpec
@@ -1943,59 +1965,60 @@ var file_dampfront_v1_service_proto_depIdxs = []int32{
 	24, // 8: dampfront.v1.CancelJobResponse.job:type_name -> dampfront.v1.Job
 	27, // 9: dampfront.v1.WatchJobResponse.progress:type_name -> dampfront.v1.Progress
 	24, // 10: dampfront.v1.WatchJobResponse.job:type_name -> dampfront.v1.Job
-	28, // 11: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
-	29, // 12: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
-	23, // 13: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
-	30, // 14: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
-	28, // 15: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
-	31, // 16: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
-	32, // 17: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
-	33, // 18: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
-	30, // 19: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
-	31, // 20: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
-	32, // 21: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
-	33, // 22: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
-	30, // 23: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
-	34, // 24: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
-	35, // 25: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
-	30, // 26: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
-	36, // 27: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
-	37, // 28: dampfront.v1.GetDamperCurvesResponse.heave_curves:type_name -> dampfront.v1.HeaveDamperCurve
-	23, // 29: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
-	30, // 30: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
-	38, // 31: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
-	39, // 32: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
-	23, // 33: dampfront.v1.GetTransientHistoryRequest.spec:type_name -> dampfront.v1.JobSpec
-	30, // 34: dampfront.v1.GetTransientHistoryRequest.setup:type_name -> dampfront.v1.Setup
-	0,  // 35: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
-	2,  // 36: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
-	4,  // 37: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
-	6,  // 38: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
-	8,  // 39: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
-	10, // 40: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
-	12, // 41: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
-	14, // 42: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
-	16, // 43: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
-	18, // 44: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
-	40, // 45: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
-	20, // 46: dampfront.v1.DampfrontService.GetTransientHistory:input_type -> dampfront.v1.GetTransientHistoryRequest
-	1,  // 47: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
-	3,  // 48: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
-	5,  // 49: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
-	7,  // 50: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
-	9,  // 51: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
-	11, // 52: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
-	13, // 53: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
-	15, // 54: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
-	17, // 55: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
-	19, // 56: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
-	41, // 57: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
-	21, // 58: dampfront.v1.DampfrontService.GetTransientHistory:output_type -> dampfront.v1.GetTransientHistoryResponse
-	47, // [47:59] is the sub-list for method output_type
-	35, // [35:47] is the sub-list for method input_type
-	35, // [35:35] is the sub-list for extension type_name
-	35, // [35:35] is the sub-list for extension extendee
-	0,  // [0:35] is the sub-list for field type_name
+	28, // 11: dampfront.v1.WatchJobResponse.refinement:type_name -> dampfront.v1.RefinementSummary
+	29, // 12: dampfront.v1.GetFrontRequest.view:type_name -> dampfront.v1.SolutionView
+	30, // 13: dampfront.v1.GetFrontResponse.front:type_name -> dampfront.v1.Front
+	23, // 14: dampfront.v1.EvaluateSetupsRequest.spec:type_name -> dampfront.v1.JobSpec
+	31, // 15: dampfront.v1.EvaluateSetupsRequest.setups:type_name -> dampfront.v1.Setup
+	29, // 16: dampfront.v1.EvaluateSetupsRequest.view:type_name -> dampfront.v1.SolutionView
+	32, // 17: dampfront.v1.EvaluateSetupsResponse.evaluations:type_name -> dampfront.v1.Solution
+	33, // 18: dampfront.v1.EvaluateSetupsResponse.objectives:type_name -> dampfront.v1.Objective
+	34, // 19: dampfront.v1.EvaluateSetupsResponse.constraints:type_name -> dampfront.v1.Constraint
+	31, // 20: dampfront.v1.CompareSetupRequest.setup:type_name -> dampfront.v1.Setup
+	32, // 21: dampfront.v1.CompareSetupResponse.evaluation:type_name -> dampfront.v1.Solution
+	33, // 22: dampfront.v1.CompareSetupResponse.objectives:type_name -> dampfront.v1.Objective
+	34, // 23: dampfront.v1.CompareSetupResponse.constraints:type_name -> dampfront.v1.Constraint
+	31, // 24: dampfront.v1.GetDamperCurvesRequest.setup:type_name -> dampfront.v1.Setup
+	35, // 25: dampfront.v1.GetDamperCurvesRequest.adjustment:type_name -> dampfront.v1.Adjustment
+	36, // 26: dampfront.v1.GetDamperCurvesRequest.curves:type_name -> dampfront.v1.CurveSettings
+	31, // 27: dampfront.v1.GetDamperCurvesResponse.setup:type_name -> dampfront.v1.Setup
+	37, // 28: dampfront.v1.GetDamperCurvesResponse.curves:type_name -> dampfront.v1.DamperCurve
+	38, // 29: dampfront.v1.GetDamperCurvesResponse.heave_curves:type_name -> dampfront.v1.HeaveDamperCurve
+	23, // 30: dampfront.v1.VerifySetupRequest.spec:type_name -> dampfront.v1.JobSpec
+	31, // 31: dampfront.v1.VerifySetupRequest.setup:type_name -> dampfront.v1.Setup
+	39, // 32: dampfront.v1.VerifySetupResponse.cases:type_name -> dampfront.v1.VerifiedCase
+	40, // 33: dampfront.v1.VerifySetupResponse.verdict:type_name -> dampfront.v1.Verdict
+	23, // 34: dampfront.v1.GetTransientHistoryRequest.spec:type_name -> dampfront.v1.JobSpec
+	31, // 35: dampfront.v1.GetTransientHistoryRequest.setup:type_name -> dampfront.v1.Setup
+	0,  // 36: dampfront.v1.DampfrontService.SubmitJob:input_type -> dampfront.v1.SubmitJobRequest
+	2,  // 37: dampfront.v1.DampfrontService.GetJob:input_type -> dampfront.v1.GetJobRequest
+	4,  // 38: dampfront.v1.DampfrontService.ListJobs:input_type -> dampfront.v1.ListJobsRequest
+	6,  // 39: dampfront.v1.DampfrontService.CancelJob:input_type -> dampfront.v1.CancelJobRequest
+	8,  // 40: dampfront.v1.DampfrontService.WatchJob:input_type -> dampfront.v1.WatchJobRequest
+	10, // 41: dampfront.v1.DampfrontService.GetFront:input_type -> dampfront.v1.GetFrontRequest
+	12, // 42: dampfront.v1.DampfrontService.EvaluateSetups:input_type -> dampfront.v1.EvaluateSetupsRequest
+	14, // 43: dampfront.v1.DampfrontService.CompareSetup:input_type -> dampfront.v1.CompareSetupRequest
+	16, // 44: dampfront.v1.DampfrontService.GetDamperCurves:input_type -> dampfront.v1.GetDamperCurvesRequest
+	18, // 45: dampfront.v1.DampfrontService.VerifySetup:input_type -> dampfront.v1.VerifySetupRequest
+	41, // 46: dampfront.v1.DampfrontService.EstimateByHand:input_type -> dampfront.v1.EstimateByHandRequest
+	20, // 47: dampfront.v1.DampfrontService.GetTransientHistory:input_type -> dampfront.v1.GetTransientHistoryRequest
+	1,  // 48: dampfront.v1.DampfrontService.SubmitJob:output_type -> dampfront.v1.SubmitJobResponse
+	3,  // 49: dampfront.v1.DampfrontService.GetJob:output_type -> dampfront.v1.GetJobResponse
+	5,  // 50: dampfront.v1.DampfrontService.ListJobs:output_type -> dampfront.v1.ListJobsResponse
+	7,  // 51: dampfront.v1.DampfrontService.CancelJob:output_type -> dampfront.v1.CancelJobResponse
+	9,  // 52: dampfront.v1.DampfrontService.WatchJob:output_type -> dampfront.v1.WatchJobResponse
+	11, // 53: dampfront.v1.DampfrontService.GetFront:output_type -> dampfront.v1.GetFrontResponse
+	13, // 54: dampfront.v1.DampfrontService.EvaluateSetups:output_type -> dampfront.v1.EvaluateSetupsResponse
+	15, // 55: dampfront.v1.DampfrontService.CompareSetup:output_type -> dampfront.v1.CompareSetupResponse
+	17, // 56: dampfront.v1.DampfrontService.GetDamperCurves:output_type -> dampfront.v1.GetDamperCurvesResponse
+	19, // 57: dampfront.v1.DampfrontService.VerifySetup:output_type -> dampfront.v1.VerifySetupResponse
+	42, // 58: dampfront.v1.DampfrontService.EstimateByHand:output_type -> dampfront.v1.EstimateByHandResponse
+	21, // 59: dampfront.v1.DampfrontService.GetTransientHistory:output_type -> dampfront.v1.GetTransientHistoryResponse
+	48, // [48:60] is the sub-list for method output_type
+	36, // [36:48] is the sub-list for method input_type
+	36, // [36:36] is the sub-list for extension type_name
+	36, // [36:36] is the sub-list for extension extendee
+	0,  // [0:36] is the sub-list for field type_name
 }
 
 func init() { file_dampfront_v1_service_proto_init() }
@@ -2006,11 +2029,13 @@ func file_dampfront_v1_service_proto_init() {
 	file_dampfront_v1_design_proto_init()
 	file_dampfront_v1_hand_proto_init()
 	file_dampfront_v1_job_proto_init()
+	file_dampfront_v1_refine_proto_init()
 	file_dampfront_v1_result_proto_init()
 	file_dampfront_v1_verify_proto_init()
 	file_dampfront_v1_service_proto_msgTypes[9].OneofWrappers = []any{
 		(*WatchJobResponse_Progress)(nil),
 		(*WatchJobResponse_Job)(nil),
+		(*WatchJobResponse_Refinement)(nil),
 	}
 	file_dampfront_v1_service_proto_msgTypes[12].OneofWrappers = []any{
 		(*EvaluateSetupsRequest_Spec)(nil),

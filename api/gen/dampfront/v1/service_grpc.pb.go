@@ -56,8 +56,8 @@ type DampfrontServiceClient interface {
 	// Requests cancellation; a running job stops within seconds and keeps
 	// its front so far, marked partial.
 	CancelJob(ctx context.Context, in *CancelJobRequest, opts ...grpc.CallOption) (*CancelJobResponse, error)
-	// Streams a job's progress as it changes, then the job in its terminal
-	// state, then ends.
+	// Streams a job's progress as it changes (and its refinement's, while
+	// it refines), then the job in its terminal state, then ends.
 	WatchJob(ctx context.Context, in *WatchJobRequest, opts ...grpc.CallOption) (grpc.ServerStreamingClient[WatchJobResponse], error)
 	// Pages through the front of a finished job, or the front so far of a
 	// running one (partial, as of its last checkpoint).
@@ -245,8 +245,8 @@ type DampfrontServiceServer interface {
 	// Requests cancellation; a running job stops within seconds and keeps
 	// its front so far, marked partial.
 	CancelJob(context.Context, *CancelJobRequest) (*CancelJobResponse, error)
-	// Streams a job's progress as it changes, then the job in its terminal
-	// state, then ends.
+	// Streams a job's progress as it changes (and its refinement's, while
+	// it refines), then the job in its terminal state, then ends.
 	WatchJob(*WatchJobRequest, grpc.ServerStreamingServer[WatchJobResponse]) error
 	// Pages through the front of a finished job, or the front so far of a
 	// running one (partial, as of its last checkpoint).

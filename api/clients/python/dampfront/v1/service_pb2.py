@@ -14,11 +14,12 @@ _sym_db = _symbol_database.Default()
 from dampfront.v1 import design_pb2 as dampfront_dot_v1_dot_design__pb2
 from dampfront.v1 import hand_pb2 as dampfront_dot_v1_dot_hand__pb2
 from dampfront.v1 import job_pb2 as dampfront_dot_v1_dot_job__pb2
+from dampfront.v1 import refine_pb2 as dampfront_dot_v1_dot_refine__pb2
 from dampfront.v1 import result_pb2 as dampfront_dot_v1_dot_result__pb2
 from dampfront.v1 import verify_pb2 as dampfront_dot_v1_dot_verify__pb2
 
 
-DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x1a\x64\x61mpfront/v1/service.proto\x12\x0c\x64\x61mpfront.v1\x1a\x19\x64\x61mpfront/v1/design.proto\x1a\x17\x64\x61mpfront/v1/hand.proto\x1a\x16\x64\x61mpfront/v1/job.proto\x1a\x19\x64\x61mpfront/v1/result.proto\x1a\x19\x64\x61mpfront/v1/verify.proto\"7\n\x10SubmitJobRequest\x12#\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpec\"3\n\x11SubmitJobResponse\x12\x1e\n\x03job\x18\x01 \x01(\x0b\x32\x11.dampfront.v1.Job\"B\n\rGetJobRequest\x12\x0c\n\x04name\x18\x01 \x01(\t\x12#\n\x04view\x18\x02 \x01(\x0e\x32\x15.dampfront.v1.JobView\"0\n\x0eGetJobResponse\x12\x1e\n\x03job\x18\x01 \x01(\x0b\x32\x11.dampfront.v1.Job\"\xef\x01\n\x0fListJobsRequest\x12\x11\n\tpage_size\x18\x01 \x01(\x05\x12\x12\n\npage_token\x18\x02 \x01(\t\x12&\n\x06states\x18\x03 \x03(\x0e\x32\x16.dampfront.v1.JobState\x12\x39\n\x06labels\x18\x04 \x03(\x0b\x32).dampfront.v1.ListJobsRequest.LabelsEntry\x12#\n\x04view\x18\x05 \x01(\x0e\x32\x15.dampfront.v1.JobView\x1a-\n\x0bLabelsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\t:\x02\x38\x01\"L\n\x10ListJobsResponse\x12\x1f\n\x04jobs\x18\x01 \x03(\x0b\x32\x11.dampfront.v1.Job\x12\x17\n\x0fnext_page_token\x18\x02 \x01(\t\" \n\x10\x43\x61ncelJobRequest\x12\x0c\n\x04name\x18\x01 \x01(\t\"3\n\x11\x43\x61ncelJobResponse\x12\x1e\n\x03job\x18\x01 \x01(\x0b\x32\x11.dampfront.v1.Job\"\x1f\n\x0fWatchJobRequest\x12\x0c\n\x04name\x18\x01 \x01(\t\"i\n\x10WatchJobResponse\x12*\n\x08progress\x18\x01 \x01(\x0b\x32\x16.dampfront.v1.ProgressH\x00\x12 \n\x03job\x18\x02 \x01(\x0b\x32\x11.dampfront.v1.JobH\x00\x42\x07\n\x05\x65vent\"o\n\x0fGetFrontRequest\x12\x0b\n\x03job\x18\x01 \x01(\t\x12\x11\n\tpage_size\x18\x02 \x01(\x05\x12\x12\n\npage_token\x18\x03 \x01(\t\x12(\n\x04view\x18\x04 \x01(\x0e\x32\x1a.dampfront.v1.SolutionView\"O\n\x10GetFrontResponse\x12\"\n\x05\x66ront\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Front\x12\x17\n\x0fnext_page_token\x18\x02 \x01(\t\"\xa6\x01\n\x15\x45valuateSetupsRequest\x12%\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpecH\x00\x12\r\n\x03job\x18\x02 \x01(\tH\x00\x12#\n\x06setups\x18\x03 \x03(\x0b\x32\x13.dampfront.v1.Setup\x12(\n\x04view\x18\x04 \x01(\x0e\x32\x1a.dampfront.v1.SolutionViewB\x08\n\x06source\"\xb5\x01\n\x16\x45valuateSetupsResponse\x12+\n\x0b\x65valuations\x18\x01 \x03(\x0b\x32\x16.dampfront.v1.Solution\x12+\n\nobjectives\x18\x02 \x03(\x0b\x32\x17.dampfront.v1.Objective\x12-\n\x0b\x63onstraints\x18\x03 \x03(\x0b\x32\x18.dampfront.v1.Constraint\x12\x12\n\ngene_names\x18\x04 \x03(\t\"F\n\x13\x43ompareSetupRequest\x12\x0b\n\x03job\x18\x01 \x01(\t\x12\"\n\x05setup\x18\x02 \x01(\x0b\x32\x13.dampfront.v1.Setup\"\xc4\x02\n\x14\x43ompareSetupResponse\x12*\n\nevaluation\x18\x01 \x01(\x0b\x32\x16.dampfront.v1.Solution\x12\x11\n\tdominated\x18\x02 \x01(\x08\x12\x18\n\x10\x61\x64\x64itive_epsilon\x18\x03 \x01(\x01\x12#\n\x1bnormalized_additive_epsilon\x18\x04 \x01(\x01\x12\x16\n\x0eobjective_gaps\x18\x05 \x03(\x01\x12\x15\n\rnearest_index\x18\x06 \x01(\x05\x12\x12\n\nfront_size\x18\x07 \x01(\x05\x12\x0f\n\x07partial\x18\x08 \x01(\x08\x12+\n\nobjectives\x18\t \x03(\x0b\x32\x17.dampfront.v1.Objective\x12-\n\x0b\x63onstraints\x18\n \x03(\x0b\x32\x18.dampfront.v1.Constraint\"\xca\x01\n\x16GetDamperCurvesRequest\x12\x0b\n\x03job\x18\x01 \x01(\t\x12\x18\n\x0esolution_index\x18\x02 \x01(\x05H\x00\x12$\n\x05setup\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.SetupH\x00\x12,\n\nadjustment\x18\x04 \x01(\x0b\x32\x18.dampfront.v1.Adjustment\x12+\n\x06\x63urves\x18\x05 \x01(\x0b\x32\x1b.dampfront.v1.CurveSettingsB\x08\n\x06target\"\x9e\x01\n\x17GetDamperCurvesResponse\x12\"\n\x05setup\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Setup\x12)\n\x06\x63urves\x18\x02 \x03(\x0b\x32\x19.dampfront.v1.DamperCurve\x12\x34\n\x0cheave_curves\x18\x03 \x03(\x0b\x32\x1e.dampfront.v1.HeaveDamperCurve\"\xa8\x01\n\x12VerifySetupRequest\x12%\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpecH\x00\x12\r\n\x03job\x18\x02 \x01(\tH\x00\x12\"\n\x05setup\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Setup\x12\x11\n\x04seed\x18\x04 \x01(\x04H\x01\x88\x01\x01\x12\x12\n\nduration_s\x18\x05 \x01(\x01\x42\x08\n\x06sourceB\x07\n\x05_seed\"\xb3\x01\n\x13VerifySetupResponse\x12)\n\x05\x63\x61ses\x18\x01 \x03(\x0b\x32\x1a.dampfront.v1.VerifiedCase\x12\x0c\n\x04seed\x18\x02 \x01(\x04\x12\x12\n\nduration_s\x18\x03 \x01(\x01\x12\x0f\n\x07\x63\x61ution\x18\x04 \x01(\t\x12&\n\x07verdict\x18\x05 \x01(\x0e\x32\x15.dampfront.v1.Verdict\x12\x16\n\x0everdict_sigmas\x18\x06 \x01(\x01\"\xa7\x01\n\x1aGetTransientHistoryRequest\x12%\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpecH\x00\x12\r\n\x03job\x18\x02 \x01(\tH\x00\x12\"\n\x05setup\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Setup\x12\x11\n\tcase_name\x18\x04 \x01(\t\x12\x12\n\nmax_points\x18\x05 \x01(\x05\x42\x08\n\x06source\"\x91\x02\n\x1bGetTransientHistoryResponse\x12\x11\n\tcase_name\x18\x01 \x01(\t\x12\x0c\n\x04kind\x18\x02 \x01(\t\x12\x0e\n\x06time_s\x18\x03 \x03(\x01\x12\x10\n\x08roll_rad\x18\x04 \x03(\x01\x12\x11\n\tpitch_rad\x18\x05 \x03(\x01\x12\x12\n\nlltd_front\x18\x06 \x03(\x01\x12\x16\n\x0etyre_load_fl_n\x18\x07 \x03(\x01\x12\x16\n\x0etyre_load_fr_n\x18\x08 \x03(\x01\x12\x16\n\x0etyre_load_rl_n\x18\t \x03(\x01\x12\x16\n\x0etyre_load_rr_n\x18\n \x03(\x01\x12\x13\n\x0b\x61x_m_per_s2\x18\x0b \x03(\x01\x12\x13\n\x0b\x61y_m_per_s2\x18\x0c \x03(\x01\x32\x87\x08\n\x10\x44\x61mpfrontService\x12L\n\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12\x43\n\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n\x08ListJobs\x12\x1d.dampfront.v1.ListJobsRequest\x1a\x1e.dampfront.v1.ListJobsResponse\x12L\n\tCancelJob\x12\x1e.dampfront.v1.CancelJobRequest\x1a\x1f.dampfront.v1.CancelJobResponse\x12K\n\x08WatchJob\x12\x1d.dampfront.v1.WatchJobRequest\x1a\x1e.dampfront.v1.WatchJobResponse0\x01\x12I\n\x08GetFront\x12\x1d.dampfront.v1.GetFrontRequest\x1a\x1e.dampfront.v1.GetFrontResponse\x12[\n\x0e\x45valuateSetups\x12#.dampfront.v1.EvaluateSetupsRequest\x1a$.dampfront.v1.EvaluateSetupsResponse\x12U\n\x0c\x43ompareSetup\x12!.dampfront.v1.CompareSetupRequest\x1a\".dampfront.v1.CompareSetupResponse\x12^\n\x0fGetDamperCurves\x12$.dampfront.v1.GetDamperCurvesRequest\x1a%.dampfront.v1.GetDamperCurvesResponse\x12R\n\x0bVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponse\x12[\n\x0e\x45stimateByHand\x12#.dampfront.v1.EstimateByHandRequest\x1a$.dampfront.v1.EstimateByHandResponse\x12j\n\x13GetTransientHistory\x12(.dampfront.v1.GetTransientHistoryRequest\x1a).dampfront.v1.GetTransientHistoryResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3')
+DESCRIPTOR = _descriptor_pool.Default().AddSerializedFile(b'\n\x1a\x64\x61mpfront/v1/service.proto\x12\x0c\x64\x61mpfront.v1\x1a\x19\x64\x61mpfront/v1/design.proto\x1a\x17\x64\x61mpfront/v1/hand.proto\x1a\x16\x64\x61mpfront/v1/job.proto\x1a\x19\x64\x61mpfront/v1/refine.proto\x1a\x19\x64\x61mpfront/v1/result.proto\x1a\x19\x64\x61mpfront/v1/verify.proto\"7\n\x10SubmitJobRequest\x12#\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpec\"3\n\x11SubmitJobResponse\x12\x1e\n\x03job\x18\x01 \x01(\x0b\x32\x11.dampfront.v1.Job\"B\n\rGetJobRequest\x12\x0c\n\x04name\x18\x01 \x01(\t\x12#\n\x04view\x18\x02 \x01(\x0e\x32\x15.dampfront.v1.JobView\"0\n\x0eGetJobResponse\x12\x1e\n\x03job\x18\x01 \x01(\x0b\x32\x11.dampfront.v1.Job\"\xef\x01\n\x0fListJobsRequest\x12\x11\n\tpage_size\x18\x01 \x01(\x05\x12\x12\n\npage_token\x18\x02 \x01(\t\x12&\n\x06states\x18\x03 \x03(\x0e\x32\x16.dampfront.v1.JobState\x12\x39\n\x06labels\x18\x04 \x03(\x0b\x32).dampfront.v1.ListJobsRequest.LabelsEntry\x12#\n\x04view\x18\x05 \x01(\x0e\x32\x15.dampfront.v1.JobView\x1a-\n\x0bLabelsEntry\x12\x0b\n\x03key\x18\x01 \x01(\t\x12\r\n\x05value\x18\x02 \x01(\t:\x02\x38\x01\"L\n\x10ListJobsResponse\x12\x1f\n\x04jobs\x18\x01 \x03(\x0b\x32\x11.dampfront.v1.Job\x12\x17\n\x0fnext_page_token\x18\x02 \x01(\t\" \n\x10\x43\x61ncelJobRequest\x12\x0c\n\x04name\x18\x01 \x01(\t\"3\n\x11\x43\x61ncelJobResponse\x12\x1e\n\x03job\x18\x01 \x01(\x0b\x32\x11.dampfront.v1.Job\"\x1f\n\x0fWatchJobRequest\x12\x0c\n\x04name\x18\x01 \x01(\t\"\xa0\x01\n\x10WatchJobResponse\x12*\n\x08progress\x18\x01 \x01(\x0b\x32\x16.dampfront.v1.ProgressH\x00\x12 \n\x03job\x18\x02 \x01(\x0b\x32\x11.dampfront.v1.JobH\x00\x12\x35\n\nrefinement\x18\x03 \x01(\x0b\x32\x1f.dampfront.v1.RefinementSummaryH\x00\x42\x07\n\x05\x65vent\"o\n\x0fGetFrontRequest\x12\x0b\n\x03job\x18\x01 \x01(\t\x12\x11\n\tpage_size\x18\x02 \x01(\x05\x12\x12\n\npage_token\x18\x03 \x01(\t\x12(\n\x04view\x18\x04 \x01(\x0e\x32\x1a.dampfront.v1.SolutionView\"O\n\x10GetFrontResponse\x12\"\n\x05\x66ront\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Front\x12\x17\n\x0fnext_page_token\x18\x02 \x01(\t\"\xa6\x01\n\x15\x45valuateSetupsRequest\x12%\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpecH\x00\x12\r\n\x03job\x18\x02 \x01(\tH\x00\x12#\n\x06setups\x18\x03 \x03(\x0b\x32\x13.dampfront.v1.Setup\x12(\n\x04view\x18\x04 \x01(\x0e\x32\x1a.dampfront.v1.SolutionViewB\x08\n\x06source\"\xb5\x01\n\x16\x45valuateSetupsResponse\x12+\n\x0b\x65valuations\x18\x01 \x03(\x0b\x32\x16.dampfront.v1.Solution\x12+\n\nobjectives\x18\x02 \x03(\x0b\x32\x17.dampfront.v1.Objective\x12-\n\x0b\x63onstraints\x18\x03 \x03(\x0b\x32\x18.dampfront.v1.Constraint\x12\x12\n\ngene_names\x18\x04 \x03(\t\"F\n\x13\x43ompareSetupRequest\x12\x0b\n\x03job\x18\x01 \x01(\t\x12\"\n\x05setup\x18\x02 \x01(\x0b\x32\x13.dampfront.v1.Setup\"\xc4\x02\n\x14\x43ompareSetupResponse\x12*\n\nevaluation\x18\x01 \x01(\x0b\x32\x16.dampfront.v1.Solution\x12\x11\n\tdominated\x18\x02 \x01(\x08\x12\x18\n\x10\x61\x64\x64itive_epsilon\x18\x03 \x01(\x01\x12#\n\x1bnormalized_additive_epsilon\x18\x04 \x01(\x01\x12\x16\n\x0eobjective_gaps\x18\x05 \x03(\x01\x12\x15\n\rnearest_index\x18\x06 \x01(\x05\x12\x12\n\nfront_size\x18\x07 \x01(\x05\x12\x0f\n\x07partial\x18\x08 \x01(\x08\x12+\n\nobjectives\x18\t \x03(\x0b\x32\x17.dampfront.v1.Objective\x12-\n\x0b\x63onstraints\x18\n \x03(\x0b\x32\x18.dampfront.v1.Constraint\"\xca\x01\n\x16GetDamperCurvesRequest\x12\x0b\n\x03job\x18\x01 \x01(\t\x12\x18\n\x0esolution_index\x18\x02 \x01(\x05H\x00\x12$\n\x05setup\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.SetupH\x00\x12,\n\nadjustment\x18\x04 \x01(\x0b\x32\x18.dampfront.v1.Adjustment\x12+\n\x06\x63urves\x18\x05 \x01(\x0b\x32\x1b.dampfront.v1.CurveSettingsB\x08\n\x06target\"\x9e\x01\n\x17GetDamperCurvesResponse\x12\"\n\x05setup\x18\x01 \x01(\x0b\x32\x13.dampfront.v1.Setup\x12)\n\x06\x63urves\x18\x02 \x03(\x0b\x32\x19.dampfront.v1.DamperCurve\x12\x34\n\x0cheave_curves\x18\x03 \x03(\x0b\x32\x1e.dampfront.v1.HeaveDamperCurve\"\xa8\x01\n\x12VerifySetupRequest\x12%\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpecH\x00\x12\r\n\x03job\x18\x02 \x01(\tH\x00\x12\"\n\x05setup\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Setup\x12\x11\n\x04seed\x18\x04 \x01(\x04H\x01\x88\x01\x01\x12\x12\n\nduration_s\x18\x05 \x01(\x01\x42\x08\n\x06sourceB\x07\n\x05_seed\"\xb3\x01\n\x13VerifySetupResponse\x12)\n\x05\x63\x61ses\x18\x01 \x03(\x0b\x32\x1a.dampfront.v1.VerifiedCase\x12\x0c\n\x04seed\x18\x02 \x01(\x04\x12\x12\n\nduration_s\x18\x03 \x01(\x01\x12\x0f\n\x07\x63\x61ution\x18\x04 \x01(\t\x12&\n\x07verdict\x18\x05 \x01(\x0e\x32\x15.dampfront.v1.Verdict\x12\x16\n\x0everdict_sigmas\x18\x06 \x01(\x01\"\xa7\x01\n\x1aGetTransientHistoryRequest\x12%\n\x04spec\x18\x01 \x01(\x0b\x32\x15.dampfront.v1.JobSpecH\x00\x12\r\n\x03job\x18\x02 \x01(\tH\x00\x12\"\n\x05setup\x18\x03 \x01(\x0b\x32\x13.dampfront.v1.Setup\x12\x11\n\tcase_name\x18\x04 \x01(\t\x12\x12\n\nmax_points\x18\x05 \x01(\x05\x42\x08\n\x06source\"\x91\x02\n\x1bGetTransientHistoryResponse\x12\x11\n\tcase_name\x18\x01 \x01(\t\x12\x0c\n\x04kind\x18\x02 \x01(\t\x12\x0e\n\x06time_s\x18\x03 \x03(\x01\x12\x10\n\x08roll_rad\x18\x04 \x03(\x01\x12\x11\n\tpitch_rad\x18\x05 \x03(\x01\x12\x12\n\nlltd_front\x18\x06 \x03(\x01\x12\x16\n\x0etyre_load_fl_n\x18\x07 \x03(\x01\x12\x16\n\x0etyre_load_fr_n\x18\x08 \x03(\x01\x12\x16\n\x0etyre_load_rl_n\x18\t \x03(\x01\x12\x16\n\x0etyre_load_rr_n\x18\n \x03(\x01\x12\x13\n\x0b\x61x_m_per_s2\x18\x0b \x03(\x01\x12\x13\n\x0b\x61y_m_per_s2\x18\x0c \x03(\x01\x32\x87\x08\n\x10\x44\x61mpfrontService\x12L\n\tSubmitJob\x12\x1e.dampfront.v1.SubmitJobRequest\x1a\x1f.dampfront.v1.SubmitJobResponse\x12\x43\n\x06GetJob\x12\x1b.dampfront.v1.GetJobRequest\x1a\x1c.dampfront.v1.GetJobResponse\x12I\n\x08ListJobs\x12\x1d.dampfront.v1.ListJobsRequest\x1a\x1e.dampfront.v1.ListJobsResponse\x12L\n\tCancelJob\x12\x1e.dampfront.v1.CancelJobRequest\x1a\x1f.dampfront.v1.CancelJobResponse\x12K\n\x08WatchJob\x12\x1d.dampfront.v1.WatchJobRequest\x1a\x1e.dampfront.v1.WatchJobResponse0\x01\x12I\n\x08GetFront\x12\x1d.dampfront.v1.GetFrontRequest\x1a\x1e.dampfront.v1.GetFrontResponse\x12[\n\x0e\x45valuateSetups\x12#.dampfront.v1.EvaluateSetupsRequest\x1a$.dampfront.v1.EvaluateSetupsResponse\x12U\n\x0c\x43ompareSetup\x12!.dampfront.v1.CompareSetupRequest\x1a\".dampfront.v1.CompareSetupResponse\x12^\n\x0fGetDamperCurves\x12$.dampfront.v1.GetDamperCurvesRequest\x1a%.dampfront.v1.GetDamperCurvesResponse\x12R\n\x0bVerifySetup\x12 .dampfront.v1.VerifySetupRequest\x1a!.dampfront.v1.VerifySetupResponse\x12[\n\x0e\x45stimateByHand\x12#.dampfront.v1.EstimateByHandRequest\x1a$.dampfront.v1.EstimateByHandResponse\x12j\n\x13GetTransientHistory\x12(.dampfront.v1.GetTransientHistoryRequest\x1a).dampfront.v1.GetTransientHistoryResponseB,Z*dampfront/api/gen/dampfront/v1;dampfrontv1b\x06proto3')
 
 _builder.BuildMessageAndEnumDescriptors(DESCRIPTOR, globals())
 _builder.BuildTopDescriptorsAndMessages(DESCRIPTOR, 'dampfront.v1.service_pb2', globals())
@@ -28,52 +29,52 @@ if _descriptor._USE_C_DESCRIPTORS == False:
   DESCRIPTOR._serialized_options = b'Z*dampfront/api/gen/dampfront/v1;dampfrontv1'
   _LISTJOBSREQUEST_LABELSENTRY._options = None
   _LISTJOBSREQUEST_LABELSENTRY._serialized_options = b'8\001'
-  _SUBMITJOBREQUEST._serialized_start=174
-  _SUBMITJOBREQUEST._serialized_end=229
-  _SUBMITJOBRESPONSE._serialized_start=231
-  _SUBMITJOBRESPONSE._serialized_end=282
-  _GETJOBREQUEST._serialized_start=284
-  _GETJOBREQUEST._serialized_end=350
-  _GETJOBRESPONSE._serialized_start=352
-  _GETJOBRESPONSE._serialized_end=400
-  _LISTJOBSREQUEST._serialized_start=403
-  _LISTJOBSREQUEST._serialized_end=642
-  _LISTJOBSREQUEST_LABELSENTRY._serialized_start=597
-  _LISTJOBSREQUEST_LABELSENTRY._serialized_end=642
-  _LISTJOBSRESPONSE._serialized_start=644
-  _LISTJOBSRESPONSE._serialized_end=720
-  _CANCELJOBREQUEST._serialized_start=722
-  _CANCELJOBREQUEST._serialized_end=754
-  _CANCELJOBRESPONSE._serialized_start=756
-  _CANCELJOBRESPONSE._serialized_end=807
-  _WATCHJOBREQUEST._serialized_start=809
-  _WATCHJOBREQUEST._serialized_end=840
-  _WATCHJOBRESPONSE._serialized_start=842
-  _WATCHJOBRESPONSE._serialized_end=947
-  _GETFRONTREQUEST._serialized_start=949
-  _GETFRONTREQUEST._serialized_end=1060
-  _GETFRONTRESPONSE._serialized_start=1062
-  _GETFRONTRESPONSE._serialized_end=1141
-  _EVALUATESETUPSREQUEST._serialized_start=1144
-  _EVALUATESETUPSREQUEST._serialized_end=1310
-  _EVALUATESETUPSRESPONSE._serialized_start=1313
-  _EVALUATESETUPSRESPONSE._serialized_end=1494
-  _COMPARESETUPREQUEST._serialized_start=1496
-  _COMPARESETUPREQUEST._serialized_end=1566
-  _COMPARESETUPRESPONSE._serialized_start=1569
-  _COMPARESETUPRESPONSE._serialized_end=1893
-  _GETDAMPERCURVESREQUEST._serialized_start=1896
-  _GETDAMPERCURVESREQUEST._serialized_end=2098
-  _GETDAMPERCURVESRESPONSE._serialized_start=2101
-  _GETDAMPERCURVESRESPONSE._serialized_end=2259
-  _VERIFYSETUPREQUEST._serialized_start=2262
-  _VERIFYSETUPREQUEST._serialized_end=2430
-  _VERIFYSETUPRESPONSE._serialized_start=2433
-  _VERIFYSETUPRESPONSE._serialized_end=2612
-  _GETTRANSIENTHISTORYREQUEST._serialized_start=2615
-  _GETTRANSIENTHISTORYREQUEST._serialized_end=2782
-  _GETTRANSIENTHISTORYRESPONSE._serialized_start=2785
-  _GETTRANSIENTHISTORYRESPONSE._serialized_end=3058
-  _DAMPFRONTSERVICE._serialized_start=3061
-  _DAMPFRONTSERVICE._serialized_end=4092
+  _SUBMITJOBREQUEST._serialized_start=201
+  _SUBMITJOBREQUEST._serialized_end=256
+  _SUBMITJOBRESPONSE._serialized_start=258
+  _SUBMITJOBRESPONSE._serialized_end=309
+  _GETJOBREQUEST._serialized_start=311
+  _GETJOBREQUEST._serialized_end=377
+  _GETJOBRESPONSE._serialized_start=379
+  _GETJOBRESPONSE._serialized_end=427
+  _LISTJOBSREQUEST._serialized_start=430
+  _LISTJOBSREQUEST._serialized_end=669
+  _LISTJOBSREQUEST_LABELSENTRY._serialized_start=624
+  _LISTJOBSREQUEST_LABELSENTRY._serialized_end=669
+  _LISTJOBSRESPONSE._serialized_start=671
+  _LISTJOBSRESPONSE._serialized_end=747
+  _CANCELJOBREQUEST._serialized_start=749
+  _CANCELJOBREQUEST._serialized_end=781
+  _CANCELJOBRESPONSE._serialized_start=783
+  _CANCELJOBRESPONSE._serialized_end=834
+  _WATCHJOBREQUEST._serialized_start=836
+  _WATCHJOBREQUEST._serialized_end=867
+  _WATCHJOBRESPONSE._serialized_start=870
+  _WATCHJOBRESPONSE._serialized_end=1030
+  _GETFRONTREQUEST._serialized_start=1032
+  _GETFRONTREQUEST._serialized_end=1143
+  _GETFRONTRESPONSE._serialized_start=1145
+  _GETFRONTRESPONSE._serialized_end=1224
+  _EVALUATESETUPSREQUEST._serialized_start=1227
+  _EVALUATESETUPSREQUEST._serialized_end=1393
+  _EVALUATESETUPSRESPONSE._serialized_start=1396
+  _EVALUATESETUPSRESPONSE._serialized_end=1577
+  _COMPARESETUPREQUEST._serialized_start=1579
+  _COMPARESETUPREQUEST._serialized_end=1649
+  _COMPARESETUPRESPONSE._serialized_start=1652
+  _COMPARESETUPRESPONSE._serialized_end=1976
+  _GETDAMPERCURVESREQUEST._serialized_start=1979
+  _GETDAMPERCURVESREQUEST._serialized_end=2181
+  _GETDAMPERCURVESRESPONSE._serialized_start=2184
+  _GETDAMPERCURVESRESPONSE._serialized_end=2342
+  _VERIFYSETUPREQUEST._serialized_start=2345
+  _VERIFYSETUPREQUEST._serialized_end=2513
+  _VERIFYSETUPRESPONSE._serialized_start=2516
+  _VERIFYSETUPRESPONSE._serialized_end=2695
+  _GETTRANSIENTHISTORYREQUEST._serialized_start=2698
+  _GETTRANSIENTHISTORYREQUEST._serialized_end=2865
+  _GETTRANSIENTHISTORYRESPONSE._serialized_start=2868
+  _GETTRANSIENTHISTORYRESPONSE._serialized_end=3141
+  _DAMPFRONTSERVICE._serialized_start=3144
+  _DAMPFRONTSERVICE._serialized_end=4175
 # @@protoc_insertion_point(module_scope)
