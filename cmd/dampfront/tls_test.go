@@ -166,7 +166,10 @@ func TestTLSWithTokens(t *testing.T) {
 	}{
 		{"another CA", []string{"DAMPFRONT_TOKEN=" + ciToken, "DAMPFRONT_TLS_CA=" + otherCA}, []string{"list"}, exitFailure, "certificate signed by unknown authority"},
 		{"system CAs", []string{"DAMPFRONT_TOKEN=" + ciToken, "DAMPFRONT_TLS=true"}, []string{"list"}, exitFailure, "x509: "},
-		{"no TLS", []string{"DAMPFRONT_TOKEN=" + ciToken}, []string{"list"}, exitFailure, "server unavailable: connection error: desc = \"error reading server preface: EOF\"\n  if the server serves TLS, connect with --tls-ca FILE"},
+		// The plaintext client reads EOF or "connection reset by peer"
+		// from the TLS server, as the close races the client's read; the
+		// hint follows either.
+		{"no TLS", []string{"DAMPFRONT_TOKEN=" + ciToken}, []string{"list"}, exitFailure, "server unavailable: connection error: desc = \"error reading server preface: "},
 		{"no token", []string{"DAMPFRONT_TLS_CA=" + caFile}, []string{"list"}, exitFailure, "unauthenticated: no bearer token"},
 		{"unknown token", []string{"DAMPFRONT_TOKEN=" + api.TokenPrefix + "not-one-of-the-file", "DAMPFRONT_TLS_CA=" + caFile}, []string{"list"}, exitFailure, "unauthenticated: the bearer token is not valid"},
 		{"reader submits", []string{"DAMPFRONT_TOKEN=" + readToken, "DAMPFRONT_TLS_CA=" + caFile}, []string{"submit", testdataPath("demo-job.yaml")}, exitFailure, `permission denied: token "viewer" has role reader; SubmitJob needs submitter`},
@@ -180,6 +183,9 @@ func TestTLSWithTokens(t *testing.T) {
 			r := mustRun(t, tt.code, tt.env, s.client(append(tt.args, "--timeout", "10s")...)...)
 			if !strings.Contains(r.stderr, tt.want) {
 				t.Errorf("stderr does not contain %q:\n%s", tt.want, r.stderr)
+			}
+			if hint := "\n  if the server serves TLS, connect with --tls-ca FILE"; tt.name == "no TLS" && !strings.Contains(r.stderr, hint) {
+				t.Errorf("stderr does not give the TLS hint %q:\n%s", hint, r.stderr)
 			}
 		})
 	}
