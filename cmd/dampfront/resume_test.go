@@ -10,6 +10,7 @@ import (
 	"time"
 
 	"google.golang.org/protobuf/encoding/protojson"
+	"google.golang.org/protobuf/proto"
 
 	"dampfront/api"
 	pb "dampfront/api/gen/dampfront/v1"
@@ -116,4 +117,104 @@ func readCheckpoint(t *testing.T, db, id string) *jobs.Checkpoint {
 		t.Fatalf("checkpoint of %s: %v", id, err)
 	}
 	return c
+}
+
+// kill -9 of the serving process while the job refines its front on the
+// nonlinear car, then a restart on the same database: the refinement
+// resumes from the points of its last checkpoint (the count of points
+// checked never falls below it), and the front with its refined figures
+// and the job's refinement summary are bit for bit those of the same
+// spec run without interruption.
+func TestKillAndResumeRefining(t *testing.T) {
+	t.Parallel()
+	db := filepath.Join(t.TempDir(), "refine.db")
+	env := []string{"DAMPFRONT_CHECKPOINT_INTERVAL=200ms"}
+	// A short record (10 s a road case) keeps each point's check to some
+	// tens of milliseconds; the comparisons are exact, not statistical.
+	spec := writeSpec(t, "generations: 30", "generations: 6",
+		"\nsearch:\n", "\nrefinement: {enabled: true, duration_s: 10}\nsearch:\n")
+
+	s1 := startServer(t, db, env)
+	id := firstLine(mustRun(t, exitOK, nil, s1.client("submit", spec)...).stdout)
+	killedAt, points := waitRefined(t, s1, id, 10)
+	s1.kill()
+	if killedAt >= points {
+		t.Fatalf("all %d points were refined before the kill: nothing left to resume", points)
+	}
+
+	ck := readCheckpoint(t, db, id)
+	if !bytes.HasPrefix(ck.Data, []byte("dfrefine")) {
+		t.Fatalf("the last checkpoint before the kill holds no refined point (%d bytes)", len(ck.Data))
+	}
+
+	s2 := startServer(t, db, env)
+	r := mustRun(t, exitOK, nil, s2.client("watch", id, "--json")...)
+	var counts []int32
+	for i, line := range strings.Split(strings.TrimSpace(r.stdout), "\n") {
+		var ev pb.WatchJobResponse
+		if err := protojson.Unmarshal([]byte(line), &ev); err != nil {
+			t.Fatalf("watch --json line %d: %v: %s", i, err, line)
+		}
+		if rs := ev.GetRefinement(); rs != nil {
+			counts = append(counts, rs.GetPointsChecked())
+		}
+		if j := ev.GetJob(); j != nil && j.GetState() != pb.JobState_JOB_STATE_SUCCEEDED {
+			t.Fatalf("the resumed job ended %v", j.GetState())
+		}
+	}
+	for _, c := range counts {
+		if c < killedAt {
+			t.Fatalf("after the restart the refinement reported %d points checked, below the %d stored before the kill: it started over (counts seen: %v)", c, killedAt, counts)
+		}
+	}
+
+	t.Logf("killed with %d of %d points refined as of the last checkpoint; counts seen after the restart: %v", killedAt, points, counts)
+
+	ref := firstLine(mustRun(t, exitOK, nil, s2.client("submit", spec, "--watch", "--quiet")...).stdout)
+	got := frontFields(t, mustRun(t, exitOK, nil, s2.client("front", id, "--format", "json")...).stdout)
+	want := frontFields(t, mustRun(t, exitOK, nil, s2.client("front", ref, "--format", "json")...).stdout)
+	if !bytes.Contains(want["solutions"], []byte("refined")) {
+		t.Fatalf("the uninterrupted run's front has no refined figures: %.300s", want["solutions"])
+	}
+	for k, w := range want {
+		if !bytes.Equal(got[k], w) {
+			t.Errorf("front field %q differs between the killed-and-resumed run and the uninterrupted one:\n%.400s\n%.400s", k, got[k], w)
+		}
+	}
+	summary := func(id string) *pb.RefinementSummary {
+		var j pb.Job
+		if err := protojson.Unmarshal([]byte(mustRun(t, exitOK, nil, s2.client("get", id, "--format", "json")...).stdout), &j); err != nil {
+			t.Fatal(err)
+		}
+		return j.GetRefinementSummary()
+	}
+	if a, b := summary(id), summary(ref); a == nil || a.GetInProgress() || !proto.Equal(a, b) {
+		t.Errorf("refinement summary after the kill and resume %v, uninterrupted %v", a, b)
+	}
+}
+
+// waitRefined waits until the job's stored summary says at least n of its
+// front's points are refined (stored with a checkpoint) and returns the
+// count it read and the front's points.
+func waitRefined(t *testing.T, s *server, id string, n int32) (int32, int32) {
+	t.Helper()
+	deadline := timeNow().Add(commandTimeout)
+	for timeNow().Before(deadline) {
+		r := dampfront(t, nil, s.client("get", id, "--format", "json")...)
+		if r.code == exitOK {
+			var j pb.Job
+			if err := protojson.Unmarshal([]byte(r.stdout), &j); err != nil {
+				t.Fatal(err)
+			}
+			if rs := j.GetRefinementSummary(); rs.GetInProgress() && rs.GetPointsChecked() >= n {
+				return rs.GetPointsChecked(), rs.GetPoints()
+			}
+			if terminal(j.GetState()) {
+				t.Fatalf("job %s ended (%v) before %d points were refined", id, j.GetState(), n)
+			}
+		}
+		sleep(20)
+	}
+	t.Fatalf("job %s did not refine %d points within %v", id, n, commandTimeout)
+	return 0, 0
 }
