@@ -222,16 +222,16 @@ func TestCompilesPerJob(t *testing.T) {
 // holds at most 8 × 1 × (2 + 1) = 24 points.
 //
 //   - polish_budget 4: search 8 × 1 × (2 + 4) × 2 = 96, rounds 24 points ×
-//     8 rounds × (1 twin + 2^4 corners + 4) × 2 cases = 8064: 8160, the
-//     limit here, so it is accepted at the limit;
-//   - polish_budget 5: 8 × 7 × 2 = 112 + 24 × 8 × 22 × 2 = 8448: 8560, over
+//     8 rounds × (1 twin + 2^4 corners + 2 model steps + 4) × 2 cases =
+//     8832: 8928, the limit here, so it is accepted at the limit;
+//   - polish_budget 5: 8 × 7 × 2 = 112 + 24 × 8 × 24 × 2 = 9216: 9328, over
 //     it (112 alone, all that was counted before, is far under);
 //   - refinement of 10 s: 8 × 2 × 2 = 32 + 24 points × 2 road cases ×
 //     ⌈8 × 10⌉ = 3840: 3872, under it;
 //   - refinement of 30 s: 32 + 24 × 2 × 240 = 11 552, over it.
 func TestJobWorkCountsPolishRoundsAndRefinement(t *testing.T) {
 	t.Parallel()
-	b := setup(t, Options{MaxJobWork: 8160})
+	b := setup(t, Options{MaxJobWork: 8928})
 	polished := func(budget int32) *pb.JobSpec {
 		s := testSpec(2)
 		s.Search.PolishBudget = budget
@@ -246,7 +246,7 @@ func TestJobWorkCountsPolishRoundsAndRefinement(t *testing.T) {
 		what, field, work string
 		spec              *pb.JobSpec
 	}{
-		{"polish budget 5", "search.polish_budget", "8560", polished(5)},
+		{"polish budget 5", "search.polish_budget", "9328", polished(5)},
 		{"refinement of 30 s", "refinement.duration_s", "11552", refined(30)},
 	} {
 		_, err := b.server.SubmitJob(testContext(t), &pb.SubmitJobRequest{Spec: c.spec})

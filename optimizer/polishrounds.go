@@ -44,6 +44,17 @@ import (
 // Polish before the next round. The rounds stop when every member is
 // cleared or after Rounds rounds.
 //
+// After the corners, a member none of them beats gets one more try: the
+// move a linear model of the objectives fitted to its evaluated
+// neighbours promises to lower every objective by the most margins
+// (linearModelStep), and that move halved. The corners are the box's
+// vertices, but a move that lowers every objective may lie only inside
+// the box (a narrow cone of such moves between corners), where the
+// corners never look; on the demo job, of the points the corners
+// cleared, 15-19 of about 190 were still beaten by moves drawn uniformly
+// inside the box (16 a point), 1-3 with the model step (README, "The
+// front in the genes").
+//
 // Nothing is drawn at random, so the rounds share no stream with a
 // FrontCheck: a check after them samples the same neighbourhood
 // independently, and with its margin at least this one's it finds no
@@ -59,6 +70,10 @@ type Neighbourhood struct {
 	// Rounds bounds the rounds; at least 1.
 	Rounds int
 }
+
+// ModelStepEvaluations is the most evaluations the linear model's step
+// adds to a member's neighbourhood in a round (the step and its half).
+const ModelStepEvaluations = 2
 
 // MaxNeighbourhoodGenes bounds the genes a Neighbourhood moves, so that a
 // member's neighbourhood has at most 2^8 corners.
@@ -150,8 +165,9 @@ func neighbourhoodRounds(ctx context.Context, prob Problem, shape problemShape, 
 	return rounds, replaced, evals, nil
 }
 
-// scanNeighbourhood evaluates x's twin and then the corners of its box in
+// scanNeighbourhood evaluates x's twin, then the corners of its box in
 // binary order (bit i of the corner's number set: gene i moves down),
+// then the linear model's step and half of it (see Neighbourhood),
 // skipping a candidate equal to x or to one already tried, and returns
 // the first feasible one lower than x by more than margin in every
 // objective (nil when none is) with the evaluations made. It stops early,
@@ -159,6 +175,7 @@ func neighbourhoodRounds(ctx context.Context, prob Problem, shape problemShape, 
 func scanNeighbourhood(ctx context.Context, prob Problem, shape problemShape, x *Solution, radius, margin []float64, twin func(x, dst []float64) bool) (*Solution, int) {
 	evals := 0
 	var tried [][]float64
+	var seen []Solution // the corners evaluated, for the linear model
 	consider := func(y []float64) *Solution {
 		if ctx.Err() != nil || slices.Equal(y, x.Genes) || slices.ContainsFunc(tried, func(t []float64) bool { return slices.Equal(t, y) }) {
 			return nil
@@ -168,6 +185,9 @@ func scanNeighbourhood(ctx context.Context, prob Problem, shape problemShape, x 
 		sol := evaluateAt(prob, shape, y)
 		if sol.Feasible && beats(sol.Objectives, x.Objectives, margin) {
 			return &sol
+		}
+		if finiteAll(sol.Objectives) {
+			seen = append(seen, sol)
 		}
 		return nil
 	}
@@ -195,6 +215,18 @@ func scanNeighbourhood(ctx context.Context, prob Problem, shape problemShape, x 
 			y[i] = min(shape.bounds[i].Hi, max(shape.bounds[i].Lo, y[i]+d))
 		}
 		if sol := consider(y); sol != nil {
+			return sol, evals
+		}
+	}
+	if y, ok := linearModelStep(x, seen, moved, radius, shape.bounds, margin); ok {
+		if sol := consider(y); sol != nil {
+			return sol, evals
+		}
+		half := slices.Clone(x.Genes)
+		for _, i := range moved {
+			half[i] = x.Genes[i] + (y[i]-x.Genes[i])/2
+		}
+		if sol := consider(half); sol != nil {
 			return sol, evals
 		}
 	}

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"math"
 	"reflect"
 	"testing"
 )
@@ -103,6 +104,67 @@ func TestPolishNeighbourhoodValidate(t *testing.T) {
 		err := p.validate(4)
 		if fe, ok := err.(*FieldError); !ok || fe.Field != tc.field {
 			t.Errorf("%+v: error %v, want one at %s", tc.nb, err, tc.field)
+		}
+	}
+}
+
+// narrowCone is a linear problem constructed here (no published source):
+// genes u, v in [0, 1] and
+//
+//	f1 = -u + 3v,  f2 = -u - 3v.
+//
+// From a point x, a move d lowers both objectives only when d_u > 3|d_v|:
+// a cone of half-angle atan(1/3) about the u axis, which holds no corner
+// of a square box around x (every corner has |d_v| = |d_u|).
+type narrowCone struct{}
+
+func (narrowCone) Bounds() []Bound     { return []Bound{{0, 1}, {0, 1}} }
+func (narrowCone) NumObjectives() int  { return 2 }
+func (narrowCone) NumConstraints() int { return 0 }
+func (narrowCone) Evaluate(x, obj, _ []float64) error {
+	obj[0] = -x[0] + 3*x[1]
+	obj[1] = -x[0] - 3*x[1]
+	return nil
+}
+
+// TestLinearModelStep: on narrowCone no corner of the ±0.03 box beats the
+// point (0.5, 0.5), and the model step after them finds the move the
+// linear programme gives by hand: maximise t subject to -d_u + 3 d_v +
+// t m ≤ 0, -d_u - 3 d_v + t m ≤ 0, |d| ≤ 0.03, whose optimum is d_v = 0,
+// d_u = 0.03 (adding the two rows, 2 t m ≤ 2 d_u ≤ 0.06), lowering both
+// objectives by 0.03. The least-squares model of a linear function from
+// the corners is exact up to rounding, so the step is checked to 1e-12.
+// Near the bound u = 1 the box is clipped and the step stops at it.
+func TestLinearModelStep(t *testing.T) {
+	t.Parallel()
+	prob := narrowCone{}
+	shape, err := readProblem(prob)
+	if err != nil {
+		t.Fatal(err)
+	}
+	radius := []float64{0.03, 0.03}
+	margin := []float64{0.001, 0.001}
+	for _, tc := range []struct{ u, wantU float64 }{{0.5, 0.53}, {0.99, 1}} {
+		x := evaluateAt(prob, shape, []float64{tc.u, 0.5})
+		// The corners alone (no model step) beat nothing.
+		var corners []Solution
+		for c := range 4 {
+			y := []float64{min(1, x.Genes[0]+radius[0]*float64(1-2*(c&1))), x.Genes[1] + radius[1]*float64(1-2*(c>>1&1))}
+			s := evaluateAt(prob, shape, y)
+			if beats(s.Objectives, x.Objectives, margin) {
+				t.Fatalf("u = %g: corner %v beats the point: the problem shows nothing", tc.u, y)
+			}
+			corners = append(corners, s)
+		}
+		got, evals := scanNeighbourhood(context.Background(), prob, shape, &x, radius, margin, nil)
+		if got == nil {
+			t.Fatalf("u = %g: the model step found no beater (%d evaluations)", tc.u, evals)
+		}
+		if math.Abs(got.Genes[0]-tc.wantU) > 1e-12 || math.Abs(got.Genes[1]-0.5) > 1e-12 {
+			t.Errorf("u = %g: step to %v, want (%g, 0.5) from the programme worked by hand", tc.u, got.Genes, tc.wantU)
+		}
+		if y, ok := linearModelStep(&x, corners[:2], []int{0, 1}, radius, shape.bounds, margin); ok {
+			t.Errorf("u = %g: a model fitted to 2 points for 2 genes proposed %v", tc.u, y)
 		}
 	}
 }

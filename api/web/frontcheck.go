@@ -21,7 +21,7 @@ func FrontCheckText(j *pb.Job) string {
 		c.GetBeaten(), c.GetPoints(), c.GetBeatenByTwin(), c.GetBeatenByNeighbour(), c.GetRadius(), c.GetNeighbours(), 100*c.GetMarginFraction())
 	switch {
 	case c.GetPolishRounds() > 0:
-		return s + fmt.Sprintf("; the polish improved %d points (%d evaluations; its %d rounds on the twin and every corner of the box replaced %d)",
+		return s + fmt.Sprintf("; the polish improved %d points (%d evaluations; its %d rounds on the twin, every corner of the box and the linear model's step replaced %d)",
 			c.GetPolished(), c.GetPolishEvaluations(), c.GetPolishRounds(), c.GetPolishReplaced())
 	case c.GetPolishEvaluations() > 0:
 		return s + fmt.Sprintf("; the polish improved %d points (%d evaluations)", c.GetPolished(), c.GetPolishEvaluations())

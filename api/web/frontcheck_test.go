@@ -22,7 +22,7 @@ func TestFrontCheckText(t *testing.T) {
 		t.Errorf("with a polish: %q", got)
 	}
 	c.PolishRounds, c.PolishReplaced = 3, 25
-	if got := FrontCheckText(&pb.Job{FrontCheck: c}); got != head+"; the polish improved 40 points (6240 evaluations; its 3 rounds on the twin and every corner of the box replaced 25)" {
+	if got := FrontCheckText(&pb.Job{FrontCheck: c}); got != head+"; the polish improved 40 points (6240 evaluations; its 3 rounds on the twin, every corner of the box and the linear model's step replaced 25)" {
 		t.Errorf("with the polish's rounds: %q", got)
 	}
 	if got := FrontCheckText(&pb.Job{}); got != "" {

@@ -127,10 +127,11 @@ type Size struct {
 	// PolishRounds is the part of Work the polish's neighbourhood rounds
 	// may make (0 without a polish): every point of the front (at most
 	// FrontBound) in each of PolishRounds rounds evaluates its twin and
-	// the 2^n corners of its box (n the ratio genes) and, when it is
-	// replaced, gives way to a point polished with the whole budget:
-	// FrontBound × PolishRounds × (1 + 2^n + polish budget) × cases
-	// (× uncertain cars).
+	// the 2^n corners of its box (n the ratio genes) and the linear
+	// model's step and its half (optimizer.ModelStepEvaluations) and,
+	// when it is replaced, gives way to a point polished with the whole
+	// budget: FrontBound × PolishRounds × (1 + 2^n + 2 + polish budget) ×
+	// cases (× uncertain cars).
 	PolishRounds int64
 	// Refine is the part of Work the refinement makes (0 without one),
 	// in the same unit: FrontBound × road cases × ⌈RefineWorkPerSecond ×
@@ -175,7 +176,7 @@ func (c *Checked) Size() Size {
 				n++
 			}
 		}
-		perPoint := int64(PolishRounds) * (1 + int64(1)<<n + int64(q.PolishBudget))
+		perPoint := int64(PolishRounds) * (1 + int64(1)<<n + optimizer.ModelStepEvaluations + int64(q.PolishBudget))
 		rounds = mulSat(mulSat(front, perPoint), int64(cases))
 	}
 	points := 0

@@ -134,8 +134,9 @@ func TestSize(t *testing.T) {
 // each by its bound worked out by hand (testSpec: population 8, one
 // island, 3 generations, 2 road cases, four ratio genes). The front holds
 // at most 8 × 1 × (3 + 1) = 32 points. Polish budget 4: per point 8
-// rounds × (1 twin + 2^4 corners + 4) = 168 evaluations, × 2 cases ×
-// 32 points = 10 752, beside the search's 8 × 1 × (3 + 4) × 2 = 112.
+// rounds × (1 twin + 2^4 corners + 2 model steps + 4) = 184 evaluations,
+// × 2 cases × 32 points = 11 776, beside the search's 8 × 1 × (3 + 4) ×
+// 2 = 112.
 // Refinement of 10 s: ⌈8 × 10⌉ = 80 per point and road case, × 2 × 32 =
 // 5120.
 func TestSizeCountsPolishRoundsAndRefinement(t *testing.T) {
@@ -146,8 +147,8 @@ func TestSizeCountsPolishRoundsAndRefinement(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := c.Size(); got.PolishRounds != 10_752 || got.Refine != 0 || got.Work != 112+10_752 {
-		t.Errorf("polished: Size %+v, want PolishRounds 10752, Refine 0, Work 10864", got)
+	if got := c.Size(); got.PolishRounds != 11_776 || got.Refine != 0 || got.Work != 112+11_776 {
+		t.Errorf("polished: Size %+v, want PolishRounds 11776, Refine 0, Work 11888", got)
 	}
 	s = testSpec()
 	s.Refinement = Refinement{Enabled: true, Duration: 10}

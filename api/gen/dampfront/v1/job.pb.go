@@ -860,7 +860,8 @@ type FrontCheck struct {
 	// Evaluations the check made.
 	Evaluations int32 `protobuf:"varint,11,opt,name=evaluations,proto3" json:"evaluations,omitempty"`
 	// Rounds of the polish's closing local search on the check's
-	// neighbourhood (the twin and every corner of the box); 0 without.
+	// neighbourhood (the twin, every corner of the box and the linear
+	// model's step); 0 without.
 	PolishRounds int32 `protobuf:"varint,12,opt,name=polish_rounds,json=polishRounds,proto3" json:"polish_rounds,omitempty"`
 	// Points those rounds replaced by a neighbour that beats them.
 	PolishReplaced int32 `protobuf:"varint,13,opt,name=polish_replaced,json=polishReplaced,proto3" json:"polish_replaced,omitempty"`
