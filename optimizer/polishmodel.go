@@ -22,7 +22,13 @@ import (
 // corner does (a narrow cone of such moves between two corners). It
 // returns false when the model promises no gain of at least one margin
 // (t < 1), cannot be fitted or the programme has no solution. The
-// programme is solved by gonum's simplex (optimize/convex/lp).
+// programme is the multiobjective steepest-descent subproblem of
+// J. Fliege and B. F. Svaiter, "Steepest descent methods for
+// multicriteria optimization", Math. Methods Oper. Res. 51(3):479-494,
+// 2000 (from memory), with the box as its trust region and each
+// objective scaled by its margin, on gradients fitted by regression
+// instead of computed; it is solved by gonum's simplex
+// (optimize/convex/lp).
 func linearModelStep(x *Solution, seen []Solution, moved []int, radius []float64, bounds []Bound, margin []float64) ([]float64, bool) {
 	k, m := len(moved), len(x.Objectives)
 	if k == 0 || len(seen) < k+1 {
