@@ -78,6 +78,7 @@ func testCrashUntilAttemptsRunOut(t *testing.T, url string) {
 	nodes := []string{"node-a", "node-a", "node-b", "node-b"}
 	var (
 		slices, gen int
+		ckGen       = -1          // generation of the last checkpoint seen
 		rescue      time.Duration // node b's start to its first slice run
 		lastKill    time.Time
 	)
@@ -97,6 +98,11 @@ func testCrashUntilAttemptsRunOut(t *testing.T, url string) {
 		if i == 2 {
 			rescue = time.Since(started)
 		}
+		// A checkpoint of this run must be stored before the kill: the
+		// failed job's front is its last checkpoint's, and progress is
+		// stored twice as often as checkpoints, so a run killed on its
+		// first progress may have written none.
+		ckGen = waitCheckpointPast(t, client, j.ID, ckGen, limit)
 		if err := c.Process.Kill(); err != nil {
 			t.Fatal(err)
 		}
@@ -147,4 +153,20 @@ func testCrashUntilAttemptsRunOut(t *testing.T, url string) {
 		"job failed %v after the last worker's start, %v after the last kill; front of the checkpoint at generation %d; error: %s",
 		len(nodes), nodes, last.Requeues, rescue.Round(time.Millisecond), ended.Round(time.Millisecond),
 		time.Since(lastKill).Round(time.Millisecond), c.Generation, last.Error)
+}
+
+// waitCheckpointPast waits until the job's stored checkpoint is of a
+// generation above after, within limit, and returns that generation.
+func waitCheckpointPast(t *testing.T, client *Engine, id string, after int, limit time.Duration) int {
+	t.Helper()
+	deadline := time.Now().Add(limit)
+	for time.Now().Before(deadline) {
+		c, err := client.Store().CheckpointGet(context.Background(), &CheckpointGetParams{JobID: id})
+		if err == nil && c.Generation > after {
+			return c.Generation
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
+	t.Fatalf("no checkpoint of job %s past generation %d within %v", id, after, limit)
+	return 0
 }
