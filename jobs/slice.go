@@ -155,6 +155,13 @@ func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], 
 	lastCheckpoint, lastProgress := time.Now(), time.Now()
 	for {
 		done, err := study.Step(sliceCtx, cfg.StepGenerations)
+		if timer == nil && !done && errors.Is(context.Cause(ctx), context.DeadlineExceeded) {
+			// The slice's first step ran into River's timeout of the
+			// attempt: the next slice would start the same step from the
+			// same checkpoint and be stopped there again, for ever.
+			outcome = SliceFailed
+			return rq.finish(ctx, rj, lease, StateFailed, stepTooLong(cfg), study)
+		}
 		if timer == nil {
 			timer = time.AfterFunc(max(0, cfg.SliceDuration-time.Since(start)), func() { cancel(errSliceOver) })
 		}
@@ -190,6 +197,14 @@ func (rq *riverQueue[TTx]) drive(ctx context.Context, rj *river.Job[sliceArgs], 
 	// Slice time up, engine stopping, or River's timeout: hand over.
 	outcome = SliceHandedOver
 	return rq.handOver(ctx, rj, lease, study)
+}
+
+// stepTooLong says why a job whose step outlasts a slice's attempt fails.
+func stepTooLong(cfg Config) string {
+	return fmt.Sprintf("one step of the job ran past a slice's time limit (%v: the slice, %v, and its grace, %v) and was stopped; "+
+		"the next slice would repeat it from the same checkpoint. The polish of the front runs as one step: "+
+		"run the workers with a longer slice (--slice) or make the polish smaller (polish_budget, population), and submit the job again",
+		cfg.sliceTimeout(), cfg.SliceDuration, cfg.SliceGrace)
 }
 
 // pollCancel ends the slice when its job's cancel flag is set, which is

@@ -27,6 +27,10 @@ type toySpec struct {
 	StepDelay time.Duration `json:"step_delay"`
 	// FailAt makes Step fail on reaching this generation (0: never).
 	FailAt int `json:"fail_at"`
+	// LongStepAt makes the generation of this number take LongStep
+	// instead of StepDelay (0: none), as one long stage of a study does.
+	LongStepAt int           `json:"long_step_at,omitempty"`
+	LongStep   time.Duration `json:"long_step,omitempty"`
 }
 
 func (s toySpec) bytes() []byte {
@@ -92,8 +96,12 @@ func (s *toyStudy) Step(ctx context.Context, n int) (bool, error) {
 		for i, x := range s.x {
 			next[i] = 3.99 * x * (1 - x)
 		}
-		if s.spec.StepDelay > 0 {
-			t := time.NewTimer(s.spec.StepDelay)
+		delay := s.spec.StepDelay
+		if s.spec.LongStepAt > 0 && s.gen+1 == s.spec.LongStepAt {
+			delay = s.spec.LongStep
+		}
+		if delay > 0 {
+			t := time.NewTimer(delay)
 			select {
 			case <-ctx.Done():
 				t.Stop()
