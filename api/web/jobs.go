@@ -77,6 +77,9 @@ func newProgressView(j *pb.Job) progressView {
 	default:
 		v.Text = fmt.Sprintf("generation %d, %d evaluations", v.Generation, v.Evaluations)
 	}
+	if rs := j.GetRefinementSummary(); rs.GetInProgress() && !v.Terminal {
+		v.Text += fmt.Sprintf("; refining on the nonlinear car: %d of %d points checked", rs.GetPointsChecked(), rs.GetPoints())
+	}
 	return v
 }
 

@@ -83,3 +83,20 @@ func TestJobPageRefining(t *testing.T) {
 		t.Error("the page of a job still refining shows the finished refinement's counts")
 	}
 }
+
+// TestProgressTextShowsRefinement: the progress text of the list and of
+// the job page's poll says how far a running job's refinement is, and
+// says nothing of it for a job that has ended.
+func TestProgressTextShowsRefinement(t *testing.T) {
+	t.Parallel()
+	rs := &pb.RefinementSummary{Points: 586, PointsChecked: 212, InProgress: true}
+	p := &pb.Progress{Generation: 16, Generations: 16, Evaluations: 8610}
+	running := newProgressView(&pb.Job{State: pb.JobState_JOB_STATE_RUNNING, Progress: p, RefinementSummary: rs})
+	if want := "generation 16 of 16, 8610 evaluations; refining on the nonlinear car: 212 of 586 points checked"; running.Text != want {
+		t.Errorf("running: %q, want %q", running.Text, want)
+	}
+	stopped := newProgressView(&pb.Job{State: pb.JobState_JOB_STATE_CANCELLED, Progress: p, RefinementSummary: rs})
+	if strings.Contains(stopped.Text, "refining") {
+		t.Errorf("cancelled: %q still says it refines", stopped.Text)
+	}
+}

@@ -95,7 +95,11 @@ func writeJobList(w io.Writer, jobs []*pb.Job) error {
 	t.row("JOB", "STATE", "GENERATION", "CREATED", "NAME", "LABELS")
 	for _, j := range jobs {
 		p := j.GetProgress()
-		t.row(j.GetJobId(), stateName(j.GetState())+flagText(j.GetInfeasible(), ", infeasible"), fmt.Sprintf("%d/%d", p.GetGeneration(), p.GetGenerations()),
+		state := stateName(j.GetState()) + flagText(j.GetInfeasible(), ", infeasible")
+		if rs := j.GetRefinementSummary(); rs.GetInProgress() && !terminal(j.GetState()) {
+			state += fmt.Sprintf(", refining %d/%d", rs.GetPointsChecked(), rs.GetPoints())
+		}
+		t.row(j.GetJobId(), state, fmt.Sprintf("%d/%d", p.GetGeneration(), p.GetGenerations()),
 			j.GetCreateTime().AsTime().Local().Format(listTime), j.GetDisplayName(), formatLabels(j.GetLabels()))
 	}
 	return t.flush()

@@ -113,3 +113,23 @@ func TestListMarksInfeasible(t *testing.T) {
 		t.Errorf("list does not mark only the infeasible job:\n%s", b.String())
 	}
 }
+
+// TestListShowsRefinement checks that the list's state column says how
+// far a running job's refinement is (as of its last checkpoint), and
+// nothing of it once the job has ended.
+func TestListShowsRefinement(t *testing.T) {
+	t.Parallel()
+	var b bytes.Buffer
+	rs := &pb.RefinementSummary{Points: 586, PointsChecked: 212, InProgress: true}
+	jobs := []*pb.Job{
+		{JobId: "0001", State: pb.JobState_JOB_STATE_RUNNING, RefinementSummary: rs},
+		{JobId: "0002", State: pb.JobState_JOB_STATE_CANCELLED, RefinementSummary: rs},
+	}
+	if err := writeJobList(&b, jobs); err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(b.String(), "\n")
+	if len(lines) < 3 || !strings.Contains(lines[1], "running, refining 212/586") || strings.Contains(lines[2], "refining") {
+		t.Errorf("list does not show the running job's refinement alone:\n%s", b.String())
+	}
+}
