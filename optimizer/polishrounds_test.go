@@ -168,3 +168,35 @@ func TestLinearModelStep(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkLinearModelStep times the model step alone (the least-squares
+// fit and the linear programme) for four genes and three objectives from
+// the 16 corners of a box, the shape of the demo job's rounds.
+func BenchmarkLinearModelStep(b *testing.B) {
+	x := &Solution{Genes: []float64{0.5, 0.5, 0.5, 0.5}, Objectives: []float64{0, 0, 0}}
+	grad := [3][4]float64{{-1, 3, 0.5, -0.2}, {-1, -3, 0.1, 0.4}, {-0.5, 0.2, -2, 1}}
+	var seen []Solution
+	for c := range 16 {
+		s := Solution{Genes: make([]float64, 4), Objectives: make([]float64, 3)}
+		for i := range 4 {
+			s.Genes[i] = 0.5 + 0.03*float64(1-2*(c>>i&1))
+		}
+		for m := range 3 {
+			for i := range 4 {
+				s.Objectives[m] += grad[m][i] * (s.Genes[i] - 0.5)
+			}
+		}
+		seen = append(seen, s)
+	}
+	radius := []float64{0.03, 0.03, 0.03, 0.03}
+	bounds := []Bound{{0, 1}, {0, 1}, {0, 1}, {0, 1}}
+	margin := []float64{1e-4, 1e-4, 1e-4}
+	moved := []int{0, 1, 2, 3}
+	if _, ok := linearModelStep(x, seen, moved, radius, bounds, margin); !ok {
+		b.Fatal("the model promises no step: the benchmark would time the early exit")
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		linearModelStep(x, seen, moved, radius, bounds, margin)
+	}
+}
