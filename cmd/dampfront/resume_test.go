@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -198,23 +199,9 @@ func TestKillAndResumeRefining(t *testing.T) {
 // count it read and the front's points.
 func waitRefined(t *testing.T, s *server, id string, n int32) (int32, int32) {
 	t.Helper()
-	deadline := timeNow().Add(commandTimeout)
-	for timeNow().Before(deadline) {
-		r := dampfront(t, nil, s.client("get", id, "--format", "json")...)
-		if r.code == exitOK {
-			var j pb.Job
-			if err := protojson.Unmarshal([]byte(r.stdout), &j); err != nil {
-				t.Fatal(err)
-			}
-			if rs := j.GetRefinementSummary(); rs.GetInProgress() && rs.GetPointsChecked() >= n {
-				return rs.GetPointsChecked(), rs.GetPoints()
-			}
-			if terminal(j.GetState()) {
-				t.Fatalf("job %s ended (%v) before %d points were refined", id, j.GetState(), n)
-			}
-		}
-		sleep(20)
-	}
-	t.Fatalf("job %s did not refine %d points within %v", id, n, commandTimeout)
-	return 0, 0
+	j := waitJob(t, s, id, fmt.Sprintf("%d points refined", n), func(j *pb.Job) bool {
+		rs := j.GetRefinementSummary()
+		return rs.GetInProgress() && rs.GetPointsChecked() >= n
+	})
+	return j.GetRefinementSummary().GetPointsChecked(), j.GetRefinementSummary().GetPoints()
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -364,6 +365,14 @@ func TestServeClientCommands(t *testing.T) {
 // generations, within commandTimeout.
 func waitGeneration(t *testing.T, s *server, id string, gen int32) *pb.Job {
 	t.Helper()
+	return waitJob(t, s, id, fmt.Sprintf("generation %d", gen), func(j *pb.Job) bool { return j.GetProgress().GetGeneration() >= gen })
+}
+
+// waitJob polls get every 50 ms until job id meets reached, within
+// commandTimeout, and returns it; a job that ends first fails the test,
+// saying it ended before what (as reached's description).
+func waitJob(t *testing.T, s *server, id, what string, reached func(*pb.Job) bool) *pb.Job {
+	t.Helper()
 	deadline := timeNow().Add(commandTimeout)
 	for timeNow().Before(deadline) {
 		r := dampfront(t, nil, s.client("get", id, "--format", "json")...)
@@ -372,15 +381,15 @@ func waitGeneration(t *testing.T, s *server, id string, gen int32) *pb.Job {
 			if err := protojson.Unmarshal([]byte(r.stdout), &j); err != nil {
 				t.Fatal(err)
 			}
-			if j.GetProgress().GetGeneration() >= gen {
+			if reached(&j) {
 				return &j
 			}
 			if terminal(j.GetState()) {
-				t.Fatalf("job %s ended (%v) before generation %d", id, j.GetState(), gen)
+				t.Fatalf("job %s ended (%v) before %s", id, j.GetState(), what)
 			}
 		}
 		sleep(50)
 	}
-	t.Fatalf("job %s did not reach generation %d within %v", id, gen, commandTimeout)
+	t.Fatalf("job %s did not reach %s within %v", id, what, commandTimeout)
 	return nil
 }
