@@ -85,13 +85,12 @@ func jobToProto(j *jobs.Job, full bool) (*pb.Job, error) {
 	if full {
 		out.Spec = spec
 	}
-	switch {
-	case len(j.Summary) > 0 && j.State == jobs.StateSucceeded:
+	if len(j.Summary) > 0 && j.State == jobs.StateSucceeded {
 		var err error
 		if out.FrontCheck, out.RefinementSummary, err = decodeSummary(j.Summary); err != nil {
 			return nil, fmt.Errorf("stored front check of job %q does not decode: %w", j.ID, err)
 		}
-	default:
+	} else {
 		// A job refining, or stopped while it refined: how far the
 		// refinement is, as of the last checkpoint.
 		out.RefinementSummary = refinementInProgress(j.Summary)

@@ -21,8 +21,8 @@ import (
 // x, with objectives z = f(x), is the start and the reference point of the
 // augmented achievement scalarising function of A. P. Wierzbicki, "The use
 // of reference objectives in multiobjective optimization", in Multiple
-// Criteria Decision Making Theory and Application, Lecture Notes in
-// Economics and Mathematical Systems 177, Springer, 1980, pp. 468-486
+// Criteria Decision Making Theory and Application (Springer series in
+// economics and mathematical systems, vol. 177), 1980, pp. 468-486
 // (from memory),
 //
 //	s(y) = max_j w_j (f_j(y) − z_j) + ρ Σ_j w_j (f_j(y) − z_j),

@@ -25,8 +25,8 @@ import (
 //
 //	L. Paquete, M. Chiarandini and T. Stützle, "Pareto local optimum sets
 //	in the biobjective traveling salesman problem: an experimental
-//	study", in Metaheuristics for Multiobjective Optimisation, Lecture
-//	Notes in Economics and Mathematical Systems 535, Springer, 2004,
+//	study", in Metaheuristics for Multiobjective Optimisation (Springer
+//	series in economics and mathematical systems, vol. 535), 2004,
 //	pp. 177-199, doi:10.1007/978-3-642-17144-4_7
 //
 // (from memory), with dominance by a margin (the ε-dominance of

@@ -77,8 +77,8 @@ func newProgressView(j *pb.Job) progressView {
 	default:
 		v.Text = fmt.Sprintf("generation %d, %d evaluations", v.Generation, v.Evaluations)
 	}
-	if rs := j.GetRefinementSummary(); rs.GetInProgress() && !v.Terminal {
-		v.Text += fmt.Sprintf("; refining on the nonlinear car: %d of %d points checked", rs.GetPointsChecked(), rs.GetPoints())
+	if rs := Refining(j); rs != nil {
+		v.Text += "; refining on the nonlinear car: " + checkedText(rs)
 	}
 	return v
 }

@@ -26,7 +26,7 @@ func RefinementText(j *pb.Job) string {
 		return fmt.Sprintf("Nonlinear refinement not finished: %d of %d points checked when the job stopped; the front has no refined figures",
 			r.GetPointsChecked(), r.GetPoints())
 	case r.GetInProgress():
-		return fmt.Sprintf("Refining on the nonlinear car: %d of %d points checked (as of the last checkpoint)", r.GetPointsChecked(), r.GetPoints())
+		return "Refining on the nonlinear car: " + checkedText(r) + " (as of the last checkpoint)"
 	}
 	s := fmt.Sprintf("Nonlinear refinement: %d points checked in the time domain (%g s of road a case, seed %d); %d off the refined front, %d infeasible, %d unsettled within %g statistical errors",
 		r.GetPoints(), r.GetDurationS(), r.GetSeed(), r.GetOffFront(), r.GetInfeasible(), r.GetUnsettled(), r.GetSigmas())
@@ -34,6 +34,22 @@ func RefinementText(j *pb.Job) string {
 		s += fmt.Sprintf("; %d could not be checked", r.GetFailed())
 	}
 	return s
+}
+
+// Refining returns the refinement summary of a job that is refining its
+// front now (as of its last checkpoint), nil otherwise: none, finished,
+// or stopped before it ended.
+func Refining(j *pb.Job) *pb.RefinementSummary {
+	if r := j.GetRefinementSummary(); r.GetInProgress() && !terminal(j.GetState()) {
+		return r
+	}
+	return nil
+}
+
+// checkedText is a refinement in progress's count, "212 of 586 points
+// checked".
+func checkedText(r *pb.RefinementSummary) string {
+	return fmt.Sprintf("%d of %d points checked", r.GetPointsChecked(), r.GetPoints())
 }
 
 // refinedHeaders are the solutions table's columns of a refined front:

@@ -88,7 +88,7 @@ func bindDemo(fs *flagSet, e *env) (runFunc, error) {
 			}
 		}()
 
-		(&engineFlags{gcPercent: gcPercentDefault(e)}).applyGC() // as serve's default
+		setGCPercent(gcPercentDefault(e)) // as serve's default
 		cfg := demoConfig(e, db, *verbose)
 		log := cfg.Logger
 		wf.configure(&cfg, log)

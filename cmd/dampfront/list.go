@@ -11,6 +11,7 @@ import (
 	"google.golang.org/protobuf/encoding/protojson"
 
 	pb "dampfront/api/gen/dampfront/v1"
+	"dampfront/api/web"
 )
 
 // listAbout is the help text of list.
@@ -96,7 +97,7 @@ func writeJobList(w io.Writer, jobs []*pb.Job) error {
 	for _, j := range jobs {
 		p := j.GetProgress()
 		state := stateName(j.GetState()) + flagText(j.GetInfeasible(), ", infeasible")
-		if rs := j.GetRefinementSummary(); rs.GetInProgress() && !terminal(j.GetState()) {
+		if rs := web.Refining(j); rs != nil {
 			state += fmt.Sprintf(", refining %d/%d", rs.GetPointsChecked(), rs.GetPoints())
 		}
 		t.row(j.GetJobId(), state, fmt.Sprintf("%d/%d", p.GetGeneration(), p.GetGenerations()),

@@ -139,9 +139,13 @@ func gcPercentDefault(e *env) int {
 }
 
 // applyGC sets the collector's heap growth when --gc-percent is not 0.
-func (f *engineFlags) applyGC() {
-	if f.gcPercent > 0 {
-		debug.SetGCPercent(f.gcPercent)
+func (f *engineFlags) applyGC() { setGCPercent(f.gcPercent) }
+
+// setGCPercent sets the collector's heap growth to percent, or leaves the
+// runtime's when percent is 0.
+func setGCPercent(percent int) {
+	if percent > 0 {
+		debug.SetGCPercent(percent)
 	}
 }
 
